@@ -1,0 +1,91 @@
+/**
+ * The contract every liquor model fulfils, built-in or custom. All numbers SI:
+ * x = mass fraction of solute (kg solute / kg solution, 0–1), T in K, p in Pa,
+ * enthalpy in J/kg on the steam-table datum (liquid water at the triple point: u = s = 0,
+ * as IAPWS-IF97), heat capacity J/(kg·K), density kg/m³.
+ *
+ * Validity: each model states the box where its source's data lie (`validity`). Inside it the
+ * model is silent; between that box and its `limits` (where the equations still behave
+ * physically) it pushes a "model-extrapolated" warning into the sink; beyond `limits` it throws
+ * an EngineRangeError naming the input and the range. It never clamps silently.
+ */
+import type { Citation, EngineCaution, WarningSink } from '../types.js';
+
+export interface Interval {
+  min: number;
+  max: number;
+}
+
+export interface ValidityBox {
+  /** Mass fraction of solute, 0–1. */
+  massFraction: Interval;
+  /** K */
+  temperature: Interval;
+  /** Pa, where the model's boiling point depends on pressure. */
+  pressure?: Interval;
+  /** Plain-language notes on bounds that are not a box (e.g. x-limit that depends on T). */
+  notes?: string[];
+}
+
+export type LiquorKind = 'built-in' | 'custom';
+
+export interface LiquorModel {
+  /** kebab-case, stable (e.g. "sodium-hydroxide"). */
+  id: string;
+  name: string;
+  kind: LiquorKind;
+  /** What x means for this liquor, e.g. "mass fraction of NaOH", "dry-solids mass fraction". */
+  compositionVariable: string;
+  /** Published data range: silent inside. */
+  validity: ValidityBox;
+  /** Hard limits: a range error beyond these; a warning between validity and limits. */
+  limits: ValidityBox;
+  sources: Citation[];
+  /** Safety cautions that apply whenever this liquor is used (e.g. hot caustic). */
+  cautions: EngineCaution[];
+
+  /** Boiling point of the solution at pressure p, K. */
+  boilingPoint(massFraction: number, pressure: number, warnings?: WarningSink): number;
+  /** Boiling-point rise over pure water at the same pressure, K. */
+  boilingPointRise(massFraction: number, pressure: number, warnings?: WarningSink): number;
+  /** Specific enthalpy of the solution at (x, T), J/kg, steam-table datum. */
+  enthalpy(massFraction: number, temperature: number, warnings?: WarningSink): number;
+  /** Isobaric specific heat capacity, J/(kg·K). */
+  heatCapacity?(massFraction: number, temperature: number, warnings?: WarningSink): number;
+  /** Density, kg/m³. */
+  density?(massFraction: number, temperature: number, warnings?: WarningSink): number;
+  /**
+   * Highest mass fraction before a solid phase appears at T (solubility or crystallisation
+   * limit), when the source gives one; used to warn that a product is near it.
+   */
+  solubilityLimit?(temperature: number): number;
+}
+
+/** Public description of a model (what the API lists). */
+export interface LiquorDescription {
+  id: string;
+  name: string;
+  kind: LiquorKind;
+  compositionVariable: string;
+  validity: ValidityBox;
+  limits: ValidityBox;
+  sources: Citation[];
+  properties: { heatCapacity: boolean; density: boolean; solubilityLimit: boolean };
+}
+
+export function describeLiquor(model: LiquorModel): LiquorDescription {
+  return {
+    id: model.id,
+    name: model.name,
+    kind: model.kind,
+    compositionVariable: model.compositionVariable,
+    validity: model.validity,
+    limits: model.limits,
+    sources: model.sources,
+    properties: {
+      heatCapacity: typeof model.heatCapacity === 'function',
+      density: typeof model.density === 'function',
+      solubilityLimit: typeof model.solubilityLimit === 'function',
+    },
+  };
+}

@@ -1,0 +1,51 @@
+/**
+ * Types shared across the engine. Every number inside the engine is in SI base units:
+ * Pa, K, J/kg, J/(kg·K), kg/s, W, m², W/(m²·K), kg/m³, and mass fractions 0–1.
+ * Unit parsing and display units belong to the API layer (server/units), never here.
+ */
+
+/** A published source, cited wherever a method or correlation is used. */
+export interface Citation {
+  /** Short stable key, e.g. "olsson-1997". */
+  key: string;
+  /** Human-readable reference: authors, title, journal, volume, year. */
+  reference: string;
+}
+
+/** A warning is data returned with a result (never only a log line). */
+export interface EngineWarning {
+  /** Stable machine code, kebab-case, e.g. "model-extrapolated", "small-temperature-difference". */
+  code: string;
+  message: string;
+  /** The input or result the warning is about, when there is one. */
+  field?: string;
+  /** The published range that was exceeded, in SI units. */
+  validRange?: { min: number; max: number; unit: string };
+}
+
+/** A safety caution shown with results that could hurt someone if misused. */
+export interface EngineCaution {
+  code: string;
+  message: string;
+}
+
+/**
+ * Collector passed down into models and solvers. Models push warnings into it; callers
+ * de-duplicate with {@link addWarning}. Passing no sink (undefined) means "do not collect"
+ * and is what solvers use inside their iterations to stay allocation-free.
+ */
+export type WarningSink = EngineWarning[] | undefined;
+
+/** Adds a warning unless one with the same code and field is already present. */
+export function addWarning(sink: WarningSink, warning: EngineWarning): void {
+  if (!sink) return;
+  if (sink.some((w) => w.code === warning.code && w.field === warning.field)) return;
+  sink.push(warning);
+}
+
+/** Standard gravity (CGPM 1901, exact), m/s². */
+export const STANDARD_GRAVITY = 9.80665;
+/** Standard atmosphere, Pa (exact). */
+export const STANDARD_ATMOSPHERE = 101_325;
+/** Offset between kelvin and degrees Celsius (exact). */
+export const KELVIN_OFFSET = 273.15;
