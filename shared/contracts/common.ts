@@ -1,0 +1,239 @@
+/**
+ * Building blocks shared by every v1 contract: quantity inputs (a number in the default unit
+ * or a string with a unit), output numbers that state their unit, warnings, cautions,
+ * provenance and the RFC 9457 problem-details shape.
+ *
+ * This folder is shared by the server and the console: it imports zod only (no server code,
+ * no OpenAPI library). OpenAPI metadata is attached with zod 4's own `.meta()`, which
+ * @asteasolutions/zod-to-openapi reads; `x-unit` names the unit of each number.
+ */
+import { z } from 'zod';
+
+/** The physical quantities the API accepts and returns. */
+export const quantityKinds = [
+  'temperature',
+  'temperatureDifference',
+  'pressure',
+  'massFlow',
+  'specificEnthalpy',
+  'specificHeatCapacity',
+  'specificEntropy',
+  'power',
+  'area',
+  'heatTransferCoefficient',
+  'massFraction',
+  'length',
+  'fraction',
+] as const;
+export type QuantityKind = (typeof quantityKinds)[number];
+
+/** Default (display) unit of each kind: inputs given as plain numbers are read in it, outputs are given in it. */
+export const defaultUnits: Record<QuantityKind, { symbol: string; label: string; examples: string[] }> = {
+  temperature: { symbol: 'degC', label: '°C', examples: ['38 degC', '311.15 K', '100 degF'] },
+  temperatureDifference: {
+    symbol: 'K',
+    label: 'K (temperature difference)',
+    examples: ['5 K', '9 delta_degF'],
+  },
+  pressure: {
+    symbol: 'kPa',
+    label: 'kPa absolute',
+    examples: ['1.4 bar', '2 barg', '20 psig', '0.3 MPa'],
+  },
+  massFlow: { symbol: 'kg/s', label: 'kg/s', examples: ['4.5 t/h', '12000 kg/h', '9000 lb/h'] },
+  specificEnthalpy: { symbol: 'kJ/kg', label: 'kJ/kg', examples: ['420 kJ/kg', '2.1e5 J/kg'] },
+  specificHeatCapacity: { symbol: 'kJ/(kg*K)', label: 'kJ/(kg·K)', examples: ['3.9 kJ/(kg*K)'] },
+  specificEntropy: { symbol: 'kJ/(kg*K)', label: 'kJ/(kg·K)', examples: ['1.3 kJ/(kg*K)'] },
+  power: { symbol: 'kW', label: 'kW', examples: ['2.5 MW', '800 kW'] },
+  area: { symbol: 'm2', label: 'm²', examples: ['120 m2', '1300 ft2'] },
+  heatTransferCoefficient: {
+    symbol: 'W/(m2*K)',
+    label: 'W/(m²·K)',
+    examples: ['1.8 kW/(m2*K)', '1500 W/(m2*K)'],
+  },
+  massFraction: { symbol: '1', label: 'mass fraction 0–1', examples: ['65 %', '60 Bx'] },
+  length: { symbol: 'm', label: 'm', examples: ['1.5 m', '60 in'] },
+  fraction: { symbol: '1', label: 'fraction 0–1', examples: ['2 %'] },
+};
+
+/** Range of a quantity in its default unit. */
+export interface QuantityRange {
+  min?: number;
+  max?: number;
+  /** true: the minimum itself is refused (e.g. a flow must be > 0). */
+  minExclusive?: boolean;
+}
+
+export interface QuantitySpec extends QuantityRange {
+  kind: QuantityKind;
+}
+
+/**
+ * The input quantities of the v1 API with their ranges in default units. The contracts use them
+ * to check plain numbers; the server uses the same specs to check strings after unit conversion.
+ */
+export const specs = {
+  pressure: { kind: 'pressure', min: 0, minExclusive: true },
+  temperature: { kind: 'temperature', min: -273.15, minExclusive: true },
+  massFraction: { kind: 'massFraction', min: 0, max: 1 },
+  massFlow: { kind: 'massFlow', min: 0, minExclusive: true },
+  bleedFlow: { kind: 'massFlow', min: 0 },
+  enthalpy: { kind: 'specificEnthalpy' },
+  superheat: { kind: 'temperatureDifference', min: 0 },
+  heatTransferCoefficient: { kind: 'heatTransferCoefficient', min: 0, minExclusive: true },
+  area: { kind: 'area', min: 0, minExclusive: true },
+  liquidHeight: { kind: 'length', min: 0, max: 30 },
+  heatLossFraction: { kind: 'fraction', min: 0, max: 0.5 },
+} as const satisfies Record<string, QuantitySpec>;
+
+/** Human-readable range in default units, e.g. "0 to 1", "> 0 kg/s". */
+export function describeRange(spec: QuantitySpec): string {
+  const unit = defaultUnits[spec.kind].label;
+  const lo = spec.min === undefined ? undefined : `${spec.minExclusive ? '>' : '≥'} ${spec.min}`;
+  const hi = spec.max === undefined ? undefined : `≤ ${spec.max}`;
+  return [lo, hi].filter(Boolean).join(' and ') + ` ${unit}`;
+}
+
+/** True if a value in default units lies in the spec's range. */
+export function inRange(spec: QuantityRange, value: number): boolean {
+  if (!Number.isFinite(value)) return false;
+  if (spec.min !== undefined && (spec.minExclusive ? value <= spec.min : value < spec.min)) return false;
+  if (spec.max !== undefined && value > spec.max) return false;
+  return true;
+}
+
+/** Longest unit string accepted ("1.4 bar", "38 degC"): anything longer is not a quantity. */
+export const MAX_QUANTITY_STRING = 64;
+
+/**
+ * A quantity input: a number in the default unit or a string with a unit. A plain number is
+ * range-checked here; a string is converted and range-checked by the server (server/units),
+ * against the same range. A failed range check carries `params.validRange` for the problem's
+ * `errors` list.
+ */
+export function quantity(spec: QuantitySpec, description: string, example: number | string) {
+  const unit = defaultUnits[spec.kind];
+  const schema = z
+    .union([z.number(), z.string().trim().min(1).max(MAX_QUANTITY_STRING)])
+    .superRefine((value, ctx) => {
+      if (typeof value === 'number' && !inRange(spec, value)) {
+        ctx.addIssue({
+          code: 'custom',
+          message: `must be ${describeRange(spec)}`,
+          params: { validRange: { min: spec.min ?? null, max: spec.max ?? null, unit: unit.symbol } },
+        });
+      }
+    })
+    .meta({
+      description:
+        `${description}. A number in ${unit.label}, or a string with a unit ` +
+        `(e.g. ${unit.examples.map((e) => `"${e}"`).join(', ')}). Range: ${describeRange(spec)}.`,
+      example,
+      'x-unit': unit.symbol,
+      'x-quantity-kind': spec.kind,
+    });
+  return schema;
+}
+
+export type QuantityInput = number | string;
+
+/** An output number in the default unit of its kind (or an explicit unit). */
+export function out(kind: QuantityKind | { symbol: string; label: string }, description: string) {
+  const unit = typeof kind === 'string' ? defaultUnits[kind] : kind;
+  return z.number().meta({ description: `${description}, ${unit.label}`, 'x-unit': unit.symbol });
+}
+
+export const RangeSchema = z
+  .object({
+    min: z.number().nullable().meta({ description: 'Lower bound, in `unit` (null: unbounded)' }),
+    max: z.number().nullable().meta({ description: 'Upper bound, in `unit` (null: unbounded)' }),
+    unit: z.string().meta({ description: 'Unit of min and max (display units)', example: 'kPa' }),
+  })
+  .meta({ id: 'ValidRange', description: 'A range in display units.' });
+export type ValidRangeDto = z.infer<typeof RangeSchema>;
+
+export const WarningSchema = z
+  .object({
+    code: z.string().meta({ description: 'Stable kebab-case code', example: 'model-extrapolated' }),
+    message: z.string(),
+    field: z
+      .string()
+      .optional()
+      .meta({
+        description: 'Request field the warning is about (dotted path)',
+        example: 'product.massFraction',
+      }),
+    validRange: RangeSchema.optional(),
+  })
+  .meta({
+    id: 'Warning',
+    description: 'A calculation warning: the result is returned but deserves attention.',
+  });
+export type WarningDto = z.infer<typeof WarningSchema>;
+
+export const CautionSchema = z
+  .object({
+    code: z.string().meta({ example: 'hot-caustic' }),
+    message: z.string(),
+  })
+  .meta({ id: 'Caution', description: 'A safety caution that applies to this calculation.' });
+export type CautionDto = z.infer<typeof CautionSchema>;
+
+export const ProvenanceSchema = z
+  .object({
+    engineVersion: z.string().meta({ description: 'Version of the calculation engine', example: '0.1.0' }),
+    models: z
+      .array(
+        z.object({
+          id: z.string().meta({ example: 'iapws-if97' }),
+          source: z.string().meta({ description: 'Published source of the model' }),
+        }),
+      )
+      .meta({ description: 'Every property model used (IF97 and each liquor model)' }),
+  })
+  .meta({
+    id: 'Provenance',
+    description: 'What produced this result, so a logged result can be traced and reproduced.',
+  });
+export type ProvenanceDto = z.infer<typeof ProvenanceSchema>;
+
+export const ProblemFieldErrorSchema = z
+  .object({
+    field: z.string().meta({ description: 'Dotted path of the request field', example: 'feed.massFraction' }),
+    message: z.string(),
+    value: z.unknown().optional().meta({ description: 'The value received' }),
+    validRange: RangeSchema.optional(),
+    acceptedUnits: z.array(z.string()).optional().meta({ description: 'Units accepted for this field' }),
+  })
+  .meta({ id: 'ProblemFieldError' });
+
+export const ProblemSchema = z
+  .object({
+    type: z.string().meta({
+      description: 'URI identifying the problem type',
+      example: 'https://ebullio.example/problems/validation-failed',
+    }),
+    title: z.string().meta({ example: 'The request is not valid' }),
+    status: z.int().meta({ example: 422 }),
+    detail: z.string().optional(),
+    instance: z.string().optional(),
+    errors: z.array(ProblemFieldErrorSchema).optional(),
+  })
+  .meta({
+    id: 'Problem',
+    description:
+      'RFC 9457 problem details (application/problem+json). Types used by the calculation API: ' +
+      'validation-failed, unit-not-recognised, out-of-range, no-solution, inconsistent-input (422); ' +
+      'bad-request, malformed-json (400); unauthorized (401); forbidden (403); not-found (404); ' +
+      'payload-too-large (413); quota-exceeded, rate-limited (429).',
+  });
+export type ProblemDto = z.infer<typeof ProblemSchema>;
+
+/** A kebab-case identifier (liquor ids). */
+export const IdSchema = z
+  .string()
+  .min(1)
+  .max(64)
+  .regex(/^[a-z0-9]+(?:-[a-z0-9]+)*$/, {
+    error: 'must be kebab-case: lower-case letters, digits and single hyphens',
+  });

@@ -1,0 +1,6 @@
+/** The v1 API contracts: one zod schema per request and response, shared by server and console. */
+export * from './common.js';
+export * from './steam.js';
+export * from './liquors.js';
+export * from './evaporators.js';
+export * from './batch.js';
