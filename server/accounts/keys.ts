@@ -1,0 +1,199 @@
+/**
+ * API keys.
+ *
+ * Format of generated keys: `ebl_live_<publicId>_<secret>`, publicId = 12 base62 characters
+ * (shown in the console and logs), secret = 32 base62 characters (≈ 190 random bits). Only
+ * HMAC-SHA256(server secret, whole key) is stored; the key is returned once, at creation.
+ *
+ * Lookup is by the keyed hash (unique index), then the stored and computed hashes are compared
+ * with `timingSafeEqual`. Because the whole key is hashed, a wrong secret with a real public id is
+ * indistinguishable from a made-up key: both are "unknown", so the 401 never tells a caller
+ * whether a public id exists. Revoked and expired are reported as such, but only to someone who
+ * holds the complete key. Hashing the whole key also lets an operator register any long random
+ * string (BOOTSTRAP_API_KEY) as a key.
+ *
+ * Rotation creates a successor with the same account, scopes and rate limit, and shortens the
+ * old key's expiry to the end of an overlap window; after it the old key gets 401 'expired'.
+ */
+import crypto from 'node:crypto';
+import { desc, eq } from 'drizzle-orm';
+import type { Db } from '../db/client.js';
+import { apiKeys } from '../db/schema.js';
+import { isScope, type Scope } from './operations.js';
+
+/** Accepted shape of a presented bearer token (anything else is "malformed"). */
+export const TOKEN_PATTERN = /^[A-Za-z0-9_.-]{32,256}$/;
+const GENERATED_KEY_PATTERN = /^ebl_(live|test)_([A-Za-z0-9]{12})_([A-Za-z0-9]{32})$/;
+const BASE62 = 'ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789';
+
+/** Uniform random base62 string (rejection sampling, no modulo bias). */
+export function randomBase62(length: number): string {
+  let out = '';
+  while (out.length < length) {
+    for (const byte of crypto.randomBytes(length * 2)) {
+      if (byte < 248 && out.length < length) out += BASE62[byte % 62];
+    }
+  }
+  return out;
+}
+
+export function hashKey(serverSecret: Buffer, token: string): string {
+  return crypto.createHmac('sha256', serverSecret).update(token, 'utf8').digest('hex');
+}
+
+export type ApiKeyRow = typeof apiKeys.$inferSelect;
+/** A key as shown to its owners: never the hash, never the secret. */
+export type ApiKeyView = Omit<ApiKeyRow, 'keyHash' | 'scopes'> & { scopes: Scope[] };
+
+function view(row: ApiKeyRow): ApiKeyView {
+  const { keyHash: _hash, scopes, ...rest } = row;
+  return { ...rest, scopes: scopes.filter(isScope) };
+}
+
+export interface CreateKeyInput {
+  accountId: number;
+  name: string;
+  scopes: readonly Scope[];
+  rateLimitPerMinute?: number;
+  expiresAt?: Date | null;
+  now: Date;
+  /** Register this exact key instead of generating one (bootstrap). Must match TOKEN_PATTERN. */
+  token?: string;
+  rotatedFromId?: number | null;
+}
+
+/** Creates a key; the returned `token` is the only time the secret is visible. */
+export function createKey(
+  db: Db,
+  serverSecret: Buffer,
+  input: CreateKeyInput,
+): { key: ApiKeyView; token: string } {
+  let token: string;
+  let publicId: string;
+  if (input.token !== undefined) {
+    if (!TOKEN_PATTERN.test(input.token))
+      throw new Error('a registered key must be 32–256 chars of [A-Za-z0-9_.-]');
+    token = input.token;
+    publicId = GENERATED_KEY_PATTERN.exec(token)?.[2] ?? `boot${randomBase62(8)}`;
+  } else {
+    publicId = randomBase62(12);
+    token = `ebl_live_${publicId}_${randomBase62(32)}`;
+  }
+  const rate = input.rateLimitPerMinute ?? 60;
+  if (!Number.isInteger(rate) || rate < 1 || rate > 100_000)
+    throw new Error('rateLimitPerMinute must be 1–100000');
+  const row = db
+    .insert(apiKeys)
+    .values({
+      publicId,
+      accountId: input.accountId,
+      name: input.name,
+      keyHash: hashKey(serverSecret, token),
+      scopes: [...new Set(input.scopes)],
+      rateLimitPerMinute: rate,
+      expiresAt: input.expiresAt ?? null,
+      createdAt: input.now,
+      rotatedFromId: input.rotatedFromId ?? null,
+      prefix: token.slice(0, 16),
+    })
+    .returning()
+    .get();
+  return { key: view(row), token };
+}
+
+export function listKeys(db: Db, accountId: number): ApiKeyView[] {
+  return db
+    .select()
+    .from(apiKeys)
+    .where(eq(apiKeys.accountId, accountId))
+    .orderBy(desc(apiKeys.id))
+    .all()
+    .map(view);
+}
+
+export function getKey(db: Db, keyId: number): ApiKeyView | undefined {
+  const row = db.select().from(apiKeys).where(eq(apiKeys.id, keyId)).get();
+  return row ? view(row) : undefined;
+}
+
+/** True if a key with this exact token is registered (any state). */
+export function keyExists(db: Db, serverSecret: Buffer, token: string): boolean {
+  return (
+    db
+      .select({ id: apiKeys.id })
+      .from(apiKeys)
+      .where(eq(apiKeys.keyHash, hashKey(serverSecret, token)))
+      .get() !== undefined
+  );
+}
+
+/** Revokes a key at once: the next request with it gets 401 'revoked'. Idempotent. */
+export function revokeKey(db: Db, keyId: number, now: Date): ApiKeyView | undefined {
+  const row = db.select().from(apiKeys).where(eq(apiKeys.id, keyId)).get();
+  if (!row) return undefined;
+  if (row.revokedAt) return view(row);
+  return view(db.update(apiKeys).set({ revokedAt: now }).where(eq(apiKeys.id, keyId)).returning().get()!);
+}
+
+/**
+ * Rotates a key: a new key with the same account, scopes and rate limit; the old one keeps
+ * working until `now + overlapSeconds` (or its own earlier expiry), then answers 401 'expired'.
+ */
+export function rotateKey(
+  db: Db,
+  serverSecret: Buffer,
+  keyId: number,
+  opts: { now: Date; overlapSeconds: number; name?: string },
+): { key: ApiKeyView; token: string; previous: ApiKeyView } {
+  if (!Number.isFinite(opts.overlapSeconds) || opts.overlapSeconds < 0 || opts.overlapSeconds > 30 * 86400) {
+    throw new Error('overlapSeconds must be between 0 and 30 days');
+  }
+  return db.transaction((tx) => {
+    const old = tx.select().from(apiKeys).where(eq(apiKeys.id, keyId)).get();
+    if (!old) throw new Error(`API key ${keyId} does not exist`);
+    if (old.revokedAt) throw new Error('a revoked key cannot be rotated');
+    if (old.expiresAt && old.expiresAt <= opts.now) throw new Error('an expired key cannot be rotated');
+    const windowEnd = new Date(opts.now.getTime() + opts.overlapSeconds * 1000);
+    const newExpiry = old.expiresAt && old.expiresAt < windowEnd ? old.expiresAt : windowEnd;
+    const previous = tx
+      .update(apiKeys)
+      .set({ expiresAt: newExpiry })
+      .where(eq(apiKeys.id, keyId))
+      .returning()
+      .get()!;
+    const created = createKey(tx as unknown as Db, serverSecret, {
+      accountId: old.accountId,
+      name: opts.name ?? old.name,
+      scopes: old.scopes.filter(isScope),
+      rateLimitPerMinute: old.rateLimitPerMinute,
+      expiresAt: old.expiresAt,
+      now: opts.now,
+      rotatedFromId: old.id,
+    });
+    return { ...created, previous: view(previous) };
+  });
+}
+
+export type AuthResult =
+  | { ok: true; key: ApiKeyView }
+  | { ok: false; reason: 'malformed' | 'unknown' | 'revoked' | 'expired' | 'rotated' };
+
+/** Checks a presented token at time `now`. */
+export function authenticateToken(db: Db, serverSecret: Buffer, token: string, now: Date): AuthResult {
+  if (!TOKEN_PATTERN.test(token)) return { ok: false, reason: 'malformed' };
+  const computed = hashKey(serverSecret, token);
+  const row = db.select().from(apiKeys).where(eq(apiKeys.keyHash, computed)).get();
+  if (!row || !crypto.timingSafeEqual(Buffer.from(row.keyHash, 'hex'), Buffer.from(computed, 'hex'))) {
+    return { ok: false, reason: 'unknown' };
+  }
+  if (row.revokedAt && row.revokedAt <= now) return { ok: false, reason: 'revoked' };
+  if (row.expiresAt && row.expiresAt <= now) {
+    const successor = db
+      .select({ id: apiKeys.id })
+      .from(apiKeys)
+      .where(eq(apiKeys.rotatedFromId, row.id))
+      .get();
+    return { ok: false, reason: successor ? 'rotated' : 'expired' };
+  }
+  return { ok: true, key: view(row) };
+}

@@ -1,0 +1,74 @@
+/**
+ * Monthly usage and quota, read from the usage_daily roll-up (one row per account, UTC day and
+ * operation). Calendar months are UTC.
+ */
+import type { Sqlite } from '../db/client.js';
+
+/** 'YYYY-MM-DD' of a time, UTC. */
+export function utcDay(at: Date): string {
+  return at.toISOString().slice(0, 10);
+}
+
+export function monthStartUtc(at: Date): Date {
+  return new Date(Date.UTC(at.getUTCFullYear(), at.getUTCMonth(), 1));
+}
+
+export function nextMonthStartUtc(at: Date): Date {
+  return new Date(Date.UTC(at.getUTCFullYear(), at.getUTCMonth() + 1, 1));
+}
+
+/** Units used by an account in the calendar month (UTC) containing `now`. */
+export function unitsUsedThisMonth(sqlite: Sqlite, accountId: number, now: Date): number {
+  const row = sqlite
+    .prepare(
+      'SELECT COALESCE(SUM(units), 0) AS units FROM usage_daily WHERE account_id = ? AND day >= ? AND day < ?',
+    )
+    .get(accountId, utcDay(monthStartUtc(now)), utcDay(nextMonthStartUtc(now))) as { units: number };
+  return row.units;
+}
+
+export interface MonthUsage {
+  month: string;
+  quota: { limit: number; used: number; remaining: number; resetsAt: string };
+  totals: { requests: number; units: number; errors: number };
+  byOperation: { operation: string; requests: number; units: number; errors: number }[];
+  byDay: { day: string; requests: number; units: number; errors: number }[];
+}
+
+/** The usage summary of the calendar month (UTC) containing `now`. */
+export function monthUsage(sqlite: Sqlite, accountId: number, now: Date): MonthUsage {
+  const from = utcDay(monthStartUtc(now));
+  const to = utcDay(nextMonthStartUtc(now));
+  const account = sqlite
+    .prepare('SELECT monthly_unit_quota AS quota FROM accounts WHERE id = ?')
+    .get(accountId) as { quota: number } | undefined;
+  if (!account) throw new Error(`account ${accountId} does not exist`);
+  const byOperation = sqlite
+    .prepare(
+      `SELECT operation, SUM(requests) AS requests, SUM(units) AS units, SUM(errors) AS errors
+       FROM usage_daily WHERE account_id = ? AND day >= ? AND day < ? GROUP BY operation ORDER BY operation`,
+    )
+    .all(accountId, from, to) as MonthUsage['byOperation'];
+  const byDay = sqlite
+    .prepare(
+      `SELECT day, SUM(requests) AS requests, SUM(units) AS units, SUM(errors) AS errors
+       FROM usage_daily WHERE account_id = ? AND day >= ? AND day < ? GROUP BY day ORDER BY day`,
+    )
+    .all(accountId, from, to) as MonthUsage['byDay'];
+  const totals = byOperation.reduce(
+    (t, r) => ({ requests: t.requests + r.requests, units: t.units + r.units, errors: t.errors + r.errors }),
+    { requests: 0, units: 0, errors: 0 },
+  );
+  return {
+    month: from.slice(0, 7),
+    quota: {
+      limit: account.quota,
+      used: totals.units,
+      remaining: Math.max(0, account.quota - totals.units),
+      resetsAt: nextMonthStartUtc(now).toISOString(),
+    },
+    totals,
+    byOperation,
+    byDay,
+  };
+}

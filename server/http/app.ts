@@ -1,0 +1,128 @@
+/**
+ * The Express app factory. `createApp(deps)` builds the whole app without listening, so tests
+ * mount it with supertest and main.ts listens on it.
+ *
+ * Pipeline: X-Request-Id → /healthz, /readyz, /problems/:slug → extra modules (appModules) →
+ * /v1 (API key → metering → rate limit → body → operations) → 404 problem → error handler.
+ */
+import express, { type ErrorRequestHandler, type RequestHandler } from 'express';
+import type { Config } from '../config.js';
+import type { Db, Sqlite } from '../db/client.js';
+import { pendingMigrationCount } from '../db/client.js';
+import { EngineInputError, EngineNoSolutionError, EngineRangeError } from '../engine/errors.js';
+import { bodyErrorTranslator } from './middleware/body.js';
+import { requestId } from './middleware/request-id.js';
+import { problem, problemCatalogue, ProblemError, sendProblem, type ProblemSlug } from './problem.js';
+import { createV1Router } from './v1/index.js';
+
+export interface AppDeps {
+  db: Db;
+  sqlite: Sqlite;
+  config: Config;
+  /** Injectable clock: every time the service reasons about (expiry, quotas, logs) comes from here. */
+  clock: () => Date;
+  /** Recorded with every usage event and request-log row. */
+  engineVersion: string;
+}
+
+/** Routes outside /v1 (OpenAPI document, docs page, console API): registered before the 404. */
+export interface AppModule {
+  register(app: express.Express, deps: AppDeps): void;
+}
+
+/** Other modules append themselves here, one line each. */
+export const appModules: AppModule[] = [];
+
+function escapeHtml(text: string): string {
+  return text.replace(/[&<>"']/g, (c) => `&#${c.charCodeAt(0)};`);
+}
+
+const problemPage: RequestHandler = (req, res) => {
+  const slug = String(req.params.slug);
+  if (!Object.prototype.hasOwnProperty.call(problemCatalogue, slug)) {
+    throw problem('not-found', `There is no problem type "${slug}".`);
+  }
+  const entry = problemCatalogue[slug as ProblemSlug];
+  const format = req.accepts(['application/json', 'text/html']);
+  if (format === 'text/html') {
+    res
+      .type('text/html')
+      .send(
+        `<!doctype html><html lang="en"><head><meta charset="utf-8"><title>${escapeHtml(entry.title)} · Ebullio</title></head>` +
+          `<body><h1>${escapeHtml(entry.title)}</h1><p>HTTP status ${entry.status}.</p><p>${escapeHtml(entry.description)}</p></body></html>`,
+      );
+    return;
+  }
+  res.json({ type: `/problems/${slug}`, ...entry });
+};
+
+/** Maps the engine's typed errors to 422 problems (a fallback: routes may map them more precisely). */
+function engineProblem(err: unknown): ProblemError | undefined {
+  if (err instanceof EngineRangeError) {
+    return problem('out-of-range', err.message, {
+      errors: [{ field: err.field, message: err.message, value: err.value, validRange: err.validRange }],
+    });
+  }
+  if (err instanceof EngineInputError) {
+    return problem('validation-failed', err.message, {
+      errors: [{ field: err.field, message: err.message }],
+    });
+  }
+  if (err instanceof EngineNoSolutionError) return problem('no-solution', err.message);
+  return undefined;
+}
+
+const finalErrorHandler: ErrorRequestHandler = (err: unknown, _req, res, next) => {
+  if (res.headersSent) return next(err);
+  const known = err instanceof ProblemError ? err : engineProblem(err);
+  if (known) return sendProblem(res, known);
+  console.error(`[error] request ${res.locals.requestId}:`, err);
+  sendProblem(res, problem('internal', `Unexpected error; quote request id ${res.locals.requestId}.`));
+};
+
+export function createApp(deps: AppDeps): express.Express {
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('clock', deps.clock);
+  app.set('query parser', 'simple');
+  app.use(requestId());
+
+  app.get('/healthz', (_req, res) => {
+    res.json({ status: 'ok' });
+  });
+  app.get('/readyz', (_req, res) => {
+    let pending: number;
+    try {
+      deps.sqlite.prepare('SELECT 1').get();
+      pending = pendingMigrationCount(deps.sqlite);
+    } catch (err) {
+      throw new ProblemError({
+        status: 503,
+        type: 'internal',
+        title: 'Not ready',
+        detail: `The database is not reachable: ${(err as Error).message}`,
+      });
+    }
+    if (pending > 0) {
+      throw new ProblemError({
+        status: 503,
+        type: 'internal',
+        title: 'Not ready',
+        detail: `${pending} database migration(s) not applied.`,
+      });
+    }
+    res.json({ status: 'ready', engineVersion: deps.engineVersion });
+  });
+  app.get('/problems/:slug', problemPage);
+
+  for (const module of appModules) module.register(app, deps);
+
+  app.use('/v1', createV1Router(deps));
+
+  app.use((req, _res, next) => {
+    next(problem('not-found', `No route for ${req.method} ${req.path}.`));
+  });
+  app.use(bodyErrorTranslator());
+  app.use(finalErrorHandler);
+  return app;
+}

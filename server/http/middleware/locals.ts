@@ -1,0 +1,40 @@
+/**
+ * Typing of `res.locals` across the HTTP layer (Express's `Locals` interface, augmented).
+ */
+import type { Scope } from '../../accounts/operations.js';
+
+/** Who is calling: set by the API-key authentication middleware. */
+export interface AuthContext {
+  accountId: number;
+  keyId: number;
+  publicId: string;
+  scopes: Scope[];
+  rateLimitPerMinute: number;
+}
+
+/** What the current request will be metered as; set by the metering middleware. */
+export interface MeterState {
+  /** OperationId once `requireOperation` ran; 'unmatched' until then. */
+  operation: string;
+  /** Units charged so far (billed only if the response status is < 400). */
+  units: number;
+  /** The account's monthly quota, units. */
+  quota: number;
+  /** Units already used this calendar month (UTC) before this request. */
+  usedBefore: number;
+}
+
+declare global {
+  // eslint-disable-next-line @typescript-eslint/no-namespace
+  namespace Express {
+    interface Locals {
+      requestId?: string;
+      /** process.hrtime.bigint() when the request arrived. */
+      startedAt?: bigint;
+      auth?: AuthContext;
+      meter?: MeterState;
+    }
+  }
+}
+
+export {};

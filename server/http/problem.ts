@@ -1,0 +1,168 @@
+/**
+ * RFC 9457 problem details: the one error shape of the Ebullio HTTP API.
+ *
+ * Every error response is `application/problem+json` with
+ * `{ type, title, status, detail, instance, requestId, errors? }`. `type` is a relative URI
+ * `/problems/<slug>`; the app serves a short explanation of each slug at `GET /problems/:slug`
+ * (see {@link problemCatalogue}). Handlers throw {@link ProblemError}; the final error handler
+ * in app.ts renders it with {@link sendProblem}.
+ */
+import type { Request, Response } from 'express';
+
+/** One offending input, named by its dotted path into the request (e.g. `feed.massFraction`). */
+export interface ProblemFieldError {
+  field: string;
+  message: string;
+  value?: unknown;
+  validRange?: { min: number; max: number; unit: string };
+}
+
+export interface ProblemInit {
+  status: number;
+  /** Slug from {@link problemCatalogue}, e.g. 'quota-exceeded'. */
+  type: string;
+  title: string;
+  detail?: string;
+  errors?: ProblemFieldError[];
+  /** Extra response headers, e.g. `WWW-Authenticate` or `Retry-After`. */
+  headers?: Record<string, string>;
+}
+
+/** An error that becomes a problem-details response. Throw it from any handler or middleware. */
+export class ProblemError extends Error {
+  override readonly name = 'ProblemError';
+  readonly status: number;
+  readonly type: string;
+  readonly title: string;
+  readonly detail: string | undefined;
+  readonly errors: ProblemFieldError[] | undefined;
+  readonly headers: Record<string, string>;
+
+  constructor(init: ProblemInit) {
+    super(init.detail ?? init.title);
+    this.status = init.status;
+    this.type = init.type;
+    this.title = init.title;
+    this.detail = init.detail;
+    this.errors = init.errors;
+    this.headers = init.headers ?? {};
+  }
+}
+
+/** The known problem types: slug → status, title and a one-paragraph explanation for humans. */
+export const problemCatalogue = {
+  'bad-request': {
+    status: 400,
+    title: 'Bad request',
+    description: 'The request could not be understood (for example an invalid header or query string).',
+  },
+  'malformed-json': {
+    status: 400,
+    title: 'Malformed JSON',
+    description: 'The request body is not valid JSON. Check quoting, commas and brackets.',
+  },
+  unauthorized: {
+    status: 401,
+    title: 'Unauthorized',
+    description:
+      'No valid API key was presented. Send "Authorization: Bearer <key>"; the detail says whether the key was missing, malformed, unknown, revoked or expired.',
+  },
+  forbidden: {
+    status: 403,
+    title: 'Forbidden',
+    description: 'The API key is valid but lacks the scope this operation needs. The detail names the scope.',
+  },
+  'not-found': {
+    status: 404,
+    title: 'Not found',
+    description: 'No resource or route exists at this path.',
+  },
+  'payload-too-large': {
+    status: 413,
+    title: 'Payload too large',
+    description: 'The request body exceeds the size limit of the service.',
+  },
+  'unsupported-media-type': {
+    status: 415,
+    title: 'Unsupported media type',
+    description:
+      'Request bodies must be application/json (text/csv or multipart/form-data only where an operation says so).',
+  },
+  'validation-failed': {
+    status: 422,
+    title: 'Validation failed',
+    description: 'The request is well-formed JSON but some fields are missing or invalid; see "errors".',
+  },
+  'out-of-range': {
+    status: 422,
+    title: 'Input out of range',
+    description:
+      'An input lies outside the range where the method or model is valid; "errors" gives the field, the value and the valid range.',
+  },
+  'no-solution': {
+    status: 422,
+    title: 'No solution',
+    description: 'The balances have no physical solution for these inputs, or the solver did not converge.',
+  },
+  'rate-limited': {
+    status: 429,
+    title: 'Rate limit exceeded',
+    description:
+      'Too many requests per minute for this API key. The RateLimit and RateLimit-Policy headers say when to retry.',
+  },
+  'quota-exceeded': {
+    status: 429,
+    title: 'Monthly quota exceeded',
+    description:
+      "The account's monthly unit quota would be exceeded by this request. No calculation was run. The quota resets at the start of the next calendar month (UTC).",
+  },
+  internal: {
+    status: 500,
+    title: 'Internal error',
+    description: 'An unexpected error occurred. Quote the request id when reporting it.',
+  },
+} as const satisfies Record<string, { status: number; title: string; description: string }>;
+
+export type ProblemSlug = keyof typeof problemCatalogue;
+
+/** Builds a ProblemError of a catalogued type with its standard status and title. */
+export function problem(
+  slug: ProblemSlug,
+  detail?: string,
+  extra: Pick<ProblemInit, 'errors' | 'headers'> = {},
+): ProblemError {
+  const entry = problemCatalogue[slug];
+  return new ProblemError({ status: entry.status, type: slug, title: entry.title, detail, ...extra });
+}
+
+/** The relative type URI for a slug. */
+export function problemTypeUri(slug: string): string {
+  return `/problems/${slug}`;
+}
+
+/** Body of a problem-details response. */
+export interface ProblemBody {
+  type: string;
+  title: string;
+  status: number;
+  detail?: string;
+  instance: string;
+  requestId?: string;
+  errors?: ProblemFieldError[];
+}
+
+/** Writes a problem-details response (status, headers, `application/problem+json` body). */
+export function sendProblem(res: Response, p: ProblemError): void {
+  const req: Request = res.req;
+  const body: ProblemBody = {
+    type: problemTypeUri(p.type),
+    title: p.title,
+    status: p.status,
+    ...(p.detail !== undefined ? { detail: p.detail } : {}),
+    instance: req.originalUrl.split('?')[0] ?? req.originalUrl,
+    ...(typeof res.locals.requestId === 'string' ? { requestId: res.locals.requestId } : {}),
+    ...(p.errors && p.errors.length > 0 ? { errors: p.errors } : {}),
+  };
+  for (const [name, value] of Object.entries(p.headers)) res.setHeader(name, value);
+  res.status(p.status).type('application/problem+json').send(JSON.stringify(body));
+}

@@ -1,0 +1,36 @@
+/**
+ * The /v1 calculation API router.
+ *
+ * Order: API-key authentication (401) → metering (every authenticated request is recorded, see
+ * middleware/metering.ts) → per-key rate limit (429 'rate-limited') → media-type guard (415) →
+ * JSON / CSV body parsers (413, 400) → the route modules in {@link v1RouteModules}.
+ *
+ * A route module registers its routes on the router and guards each with
+ * `requireOperation('<operation id>')` from middleware/operation.ts (scope check, metering and
+ * quota). Paths inside the router are relative to /v1 (e.g. `router.get('/steam/saturation', …)`).
+ */
+import express from 'express';
+import type { AppDeps } from '../app.js';
+import { authenticate } from '../middleware/auth.js';
+import { bodyParsers, mediaTypeGuard } from '../middleware/body.js';
+import { metering } from '../middleware/metering.js';
+import { perKeyRateLimit } from '../middleware/rate-limit.js';
+import { usageRoutes } from './usage.js';
+
+export interface V1RouteModule {
+  register(router: express.Router, deps: AppDeps): void;
+}
+
+/** Route modules of /v1, registered in this order. Append one line per module. */
+export const v1RouteModules: V1RouteModule[] = [usageRoutes];
+
+export function createV1Router(deps: AppDeps): express.Router {
+  const router = express.Router();
+  router.use(authenticate(deps));
+  router.use(metering(deps));
+  router.use(perKeyRateLimit());
+  router.use(mediaTypeGuard());
+  router.use(...bodyParsers(deps.config.bodyLimitBytes));
+  for (const module of v1RouteModules) module.register(router, deps);
+  return router;
+}
