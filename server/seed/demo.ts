@@ -1,0 +1,158 @@
+/**
+ * Demo data for a fresh database (all names invented): an operator (admin) user, two client
+ * accounts with one key each, and a week of plausible usage so a console has something to show.
+ *
+ * The demo keys' secrets are never printed or stored: the documented way in is BOOTSTRAP_API_KEY,
+ * which main.ts registers on the demo account (see bootstrap.ts).
+ */
+import crypto from 'node:crypto';
+import type { Db, Sqlite } from '../db/client.js';
+import { addMember, createAccount, createUser } from '../accounts/accounts.js';
+import { createKey } from '../accounts/keys.js';
+import { recordRequest } from '../accounts/metering.js';
+import { operations, type OperationId } from '../accounts/operations.js';
+
+/** The account BOOTSTRAP_API_KEY is registered on. */
+export const DEMO_ACCOUNT_NAME = 'Saltmarsh Chlor-Alkali Works, Process Engineering';
+export const SECOND_DEMO_ACCOUNT_NAME = 'Heatherfold Dairy Concentrates';
+export const DEMO_OPERATOR_EMAIL = 'operator@ebullio.invalid';
+
+export function isDatabaseEmpty(sqlite: Sqlite): boolean {
+  const row = sqlite
+    .prepare('SELECT (SELECT COUNT(*) FROM accounts) + (SELECT COUNT(*) FROM users) AS n')
+    .get() as {
+    n: number;
+  };
+  return row.n === 0;
+}
+
+/** Small deterministic generator so the demo looks the same on every fresh start. */
+function mulberry32(seed: number): () => number {
+  let a = seed;
+  return () => {
+    a = (a + 0x6d2b79f5) | 0;
+    let t = Math.imul(a ^ (a >>> 15), 1 | a);
+    t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+interface DemoMix {
+  operation: OperationId;
+  perDay: number;
+  units: number;
+}
+
+function seedUsage(
+  sqlite: Sqlite,
+  accountId: number,
+  keyId: number,
+  mix: DemoMix[],
+  now: Date,
+  days: number,
+  engineVersion: string,
+): void {
+  const random = mulberry32(accountId * 7919);
+  for (let d = days; d >= 1; d--) {
+    const dayStart = Date.UTC(now.getUTCFullYear(), now.getUTCMonth(), now.getUTCDate() - d);
+    for (const m of mix) {
+      const n = Math.round(m.perDay * (0.6 + 0.8 * random()));
+      for (let i = 0; i < n; i++) {
+        const at = new Date(dayStart + Math.floor((7 + 11 * random()) * 3_600_000));
+        const failed = random() < 0.04;
+        recordRequest(sqlite, {
+          at,
+          accountId,
+          keyId,
+          operation: m.operation,
+          status: failed ? 422 : 200,
+          units: failed ? 0 : m.units,
+          latencyMs: Math.round(2 + 20 * random()),
+          requestId: crypto.randomUUID(),
+          engineVersion,
+          method: operations[m.operation].method,
+          path: operations[m.operation].path.replace('{liquorId}', 'naoh-olsson-1997'),
+          requestBody: null,
+          responseBody: null,
+        });
+      }
+    }
+  }
+}
+
+/** Fills an empty database with the demo scenario. Returns the demo account's id. */
+export function seedDemo(
+  db: Db,
+  sqlite: Sqlite,
+  serverSecret: Buffer,
+  now: Date,
+  engineVersion: string,
+): number {
+  return sqlite.transaction(() => {
+    // The operator's password is random and unknown: sign in with BOOTSTRAP_ADMIN_* instead.
+    const operator = createUser(db, {
+      email: DEMO_OPERATOR_EMAIL,
+      password: crypto.randomBytes(24).toString('base64url'),
+      role: 'admin',
+      now,
+    });
+    const caustic = createAccount(db, {
+      name: DEMO_ACCOUNT_NAME,
+      plan: 'professional',
+      monthlyUnitQuota: 50_000,
+      billingEmail: 'accounts@saltmarsh-alkali.invalid',
+      now,
+    });
+    const dairy = createAccount(db, {
+      name: SECOND_DEMO_ACCOUNT_NAME,
+      plan: 'starter',
+      monthlyUnitQuota: 5_000,
+      billingEmail: 'finance@heatherfold-dairy.invalid',
+      retainRequestBodies: true,
+      now,
+    });
+    addMember(db, operator.id, caustic.id);
+    addMember(db, operator.id, dairy.id);
+    const causticKey = createKey(db, serverSecret, {
+      accountId: caustic.id,
+      name: 'Caustic evaporator studies',
+      scopes: ['steam', 'liquors', 'evaporators', 'batch', 'usage'],
+      rateLimitPerMinute: 120,
+      now,
+    }).key;
+    const dairyKey = createKey(db, serverSecret, {
+      accountId: dairy.id,
+      name: 'Falling-film line 2',
+      scopes: ['steam', 'liquors', 'evaporators', 'usage'],
+      rateLimitPerMinute: 60,
+      now,
+    }).key;
+    seedUsage(
+      sqlite,
+      caustic.id,
+      causticKey.id,
+      [
+        { operation: 'liquors.boiling-point', perDay: 40, units: 1 },
+        { operation: 'steam.saturation', perDay: 25, units: 1 },
+        { operation: 'evaporators.multiple-effect', perDay: 8, units: 20 },
+        { operation: 'liquors.list', perDay: 3, units: 0 },
+      ],
+      now,
+      6,
+      engineVersion,
+    );
+    seedUsage(
+      sqlite,
+      dairy.id,
+      dairyKey.id,
+      [
+        { operation: 'evaporators.single-effect', perDay: 12, units: 5 },
+        { operation: 'steam.state', perDay: 15, units: 1 },
+      ],
+      now,
+      4,
+      engineVersion,
+    );
+    return caustic.id;
+  })();
+}
