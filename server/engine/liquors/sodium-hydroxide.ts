@@ -1,0 +1,426 @@
+/**
+ * Built-in liquor model "sodium-hydroxide": aqueous NaOH solutions (caustic soda), from
+ *
+ *   M. Olsson, Å. Jernqvist and G. Aly, "Thermophysical properties of aqueous NaOH–H2O solutions
+ *   at high concentrations", International Journal of Thermophysics 18(3) (1997).
+ *
+ * Coefficients as printed in that paper, taken from /work/shared/domain.md (section 3). The paper
+ * writes its correlations in ξ = mass fraction of WATER (ξ = 1 − x) and t in °C; the small
+ * exported functions below keep the paper's variables and units (ξ, °C, kPa, kJ/kg) so that they
+ * can be checked line by line against it, and the LiquorModel at the end converts to SI.
+ *
+ * Density and a crystallisation (solubility) limit are deliberately not provided: the paper's
+ * density coefficients are not in our notes and we do not invent coefficients; we have no
+ * published NaOH-hydrate solubility correlation at hand. Both optional methods are left out.
+ */
+import { EngineRangeError } from '../errors.js';
+import { saturationTemperature, IF97 } from '../steam/if97.js';
+import { addWarning, KELVIN_OFFSET, type Citation, type WarningSink } from '../types.js';
+import type { Interval, LiquorModel, ValidityBox } from './model.js';
+import { checkAgainst } from './validity.js';
+
+const MODEL_ID = 'sodium-hydroxide';
+
+/** Olsson et al. (1997), vapour-pressure coefficients k_i, i = 0…8 (for a1). */
+const VP_K = [
+  -113.93947, 209.82305, 494.77153, 6860.833, 2676.6433, -21740.328, -34750.872, -20122.157, -4102.989,
+] as const;
+/** Olsson et al. (1997), vapour-pressure coefficients l_i, i = 0…10 (for a2). */
+const VP_L = [
+  16.240074, -11.864008, -223.47305, -1650.3997, -5997.3118, -12318.744, -15303.153, -11707.48, -5364.9554,
+  -1338.5412, -137.96889,
+] as const;
+/** Olsson et al. (1997), vapour-pressure coefficients m_i, i = 0…10 (for a3). */
+const VP_M = [
+  -226.80157, 293.17155, 5081.8791, 36752.126, 131262.0, 259399.54, 301696.22, 208617.9, 81774.024, 15648.526,
+  906.29769,
+] as const;
+
+/** Olsson et al. (1997), enthalpy coefficients k_0…k_7 of the rational function c1(ξ). */
+const H_K = [
+  1288.4485, -0.49649131, -4387.8908, -4.0915144, 4938.2298, 7.2887292, -1841.189, -3.0202651,
+] as const;
+/** Olsson et al. (1997), enthalpy coefficients l_i, i = 0…8 (c2). */
+const H_L = [
+  2.3087919, -9.0004252, 167.59914, -1051.6368, 3394.3378, -6115.0986, 6220.8249, -3348.8098, 743.87432,
+] as const;
+/** Olsson et al. (1997), enthalpy coefficients m_i, i = 0…7 (c3). */
+const H_M = [
+  0.0230286, -0.37866056, 2.4529593, -8.2693542, 15.728833, -16.944427, 9.6254192, -2.2410628,
+] as const;
+/** Olsson et al. (1997), enthalpy coefficients n_i, i = 0…7 (c4); printed ×10⁻⁵. */
+const H_N = [-8.5131313, 136.52823, -875.68741, 2920.0398, -5488.2983, 5841.8034, -3278.7483, 754.45993].map(
+  (n) => n * 1e-5,
+);
+
+/** Σ c_i·z^i by Horner's rule. */
+function polynomial(coefficients: readonly number[], z: number): number {
+  let sum = 0;
+  for (let i = coefficients.length - 1; i >= 0; i--) sum = sum * z + (coefficients[i] ?? 0);
+  return sum;
+}
+
+function requireWaterFraction(waterMassFraction: number): void {
+  if (!Number.isFinite(waterMassFraction) || waterMassFraction <= 0 || waterMassFraction > 1) {
+    throw new EngineRangeError('waterMassFraction', waterMassFraction, {
+      min: 0,
+      max: 1,
+      unit: 'kg water/kg solution',
+    });
+  }
+}
+
+/** The three ξ-dependent parameters of Olsson's vapour-pressure equation. */
+function vaporPressureParameters(waterMassFraction: number): { a1: number; a2: number; a3: number } {
+  const z = Math.log(waterMassFraction);
+  return { a1: polynomial(VP_K, z), a2: polynomial(VP_L, z), a3: polynomial(VP_M, z) };
+}
+
+/**
+ * Vapour pressure of an aqueous NaOH solution (Olsson, Jernqvist and Aly 1997, eq. for p):
+ *
+ *   ln(p / kPa) = (a1 + a2·t) / (t − a3),  a1 = Σ_{i=0}^{8} k_i (ln ξ)^i,
+ *   a2 = Σ_{i=0}^{10} l_i (ln ξ)^i,  a3 = Σ_{i=0}^{10} m_i (ln ξ)^i
+ *
+ * @param waterMassFraction ξ, kg water per kg solution (ξ = 1 − x_NaOH), 0 < ξ ≤ 1
+ * @param temperatureCelsius t, °C; must lie above the equation's pole t = a3(ξ)
+ * @returns p, kPa
+ *
+ * Validity (paper): 0–20 °C ξ ≥ 0.582; 20–60 °C ξ ≥ 0.500; 60–70 °C ξ ≥ 0.353;
+ * 70–150 °C ξ ≥ 0.300; 150–200 °C ξ ≥ 0.200 (see {@link olssonVaporPressureMinWaterFraction}).
+ * Source: Int. J. Thermophysics 18(3) 1997; coefficients from /work/shared/domain.md.
+ * Example: ξ = 0.5, t = 146.4 °C gives about 101.3 kPa (50 % NaOH boils near 146 °C at 1 atm).
+ */
+export function olssonVaporPressureKPa(waterMassFraction: number, temperatureCelsius: number): number {
+  requireWaterFraction(waterMassFraction);
+  const { a1, a2, a3 } = vaporPressureParameters(waterMassFraction);
+  if (!Number.isFinite(temperatureCelsius) || temperatureCelsius <= a3) {
+    throw new EngineRangeError(
+      'temperature',
+      temperatureCelsius,
+      { min: a3, max: Number.POSITIVE_INFINITY, unit: '°C' },
+      `temperature = ${temperatureCelsius} °C is at or below the pole t = a3 = ${a3.toFixed(2)} °C of the NaOH vapour-pressure equation at water fraction ${waterMassFraction}`,
+    );
+  }
+  return Math.exp((a1 + a2 * temperatureCelsius) / (temperatureCelsius - a3));
+}
+
+/**
+ * Boiling temperature of an aqueous NaOH solution at pressure p: Olsson's vapour-pressure
+ * equation solved for t. With y = ln(p/kPa) the equation y·(t − a3) = a1 + a2·t is linear in t:
+ *
+ *   t = (a1 + a3·y) / (y − a2)
+ *
+ * Along t > a3 (the physical branch) ln p rises monotonically from −∞ to a2, so there is exactly
+ * one root when y < a2 and none otherwise (then an EngineRangeError is thrown).
+ *
+ * @param waterMassFraction ξ, kg water per kg solution, 0 < ξ ≤ 1
+ * @param pressureKPa p, kPa, > 0
+ * @returns t, °C
+ *
+ * Validity: as {@link olssonVaporPressureKPa}. Source: Olsson, Jernqvist and Aly,
+ * Int. J. Thermophysics 18(3) 1997.
+ * Example: ξ = 1 (pure water), 101.325 kPa gives 99.93 °C (IF97: 99.97 °C).
+ */
+export function olssonBoilingTemperatureCelsius(waterMassFraction: number, pressureKPa: number): number {
+  requireWaterFraction(waterMassFraction);
+  if (!Number.isFinite(pressureKPa) || pressureKPa <= 0) {
+    throw new EngineRangeError('pressure', pressureKPa, {
+      min: 0,
+      max: Number.POSITIVE_INFINITY,
+      unit: 'kPa',
+    });
+  }
+  const { a1, a2, a3 } = vaporPressureParameters(waterMassFraction);
+  const y = Math.log(pressureKPa);
+  if (y >= a2) {
+    throw new EngineRangeError(
+      'pressure',
+      pressureKPa,
+      { min: 0, max: Math.exp(a2), unit: 'kPa' },
+      `pressure = ${pressureKPa} kPa: the NaOH vapour-pressure equation has no boiling temperature at water fraction ${waterMassFraction} above ${Math.exp(a2).toPrecision(5)} kPa`,
+    );
+  }
+  return (a1 + a3 * y) / (y - a2);
+}
+
+/**
+ * Specific enthalpy of an aqueous NaOH solution (Olsson, Jernqvist and Aly 1997):
+ *
+ *   h = c1 + c2·t + c3·t² + c4·t³  (kJ/kg)
+ *   c1 = (k0 + k2ξ + k4ξ² + k6ξ³) / (1 + k1ξ + k3ξ² + k5ξ³ + k7ξ⁴)
+ *   c2 = Σ_{i=0}^{8} l_i ξ^i,  c3 = Σ_{i=0}^{7} m_i ξ^i,  c4 = Σ_{i=0}^{7} n_i ξ^i
+ *
+ * Datum as the steam tables (liquid water at the triple point); at ξ = 1 and 25 °C the fit gives
+ * 104.66 kJ/kg against IF97's 104.84 kJ/kg.
+ *
+ * @param waterMassFraction ξ, kg water per kg solution, 0 < ξ ≤ 1
+ * @param temperatureCelsius t, °C
+ * @returns h, kJ/kg
+ *
+ * Validity (paper, ξ lower bound by t): 0–4 °C 0.78; 4–10 0.68; 10–15 0.58; 15–26 0.54;
+ * 26–37 0.44; 37–48 0.40; 48–60 0.34; 60–71 0.30; 71–82 0.28; 82–93 0.24; 93–204 0.22
+ * (see {@link olssonEnthalpyMinWaterFraction}). Source: Int. J. Thermophysics 18(3) 1997.
+ * Example: ξ = 0.5, t = 89.5 °C gives about 508 kJ/kg.
+ */
+export function olssonEnthalpyKJPerKg(waterMassFraction: number, temperatureCelsius: number): number {
+  requireWaterFraction(waterMassFraction);
+  const xi = waterMassFraction;
+  const [k0, k1, k2, k3, k4, k5, k6, k7] = H_K;
+  const c1 =
+    (k0 + k2 * xi + k4 * xi ** 2 + k6 * xi ** 3) / (1 + k1 * xi + k3 * xi ** 2 + k5 * xi ** 3 + k7 * xi ** 4);
+  const t = temperatureCelsius;
+  return c1 + polynomial(H_L, xi) * t + polynomial(H_M, xi) * t ** 2 + polynomial(H_N, xi) * t ** 3;
+}
+
+/**
+ * Isobaric specific heat capacity of an aqueous NaOH solution: the temperature derivative of
+ * Olsson's own enthalpy fit (this is their model, not a separate correlation):
+ *
+ *   c_p = ∂h/∂t = c2 + 2·c3·t + 3·c4·t²  (kJ/(kg·K))
+ *
+ * @param waterMassFraction ξ, kg water per kg solution, 0 < ξ ≤ 1
+ * @param temperatureCelsius t, °C
+ * @returns c_p, kJ/(kg·K)
+ *
+ * Validity and source: as {@link olssonEnthalpyKJPerKg}. Being a derivative of a fit, it is less
+ * accurate than h itself; for pure water it runs about 2 % high at 25 °C and 4 % at 150 °C.
+ * Example: ξ = 0.5, t = 50 °C gives about 3.22 kJ/(kg·K).
+ */
+export function olssonHeatCapacityKJPerKgK(waterMassFraction: number, temperatureCelsius: number): number {
+  requireWaterFraction(waterMassFraction);
+  const xi = waterMassFraction;
+  const t = temperatureCelsius;
+  return polynomial(H_L, xi) + 2 * polynomial(H_M, xi) * t + 3 * polynomial(H_N, xi) * t ** 2;
+}
+
+/** [upper temperature bound °C, lowest water fraction ξ] steps of Olsson's data for p(ξ, t). */
+const VP_STAIRCASE: readonly (readonly [number, number])[] = [
+  [20, 0.582],
+  [60, 0.5],
+  [70, 0.353],
+  [150, 0.3],
+  [200, 0.2],
+];
+/** [upper temperature bound °C, lowest water fraction ξ] steps of Olsson's data for h(ξ, t). */
+const H_STAIRCASE: readonly (readonly [number, number])[] = [
+  [4, 0.78],
+  [10, 0.68],
+  [15, 0.58],
+  [26, 0.54],
+  [37, 0.44],
+  [48, 0.4],
+  [60, 0.34],
+  [71, 0.3],
+  [82, 0.28],
+  [93, 0.24],
+  [204, 0.22],
+];
+
+/** Lowest ξ of a staircase at t; on a step boundary the looser (lower) bound applies. */
+function staircaseMinimum(steps: readonly (readonly [number, number])[], t: number): number {
+  for (const [upper, xiMin] of steps) if (t < upper) return xiMin;
+  const last = steps[steps.length - 1];
+  // On the last boundary and above it: the last step (beyond its t the temperature check warns).
+  return last ? last[1] : 0;
+}
+
+/**
+ * Lowest water mass fraction ξ at which Olsson et al. (1997) had vapour-pressure data at t (°C).
+ * Outside these steps the vapour-pressure equation is extrapolated. Above 200 °C the last step
+ * (ξ ≥ 0.200) is returned; the temperature itself is then outside the data.
+ */
+export function olssonVaporPressureMinWaterFraction(temperatureCelsius: number): number {
+  const t = temperatureCelsius;
+  for (let i = 0; i < VP_STAIRCASE.length - 1; i++) {
+    const step = VP_STAIRCASE[i];
+    const next = VP_STAIRCASE[i + 1];
+    if (step && next && t === step[0]) return Math.min(step[1], next[1]);
+  }
+  return staircaseMinimum(VP_STAIRCASE, t);
+}
+
+/**
+ * Lowest water mass fraction ξ at which Olsson et al. (1997) had enthalpy data at t (°C).
+ * Above 204 °C the last step (ξ ≥ 0.22) is returned.
+ */
+export function olssonEnthalpyMinWaterFraction(temperatureCelsius: number): number {
+  const t = temperatureCelsius;
+  for (let i = 0; i < H_STAIRCASE.length - 1; i++) {
+    const step = H_STAIRCASE[i];
+    const next = H_STAIRCASE[i + 1];
+    if (step && next && t === step[0]) return Math.min(step[1], next[1]);
+  }
+  return staircaseMinimum(H_STAIRCASE, t);
+}
+
+const KPA = 1e3;
+const KJ = 1e3;
+const C = (celsius: number): number => celsius + KELVIN_OFFSET;
+
+/**
+ * Hard limits, and why:
+ * - NaOH mass fraction 0–0.80: the richest solution in Olsson's data (ξ = 0.20); beyond it the
+ *   ln ξ polynomials (10th degree) turn over within a few per cent (the boiling point stops
+ *   rising with x at x ≈ 0.81), so the equations no longer behave physically.
+ * - Temperature 0–250 °C: the data reach 200 °C (p) and 204 °C (h); the fit stays smooth and
+ *   monotonic in t up to 250 °C, and 0 °C is the floor of IF97 liquid water used for the BPR.
+ * - Pressure 611.213 Pa (lowest IF97 saturation pressure, needed for the BPR) up to the fit's
+ *   pure-water vapour pressure at 250 °C.
+ */
+const X_VALID: Interval = { min: 0, max: 0.8 };
+const X_LIMITS: Interval = { min: 0, max: 0.8 };
+const T_VALID_BOILING: Interval = { min: C(0), max: C(200) };
+const T_VALID_ENTHALPY: Interval = { min: C(0), max: C(204) };
+const T_LIMITS: Interval = { min: C(0), max: C(250) };
+const P_VALID: Interval = { min: IF97.minPressure, max: olssonVaporPressureKPa(1, 200) * KPA };
+const P_LIMITS: Interval = { min: IF97.minPressure, max: olssonVaporPressureKPa(1, 250) * KPA };
+
+const validity: ValidityBox = {
+  massFraction: X_VALID,
+  temperature: { min: C(0), max: C(204) },
+  pressure: P_VALID,
+  notes: [
+    'x is the mass fraction of NaOH; Olsson et al. write their equations in the water fraction ξ = 1 − x.',
+    'Boiling point (vapour pressure) data, lowest water fraction by temperature: 0–20 °C ξ ≥ 0.582; 20–60 °C ξ ≥ 0.500; 60–70 °C ξ ≥ 0.353; 70–150 °C ξ ≥ 0.300; 150–200 °C ξ ≥ 0.200. Outside these steps a "model-extrapolated" warning is returned.',
+    'Enthalpy data, lowest water fraction by temperature: 0–4 °C 0.78; 4–10 °C 0.68; 10–15 °C 0.58; 15–26 °C 0.54; 26–37 °C 0.44; 37–48 °C 0.40; 48–60 °C 0.34; 60–71 °C 0.30; 71–82 °C 0.28; 82–93 °C 0.24; 93–204 °C 0.22.',
+    'Boiling-point rise is reported against IF97 T_sat(p); the fit itself puts pure water 0.04 K below IF97 at 101.325 kPa (0.14 K below at 5 kPa), so very dilute solutions can show a slightly negative rise.',
+    'Density and the crystallisation (hydrate solubility) limit are not provided by this model.',
+  ],
+};
+
+const limits: ValidityBox = {
+  massFraction: X_LIMITS,
+  temperature: T_LIMITS,
+  pressure: P_LIMITS,
+  notes: [
+    'Beyond x = 0.80, below 0 °C, above 250 °C, or at a pressure where the boiling point would leave 0–250 °C, the model refuses with a range error.',
+  ],
+};
+
+const sources: Citation[] = [
+  {
+    key: 'olsson-1997',
+    reference:
+      'M. Olsson, Å. Jernqvist, G. Aly, "Thermophysical properties of aqueous NaOH–H2O solutions at high concentrations", International Journal of Thermophysics 18(3) (1997)',
+  },
+  {
+    key: 'iapws-if97',
+    reference:
+      'IAPWS R7-97(2012), Revised Release on the IAPWS Industrial Formulation 1997 for the Thermodynamic Properties of Water and Steam (pure-water saturation temperature for the boiling-point rise)',
+  },
+];
+
+function checkMassFraction(x: number, warnings: WarningSink): void {
+  checkAgainst(MODEL_ID, 'massFraction', x, 'kg NaOH/kg solution', X_VALID, X_LIMITS, warnings);
+}
+
+function warnOutsideStaircase(
+  x: number,
+  temperatureCelsius: number,
+  minWaterFraction: number,
+  property: string,
+  warnings: WarningSink,
+): void {
+  const xMax = 1 - minWaterFraction;
+  if (x > xMax) {
+    addWarning(warnings, {
+      code: 'model-extrapolated',
+      field: 'massFraction',
+      message: `massFraction = ${x} kg NaOH/kg solution at ${temperatureCelsius.toFixed(1)} °C lies outside the ${MODEL_ID} model's ${property} data (up to ${xMax.toFixed(3)} at this temperature); the result is extrapolated`,
+      validRange: { min: 0, max: xMax, unit: 'kg NaOH/kg solution' },
+    });
+  }
+}
+
+/** Pressures (Pa) between which the boiling point of x lies in the 0–250 °C hard limits. */
+function pressureLimitsFor(x: number): Interval {
+  const xi = 1 - x;
+  const { a3 } = vaporPressureParameters(xi);
+  const low = a3 < 0 ? olssonVaporPressureKPa(xi, 0) * KPA : 0;
+  return {
+    min: Math.max(IF97.minPressure, low),
+    max: olssonVaporPressureKPa(xi, 250) * KPA,
+  };
+}
+
+function boilingPoint(massFraction: number, pressure: number, warnings?: WarningSink): number {
+  checkMassFraction(massFraction, warnings);
+  const range = pressureLimitsFor(massFraction);
+  if (!Number.isFinite(pressure) || pressure < range.min || pressure > range.max) {
+    throw new EngineRangeError(
+      'pressure',
+      pressure,
+      { min: range.min, max: range.max, unit: 'Pa' },
+      `pressure = ${pressure} Pa is outside the range of the ${MODEL_ID} model at massFraction = ${massFraction} (${range.min.toPrecision(5)} to ${range.max.toPrecision(5)} Pa, boiling points 0–250 °C)`,
+    );
+  }
+  checkAgainst(MODEL_ID, 'pressure', pressure, 'Pa', P_VALID, P_LIMITS, warnings);
+  const t = olssonBoilingTemperatureCelsius(1 - massFraction, pressure / KPA);
+  const temperature = C(t);
+  checkAgainst(MODEL_ID, 'temperature', temperature, 'K', T_VALID_BOILING, T_LIMITS, warnings);
+  warnOutsideStaircase(massFraction, t, olssonVaporPressureMinWaterFraction(t), 'vapour-pressure', warnings);
+  return temperature;
+}
+
+function checkEnthalpyInputs(massFraction: number, temperature: number, warnings: WarningSink): number {
+  checkMassFraction(massFraction, warnings);
+  checkAgainst(MODEL_ID, 'temperature', temperature, 'K', T_VALID_ENTHALPY, T_LIMITS, warnings);
+  const t = temperature - KELVIN_OFFSET;
+  warnOutsideStaircase(massFraction, t, olssonEnthalpyMinWaterFraction(t), 'enthalpy', warnings);
+  return t;
+}
+
+/**
+ * Aqueous sodium hydroxide, Olsson, Jernqvist and Aly (1997).
+ *
+ * - boilingPoint(x, p): Olsson's vapour-pressure equation solved for t (no iteration).
+ * - boilingPointRise(x, p) = boilingPoint(x, p) − T_sat,IF97(p). We report the rise against
+ *   IF97 rather than against the fit's own pure-water boiling point so that T = T_sat + BPR is
+ *   exactly the liquor boiling point the rest of the engine uses with IF97 vapour properties.
+ *   The price: the fit's pure-water error (−0.04 K at 101.325 kPa, −0.14 K at 5 kPa) appears as
+ *   a slightly negative rise for very dilute solutions. Callers must not assume BPR ≥ 0.
+ * - enthalpy, heatCapacity: Olsson's enthalpy polynomial and its t-derivative, kJ → J.
+ */
+export const sodiumHydroxide: LiquorModel = {
+  id: MODEL_ID,
+  name: 'Sodium hydroxide solution (caustic soda)',
+  kind: 'built-in',
+  compositionVariable: 'mass fraction of NaOH (kg NaOH per kg solution)',
+  validity,
+  limits,
+  sources,
+  cautions: [
+    {
+      code: 'hot-caustic-burns',
+      message:
+        'Hot concentrated sodium hydroxide causes severe chemical and thermal burns and permanent eye damage on contact; boiling caustic can spatter. Use full face and body protection and design for containment.',
+    },
+    {
+      code: 'caustic-stress-corrosion-cracking',
+      message:
+        'Hot strong caustic causes stress-corrosion cracking of carbon steel ("caustic embrittlement"), especially in welded or stressed parts; check the materials of construction and any stress relief against the temperature and concentration.',
+    },
+    {
+      code: 'caustic-crystallisation',
+      message:
+        'Strong caustic solutions crystallise (hydrates) on cooling: a 50 % solution freezes near 12 °C (common practice). This model gives no solubility limit; keep lines and tanks traced and check the product temperature.',
+    },
+  ],
+
+  boilingPoint,
+
+  boilingPointRise(massFraction: number, pressure: number, warnings?: WarningSink): number {
+    return boilingPoint(massFraction, pressure, warnings) - saturationTemperature(pressure);
+  },
+
+  enthalpy(massFraction: number, temperature: number, warnings?: WarningSink): number {
+    const t = checkEnthalpyInputs(massFraction, temperature, warnings);
+    return olssonEnthalpyKJPerKg(1 - massFraction, t) * KJ;
+  },
+
+  heatCapacity(massFraction: number, temperature: number, warnings?: WarningSink): number {
+    const t = checkEnthalpyInputs(massFraction, temperature, warnings);
+    return olssonHeatCapacityKJPerKgK(1 - massFraction, t) * KJ;
+  },
+};
