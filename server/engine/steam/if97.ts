@@ -1,27 +1,46 @@
 /**
- * Ebullio's one adapter to IAPWS-IF97 (IAPWS R7-97(2012), "Revised Release on the IAPWS
- * Industrial Formulation 1997 for the Thermodynamic Properties of Water and Steam").
+ * Ebullio's one adapter to IAPWS-IF97: IAPWS R7-97(2012), "Revised Release on the IAPWS
+ * Industrial Formulation 1997 for the Thermodynamic Properties of Water and Steam" (IAPWS,
+ * Lucerne, 2007, revised 2012); W. Wagner et al., "The IAPWS Industrial Formulation 1997 for the
+ * Thermodynamic Properties of Water and Steam", J. Eng. Gas Turbines Power 122 (2000) 150–182.
  *
- * The equations themselves come from the npm package `@neutrium/thermo.eos.iapws97` 2.0.2;
- * no other engine file imports that package. This module converts its units (MPa, kJ) to SI,
- * finds the region itself (the package's own mode search only handles (p, T)), handles the
+ * The equations themselves come from the npm package `@neutrium/thermo.eos.iapws97` 2.0.2
+ * (exact version pinned in package.json); no other engine file imports that package and this
+ * module writes no IF97 equation of its own. It converts the package's units (MPa, kJ) to SI,
+ * finds the region itself (the package's own mode search only handles (p, T)), iterates the
+ * region-3 density on the forward equation, solves the region-3 saturated densities, handles the
  * two-phase dome for (p, h) states, refines the package's backward T(p, h) with the forward
  * equation, and turns out-of-range input into an {@link EngineRangeError} naming the input.
  *
- * Transport properties (viscosity, thermal conductivity) are those the package computes:
- * IAPWS R12-08 (viscosity) and IAPWS R15-11 (thermal conductivity, without the critical
- * enhancement as implemented by the package). Tests check them against published values.
+ * Validity (R7-97(2012) section 4): 273.15 K ≤ T ≤ 1073.15 K at 0 < p ≤ 100 MPa (regions 1–4) and
+ * 1073.15 K < T ≤ 2273.15 K at 0 < p ≤ 50 MPa (region 5). Saturation: 273.15 K to 647.096 K,
+ * 611.213 Pa to 22.064 MPa.
+ *
+ * Transport properties are the package's implementations of IAPWS R12-08 ("Release on the IAPWS
+ * Formulation 2008 for the Viscosity of Ordinary Water Substance") with the critical enhancement
+ * μ2 = 1, and IAPWS R15-11 ("Release on the IAPWS Formulation 2011 for the Thermal Conductivity of
+ * Ordinary Water Substance") WITHOUT the critical enhancement λ2 (the package leaves it out), so
+ * thermal conductivity near the critical point (roughly 600–750 K at 15–40 MPa) is too low. Both
+ * releases are valid to 1173.15 K; above that the state carries no transport properties.
+ *
+ * How the package is loaded (measured, see tests/bench/steam.ts): each package state also
+ * evaluates viscosity, conductivity, surface tension, dielectric constant and ionisation constant
+ * (≈ 3.5 µs of ≈ 9 µs for a region-1 state) and then copies its fields into a `State` object that
+ * silently drops every falsy value (0 and NaN both become null). This adapter therefore loads a
+ * private copy of the package's modules in which those auxiliary functions are stubs and `State`
+ * passes the raw result through; viscosity and conductivity are evaluated (with the package's
+ * own functions) only when a caller asks for a full state. The package's shared instance, which
+ * nothing else in the engine uses, is left untouched.
  */
 import { createRequire } from 'node:module';
-import { EngineRangeError } from '../errors.js';
+import { EngineNoSolutionError, EngineRangeError } from '../errors.js';
 
 const require = createRequire(import.meta.url);
 
-/** The package's State object: MPa inputs, Pa output pressure, kJ-based energies. */
-interface PackageState {
+/** The raw result object of the package's forward equations: MPa in, Pa out, kJ-based energies. */
+interface RawState {
   p: number;
   t: number;
-  rho: number;
   v: number;
   u: number;
   s: number;
@@ -29,14 +48,12 @@ interface PackageState {
   cp: number;
   cv: number;
   w: number;
-  mu: number;
-  k: number;
 }
 interface PackagePT {
-  r1(pMPa: number, T: number): PackageState;
-  r2(pMPa: number, T: number): PackageState;
-  r3(pMPa: number, T: number, rho?: number): PackageState;
-  r5(pMPa: number, T: number): PackageState;
+  r1(pMPa: number, T: number): RawState;
+  r2(pMPa: number, T: number): RawState;
+  r3(pMPa: number, T: number, rho?: number): RawState;
+  r5(pMPa: number, T: number): RawState;
   r4_P_Tsat(pMPa: number): number;
   r4_T_Psat(T: number): number;
   b23_T_P(T: number): number;
@@ -44,12 +61,80 @@ interface PackagePT {
 }
 interface PackagePH {
   r1_PH_T(pMPa: number, h: number): number;
-  r2(pMPa: number, h: number): PackageState;
+  r2(pMPa: number, h: number): RawState;
 }
-const PT = require('@neutrium/thermo.eos.iapws97/dist/PT') as PackagePT;
-const PH = require('@neutrium/thermo.eos.iapws97/dist/PH') as PackagePH;
+interface PackageBase {
+  viscosity(T: number, rho: number): number;
+  thermal_conductivity(T: number, rho: number): number;
+  surface_tension(T: number): number;
+  dielectric_constant(T: number, rho: number): number;
+  ionization_constant(T: number, rho: number): number;
+}
+interface PackageThermo {
+  State: unknown;
+}
 
-/** IF97 constants (R7-97(2012), section 2 and 3). */
+interface PrivatePackage {
+  PT: PackagePT;
+  PH: PackagePH;
+  /** R12-08 viscosity, μPa·s, of (T in K, ρ in kg/m³): the package's function. */
+  viscosity: (T: number, rho: number) => number;
+  /** R15-11 thermal conductivity without λ2, mW/(m·K), of (T in K, ρ in kg/m³). */
+  thermalConductivity: (T: number, rho: number) => number;
+}
+
+/**
+ * Loads a private copy of the package (see the module comment): the require cache entries of
+ * the four modules involved are set aside, the modules are loaded afresh, patched, and the
+ * original cache entries are put back, so any other `require` of the package still gets the
+ * ordinary, unpatched instance.
+ */
+function loadPrivatePackage(): PrivatePackage {
+  const ptPath = require.resolve('@neutrium/thermo.eos.iapws97/dist/PT');
+  const phPath = require.resolve('@neutrium/thermo.eos.iapws97/dist/PH');
+  const basePath = require.resolve('@neutrium/thermo.eos.iapws97/dist/base');
+  const thermoPath = createRequire(ptPath).resolve('@neutrium/thermo');
+  const paths = [ptPath, phPath, basePath, thermoPath];
+  const saved = paths.map((p) => require.cache[p]);
+  for (const p of paths) delete require.cache[p];
+  try {
+    const PT = require(ptPath) as PackagePT;
+    const PH = require(phPath) as PackagePH;
+    const base = require(basePath) as PackageBase;
+    const thermo = require(thermoPath) as PackageThermo;
+    const viscosity = base.viscosity;
+    const thermalConductivity = base.thermal_conductivity;
+    const none = (): number => 0;
+    base.viscosity = none;
+    base.thermal_conductivity = none;
+    base.surface_tension = none;
+    base.dielectric_constant = none;
+    base.ionization_constant = none;
+    // `new State(r)` with a constructor that returns an object yields that object unchanged.
+    thermo.State = function RawResult(r: RawState): RawState {
+      return r;
+    };
+    return { PT, PH, viscosity, thermalConductivity };
+  } finally {
+    paths.forEach((p, i) => {
+      const entry = saved[i];
+      if (entry) require.cache[p] = entry;
+      else delete require.cache[p];
+    });
+  }
+}
+
+const {
+  PT,
+  PH,
+  viscosity: packageViscosity,
+  thermalConductivity: packageConductivity,
+} = loadPrivatePackage();
+
+/** p_s(647.095 K) by eq. 30, Pa: the highest pressure with saturated states (≈ 22.0637 MPa). */
+const MAX_SATURATION_STATE_PRESSURE = PT.r4_T_Psat(647.095) * 1e6;
+
+/** IF97 constants (R7-97(2012), sections 2–4 and 6). */
 export const IF97 = {
   /** Critical temperature, K. */
   criticalTemperature: 647.096,
@@ -71,12 +156,20 @@ export const IF97 = {
   maxPressure: 100e6,
   /** Upper pressure of region 5, Pa. */
   maxPressureRegion5: 50e6,
-  /** Saturation pressure at 273.15 K, Pa: the lowest pressure this adapter accepts. */
+  /** Saturation pressure at 273.15 K, Pa: the lowest pressure of the saturation line (eq. 31). */
   minPressure: 611.213,
   /** Boundary temperature between regions 1 and 3, K. */
   region13Temperature: 623.15,
   /** Saturation pressure at 623.15 K, Pa (boundary of region 4 with region 3). */
   region13SaturationPressure: 16.529164253e6,
+  /**
+   * Highest temperature at which this adapter solves the saturated states, K. Between it and Tc
+   * (the last mK) IF97 eq. 28 no longer meets eq. 30's p_s on both branches (the two equations
+   * are not exactly consistent at the critical point), so no saturated densities exist there.
+   */
+  maxSaturationStateTemperature: 647.095,
+  /** Upper temperature of the transport-property releases R12-08 and R15-11, K. */
+  maxTransportTemperature: 1173.15,
 } as const;
 
 export type Region = 1 | 2 | 3 | 4 | 5;
@@ -106,9 +199,15 @@ export interface WaterState {
   isochoricHeatCapacity?: number;
   /** m/s. Undefined inside the two-phase dome. */
   speedOfSound?: number;
-  /** Dynamic viscosity, Pa·s. Undefined inside the two-phase dome. */
+  /**
+   * Dynamic viscosity, Pa·s (IAPWS R12-08, μ2 = 1). Undefined inside the two-phase dome, above
+   * 1173.15 K, and when the caller asked for a state without transport properties.
+   */
   viscosity?: number;
-  /** W/(m·K). Undefined inside the two-phase dome. */
+  /**
+   * W/(m·K) (IAPWS R15-11 without the critical enhancement). Undefined inside the dome, above
+   * 1173.15 K, and when the caller asked for a state without transport properties.
+   */
   thermalConductivity?: number;
   /** Vapour mass fraction, only for two-phase states (0 = saturated liquid, 1 = saturated vapour). */
   quality?: number;
@@ -125,63 +224,120 @@ export interface SaturationProperties {
   vapor: WaterState;
 }
 
+/** Saturated enthalpies only (the lean path for solvers). */
+export interface SaturationEnthalpies {
+  /** Pa */
+  pressure: number;
+  /** K */
+  temperature: number;
+  /** h_f, J/kg */
+  liquid: number;
+  /** h_g, J/kg */
+  vapor: number;
+}
+
+export interface StateOptions {
+  /** Evaluate viscosity and thermal conductivity (default true; ≈ 2 µs more per state). */
+  transport?: boolean;
+}
+
 const MPA = 1e6;
 const KJ = 1e3;
 
-function checkFinite(field: string, value: number, unit: string, min: number, max: number): void {
+function checkRange(field: string, value: number, unit: string, min: number, max: number): void {
   if (!Number.isFinite(value) || value < min || value > max) {
     throw new EngineRangeError(field, value, { min, max, unit });
   }
 }
 
-function toState(s: PackageState, region: Region, phase: Phase): WaterState {
-  return {
-    region,
-    phase,
-    pressure: s.p, // the package already reports Pa
-    temperature: s.t,
-    enthalpy: s.h * KJ,
-    entropy: s.s * KJ,
-    internalEnergy: s.u * KJ,
-    specificVolume: s.v,
-    density: 1 / s.v,
-    heatCapacity: s.cp * KJ,
-    isochoricHeatCapacity: s.cv * KJ,
-    speedOfSound: s.w,
-    viscosity: s.mu * 1e-3, // the package reports mPa·s
-    thermalConductivity: s.k,
-  };
+/** Pressure of a single-phase state: 0 < p ≤ max (IF97 regions 2 and 5 reach down to p → 0). */
+function checkPressure(pressure: number, max: number): void {
+  if (!Number.isFinite(pressure) || pressure <= 0 || pressure > max) {
+    throw new EngineRangeError(
+      'pressure',
+      pressure,
+      { min: 0, max, unit: 'Pa' },
+      `pressure = ${pressure} Pa is outside the valid range 0 (excluded) to ${max} Pa`,
+    );
+  }
 }
 
-function singlePhase(region: Region, pressure: number, temperature: number): Phase {
+function finiteOrUndefined(value: number, scale: number): number | undefined {
+  const v = value * scale;
+  return Number.isFinite(v) ? v : undefined;
+}
+
+/**
+ * Converts a raw package result to SI. The thermodynamic core (p, v, u, s, h) must be finite or
+ * the state is refused; cp, cv and w become undefined if the package produced a non-number.
+ */
+function toState(raw: RawState, region: Region, phase: Phase, transport: boolean): WaterState {
+  const core = [raw.p, raw.t, raw.v, raw.u, raw.s, raw.h];
+  if (!core.every((x) => typeof x === 'number' && Number.isFinite(x)) || !(raw.v > 0)) {
+    throw new EngineNoSolutionError(`IF97 region ${region} gave no finite state at T = ${raw.t} K`, {
+      reason: 'non-finite-state',
+    });
+  }
+  const state: WaterState = {
+    region,
+    phase,
+    pressure: raw.p, // the package already reports Pa
+    temperature: raw.t,
+    enthalpy: raw.h * KJ,
+    entropy: raw.s * KJ,
+    internalEnergy: raw.u * KJ,
+    specificVolume: raw.v,
+    density: 1 / raw.v,
+  };
+  const cp = finiteOrUndefined(raw.cp, KJ);
+  const cv = finiteOrUndefined(raw.cv, KJ);
+  const w = finiteOrUndefined(raw.w, 1);
+  if (cp !== undefined) state.heatCapacity = cp;
+  if (cv !== undefined) state.isochoricHeatCapacity = cv;
+  if (w !== undefined) state.speedOfSound = w;
+  if (transport && raw.t <= IF97.maxTransportTemperature) {
+    const mu = finiteOrUndefined(packageViscosity(raw.t, state.density), 1e-6); // μPa·s → Pa·s
+    const k = finiteOrUndefined(packageConductivity(raw.t, state.density), 1e-3); // mW/(m·K) → W/(m·K)
+    if (mu !== undefined) state.viscosity = mu;
+    if (k !== undefined) state.thermalConductivity = k;
+  }
+  return state;
+}
+
+/** Phase label: region 3 is liquid-like above ρc = 322 kg/m³, vapour-like below. */
+function singlePhase(region: Region, pressure: number, temperature: number, density: number): Phase {
   if (temperature >= IF97.criticalTemperature && pressure >= IF97.criticalPressure) return 'supercritical';
   if (region === 1) return 'liquid';
-  if (region === 3) {
-    return 'liquid';
-  }
+  if (region === 3) return density > IF97.criticalDensity ? 'liquid' : 'vapor';
   return 'vapor';
 }
 
-/** Saturation temperature at pressure p (IF97 eq. 31), K. Valid 611.213 Pa to 22.064 MPa. */
+/**
+ * Saturation temperature T_s(p), IF97 eq. 31 (the backward form of the saturation-pressure
+ * equation), R7-97(2012) section 8.2. p in Pa, result in K. Valid 611.213 Pa to 22.064 MPa.
+ */
 export function saturationTemperature(pressure: number): number {
-  checkFinite('pressure', pressure, 'Pa', IF97.minPressure, IF97.criticalPressure);
+  checkRange('pressure', pressure, 'Pa', IF97.minPressure, IF97.criticalPressure);
   return PT.r4_P_Tsat(pressure / MPA);
 }
 
-/** Saturation pressure at temperature T (IF97 eq. 30), Pa. Valid 273.15 K to 647.096 K. */
+/**
+ * Saturation pressure p_s(T), IF97 eq. 30, R7-97(2012) section 8.1. T in K, result in Pa.
+ * Valid 273.15 K to 647.096 K.
+ */
 export function saturationPressure(temperature: number): number {
-  checkFinite('temperature', temperature, 'K', IF97.minTemperature, IF97.criticalTemperature);
+  checkRange('temperature', temperature, 'K', IF97.minTemperature, IF97.criticalTemperature);
   return PT.r4_T_Psat(temperature) * MPA;
 }
 
-/** Region of a (p, T) state by the IF97 boundaries (R7-97(2012) figure 1). */
+/** Region of a (p, T) state by the IF97 boundaries (R7-97(2012) figure 1 and eq. 5). */
 export function regionAtPT(pressure: number, temperature: number): Exclude<Region, 4> {
-  checkFinite('temperature', temperature, 'K', IF97.minTemperature, IF97.maxTemperatureRegion5);
+  checkRange('temperature', temperature, 'K', IF97.minTemperature, IF97.maxTemperatureRegion5);
   if (temperature > IF97.maxTemperature) {
-    checkFinite('pressure', pressure, 'Pa', IF97.minPressure, IF97.maxPressureRegion5);
+    checkPressure(pressure, IF97.maxPressureRegion5);
     return 5;
   }
-  checkFinite('pressure', pressure, 'Pa', IF97.minPressure, IF97.maxPressure);
+  checkPressure(pressure, IF97.maxPressure);
   const pMPa = pressure / MPA;
   if (temperature <= IF97.region13Temperature) {
     return pMPa >= PT.r4_T_Psat(temperature) ? 1 : 2;
@@ -189,159 +345,351 @@ export function regionAtPT(pressure: number, temperature: number): Exclude<Regio
   return pMPa > PT.b23_T_P(temperature) ? 3 : 2;
 }
 
-/** Single-phase state at (p, T), Pa and K. On the saturation line region 1 (liquid) is returned. */
-export function stateAtPT(pressure: number, temperature: number): WaterState {
-  const region = regionAtPT(pressure, temperature);
+/**
+ * Region 3 density at (p, T): the package's backward v(p, T) (IAPWS SR5-05(2016), "Revised
+ * Supplementary Release on Backward Equations for Specific Volume as a Function of Pressure and
+ * Temperature v(p,T) for Region 3") as the start, then Newton on the forward equation
+ * p(ρ, T) = p with (∂p/∂ρ)_T = w²·c_v/c_p, so that the state is consistent with IF97 eq. 28
+ * rather than carrying the backward equation's error. `side` picks the subregion of the start:
+ * -1 liquid side, +1 vapour side, 0 as the package's selection by T vs T_s(p).
+ */
+function region3Density(pressure: number, temperature: number, side: -1 | 0 | 1): number {
   const pMPa = pressure / MPA;
-  let s: PackageState;
-  switch (region) {
-    case 1:
-      s = PT.r1(pMPa, temperature);
-      break;
-    case 2:
-      s = PT.r2(pMPa, temperature);
-      break;
-    case 3:
-      s = PT.r3(pMPa, temperature);
-      break;
-    case 5:
-      s = PT.r5(pMPa, temperature);
-      break;
+  const tStart = side === 0 ? temperature : temperature * (1 + side * 1e-9);
+  let rho = 1 / PT.r3(pMPa, tStart).v;
+  // Very near the critical point the backward equations may start on the other branch.
+  if (side !== 0 && (rho - IF97.criticalDensity) * side >= 0) rho = IF97.criticalDensity * (1 - 0.05 * side);
+  if (!(rho > 0) || !Number.isFinite(rho)) {
+    throw new EngineNoSolutionError(`No region-3 starting density at ${pressure} Pa, ${temperature} K`, {
+      reason: 'region-3-start',
+    });
   }
-  return toState(s, region, singlePhase(region, pressure, temperature));
+  for (let i = 0; i < 60; i++) {
+    const s = PT.r3(pMPa, temperature, rho);
+    const f = s.p - pressure;
+    if (Math.abs(f) <= 1e-11 * pressure) return rho;
+    const dpdrho = (s.w * s.w * s.cv) / s.cp;
+    let step: number;
+    if (Number.isFinite(dpdrho) && dpdrho > 0) step = -f / dpdrho;
+    // Inside the spinodal loop: move away from the critical density, towards the stable branch.
+    else step = (rho >= IF97.criticalDensity ? 1 : -1) * 0.01 * rho;
+    const limit = 0.05 * rho;
+    if (step > limit) step = limit;
+    if (step < -limit) step = -limit;
+    // A saturated branch never crosses the critical density: stop half-way to it instead.
+    if (side !== 0 && (rho + step - IF97.criticalDensity) * side > 0) {
+      step = 0.5 * (IF97.criticalDensity - rho);
+    }
+    rho += step;
+    if (Math.abs(step) <= 1e-13 * rho) return rho;
+  }
+  throw new EngineNoSolutionError(`Region-3 density did not converge at ${pressure} Pa, ${temperature} K`, {
+    iterations: 60,
+    reason: 'region-3-density',
+  });
 }
 
-function saturatedStates(pressure: number, temperature: number): SaturationProperties {
-  if (temperature > IF97.region13Temperature) {
-    // Above 623.15 K the saturated states lie in region 3; solving them needs the
-    // saturated densities, which this adapter does not yet provide.
+/** Raw package state of a single-phase (p, T) point, region chosen by the IF97 boundaries. */
+function rawAtPT(pressure: number, temperature: number): { raw: RawState; region: Exclude<Region, 4> } {
+  const region = regionAtPT(pressure, temperature);
+  const pMPa = pressure / MPA;
+  switch (region) {
+    case 1:
+      return { raw: PT.r1(pMPa, temperature), region };
+    case 2:
+      return { raw: PT.r2(pMPa, temperature), region };
+    case 3: {
+      const raw = PT.r3(pMPa, temperature, region3Density(pressure, temperature, 0));
+      raw.p = pressure; // the forward pressure agrees to 1e-11 relative; report the input itself
+      return { raw, region };
+    }
+    case 5:
+      return { raw: PT.r5(pMPa, temperature), region };
+  }
+}
+
+/**
+ * Single-phase state at (p, T), Pa and K: IF97 basic equations of regions 1, 2, 3 (density
+ * iterated, see {@link region3Density}) and 5. On the saturation line region 1 (liquid) is
+ * returned. Valid 273.15–1073.15 K at 0 < p ≤ 100 MPa, 1073.15–2273.15 K at 0 < p ≤ 50 MPa.
+ * The returned pressure is the input pressure (in region 3, p(ρ, T) matches it to 1e-11).
+ */
+export function stateAtPT(pressure: number, temperature: number, options: StateOptions = {}): WaterState {
+  const { raw, region } = rawAtPT(pressure, temperature);
+  const state = toState(raw, region, 'liquid', options.transport ?? true);
+  state.phase = singlePhase(region, pressure, temperature, state.density);
+  return state;
+}
+
+/**
+ * Region 3 state at (ρ, T), IF97 eq. 28 (the Helmholtz free energy of region 3), the form in
+ * which R7-97(2012) Table 33 is printed. ρ in kg/m³, T in K. Valid where the state lies in
+ * region 3: 623.15 K ≤ T ≤ 863.15 K and p(ρ, T) ≥ the B23 boundary pressure, p ≤ 100 MPa.
+ */
+export function region3StateAtDensity(
+  density: number,
+  temperature: number,
+  options: StateOptions = {},
+): WaterState {
+  checkRange('temperature', temperature, 'K', IF97.region13Temperature, 863.15);
+  checkRange('density', density, 'kg/m³', 1, 1000);
+  const raw = PT.r3(1, temperature, density); // the pressure argument is unused when ρ is given
+  const state = toState(raw, 3, 'liquid', options.transport ?? true);
+  const pB23 = PT.b23_T_P(temperature) * MPA;
+  if (state.pressure < pB23 || state.pressure > IF97.maxPressure) {
     throw new EngineRangeError(
-      'temperature',
-      temperature,
-      {
-        min: IF97.minTemperature,
-        max: IF97.region13Temperature,
-        unit: 'K',
-      },
-      `Saturation properties are available from ${IF97.minTemperature} K to ${IF97.region13Temperature} K (${IF97.region13SaturationPressure} Pa); ${temperature} K is in region 3`,
+      'density',
+      density,
+      { min: 1, max: 1000, unit: 'kg/m³' },
+      `density = ${density} kg/m³ at ${temperature} K gives p = ${state.pressure} Pa, outside region 3 (${pB23.toFixed(0)} to ${IF97.maxPressure} Pa)`,
     );
   }
+  state.phase = singlePhase(3, state.pressure, temperature, state.density);
+  return state;
+}
+
+/**
+ * Saturated liquid and vapour raw states at (p_s, T_s). Up to 623.15 K: regions 1 and 2 at
+ * (p_s, T_s), as R7-97(2012) section 8 prescribes. Above, both lie in region 3: the densities
+ * ρ' > ρc > ρ'' solve p(ρ, T_s) = p_s from eq. 28 on each branch (the method R7-97(2012)
+ * section 8 names for region 3), up to 647.095 K (see IF97.maxSaturationStateTemperature).
+ */
+function rawSaturated(pressure: number, temperature: number): { liquid: RawState; vapor: RawState } {
   const pMPa = pressure / MPA;
-  const liquid = toState(PT.r1(pMPa, temperature), 4, 'liquid');
-  const vapor = toState(PT.r2(pMPa, temperature), 4, 'vapor');
+  if (temperature <= IF97.region13Temperature) {
+    return { liquid: PT.r1(pMPa, temperature), vapor: PT.r2(pMPa, temperature) };
+  }
+  const rhoL = region3Density(pressure, temperature, -1);
+  const rhoV = region3Density(pressure, temperature, 1);
+  if (!(rhoL > rhoV)) {
+    throw new EngineNoSolutionError(`Region-3 saturated densities did not separate at ${temperature} K`, {
+      reason: 'region-3-saturation',
+    });
+  }
+  return { liquid: PT.r3(pMPa, temperature, rhoL), vapor: PT.r3(pMPa, temperature, rhoV) };
+}
+
+function saturatedStates(pressure: number, temperature: number, transport: boolean): SaturationProperties {
+  const { liquid: rl, vapor: rv } = rawSaturated(pressure, temperature);
+  const liquid = toState(rl, 4, 'liquid', transport);
+  const vapor = toState(rv, 4, 'vapor', transport);
+  // Report the saturation pressure itself (the region-3 forward pressure agrees to 1e-11).
+  liquid.pressure = pressure;
+  vapor.pressure = pressure;
   liquid.quality = 0;
   vapor.quality = 1;
   return { pressure, temperature, latentHeat: vapor.enthalpy - liquid.enthalpy, liquid, vapor };
 }
 
-/** Saturated liquid and vapour at pressure p, Pa (611.213 Pa to 16.529 MPa). */
-export function saturationAtPressure(pressure: number): SaturationProperties {
-  checkFinite('pressure', pressure, 'Pa', IF97.minPressure, IF97.region13SaturationPressure);
-  return saturatedStates(pressure, PT.r4_P_Tsat(pressure / MPA));
+/** Saturated liquid and vapour at pressure p, Pa (611.213 Pa to p_s(647.095 K) ≈ 22.0637 MPa). */
+export function saturationAtPressure(pressure: number, options: StateOptions = {}): SaturationProperties {
+  checkRange('pressure', pressure, 'Pa', IF97.minPressure, MAX_SATURATION_STATE_PRESSURE);
+  return saturatedStates(pressure, PT.r4_P_Tsat(pressure / MPA), options.transport ?? true);
 }
 
-/** Saturated liquid and vapour at temperature T, K (273.15 K to 623.15 K). */
-export function saturationAtTemperature(temperature: number): SaturationProperties {
-  checkFinite('temperature', temperature, 'K', IF97.minTemperature, IF97.region13Temperature);
-  return saturatedStates(PT.r4_T_Psat(temperature) * MPA, temperature);
-}
-
-/** Enthalpy of saturated liquid at pressure p, J/kg (fast path for solvers). */
-export function saturatedLiquidEnthalpy(pressure: number): number {
-  checkFinite('pressure', pressure, 'Pa', IF97.minPressure, IF97.region13SaturationPressure);
-  const pMPa = pressure / MPA;
-  return PT.r1(pMPa, PT.r4_P_Tsat(pMPa)).h * KJ;
-}
-
-/** Enthalpy of saturated vapour at pressure p, J/kg (fast path for solvers). */
-export function saturatedVaporEnthalpy(pressure: number): number {
-  checkFinite('pressure', pressure, 'Pa', IF97.minPressure, IF97.region13SaturationPressure);
-  const pMPa = pressure / MPA;
-  return PT.r2(pMPa, PT.r4_P_Tsat(pMPa)).h * KJ;
-}
-
-/** Enthalpy at (p, T), J/kg, single phase (fast path for solvers). */
-export function enthalpyAtPT(pressure: number, temperature: number): number {
-  return stateAtPT(pressure, temperature).enthalpy;
+/** Saturated liquid and vapour at temperature T, K (273.15 K to 647.095 K). */
+export function saturationAtTemperature(
+  temperature: number,
+  options: StateOptions = {},
+): SaturationProperties {
+  checkRange('temperature', temperature, 'K', IF97.minTemperature, IF97.maxSaturationStateTemperature);
+  return saturatedStates(PT.r4_T_Psat(temperature) * MPA, temperature, options.transport ?? true);
 }
 
 /**
- * State at (p, h). Inside the two-phase dome the state is the lever-rule mixture of the
- * saturated states, with quality x = (h − h_f)/(h_g − h_f). Elsewhere the package's backward
- * equation gives a first T, refined by Newton steps on the forward equation so that the
- * returned state reproduces h to 1e-9 relative.
+ * Saturated enthalpies h_f and h_g at pressure p (611.213 Pa to 22.0637 MPa), J/kg, with T_s:
+ * the lean path for solvers (no transport properties, no state objects).
  */
-export function stateAtPH(pressure: number, enthalpy: number): WaterState {
-  checkFinite('pressure', pressure, 'Pa', IF97.minPressure, IF97.maxPressure);
-  if (!Number.isFinite(enthalpy)) {
-    throw new EngineRangeError('enthalpy', enthalpy, { min: 0, max: 4.16e6, unit: 'J/kg' });
+export function saturationEnthalpies(pressure: number): SaturationEnthalpies {
+  checkRange('pressure', pressure, 'Pa', IF97.minPressure, MAX_SATURATION_STATE_PRESSURE);
+  const temperature = PT.r4_P_Tsat(pressure / MPA);
+  const { liquid, vapor } = rawSaturated(pressure, temperature);
+  return { pressure, temperature, liquid: liquid.h * KJ, vapor: vapor.h * KJ };
+}
+
+/** Enthalpy of saturated liquid at pressure p, J/kg (lean path; 611.213 Pa to 22.0637 MPa). */
+export function saturatedLiquidEnthalpy(pressure: number): number {
+  checkRange('pressure', pressure, 'Pa', IF97.minPressure, MAX_SATURATION_STATE_PRESSURE);
+  const pMPa = pressure / MPA;
+  const t = PT.r4_P_Tsat(pMPa);
+  if (t <= IF97.region13Temperature) return PT.r1(pMPa, t).h * KJ;
+  return rawSaturated(pressure, t).liquid.h * KJ;
+}
+
+/** Enthalpy of saturated vapour at pressure p, J/kg (lean path; 611.213 Pa to 22.0637 MPa). */
+export function saturatedVaporEnthalpy(pressure: number): number {
+  checkRange('pressure', pressure, 'Pa', IF97.minPressure, MAX_SATURATION_STATE_PRESSURE);
+  const pMPa = pressure / MPA;
+  const t = PT.r4_P_Tsat(pMPa);
+  if (t <= IF97.region13Temperature) return PT.r2(pMPa, t).h * KJ;
+  return rawSaturated(pressure, t).vapor.h * KJ;
+}
+
+/** Enthalpy at (p, T), J/kg, single phase (lean path for solvers; same range as {@link stateAtPT}). */
+export function enthalpyAtPT(pressure: number, temperature: number): number {
+  const h = rawAtPT(pressure, temperature).raw.h * KJ;
+  if (!Number.isFinite(h)) {
+    throw new EngineNoSolutionError(`IF97 gave no finite enthalpy at ${pressure} Pa, ${temperature} K`, {
+      reason: 'non-finite-state',
+    });
   }
-  const hMin = stateAtPT(pressure, IF97.minTemperature).enthalpy;
-  const hMax = stateAtPT(pressure, IF97.maxTemperature).enthalpy;
-  if (enthalpy < hMin || enthalpy > hMax) {
+  return h;
+}
+
+/**
+ * Raw backward temperature of region 1, T(p, h), IF97 eq. 11 (R7-97(2012) section 5.2.1),
+ * exactly as the package evaluates it, without refinement. p in Pa, h in J/kg, result in K.
+ * Exposed to verify the package against R7-97(2012) Table 7; solvers use {@link stateAtPH}.
+ */
+export function backwardTemperatureRegion1(pressure: number, enthalpy: number): number {
+  checkPressure(pressure, IF97.maxPressure);
+  checkRange('enthalpy', enthalpy, 'J/kg', -1e3, 1.7e6);
+  return PH.r1_PH_T(pressure / MPA, enthalpy / KJ);
+}
+
+/**
+ * Raw backward temperature of region 2, T(p, h), IF97 eqs. 22–24 with the 2b/2c boundary eq. 20
+ * (R7-97(2012) section 6.3.1), as the package evaluates it, without refinement. p in Pa, h in
+ * J/kg, result in K. Exposed to verify the package against R7-97(2012) Table 24.
+ */
+export function backwardTemperatureRegion2(pressure: number, enthalpy: number): number {
+  checkPressure(pressure, IF97.maxPressure);
+  checkRange('enthalpy', enthalpy, 'J/kg', 2.0e6, 4.5e6);
+  return PH.r2(pressure / MPA, enthalpy / KJ).t;
+}
+
+/** Highest temperature of the formulation at pressure p, K. */
+function maxTemperatureAt(pressure: number): number {
+  return pressure <= IF97.maxPressureRegion5 ? IF97.maxTemperatureRegion5 : IF97.maxTemperature;
+}
+
+/**
+ * State at (p, h), Pa and J/kg. Inside the two-phase dome (p ≤ 22.064 MPa, h_f ≤ h ≤ h_g) the
+ * state is the lever-rule mixture of the saturated states, with quality x = (h − h_f)/(h_g − h_f)
+ * (R7-97(2012) section 8; region 3 saturated states included). Elsewhere the package's backward
+ * equation (regions 1 and 2) gives a first T, refined by Newton steps on the forward equation so
+ * that the returned state reproduces h to 1e-9 relative. Valid for T from 273.15 K to 1073.15 K
+ * (to 2273.15 K at p ≤ 50 MPa), 0 < p ≤ 100 MPa.
+ */
+export function stateAtPH(pressure: number, enthalpy: number, options: StateOptions = {}): WaterState {
+  checkPressure(pressure, IF97.maxPressure);
+  const tMax = maxTemperatureAt(pressure);
+  const hMin = enthalpyAtPT(pressure, IF97.minTemperature);
+  const hMax = enthalpyAtPT(pressure, tMax);
+  if (!Number.isFinite(enthalpy) || enthalpy < hMin || enthalpy > hMax) {
     throw new EngineRangeError(
       'enthalpy',
       enthalpy,
       { min: hMin, max: hMax, unit: 'J/kg' },
-      `enthalpy = ${enthalpy} J/kg is outside ${hMin.toFixed(1)} to ${hMax.toFixed(1)} J/kg at ${pressure} Pa (273.15 K to 1073.15 K)`,
+      `enthalpy = ${enthalpy} J/kg is outside ${hMin.toFixed(1)} to ${hMax.toFixed(1)} J/kg at ${pressure} Pa (273.15 K to ${tMax} K)`,
     );
   }
-  if (pressure <= IF97.region13SaturationPressure) {
-    const sat = saturationAtPressure(pressure);
-    const hf = sat.liquid.enthalpy;
-    const hg = sat.vapor.enthalpy;
-    if (enthalpy >= hf && enthalpy <= hg) {
-      const x = (enthalpy - hf) / (hg - hf);
-      const v = sat.liquid.specificVolume + x * (sat.vapor.specificVolume - sat.liquid.specificVolume);
-      return {
-        region: 4,
-        phase: 'two-phase',
-        pressure,
-        temperature: sat.temperature,
-        enthalpy,
-        entropy: sat.liquid.entropy + x * (sat.vapor.entropy - sat.liquid.entropy),
-        internalEnergy:
-          sat.liquid.internalEnergy + x * (sat.vapor.internalEnergy - sat.liquid.internalEnergy),
-        specificVolume: v,
-        density: 1 / v,
-        quality: x,
-      };
-    }
+  const transport = options.transport ?? true;
+  let lo: number = IF97.minTemperature;
+  let hi: number = tMax;
+  let liquidSide = pressure > IF97.criticalPressure ? enthalpy < 2.0e6 : false;
+  if (pressure > MAX_SATURATION_STATE_PRESSURE && pressure < IF97.criticalPressure) {
+    throw new EngineRangeError(
+      'pressure',
+      pressure,
+      { min: MAX_SATURATION_STATE_PRESSURE, max: IF97.criticalPressure, unit: 'Pa' },
+      `pressure = ${pressure} Pa lies within the last 0.4 kPa below the critical pressure, where IF97 gives no saturated states to place (p, h) against; use p ≤ ${MAX_SATURATION_STATE_PRESSURE.toFixed(0)} Pa or p ≥ ${IF97.criticalPressure} Pa`,
+    );
   }
-  return refineTemperature(pressure, enthalpy, initialTemperature(pressure, enthalpy));
+  if (pressure >= IF97.minPressure && pressure < IF97.criticalPressure) {
+    const tSat = PT.r4_P_Tsat(pressure / MPA);
+    const { liquid: rl, vapor: rv } = rawSaturated(pressure, tSat);
+    const hf = rl.h * KJ;
+    const hg = rv.h * KJ;
+    if (enthalpy >= hf && enthalpy <= hg) {
+      return twoPhase(pressure, tSat, rl, rv, (enthalpy - hf) / (hg - hf), enthalpy);
+    }
+    liquidSide = enthalpy < hf;
+    if (liquidSide) hi = tSat;
+    else lo = tSat;
+  }
+  return refineTemperature(
+    pressure,
+    enthalpy,
+    initialTemperature(pressure, enthalpy, liquidSide, lo, hi),
+    lo,
+    hi,
+    transport,
+  );
 }
 
-function initialTemperature(pressure: number, enthalpy: number): number {
+function twoPhase(
+  pressure: number,
+  temperature: number,
+  rl: RawState,
+  rv: RawState,
+  x: number,
+  h: number,
+): WaterState {
+  const v = rl.v + x * (rv.v - rl.v);
+  return {
+    region: 4,
+    phase: 'two-phase',
+    pressure,
+    temperature,
+    enthalpy: h,
+    entropy: (rl.s + x * (rv.s - rl.s)) * KJ,
+    internalEnergy: (rl.u + x * (rv.u - rl.u)) * KJ,
+    specificVolume: v,
+    density: 1 / v,
+    quality: x,
+  };
+}
+
+function initialTemperature(
+  pressure: number,
+  enthalpy: number,
+  liquidSide: boolean,
+  lo: number,
+  hi: number,
+): number {
   const pMPa = pressure / MPA;
   const hkJ = enthalpy / KJ;
-  try {
-    const liquidSide =
-      pressure > IF97.region13SaturationPressure
-        ? hkJ < 2.0e3
-        : enthalpy < saturationAtPressure(pressure).liquid.enthalpy;
-    const t = liquidSide ? PH.r1_PH_T(pMPa, hkJ) : PH.r2(pMPa, hkJ).t;
-    if (Number.isFinite(t) && t > IF97.minTemperature && t < IF97.maxTemperature) return t;
-  } catch {
-    // fall through to the bracketing search below
-  }
-  return 0.5 * (IF97.minTemperature + IF97.maxTemperature);
+  const t = liquidSide ? PH.r1_PH_T(pMPa, hkJ) : PH.r2(pMPa, hkJ).t;
+  if (Number.isFinite(t) && t > lo && t < hi) return t;
+  return 0.5 * (lo + hi);
 }
 
-/** Newton on h(p, T) = h_target with a bisection guard over [273.15, 1073.15] K. */
-function refineTemperature(pressure: number, enthalpy: number, t0: number): WaterState {
-  let lo = IF97.minTemperature;
-  let hi = IF97.maxTemperature;
+/** Newton on h(p, T) = h_target with a bisection guard over [lo, hi] K. */
+function refineTemperature(
+  pressure: number,
+  enthalpy: number,
+  t0: number,
+  lo0: number,
+  hi0: number,
+  transport: boolean,
+): WaterState {
+  let lo = lo0;
+  let hi = hi0;
   let t = t0;
-  for (let i = 0; i < 60; i++) {
-    const s = stateAtPT(pressure, t);
-    const f = s.enthalpy - enthalpy;
-    if (Math.abs(f) <= 1e-9 * Math.max(1, Math.abs(enthalpy))) return s;
+  const tol = 1e-9 * Math.max(1e3, Math.abs(enthalpy));
+  let previous = Infinity;
+  for (let i = 0; i < 100; i++) {
+    const { raw, region } = rawAtPT(pressure, t);
+    const f = raw.h * KJ - enthalpy;
+    // Converged, or the bracket has shrunk to round-off (h is then as close as doubles allow).
+    if (Math.abs(f) <= tol || hi - lo <= 1e-12 * t) {
+      const state = toState(raw, region, 'liquid', transport);
+      state.phase = singlePhase(region, pressure, t, state.density);
+      return state;
+    }
     if (f > 0) hi = t;
     else lo = t;
-    const cp = s.heatCapacity ?? 0;
-    let next = cp > 0 ? t - f / cp : NaN;
+    const cp = raw.cp * KJ;
+    // Newton while it at least halves the residual; otherwise bisect (near the critical point
+    // h(T) is S-shaped and plain Newton can cycle inside the bracket).
+    let next = cp > 0 && Number.isFinite(cp) && Math.abs(f) < 0.5 * previous ? t - f / cp : NaN;
     if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
+    previous = Math.abs(f);
     t = next;
   }
-  return stateAtPT(pressure, t);
+  throw new EngineNoSolutionError(`T(p, h) did not converge at ${pressure} Pa, ${enthalpy} J/kg`, {
+    iterations: 100,
+    reason: 'ph-refinement',
+  });
 }
