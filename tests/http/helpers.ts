@@ -1,0 +1,107 @@
+// Test harness for the HTTP core: an in-memory database with migrations applied, an injectable
+// clock, and a test-only route module that spends units (so quota tests need no calculation route).
+import type express from 'express';
+import { createAccount } from '../../server/accounts/accounts.js';
+import { createKey } from '../../server/accounts/keys.js';
+import type { Scope } from '../../server/accounts/operations.js';
+import type { Config } from '../../server/config.js';
+import { openDatabase, runMigrations, type Db, type Sqlite } from '../../server/db/client.js';
+import { createApp, type AppDeps } from '../../server/http/app.js';
+import { chargeUnits, requireOperation } from '../../server/http/middleware/operation.js';
+import { v1RouteModules, type V1RouteModule } from '../../server/http/v1/index.js';
+
+export const ALL_SCOPES: Scope[] = ['steam', 'liquors', 'evaporators', 'batch', 'usage'];
+
+/** POST /v1/__test/charge?extra=N: guarded as evaporators.multiple-effect (5 units) + N extra units. */
+const testModule: V1RouteModule = {
+  register(router) {
+    router.post('/__test/charge', requireOperation('evaporators.multiple-effect'), (req, res) => {
+      chargeUnits(res, Number(req.query.extra ?? 0));
+      res.json({ ok: true, echo: req.body as unknown });
+    });
+  },
+};
+if (!v1RouteModules.includes(testModule)) v1RouteModules.push(testModule);
+
+export interface Harness {
+  app: express.Express;
+  db: Db;
+  sqlite: Sqlite;
+  config: Config;
+  deps: AppDeps;
+  /** Current time of the injectable clock; change `clock.now` to move time. */
+  clock: { now: Date };
+  accountId: number;
+  token: string;
+  keyId: number;
+}
+
+export function testConfig(overrides: Partial<Config> = {}): Config {
+  return {
+    port: 0,
+    dbFile: ':memory:',
+    dataDir: '/nonexistent',
+    secret: Buffer.from('test-secret-test-secret-test-secret-0123'),
+    secretSource: 'env',
+    requestLogRetentionDays: 30,
+    bodyLimitBytes: 16 * 1024,
+    logBodyLimitBytes: 8 * 1024,
+    bootstrapApiKey: undefined,
+    bootstrapAdminEmail: undefined,
+    bootstrapAdminPassword: undefined,
+    ...overrides,
+  };
+}
+
+export function makeHarness(
+  opts: {
+    scopes?: Scope[];
+    quota?: number;
+    rateLimit?: number;
+    retain?: boolean;
+    config?: Partial<Config>;
+  } = {},
+): Harness {
+  const { sqlite, db } = openDatabase(':memory:');
+  runMigrations(db);
+  const config = testConfig(opts.config);
+  const clock = { now: new Date('2031-03-14T10:00:00Z') };
+  const deps: AppDeps = { db, sqlite, config, clock: () => clock.now, engineVersion: 'test-engine' };
+  const account = createAccount(db, {
+    name: 'Invented Test Works',
+    monthlyUnitQuota: opts.quota ?? 1000,
+    retainRequestBodies: opts.retain ?? false,
+    now: clock.now,
+  });
+  const { key, token } = createKey(db, config.secret, {
+    accountId: account.id,
+    name: 'test key',
+    scopes: opts.scopes ?? ALL_SCOPES,
+    rateLimitPerMinute: opts.rateLimit ?? 1000,
+    now: clock.now,
+  });
+  return {
+    app: createApp(deps),
+    db,
+    sqlite,
+    config,
+    deps,
+    clock,
+    accountId: account.id,
+    token,
+    keyId: key.id,
+  };
+}
+
+export function usageRows(
+  sqlite: Sqlite,
+): { operation: string; status: number; units: number; request_id: string }[] {
+  return sqlite
+    .prepare('SELECT operation, status, units, request_id FROM usage_events ORDER BY id')
+    .all() as {
+    operation: string;
+    status: number;
+    units: number;
+    request_id: string;
+  }[];
+}
