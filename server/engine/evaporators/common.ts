@@ -166,9 +166,18 @@ export function resolveSteamSupply(spec: SteamSupplySpec, field = 'steam'): Stea
   const ts = sat.temperature;
   requireInRange(`${field}.superheat`, superheat, 0, IF97.maxTemperature - ts, 'K');
   requireInRange(`${field}.condensateSubcooling`, subcooling, 0, ts - IF97.minTemperature, 'K');
-  const enthalpyIn = superheat > 0 ? stateAtPT(sat.pressure, ts + superheat).enthalpy : sat.vapor.enthalpy;
-  const enthalpyOut =
-    subcooling > 0 ? stateAtPT(sat.pressure, ts - subcooling).enthalpy : sat.liquid.enthalpy;
+  // A superheat (subcooling) so small that T rounds onto the saturation line would land in the
+  // wrong region: the saturated state is then the right one to the precision of the input.
+  let enthalpyIn = sat.vapor.enthalpy;
+  if (superheat > 0) {
+    const s = stateAtPT(sat.pressure, ts + superheat);
+    if (s.region === 2) enthalpyIn = s.enthalpy;
+  }
+  let enthalpyOut = sat.liquid.enthalpy;
+  if (subcooling > 0) {
+    const s = stateAtPT(sat.pressure, ts - subcooling);
+    if (s.region === 1) enthalpyOut = s.enthalpy;
+  }
   return {
     pressure: sat.pressure,
     condensingTemperature: ts,
@@ -201,7 +210,7 @@ export interface LeavingVapor {
 
 /**
  * Enthalpy of the vapour released by a liquor boiling at T under pressure p: pure water vapour
- * at (p, T), superheated by T − T_sat(p) (IF97 region 2); at T ≤ T_sat(p) + 1e-9 K (no BPR) the
+ * at (p, T), superheated by T − T_sat(p) (IF97 region 2); at T ≤ T_sat(p) (no BPR), or so close that (p, T) rounds onto the liquid side, the
  * saturated-vapour enthalpy at p. Source: IAPWS R7-97(2012); the superheated-vapour convention
  * is domain.md §1 step 4 and e.g. Geankoplis (4th ed.) section 8.4.
  *
@@ -222,8 +231,14 @@ export function leavingVapor(
       `A liquor cannot boil at ${temperature} K below the boiling point of water ${tsat} K at ${pressure} Pa`,
     );
   }
-  const enthalpy =
-    superheat > 1e-9 ? stateAtPT(pressure, temperature).enthalpy : saturatedVaporEnthalpy(pressure);
+  let enthalpy: number;
+  if (superheat > 0) {
+    const s = stateAtPT(pressure, temperature);
+    // a rise so small that (p, T) rounds onto the liquid side is saturated vapour to that precision
+    enthalpy = s.region === 2 ? s.enthalpy : saturatedVaporEnthalpy(pressure);
+  } else {
+    enthalpy = saturatedVaporEnthalpy(pressure);
+  }
   return { pressure, temperature, enthalpy, superheat: Math.max(0, superheat) };
 }
 

@@ -306,6 +306,12 @@ function assemble(
 ): SingleEffectResult {
   const area = c.Q / (pr.u * c.dT);
   const heatLoss = pr.f * c.Q;
+  if (![c.S, c.Q, area, c.HV, c.hF, c.hL, c.T].every(Number.isFinite)) {
+    // Defensive: every input is range-checked, so this means a model returned a non-number.
+    throw new EngineNoSolutionError('The balances gave a non-finite result for these inputs', {
+      reason: 'non-finite',
+    });
+  }
   warnSmallTemperatureDifference(c.dT, warnings);
   if (pr.feedTemperature > pr.waterBoilingPoint) {
     // The BPR is ≥ 0, so a feed below T_sat(p) cannot flash: skip the model call then.
