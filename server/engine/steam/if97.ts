@@ -693,3 +693,30 @@ function refineTemperature(
     reason: 'ph-refinement',
   });
 }
+
+/**
+ * Dynamic viscosity μ(T, ρ), Pa·s: IAPWS R12-08 eq. 10 with μ2 = 1 (the form R12-08 section 3.2
+ * recommends for industrial use), as the package evaluates it: μ = μ0(T̄)·μ1(T̄, ρ̄)·1 µPa·s with
+ * T̄ = T/647.096 K, ρ̄ = ρ/322 kg/m³. T in K (273.15–1173.15 K), ρ in kg/m³ (0–1250 kg/m³).
+ * Source: IAPWS R12-08, "Release on the IAPWS Formulation 2008 for the Viscosity of Ordinary Water
+ * Substance" (Berlin, 2008); M. L. Huber et al., J. Phys. Chem. Ref. Data 38 (2009) 101–125.
+ */
+export function viscosityAtDensity(temperature: number, density: number): number {
+  checkRange('temperature', temperature, 'K', IF97.minTemperature, IF97.maxTransportTemperature);
+  checkRange('density', density, 'kg/m³', 0, 1250);
+  return packageViscosity(temperature, density) * 1e-6;
+}
+
+/**
+ * Thermal conductivity λ(T, ρ), W/(m·K): IAPWS R15-11 eq. 10 WITHOUT the critical enhancement
+ * (λ = λ0(T̄)·λ1(T̄, ρ̄)·1 mW/(m·K), λ2 = 0), as the package evaluates it. T in K
+ * (273.15–1173.15 K), ρ in kg/m³ (0–1250 kg/m³). Near the critical point λ2 is not negligible,
+ * so values there are low. Source: IAPWS R15-11, "Release on the IAPWS Formulation 2011 for the
+ * Thermal Conductivity of Ordinary Water Substance" (Plzeň, 2011); M. L. Huber et al., J. Phys.
+ * Chem. Ref. Data 41 (2012) 033102.
+ */
+export function thermalConductivityAtDensity(temperature: number, density: number): number {
+  checkRange('temperature', temperature, 'K', IF97.minTemperature, IF97.maxTransportTemperature);
+  checkRange('density', density, 'kg/m³', 0, 1250);
+  return packageConductivity(temperature, density) * 1e-3;
+}
