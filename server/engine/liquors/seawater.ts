@@ -1,0 +1,309 @@
+/**
+ * Built-in liquor "seawater": natural seawater and the brines concentrated from it in thermal
+ * desalination. Composition variable x = mass fraction of dissolved salt, i.e. absolute salinity
+ * S_A in kg/kg (S in g/kg = 1000·x), as in IAPWS-08.
+ *
+ * Correlations: Sharqawy, Lienhard and Zubair, "Thermophysical properties of seawater: a review of
+ * existing correlations and data", Desalination and Water Treatment 16 (2010) 354–380
+ * (doi:10.5004/dwt.2010.1079). Their equations are written here as small pure functions (SI in,
+ * SI out, no range checks) and wrapped into the {@link LiquorModel} `seawater`, which applies the
+ * validity rule. Coefficients are those of the paper; the density and enthalpy coefficients are
+ * carried at the precision of the authors' own implementation (MIT seawater property library,
+ * web.mit.edu/seawater), which the paper prints rounded to four digits.
+ *
+ * Pure-water parts come from IAPWS-IF97 (saturated liquid at T, through ../steam/if97.js) so that
+ * x = 0 reproduces the steam tables exactly; the review supplies only the salt increments.
+ * Checked against IAPWS-08 (python3-iapws) in tests/engine/liquors/seawater.test.ts.
+ */
+import { EngineNoSolutionError, EngineRangeError } from '../errors.js';
+import { saturationAtTemperature, saturationPressure, saturationTemperature } from '../steam/if97.js';
+import { addWarning, KELVIN_OFFSET, type Citation, type EngineCaution, type WarningSink } from '../types.js';
+import type { Interval, LiquorModel, ValidityBox } from './model.js';
+import { checkAgainst } from './validity.js';
+
+const MODEL_ID = 'seawater';
+
+/**
+ * Boiling-point rise of seawater (Sharqawy et al. 2010, their BPR correlation, fitted to the
+ * boiling-point data of Bromley et al., J. Chem. Eng. Data 1974; that data source from memory):
+ *
+ *   BPR = A·S² + B·S   [K],  S in g/kg, t in °C
+ *   A = (−4.584e−4·t² + 2.823e−1·t + 17.95)·1e−6
+ *   B = ( 1.536e−4·t² + 5.267e−2·t + 6.56 )·1e−3
+ *
+ * t is the temperature of the boiling seawater itself (the paper's convention), not the
+ * saturation temperature of pure water; {@link seawaterBoilingTemperature} solves that fixed point.
+ * Valid 0–200 °C and 0–120 g/kg; stated accuracy ±0.018 K.
+ *
+ * @param massFraction absolute salinity, kg/kg (0–0.12)
+ * @param temperature seawater temperature, K (273.15–473.15)
+ * @returns boiling-point rise, K
+ * @example sharqawyBoilingPointRise(0.035, 333.15) // ≈ 0.40 K at 60 °C
+ */
+export function sharqawyBoilingPointRise(massFraction: number, temperature: number): number {
+  const s = 1000 * massFraction;
+  const t = temperature - KELVIN_OFFSET;
+  const a = (-4.584e-4 * t * t + 2.823e-1 * t + 17.95) * 1e-6;
+  const b = (1.536e-4 * t * t + 5.267e-2 * t + 6.56) * 1e-3;
+  return a * s * s + b * s;
+}
+
+/** Sharqawy et al. 2010 eq. 43 coefficients a1…a10 (J/kg; S in kg/kg, t in °C). */
+const ENTHALPY_A = [
+  -2.34825e4, 3.15183e5, 2.80269e6, -1.44606e7, 7.82607e3, -4.41733e1, 2.1394e-1, -1.99108e4, 2.77846e4,
+  9.72801e1,
+] as const;
+
+/**
+ * Specific enthalpy of seawater minus that of pure water at the same temperature
+ * (Sharqawy et al. 2010, eq. 43, a fit to values computed from IAPWS-08 at 0.1 MPa):
+ *
+ *   h_sw − h_w = −S·(a1 + a2·S + a3·S² + a4·S³ + a5·t + a6·t² + a7·t³ + a8·S·t + a9·S²·t + a10·S·t²)
+ *
+ * S in kg/kg, t in °C, result in J/kg, with a1…a10 = −2.34825e4, 3.15183e5, 2.80269e6, −1.44606e7,
+ * 7.82607e3, −4.41733e1, 2.13940e−1, −1.99108e4, 2.77846e4, 9.72801e1. The paper pairs it with its
+ * own pure-water fit h_w(t); Ebullio uses IF97 for h_w instead (see the `seawater` model).
+ * Valid 10–120 °C, 0–0.12 kg/kg; stated accuracy ±1.5 % of h_sw. Beyond 120 °C the cubic no longer
+ * agrees with the heat-capacity correlation (its slope at 150–180 °C is about three times the
+ * salt's cp increment), so the model refuses it there.
+ *
+ * @param massFraction absolute salinity, kg/kg
+ * @param temperature K
+ * @returns h_sw − h_w, J/kg (negative: dissolved salt lowers the enthalpy)
+ */
+export function sharqawyEnthalpyDifference(massFraction: number, temperature: number): number {
+  const s = massFraction;
+  const t = temperature - KELVIN_OFFSET;
+  const [a1, a2, a3, a4, a5, a6, a7, a8, a9, a10] = ENTHALPY_A;
+  return (
+    -s *
+    (a1 +
+      a2 * s +
+      a3 * s * s +
+      a4 * s * s * s +
+      a5 * t +
+      a6 * t * t +
+      a7 * t * t * t +
+      a8 * s * t +
+      a9 * s * s * t +
+      a10 * s * t * t)
+  );
+}
+
+/**
+ * Isobaric specific heat capacity of seawater at 0.1 MPa (Sharqawy et al. 2010, their
+ * recommended c_p correlation, due to Jamieson, Tudhope, Morris and Cartwright, Desalination 7
+ * (1969) 23–30; journal details from memory):
+ *
+ *   c_p = 1000·(A + B·T68 + C·T68² + D·T68³)   [J/(kg·K)],  T68 in K (IPTS-68), S in g/kg
+ *   A = 5.328 − 9.76e−2·S + 4.04e−4·S²
+ *   B = −6.913e−3 + 7.351e−4·S − 3.15e−6·S²
+ *   C = 9.6e−6 − 1.927e−6·S + 8.23e−9·S²
+ *   D = 2.5e−9 + 1.666e−9·S − 7.125e−12·S²
+ *
+ * with T68 = 1.00024·T90 (the review's conversion). Valid 0–180 °C, 0–180 g/kg; stated accuracy
+ * ±0.28 %.
+ *
+ * @param massFraction absolute salinity, kg/kg
+ * @param temperature K (ITS-90)
+ * @returns c_p, J/(kg·K)
+ */
+export function jamiesonHeatCapacity(massFraction: number, temperature: number): number {
+  const s = 1000 * massFraction;
+  const t68 = 1.00024 * temperature;
+  const a = 5.328 - 9.76e-2 * s + 4.04e-4 * s * s;
+  const b = -6.913e-3 + 7.351e-4 * s - 3.15e-6 * s * s;
+  const c = 9.6e-6 - 1.927e-6 * s + 8.23e-9 * s * s;
+  const d = 2.5e-9 + 1.666e-9 * s - 7.125e-12 * s * s;
+  return 1000 * (a + t68 * (b + t68 * (c + t68 * d)));
+}
+
+/**
+ * Density of seawater minus that of pure water at the same temperature (Sharqawy et al. 2010,
+ * their density correlation, fitted to the data of Isdale and Morris, Desalination 10 (1972) 329,
+ * and of Millero and Poisson, Deep-Sea Research 28A (1981) 625):
+ *
+ *   ρ_sw − ρ_w = b1·S + b2·S·t + b3·S·t² + b4·S·t³ + b5·S²·t²   [kg/m³],  S in kg/kg, t in °C
+ *   b1…b5 = 8.0200240891e2, −2.0005183488, 1.6771024982e−2, −3.0600536746e−5, −1.6132224742e−5
+ *
+ * Valid 0–180 °C, 0–0.16 kg/kg at 0.1 MPa; stated accuracy ±0.1 % (for the full ρ_sw with the
+ * paper's own ρ_w fit; Ebullio adds this increment to IF97's ρ_w).
+ *
+ * @param massFraction absolute salinity, kg/kg
+ * @param temperature K
+ * @returns ρ_sw − ρ_w, kg/m³
+ */
+export function sharqawyDensityDifference(massFraction: number, temperature: number): number {
+  const s = massFraction;
+  const t = temperature - KELVIN_OFFSET;
+  return (
+    s * (8.0200240891e2 + t * (-2.0005183488 + t * (1.6771024982e-2 + t * -3.0600536746e-5))) -
+    1.6132224742e-5 * s * s * t * t
+  );
+}
+
+/**
+ * Boiling temperature of seawater at pressure p: the root of
+ *   T = T_sat,IF97(p) + BPR_Sharqawy(S, T),
+ * i.e. the rise evaluated at the seawater's own temperature, as the correlation was fitted.
+ * dBPR/dT is below 0.025 (0–200 °C, S ≤ 160 g/kg), so plain fixed-point iteration contracts by
+ * that factor per step; it converges to 1e−9 K in a few steps. No range checks here.
+ *
+ * @param massFraction absolute salinity, kg/kg
+ * @param pressure Pa (IF97 saturation range)
+ * @returns boiling temperature, K
+ */
+export function seawaterBoilingTemperature(massFraction: number, pressure: number): number {
+  const tWater = saturationTemperature(pressure);
+  let t = tWater + sharqawyBoilingPointRise(massFraction, tWater);
+  for (let i = 0; i < 50; i++) {
+    const next = tWater + sharqawyBoilingPointRise(massFraction, t);
+    if (Math.abs(next - t) < 1e-9) return next;
+    t = next;
+  }
+  throw new EngineNoSolutionError('seawater boiling point: the fixed-point iteration did not converge', {
+    iterations: 50,
+    reason: 'no-convergence',
+  });
+}
+
+const MASS_FRACTION_LIMITS: Interval = { min: 0, max: 0.16 };
+const TEMPERATURE_LIMITS: Interval = { min: 273.15, max: 473.15 };
+/** Validity of each correlation as Sharqawy et al. 2010 state it with each equation. */
+const RANGES = {
+  boilingPointRise: { massFraction: { min: 0, max: 0.12 }, temperature: { min: 273.15, max: 473.15 } },
+  enthalpy: { massFraction: { min: 0, max: 0.12 }, temperature: { min: 283.15, max: 393.15 } },
+  heatCapacity: { massFraction: { min: 0, max: 0.16 }, temperature: { min: 273.15, max: 453.15 } },
+  density: { massFraction: { min: 0, max: 0.16 }, temperature: { min: 273.15, max: 453.15 } },
+} as const;
+/** The enthalpy cubic is refused above 120 °C (see {@link sharqawyEnthalpyDifference}). */
+const ENTHALPY_TEMPERATURE_LIMITS: Interval = { min: 273.15, max: 393.15 };
+/** Pressures whose water saturation temperature lies in 0–200 °C. */
+const PRESSURE_RANGE: Interval = {
+  min: saturationPressure(TEMPERATURE_LIMITS.min),
+  max: saturationPressure(TEMPERATURE_LIMITS.max),
+};
+
+/**
+ * Above about 70 g/kg (twice natural seawater) calcium sulphate scaling limits thermal
+ * desalination plants (common practice: the usual design ceiling on brine concentration).
+ */
+export const SEAWATER_SCALING_MASS_FRACTION = 0.07;
+
+const validity: ValidityBox = {
+  massFraction: { min: 0, max: 0.12 },
+  temperature: { min: 283.15, max: 393.15 },
+  pressure: { ...PRESSURE_RANGE },
+  notes: [
+    'Boiling-point rise: 0-200 °C, 0-0.12 kg/kg (Sharqawy et al. 2010, ±0.018 K).',
+    'Enthalpy: 10-120 °C, 0-0.12 kg/kg (±1.5 %); refused above 120 °C.',
+    'Heat capacity and density: 0-180 °C, 0-0.16 kg/kg (±0.28 %, ±0.1 %).',
+    'Pure-water parts from IAPWS-IF97 saturated liquid at T.',
+  ],
+};
+const limits: ValidityBox = {
+  massFraction: { ...MASS_FRACTION_LIMITS },
+  temperature: { ...TEMPERATURE_LIMITS },
+  pressure: { ...PRESSURE_RANGE },
+  notes: ['Enthalpy is refused above 393.15 K (120 °C).'],
+};
+
+const sources: Citation[] = [
+  {
+    key: 'sharqawy-2010',
+    reference:
+      'M. H. Sharqawy, J. H. Lienhard V, S. M. Zubair, "Thermophysical properties of seawater: a review of existing correlations and data", Desalination and Water Treatment 16 (2010) 354-380',
+  },
+  {
+    key: 'iapws-if97',
+    reference:
+      'IAPWS R7-97(2012), Revised Release on the IAPWS Industrial Formulation 1997 for the Thermodynamic Properties of Water and Steam (pure-water parts)',
+  },
+];
+
+const cautions: EngineCaution[] = [
+  {
+    code: 'scaling',
+    message:
+      'Concentrating seawater deposits scale long before sodium chloride saturates (about 0.26 kg/kg): calcium carbonate and magnesium hydroxide from about 70 °C, calcium sulphate above roughly 0.07 kg/kg or 110-120 °C. Check scaling limits and antiscalant dosing with the water chemistry of the site.',
+  },
+];
+
+function checkMassFraction(value: number, range: Interval, warnings: WarningSink): void {
+  checkAgainst(MODEL_ID, 'massFraction', value, 'kg/kg', range, MASS_FRACTION_LIMITS, warnings);
+  if (value > SEAWATER_SCALING_MASS_FRACTION) {
+    addWarning(warnings, {
+      code: 'scaling-risk',
+      field: 'massFraction',
+      message: `massFraction = ${value} kg/kg exceeds ${SEAWATER_SCALING_MASS_FRACTION} kg/kg, where calcium sulphate scaling usually limits seawater evaporators`,
+      validRange: { min: 0, max: SEAWATER_SCALING_MASS_FRACTION, unit: 'kg/kg' },
+    });
+  }
+}
+
+function checkTemperature(value: number, range: Interval, hard: Interval, warnings: WarningSink): void {
+  checkAgainst(MODEL_ID, 'temperature', value, 'K', range, hard, warnings);
+}
+
+function checkPressure(value: number): void {
+  if (!Number.isFinite(value) || value < PRESSURE_RANGE.min || value > PRESSURE_RANGE.max) {
+    throw new EngineRangeError(
+      'pressure',
+      value,
+      { min: PRESSURE_RANGE.min, max: PRESSURE_RANGE.max, unit: 'Pa' },
+      `pressure = ${value} Pa is outside the range of the ${MODEL_ID} model (${PRESSURE_RANGE.min.toFixed(1)} to ${PRESSURE_RANGE.max.toFixed(0)} Pa, water boiling at 0-200 °C)`,
+    );
+  }
+}
+
+function boilingPoint(massFraction: number, pressure: number, warnings?: WarningSink): number {
+  checkMassFraction(massFraction, RANGES.boilingPointRise.massFraction, warnings);
+  checkPressure(pressure);
+  return seawaterBoilingTemperature(massFraction, pressure);
+}
+
+export const seawater: LiquorModel = {
+  id: MODEL_ID,
+  name: 'Seawater and desalination brine',
+  kind: 'built-in',
+  compositionVariable: 'mass fraction of dissolved salt (absolute salinity, kg/kg; g/kg = 1000·x)',
+  validity,
+  limits,
+  sources,
+  cautions,
+
+  boilingPoint,
+
+  boilingPointRise(massFraction: number, pressure: number, warnings?: WarningSink): number {
+    return boilingPoint(massFraction, pressure, warnings) - saturationTemperature(pressure);
+  },
+
+  /** h = h_f,IF97(T) + (h_sw − h_w)_Sharqawy(S, T); IF97 saturated liquid at T, J/kg. */
+  enthalpy(massFraction: number, temperature: number, warnings?: WarningSink): number {
+    checkMassFraction(massFraction, RANGES.enthalpy.massFraction, warnings);
+    checkTemperature(temperature, RANGES.enthalpy.temperature, ENTHALPY_TEMPERATURE_LIMITS, warnings);
+    const water = saturationAtTemperature(temperature).liquid.enthalpy;
+    return water + sharqawyEnthalpyDifference(massFraction, temperature);
+  },
+
+  /** c_p = c_p,IF97(T) + [c_p,Jamieson(S, T) − c_p,Jamieson(0, T)], J/(kg·K). */
+  heatCapacity(massFraction: number, temperature: number, warnings?: WarningSink): number {
+    checkMassFraction(massFraction, RANGES.heatCapacity.massFraction, warnings);
+    checkTemperature(temperature, RANGES.heatCapacity.temperature, TEMPERATURE_LIMITS, warnings);
+    const water = saturationAtTemperature(temperature).liquid.heatCapacity;
+    if (water === undefined) {
+      throw new EngineNoSolutionError('IF97 gave no heat capacity for saturated liquid', {
+        reason: 'missing-property',
+      });
+    }
+    return water + jamiesonHeatCapacity(massFraction, temperature) - jamiesonHeatCapacity(0, temperature);
+  },
+
+  /** ρ = ρ_f,IF97(T) + (ρ_sw − ρ_w)_Sharqawy(S, T), kg/m³. */
+  density(massFraction: number, temperature: number, warnings?: WarningSink): number {
+    checkMassFraction(massFraction, RANGES.density.massFraction, warnings);
+    checkTemperature(temperature, RANGES.density.temperature, TEMPERATURE_LIMITS, warnings);
+    const water = saturationAtTemperature(temperature).liquid.density;
+    return water + sharqawyDensityDifference(massFraction, temperature);
+  },
+};
