@@ -1,0 +1,400 @@
+/**
+ * Units at the API boundary. The API layer calls {@link parseQuantity} on every dimensional input
+ * (a bare number in Ebullio's default unit, or a string such as "1.4 bar", "38 degC", "4.5 t/h",
+ * "2 barg", "65 %", "60 Bx") and hands the engine plain SI numbers; {@link formatOutput} turns SI
+ * results into Ebullio's default output units. The engine never parses units.
+ *
+ * Conversions come from the js-quantities package (1.8.0): each accepted spelling maps, through a
+ * small alias table, to a js-quantities unit, and the affine map value → SI (factor and offset) is
+ * taken from js-quantities once, when this module loads. Ebullio's own additions on top:
+ * - Gauge pressures (barg, kPag, psig): gauge + 101.325 kPa (one standard atmosphere) — the
+ *   common-practice reading of "gauge" when the local barometric pressure is not given.
+ * - Mass-fraction spellings (%, wt%, g/kg, ppm, Bx), which js-quantities treats as plain numbers.
+ *   "Bx"/"°Bx" (degrees Brix) is taken as mass percent of dissolved solids, i.e. mass percent of
+ *   sucrose for a pure sucrose solution (ICUMSA's definition of Brix as sucrose mass percent);
+ *   for impure juices, Brix (a refractometric reading) only approximates the dry-solids percent.
+ * - Exact factors where js-quantities rounds its definitions: it uses 6894.76 Pa for the psi,
+ *   133.322368 Pa for the mmHg and 1055.056 J for the Btu. Ebullio uses the exact definitions
+ *   (NIST Special Publication 811, 2008, Appendix B): 1 psi = 0.45359237 kg × 9.80665 m/s² /
+ *   (0.0254 m)² = 6894.757293168… Pa; 1 mmHg = 13595.1 kg/m³ × 9.80665 m/s² × 1 mm =
+ *   133.322387415 Pa; 1 Btu_IT = 1055.05585262 J.
+ *
+ * Temperatures: absolute temperatures (°C, K, °F) and temperature differences (K, Δ°C, Δ°F) are
+ * distinct kinds, as in js-quantities ("tempC" vs "degC"): "10 °C" as a temperature is 283.15 K,
+ * as a temperature difference it is 10 K.
+ */
+import { createRequire } from 'node:module';
+
+const require = createRequire(import.meta.url);
+
+/** The part of js-quantities' API used here (the package ships no type declarations). */
+interface Quantity {
+  scalar: number;
+  to(unit: string): Quantity;
+  kind(): string;
+}
+type QtyFactory = (value: number, unit: string) => Quantity;
+const Qty = require('js-quantities') as QtyFactory;
+
+export type QuantityKind =
+  | 'pressure'
+  | 'temperature'
+  | 'temperatureDifference'
+  | 'massFlow'
+  | 'specificEnthalpy'
+  | 'heatCapacity'
+  | 'heatTransferCoefficient'
+  | 'area'
+  | 'length'
+  | 'power'
+  | 'massFraction'
+  | 'density';
+
+export const quantityKinds: readonly QuantityKind[] = [
+  'pressure',
+  'temperature',
+  'temperatureDifference',
+  'massFlow',
+  'specificEnthalpy',
+  'heatCapacity',
+  'heatTransferCoefficient',
+  'area',
+  'length',
+  'power',
+  'massFraction',
+  'density',
+];
+
+/** Ebullio's default unit of each kind: what a bare number means, and what results are given in. */
+export const defaultUnits: Readonly<Record<QuantityKind, string>> = {
+  pressure: 'kPa',
+  temperature: '°C',
+  temperatureDifference: 'K',
+  massFlow: 'kg/s',
+  specificEnthalpy: 'kJ/kg',
+  heatCapacity: 'kJ/(kg·K)',
+  heatTransferCoefficient: 'W/(m²·K)',
+  area: 'm²',
+  length: 'm',
+  power: 'kW',
+  massFraction: 'kg/kg',
+  density: 'kg/m³',
+};
+
+/** The SI unit the engine works in, per kind. */
+export const siUnits: Readonly<Record<QuantityKind, string>> = {
+  pressure: 'Pa',
+  temperature: 'K',
+  temperatureDifference: 'K',
+  massFlow: 'kg/s',
+  specificEnthalpy: 'J/kg',
+  heatCapacity: 'J/(kg·K)',
+  heatTransferCoefficient: 'W/(m²·K)',
+  area: 'm²',
+  length: 'm',
+  power: 'W',
+  massFraction: 'kg/kg',
+  density: 'kg/m³',
+};
+
+/** js-quantities expression of each kind's SI unit. */
+const QTY_SI: Record<QuantityKind, string | undefined> = {
+  pressure: 'Pa',
+  temperature: 'tempK',
+  temperatureDifference: 'degK',
+  massFlow: 'kg/s',
+  specificEnthalpy: 'J/kg',
+  heatCapacity: 'J/kg*degK',
+  heatTransferCoefficient: 'W/m^2*degK',
+  area: 'm^2',
+  length: 'm',
+  power: 'W',
+  massFraction: undefined,
+  density: 'kg/m^3',
+};
+
+/** Exact values used instead of js-quantities' rounded ones (NIST SP 811 Appendix B). */
+const PSI = (0.45359237 * 9.80665) / 0.0254 ** 2;
+const MMHG = 13595.1 * 9.80665 * 1e-3;
+const BTU = 1055.05585262;
+const POUND = 0.45359237;
+const FOOT = 0.3048;
+const HOUR = 3600;
+const RANKINE = 5 / 9;
+const ATM = 101_325;
+
+/**
+ * One accepted unit: its canonical spelling (shown in messages and documentation), other
+ * spellings, and either the js-quantities expression to convert with or an exact SI factor.
+ */
+interface UnitSpec {
+  unit: string;
+  aliases?: string[];
+  /** js-quantities unit expression. */
+  qty?: string;
+  /** SI = value × factor + offset, when not taken from js-quantities. */
+  factor?: number;
+  /** Added after conversion, in SI (gauge pressures). */
+  offset?: number;
+}
+
+const UNIT_TABLE: Record<QuantityKind, UnitSpec[]> = {
+  pressure: [
+    { unit: 'Pa', qty: 'Pa' },
+    { unit: 'kPa', aliases: ['kPa(a)', 'kPaa', 'kPa abs'], qty: 'kPa' },
+    { unit: 'MPa', aliases: ['MPa(a)', 'MPaa'], qty: 'MPa' },
+    { unit: 'bar', aliases: ['bar(a)', 'bara', 'bar abs'], qty: 'bar' },
+    { unit: 'mbar', aliases: ['mbar(a)', 'mbara'], qty: 'mbar' },
+    { unit: 'psi', aliases: ['psia', 'psi(a)'], factor: PSI },
+    { unit: 'atm', qty: 'atm' },
+    { unit: 'mmHg', aliases: ['mm Hg', 'torr', 'Torr'], factor: MMHG },
+    { unit: 'barg', aliases: ['bar(g)', 'bar g'], qty: 'bar', offset: ATM },
+    { unit: 'kPag', aliases: ['kPa(g)', 'kPa g'], qty: 'kPa', offset: ATM },
+    { unit: 'psig', aliases: ['psi(g)', 'psi g'], factor: PSI, offset: ATM },
+  ],
+  temperature: [
+    { unit: '°C', aliases: ['degC', 'C', 'ºC', '℃'], qty: 'tempC' },
+    { unit: 'K', aliases: ['kelvin'], qty: 'tempK' },
+    { unit: '°F', aliases: ['degF', 'F', 'ºF', '℉'], qty: 'tempF' },
+  ],
+  temperatureDifference: [
+    { unit: 'K', aliases: ['kelvin'], qty: 'degK' },
+    { unit: '°C', aliases: ['degC', 'C', 'ºC', 'Δ°C', 'ΔdegC', 'delta degC'], qty: 'degC' },
+    { unit: '°F', aliases: ['degF', 'F', 'ºF', 'Δ°F', 'ΔdegF', 'delta degF'], qty: 'degF' },
+  ],
+  massFlow: [
+    { unit: 'kg/s', qty: 'kg/s' },
+    { unit: 'kg/h', aliases: ['kg/hr'], qty: 'kg/h' },
+    { unit: 't/h', aliases: ['tonne/h', 't/hr', 'tph'], qty: 't/h' },
+    { unit: 'lb/h', aliases: ['lb/hr', 'lbm/h', 'lbm/hr'], qty: 'lb/h' },
+    { unit: 'lb/s', aliases: ['lbm/s'], qty: 'lb/s' },
+  ],
+  specificEnthalpy: [
+    { unit: 'J/kg', qty: 'J/kg' },
+    { unit: 'kJ/kg', qty: 'kJ/kg' },
+    { unit: 'Btu/lb', aliases: ['BTU/lb', 'Btu/lbm', 'BTU/lbm'], factor: BTU / POUND },
+  ],
+  heatCapacity: [
+    { unit: 'J/(kg·K)', aliases: ['J/kg/K', 'J/kgK', 'J/(kg*K)', 'J/kg·K'], qty: 'J/kg*degK' },
+    { unit: 'kJ/(kg·K)', aliases: ['kJ/kg/K', 'kJ/kgK', 'kJ/(kg*K)', 'kJ/kg·K'], qty: 'kJ/kg*degK' },
+    {
+      unit: 'Btu/(lb·°F)',
+      aliases: [
+        'Btu/lb/°F',
+        'Btu/lb°F',
+        'Btu/(lb*°F)',
+        'Btu/lb·°F',
+        'Btu/(lb·degF)',
+        'Btu/lb/degF',
+        'BTU/lb/F',
+      ],
+      factor: BTU / POUND / RANKINE,
+    },
+  ],
+  heatTransferCoefficient: [
+    {
+      unit: 'W/(m²·K)',
+      aliases: ['W/m²K', 'W/m2K', 'W/(m2·K)', 'W/(m^2*K)', 'W/m^2/K', 'W/m2/K', 'W/m²/K', 'W/(m2 K)'],
+      qty: 'W/m^2*degK',
+    },
+    {
+      unit: 'kW/(m²·K)',
+      aliases: ['kW/m²K', 'kW/m2K', 'kW/(m2·K)', 'kW/(m^2*K)', 'kW/m^2/K', 'kW/m2/K', 'kW/m²/K', 'kW/(m2 K)'],
+      qty: 'kW/m^2*degK',
+    },
+    {
+      unit: 'Btu/(h·ft²·°F)',
+      aliases: [
+        'Btu/h/ft²/°F',
+        'Btu/(h*ft^2*°F)',
+        'Btu/hft2F',
+        'Btu/(hr·ft²·°F)',
+        'Btu/h/ft2/F',
+        'Btu/(h ft2 F)',
+      ],
+      factor: BTU / HOUR / FOOT ** 2 / RANKINE,
+    },
+  ],
+  area: [
+    { unit: 'm²', aliases: ['m2', 'm^2', 'sq m'], qty: 'm^2' },
+    { unit: 'ft²', aliases: ['ft2', 'ft^2', 'sq ft', 'sqft'], qty: 'ft^2' },
+  ],
+  length: [
+    { unit: 'm', qty: 'm' },
+    { unit: 'mm', qty: 'mm' },
+    { unit: 'ft', qty: 'ft' },
+    { unit: 'in', aliases: ['inch'], qty: 'in' },
+  ],
+  power: [
+    { unit: 'W', qty: 'W' },
+    { unit: 'kW', qty: 'kW' },
+    { unit: 'MW', qty: 'MW' },
+    { unit: 'Btu/h', aliases: ['BTU/h', 'Btu/hr', 'BTU/hr'], factor: BTU / HOUR },
+  ],
+  massFraction: [
+    { unit: 'kg/kg', aliases: ['fraction', 'mass fraction'], factor: 1 },
+    { unit: '%', aliases: ['wt%', 'wt %', 'mass%', 'mass %', '% w/w', '%w/w'], factor: 0.01 },
+    { unit: '°Bx', aliases: ['Bx', 'ºBx', 'brix', 'Brix', '°Brix'], factor: 0.01 },
+    { unit: 'g/kg', factor: 1e-3 },
+    { unit: 'ppm', aliases: ['ppmw', 'mg/kg'], factor: 1e-6 },
+  ],
+  density: [
+    { unit: 'kg/m³', aliases: ['kg/m3', 'kg/m^3'], qty: 'kg/m^3' },
+    { unit: 'g/cm³', aliases: ['g/cm3', 'g/cm^3', 'g/mL', 'g/ml'], qty: 'g/cm^3' },
+    { unit: 'lb/ft³', aliases: ['lb/ft3', 'lb/ft^3'], factor: POUND / FOOT ** 3 },
+  ],
+};
+
+interface Affine {
+  unit: string;
+  factor: number;
+  offset: number;
+}
+
+/** Spellings are matched after removing spaces (so "kg / s" and "kg/s" are the same). */
+function key(spelling: string): string {
+  return spelling.replace(/\s+/g, '');
+}
+
+function affineFromQty(expr: string, si: string): { factor: number; offset: number } {
+  const zero = Qty(0, expr).to(si).scalar;
+  // A wide span keeps the factor of offset units (°F) free of cancellation error.
+  const span = 1e6;
+  const far = Qty(span, expr).to(si).scalar;
+  return { factor: (far - zero) / span, offset: zero };
+}
+
+const LOOKUP = new Map<QuantityKind, Map<string, Affine>>();
+const ACCEPTED = new Map<QuantityKind, string[]>();
+for (const kind of quantityKinds) {
+  const map = new Map<string, Affine>();
+  for (const spec of UNIT_TABLE[kind]) {
+    const si = QTY_SI[kind];
+    let affine: { factor: number; offset: number };
+    if (spec.factor !== undefined) affine = { factor: spec.factor, offset: 0 };
+    else if (spec.qty !== undefined && si !== undefined) affine = affineFromQty(spec.qty, si);
+    else throw new Error(`units table: ${kind} ${spec.unit} has neither factor nor js-quantities unit`);
+    const entry = { unit: spec.unit, factor: affine.factor, offset: affine.offset + (spec.offset ?? 0) };
+    for (const s of [spec.unit, ...(spec.aliases ?? [])]) map.set(key(s), entry);
+  }
+  LOOKUP.set(kind, map);
+  ACCEPTED.set(
+    kind,
+    UNIT_TABLE[kind].map((s) => s.unit),
+  );
+}
+
+/** Canonical spellings accepted for a kind (aliases such as "degC" for "°C" are accepted too). */
+export function acceptedUnits(kind: QuantityKind): string[] {
+  return [...(ACCEPTED.get(kind) ?? [])];
+}
+
+/** An input that is not a finite number with a known unit of the expected kind. */
+export class UnitError extends Error {
+  override readonly name = 'UnitError';
+  constructor(
+    /** Path of the offending input in the request, e.g. "steam.pressure". */
+    readonly field: string,
+    readonly input: unknown,
+    readonly kind: QuantityKind,
+    readonly acceptedUnits: string[],
+    message: string,
+  ) {
+    super(message);
+  }
+}
+
+const NUMBER_AND_UNIT = /^([+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?)(.*)$/;
+
+/** Lower physical bounds in SI that no unit choice can make sense of. */
+const PHYSICAL_MIN: Partial<Record<QuantityKind, { min: number; max?: number; what: string }>> = {
+  pressure: { min: 0, what: 'an absolute pressure cannot be negative' },
+  temperature: { min: 0, what: 'an absolute temperature cannot be below 0 K' },
+  massFraction: { min: 0, max: 1, what: 'a mass fraction lies between 0 and 1 (0 % to 100 %)' },
+};
+
+function kindLabel(kind: QuantityKind): string {
+  return kind.replace(/([A-Z])/g, ' $1').toLowerCase();
+}
+
+function convert(value: number, unit: Affine): number {
+  return value * unit.factor + unit.offset;
+}
+
+/**
+ * Parses a dimensional input to SI. A number is in the kind's default unit ({@link defaultUnits});
+ * a string is a number followed by an optional unit ("1.4 bar", "1.4bar", "-3 °C", "2 barg").
+ * Throws {@link UnitError} (with field, input, kind and the accepted units) for an empty string,
+ * NaN, Infinity, an unknown unit, a unit of another kind, or a value no unit can make physical
+ * (negative absolute pressure or temperature, a mass fraction outside 0–1).
+ *
+ * @param input a number in the default unit, or "value unit"
+ * @param kind what the input measures
+ * @param field path of the input in the request, used in the error
+ * @returns the value in SI (Pa, K, kg/s, J/kg, J/(kg·K), W/(m²·K), m², m, W, kg/kg, kg/m³)
+ */
+export function parseQuantity(input: number | string, kind: QuantityKind, field: string): number {
+  const accepted = acceptedUnits(kind);
+  const lookup = LOOKUP.get(kind) as Map<string, Affine>;
+  const error = (message: string): UnitError => new UnitError(field, input, kind, accepted, message);
+  const listed = `accepted units: ${accepted.join(', ')}`;
+
+  let value: number;
+  let unit: Affine;
+  if (typeof input === 'number') {
+    if (!Number.isFinite(input)) {
+      throw error(
+        `${field}: ${String(input)} is not a finite number (${kindLabel(kind)} in ${defaultUnits[kind]})`,
+      );
+    }
+    value = input;
+    unit = lookup.get(key(defaultUnits[kind])) as Affine;
+  } else if (typeof input === 'string') {
+    const text = input.trim();
+    if (text.length === 0) throw error(`${field}: empty; give a number with an optional unit (${listed})`);
+    const match = NUMBER_AND_UNIT.exec(text);
+    if (!match) {
+      throw error(
+        `${field}: "${input}" does not start with a number; expected e.g. "1.4 ${accepted[1] ?? accepted[0]}"`,
+      );
+    }
+    value = Number(match[1]);
+    if (!Number.isFinite(value)) throw error(`${field}: "${input}" is not a finite number`);
+    const spelled = (match[2] ?? '').trim();
+    if (spelled.length === 0) {
+      unit = lookup.get(key(defaultUnits[kind])) as Affine;
+    } else {
+      const found = lookup.get(key(spelled));
+      if (!found) {
+        const other = quantityKinds.find((k) => k !== kind && LOOKUP.get(k)?.has(key(spelled)));
+        throw error(
+          other
+            ? `${field}: "${spelled}" is a ${kindLabel(other)} unit, not a ${kindLabel(kind)} unit (${listed})`
+            : `${field}: unknown unit "${spelled}" for a ${kindLabel(kind)} (${listed})`,
+        );
+      }
+      unit = found;
+    }
+  } else {
+    throw error(`${field}: expected a number or a string such as "1.4 ${accepted[1] ?? accepted[0]}"`);
+  }
+
+  const si = convert(value, unit);
+  const bound = PHYSICAL_MIN[kind];
+  if (bound && (si < bound.min || (bound.max !== undefined && si > bound.max))) {
+    throw error(`${field}: ${String(input)} is not physical: ${bound.what}`);
+  }
+  return si;
+}
+
+/**
+ * Converts an SI value to the given unit of the kind (default: Ebullio's default output unit,
+ * {@link defaultUnits}: °C, kPa absolute, kg/s, kJ/kg, kJ/(kg·K), kW, m², W/(m²·K), mass fraction).
+ */
+export function formatOutput(valueSI: number, kind: QuantityKind, unit: string = defaultUnits[kind]): number {
+  const found = LOOKUP.get(kind)?.get(key(unit));
+  if (!found) {
+    throw new UnitError('unit', unit, kind, acceptedUnits(kind), `unknown ${kindLabel(kind)} unit "${unit}"`);
+  }
+  return (valueSI - found.offset) / found.factor;
+}
