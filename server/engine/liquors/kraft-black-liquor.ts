@@ -1,0 +1,277 @@
+/**
+ * Built-in liquor model "kraft-black-liquor": spent cooking liquor of the kraft pulping process,
+ * described by its dry-solids mass fraction S (kg dry solids per kg liquor).
+ *
+ * Correlations (both as given in W.J. Frederick, "Black liquor properties", chapter 3 of
+ * T.N. Adams (ed.), Kraft Recovery Boilers, TAPPI Press, Atlanta, 1997, which collects the work of
+ * Frederick and co-workers). The coefficients below are recalled ("from memory"), not read from
+ * the book on this project; they agree with the form quoted in our brief, but the two are not
+ * independent. Check them against the book before relying on the model for design.
+ *
+ * Black liquors differ from mill to mill (wood species, cooking, inorganic content): Zaman,
+ * McNally and Fricke (Ind. Eng. Chem. Res. 37 (1998) 275–283) measured liquors to 85 % solids and
+ * found the BPR pressure-dependent, with a change of slope near 65 % solids where salts reach
+ * their solubility limit. A generic correlation is a preliminary estimate; users with measured
+ * data for their liquor should bring it as a custom (Dühring-table) liquor.
+ *
+ * Density and a solubility (burkeite / sodium-salt crystallisation) limit are not provided.
+ */
+import { saturationPressure, saturationTemperature, IF97 } from '../steam/if97.js';
+import { KELVIN_OFFSET, type Citation, type WarningSink } from '../types.js';
+import type { Interval, LiquorModel, ValidityBox } from './model.js';
+import { checkAgainst } from './validity.js';
+import { EngineRangeError } from '../errors.js';
+
+const MODEL_ID = 'kraft-black-liquor';
+
+function requireSolids(solidsMassFraction: number): void {
+  if (!Number.isFinite(solidsMassFraction) || solidsMassFraction < 0 || solidsMassFraction > 1) {
+    throw new EngineRangeError('solidsMassFraction', solidsMassFraction, {
+      min: 0,
+      max: 1,
+      unit: 'kg dry solids/kg liquor',
+    });
+  }
+}
+
+/**
+ * Boiling-point rise of kraft black liquor at atmospheric pressure (Frederick 1997):
+ *
+ *   ΔT_atm = 6.173·S − 7.48·S^1.5 + 32.747·S²  (K)
+ *
+ * @param solidsMassFraction S, kg dry solids per kg liquor, 0–1
+ * @returns ΔT_atm, K (at 101.325 kPa, water boiling at 373.16 K in the source's notation)
+ *
+ * Validity: given for S up to about 0.5 (from memory); used here with a warning up to 0.85.
+ * Source: W.J. Frederick, "Black liquor properties", ch. 3 in T.N. Adams (ed.), Kraft Recovery
+ * Boilers, TAPPI Press 1997 (coefficients from memory).
+ * Example: S = 0.5 gives 8.63 K.
+ */
+export function frederickAtmosphericBoilingPointRise(solidsMassFraction: number): number {
+  requireSolids(solidsMassFraction);
+  const s = solidsMassFraction;
+  return 6.173 * s - 7.48 * s * Math.sqrt(s) + 32.747 * s * s;
+}
+
+/**
+ * Pressure (boiling-temperature) correction of the black-liquor BPR (Frederick 1997):
+ *
+ *   ΔT(p) = ΔT_atm · [1 + 0.6·(T_b,water − 373.16)/373.16]
+ *
+ * @param waterBoilingTemperature T_b,water = T_sat(p) of pure water at the liquor's pressure, K
+ * @returns the dimensionless factor in square brackets
+ *
+ * Validity: the source's fitted range is not in our notes; the model trusts it for water boiling
+ * temperatures of 50–150 °C (the usual multiple-effect train) and warns outside that.
+ * Source: as {@link frederickAtmosphericBoilingPointRise} (from memory).
+ * Example: T_b,water = 333.15 K (60 °C) gives 0.9357.
+ */
+export function frederickBoilingPointRisePressureFactor(waterBoilingTemperature: number): number {
+  if (!Number.isFinite(waterBoilingTemperature) || waterBoilingTemperature <= 0) {
+    throw new EngineRangeError('waterBoilingTemperature', waterBoilingTemperature, {
+      min: 0,
+      max: Number.POSITIVE_INFINITY,
+      unit: 'K',
+    });
+  }
+  return 1 + (0.6 * (waterBoilingTemperature - 373.16)) / 373.16;
+}
+
+/**
+ * Isobaric specific heat capacity of kraft black liquor, ideal-mixture part plus an excess term
+ * (as given in Frederick 1997, from memory):
+ *
+ *   c_p = 4.216·(1 − S) + (1.675 + 3.31·t/1000)·S + (4.87 − 20·t/1000)·(1 − S)·S³  (kJ/(kg·K))
+ *
+ * 4.216 kJ/(kg·K) stands for water, 1.675 + 3.31·t/1000 for the dry solids; the last term is the
+ * excess heat capacity of the non-ideal solution (cf. Zaman, Tavares and Fricke, J. Chem. Eng.
+ * Data 41 (1996) 266–271, who measured black-liquor heat capacities at 313–393 K and described
+ * them by such an excess term).
+ *
+ * @param solidsMassFraction S, kg dry solids per kg liquor, 0–1
+ * @param temperatureCelsius t, °C
+ * @returns c_p, kJ/(kg·K)
+ *
+ * Validity: black-liquor data roughly 40–150 °C, S up to about 0.8 (from memory).
+ * Example: S = 0.5, t = 80 °C gives 3.28 kJ/(kg·K).
+ */
+export function blackLiquorHeatCapacityKJPerKgK(
+  solidsMassFraction: number,
+  temperatureCelsius: number,
+): number {
+  requireSolids(solidsMassFraction);
+  const s = solidsMassFraction;
+  const t = temperatureCelsius;
+  return 4.216 * (1 - s) + (1.675 + 3.31e-3 * t) * s + (4.87 - 20e-3 * t) * (1 - s) * s ** 3;
+}
+
+/** Temperature of the enthalpy datum, °C: liquid water at the triple point (as IF97). */
+export const BLACK_LIQUOR_ENTHALPY_DATUM_CELSIUS = 0.01;
+
+/**
+ * Specific enthalpy of kraft black liquor on the steam-table datum: the exact integral of
+ * {@link blackLiquorHeatCapacityKJPerKgK} from 0.01 °C (h = 0 there, as liquid water in IF97):
+ *
+ *   h = ∫_{0.01 °C}^{t} c_p(S, t′) dt′  (kJ/kg)
+ *
+ * The heat of dilution at the datum is neglected (as for the custom liquors), so h of pure water
+ * (S = 0) is 4.216·(t − 0.01), within 2.5 kJ/kg of IF97 up to 100 °C.
+ *
+ * @param solidsMassFraction S, kg dry solids per kg liquor, 0–1
+ * @param temperatureCelsius t, °C
+ * @returns h, kJ/kg
+ *
+ * Validity and source: as {@link blackLiquorHeatCapacityKJPerKgK}.
+ */
+export function blackLiquorEnthalpyKJPerKg(solidsMassFraction: number, temperatureCelsius: number): number {
+  requireSolids(solidsMassFraction);
+  const s = solidsMassFraction;
+  const t = temperatureCelsius;
+  const t0 = BLACK_LIQUOR_ENTHALPY_DATUM_CELSIUS;
+  const dt = t - t0;
+  const dt2 = (t * t - t0 * t0) / 2;
+  return (
+    4.216 * (1 - s) * dt + s * (1.675 * dt + 3.31e-3 * dt2) + (1 - s) * s ** 3 * (4.87 * dt - 20e-3 * dt2)
+  );
+}
+
+const C = (celsius: number): number => celsius + KELVIN_OFFSET;
+const KJ = 1e3;
+
+/**
+ * Validity and limits, and why:
+ * - Dry solids: silent to 0.50 (the BPR polynomial's stated range, from memory), a warning from
+ *   0.50 to 0.85 (Zaman et al. 1998 measured liquors to 85 % solids; product liquors of 65–80 %
+ *   are normal, so users need the estimate, flagged), refused above 0.85 (a near-solid melt).
+ * - Temperature: silent at 40–150 °C (heat-capacity data 313–393 K and the usual train), a warning
+ *   down to 0.01 °C and up to 200 °C, refused beyond (no data, and liquor chemistry changes).
+ * - Pressure: the IF97 saturation pressures of those temperatures (the BPR needs T_sat(p)).
+ */
+const S_VALID_BPR: Interval = { min: 0, max: 0.5 };
+const S_VALID_CP: Interval = { min: 0, max: 0.8 };
+const S_LIMITS: Interval = { min: 0, max: 0.85 };
+const T_VALID: Interval = { min: C(40), max: C(150) };
+const T_VALID_WATER_BOILING: Interval = { min: C(50), max: C(150) };
+const T_LIMITS: Interval = { min: IF97.tripleTemperature, max: C(200) };
+
+const validity: ValidityBox = {
+  massFraction: S_VALID_BPR,
+  temperature: T_VALID,
+  pressure: {
+    min: saturationPressure(T_VALID_WATER_BOILING.min),
+    max: saturationPressure(T_VALID_WATER_BOILING.max),
+  },
+  notes: [
+    'x is the dry-solids mass fraction (kg dry solids per kg liquor).',
+    'Boiling-point rise: silent to 50 % dry solids; from 50 % to 85 % a "model-extrapolated" warning is returned (real liquors change slope near 65 % solids, where salts crystallise).',
+    'Enthalpy and heat capacity: silent to 80 % dry solids and 40–150 °C.',
+    'The pressure correction is trusted for water boiling temperatures of 50–150 °C.',
+    'A generic correlation: liquors from different mills differ by several kelvin in BPR at high solids. Use a custom Dühring table for measured data.',
+    'Density and a solubility limit are not provided by this model.',
+  ],
+};
+
+const limits: ValidityBox = {
+  massFraction: S_LIMITS,
+  temperature: T_LIMITS,
+  pressure: { min: saturationPressure(T_LIMITS.min), max: saturationPressure(T_LIMITS.max) },
+  notes: ['Refused above 85 % dry solids and outside 0.01–200 °C (liquor or water boiling temperature).'],
+};
+
+const sources: Citation[] = [
+  {
+    key: 'frederick-1997',
+    reference:
+      'W.J. Frederick, "Black liquor properties", chapter 3 in T.N. Adams (ed.), Kraft Recovery Boilers, TAPPI Press, Atlanta (1997): BPR at atmospheric pressure, its pressure correction, heat capacity',
+  },
+  {
+    key: 'zaman-1998',
+    reference:
+      'A.A. Zaman, T.W. McNally, A.L. Fricke, "Vapor pressure and boiling point elevation of slash pine black liquors: predictive models with statistical approach", Industrial & Engineering Chemistry Research 37 (1998) 275–283 (data range and slope change near 65 % solids)',
+  },
+  {
+    key: 'iapws-if97',
+    reference:
+      'IAPWS R7-97(2012), Revised Release on the IAPWS Industrial Formulation 1997 for the Thermodynamic Properties of Water and Steam (pure-water saturation temperature)',
+  },
+];
+
+function boilingPointRise(massFraction: number, pressure: number, warnings?: WarningSink): number {
+  checkAgainst(
+    MODEL_ID,
+    'massFraction',
+    massFraction,
+    'kg dry solids/kg liquor',
+    S_VALID_BPR,
+    S_LIMITS,
+    warnings,
+  );
+  const tWater = saturationTemperature(pressure);
+  checkAgainst(MODEL_ID, 'waterBoilingTemperature', tWater, 'K', T_VALID_WATER_BOILING, T_LIMITS, warnings);
+  const bpr =
+    frederickAtmosphericBoilingPointRise(massFraction) * frederickBoilingPointRisePressureFactor(tWater);
+  checkAgainst(MODEL_ID, 'temperature', tWater + bpr, 'K', T_VALID, T_LIMITS, warnings);
+  return bpr;
+}
+
+function checkEnthalpyInputs(massFraction: number, temperature: number, warnings: WarningSink): number {
+  checkAgainst(
+    MODEL_ID,
+    'massFraction',
+    massFraction,
+    'kg dry solids/kg liquor',
+    S_VALID_CP,
+    S_LIMITS,
+    warnings,
+  );
+  checkAgainst(MODEL_ID, 'temperature', temperature, 'K', T_VALID, T_LIMITS, warnings);
+  return temperature - KELVIN_OFFSET;
+}
+
+/**
+ * Kraft black liquor (Frederick 1997). boilingPoint = T_sat,IF97(p) + BPR(S, p); the BPR is zero
+ * for S = 0 and never negative. enthalpy = ∫ c_p dT from 0.01 °C, kJ → J.
+ */
+export const kraftBlackLiquor: LiquorModel = {
+  id: MODEL_ID,
+  name: 'Kraft black liquor',
+  kind: 'built-in',
+  compositionVariable: 'dry-solids mass fraction (kg dry solids per kg liquor)',
+  validity,
+  limits,
+  sources,
+  cautions: [
+    {
+      code: 'hot-alkaline-liquor-burns',
+      message:
+        'Hot black liquor is strongly alkaline (it contains sodium hydroxide and sodium sulfide) and causes severe chemical and thermal burns and eye damage; flashing liquor and hot spills add scalding.',
+    },
+    {
+      code: 'black-liquor-scaling',
+      message:
+        'Sodium salts (sodium carbonate and sulfate) crystallise from concentrated black liquor and scale heating surfaces; viscosity rises steeply with solids. This model gives no solubility limit: check the product solids against your liquor data.',
+    },
+    {
+      code: 'reduced-sulfur-gases',
+      message:
+        'Evaporator vapours and condensates from black liquor carry hydrogen sulfide and other reduced sulfur compounds that are toxic; they must be collected and treated.',
+    },
+  ],
+
+  boilingPoint(massFraction: number, pressure: number, warnings?: WarningSink): number {
+    const bpr = boilingPointRise(massFraction, pressure, warnings);
+    return saturationTemperature(pressure) + bpr;
+  },
+
+  boilingPointRise,
+
+  enthalpy(massFraction: number, temperature: number, warnings?: WarningSink): number {
+    const t = checkEnthalpyInputs(massFraction, temperature, warnings);
+    return blackLiquorEnthalpyKJPerKg(massFraction, t) * KJ;
+  },
+
+  heatCapacity(massFraction: number, temperature: number, warnings?: WarningSink): number {
+    const t = checkEnthalpyInputs(massFraction, temperature, warnings);
+    return blackLiquorHeatCapacityKJPerKgK(massFraction, t) * KJ;
+  },
+};
