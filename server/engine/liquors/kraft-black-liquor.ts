@@ -196,7 +196,12 @@ const sources: Citation[] = [
   },
 ];
 
-function boilingPointRise(massFraction: number, pressure: number, warnings?: WarningSink): number {
+/** Water boiling temperature at p (IF97) and the liquor's rise over it, both K. */
+function riseOverWater(
+  massFraction: number,
+  pressure: number,
+  warnings: WarningSink,
+): { waterBoilingTemperature: number; rise: number } {
   checkAgainst(
     MODEL_ID,
     'massFraction',
@@ -208,10 +213,10 @@ function boilingPointRise(massFraction: number, pressure: number, warnings?: War
   );
   const tWater = saturationTemperature(pressure);
   checkAgainst(MODEL_ID, 'waterBoilingTemperature', tWater, 'K', T_VALID_WATER_BOILING, T_LIMITS, warnings);
-  const bpr =
+  const rise =
     frederickAtmosphericBoilingPointRise(massFraction) * frederickBoilingPointRisePressureFactor(tWater);
-  checkAgainst(MODEL_ID, 'temperature', tWater + bpr, 'K', T_VALID, T_LIMITS, warnings);
-  return bpr;
+  checkAgainst(MODEL_ID, 'temperature', tWater + rise, 'K', T_VALID, T_LIMITS, warnings);
+  return { waterBoilingTemperature: tWater, rise };
 }
 
 function checkEnthalpyInputs(massFraction: number, temperature: number, warnings: WarningSink): number {
@@ -259,11 +264,13 @@ export const kraftBlackLiquor: LiquorModel = {
   ],
 
   boilingPoint(massFraction: number, pressure: number, warnings?: WarningSink): number {
-    const bpr = boilingPointRise(massFraction, pressure, warnings);
-    return saturationTemperature(pressure) + bpr;
+    const { waterBoilingTemperature, rise } = riseOverWater(massFraction, pressure, warnings);
+    return waterBoilingTemperature + rise;
   },
 
-  boilingPointRise,
+  boilingPointRise(massFraction: number, pressure: number, warnings?: WarningSink): number {
+    return riseOverWater(massFraction, pressure, warnings).rise;
+  },
 
   enthalpy(massFraction: number, temperature: number, warnings?: WarningSink): number {
     const t = checkEnthalpyInputs(massFraction, temperature, warnings);
