@@ -82,8 +82,13 @@ function main(): void {
       server.closeAllConnections();
     }, SHUTDOWN_TIMEOUT_MS);
     force.unref();
+    // Keep-alive connections become idle once their in-flight request is answered: close them then,
+    // instead of waiting for the keep-alive timeout.
+    const reaper = setInterval(() => server.closeIdleConnections(), 100);
+    reaper.unref();
     server.close(() => {
       clearTimeout(force);
+      clearInterval(reaper);
       sqlite.close();
       console.log('[shutdown] done');
       process.exit(0);
