@@ -33,6 +33,7 @@ import {
   SteamStateRequestSchema,
   SteamStateResponseSchema,
   StoredLiquorCreateSchema,
+  StoredLiquorListSchema,
   StoredLiquorSchema,
   StoredLiquorUploadSchema,
 } from '../../shared/contracts/index.js';
@@ -145,10 +146,10 @@ export function buildRegistry(): OpenAPIRegistry {
 
   registry.registerPath({
     method: 'post',
-    path: '/v1/liquors',
+    path: '/v1/stored-liquors',
     operationId: 'createStoredLiquor',
     tags: ['Liquors'],
-    summary: 'Store a liquor of your own (JSON definition, or a Dühring table uploaded as CSV)',
+    summary: 'Store a liquor of your own (JSON definition, or a Dühring table uploaded as CSV in multipart/form-data)',
     description:
       'Bad CSV rows are reported by line number in the problem’s `errors` (field `file:line 7`). ' +
       'The stored id can then be used as `liquor` in any calculation.',
@@ -180,7 +181,17 @@ export function buildRegistry(): OpenAPIRegistry {
 
   registry.registerPath({
     method: 'get',
-    path: '/v1/liquors/{id}',
+    path: '/v1/stored-liquors',
+    operationId: 'listStoredLiquors',
+    tags: ['Liquors'],
+    summary: 'The liquors stored by this account, with their definitions',
+    security,
+    responses: { 200: ok('Stored liquors', StoredLiquorListSchema), ...commonProblems },
+  });
+
+  registry.registerPath({
+    method: 'get',
+    path: '/v1/liquors/{liquorId}',
     operationId: 'getLiquor',
     tags: ['Liquors'],
     summary: 'One liquor model (built-in or stored)',
@@ -195,7 +206,7 @@ export function buildRegistry(): OpenAPIRegistry {
 
   registry.registerPath({
     method: 'delete',
-    path: '/v1/liquors/{id}',
+    path: '/v1/stored-liquors/{liquorId}',
     operationId: 'deleteStoredLiquor',
     tags: ['Liquors'],
     summary: 'Delete a stored liquor (built-in models cannot be deleted)',
@@ -210,7 +221,7 @@ export function buildRegistry(): OpenAPIRegistry {
 
   registry.registerPath({
     method: 'post',
-    path: '/v1/liquors/{id}/boiling-point',
+    path: '/v1/liquors/{liquorId}/boiling-point',
     operationId: 'postLiquorBoilingPoint',
     tags: ['Liquors'],
     summary: 'Boiling point and boiling-point rise of a liquor at a mass fraction and pressure',
@@ -232,7 +243,7 @@ export function buildRegistry(): OpenAPIRegistry {
 
   registry.registerPath({
     method: 'post',
-    path: '/v1/liquors/{id}/enthalpy',
+    path: '/v1/liquors/{liquorId}/enthalpy',
     operationId: 'postLiquorEnthalpy',
     tags: ['Liquors'],
     summary: 'Specific enthalpy (and heat capacity) of a liquor, steam-table datum',

@@ -156,13 +156,10 @@ export const WarningSchema = z
   .object({
     code: z.string().meta({ description: 'Stable kebab-case code', example: 'model-extrapolated' }),
     message: z.string(),
-    field: z
-      .string()
-      .optional()
-      .meta({
-        description: 'Request field the warning is about (dotted path)',
-        example: 'product.massFraction',
-      }),
+    field: z.string().optional().meta({
+      description: 'Request field the warning is about (dotted path)',
+      example: 'product.massFraction',
+    }),
     validRange: RangeSchema.optional(),
   })
   .meta({

@@ -183,13 +183,9 @@ export const MAX_EFFECTS = 12;
 export const FeedArrangementSchema = z
   .union([
     z.enum(['forward', 'backward', 'parallel']),
-    z
-      .array(z.int().min(1).max(MAX_EFFECTS))
-      .min(1)
-      .max(MAX_EFFECTS)
-      .meta({
-        description: 'Mixed order: the effect numbers (1 = steam-heated) in the order the liquor passes them',
-      }),
+    z.array(z.int().min(1).max(MAX_EFFECTS)).min(1).max(MAX_EFFECTS).meta({
+      description: 'Mixed order: the effect numbers (1 = steam-heated) in the order the liquor passes them',
+    }),
   ])
   .meta({ id: 'FeedArrangement' });
 

@@ -52,91 +52,140 @@ export const LiquorListSchema = z
 export type LiquorList = z.infer<typeof LiquorListSchema>;
 
 export const LiquorIdParamsSchema = z.object({
-  id: IdSchema.meta({
+  liquorId: IdSchema.meta({
     description: 'Built-in liquor id or the id of a liquor stored by this account',
     example: 'sodium-hydroxide',
   }),
 });
 
-/** One measured point of a Dühring table: the solution and pure water boiling at the same pressure. */
+const degC = (description: string) =>
+  z
+    .number()
+    .gt(-273.15)
+    .lt(2000)
+    .meta({ description: `${description}, °C`, 'x-unit': 'degC' });
+const massFractionNumber = z
+  .number()
+  .min(0)
+  .lt(1)
+  .meta({ description: 'Mass fraction of solute, 0 ≤ x < 1', 'x-unit': '1' });
+
+/** One reading of a Dühring line: both boiling points at the same pressure. */
 export const DuhringPointSchema = z
   .object({
-    massFraction: z
-      .number()
-      .min(0)
-      .lt(1)
-      .meta({ description: 'Mass fraction of solute, 0–1', 'x-unit': '1' }),
-    waterBoilingPoint: z
-      .number()
-      .gt(0)
-      .lt(374)
-      .meta({
-        description: 'Boiling point of pure water at the pressure of the measurement, °C',
-        'x-unit': 'degC',
-      }),
-    solutionBoilingPoint: z
-      .number()
-      .gt(0)
-      .lt(500)
-      .meta({ description: 'Boiling point of the solution at that same pressure, °C', 'x-unit': 'degC' }),
+    waterBoilingPoint: degC('Boiling point of pure water at the pressure of the reading'),
+    solutionBoilingPoint: degC('Boiling point of the solution at that same pressure'),
   })
+  .strict()
   .meta({ id: 'DuhringPoint' });
+
+/** One Dühring line: the readings at one concentration (water boiling points increasing). */
+export const DuhringLineSchema = z
+  .object({
+    massFraction: massFractionNumber,
+    points: z.array(DuhringPointSchema).min(2).max(50),
+  })
+  .strict()
+  .meta({ id: 'DuhringLine' });
 
 export const PolynomialSchema = z
   .array(z.number())
   .min(1)
-  .max(8)
-  .meta({ description: 'Coefficients c0, c1, … of Σ cᵢ·xⁱ in the mass fraction x' });
+  .max(9)
+  .meta({ description: 'Coefficients c0, c1, … (ascending powers) of Σ cᵢ·xⁱ in the mass fraction x' });
 
-export const BoilingPointRiseDefinitionSchema = z.union([
-  z
-    .object({ polynomial: PolynomialSchema })
-    .strict()
-    .meta({ description: 'Boiling-point rise in K as a polynomial in x, independent of pressure' }),
-  z
-    .object({ duhring: z.array(DuhringPointSchema).min(2).max(1000) })
-    .strict()
-    .meta({
-      description:
-        "Dühring table: at each mass fraction at least two points; the solution's boiling point is taken as " +
-        'linear in the water boiling point at each mass fraction (Dühring’s rule) and the lines are interpolated in x',
-    }),
-]);
-
-export const HeatCapacityDefinitionSchema = z
-  .object({ polynomial: PolynomialSchema })
+export const EnthalpyRowSchema = z
+  .object({
+    massFraction: massFractionNumber,
+    points: z
+      .array(
+        z
+          .object({
+            temperature: degC('Temperature'),
+            enthalpy: z
+              .number()
+              .meta({ description: 'Specific enthalpy, kJ/kg, steam-table datum', 'x-unit': 'kJ/kg' }),
+          })
+          .strict(),
+      )
+      .min(2)
+      .max(50),
+  })
   .strict()
-  .meta({
-    description: 'Isobaric heat capacity in kJ/(kg·K) as a polynomial in x, independent of temperature',
-  });
+  .meta({ id: 'EnthalpyRow' });
+
+const Range01 = z
+  .object({ min: z.number().min(0).max(1), max: z.number().min(0).max(1) })
+  .strict()
+  .refine((r) => r.min < r.max, { error: 'max must exceed min', path: ['max'] });
+const RangeDegC = z
+  .object({ min: degC('Lowest temperature'), max: degC('Highest temperature') })
+  .strict()
+  .refine((r) => r.min < r.max, { error: 'max must exceed min', path: ['max'] });
 
 export const CustomLiquorDefinitionSchema = z
   .object({
-    name: z.string().trim().min(1).max(120),
-    compositionVariable: z
-      .string()
-      .max(120)
-      .optional()
-      .meta({ example: 'mass fraction of dissolved solids' }),
-    massFractionRange: z
-      .object({ min: z.number().min(0).max(1), max: z.number().min(0).max(1) })
-      .refine((r) => r.min < r.max, { error: 'min must be below max', path: ['max'] })
+    name: z.string().trim().min(1).max(100),
+    compositionVariable: z.string().max(120).optional().meta({ example: 'dry-solids mass fraction' }),
+    boilingPoint: z
+      .object({ duhring: z.array(DuhringLineSchema).min(1).max(50) })
+      .strict()
       .optional()
       .meta({
-        description: 'Mass fraction range of the data (default: that of the Dühring table, or 0–0.5)',
+        description:
+          'Dühring table (give this or boilingPointRise): per concentration (increasing), readings of water and solution boiling ' +
+          'points at the same pressure. The solution boiling point is linear in that of water at each x (Dühring’s rule); ' +
+          'the lines are interpolated in x, and towards pure water below the lowest concentration',
       }),
-    boilingPointRise: BoilingPointRiseDefinitionSchema,
-    heatCapacity: HeatCapacityDefinitionSchema,
+    boilingPointRise: z.object({ polynomial: PolynomialSchema }).strict().optional().meta({
+      description:
+        'Boiling-point rise in K as a polynomial in x, independent of pressure (give this or boilingPoint)',
+    }),
+    heatCapacity: z.object({ polynomial: PolynomialSchema }).strict().optional().meta({
+      description:
+        'Heat capacity in kJ/(kg·K) as a polynomial in x; enthalpy h = c_p(x)·(T − 0.01 °C) on the steam-table datum, heat of dilution neglected',
+    }),
+    enthalpy: z
+      .object({ table: z.array(EnthalpyRowSchema).min(1).max(50) })
+      .strict()
+      .optional()
+      .meta({ description: 'Measured enthalpies per concentration, kJ/kg; replace the c_p-based enthalpy' }),
+    validity: z
+      .object({ massFraction: Range01, temperature: RangeDegC.optional() })
+      .strict()
+      .optional()
+      .meta({
+        description:
+          'Range of the data behind a polynomial definition (not for Dühring tables, whose range is the table)',
+      }),
   })
   .strict()
+  .superRefine((d, ctx) => {
+    const given = (d.boilingPoint ? 1 : 0) + (d.boilingPointRise ? 1 : 0);
+    if (given !== 1) {
+      ctx.addIssue({
+        code: 'custom',
+        path: [given === 0 ? 'boilingPointRise' : 'boilingPoint'],
+        message: 'give exactly one of boilingPoint (Dühring table) or boilingPointRise (polynomial)',
+      });
+    }
+    if (d.boilingPoint && d.validity) {
+      ctx.addIssue({
+        code: 'custom',
+        path: ['validity'],
+        message: 'a Dühring table defines its own range; omit validity',
+      });
+    }
+  })
   .meta({
     id: 'CustomLiquorDefinition',
     description:
-      'A liquor defined by its own data: a boiling-point rise (polynomial or Dühring table) and a heat capacity.',
+      'A liquor defined by its own data: a boiling point (Dühring table) or boiling-point rise (polynomial), and a heat capacity or enthalpy table. Units: °C, kJ/kg, kJ/(kg·K), K for the rise.',
     example: {
       name: 'Tannery effluent concentrate (invented)',
       boilingPointRise: { polynomial: [0, 4.2, 18.5] },
       heatCapacity: { polynomial: [4.18, -2.6] },
+      validity: { massFraction: { min: 0, max: 0.4 } },
     },
   });
 export type CustomLiquorDefinition = z.infer<typeof CustomLiquorDefinitionSchema>;
@@ -202,26 +251,40 @@ export const EnthalpyResponseSchema = z
   .meta({ id: 'EnthalpyResponse' });
 export type EnthalpyResponse = z.infer<typeof EnthalpyResponseSchema>;
 
-export const StoredLiquorCreateSchema = CustomLiquorDefinitionSchema.extend({
-  id: IdSchema.optional().meta({
-    description: 'Id to store it under (default: from the name); must not be a built-in id',
-  }),
-})
+export const StoredLiquorCreateSchema = z
+  .object({
+    id: IdSchema.optional().meta({
+      description: 'Id to store it under (default: the slug of the name); must not be a built-in id',
+    }),
+    definition: CustomLiquorDefinitionSchema,
+  })
   .strict()
   .meta({
     id: 'StoredLiquorCreate',
     example: {
       id: 'north-mill-spent-wash',
-      name: 'North Mill spent wash (invented)',
-      boilingPointRise: {
-        duhring: [
-          { massFraction: 0.2, waterBoilingPoint: 50, solutionBoilingPoint: 51.2 },
-          { massFraction: 0.2, waterBoilingPoint: 100, solutionBoilingPoint: 101.5 },
-          { massFraction: 0.45, waterBoilingPoint: 50, solutionBoilingPoint: 54.1 },
-          { massFraction: 0.45, waterBoilingPoint: 100, solutionBoilingPoint: 105.0 },
-        ],
+      definition: {
+        name: 'North Mill spent wash (invented)',
+        boilingPoint: {
+          duhring: [
+            {
+              massFraction: 0.2,
+              points: [
+                { waterBoilingPoint: 50, solutionBoilingPoint: 51.2 },
+                { waterBoilingPoint: 100, solutionBoilingPoint: 101.5 },
+              ],
+            },
+            {
+              massFraction: 0.45,
+              points: [
+                { waterBoilingPoint: 50, solutionBoilingPoint: 54.1 },
+                { waterBoilingPoint: 100, solutionBoilingPoint: 105.0 },
+              ],
+            },
+          ],
+        },
+        heatCapacity: { polynomial: [4.18, -2.4] },
       },
-      heatCapacity: { polynomial: [4.18, -2.4] },
     },
   });
 export type StoredLiquorCreate = z.infer<typeof StoredLiquorCreateSchema>;
@@ -237,17 +300,20 @@ export const StoredLiquorSchema = z
   .meta({ id: 'StoredLiquor' });
 export type StoredLiquor = z.infer<typeof StoredLiquorSchema>;
 
+export const StoredLiquorListSchema = z
+  .object({ liquors: z.array(StoredLiquorSchema) })
+  .meta({ id: 'StoredLiquorList' });
+export type StoredLiquorList = z.infer<typeof StoredLiquorListSchema>;
+
 /** Multipart form for a Dühring table uploaded as CSV (columns massFraction, waterBoilingPoint, solutionBoilingPoint). */
 export const StoredLiquorUploadSchema = z
   .object({
     id: IdSchema.optional(),
     name: z.string().trim().min(1).max(120),
-    heatCapacity: z
-      .string()
-      .meta({
-        description: 'Heat-capacity polynomial coefficients in kJ/(kg·K), comma-separated',
-        example: '4.18,-2.4',
-      }),
+    heatCapacity: z.string().meta({
+      description: 'Heat-capacity polynomial coefficients in kJ/(kg·K), comma-separated',
+      example: '4.18,-2.4',
+    }),
     file: z.string().meta({
       format: 'binary',
       description:

@@ -1,0 +1,420 @@
+/**
+ * The boundary between HTTP and the engine: validate a request against its zod contract, convert
+ * quantity inputs to SI, and turn every kind of failure into an RFC 9457 problem:
+ *
+ * - zod failure → 422 'validation-failed', one `errors` entry per issue with the dotted request
+ *   path (`feed.massFraction`, `overallHeatTransferCoefficients[2]`), the value and, where the
+ *   contract has one, the valid range in display units;
+ * - UnitError (a string quantity in a unit we do not know, or of the wrong dimension) → 422
+ *   'validation-failed' naming the field and the accepted units;
+ * - EngineRangeError → 422 'out-of-range' with the engine's field mapped back to the request
+ *   path (the route knows which request field fed which engine input), the value and range in
+ *   display units;
+ * - EngineInputError → 422 'validation-failed' naming the field; EngineNoSolutionError → 422
+ *   'no-solution'.
+ *
+ * A final guard ({@link sendCalculation}) refuses to send a 2xx body holding NaN or ±Infinity.
+ */
+import type { Response } from 'express';
+import type { z } from 'zod';
+import {
+  defaultUnits,
+  describeRange,
+  inRange,
+  type QuantityInput,
+  type QuantityKind,
+  type QuantitySpec,
+  type ValidRangeDto,
+  type WarningDto,
+} from '../../shared/contracts/index.js';
+import { EngineInputError, EngineNoSolutionError, EngineRangeError } from '../engine/errors.js';
+import { KELVIN_OFFSET, type EngineWarning } from '../engine/types.js';
+import { problem, ProblemError, type ProblemFieldError } from './problem.js';
+
+// Until server/units lands: strings with units are refused with a UnitError-like error.
+class PendingUnitError extends Error {
+  constructor(
+    readonly field: string,
+    message: string,
+  ) {
+    super(message);
+  }
+}
+function parseWithUnit(text: string, kind: QuantityKind, field: string): number {
+  throw new PendingUnitError(field, `${field}: "${text}" is not a ${kind} in a recognised unit`);
+}
+function isUnitError(err: unknown): err is PendingUnitError {
+  return err instanceof PendingUnitError;
+}
+
+/** SI value → display (default) unit of its kind. */
+export function siToDisplay(valueSI: number, kind: QuantityKind): number {
+  switch (kind) {
+    case 'temperature':
+      return valueSI - KELVIN_OFFSET;
+    case 'pressure':
+    case 'specificEnthalpy':
+    case 'specificHeatCapacity':
+    case 'specificEntropy':
+    case 'power':
+      return valueSI / 1000;
+    default:
+      return valueSI;
+  }
+}
+
+/** Display (default) unit of its kind → SI. */
+export function displayToSI(value: number, kind: QuantityKind): number {
+  switch (kind) {
+    case 'temperature':
+      return value + KELVIN_OFFSET;
+    case 'pressure':
+    case 'specificEnthalpy':
+    case 'specificHeatCapacity':
+    case 'specificEntropy':
+    case 'power':
+      return value * 1000;
+    default:
+      return value;
+  }
+}
+
+const BARE_NUMBER = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
+
+/** A string quantity → SI: a bare number is in the default unit; anything else goes to server/units. */
+function parseQuantityString(input: string, kind: QuantityKind, field: string): number {
+  const text = input.trim();
+  if (BARE_NUMBER.test(text)) return displayToSI(Number(text), kind);
+  return parseWithUnit(text, kind, field);
+}
+
+/** Dotted request path of a zod issue path: ['effects', 2, 'area'] → "effects[2].area". */
+export function fieldPath(path: readonly PropertyKey[], prefix = ''): string {
+  let out = prefix;
+  for (const key of path) {
+    if (typeof key === 'number') out += `[${key}]`;
+    else out += out === '' ? String(key) : `.${String(key)}`;
+  }
+  return out;
+}
+
+function valueAt(input: unknown, path: readonly PropertyKey[]): unknown {
+  let v: unknown = input;
+  for (const key of path) {
+    if (v === null || typeof v !== 'object') return undefined;
+    v = (v as Record<PropertyKey, unknown>)[key];
+  }
+  return v;
+}
+
+/** JSON-safe echo of a received value (long strings and big objects are shortened). */
+function echo(value: unknown): unknown {
+  if (value === undefined) return undefined;
+  if (typeof value === 'string') return value.length > 80 ? `${value.slice(0, 80)}…` : value;
+  if (typeof value === 'number') return Number.isFinite(value) ? value : String(value);
+  if (typeof value === 'boolean' || value === null) return value;
+  return Array.isArray(value) ? '(array)' : '(object)';
+}
+
+type Issue = z.core.$ZodIssue;
+
+/** For a failed union, the issues of the branch that got furthest (deepest path, then fewest issues). */
+function bestUnionBranch(branches: Issue[][]): Issue[] {
+  let best: Issue[] | undefined;
+  let bestScore = -Infinity;
+  for (const issues of branches) {
+    const typeOnlyAtRoot = issues.every((i) => i.code === 'invalid_type' && i.path.length === 0);
+    const depth = Math.max(0, ...issues.map((i) => i.path.length));
+    const score = (typeOnlyAtRoot ? -100 : 0) + depth * 10 - issues.length;
+    if (score > bestScore) {
+      bestScore = score;
+      best = issues;
+    }
+  }
+  return best ?? [];
+}
+
+function issueToErrors(
+  issue: Issue,
+  basePath: readonly PropertyKey[],
+  input: unknown,
+  prefix: string,
+): ProblemFieldError[] {
+  const path = [...basePath, ...issue.path];
+  if (issue.code === 'invalid_union' && issue.errors.length > 0) {
+    return bestUnionBranch(issue.errors).flatMap((i) => issueToErrors(i, path, input, prefix));
+  }
+  if (issue.code === 'unrecognized_keys') {
+    return issue.keys.map((key) => ({
+      field: fieldPath([...path, key], prefix),
+      message: 'is not a field of this request',
+    }));
+  }
+  const value = valueAt(input, path);
+  const entry: ProblemFieldError = {
+    field: fieldPath(path, prefix) || '(body)',
+    message: issue.code === 'invalid_type' && value === undefined ? 'is required' : issue.message,
+  };
+  const shown = echo(value);
+  if (shown !== undefined) entry.value = shown;
+  const range = (issue as { params?: { validRange?: ValidRangeDto } }).params?.validRange;
+  if (range) {
+    entry.validRange = { min: range.min ?? -Infinity, max: range.max ?? Infinity, unit: range.unit };
+  } else if (issue.code === 'too_small' && typeof issue.minimum === 'number' && issue.origin === 'number') {
+    entry.validRange = { min: issue.minimum, max: Infinity, unit: '' };
+  } else if (issue.code === 'too_big' && typeof issue.maximum === 'number' && issue.origin === 'number') {
+    entry.validRange = { min: -Infinity, max: issue.maximum, unit: '' };
+  }
+  return [entry];
+}
+
+/** The problem for a failed zod parse. */
+export function zodProblem(error: z.ZodError, input: unknown, prefix = ''): ProblemError {
+  const errors = error.issues.flatMap((i) => issueToErrors(i, [], input, prefix)).slice(0, 50);
+  const first = errors[0];
+  return problem(
+    'validation-failed',
+    first
+      ? `${first.field}: ${first.message}${errors.length > 1 ? ` (and ${errors.length - 1} more)` : ''}`
+      : undefined,
+    { errors },
+  );
+}
+
+/** Parses `input` with `schema`, or throws a 422 'validation-failed' ProblemError. */
+export function validate<S extends z.ZodType>(schema: S, input: unknown, prefix = ''): z.output<S> {
+  const result = schema.safeParse(input);
+  if (!result.success) throw zodProblem(result.error, input, prefix);
+  return result.data;
+}
+
+/** Engine field → request field, plus the quantity kind to show its value and range in. */
+export interface FieldMapping {
+  path: string;
+  kind?: QuantityKind;
+}
+export type FieldMap = Record<string, string | FieldMapping>;
+
+const SI_KIND_BY_UNIT: Record<string, QuantityKind> = {
+  Pa: 'pressure',
+  K: 'temperature',
+  'J/kg': 'specificEnthalpy',
+  'J/(kg·K)': 'specificHeatCapacity',
+  'J/(kg*K)': 'specificHeatCapacity',
+  W: 'power',
+  'kg/s': 'massFlow',
+  'm²': 'area',
+  m2: 'area',
+  'W/(m²·K)': 'heatTransferCoefficient',
+  'W/(m2*K)': 'heatTransferCoefficient',
+  m: 'length',
+  'kg/kg': 'massFraction',
+};
+
+function mapField(map: FieldMap, engineField: string, siUnit: string): FieldMapping {
+  const direct = map[engineField];
+  const guessKind = (): QuantityKind | undefined => {
+    const kind = SI_KIND_BY_UNIT[siUnit];
+    // Temperature differences (superheat, BPR, ΔT) are in K in both SI and display units.
+    if (kind === 'temperature' && /superheat|subcool|difference|rise|delta/i.test(engineField)) {
+      return 'temperatureDifference';
+    }
+    return kind;
+  };
+  if (typeof direct === 'string') return { path: direct, kind: guessKind() };
+  if (direct) return { path: direct.path, kind: direct.kind ?? guessKind() };
+  // Longest mapped prefix: "feed" → "feed", so "feed.massFraction" keeps its tail.
+  const prefixes = Object.keys(map)
+    .filter((k) => engineField.startsWith(`${k}.`) || engineField.startsWith(`${k}[`))
+    .sort((a, b) => b.length - a.length);
+  const prefix = prefixes[0];
+  if (prefix !== undefined) {
+    const m = map[prefix]!;
+    const p = typeof m === 'string' ? m : m.path;
+    return { path: p + engineField.slice(prefix.length), kind: guessKind() };
+  }
+  return { path: engineField, kind: guessKind() };
+}
+
+function displayNumber(valueSI: number, kind: QuantityKind | undefined): number {
+  if (!kind || !Number.isFinite(valueSI)) return valueSI;
+  return roundForDisplay(siToDisplay(valueSI, kind));
+}
+
+/** 12 significant digits: hides binary noise like 0.30000000000000004 in messages and ranges. */
+function roundForDisplay(v: number): number {
+  return Number.isFinite(v) ? Number(v.toPrecision(12)) : v;
+}
+
+function displayRange(
+  range: { min: number; max: number; unit: string },
+  kind: QuantityKind | undefined,
+): { min: number; max: number; unit: string } {
+  if (!kind) return range;
+  return {
+    min: displayNumber(range.min, kind),
+    max: displayNumber(range.max, kind),
+    unit: defaultUnits[kind].symbol,
+  };
+}
+
+/** The problem for an engine error (or undefined if `err` is not one). */
+export function engineProblem(err: unknown, map: FieldMap = {}): ProblemError | undefined {
+  if (err instanceof EngineRangeError) {
+    const { path, kind } = mapField(map, err.field, err.validRange.unit);
+    const range = displayRange(err.validRange, kind);
+    const value = displayNumber(err.value, kind);
+    const unit = kind ? defaultUnits[kind].symbol : err.validRange.unit;
+    const message = `${path} = ${Number.isFinite(value) ? value : String(value)} ${unit} is outside the valid range ${range.min} to ${range.max} ${unit}`;
+    return problem('out-of-range', `${message}. ${err.message}`, {
+      errors: [{ field: path, message, value: echo(value), validRange: range }],
+    });
+  }
+  if (err instanceof EngineInputError) {
+    const { path } = mapField(map, err.field, '');
+    return problem('validation-failed', err.message, { errors: [{ field: path, message: err.message }] });
+  }
+  if (err instanceof EngineNoSolutionError) {
+    return problem('no-solution', err.message);
+  }
+  return undefined;
+}
+
+/** Converts any known error to a ProblemError; rethrows the unknown (→ 500 from the app). */
+export function toProblem(err: unknown, map: FieldMap = {}): ProblemError {
+  if (err instanceof ProblemError) return err;
+  const engine = engineProblem(err, map);
+  if (engine) return engine;
+  if (isUnitError(err)) {
+    return problem('validation-failed', err.message, {
+      errors: [{ field: err.field, message: err.message }],
+    });
+  }
+  throw err;
+}
+
+/** Runs an engine calculation, turning its typed errors into problems with request field names. */
+export function calculate<T>(map: FieldMap, run: () => T): T {
+  try {
+    return run();
+  } catch (err) {
+    throw toProblem(err, map);
+  }
+}
+
+/**
+ * A quantity input → SI. Numbers are in the default unit of the kind (already range-checked by
+ * the contract); strings carry a unit and are converted by server/units, then range-checked
+ * against the same contract range (422 'validation-failed' with the range in display units).
+ */
+export function readQuantity(input: QuantityInput, spec: QuantitySpec, field: string): number {
+  if (typeof input === 'number') return displayToSI(input, spec.kind);
+  let si: number;
+  try {
+    si = parseQuantityString(input, spec.kind, field);
+  } catch (err) {
+    throw toProblem(err);
+  }
+  const display = siToDisplay(si, spec.kind);
+  if (!inRange(spec, display)) {
+    const unit = defaultUnits[spec.kind].symbol;
+    throw problem(
+      'validation-failed',
+      `${field}: "${input}" is ${roundForDisplay(display)} ${unit}; it must be ${describeRange(spec)}`,
+      {
+        errors: [
+          {
+            field,
+            message: `must be ${describeRange(spec)}`,
+            value: input,
+            validRange: { min: spec.min ?? -Infinity, max: spec.max ?? Infinity, unit },
+          },
+        ],
+      },
+    );
+  }
+  return si;
+}
+
+/** Optional quantity → SI or undefined. */
+export function readOptional(
+  input: QuantityInput | undefined,
+  spec: QuantitySpec,
+  field: string,
+): number | undefined {
+  return input === undefined ? undefined : readQuantity(input, spec, field);
+}
+
+/** Engine warnings → API warnings: request field names, ranges in display units. */
+export function warningsOut(warnings: readonly EngineWarning[], map: FieldMap = {}): WarningDto[] {
+  return warnings.map((w) => {
+    const mapped = w.field === undefined ? undefined : mapField(map, w.field, w.validRange?.unit ?? '');
+    const out: WarningDto = { code: w.code, message: w.message };
+    if (mapped) out.field = mapped.path;
+    if (w.validRange) {
+      const r = displayRange(w.validRange, mapped?.kind ?? SI_KIND_BY_UNIT[w.validRange.unit]);
+      out.validRange = { min: finiteOrNull(r.min), max: finiteOrNull(r.max), unit: r.unit };
+    }
+    return out;
+  });
+}
+
+function finiteOrNull(v: number): number | null {
+  return Number.isFinite(v) ? v : null;
+}
+
+/** Path of the first non-finite number in a JSON-bound value, or undefined if there is none. */
+export function findNonFinite(value: unknown, path = ''): string | undefined {
+  if (typeof value === 'number') return Number.isFinite(value) ? undefined : path || '(root)';
+  if (Array.isArray(value)) {
+    for (let i = 0; i < value.length; i++) {
+      const hit = findNonFinite(value[i], `${path}[${i}]`);
+      if (hit) return hit;
+    }
+    return undefined;
+  }
+  if (value !== null && typeof value === 'object') {
+    for (const [k, v] of Object.entries(value)) {
+      const hit = findNonFinite(v, path ? `${path}.${k}` : k);
+      if (hit) return hit;
+    }
+  }
+  return undefined;
+}
+
+/**
+ * The last step of every calculation route: refuses (422 'no-solution') to send a body holding
+ * NaN or ±Infinity, which JSON would silently turn into null.
+ */
+export function sendCalculation(res: Response, body: unknown, status = 200): void {
+  const bad = findNonFinite(body);
+  if (bad) {
+    throw problem(
+      'no-solution',
+      `The calculation produced a non-finite number (${bad}); no result is returned.`,
+    );
+  }
+  res.status(status).json(body);
+}
+
+/** Rounds to 12 significant digits for output (keeps JSON free of binary noise). */
+export function r(value: number): number {
+  return roundForDisplay(value);
+}
+
+export function display(valueSI: number, kind: QuantityKind): number {
+  return roundForDisplay(siToDisplay(valueSI, kind));
+}
+
+/** One model used by a calculation, for `provenance`. */
+export interface ModelRef {
+  id: string;
+  source: string;
+}
+
+/** `provenance` of a calculation response: engine version and every model used (deduplicated). */
+export function provenance(engineVersion: string, models: readonly ModelRef[]) {
+  const seen = new Set<string>();
+  const unique = models.filter((m) => (seen.has(m.id) ? false : (seen.add(m.id), true)));
+  return { engineVersion, models: unique };
+}
