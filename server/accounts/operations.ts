@@ -37,7 +37,7 @@ export const operations = {
   'steam.state': {
     scope: 'steam',
     units: 1,
-    method: 'GET',
+    method: 'POST',
     path: '/v1/steam/state',
     summary: 'Water or steam state at (p, T) or (p, h) (IAPWS-IF97)',
   },
