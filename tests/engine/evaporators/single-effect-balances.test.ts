@@ -46,7 +46,9 @@ const caseArb = fc.record({
   f: fc.double({ min: 0, max: 0.1, noNaN: true }),
 });
 
-function inputOf(c: fc.RecordValue<typeof caseArb>): SingleEffectDesignInput {
+type Case = typeof caseArb extends fc.Arbitrary<infer T> ? T : never;
+
+function inputOf(c: Case): SingleEffectDesignInput {
   // steam condensing dTsteam above the water boiling point at the body pressure (≥ 15 K: above any BPR here)
   const tb = 273.15 + 100 * Math.pow(c.pBody / 101325, 0.25); // rough guess of T_sat, only to place the steam
   return {

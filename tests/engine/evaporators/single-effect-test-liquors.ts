@@ -43,23 +43,6 @@ export function testLiquor(o: TestLiquorOptions): LiquorModel {
 }
 
 /**
- * Geankoplis, Transport Processes and Separation Process Principles, 4th ed., Example 8.4-1
- * (from memory): a dilute salt solution whose BPR is neglected and whose heat capacity is
- * c_p = 4.14 kJ/(kg·K). The book takes the liquor's boiling point T1 as the enthalpy datum
- * (h_L = 0, H_V = λ at T1). The same differences result on the steam-table datum with
- * h(T) = h_f,water(T1) + c_p·(T − T1); h_f(T1) = 418 990.7 J/kg at 101.325 kPa is from
- * tests/fixtures/single-effect-iapws.json (python3-iapws).
- */
-export function geankoplisSaltSolution(hfAtT1: number, t1: number): LiquorModel {
-  const cp = 4140;
-  return testLiquor({
-    id: 'geankoplis-8-4-1-salt',
-    bpr: () => 0,
-    enthalpy: (_x, t) => hfAtT1 + cp * (t - t1),
-  });
-}
-
-/**
  * A liquor that boils at a fixed rise over water, as a user reads it from a Dühring chart for
  * one product concentration, and whose enthalpies are given as overrides. Used to check the
  * engine's chain with a book's own chart readings.

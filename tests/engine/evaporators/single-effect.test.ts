@@ -6,7 +6,8 @@ import {
   type SingleEffectDesignInput,
 } from '../../../server/engine/evaporators/single-effect.js';
 import { EngineInputError, EngineNoSolutionError, EngineRangeError } from '../../../server/engine/errors.js';
-import { chartReadingLiquor, geankoplisSaltSolution, invariantLiquor } from './single-effect-test-liquors.js';
+import { createCustomLiquor } from '../../../server/engine/liquors/custom.js';
+import { chartReadingLiquor, invariantLiquor } from './single-effect-test-liquors.js';
 
 /** Reference water/steam values generated offline by tests/fixtures/single-effect-iapws.py (python3-iapws). */
 const iapws = JSON.parse(
@@ -30,9 +31,15 @@ describe('designSingleEffect: Geankoplis (4th ed.) Example 8.4-1, salt solution,
   // 101.325 kPa; saturated steam 143.3 kPa; U = 1704 W/(m²·K); c_p = 4.14 kJ/(kg·K).
   // Book answers (from memory): L = 6048 kg/h, V = 3024 kg/h, S = 4108 kg/h, A = 149.3 m².
   // The book reads λ from its steam table at 383.2 K and 373.2 K (rounded to 0.1 K), so
-  // ±0.5 % on S and A is what its table readings justify.
+  // ±0.5 % on S and A is what its table readings justify. Liquor: a custom polynomial liquor
+  // (zero BPR, c_p = 4.14 kJ/(kg·K)); see also single-effect-textbook.test.ts.
   const atm = sat(101325);
-  const liquor = geankoplisSaltSolution(atm.hf, atm.temperature);
+  const liquor = createCustomLiquor({
+    name: 'Dilute salt solution',
+    boilingPointRise: { polynomial: [0] },
+    heatCapacity: { polynomial: [4140] },
+    validity: { massFraction: { min: 0, max: 0.05 } },
+  });
   const input: SingleEffectDesignInput = {
     liquor,
     feed: { massFlow: 9072 * PER_HOUR, massFraction: 0.01, temperature: 311.0 },
@@ -57,6 +64,8 @@ describe('designSingleEffect: Geankoplis (4th ed.) Example 8.4-1, salt solution,
     expect(r.temperatureDifference).toBeCloseTo(sat(143.3e3).temperature - atm.temperature, 6);
     // latent heat h_g − h_f at 143.3 kPa from python3-iapws (book table: 2230 kJ/kg)
     expect(rel(r.steam.latentHeat, sat(143.3e3).hg - sat(143.3e3).hf)).toBeLessThan(1e-8);
+    // vapour leaves saturated when there is no BPR: h_g(101.325 kPa), python3-iapws
+    expect(rel(r.vapor.enthalpy, atm.hg)).toBeLessThan(1e-8);
   });
 });
 
