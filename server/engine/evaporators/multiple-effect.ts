@@ -696,7 +696,7 @@ export function solveMultipleEffect(input: MultipleEffectInput): MultipleEffectR
     if (!ok) {
       throw new EngineNoSolutionError(
         design
-          ? 'No physical solution: the balances need a negative flow (a bleed larger than the vapour an effect makes, or an effect that would have to condense vapour)'
+          ? 'No physical solution: the balances need a negative flow (a bleed larger than the vapour an effect makes, or an effect whose heat cannot even bring the liquor it receives to its boiling point, e.g. a cold feed with little evaporation per effect)'
           : 'No physical solution: the given areas would evaporate more than the feed can give (or need a negative flow)',
         { iterations: iter, reason: 'negative-flow' },
       );
