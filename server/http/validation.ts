@@ -29,22 +29,31 @@ import {
 } from '../../shared/contracts/index.js';
 import { EngineInputError, EngineNoSolutionError, EngineRangeError } from '../engine/errors.js';
 import { KELVIN_OFFSET, type EngineWarning } from '../engine/types.js';
+import { parseQuantity, UnitError, type QuantityKind as UnitsKind } from '../units/index.js';
 import { problem, ProblemError, type ProblemFieldError } from './problem.js';
 
-// Until server/units lands: strings with units are refused with a UnitError-like error.
-class PendingUnitError extends Error {
-  constructor(
-    readonly field: string,
-    message: string,
-  ) {
-    super(message);
-  }
-}
+/** Our quantity kinds → the kinds of server/units. */
+const UNITS_KIND: Record<QuantityKind, UnitsKind> = {
+  temperature: 'temperature',
+  temperatureDifference: 'temperatureDifference',
+  pressure: 'pressure',
+  massFlow: 'massFlow',
+  specificEnthalpy: 'specificEnthalpy',
+  specificHeatCapacity: 'heatCapacity',
+  specificEntropy: 'heatCapacity',
+  power: 'power',
+  area: 'area',
+  heatTransferCoefficient: 'heatTransferCoefficient',
+  massFraction: 'massFraction',
+  length: 'length',
+  fraction: 'massFraction',
+};
+
 function parseWithUnit(text: string, kind: QuantityKind, field: string): number {
-  throw new PendingUnitError(field, `${field}: "${text}" is not a ${kind} in a recognised unit`);
+  return parseQuantity(text, UNITS_KIND[kind], field);
 }
-function isUnitError(err: unknown): err is PendingUnitError {
-  return err instanceof PendingUnitError;
+function isUnitError(err: unknown): err is UnitError {
+  return err instanceof UnitError;
 }
 
 /** SI value → display (default) unit of its kind. */
@@ -286,8 +295,15 @@ export function toProblem(err: unknown, map: FieldMap = {}): ProblemError {
   const engine = engineProblem(err, map);
   if (engine) return engine;
   if (isUnitError(err)) {
+    const accepted = `accepted units: ${err.acceptedUnits.join(', ')}`;
     return problem('validation-failed', err.message, {
-      errors: [{ field: err.field, message: err.message }],
+      errors: [
+        {
+          field: err.field,
+          message: err.message.includes('accepted units') ? err.message : `${err.message} (${accepted})`,
+          value: echo(err.input),
+        },
+      ],
     });
   }
   throw err;

@@ -16,13 +16,16 @@ import { bodyParsers, mediaTypeGuard } from '../middleware/body.js';
 import { metering } from '../middleware/metering.js';
 import { perKeyRateLimit } from '../middleware/rate-limit.js';
 import { usageRoutes } from './usage.js';
+import { steamRoutes } from './steam.js';
+import { liquorRoutes } from './liquors.js';
+import { storedLiquorRoutes } from './stored-liquors.js';
 
 export interface V1RouteModule {
   register(router: express.Router, deps: AppDeps): void;
 }
 
 /** Route modules of /v1, registered in this order. Append one line per module. */
-export const v1RouteModules: V1RouteModule[] = [usageRoutes];
+export const v1RouteModules: V1RouteModule[] = [usageRoutes, steamRoutes, liquorRoutes, storedLiquorRoutes];
 
 export function createV1Router(deps: AppDeps): express.Router {
   const router = express.Router();
