@@ -15,9 +15,10 @@
 import { EngineInputError, EngineRangeError } from '../errors.js';
 import type { LiquorModel } from '../liquors/model.js';
 import {
+  enthalpyAtPT,
   IF97,
-  saturationAtPressure,
-  saturationAtTemperature,
+  regionAtPT,
+  saturationEnthalpies,
   saturationPressure,
   saturationTemperature,
   saturatedVaporEnthalpy,
@@ -143,7 +144,7 @@ export function resolveSteamSupply(spec: SteamSupplySpec, field = 'steam'): Stea
   }
   const superheat = spec.superheat ?? 0;
   const subcooling = spec.condensateSubcooling ?? 0;
-  let sat;
+  let pressure: number;
   if (hasP) {
     requireInRange(
       `${field}.pressure`,
@@ -152,7 +153,7 @@ export function resolveSteamSupply(spec: SteamSupplySpec, field = 'steam'): Stea
       IF97.region13SaturationPressure,
       'Pa',
     );
-    sat = saturationAtPressure(spec.pressure as number);
+    pressure = spec.pressure as number;
   } else {
     requireInRange(
       `${field}.saturationTemperature`,
@@ -161,31 +162,31 @@ export function resolveSteamSupply(spec: SteamSupplySpec, field = 'steam'): Stea
       IF97.region13Temperature,
       'K',
     );
-    sat = saturationAtTemperature(spec.saturationTemperature as number);
+    pressure = saturationPressure(spec.saturationTemperature as number);
   }
+  // Lean IF97 path (enthalpies only, no transport properties): this runs once per solve.
+  const sat = saturationEnthalpies(pressure);
   const ts = sat.temperature;
   requireInRange(`${field}.superheat`, superheat, 0, IF97.maxTemperature - ts, 'K');
   requireInRange(`${field}.condensateSubcooling`, subcooling, 0, ts - IF97.minTemperature, 'K');
   // A superheat (subcooling) so small that T rounds onto the saturation line would land in the
   // wrong region: the saturated state is then the right one to the precision of the input.
-  let enthalpyIn = sat.vapor.enthalpy;
-  if (superheat > 0) {
-    const s = stateAtPT(sat.pressure, ts + superheat);
-    if (s.region === 2) enthalpyIn = s.enthalpy;
+  let enthalpyIn = sat.vapor;
+  if (superheat > 0 && regionAtPT(pressure, ts + superheat) === 2) {
+    enthalpyIn = enthalpyAtPT(pressure, ts + superheat);
   }
-  let enthalpyOut = sat.liquid.enthalpy;
-  if (subcooling > 0) {
-    const s = stateAtPT(sat.pressure, ts - subcooling);
-    if (s.region === 1) enthalpyOut = s.enthalpy;
+  let enthalpyOut = sat.liquid;
+  if (subcooling > 0 && regionAtPT(pressure, ts - subcooling) === 1) {
+    enthalpyOut = enthalpyAtPT(pressure, ts - subcooling);
   }
   return {
-    pressure: sat.pressure,
+    pressure,
     condensingTemperature: ts,
     inletTemperature: ts + superheat,
     condensateTemperature: ts - subcooling,
     superheat,
     condensateSubcooling: subcooling,
-    latentHeat: sat.latentHeat,
+    latentHeat: sat.vapor - sat.liquid,
     enthalpyIn,
     enthalpyOut,
     heatPerKg: enthalpyIn - enthalpyOut,
@@ -231,14 +232,11 @@ export function leavingVapor(
       `A liquor cannot boil at ${temperature} K below the boiling point of water ${tsat} K at ${pressure} Pa`,
     );
   }
-  let enthalpy: number;
-  if (superheat > 0) {
-    const s = stateAtPT(pressure, temperature);
-    // a rise so small that (p, T) rounds onto the liquid side is saturated vapour to that precision
-    enthalpy = s.region === 2 ? s.enthalpy : saturatedVaporEnthalpy(pressure);
-  } else {
-    enthalpy = saturatedVaporEnthalpy(pressure);
-  }
+  // A rise so small that (p, T) rounds onto the liquid side is saturated vapour to that precision.
+  const enthalpy =
+    superheat > 0 && regionAtPT(pressure, temperature) === 2
+      ? enthalpyAtPT(pressure, temperature)
+      : saturatedVaporEnthalpy(pressure);
   return { pressure, temperature, enthalpy, superheat: Math.max(0, superheat) };
 }
 
@@ -301,7 +299,7 @@ export function liquidColumnPressure(
     densitySource = 'liquor';
   } else {
     const t = Math.min(temperature, IF97.region13Temperature);
-    density = stateAtPT(Math.max(surfacePressure, saturationPressure(t)), t).density;
+    density = stateAtPT(Math.max(surfacePressure, saturationPressure(t)), t, { transport: false }).density;
     densitySource = 'water';
     addWarning(warnings, {
       code: 'density-assumed-water',
