@@ -1,0 +1,410 @@
+/**
+ * Built-in liquor "sucrose": aqueous solutions of pure sucrose (sugar juices and syrups treated
+ * as pure). Composition variable x = mass fraction of sucrose (≈ °Bx / 100).
+ *
+ * Boiling point from water activity (Starzak and Peacock 1997) and IAPWS-IF97 p_sat; heat capacity
+ * from the sugar-industry correlation of Lyle; solubility of pure sucrose from Vavrinecz (1962).
+ * Each correlation is a small pure function (SI in, SI out, no range checks), wrapped into the
+ * {@link LiquorModel} `sucrose`, which applies the validity rule.
+ */
+import { EngineNoSolutionError, EngineRangeError } from '../errors.js';
+import { saturationAtTemperature, saturationPressure, saturationTemperature } from '../steam/if97.js';
+import { addWarning, KELVIN_OFFSET, type Citation, type EngineCaution, type WarningSink } from '../types.js';
+import type { Interval, LiquorModel, ValidityBox } from './model.js';
+import { checkAgainst } from './validity.js';
+
+const MODEL_ID = 'sucrose';
+
+/** Molar mass of sucrose C12H22O11, kg/mol (Starzak and Peacock use 342.30 g/mol). */
+export const SUCROSE_MOLAR_MASS = 0.3423;
+/** Molar mass of water, kg/mol (18.015 g/mol, as used with the Starzak–Peacock equation). */
+export const WATER_MOLAR_MASS = 0.018015;
+/** Molar gas constant, J/(mol·K) (CODATA 2018, exact). */
+const GAS_CONSTANT = 8.314462618;
+
+/** Mole fraction of sucrose in a solution of mass fraction x. */
+export function sucroseMoleFraction(massFraction: number): number {
+  const ns = massFraction / SUCROSE_MOLAR_MASS;
+  const nw = (1 - massFraction) / WATER_MOLAR_MASS;
+  return ns / (ns + nw);
+}
+
+/**
+ * Activity coefficient of water in aqueous sucrose (Starzak and Peacock, "Water activity
+ * coefficient in aqueous solutions of sucrose — a comprehensive data analysis",
+ * Zuckerindustrie 122 (1997) 380–387; page numbers from memory):
+ *
+ *   ln γ_w = (Q / (R·T))·(1 + a·x_s + b·x_s²)·x_s²
+ *
+ * x_s = mole fraction of sucrose (M = 342.30 g/mol, water 18.015 g/mol), T in K,
+ * Q = −17638 J/mol, a = −1.0038, b = −0.24653. Fitted to a century of vapour-pressure, boiling-point,
+ * osmotic and freezing-point data; validity (from memory) about 0–90 % sucrose by mass, 0–120 °C.
+ *
+ * @param massFraction mass fraction of sucrose, kg/kg
+ * @param temperature K
+ * @returns γ_w (dimensionless, < 1)
+ */
+export function starzakPeacockWaterActivityCoefficient(massFraction: number, temperature: number): number {
+  const xs = sucroseMoleFraction(massFraction);
+  const q = -17638;
+  const a = -1.0038;
+  const b = -0.24653;
+  return Math.exp((q / (GAS_CONSTANT * temperature)) * (1 + a * xs + b * xs * xs) * xs * xs);
+}
+
+/**
+ * Water activity a_w = γ_w·(1 − x_s) of aqueous sucrose (Starzak and Peacock 1997, see
+ * {@link starzakPeacockWaterActivityCoefficient}).
+ *
+ * @param massFraction mass fraction of sucrose, kg/kg
+ * @param temperature K
+ * @returns a_w (dimensionless, 0–1)
+ * @example starzakPeacockWaterActivity(0.2550, 298.15) // 1 mol/kg: ≈ 0.980
+ */
+export function starzakPeacockWaterActivity(massFraction: number, temperature: number): number {
+  return (
+    starzakPeacockWaterActivityCoefficient(massFraction, temperature) *
+    (1 - sucroseMoleFraction(massFraction))
+  );
+}
+
+/** Brent's method on f over [a, b] with f(a)·f(b) ≤ 0 (Brent 1973, "Algorithms for minimization
+ * without derivatives", ch. 4). Returns the root to within `tol`. */
+function brent(f: (t: number) => number, lo: number, hi: number, tol: number): number {
+  let a = lo;
+  let b = hi;
+  let fa = f(a);
+  let fb = f(b);
+  if (fa === 0) return a;
+  if (fb === 0) return b;
+  let c = a;
+  let fc = fa;
+  let d = b - a;
+  let e = d;
+  for (let i = 0; i < 100; i++) {
+    if (fb * fc > 0) {
+      c = a;
+      fc = fa;
+      d = b - a;
+      e = d;
+    }
+    if (Math.abs(fc) < Math.abs(fb)) {
+      a = b;
+      b = c;
+      c = a;
+      fa = fb;
+      fb = fc;
+      fc = fa;
+    }
+    const tol1 = 2 * Number.EPSILON * Math.abs(b) + 0.5 * tol;
+    const m = 0.5 * (c - b);
+    if (Math.abs(m) <= tol1 || fb === 0) return b;
+    if (Math.abs(e) >= tol1 && Math.abs(fa) > Math.abs(fb)) {
+      const s = fb / fa;
+      let p: number;
+      let q: number;
+      if (a === c) {
+        p = 2 * m * s;
+        q = 1 - s;
+      } else {
+        const qq = fa / fc;
+        const r = fb / fc;
+        p = s * (2 * m * qq * (qq - r) - (b - a) * (r - 1));
+        q = (qq - 1) * (r - 1) * (s - 1);
+      }
+      if (p > 0) q = -q;
+      else p = -p;
+      if (2 * p < Math.min(3 * m * q - Math.abs(tol1 * q), Math.abs(e * q))) {
+        e = d;
+        d = p / q;
+      } else {
+        d = m;
+        e = d;
+      }
+    } else {
+      d = m;
+      e = d;
+    }
+    a = b;
+    fa = fb;
+    b += Math.abs(d) > tol1 ? d : m > 0 ? tol1 : -tol1;
+    fb = f(b);
+  }
+  throw new EngineNoSolutionError('sucrose boiling point: Brent iteration did not converge', {
+    iterations: 100,
+    residual: fb,
+    reason: 'no-convergence',
+  });
+}
+
+/**
+ * Boiling temperature of aqueous sucrose at pressure p: the root T of
+ *
+ *   a_w(x, T)·p_sat,IF97(T) = p
+ *
+ * with a_w from Starzak and Peacock (1997). The root is bracketed upward from T_sat(p) (where the
+ * residual is negative for x > 0, since a_w < 1) by doubling steps, then found by Brent's method
+ * to 1e−9 K. No range checks here.
+ *
+ * The relation p_w = a_w·p_sat treats the vapour as an ideal gas. Exact thermodynamics (equal
+ * chemical potentials, i.e. fugacities) gives a rise larger by about 1/Z of saturated steam:
+ * +1.6 % of the BPR at 101 kPa, +0.5 % at 20 kPa (Z from IF97 v_g). Whether Starzak and Peacock
+ * reduced their boiling-point data the same way is not known here; the method is kept as the
+ * domain note prescribes it.
+ *
+ * @param massFraction mass fraction of sucrose, kg/kg
+ * @param pressure Pa
+ * @param maxTemperature upper end of the search, K (default 600 K)
+ * @returns boiling temperature, K
+ */
+export function sucroseBoilingTemperature(
+  massFraction: number,
+  pressure: number,
+  maxTemperature = 600,
+): number {
+  const tWater = saturationTemperature(pressure);
+  if (massFraction === 0) return tWater;
+  const residual = (t: number): number =>
+    starzakPeacockWaterActivity(massFraction, t) * saturationPressure(t) - pressure;
+  let lo = tWater;
+  let step = 1;
+  let hi = Math.min(tWater + step, maxTemperature);
+  while (residual(hi) < 0) {
+    if (hi >= maxTemperature) {
+      throw new EngineNoSolutionError(
+        `sucrose at mass fraction ${massFraction} does not boil below ${maxTemperature} K at ${pressure} Pa`,
+        { reason: 'no-bracket' },
+      );
+    }
+    lo = hi;
+    step *= 2;
+    hi = Math.min(tWater + step, maxTemperature);
+  }
+  return brent(residual, lo, hi, 1e-9);
+}
+
+/** Purity used with Lyle's correlation: pure sucrose, 100 % sucrose on dry substance. */
+const PURITY = 100;
+
+/**
+ * Specific heat capacity of sugar solutions (Lyle, "Technology for Sugar Refinery Workers",
+ * Chapman & Hall, 3rd ed. 1957, as quoted in sugar-technology handbooks; equation from memory):
+ *
+ *   c_p = 4.1868 − 0.0297·B + 4.6e−5·P·B + 7.5e−5·B·t   [kJ/(kg·K)]
+ *
+ * B = dry substance, °Bx (100·x); P = purity, % (100 for pure sucrose); t in °C. Linear in t, so
+ * enthalpy integrates analytically. Validity (from memory): about 0–80 °Bx, 0–100 °C, accuracy of
+ * the order of 1–2 %.
+ *
+ * @param massFraction mass fraction of sucrose, kg/kg
+ * @param temperature K
+ * @returns c_p, J/(kg·K)
+ */
+export function lyleHeatCapacity(massFraction: number, temperature: number): number {
+  const bx = 100 * massFraction;
+  const t = temperature - KELVIN_OFFSET;
+  return 1000 * (4.1868 - 0.0297 * bx + 4.6e-5 * PURITY * bx + 7.5e-5 * bx * t);
+}
+
+/** Steam-table datum: liquid water at the triple point, 273.16 K. */
+const DATUM_TEMPERATURE = 273.16;
+
+/**
+ * Enthalpy of aqueous sucrose minus that of pure water at the same temperature, from Lyle's c_p
+ * integrated from the steam-table datum (liquid at 273.16 K, where both are taken as zero):
+ *
+ *   Δh = ∫ [c_p(x, t) − c_p(0, t)] dt  from 0.01 °C to t
+ *      = 1000·B·[(−0.0297 + 4.6e−5·P)·(t − 0.01) + 7.5e−5·(t² − 0.01²)/2]   [J/kg]
+ *
+ * The heat of dilution (mixing) is neglected: the solution at 0.01 °C is given the enthalpy of its
+ * components there. The Starzak–Peacock activity model, read as a temperature-independent excess
+ * Gibbs energy, implies an excess enthalpy of a few kJ/kg at 60–70 °Bx (our estimate), about 1 %
+ * of the sensible enthalpy at evaporator temperatures.
+ *
+ * @param massFraction mass fraction of sucrose, kg/kg
+ * @param temperature K
+ * @returns h − h_w, J/kg
+ */
+export function lyleEnthalpyDifference(massFraction: number, temperature: number): number {
+  const bx = 100 * massFraction;
+  const t = temperature - KELVIN_OFFSET;
+  const t0 = DATUM_TEMPERATURE - KELVIN_OFFSET;
+  return 1000 * bx * ((-0.0297 + 4.6e-5 * PURITY) * (t - t0) + (7.5e-5 * (t * t - t0 * t0)) / 2);
+}
+
+/**
+ * Solubility of pure sucrose in water (Vavrinecz, "Neue Tabelle über die Löslichkeit reiner
+ * Saccharose in Wasser", Zeitschrift für die Zuckerindustrie 12 (1962) 481–487; the solubility
+ * equation in general use in sugar technology; coefficients from memory):
+ *
+ *   w = 64.447 + 0.08222·t + 1.6169e−3·t² − 1.558e−6·t³ − 4.63e−8·t⁴   [g sucrose / 100 g solution]
+ *
+ * t in °C, valid 0–100 °C. Above about 130 °C the quartic turns over, so the model refuses it there.
+ *
+ * @param temperature K
+ * @returns mass fraction of sucrose in the saturated solution, kg/kg
+ * @example vavrineczSolubility(293.15) // ≈ 0.667
+ */
+export function vavrineczSolubility(temperature: number): number {
+  const t = temperature - KELVIN_OFFSET;
+  return (64.447 + t * (0.08222 + t * (1.6169e-3 + t * (-1.558e-6 + t * -4.63e-8)))) / 100;
+}
+
+const MASS_FRACTION_VALIDITY: Interval = { min: 0, max: 0.85 };
+const MASS_FRACTION_LIMITS: Interval = { min: 0, max: 0.95 };
+const TEMPERATURE_VALIDITY: Interval = { min: 273.15, max: 393.15 };
+const TEMPERATURE_LIMITS: Interval = { min: 273.15, max: 423.15 };
+const HEAT_CAPACITY_MASS_FRACTION: Interval = { min: 0, max: 0.8 };
+const HEAT_CAPACITY_TEMPERATURE: Interval = { min: 273.15, max: 373.15 };
+const SOLUBILITY_VALIDITY: Interval = { min: 273.15, max: 373.15 };
+const SOLUBILITY_LIMITS: Interval = { min: 273.15, max: 403.15 };
+/** Pressures at which pure water boils inside the temperature box. */
+const PRESSURE_VALIDITY: Interval = {
+  min: saturationPressure(TEMPERATURE_VALIDITY.min),
+  max: saturationPressure(TEMPERATURE_VALIDITY.max),
+};
+const PRESSURE_LIMITS: Interval = {
+  min: saturationPressure(TEMPERATURE_LIMITS.min),
+  max: saturationPressure(TEMPERATURE_LIMITS.max),
+};
+
+const validity: ValidityBox = {
+  massFraction: { ...MASS_FRACTION_VALIDITY },
+  temperature: { ...TEMPERATURE_VALIDITY },
+  pressure: { ...PRESSURE_VALIDITY },
+  notes: [
+    'Water activity (Starzak and Peacock 1997): about 0-0.85 kg/kg and 0-120 °C (data range from memory).',
+    'Heat capacity and enthalpy (Lyle): 0-0.80 kg/kg, 0-100 °C (from memory); heat of dilution neglected.',
+    'Solubility (Vavrinecz 1962): 0-100 °C; extrapolated to 130 °C.',
+    'Pure sucrose: impurities (non-sugars) raise the boiling point further and change the solubility.',
+  ],
+};
+const limits: ValidityBox = {
+  massFraction: { ...MASS_FRACTION_LIMITS },
+  temperature: { ...TEMPERATURE_LIMITS },
+  pressure: { ...PRESSURE_LIMITS },
+};
+
+const sources: Citation[] = [
+  {
+    key: 'starzak-peacock-1997',
+    reference:
+      'M. Starzak, S. D. Peacock, "Water activity coefficient in aqueous solutions of sucrose - a comprehensive data analysis", Zuckerindustrie 122 (1997)',
+  },
+  {
+    key: 'lyle-1957',
+    reference:
+      'O. Lyle, "Technology for Sugar Refinery Workers", Chapman & Hall, London (heat capacity of sugar solutions)',
+  },
+  {
+    key: 'vavrinecz-1962',
+    reference:
+      'G. Vavrinecz, "Neue Tabelle über die Löslichkeit reiner Saccharose in Wasser", Zeitschrift für die Zuckerindustrie 12 (1962) 481-487',
+  },
+  {
+    key: 'iapws-if97',
+    reference:
+      'IAPWS R7-97(2012), Revised Release on the IAPWS Industrial Formulation 1997 for the Thermodynamic Properties of Water and Steam (water vapour pressure and pure-water parts)',
+  },
+];
+
+const cautions: EngineCaution[] = [
+  {
+    code: 'hot-syrup',
+    message:
+      'Hot concentrated syrup sticks to skin and causes deep burns; handle boiling sugar solutions with face and hand protection.',
+  },
+  {
+    code: 'sucrose-degradation',
+    message:
+      'Sucrose inverts and colours at high temperature, low pH and long residence time; keep juice temperatures and hold-up times as low as the process allows.',
+  },
+];
+
+function checkMassFraction(value: number, range: Interval, warnings: WarningSink): void {
+  checkAgainst(MODEL_ID, 'massFraction', value, 'kg/kg', range, MASS_FRACTION_LIMITS, warnings);
+}
+
+function checkTemperature(value: number, range: Interval, warnings: WarningSink): void {
+  checkAgainst(MODEL_ID, 'temperature', value, 'K', range, TEMPERATURE_LIMITS, warnings);
+}
+
+/** Warns when x is above pure-sucrose solubility at T (supersaturated: crystals may form). */
+function checkSaturation(massFraction: number, temperature: number, warnings: WarningSink): void {
+  if (!warnings || temperature < SOLUBILITY_LIMITS.min || temperature > SOLUBILITY_LIMITS.max) return;
+  const limit = vavrineczSolubility(temperature);
+  if (massFraction > limit) {
+    addWarning(warnings, {
+      code: 'above-solubility',
+      field: 'massFraction',
+      message: `massFraction = ${massFraction} kg/kg is above the solubility of pure sucrose at ${temperature.toFixed(2)} K (${limit.toFixed(4)} kg/kg): the solution is supersaturated and may crystallise`,
+      validRange: { min: 0, max: limit, unit: 'kg/kg' },
+    });
+  }
+}
+
+function boilingPoint(massFraction: number, pressure: number, warnings?: WarningSink): number {
+  checkMassFraction(massFraction, MASS_FRACTION_VALIDITY, warnings);
+  checkAgainst(MODEL_ID, 'pressure', pressure, 'Pa', PRESSURE_VALIDITY, PRESSURE_LIMITS, warnings);
+  const t = sucroseBoilingTemperature(massFraction, pressure, TEMPERATURE_LIMITS.max + 100);
+  if (t > TEMPERATURE_LIMITS.max) {
+    throw new EngineRangeError(
+      'pressure',
+      pressure,
+      { min: PRESSURE_LIMITS.min, max: PRESSURE_LIMITS.max, unit: 'Pa' },
+      `sucrose at ${massFraction} kg/kg boils at ${t.toFixed(2)} K at ${pressure} Pa, above the model's ${TEMPERATURE_LIMITS.max} K limit; lower the pressure`,
+    );
+  }
+  checkTemperature(t, TEMPERATURE_VALIDITY, warnings);
+  checkSaturation(massFraction, t, warnings);
+  return t;
+}
+
+export const sucrose: LiquorModel = {
+  id: MODEL_ID,
+  name: 'Sucrose solution (sugar juice and syrup)',
+  kind: 'built-in',
+  compositionVariable: 'mass fraction of sucrose (kg/kg, about °Bx/100)',
+  validity,
+  limits,
+  sources,
+  cautions,
+
+  boilingPoint,
+
+  boilingPointRise(massFraction: number, pressure: number, warnings?: WarningSink): number {
+    return boilingPoint(massFraction, pressure, warnings) - saturationTemperature(pressure);
+  },
+
+  /** h = h_f,IF97(T) + Δh_Lyle(x, T): IF97 saturated liquid at T plus the sucrose increment, J/kg. */
+  enthalpy(massFraction: number, temperature: number, warnings?: WarningSink): number {
+    checkMassFraction(massFraction, HEAT_CAPACITY_MASS_FRACTION, warnings);
+    checkTemperature(temperature, HEAT_CAPACITY_TEMPERATURE, warnings);
+    checkSaturation(massFraction, temperature, warnings);
+    return (
+      saturationAtTemperature(temperature).liquid.enthalpy + lyleEnthalpyDifference(massFraction, temperature)
+    );
+  },
+
+  /** c_p = c_p,IF97(T) + [c_p,Lyle(x, T) − c_p,Lyle(0, T)], the derivative of `enthalpy`, J/(kg·K). */
+  heatCapacity(massFraction: number, temperature: number, warnings?: WarningSink): number {
+    checkMassFraction(massFraction, HEAT_CAPACITY_MASS_FRACTION, warnings);
+    checkTemperature(temperature, HEAT_CAPACITY_TEMPERATURE, warnings);
+    const water = saturationAtTemperature(temperature).liquid.heatCapacity;
+    if (water === undefined) {
+      throw new EngineNoSolutionError('IF97 gave no heat capacity for saturated liquid', {
+        reason: 'missing-property',
+      });
+    }
+    return water + lyleHeatCapacity(massFraction, temperature) - lyleHeatCapacity(0, temperature);
+  },
+
+  /**
+   * Solubility of pure sucrose, kg/kg (Vavrinecz 1962), 273.15–403.15 K. Between 373.15 and
+   * 403.15 K the value is extrapolated (a "model-extrapolated" warning goes to the optional sink).
+   */
+  solubilityLimit(temperature: number, warnings?: WarningSink): number {
+    checkAgainst(MODEL_ID, 'temperature', temperature, 'K', SOLUBILITY_VALIDITY, SOLUBILITY_LIMITS, warnings);
+    return vavrineczSolubility(temperature);
+  },
+};
