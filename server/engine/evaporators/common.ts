@@ -247,8 +247,8 @@ export function leavingVapor(
 /**
  * Pressure at mid-depth of a liquid column: p_mid = p + ρ·g·H/2 (hydrostatics; the mid-depth
  * convention for the mean boiling point of a tall column is textbook practice, e.g. McCabe,
- * Smith and Harriott, Unit Operations of Chemical Engineering, 7th ed., section 16 "effect of
- * liquid head").
+ * Smith and Harriott, Unit Operations of Chemical Engineering, 7th ed., chapter 16, on the
+ * effect of liquid head on the boiling point; section recalled from memory).
  *
  * @param surfacePressure p at the liquid surface, Pa
  * @param density ρ of the liquid, kg/m³

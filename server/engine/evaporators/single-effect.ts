@@ -20,8 +20,8 @@
  * Liquid head (`body.liquidHeight` H > 0): the mean boiling point, used for ΔT, is the liquor's
  * boiling point at the mid-depth pressure p + ρ·g·H/2 (ρ from the liquor model, or liquid water
  * with a warning). Vapour and product leave at the surface, at the boiling point at p: H_V, h_L
- * and the reported product temperature are taken there (McCabe et al. 7th ed., "effect of
- * liquid head and friction on pressure drop").
+ * and the reported product temperature are taken there (McCabe et al. 7th ed., chapter 16, on
+ * the effect of liquid head; recalled from memory).
  *
  * All numbers SI (Pa, K, J/kg, kg/s, W, m², W/(m²·K), mass fraction 0–1).
  */
