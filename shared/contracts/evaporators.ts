@@ -178,7 +178,7 @@ export const SingleEffectResponseSchema = z
   .meta({ id: 'SingleEffectResponse' });
 export type SingleEffectResponse = z.infer<typeof SingleEffectResponseSchema>;
 
-export const MAX_EFFECTS = 12;
+export const MAX_EFFECTS = 10;
 
 export const FeedArrangementSchema = z
   .union([
@@ -195,7 +195,7 @@ export const MultipleEffectRequestSchema = z
     effects: z.int().min(1).max(MAX_EFFECTS).meta({ description: 'Number of effects', example: 3 }),
     feedArrangement: FeedArrangementSchema.default('forward'),
     feed: FeedSchema,
-    product: ProductSpecSchema,
+    product: ProductSpecSchema.default({}),
     steam: SteamSpecSchema,
     lastEffectPressure: quantity(specs.pressure, 'Pressure in the last effect (condenser side)', 15),
     overallHeatTransferCoefficients: z
@@ -220,10 +220,31 @@ export const MultipleEffectRequestSchema = z
       )
       .max(MAX_EFFECTS)
       .optional(),
-    heatLossFraction: heatLossFraction.optional(),
   })
   .strict()
   .superRefine((r, ctx) => {
+    if (r.feed.enthalpy !== undefined) {
+      ctx.addIssue({
+        code: 'custom',
+        path: ['feed', 'enthalpy'],
+        message: 'the multiple-effect model takes the feed enthalpy from the liquor model; omit it',
+      });
+    }
+    if (r.product.enthalpy !== undefined) {
+      ctx.addIssue({
+        code: 'custom',
+        path: ['product', 'enthalpy'],
+        message: 'the multiple-effect model takes the product enthalpy from the liquor model; omit it',
+      });
+    }
+    if (r.areas !== undefined && (r.product.massFraction !== undefined || r.product.massFlow !== undefined)) {
+      ctx.addIssue({
+        code: 'custom',
+        path: ['product'],
+        message:
+          'with given areas (rating) the product is found; omit product.massFraction and product.massFlow',
+      });
+    }
     if (r.overallHeatTransferCoefficients.length !== r.effects) {
       ctx.addIssue({
         code: 'custom',

@@ -19,13 +19,20 @@ import { usageRoutes } from './usage.js';
 import { steamRoutes } from './steam.js';
 import { liquorRoutes } from './liquors.js';
 import { storedLiquorRoutes } from './stored-liquors.js';
+import { evaporatorRoutes } from './evaporators.js';
 
 export interface V1RouteModule {
   register(router: express.Router, deps: AppDeps): void;
 }
 
 /** Route modules of /v1, registered in this order. Append one line per module. */
-export const v1RouteModules: V1RouteModule[] = [usageRoutes, steamRoutes, liquorRoutes, storedLiquorRoutes];
+export const v1RouteModules: V1RouteModule[] = [
+  usageRoutes,
+  steamRoutes,
+  liquorRoutes,
+  storedLiquorRoutes,
+  evaporatorRoutes,
+];
 
 export function createV1Router(deps: AppDeps): express.Router {
   const router = express.Router();
