@@ -20,6 +20,7 @@ import { steamRoutes } from './steam.js';
 import { liquorRoutes } from './liquors.js';
 import { storedLiquorRoutes } from './stored-liquors.js';
 import { evaporatorRoutes } from './evaporators.js';
+import { batchRoutes } from './batch.js';
 
 export interface V1RouteModule {
   register(router: express.Router, deps: AppDeps): void;
@@ -32,6 +33,7 @@ export const v1RouteModules: V1RouteModule[] = [
   liquorRoutes,
   storedLiquorRoutes,
   evaporatorRoutes,
+  batchRoutes,
 ];
 
 export function createV1Router(deps: AppDeps): express.Router {

@@ -1,0 +1,255 @@
+/**
+ * POST /v1/batch: many cases of one operation, as JSON ({ operation, liquor?, cases: [...] }),
+ * as text/csv (operation and liquor in the query string), or as a CSV file in multipart/form-data.
+ * A failing case gets its own problem and does not fail the batch. Units charged = the sum of
+ * the cases' own costs (the operation catalogue), charged before any case runs (429 if the quota
+ * cannot cover them). `Accept: text/csv` returns one line per case with dotted column names.
+ */
+import { parse as parseCsv } from 'csv-parse/sync';
+import { stringify } from 'csv-stringify/sync';
+import type { Request } from 'express';
+import multer from 'multer';
+import {
+  BatchRequestSchema,
+  MAX_BATCH_ROWS,
+  MAX_UPLOAD_BYTES,
+  type BatchOperation,
+  type BatchResponse,
+  type LiquorRef,
+} from '../../../shared/contracts/index.js';
+import { operations, type OperationId } from '../../accounts/operations.js';
+import type { AppDeps } from '../app.js';
+import { chargeUnits, requireOperation } from '../middleware/operation.js';
+import { problem, problemTypeUri, ProblemError } from '../problem.js';
+import { findNonFinite, toProblem, validate } from '../validation.js';
+import { multipleEffectUnits, runMultipleEffect, runSingleEffect } from './evaporators.js';
+import { resolveLiquor, runBoilingPoint, runEnthalpy } from './liquors.js';
+import { runSaturation, runSteamState } from './steam.js';
+import type { V1RouteModule } from './index.js';
+
+const OPERATION_OF: Record<BatchOperation, OperationId> = {
+  'steam-saturation': 'steam.saturation',
+  'steam-state': 'steam.state',
+  'liquor-boiling-point': 'liquors.boiling-point',
+  'liquor-enthalpy': 'liquors.enthalpy',
+  'single-effect': 'evaporators.single-effect',
+  'multiple-effect': 'evaporators.multiple-effect',
+};
+
+function caseUnits(operation: BatchOperation, c: Record<string, unknown>): number {
+  if (operation === 'multiple-effect') {
+    const n = c.effects;
+    return multipleEffectUnits(typeof n === 'number' && Number.isInteger(n) && n >= 1 && n <= 10 ? n : 1);
+  }
+  return operations[OPERATION_OF[operation]].units;
+}
+
+/** Sets a dotted path ("feed.massFlow", "overallHeatTransferCoefficients[1]") in an object. */
+function setPath(target: Record<string, unknown>, path: string, value: unknown): void {
+  const keys = path.split(/\.|\[(\d+)\]/).filter((k) => k !== undefined && k !== '');
+  let node: Record<string, unknown> | unknown[] = target;
+  keys.forEach((key, i) => {
+    const last = i === keys.length - 1;
+    const nextIsIndex = /^\d+$/.test(keys[i + 1] ?? '');
+    const k = /^\d+$/.test(key) ? Number(key) : key;
+    const container = node as Record<string | number, unknown>;
+    if (last) container[k] = value;
+    else {
+      container[k] ??= nextIsIndex ? [] : {};
+      node = container[k] as Record<string, unknown>;
+    }
+  });
+}
+
+/** CSV cell → JSON value: numbers become numbers, "" is omitted, the rest stay strings (units). */
+function cell(text: string): unknown {
+  const t = text.trim();
+  if (t === '') return undefined;
+  if (/^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/.test(t)) return Number(t);
+  if (t === 'true' || t === 'false') return t === 'true';
+  return t;
+}
+
+/** Cases from CSV: a header of dotted field names, one case per line. */
+export function casesFromCsv(text: string): Record<string, unknown>[] {
+  let rows: string[][];
+  try {
+    rows = parseCsv(text, { skip_empty_lines: true, bom: true, relax_column_count: true }) as string[][];
+  } catch (err) {
+    throw problem('validation-failed', `The CSV could not be read: ${(err as Error).message}`, {
+      errors: [{ field: 'file', message: (err as Error).message }],
+    });
+  }
+  const header = rows[0]?.map((h) => h.trim());
+  if (!header || header.length === 0) {
+    throw problem('validation-failed', 'The CSV is empty.', {
+      errors: [{ field: 'file', message: 'no header row' }],
+    });
+  }
+  return rows.slice(1).map((row) => {
+    const c: Record<string, unknown> = {};
+    header.forEach((name, i) => {
+      const v = cell(row[i] ?? '');
+      if (v !== undefined && name !== '') setPath(c, name, v);
+    });
+    return c;
+  });
+}
+
+/** Flattens a result into dotted columns for CSV output. */
+function flatten(value: unknown, prefix: string, out: Record<string, unknown>): void {
+  if (Array.isArray(value)) value.forEach((v, i) => flatten(v, `${prefix}[${i}]`, out));
+  else if (value !== null && typeof value === 'object') {
+    for (const [k, v] of Object.entries(value)) flatten(v, prefix ? `${prefix}.${k}` : k, out);
+  } else out[prefix] = value;
+}
+
+function runCase(
+  operation: BatchOperation,
+  c: Record<string, unknown>,
+  batchLiquor: LiquorRef | undefined,
+  deps: AppDeps,
+  accountId: number,
+  prefix: string,
+): unknown {
+  const v = deps.engineVersion;
+  switch (operation) {
+    case 'steam-saturation':
+      return runSaturation(c, v, prefix);
+    case 'steam-state':
+      return runSteamState(c, v, prefix);
+    case 'liquor-boiling-point':
+    case 'liquor-enthalpy': {
+      const { liquor: own, ...rest } = c;
+      const ref = (own ?? batchLiquor) as LiquorRef | undefined;
+      if (ref === undefined) {
+        throw problem('validation-failed', 'No liquor: give `liquor` for the batch or for the case.', {
+          errors: [{ field: `${prefix}liquor`, message: 'is required' }],
+        });
+      }
+      const liquor = resolveLiquor(
+        validate(BatchRequestSchema.shape.liquor.unwrap(), ref, `${prefix}liquor`),
+        deps.db,
+        accountId,
+        `${prefix}liquor`,
+      );
+      return operation === 'liquor-boiling-point'
+        ? runBoilingPoint(liquor, rest, v, prefix)
+        : runEnthalpy(liquor, rest, v, prefix);
+    }
+    case 'single-effect':
+      return runSingleEffect(c, deps.db, accountId, v, prefix);
+    case 'multiple-effect':
+      return runMultipleEffect(c, deps.db, accountId, v, prefix);
+  }
+}
+
+const upload = multer({
+  storage: multer.memoryStorage(),
+  limits: { fileSize: MAX_UPLOAD_BYTES, files: 1, fields: 10 },
+});
+
+function readUpload(req: Request, res: Parameters<ReturnType<typeof upload.single>>[1]): Promise<void> {
+  return new Promise((resolve, reject) => {
+    upload.single('file')(req, res, (err: unknown) => {
+      if (!err) return resolve();
+      if (err instanceof multer.MulterError && err.code === 'LIMIT_FILE_SIZE') {
+        return reject(problem('payload-too-large', `The uploaded file exceeds ${MAX_UPLOAD_BYTES} bytes.`));
+      }
+      reject(problem('bad-request', `The multipart body could not be read: ${(err as Error).message}`));
+    });
+  });
+}
+
+export const batchRoutes: V1RouteModule = {
+  register(router, deps) {
+    router.post('/batch', requireOperation('batch'), async (req, res) => {
+      let raw: unknown;
+      if (req.is('multipart/form-data')) {
+        await readUpload(req, res);
+        const body = (req.body ?? {}) as Record<string, unknown>;
+        if (!req.file) {
+          throw problem('validation-failed', 'The upload needs a CSV file in the field "file".', {
+            errors: [{ field: 'file', message: 'is required' }],
+          });
+        }
+        raw = {
+          operation: body.operation,
+          ...(body.liquor ? { liquor: body.liquor } : {}),
+          cases: casesFromCsv(req.file.buffer.toString('utf8')),
+        };
+      } else if (typeof req.body === 'string') {
+        const q = req.query as Record<string, unknown>;
+        raw = {
+          operation: q.operation,
+          ...(q.liquor ? { liquor: q.liquor } : {}),
+          cases: casesFromCsv(req.body),
+        };
+      } else {
+        raw = req.body;
+      }
+      const cases = (raw as { cases?: unknown } | undefined)?.cases;
+      if (Array.isArray(cases) && cases.length > MAX_BATCH_ROWS) {
+        throw problem(
+          'payload-too-large',
+          `The batch has ${cases.length} cases; at most ${MAX_BATCH_ROWS} are accepted per request.`,
+        );
+      }
+      const batch = validate(BatchRequestSchema, raw);
+      const accountId = res.locals.auth!.accountId;
+      const units = batch.cases.reduce((sum, c) => sum + caseUnits(batch.operation, c), 0);
+      chargeUnits(res, units);
+
+      const results: BatchResponse['results'] = batch.cases.map((c, index) => {
+        const prefix = `cases[${index}].`;
+        try {
+          const result = runCase(batch.operation, c, batch.liquor, deps, accountId, prefix);
+          const bad = findNonFinite(result);
+          if (bad) throw problem('no-solution', `The calculation produced a non-finite number (${bad}).`);
+          return { index, status: 'ok', result: result as Record<string, unknown> };
+        } catch (err) {
+          let p: ProblemError;
+          try {
+            p = toProblem(err);
+          } catch {
+            p = problem('no-solution', 'This case could not be calculated.');
+          }
+          return {
+            index,
+            status: 'error',
+            problem: {
+              type: problemTypeUri(p.type),
+              title: p.title,
+              status: p.status,
+              ...(p.detail !== undefined ? { detail: p.detail } : {}),
+              ...(p.errors ? { errors: p.errors } : {}),
+            },
+          };
+        }
+      });
+      const failed = results.filter((r) => r.status === 'error').length;
+      const response: BatchResponse = {
+        operation: batch.operation,
+        count: results.length,
+        succeeded: results.length - failed,
+        failed,
+        unitsCharged: units,
+        results,
+      };
+      if (req.accepts(['application/json', 'text/csv']) === 'text/csv') {
+        const rows = results.map((r) => {
+          const flat: Record<string, unknown> = { index: r.index, status: r.status };
+          if (r.result) flatten(r.result, '', flat);
+          if (r.problem)
+            flat.error =
+              `${r.problem.title}: ${r.problem.detail ?? ''} ${(r.problem.errors ?? []).map((e) => `${e.field} ${e.message}`).join('; ')}`.trim();
+          return flat;
+        });
+        const columns = [...new Set(rows.flatMap((r) => Object.keys(r)))];
+        res.type('text/csv').send(stringify(rows, { header: true, columns }));
+        return;
+      }
+      res.json(response);
+    });
+  },
+};
