@@ -19,6 +19,8 @@ export const accounts = sqliteTable('accounts', {
   billingEmail: text('billing_email'),
   /** When true the request log keeps (redacted, truncated) request and response bodies. */
   retainRequestBodies: integer('retain_request_bodies', { mode: 'boolean' }).notNull().default(false),
+  /** The payment provider's customer id, set when the first invoice is created. */
+  paymentCustomerId: text('payment_customer_id'),
   createdAt: createdAt(),
 });
 
@@ -29,6 +31,12 @@ export const users = sqliteTable('users', {
   passwordHash: text('password_hash').notNull(),
   role: text('role', { enum: ['admin', 'billing', 'developer'] }).notNull(),
   active: integer('active', { mode: 'boolean' }).notNull().default(true),
+  /** Display name shown in the console. */
+  name: text('name'),
+  /** Consecutive failed sign-ins since the last success (reset on success). */
+  failedSignIns: integer('failed_sign_ins').notNull().default(0),
+  /** Sign-in refused until this time after too many failures. */
+  lockedUntil: integer('locked_until', { mode: 'timestamp_ms' }),
   createdAt: createdAt(),
 });
 
@@ -141,3 +149,152 @@ export const storedLiquors = sqliteTable(
   },
   (t) => [uniqueIndex('stored_liquors_account_slug_idx').on(t.accountId, t.liquorId)],
 );
+
+// ---------------------------------------------------------------------------------------------
+// Console: sessions, single-use tokens, audit log, mail, billing.
+
+/** A console sign-in. The access JWT carries the session id, so revoking the row ends it at once. */
+export const consoleSessions = sqliteTable(
+  'console_sessions',
+  {
+    /** Random, url-safe; the JWT's `sid` claim. */
+    id: text('id').primaryKey(),
+    userId: integer('user_id')
+      .notNull()
+      .references(() => users.id, { onDelete: 'cascade' }),
+    /** SHA-256 of the current refresh token (rotated at every refresh). */
+    refreshHash: text('refresh_hash').notNull(),
+    createdAt: createdAt(),
+    expiresAt: integer('expires_at', { mode: 'timestamp_ms' }).notNull(),
+    refreshedAt: integer('refreshed_at', { mode: 'timestamp_ms' }),
+    revokedAt: integer('revoked_at', { mode: 'timestamp_ms' }),
+    ip: text('ip'),
+    userAgent: text('user_agent'),
+  },
+  (t) => [index('console_sessions_user_idx').on(t.userId)],
+);
+
+/** Invitations and password resets: single-use, expiring, stored only as a hash. */
+export const userTokens = sqliteTable('user_tokens', {
+  id: integer('id').primaryKey({ autoIncrement: true }),
+  purpose: text('purpose', { enum: ['invitation', 'password-reset'] }).notNull(),
+  /** SHA-256 of the token sent by e-mail. */
+  tokenHash: text('token_hash').notNull().unique(),
+  email: text('email').notNull(),
+  /** Set for password resets; for invitations, set when accepted. */
+  userId: integer('user_id').references(() => users.id, { onDelete: 'cascade' }),
+  /** Invitations: the role and accounts the new user gets. */
+  role: text('role', { enum: ['admin', 'billing', 'developer'] }),
+  accountIds: text('account_ids', { mode: 'json' }).$type<number[]>(),
+  createdByUserId: integer('created_by_user_id').references(() => users.id, { onDelete: 'set null' }),
+  createdAt: createdAt(),
+  expiresAt: integer('expires_at', { mode: 'timestamp_ms' }).notNull(),
+  usedAt: integer('used_at', { mode: 'timestamp_ms' }),
+});
+
+/** Every admin action: who, what, when, from where. */
+export const auditLog = sqliteTable(
+  'audit_log',
+  {
+    id: integer('id').primaryKey({ autoIncrement: true }),
+    at: integer('at', { mode: 'timestamp_ms' }).notNull(),
+    actorUserId: integer('actor_user_id').references(() => users.id, { onDelete: 'set null' }),
+    actorEmail: text('actor_email').notNull(),
+    /** e.g. "key.create", "account.update", "user.invite". */
+    action: text('action').notNull(),
+    targetType: text('target_type'),
+    targetId: text('target_id'),
+    detail: text('detail', { mode: 'json' }).$type<Record<string, unknown>>(),
+    ip: text('ip'),
+  },
+  (t) => [index('audit_log_at_idx').on(t.at)],
+);
+
+/** Every message the service sent (or failed to send). */
+export const mailLog = sqliteTable(
+  'mail_log',
+  {
+    id: integer('id').primaryKey({ autoIncrement: true }),
+    at: integer('at', { mode: 'timestamp_ms' }).notNull(),
+    kind: text('kind').notNull(),
+    to: text('to').notNull(),
+    subject: text('subject').notNull(),
+    status: text('status', { enum: ['sent', 'failed'] }).notNull(),
+    messageId: text('message_id'),
+    error: text('error'),
+  },
+  (t) => [index('mail_log_at_idx').on(t.at)],
+);
+
+/** Messages received by the local SMTP capture server (development and tests only). */
+export const capturedMail = sqliteTable('captured_mail', {
+  id: integer('id').primaryKey({ autoIncrement: true }),
+  receivedAt: integer('received_at', { mode: 'timestamp_ms' }).notNull(),
+  from: text('from_address').notNull(),
+  to: text('to_addresses', { mode: 'json' }).$type<string[]>().notNull(),
+  subject: text('subject').notNull(),
+  text: text('text_body'),
+  html: text('html_body'),
+  raw: text('raw').notNull(),
+});
+
+/** Quota notices already sent, so each threshold is mailed once per account per month. */
+export const quotaNotices = sqliteTable(
+  'quota_notices',
+  {
+    accountId: integer('account_id')
+      .notNull()
+      .references(() => accounts.id, { onDelete: 'cascade' }),
+    /** 'YYYY-MM' (UTC). */
+    month: text('month').notNull(),
+    /** Percent of the quota: 80 or 100. */
+    threshold: integer('threshold').notNull(),
+    sentAt: integer('sent_at', { mode: 'timestamp_ms' }).notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.accountId, t.month, t.threshold] })],
+);
+
+/** Price plans: accounts.plan names one. Money in the currency's minor unit (cents). */
+export const plans = sqliteTable('plans', {
+  name: text('name').primaryKey(),
+  displayName: text('display_name').notNull(),
+  includedUnits: integer('included_units').notNull(),
+  monthlyFeeMinor: integer('monthly_fee_minor').notNull().default(0),
+  pricePer1000UnitsMinor: integer('price_per_1000_units_minor').notNull(),
+  currency: text('currency').notNull().default('eur'),
+});
+
+/** A month's statement for an account, from the usage roll-ups; finalized into a provider invoice. */
+export const statements = sqliteTable(
+  'statements',
+  {
+    id: integer('id').primaryKey({ autoIncrement: true }),
+    accountId: integer('account_id')
+      .notNull()
+      .references(() => accounts.id, { onDelete: 'cascade' }),
+    /** 'YYYY-MM' (UTC). */
+    month: text('month').notNull(),
+    planName: text('plan_name').notNull(),
+    units: integer('units').notNull(),
+    includedUnits: integer('included_units').notNull(),
+    overageUnits: integer('overage_units').notNull(),
+    amountMinor: integer('amount_minor').notNull(),
+    currency: text('currency').notNull(),
+    status: text('status', { enum: ['draft', 'finalized', 'paid', 'void'] })
+      .notNull()
+      .default('draft'),
+    providerInvoiceId: text('provider_invoice_id').unique(),
+    finalizedAt: integer('finalized_at', { mode: 'timestamp_ms' }),
+    paidAt: integer('paid_at', { mode: 'timestamp_ms' }),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex('statements_account_month_idx').on(t.accountId, t.month)],
+);
+
+/** Provider webhook events already processed (idempotency). */
+export const paymentEvents = sqliteTable('payment_events', {
+  /** The provider's event id. */
+  id: text('id').primaryKey(),
+  type: text('type').notNull(),
+  receivedAt: integer('received_at', { mode: 'timestamp_ms' }).notNull(),
+});
