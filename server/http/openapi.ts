@@ -149,7 +149,8 @@ export function buildRegistry(): OpenAPIRegistry {
     path: '/v1/stored-liquors',
     operationId: 'createStoredLiquor',
     tags: ['Liquors'],
-    summary: 'Store a liquor of your own (JSON definition, or a Dühring table uploaded as CSV in multipart/form-data)',
+    summary:
+      'Store a liquor of your own (JSON definition, or a Dühring table uploaded as CSV in multipart/form-data)',
     description:
       'Bad CSV rows are reported by line number in the problem’s `errors` (field `file:line 7`). ' +
       'The stored id can then be used as `liquor` in any calculation.',

@@ -50,6 +50,7 @@ export const SteamStateRequestSchema = z
     temperature: quantity(specs.temperature, 'Temperature (give this or enthalpy)', 250).optional(),
     enthalpy: quantity(specs.enthalpy, 'Specific enthalpy (give this or temperature)', 2800).optional(),
   })
+  .strict()
   .superRefine((b, ctx) => {
     const given = (b.temperature !== undefined ? 1 : 0) + (b.enthalpy !== undefined ? 1 : 0);
     if (given !== 1) {

@@ -1,0 +1,41 @@
+// The committed openapi/openapi.json must be what scripts/generate-openapi.ts writes from the
+// current contracts (regenerate with `npx tsx scripts/generate-openapi.ts`).
+import { readFileSync } from 'node:fs';
+import { describe, expect, it } from 'vitest';
+import { openApiPath, serialiseOpenApi } from '../../scripts/generate-openapi.js';
+
+describe('openapi/openapi.json', () => {
+  it('matches the document generated from the zod contracts', () => {
+    expect(readFileSync(openApiPath, 'utf8')).toBe(serialiseOpenApi());
+  });
+
+  it('documents every route with the bearer scheme and problem details', () => {
+    const doc = JSON.parse(serialiseOpenApi()) as {
+      openapi: string;
+      paths: Record<
+        string,
+        Record<
+          string,
+          {
+            security?: unknown;
+            responses: Record<
+              string,
+              { content?: Record<string, unknown>; headers?: Record<string, unknown> }
+            >;
+          }
+        >
+      >;
+      components: { securitySchemes: Record<string, { scheme: string }> };
+    };
+    expect(doc.openapi).toBe('3.1.0'); // OpenAPI 3.1 (brief)
+    expect(doc.components.securitySchemes.bearerAuth?.scheme).toBe('bearer');
+    for (const [path, item] of Object.entries(doc.paths)) {
+      for (const [method, op] of Object.entries(item)) {
+        expect(op.security, `${method} ${path}`).toBeDefined();
+        expect(op.responses['422']?.content?.['application/problem+json'], `${method} ${path}`).toBeDefined();
+        // IETF draft-ietf-httpapi-ratelimit-headers-08 field names.
+        expect(Object.keys(op.responses['422']?.headers ?? {})).toEqual(['RateLimit', 'RateLimit-Policy']);
+      }
+    }
+  });
+});

@@ -1,0 +1,232 @@
+// Fuzz: random and adversarial bodies per route → never a 5xx, and never NaN/Infinity (or the
+// null JSON makes of them) in a 2xx body. Property-based with fast-check; runs in well under 60 s.
+import fc from 'fast-check';
+import request from 'supertest';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { makeHarness, type Harness } from './helpers.js';
+
+let h: Harness;
+beforeAll(() => {
+  h = makeHarness({ quota: 10_000_000, rateLimit: 100_000 });
+});
+
+const weirdNumber = fc.oneof(
+  fc.double({ noNaN: false }),
+  fc.constantFrom(0, -0, 1e-300, 1e300, -1, 0.999999, 1, 101.325, 22064, 611.2),
+);
+const quantity = fc.oneof(
+  weirdNumber,
+  fc.constantFrom(
+    '1.4 bar',
+    '2 barg',
+    '38 degC',
+    '4.5 t/h',
+    '65 %',
+    '60 Bx',
+    '-3 K',
+    '1e999 kPa',
+    'NaN',
+    '',
+    ' ',
+    'bar',
+  ),
+  fc.string({ maxLength: 12 }),
+  fc.constant(null),
+  fc.boolean(),
+  fc.constant({}),
+);
+const liquor = fc.oneof(
+  fc.constantFrom('sodium-hydroxide', 'sucrose', 'seawater', 'kraft-black-liquor', 'nope', ''),
+  fc.record({
+    name: fc.string({ minLength: 1, maxLength: 8 }),
+    boilingPointRise: fc.record({ polynomial: fc.array(weirdNumber, { minLength: 1, maxLength: 4 }) }),
+    heatCapacity: fc.record({ polynomial: fc.array(weirdNumber, { minLength: 1, maxLength: 3 }) }),
+  }),
+);
+
+/** NaN/±Infinity, or a null (what JSON makes of them) anywhere but an unbounded end of a validRange or an echoed input `value`. */
+function hasNonFiniteOrNull(v: unknown, key = '', parent = ''): boolean {
+  if (v === null) return !((parent === 'validRange' && (key === 'min' || key === 'max')) || key === 'value');
+  if (typeof v === 'number') return !Number.isFinite(v);
+  if (Array.isArray(v)) return v.some((x) => hasNonFiniteOrNull(x, '', key));
+  if (typeof v === 'object')
+    return Object.entries(v as object).some(([k, x]) => hasNonFiniteOrNull(x, k, key));
+  return false;
+}
+
+async function check(method: 'get' | 'post', path: string, payload: unknown): Promise<void> {
+  const req = request(h.app)[method](path).set('Authorization', `Bearer ${h.token}`);
+  const res =
+    method === 'get' ? await req.query(payload as Record<string, string>) : await req.send(payload as object);
+  expect(res.status, JSON.stringify(payload)).toBeLessThan(500);
+  if (res.status < 300) expect(hasNonFiniteOrNull(res.body), JSON.stringify(payload)).toBe(false);
+}
+
+const RUNS = 400;
+
+describe('fuzzed requests never give a 5xx or a non-finite number', () => {
+  it('GET /v1/steam/saturation', async () => {
+    await fc.assert(
+      fc.asyncProperty(fc.record({ pressure: quantity, temperature: quantity }, { requiredKeys: [] }), (q) =>
+        check(
+          'get',
+          '/v1/steam/saturation',
+          Object.fromEntries(Object.entries(q).map(([k, v]) => [k, String(v)])),
+        ),
+      ),
+      { numRuns: RUNS },
+    );
+  });
+
+  it('POST /v1/steam/state', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.record({ pressure: quantity, temperature: quantity, enthalpy: quantity }, { requiredKeys: [] }),
+        (b) => check('post', '/v1/steam/state', b),
+      ),
+      { numRuns: RUNS },
+    );
+  });
+
+  it('POST /v1/liquors/{id}/boiling-point and /enthalpy', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.constantFrom('sodium-hydroxide', 'sucrose', 'seawater', 'kraft-black-liquor'),
+        fc.constantFrom('boiling-point', 'enthalpy'),
+        fc.record(
+          { massFraction: quantity, pressure: quantity, temperature: quantity },
+          { requiredKeys: [] },
+        ),
+        (id, what, b) => {
+          const body =
+            what === 'enthalpy'
+              ? { massFraction: b.massFraction, temperature: b.temperature }
+              : { massFraction: b.massFraction, pressure: b.pressure };
+          return check('post', `/v1/liquors/${id}/${what}`, body);
+        },
+      ),
+      { numRuns: RUNS * 2 },
+    );
+  });
+
+  it('POST /v1/evaporators/single-effect', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        liquor,
+        fc.record({ massFlow: quantity, massFraction: quantity, temperature: quantity }),
+        fc.record({ massFraction: quantity }, { requiredKeys: [] }),
+        fc.record(
+          { pressure: quantity, overallHeatTransferCoefficient: quantity, area: quantity },
+          { requiredKeys: ['pressure', 'overallHeatTransferCoefficient'] },
+        ),
+        quantity,
+        (l, feed, product, body, steamP) =>
+          check('post', '/v1/evaporators/single-effect', {
+            liquor: l,
+            feed,
+            product,
+            body,
+            steam: { pressure: steamP },
+          }),
+      ),
+      { numRuns: RUNS },
+    );
+  });
+
+  it('POST /v1/evaporators/single-effect with plausible numbers', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.constantFrom('sodium-hydroxide', 'sucrose', 'seawater', 'kraft-black-liquor'),
+        fc.double({ min: 0.01, max: 50, noNaN: true }),
+        fc.double({ min: 0, max: 0.6, noNaN: true }),
+        fc.double({ min: 0, max: 0.9, noNaN: true }),
+        fc.double({ min: 1, max: 200, noNaN: true }),
+        fc.double({ min: 50, max: 2000, noNaN: true }),
+        fc.double({ min: 1, max: 150, noNaN: true }),
+        fc.option(fc.double({ min: 1, max: 500, noNaN: true })),
+        (l, F, xF, xL, p, ps, t, area) =>
+          check('post', '/v1/evaporators/single-effect', {
+            liquor: l,
+            feed: { massFlow: F, massFraction: xF, temperature: t },
+            product: area === null ? { massFraction: xL } : {},
+            steam: { pressure: ps },
+            body: { pressure: p, overallHeatTransferCoefficient: 1500, ...(area === null ? {} : { area }) },
+          }),
+      ),
+      { numRuns: RUNS },
+    );
+  });
+
+  it('POST /v1/evaporators/multiple-effect', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.constantFrom('sodium-hydroxide', 'sucrose', 'seawater', 'nope'),
+        fc.integer({ min: 0, max: 11 }),
+        fc.oneof(
+          fc.constantFrom('forward', 'backward', 'parallel', 'sideways'),
+          fc.array(fc.integer({ min: 0, max: 5 }), { maxLength: 5 }),
+        ),
+        fc.double({ min: 0.1, max: 20, noNaN: true }),
+        fc.double({ min: 0.01, max: 0.3, noNaN: true }),
+        fc.double({ min: 0.2, max: 0.7, noNaN: true }),
+        fc.double({ min: 5, max: 100, noNaN: true }),
+        fc.array(fc.oneof(weirdNumber, fc.double({ min: 500, max: 4000, noNaN: true })), { maxLength: 6 }),
+        (l, n, arrangement, F, xF, xL, pLast, us) =>
+          check('post', '/v1/evaporators/multiple-effect', {
+            liquor: l,
+            effects: n,
+            feedArrangement: arrangement,
+            feed: { massFlow: F, massFraction: xF, temperature: 60 },
+            product: { massFraction: xL },
+            steam: { pressure: '3 barg' },
+            lastEffectPressure: pLast,
+            overallHeatTransferCoefficients: us.length === n ? us : Array.from({ length: n }, () => 2000),
+          }),
+      ),
+      { numRuns: RUNS / 2 },
+    );
+  });
+
+  it('POST /v1/batch', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.constantFrom(
+          'steam-saturation',
+          'steam-state',
+          'liquor-boiling-point',
+          'liquor-enthalpy',
+          'single-effect',
+          'bogus',
+        ),
+        fc.option(liquor),
+        fc.array(
+          fc.dictionary(
+            fc.constantFrom('pressure', 'temperature', 'massFraction', 'enthalpy', 'feed', 'liquor'),
+            quantity,
+          ),
+          { maxLength: 5 },
+        ),
+        (operation, l, cases) =>
+          check('post', '/v1/batch', { operation, ...(l === null ? {} : { liquor: l }), cases }),
+      ),
+      { numRuns: RUNS / 2 },
+    );
+  });
+
+  it('adversarial shapes on every POST route', async () => {
+    const paths = [
+      '/v1/steam/state',
+      '/v1/liquors/sucrose/boiling-point',
+      '/v1/evaporators/single-effect',
+      '/v1/evaporators/multiple-effect',
+      '/v1/batch',
+      '/v1/stored-liquors',
+    ];
+    await fc.assert(
+      fc.asyncProperty(fc.constantFrom(...paths), fc.jsonValue({ maxDepth: 3 }), (path, body) =>
+        check('post', path, typeof body === 'object' && body !== null ? body : [body]),
+      ),
+      { numRuns: RUNS },
+    );
+  });
+});
