@@ -413,3 +413,10 @@ export function openApiRouter(): Router {
   );
   return router;
 }
+
+/** For app.ts: `appModules.push(openApiModule)` (or `app.use(openApiRouter())` before /v1). */
+export const openApiModule = {
+  register(app: { use: (handler: Router) => unknown }): void {
+    app.use(openApiRouter());
+  },
+};

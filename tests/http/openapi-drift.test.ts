@@ -39,3 +39,18 @@ describe('openapi/openapi.json', () => {
     }
   });
 });
+
+describe('openApiRouter', () => {
+  it('serves /openapi.json and the Swagger UI page at /docs without a CDN', async () => {
+    const express = (await import('express')).default;
+    const request = (await import('supertest')).default;
+    const { openApiRouter } = await import('../../server/http/openapi.js');
+    const app = express().use(openApiRouter());
+    const doc = await request(app).get('/openapi.json');
+    expect(doc.status).toBe(200);
+    expect(doc.body.openapi).toBe('3.1.0');
+    const page = await request(app).get('/docs/');
+    expect(page.status).toBe(200);
+    expect(page.text).not.toMatch(/https?:\/\/(cdn|unpkg)/);
+  });
+});
