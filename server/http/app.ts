@@ -14,6 +14,7 @@ import { bodyErrorTranslator } from './middleware/body.js';
 import { requestId } from './middleware/request-id.js';
 import { problem, problemCatalogue, ProblemError, sendProblem, type ProblemSlug } from './problem.js';
 import { createV1Router } from './v1/index.js';
+import { openApiModule } from './openapi.js';
 
 export interface AppDeps {
   db: Db;
@@ -31,7 +32,7 @@ export interface AppModule {
 }
 
 /** Other modules append themselves here, one line each. */
-export const appModules: AppModule[] = [];
+export const appModules: AppModule[] = [openApiModule];
 
 function escapeHtml(text: string): string {
   return text.replace(/[&<>"']/g, (c) => `&#${c.charCodeAt(0)};`);

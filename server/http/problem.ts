@@ -77,6 +77,18 @@ export const problemCatalogue = {
     title: 'Not found',
     description: 'No resource or route exists at this path.',
   },
+  conflict: {
+    status: 409,
+    title: 'Conflict',
+    description:
+      'The resource exists already (for example a stored liquor id that is taken); choose another id.',
+  },
+  'csrf-failed': {
+    status: 403,
+    title: 'CSRF check failed',
+    description:
+      'A state-changing console request must send the X-CSRF-Token header equal to the ebullio_csrf cookie (GET /console-api/auth/csrf sets it).',
+  },
   'payload-too-large': {
     status: 413,
     title: 'Payload too large',

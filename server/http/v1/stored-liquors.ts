@@ -24,7 +24,7 @@ import { storedLiquors } from '../../db/schema.js';
 import { slugify } from '../../engine/liquors/custom.js';
 import { findBuiltInLiquor } from '../../engine/liquors/registry.js';
 import { requireOperation } from '../middleware/operation.js';
-import { problem, ProblemError, type ProblemFieldError } from '../problem.js';
+import { problem, type ProblemFieldError } from '../problem.js';
 import { validate } from '../validation.js';
 import { buildCustomLiquor } from './liquors.js';
 import type { V1RouteModule } from './index.js';
@@ -253,13 +253,11 @@ export const storedLiquorRoutes: V1RouteModule = {
         });
       }
       if (findBuiltInLiquor(id) || findStoredLiquor(deps.db, accountId, id)) {
-        throw new ProblemError({
-          status: 409,
-          type: 'conflict',
-          title: 'Conflict',
-          detail: `A liquor with the id "${id}" exists already; choose another id or delete the stored one first.`,
-          errors: [{ field: 'id', message: 'is taken', value: id }],
-        });
+        throw problem(
+          'conflict',
+          `A liquor with the id "${id}" exists already; choose another id or delete the stored one first.`,
+          { errors: [{ field: 'id', message: 'is taken', value: id }] },
+        );
       }
       buildCustomLiquor(input.definition, 'definition', id); // refuses a definition the engine cannot use
       const createdAt = deps.clock();
