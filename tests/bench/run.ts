@@ -1,0 +1,26 @@
+/**
+ * `npm run bench`: every speed and size target measured in one run, printed as figures and
+ * ratios (never asserted by timed unit tests). Each section also runs alone:
+ * `npx tsx tests/bench/<section>.ts`.
+ */
+import os from 'node:os';
+import { runSteamBench } from './steam.js';
+import { runSingleEffectBench } from './single-effect.js';
+import { runMultipleEffectBench } from './multiple-effect.js';
+
+const sections: { title: string; run: () => Promise<void> }[] = [
+  { title: 'IAPWS-IF97 steam properties', run: runSteamBench },
+  { title: 'Single-effect evaporator', run: runSingleEffectBench },
+  { title: 'Multiple-effect evaporator', run: runMultipleEffectBench },
+];
+
+console.log(
+  `Ebullio benchmarks — node ${process.version}, ${os.cpus().length} × ${os.cpus()[0]?.model ?? 'cpu'}, load ${os
+    .loadavg()
+    .map((l) => l.toFixed(2))
+    .join(' ')}`,
+);
+for (const section of sections) {
+  console.log(`\n## ${section.title}`);
+  await section.run();
+}
