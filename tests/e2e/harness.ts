@@ -1,0 +1,219 @@
+/**
+ * Browser-test harness: the real server process (`tsx server/main.ts`) on a free port with a temp
+ * database, and Debian's Chromium driven by playwright-core (never a downloaded browser).
+ *
+ * - `ensureConsoleBuilt()` runs `npm run build` once when console/dist is missing.
+ * - `startServer()` spawns the server with a bootstrap API key and admin, the development mail
+ *   capture and fake payment provider enabled, and waits for /readyz.
+ * - `openBrowser(origin)` launches Chromium with a fresh profile and records every request the
+ *   page makes, so a test can assert that none leaves the server's origin.
+ * - `screenshot(page, name)` saves test-results/screenshots/<name>.png (git-ignored).
+ */
+import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
+import crypto from 'node:crypto';
+import fs from 'node:fs';
+import net from 'node:net';
+import os from 'node:os';
+import path from 'node:path';
+import { chromium, type BrowserContext, type Page } from 'playwright-core';
+
+export const ROOT = path.resolve(import.meta.dirname, '../..');
+export const CHROMIUM = '/usr/bin/chromium';
+export const SCREENSHOT_DIR = path.join(ROOT, 'test-results', 'screenshots');
+
+export const ADMIN_EMAIL = 'e2e-admin@ebullio.invalid';
+export const ADMIN_PASSWORD = 'e2e admin passphrase 4711';
+
+/** A free TCP port on 127.0.0.1 (the kernel picks it; we release it just before the server binds). */
+export async function freePort(): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const srv = net.createServer();
+    srv.unref();
+    srv.on('error', reject);
+    srv.listen(0, '127.0.0.1', () => {
+      const address = srv.address();
+      const port = typeof address === 'object' && address ? address.port : 0;
+      srv.close(() => resolve(port));
+    });
+  });
+}
+
+/** Builds the console once (`npm run build`) when console/dist/index.html is missing. */
+export function ensureConsoleBuilt(): { built: boolean; present: boolean } {
+  const dist = path.join(ROOT, 'console', 'dist', 'index.html');
+  if (fs.existsSync(dist)) return { built: false, present: true };
+  if (!fs.existsSync(path.join(ROOT, 'console', 'vite.config.ts'))) return { built: false, present: false };
+  const out = spawnSync('npm', ['run', 'build'], { cwd: ROOT, encoding: 'utf8', timeout: 180_000 });
+  if (out.status !== 0) throw new Error(`console build failed:\n${out.stdout}\n${out.stderr}`);
+  return { built: true, present: fs.existsSync(dist) };
+}
+
+export interface RunningServer {
+  origin: string;
+  port: number;
+  dir: string;
+  dbFile: string;
+  apiKey: string;
+  /** Ports of the development stand-ins given to the server. */
+  smtpPort: number;
+  paymentsPort: number;
+  child: ChildProcess;
+  output(): string;
+  stop(): Promise<number | null>;
+}
+
+/** Polls `url` until it answers 200 or the deadline passes. */
+export async function waitFor200(url: string, timeoutMs: number, isDead: () => string | undefined) {
+  const deadline = Date.now() + timeoutMs;
+  let last = '';
+  while (Date.now() < deadline) {
+    const dead = isDead();
+    if (dead !== undefined) throw new Error(dead);
+    try {
+      const res = await fetch(url);
+      if (res.status === 200) return;
+      last = `HTTP ${res.status}`;
+    } catch (err) {
+      last = (err as Error).message;
+    }
+    await new Promise((r) => setTimeout(r, 150));
+  }
+  throw new Error(`${url} not ready after ${timeoutMs} ms (${last})`);
+}
+
+export async function startServer(extraEnv: Record<string, string> = {}): Promise<RunningServer> {
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'ebullio-e2e-'));
+  const dbFile = path.join(dir, 'e2e.db');
+  const [port, smtpPort, paymentsPort] = [await freePort(), await freePort(), await freePort()];
+  // BOOTSTRAP_API_KEY: 32–256 chars of [A-Za-z0-9_.-] (server/config.ts).
+  const apiKey = `ebl_live_E2eBootstrap_${crypto.randomBytes(18).toString('base64url')}`;
+  const env: Record<string, string> = {
+    ...(process.env as Record<string, string>),
+    NODE_ENV: 'development',
+    PORT: String(port),
+    DB_FILE: dbFile,
+    BOOTSTRAP_API_KEY: apiKey,
+    BOOTSTRAP_ADMIN_EMAIL: ADMIN_EMAIL,
+    BOOTSTRAP_ADMIN_PASSWORD: ADMIN_PASSWORD,
+    // Development stand-ins (read by server/main.ts): the SMTP capture server and the fake payment
+    // provider, on ports picked here so parallel test files do not collide.
+    MAIL_CAPTURE: 'on',
+    MAIL_CAPTURE_PORT: String(smtpPort),
+    SMTP_URL: `smtp://127.0.0.1:${smtpPort}`,
+    FAKE_PAYMENTS: 'on',
+    FAKE_PAYMENTS_PORT: String(paymentsPort),
+    ...extraEnv,
+  };
+  const child = spawn(path.join(ROOT, 'node_modules/.bin/tsx'), ['server/main.ts'], {
+    cwd: ROOT,
+    env,
+    stdio: ['ignore', 'pipe', 'pipe'],
+  });
+  let output = '';
+  let exitCode: number | null | undefined;
+  child.stdout?.on('data', (d: Buffer) => (output += d.toString()));
+  child.stderr?.on('data', (d: Buffer) => (output += d.toString()));
+  const exited = new Promise<number | null>((resolve) =>
+    child.on('exit', (code) => {
+      exitCode = code;
+      resolve(code);
+    }),
+  );
+  const origin = `http://127.0.0.1:${port}`;
+  await waitFor200(`${origin}/readyz`, 30_000, () =>
+    exitCode !== undefined ? `server exited early (${exitCode}):\n${output}` : undefined,
+  );
+  return {
+    origin,
+    port,
+    dir,
+    dbFile,
+    apiKey,
+    smtpPort,
+    paymentsPort,
+    child,
+    output: () => output,
+    async stop() {
+      if (exitCode === undefined) {
+        child.kill('SIGTERM');
+        const timer = setTimeout(() => child.kill('SIGKILL'), 12_000);
+        const code = await exited;
+        clearTimeout(timer);
+        fs.rmSync(dir, { recursive: true, force: true });
+        return code;
+      }
+      fs.rmSync(dir, { recursive: true, force: true });
+      return exitCode;
+    },
+  };
+}
+
+export interface BrowserSession {
+  context: BrowserContext;
+  page: Page;
+  /** Every URL the page requested (documents, scripts, styles, fonts, XHR/fetch, images). */
+  requests: string[];
+  /** Requests whose origin differs from the server's (should stay empty). */
+  foreignRequests(): string[];
+  /** Console errors and uncaught page errors. */
+  pageErrors: string[];
+  close(): Promise<void>;
+}
+
+export async function openBrowser(origin: string): Promise<BrowserSession> {
+  if (!fs.existsSync(CHROMIUM)) {
+    // Fail, not skip: .ci/run installs Debian's chromium.
+    throw new Error(`${CHROMIUM} is missing: install Debian's chromium (apt-get install chromium)`);
+  }
+  const profile = fs.mkdtempSync(path.join(os.tmpdir(), 'ebullio-chromium-'));
+  const context = await chromium.launchPersistentContext(profile, {
+    executablePath: CHROMIUM,
+    headless: true,
+    viewport: { width: 1366, height: 860 },
+    args: [
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+      '--no-first-run',
+    ],
+  });
+  const requests: string[] = [];
+  const pageErrors: string[] = [];
+  context.on('request', (req) => requests.push(req.url()));
+  const page = context.pages()[0] ?? (await context.newPage());
+  page.on('pageerror', (err) => pageErrors.push(err.message));
+  page.on('console', (msg) => {
+    if (msg.type() === 'error') pageErrors.push(msg.text());
+  });
+  const allowed = new URL(origin).origin;
+  return {
+    context,
+    page,
+    requests,
+    pageErrors,
+    foreignRequests: () =>
+      requests.filter((u) => {
+        // data: and blob: URLs are produced inside the page (inline fonts, chart canvases).
+        if (u.startsWith('data:') || u.startsWith('blob:')) return false;
+        try {
+          return new URL(u).origin !== allowed;
+        } catch {
+          return true;
+        }
+      }),
+    async close() {
+      await context.close();
+      fs.rmSync(profile, { recursive: true, force: true });
+    },
+  };
+}
+
+/** Saves a full-page screenshot as test-results/screenshots/<name>.png and returns its path. */
+export async function screenshot(page: Page, name: string): Promise<string> {
+  fs.mkdirSync(SCREENSHOT_DIR, { recursive: true });
+  const file = path.join(SCREENSHOT_DIR, `${name}.png`);
+  await page.screenshot({ path: file, fullPage: true });
+  return file;
+}
