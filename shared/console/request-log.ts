@@ -1,0 +1,95 @@
+/**
+ * Console contracts: the request log (GET /console-api/request-log, /request-log/:id,
+ * /request-log/export.csv). Paging, sorting and filtering happen on the server.
+ */
+import { z } from 'zod';
+import { IdNumberSchema, InstantSchema } from './accounts.js';
+
+export const MAX_PAGE_SIZE = 200;
+/** The CSV export stops after this many rows (the response says so in a header). */
+export const CSV_ROW_CAP = 50_000;
+
+/** "404", or a class "4xx" (1xx–5xx). */
+export const StatusFilterSchema = z
+  .string()
+  .regex(/^(?:[1-5][0-9][0-9]|[1-5]xx)$/, { error: 'must be a status like 404 or a class like 4xx' });
+
+export const RequestLogFilterSchema = z.object({
+  accountId: IdNumberSchema.optional(),
+  keyId: IdNumberSchema.optional(),
+  operation: z.string().min(1).max(64).optional().meta({ description: 'Operation id, e.g. steam.state' }),
+  status: StatusFilterSchema.optional(),
+  from: InstantSchema.optional().meta({ description: 'At or after this instant' }),
+  to: InstantSchema.optional().meta({ description: 'Before this instant' }),
+  requestId: z.string().min(1).max(128).optional(),
+});
+export type RequestLogFilter = z.infer<typeof RequestLogFilterSchema>;
+
+export const RequestLogSortSchema = z.enum(['at', 'latency', 'status']);
+
+export const RequestLogQuerySchema = RequestLogFilterSchema.extend({
+  page: z.coerce.number().int().min(1).max(1_000_000).default(1),
+  pageSize: z.coerce.number().int().min(1).max(MAX_PAGE_SIZE).default(50),
+  sort: RequestLogSortSchema.default('at'),
+  order: z.enum(['asc', 'desc']).default('desc'),
+});
+export type RequestLogQuery = z.infer<typeof RequestLogQuerySchema>;
+
+export const RequestLogItemSchema = z
+  .object({
+    id: z.int(),
+    requestId: z.string(),
+    at: InstantSchema,
+    accountId: z.int().nullable(),
+    keyId: z.int().nullable(),
+    method: z.string(),
+    path: z.string(),
+    operation: z.string().nullable().meta({ description: 'Metered operation, when the request reached one' }),
+    status: z.int(),
+    latencyMs: z.int(),
+    units: z.int().nullable(),
+  })
+  .meta({ id: 'ConsoleRequestLogItem' });
+export type RequestLogItem = z.infer<typeof RequestLogItemSchema>;
+
+export const RequestLogPageSchema = z
+  .object({
+    items: z.array(RequestLogItemSchema),
+    total: z.int(),
+    page: z.int(),
+    pageSize: z.int(),
+  })
+  .meta({ id: 'ConsoleRequestLogPage' });
+export type RequestLogPage = z.infer<typeof RequestLogPageSchema>;
+
+export const RequestLogIdParamsSchema = z.object({ id: IdNumberSchema });
+
+export const RequestLogDetailSchema = RequestLogItemSchema.extend({
+  engineVersion: z.string(),
+  bodiesRetained: z
+    .boolean()
+    .meta({ description: 'False when the account does not retain bodies (both bodies are then null)' }),
+  requestBody: z.string().nullable().meta({ description: 'Redacted, truncated at the log limit' }),
+  responseBody: z.string().nullable().meta({ description: 'Redacted, truncated at the log limit' }),
+  timings: z.object({
+    receivedAt: InstantSchema.meta({ description: 'at − latency' }),
+    completedAt: InstantSchema.meta({ description: 'When the response was metered and logged' }),
+    latencyMs: z.int(),
+  }),
+}).meta({ id: 'ConsoleRequestLogDetail' });
+export type RequestLogDetail = z.infer<typeof RequestLogDetailSchema>;
+
+/** Columns of GET /request-log/export.csv, in order. */
+export const REQUEST_LOG_CSV_COLUMNS = [
+  'id',
+  'requestId',
+  'at',
+  'accountId',
+  'keyId',
+  'method',
+  'path',
+  'operation',
+  'status',
+  'latencyMs',
+  'units',
+] as const;
