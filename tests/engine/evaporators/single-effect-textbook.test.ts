@@ -10,6 +10,7 @@ import { describe, expect, it } from 'vitest';
 import { designSingleEffect, rateSingleEffect } from '../../../server/engine/evaporators/single-effect.js';
 import { createCustomLiquor } from '../../../server/engine/liquors/custom.js';
 import { sodiumHydroxide } from '../../../server/engine/liquors/sodium-hydroxide.js';
+import { saturationTemperature } from '../../../server/engine/steam/if97.js';
 
 const rel = (a: number, b: number) => Math.abs(a - b) / Math.abs(b);
 const C = (t: number) => t + 273.15;
@@ -130,5 +131,36 @@ describe('McCabe, Smith and Harriott (7th ed.) Example 16.1 with the sodium-hydr
     // McCabe Ex. 16.1: A = 933 ft² at ΔT = 62 °F (= 34.44 K)
     expect(rel((r.area / FT2) * r.temperatureDifference, 933 * ((62 * 5) / 9))).toBeLessThan(0.03);
     expect(rel(r.area / FT2, 933)).toBeLessThan(0.083);
+  });
+});
+
+describe('Coulson & Richardson Vol. 2 (5th ed.) Example 14.1 with a custom polynomial liquor', () => {
+  // Book values (as reproduced in a published worked-example companion): 7 kg/s of 10 % solids at
+  // 294 K to 50 %; dry saturated steam at 205 kN/m² (394 K); evaporation at 13.5 kN/m² (325 K);
+  // no BPR; c_p 3.76 kJ/(kg·K) for the feed and 3.14 for the product (a line in x through both);
+  // condensate leaves at 352.7 K; U = 3 kW/(m²·K). Book: heat from the steam 14 202 kW, ΔT 69 K,
+  // area 68.6 m². Its steam figure (6.47 kg/s) uses 2530 kJ/kg for saturated steam at 205 kN/m²,
+  // against 2706 kJ/kg in IAPWS-IF97, so steam is not compared; duty and area do not use it.
+  const liquor = createCustomLiquor({
+    name: 'Coulson-Richardson 14.1 liquor',
+    boilingPointRise: { polynomial: [0] },
+    heatCapacity: { polynomial: [3915, -1550] },
+    validity: { massFraction: { min: 0, max: 0.6 } },
+  });
+
+  it('needs the book’s duty and area within the steam-table rounding (1 %)', () => {
+    const condensing = saturationTemperature(205e3);
+    const r = designSingleEffect({
+      liquor,
+      feed: { massFlow: 7, massFraction: 0.1, temperature: 294 },
+      product: { massFraction: 0.5 },
+      steam: { pressure: 205e3, condensateSubcooling: condensing - 352.7 },
+      body: { pressure: 13.5e3, overallHeatTransferCoefficient: 3000 },
+    });
+    // book: 5.6 kg/s evaporated, 14 202 kW, ΔT 69 K (394 − 325, rounded to 1 K), 68.6 m²
+    expect(rel(r.vapor.massFlow, 5.6)).toBeLessThan(1e-12);
+    expect(rel(r.duty, 14_202e3)).toBeLessThan(0.01);
+    expect(Math.abs(r.temperatureDifference - 69)).toBeLessThan(1);
+    expect(rel(r.area, 68.6)).toBeLessThan(0.01);
   });
 });
