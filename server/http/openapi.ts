@@ -36,6 +36,7 @@ import {
   StoredLiquorListSchema,
   StoredLiquorSchema,
   StoredLiquorUploadSchema,
+  UsageResponseSchema,
 } from '../../shared/contracts/index.js';
 
 extendZodWithOpenApi(z);
@@ -98,7 +99,7 @@ export function buildRegistry(): OpenAPIRegistry {
   registry.registerComponent('securitySchemes', 'bearerAuth', {
     type: 'http',
     scheme: 'bearer',
-    description: 'An API key created in the console: `Authorization: Bearer ebk_…`',
+    description: 'An API key created in the console: `Authorization: Bearer ebl_live_…`',
   });
   const security = [{ bearerAuth: [] }];
 
@@ -350,6 +351,19 @@ export function buildRegistry(): OpenAPIRegistry {
       413: problem(`More than ${MAX_BATCH_ROWS} cases, or the upload is too large (type payload-too-large)`),
       ...commonProblems,
     },
+  });
+
+  registry.registerPath({
+    method: 'get',
+    path: '/v1/usage',
+    operationId: 'getUsage',
+    tags: ['Usage'],
+    summary: "The calling account's usage this month and its quota (costs 0 units)",
+    description:
+      'Totals, by operation and by day for the current calendar month (UTC), and the quota: limit, used, remaining and when it resets. ' +
+      'Requests answered with a status of 400 or more are counted but charge no units.',
+    security,
+    responses: { 200: ok('Usage this month', UsageResponseSchema), ...commonProblems },
   });
 
   return registry;

@@ -4,3 +4,4 @@ export * from './steam.js';
 export * from './liquors.js';
 export * from './evaporators.js';
 export * from './batch.js';
+export * from './usage.js';
