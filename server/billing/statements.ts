@@ -1,0 +1,237 @@
+/**
+ * Monthly statements: generated from the usage_daily roll-up, one per account and month.
+ *
+ * `generateStatements` creates missing statements and recomputes DRAFT ones; a finalized, paid or
+ * void statement is never changed. Line items are derived from the statement's stored figures and
+ * its plan's prices (plans are never edited by the service; see plans.ts).
+ */
+import { and, eq, type SQL } from 'drizzle-orm';
+import type { Db, Sqlite } from '../db/client.js';
+import { accounts, statements } from '../db/schema.js';
+import { getPlan, listPlans, type PlanRow } from './plans.js';
+import {
+  computeStatement,
+  isMonthComplete,
+  monthDayRange,
+  overageBlocks,
+  type LineItem,
+} from './statement.js';
+import type {
+  GenerateStatementsResponse,
+  Statement,
+  StatementDetail,
+  StatementStatus,
+} from '../../shared/console/billing.js';
+
+export type StatementRow = typeof statements.$inferSelect;
+
+/** Units per account in a month (UTC), from usage_daily. Accounts without usage are absent. */
+export function unitsByAccount(sqlite: Sqlite, month: string): Map<number, number> {
+  const { fromDay, toDay } = monthDayRange(month);
+  const rows = sqlite
+    .prepare(
+      `SELECT account_id AS accountId, COALESCE(SUM(units), 0) AS units FROM usage_daily
+       WHERE day >= ? AND day < ? GROUP BY account_id`,
+    )
+    .all(fromDay, toDay) as { accountId: number; units: number }[];
+  return new Map(rows.map((r) => [r.accountId, r.units]));
+}
+
+function toStatement(row: StatementRow, accountName: string, plan: PlanRow | undefined): Statement {
+  return {
+    id: row.id,
+    accountId: row.accountId,
+    accountName,
+    month: row.month,
+    planName: row.planName,
+    planDisplayName: plan?.displayName ?? null,
+    units: row.units,
+    includedUnits: row.includedUnits,
+    overageUnits: row.overageUnits,
+    overageBlocks: overageBlocks(row.overageUnits),
+    amountMinor: row.amountMinor,
+    currency: row.currency,
+    status: row.status,
+    providerInvoiceId: row.providerInvoiceId,
+    createdAt: row.createdAt.toISOString(),
+    finalizedAt: row.finalizedAt ? row.finalizedAt.toISOString() : null,
+    paidAt: row.paidAt ? row.paidAt.toISOString() : null,
+  };
+}
+
+/** Creates or refreshes the statements of `month` for every account. */
+export function generateStatements(
+  db: Db,
+  sqlite: Sqlite,
+  month: string,
+  now: Date,
+): GenerateStatementsResponse {
+  const units = unitsByAccount(sqlite, month);
+  const planByName = new Map(listPlans(db).map((p) => [p.name, p]));
+  const result: GenerateStatementsResponse = {
+    month,
+    monthComplete: isMonthComplete(month, now),
+    created: 0,
+    refreshed: 0,
+    frozen: 0,
+    skipped: [],
+    items: [],
+  };
+  db.transaction((tx) => {
+    for (const account of tx.select().from(accounts).orderBy(accounts.id).all()) {
+      const existing = tx
+        .select()
+        .from(statements)
+        .where(and(eq(statements.accountId, account.id), eq(statements.month, month)))
+        .get();
+      if (existing && existing.status !== 'draft') {
+        result.frozen++;
+        result.items.push(toStatement(existing, account.name, planByName.get(existing.planName)));
+        continue;
+      }
+      const plan = planByName.get(account.plan);
+      if (!plan) {
+        result.skipped.push({
+          accountId: account.id,
+          accountName: account.name,
+          reason: `The account's plan "${account.plan}" does not exist.`,
+        });
+        continue;
+      }
+      const figures = computeStatement(units.get(account.id) ?? 0, plan);
+      const values = {
+        planName: plan.name,
+        units: figures.units,
+        includedUnits: figures.includedUnits,
+        overageUnits: figures.overageUnits,
+        amountMinor: figures.amountMinor,
+        currency: figures.currency,
+      };
+      let row: StatementRow;
+      if (existing) {
+        row = tx.update(statements).set(values).where(eq(statements.id, existing.id)).returning().get();
+        result.refreshed++;
+      } else {
+        row = tx
+          .insert(statements)
+          .values({ accountId: account.id, month, status: 'draft', createdAt: now, ...values })
+          .returning()
+          .get();
+        result.created++;
+      }
+      result.items.push(toStatement(row, account.name, plan));
+    }
+  });
+  return result;
+}
+
+export interface StatementFilter {
+  month?: string;
+  accountId?: number;
+  status?: StatementStatus;
+}
+
+export function listStatements(db: Db, filter: StatementFilter): Statement[] {
+  const conditions: SQL[] = [];
+  if (filter.month) conditions.push(eq(statements.month, filter.month));
+  if (filter.accountId !== undefined) conditions.push(eq(statements.accountId, filter.accountId));
+  if (filter.status) conditions.push(eq(statements.status, filter.status));
+  const planByName = new Map(listPlans(db).map((p) => [p.name, p]));
+  return db
+    .select({ statement: statements, accountName: accounts.name })
+    .from(statements)
+    .innerJoin(accounts, eq(statements.accountId, accounts.id))
+    .where(conditions.length > 0 ? and(...conditions) : undefined)
+    .orderBy(statements.month, statements.accountId)
+    .all()
+    .map((r) => toStatement(r.statement, r.accountName, planByName.get(r.statement.planName)));
+}
+
+export function getStatementRow(db: Db, id: number): StatementRow | undefined {
+  return db.select().from(statements).where(eq(statements.id, id)).get();
+}
+
+/**
+ * The statement with its line items. The prices come from the plan; if the plan has gone or its
+ * prices no longer reproduce the stored amount, the line items are rebuilt from the stored figures
+ * alone (fee = amount − overage) so they always sum to `amountMinor`.
+ */
+export function statementDetail(db: Db, id: number): StatementDetail | undefined {
+  const found = db
+    .select({ statement: statements, account: accounts })
+    .from(statements)
+    .innerJoin(accounts, eq(statements.accountId, accounts.id))
+    .where(eq(statements.id, id))
+    .get();
+  if (!found) return undefined;
+  const { statement: row, account } = found;
+  const plan = getPlan(db, row.planName);
+  let lineItems: LineItem[];
+  let monthlyFeeMinor: number;
+  let pricePer1000UnitsMinor: number;
+  const recomputed = plan
+    ? computeStatement(row.units, { ...plan, includedUnits: row.includedUnits })
+    : undefined;
+  if (
+    plan &&
+    recomputed &&
+    recomputed.amountMinor === row.amountMinor &&
+    recomputed.currency === row.currency
+  ) {
+    lineItems = recomputed.lineItems;
+    monthlyFeeMinor = plan.monthlyFeeMinor;
+    pricePer1000UnitsMinor = plan.pricePer1000UnitsMinor;
+  } else {
+    // Plan gone or repriced since: keep the stored total, show it as one fee line.
+    monthlyFeeMinor = row.amountMinor;
+    pricePer1000UnitsMinor = 0;
+    lineItems =
+      row.amountMinor > 0
+        ? [
+            {
+              code: 'monthly-fee',
+              description: `Plan "${row.planName}" for ${row.month} (${row.units} units, ${row.overageUnits} beyond the included ${row.includedUnits}); the plan's current prices differ`,
+              quantity: 1,
+              unitAmountMinor: row.amountMinor,
+              amountMinor: row.amountMinor,
+            },
+          ]
+        : [];
+  }
+  return {
+    ...toStatement(row, account.name, plan),
+    billingEmail: account.billingEmail,
+    monthlyFeeMinor,
+    pricePer1000UnitsMinor,
+    lineItems,
+  };
+}
+
+/** RFC 4180 field quoting, with formula-leading text neutralised (OWASP "CSV Injection"). */
+export function csvField(value: string | number): string {
+  let text = String(value);
+  if (typeof value === 'string' && /^[=+\-@\t\r]/.test(text)) text = `'${text}`;
+  return /[",\r\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
+}
+
+/** The statement's line items as CSV (header row, one row per line item, CRLF line ends). */
+export function statementCsv(detail: StatementDetail, columns: readonly string[]): string {
+  const rows = detail.lineItems.map((item) =>
+    [
+      detail.id,
+      detail.accountId,
+      detail.accountName,
+      detail.month,
+      detail.status,
+      item.code,
+      item.description,
+      item.quantity,
+      item.unitAmountMinor,
+      item.amountMinor,
+      detail.currency,
+    ]
+      .map(csvField)
+      .join(','),
+  );
+  return [columns.join(','), ...rows].join('\r\n') + '\r\n';
+}
