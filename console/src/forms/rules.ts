@@ -1,0 +1,26 @@
+/**
+ * v-form rules (each returns true or the message). The server validates again with the zod
+ * contracts; these only spare a round trip.
+ */
+export type Rule = (value: unknown) => true | string;
+
+export const required =
+  (what = 'This field'): Rule =>
+  (v) =>
+    (v !== undefined && v !== null && String(v).trim() !== '') || `${what} is required`;
+
+// A deliberately loose check (one @, something either side): the server has the final word.
+export const email: Rule = (v) =>
+  /^[^@\s]+@[^@\s]+\.[^@\s]+$/.test(String(v ?? '')) || 'Enter an e-mail address';
+
+/** At least 12 characters: the same minimum as BOOTSTRAP_ADMIN_PASSWORD in server/config.ts. */
+export const PASSWORD_MIN = 12;
+export const password: Rule = (v) =>
+  String(v ?? '').length >= PASSWORD_MIN || `Use at least ${PASSWORD_MIN} characters`;
+
+export const integerBetween =
+  (min: number, max: number): Rule =>
+  (v) => {
+    const n = Number(v);
+    return (Number.isInteger(n) && n >= min && n <= max) || `Enter a whole number from ${min} to ${max}`;
+  };

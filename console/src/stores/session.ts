@@ -1,0 +1,106 @@
+/**
+ * The console session (Pinia setup store): who is signed in, with which role and accounts.
+ * The session itself is a pair of HTTP-only cookies set by the server; this store only mirrors
+ * GET /console-api/auth/me and drives sign-in, sign-out and refresh.
+ */
+import { defineStore } from 'pinia';
+import { computed, ref } from 'vue';
+import { api as defaultApi, ApiProblem, type ApiClient } from '../api/client.js';
+import { unwrapUser, type ConsoleUser, type Role } from '../api/types.js';
+
+let client: ApiClient = defaultApi;
+/** Tests swap the client (a createApiClient with a mocked fetch). */
+export function useSessionClient(next: ApiClient): void {
+  client = next;
+}
+
+export const useSessionStore = defineStore('session', () => {
+  const user = ref<ConsoleUser | null>(null);
+  const loading = ref(false);
+  const error = ref<ApiProblem | null>(null);
+  /** True once GET /auth/me has answered (signed in or not). */
+  const loaded = ref(false);
+
+  const role = computed<Role | null>(() => user.value?.role ?? null);
+  const signedIn = computed(() => user.value !== null);
+
+  function can(roles: readonly Role[] | undefined): boolean {
+    if (!roles || roles.length === 0) return true;
+    return role.value !== null && roles.includes(role.value);
+  }
+
+  /** Loads the current user; 401 (after the client's one refresh attempt) means signed out. */
+  async function load(force = false): Promise<ConsoleUser | null> {
+    if (loaded.value && !force) return user.value;
+    loading.value = true;
+    try {
+      user.value = unwrapUser(await client.get<unknown>('/auth/me'));
+      error.value = null;
+    } catch (err) {
+      user.value = null;
+      if (!(err instanceof ApiProblem && err.status === 401)) error.value = asProblem(err);
+    } finally {
+      loaded.value = true;
+      loading.value = false;
+    }
+    return user.value;
+  }
+
+  async function signIn(email: string, password: string): Promise<boolean> {
+    loading.value = true;
+    error.value = null;
+    try {
+      const body = await client.post<unknown>('/auth/sign-in', { email, password });
+      user.value = unwrapUser(body) ?? unwrapUser(await client.get<unknown>('/auth/me'));
+      loaded.value = true;
+      return user.value !== null;
+    } catch (err) {
+      user.value = null;
+      error.value = asProblem(err);
+      return false;
+    } finally {
+      loading.value = false;
+    }
+  }
+
+  async function signOut(): Promise<void> {
+    loading.value = true;
+    try {
+      await client.post('/auth/sign-out');
+    } catch {
+      // the session is dropped locally either way
+    } finally {
+      user.value = null;
+      loaded.value = true;
+      loading.value = false;
+    }
+  }
+
+  /** Renews the session cookies; on failure the user is signed out locally. */
+  async function refresh(): Promise<boolean> {
+    const ok = await client.refreshSession();
+    if (!ok) {
+      user.value = null;
+      return false;
+    }
+    await load(true);
+    return user.value !== null;
+  }
+
+  /** Called by the client when a 401 could not be cured: forget the user. */
+  function expire(): void {
+    user.value = null;
+    loaded.value = true;
+  }
+
+  return { user, role, loading, error, loaded, signedIn, can, load, signIn, signOut, refresh, expire };
+});
+
+function asProblem(err: unknown): ApiProblem {
+  if (err instanceof ApiProblem) return err;
+  return new ApiProblem({
+    status: 0,
+    title: 'The console cannot reach the server',
+    detail: err instanceof Error ? err.message : String(err),
+  });
+}

@@ -1,0 +1,33 @@
+// Vite build of the Ebullio console: served by the API server at /console (server/console/static.ts).
+//   npm run build        → console/dist
+//   npm run dev:console  → dev server with a proxy to the API on :8080
+import { fileURLToPath } from 'node:url';
+import vue from '@vitejs/plugin-vue';
+import { defineConfig } from 'vite';
+import vuetify from 'vite-plugin-vuetify';
+
+const apiTarget = process.env.EBULLIO_API ?? 'http://localhost:8080';
+
+export default defineConfig({
+  root: import.meta.dirname,
+  base: '/console/',
+  // vite-plugin-vuetify's autoImport pulls in only the components and directives the templates use.
+  plugins: [vue(), vuetify({ autoImport: true })],
+  resolve: {
+    alias: { '@shared': fileURLToPath(new URL('../shared', import.meta.url)) },
+  },
+  build: {
+    outDir: 'dist',
+    emptyOutDir: true,
+    chunkSizeWarningLimit: 600,
+  },
+  server: {
+    port: 5173,
+    proxy: {
+      '/console-api': apiTarget,
+      '/v1': apiTarget,
+      '/openapi.json': apiTarget,
+      '/docs': apiTarget,
+    },
+  },
+});
