@@ -12,6 +12,7 @@ import { saturationAtTemperature, saturationPressure, saturationTemperature } fr
 import { addWarning, KELVIN_OFFSET, type Citation, type EngineCaution, type WarningSink } from '../types.js';
 import type { Interval, LiquorModel, ValidityBox } from './model.js';
 import { checkAgainst } from './validity.js';
+import { brent } from '../numeric/roots.js';
 
 const MODEL_ID = 'sucrose';
 
@@ -68,75 +69,6 @@ export function starzakPeacockWaterActivity(massFraction: number, temperature: n
   );
 }
 
-/** Brent's method on f over [a, b] with f(a)·f(b) ≤ 0 (Brent 1973, "Algorithms for minimization
- * without derivatives", ch. 4). Returns the root to within `tol`. */
-function brent(f: (t: number) => number, lo: number, hi: number, tol: number): number {
-  let a = lo;
-  let b = hi;
-  let fa = f(a);
-  let fb = f(b);
-  if (fa === 0) return a;
-  if (fb === 0) return b;
-  let c = a;
-  let fc = fa;
-  let d = b - a;
-  let e = d;
-  for (let i = 0; i < 100; i++) {
-    if (fb * fc > 0) {
-      c = a;
-      fc = fa;
-      d = b - a;
-      e = d;
-    }
-    if (Math.abs(fc) < Math.abs(fb)) {
-      a = b;
-      b = c;
-      c = a;
-      fa = fb;
-      fb = fc;
-      fc = fa;
-    }
-    const tol1 = 2 * Number.EPSILON * Math.abs(b) + 0.5 * tol;
-    const m = 0.5 * (c - b);
-    if (Math.abs(m) <= tol1 || fb === 0) return b;
-    if (Math.abs(e) >= tol1 && Math.abs(fa) > Math.abs(fb)) {
-      const s = fb / fa;
-      let p: number;
-      let q: number;
-      if (a === c) {
-        p = 2 * m * s;
-        q = 1 - s;
-      } else {
-        const qq = fa / fc;
-        const r = fb / fc;
-        p = s * (2 * m * qq * (qq - r) - (b - a) * (r - 1));
-        q = (qq - 1) * (r - 1) * (s - 1);
-      }
-      if (p > 0) q = -q;
-      else p = -p;
-      if (2 * p < Math.min(3 * m * q - Math.abs(tol1 * q), Math.abs(e * q))) {
-        e = d;
-        d = p / q;
-      } else {
-        d = m;
-        e = d;
-      }
-    } else {
-      d = m;
-      e = d;
-    }
-    a = b;
-    fa = fb;
-    b += Math.abs(d) > tol1 ? d : m > 0 ? tol1 : -tol1;
-    fb = f(b);
-  }
-  throw new EngineNoSolutionError('sucrose boiling point: Brent iteration did not converge', {
-    iterations: 100,
-    residual: fb,
-    reason: 'no-convergence',
-  });
-}
-
 /**
  * Boiling temperature of aqueous sucrose at pressure p: the root T of
  *
@@ -180,7 +112,7 @@ export function sucroseBoilingTemperature(
     step *= 2;
     hi = Math.min(tWater + step, maxTemperature);
   }
-  return brent(residual, lo, hi, 1e-9);
+  return brent(residual, lo, hi, { tol: 1e-9 });
 }
 
 /** Purity used with Lyle's correlation: pure sucrose, 100 % sucrose on dry substance. */
