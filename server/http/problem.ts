@@ -128,6 +128,12 @@ export const problemCatalogue = {
     description:
       "The account's monthly unit quota would be exceeded by this request. No calculation was run. The quota resets at the start of the next calendar month (UTC).",
   },
+  'payment-provider-failed': {
+    status: 502,
+    title: 'Payment provider failed',
+    description:
+      'The payment provider refused, did not answer or is not configured; the statement was left as it was. Retrying is safe.',
+  },
   internal: {
     status: 500,
     title: 'Internal error',
