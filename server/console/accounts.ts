@@ -1,0 +1,201 @@
+/**
+ * Console routes for customer accounts: GET/POST /accounts, GET/PATCH /accounts/:id.
+ * Admins create and edit; billing users read. Every mutation is audited.
+ *
+ * Also the scope helpers the other data routes share: a developer sees only the accounts they
+ * are a member of (res.locals.user.accountIds); admins and billing users see all of them.
+ */
+import { eq } from 'drizzle-orm';
+import {
+  AccountCreateSchema,
+  AccountIdParamsSchema,
+  AccountListSchema,
+  AccountPatchSchema,
+  AccountSchema,
+  type ConsoleAccount,
+} from '../../shared/console/accounts.js';
+import { createAccount, getAccount, updateAccount, type Account } from '../accounts/accounts.js';
+import { monthStartUtc, nextMonthStartUtc, utcDay } from '../accounts/usage.js';
+import { quotaPercent } from '../accounts/usage-report.js';
+import type { Db, Sqlite } from '../db/client.js';
+import { accounts as accountsTable, plans } from '../db/schema.js';
+import type { AppDeps } from '../http/app.js';
+import { problem } from '../http/problem.js';
+import { recordAudit } from './audit.js';
+import { consoleRoute, type ConsoleRouteModule, type ConsoleUser } from './route.js';
+
+/** The accounts a user may see: null = all (admin, billing), else the memberships (developer). */
+export function scopeOf(user: ConsoleUser): readonly number[] | null {
+  return user.role === 'developer' ? user.accountIds : null;
+}
+
+/** 403 unless the user may see this account. */
+export function assertAccountInScope(user: ConsoleUser, accountId: number): void {
+  const scope = scopeOf(user);
+  if (scope !== null && !scope.includes(accountId)) {
+    throw problem('forbidden', `You are not a member of account ${accountId}.`);
+  }
+}
+
+/**
+ * The scope of a query with an optional accountId filter: just that account (after checking
+ * the user may see it), or everything the user may see.
+ */
+export function queryScope(user: ConsoleUser, accountId: number | undefined): readonly number[] | null {
+  if (accountId === undefined) return scopeOf(user);
+  assertAccountInScope(user, accountId);
+  return [accountId];
+}
+
+/** 404 unless the account exists. */
+export function requireAccount(db: Db, accountId: number): Account {
+  const account = getAccount(db, accountId);
+  if (!account) throw problem('not-found', `There is no account ${accountId}.`);
+  return account;
+}
+
+interface AccountStats {
+  id: number;
+  units: number;
+  keys: number;
+}
+
+function stats(sqlite: Sqlite, now: Date, ids: readonly number[] | null): Map<number, AccountStats> {
+  const where = ids === null ? '' : `WHERE a.id IN (${ids.map(() => '?').join(',') || 'NULL'})`;
+  const rows = sqlite
+    .prepare(
+      `SELECT a.id AS id,
+         COALESCE((SELECT SUM(units) FROM usage_daily d WHERE d.account_id = a.id AND d.day >= ? AND d.day < ?), 0) AS units,
+         (SELECT COUNT(*) FROM api_keys k WHERE k.account_id = a.id AND k.revoked_at IS NULL
+            AND (k.expires_at IS NULL OR k.expires_at > ?)) AS keys
+       FROM accounts a ${where}`,
+    )
+    .all(
+      utcDay(monthStartUtc(now)),
+      utcDay(nextMonthStartUtc(now)),
+      now.getTime(),
+      ...(ids ?? []),
+    ) as AccountStats[];
+  return new Map(rows.map((r) => [r.id, r]));
+}
+
+function toView(account: Account, s: AccountStats | undefined): ConsoleAccount {
+  const units = s?.units ?? 0;
+  return {
+    id: account.id,
+    name: account.name,
+    plan: account.plan,
+    monthlyUnitQuota: account.monthlyUnitQuota,
+    billingEmail: account.billingEmail,
+    retainRequestBodies: account.retainRequestBodies,
+    createdAt: account.createdAt.toISOString(),
+    unitsThisMonth: units,
+    quotaUsedPercent: quotaPercent(units, account.monthlyUnitQuota),
+    keyCount: s?.keys ?? 0,
+  };
+}
+
+export function accountView(deps: AppDeps, account: Account): ConsoleAccount {
+  return toView(account, stats(deps.sqlite, deps.clock(), [account.id]).get(account.id));
+}
+
+/** 422 unless `plan` names a row of the plans table (the billing module owns that table). */
+function assertPlanExists(db: Db, plan: string): void {
+  if (db.select({ name: plans.name }).from(plans).where(eq(plans.name, plan)).get()) return;
+  const known = db
+    .select({ name: plans.name })
+    .from(plans)
+    .orderBy(plans.name)
+    .all()
+    .map((p) => p.name);
+  throw problem('validation-failed', `There is no plan "${plan}".`, {
+    errors: [
+      {
+        field: 'plan',
+        message: known.length > 0 ? `must be one of: ${known.join(', ')}` : 'no plans are defined yet',
+        value: plan,
+      },
+    ],
+  });
+}
+
+export const accountRoutes: ConsoleRouteModule = {
+  register(router, deps) {
+    consoleRoute(router, {
+      method: 'get',
+      path: '/accounts',
+      roles: ['admin', 'billing'],
+      summary: 'List the customer accounts with this month’s units and active key count',
+      response: AccountListSchema,
+      handler: () => {
+        const rows = deps.db.select().from(accountsTable).orderBy(accountsTable.id).all();
+        const s = stats(deps.sqlite, deps.clock(), null);
+        return { items: rows.map((a) => toView(a, s.get(a.id))) };
+      },
+    });
+
+    consoleRoute(router, {
+      method: 'post',
+      path: '/accounts',
+      roles: ['admin'],
+      summary: 'Create a customer account',
+      request: { body: AccountCreateSchema },
+      response: AccountSchema,
+      status: 201,
+      handler: ({ req, res, body }) => {
+        assertPlanExists(deps.db, body.plan);
+        const account = createAccount(deps.db, {
+          name: body.name,
+          plan: body.plan,
+          monthlyUnitQuota: body.monthlyUnitQuota,
+          billingEmail: body.billingEmail ?? null,
+          retainRequestBodies: body.retainRequestBodies ?? false,
+          now: deps.clock(),
+        });
+        recordAudit(deps, req, res, {
+          action: 'account.create',
+          targetType: 'account',
+          targetId: account.id,
+          detail: { ...body },
+        });
+        res.location(`/console-api/accounts/${account.id}`);
+        return accountView(deps, account);
+      },
+    });
+
+    consoleRoute(router, {
+      method: 'get',
+      path: '/accounts/:id',
+      roles: ['admin', 'billing'],
+      summary: 'One customer account',
+      request: { params: AccountIdParamsSchema },
+      response: AccountSchema,
+      handler: ({ params }) => accountView(deps, requireAccount(deps.db, params.id)),
+    });
+
+    consoleRoute(router, {
+      method: 'patch',
+      path: '/accounts/:id',
+      roles: ['admin'],
+      summary: 'Change an account’s name, plan, quota, billing e-mail or body retention',
+      request: { params: AccountIdParamsSchema, body: AccountPatchSchema },
+      response: AccountSchema,
+      handler: ({ req, res, params, body }) => {
+        const before = requireAccount(deps.db, params.id);
+        if (body.plan !== undefined) assertPlanExists(deps.db, body.plan);
+        const after = updateAccount(deps.db, params.id, body)!;
+        const changes: Record<string, { from: unknown; to: unknown }> = {};
+        for (const key of Object.keys(body) as (keyof typeof body)[]) {
+          if (before[key] !== after[key]) changes[key] = { from: before[key], to: after[key] };
+        }
+        recordAudit(deps, req, res, {
+          action: 'account.update',
+          targetType: 'account',
+          targetId: params.id,
+          detail: { changes },
+        });
+        return accountView(deps, after);
+      },
+    });
+  },
+};

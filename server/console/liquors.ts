@@ -1,0 +1,350 @@
+/**
+ * Console routes for the liquor library: GET /liquors (built-in models and every account's
+ * stored liquors, validity boxes in display units), GET /liquors/:id/charts (Dühring lines and
+ * enthalpy–concentration curves computed by the engine), POST /accounts/:id/liquors (a Dühring
+ * table uploaded as CSV, multipart/form-data, errors by line number; the v1 CSV parser).
+ *
+ * Chart points come from the liquor model itself on a grid across its validity box. A point the
+ * model refuses (beyond its hard limits) is left out and counted in `omittedPoints`; a point it
+ * answers with a "model-extrapolated" warning is kept and flagged `extrapolated`. No NaN is sent.
+ */
+import multer from 'multer';
+import type { RequestHandler } from 'express';
+import { and, eq } from 'drizzle-orm';
+import { MAX_UPLOAD_BYTES, StoredLiquorCreateSchema } from '../../shared/contracts/liquors.js';
+import { AccountIdParamsSchema } from '../../shared/console/accounts.js';
+import {
+  LiquorChartParamsSchema,
+  LiquorChartQuerySchema,
+  LiquorChartsSchema,
+  LiquorLibraryItemSchema,
+  LiquorLibraryQuerySchema,
+  LiquorLibrarySchema,
+  LiquorUploadFieldsSchema,
+  type ConsoleLiquor,
+  type ConsoleLiquorCharts,
+} from '../../shared/console/liquors.js';
+import { accounts, storedLiquors } from '../db/schema.js';
+import { slugify } from '../engine/liquors/custom.js';
+import type { LiquorModel } from '../engine/liquors/model.js';
+import { builtInLiquors, findBuiltInLiquor } from '../engine/liquors/registry.js';
+import { saturationPressure } from '../engine/steam/if97.js';
+import { KELVIN_OFFSET, type EngineWarning } from '../engine/types.js';
+import type { AppDeps } from '../http/app.js';
+import { problem } from '../http/problem.js';
+import { buildCustomLiquor, summarise } from '../http/v1/liquors.js';
+import { duhringFromCsv, findStoredLiquor } from '../http/v1/stored-liquors.js';
+import { r, validate } from '../http/validation.js';
+import { formatOutput } from '../units/index.js';
+import { requireAccount } from './accounts.js';
+import { recordAudit } from './audit.js';
+import { consoleRoute, type ConsoleRouteModule } from './route.js';
+
+/** Lowest and highest water temperatures the IF97 saturation line covers, K (IAPWS R7-97 region 4). */
+const IF97_T_MIN = 273.16;
+const IF97_T_MAX = 647.0;
+
+/** Number of Dühring lines (concentrations) and of enthalpy curves (temperatures). */
+export const DUHRING_LINES = 6;
+export const ENTHALPY_CURVES = 6;
+/** Grid points along each enthalpy curve. */
+export const ENTHALPY_POINTS = 21;
+
+const NICE_STEPS = [1, 2, 5, 10, 20, 25, 50, 100];
+
+/** Round-number temperatures (°C) from min to max with about `count` intervals. */
+export function niceTemperatureGrid(minC: number, maxC: number, count: number): number[] {
+  const step = NICE_STEPS.find((s) => (maxC - minC) / s <= count) ?? 100;
+  const out: number[] = [];
+  for (let t = Math.ceil(minC / step) * step; t <= maxC + 1e-9; t += step) out.push(t);
+  if (out.length === 0 || out[0]! - minC > 1e-9) out.unshift(minC);
+  if (maxC - out[out.length - 1]! > 1e-9) out.push(maxC);
+  return out.map((t) => Math.round(t * 1e6) / 1e6);
+}
+
+/** `count` evenly spaced values from min to max inclusive, rounded to 4 decimals. */
+export function evenGrid(min: number, max: number, count: number): number[] {
+  return Array.from(
+    { length: count },
+    (_, i) => Math.round((min + ((max - min) * i) / (count - 1)) * 1e4) / 1e4,
+  );
+}
+
+const degC = (kelvin: number) => r(formatOutput(kelvin, 'temperature'));
+
+/** Runs one model evaluation: the value (or undefined when refused) and whether it extrapolated. */
+function evaluate(run: (w: EngineWarning[]) => number): { value: number; extrapolated: boolean } | undefined {
+  const warnings: EngineWarning[] = [];
+  try {
+    const value = run(warnings);
+    if (!Number.isFinite(value)) return undefined;
+    return { value, extrapolated: warnings.some((w) => w.code === 'model-extrapolated') };
+  } catch {
+    return undefined;
+  }
+}
+
+/** Dühring lines and enthalpy–concentration curves of a model, display units. */
+export function liquorChartData(model: LiquorModel): Omit<ConsoleLiquorCharts, 'liquor' | 'cautions'> {
+  const box = model.validity;
+  let omitted = 0;
+
+  const twMin = Math.max(box.temperature.min, IF97_T_MIN) - KELVIN_OFFSET;
+  const twMax = Math.min(box.temperature.max, IF97_T_MAX) - KELVIN_OFFSET;
+  const waterTemps = niceTemperatureGrid(twMin, twMax, 12);
+  const lines = evenGrid(box.massFraction.min, box.massFraction.max, DUHRING_LINES).map((x) => {
+    const points: ConsoleLiquorCharts['duhring']['lines'][number]['points'] = [];
+    for (const twC of waterTemps) {
+      const p = saturationPressure(twC + KELVIN_OFFSET);
+      const out = evaluate((w) => model.boilingPoint(x, p, w));
+      if (!out) {
+        omitted++;
+        continue;
+      }
+      points.push({
+        waterBoilingPoint: twC,
+        solutionBoilingPoint: degC(out.value),
+        pressure: r(formatOutput(p, 'pressure')),
+        extrapolated: out.extrapolated,
+      });
+    }
+    return { massFraction: x, points };
+  });
+
+  const temps = niceTemperatureGrid(
+    box.temperature.min - KELVIN_OFFSET,
+    box.temperature.max - KELVIN_OFFSET,
+    ENTHALPY_CURVES - 1,
+  );
+  const fractions = evenGrid(box.massFraction.min, box.massFraction.max, ENTHALPY_POINTS);
+  const curves = temps.map((tC) => {
+    const points: ConsoleLiquorCharts['enthalpy']['curves'][number]['points'] = [];
+    for (const x of fractions) {
+      const out = evaluate((w) => model.enthalpy(x, tC + KELVIN_OFFSET, w));
+      if (!out) {
+        omitted++;
+        continue;
+      }
+      points.push({
+        massFraction: x,
+        enthalpy: r(formatOutput(out.value, 'specificEnthalpy')),
+        extrapolated: out.extrapolated,
+      });
+    }
+    return { temperature: tC, points };
+  });
+
+  return {
+    duhring: {
+      description:
+        'Boiling point of the solution against that of pure water at the same pressure (IAPWS-IF97 saturation), °C; one line per mass fraction.',
+      lines,
+    },
+    enthalpy: {
+      description:
+        'Specific enthalpy of the solution, kJ/kg (steam-table datum: liquid water at the triple point), against mass fraction; one curve per temperature, °C.',
+      curves,
+    },
+    omittedPoints: omitted,
+  };
+}
+
+function libraryItem(
+  model: LiquorModel,
+  kind: ConsoleLiquor['kind'],
+  id: string,
+  account: { id: number; name: string } | null,
+): ConsoleLiquor {
+  return {
+    ...summarise(model, kind, id),
+    accountId: account?.id ?? null,
+    accountName: account?.name ?? null,
+  };
+}
+
+function storedItems(deps: AppDeps, accountId: number | undefined): ConsoleLiquor[] {
+  const rows = deps.db
+    .select({ liquor: storedLiquors, accountName: accounts.name })
+    .from(storedLiquors)
+    .innerJoin(accounts, eq(accounts.id, storedLiquors.accountId))
+    .where(accountId === undefined ? undefined : eq(storedLiquors.accountId, accountId))
+    .orderBy(storedLiquors.accountId, storedLiquors.liquorId)
+    .all();
+  return rows.map(({ liquor, accountName }) => {
+    const record = findStoredLiquor(deps.db, liquor.accountId, liquor.liquorId)!;
+    const model = buildCustomLiquor(record.definition, 'definition', record.id);
+    return libraryItem(model, 'stored', record.id, { id: liquor.accountId, name: accountName });
+  });
+}
+
+const upload = multer({
+  storage: multer.memoryStorage(),
+  limits: { fileSize: MAX_UPLOAD_BYTES, files: 1, fields: 10, fieldSize: 4096 },
+});
+
+/** multipart/form-data only (415 otherwise); multer's errors as problems (413 for size). */
+const multipartUpload: RequestHandler = (req, res, next) => {
+  if (!req.is('multipart/form-data')) {
+    return next(
+      problem('unsupported-media-type', 'Upload the Dühring table as multipart/form-data with a CSV "file".'),
+    );
+  }
+  upload.single('file')(req, res, (err: unknown) => {
+    if (!err) return next();
+    if (err instanceof multer.MulterError) {
+      if (err.code === 'LIMIT_FILE_SIZE') {
+        return next(problem('payload-too-large', `The uploaded file exceeds ${MAX_UPLOAD_BYTES} bytes.`));
+      }
+      return next(
+        problem('validation-failed', err.message, {
+          errors: [{ field: err.field ?? 'file', message: err.message }],
+        }),
+      );
+    }
+    next(problem('bad-request', `The multipart body could not be read: ${(err as Error).message}`));
+  });
+};
+
+function heatCapacityCoefficients(text: string): number[] {
+  const values = text
+    .split(/[,;\s]+/)
+    .filter(Boolean)
+    .map(Number);
+  if (values.length === 0 || values.some((v) => !Number.isFinite(v))) {
+    throw problem('validation-failed', 'heatCapacity must be comma-separated numbers.', {
+      errors: [
+        { field: 'heatCapacity', message: 'must be comma-separated numbers, e.g. "4.18,-2.4"', value: text },
+      ],
+    });
+  }
+  return values;
+}
+
+export const liquorRoutes: ConsoleRouteModule = {
+  register(router, deps) {
+    consoleRoute(router, {
+      method: 'get',
+      path: '/liquors',
+      roles: ['admin', 'billing'],
+      summary: 'The liquor library: built-in models and the liquors stored by accounts',
+      request: { query: LiquorLibraryQuerySchema },
+      response: LiquorLibrarySchema,
+      handler: ({ query }) => {
+        if (query.accountId !== undefined) requireAccount(deps.db, query.accountId);
+        const items = [...builtInLiquors.values()].map((m) => libraryItem(m, 'built-in', m.id, null));
+        items.push(...storedItems(deps, query.accountId));
+        return { items };
+      },
+    });
+
+    consoleRoute(router, {
+      method: 'get',
+      path: '/liquors/:id/charts',
+      roles: ['admin', 'billing'],
+      summary: 'Dühring lines and enthalpy–concentration curves of a liquor, computed by the engine',
+      request: { params: LiquorChartParamsSchema, query: LiquorChartQuerySchema },
+      response: LiquorChartsSchema,
+      handler: ({ params, query }) => {
+        let model: LiquorModel;
+        let item: ConsoleLiquor;
+        const builtIn = findBuiltInLiquor(params.id);
+        if (builtIn) {
+          model = builtIn;
+          item = libraryItem(model, 'built-in', params.id, null);
+        } else {
+          if (query.accountId === undefined) {
+            throw problem(
+              'not-found',
+              `"${params.id}" is not a built-in liquor; give the accountId of a stored one.`,
+              {
+                errors: [{ field: 'query.accountId', message: 'is required for a stored liquor' }],
+              },
+            );
+          }
+          const account = requireAccount(deps.db, query.accountId);
+          const stored = findStoredLiquor(deps.db, account.id, params.id);
+          if (!stored)
+            throw problem('not-found', `Account ${account.id} has no stored liquor "${params.id}".`);
+          model = buildCustomLiquor(stored.definition, 'definition', stored.id);
+          item = libraryItem(model, 'stored', stored.id, account);
+        }
+        return { liquor: item, ...liquorChartData(model), cautions: model.cautions };
+      },
+    });
+
+    consoleRoute(router, {
+      method: 'post',
+      path: '/accounts/:id/liquors',
+      roles: ['admin'],
+      summary: 'Store a liquor for an account from a Dühring table (CSV upload, multipart/form-data)',
+      description:
+        'Fields: file (CSV with header massFraction,waterBoilingPoint,solutionBoilingPoint in °C), name, id (optional), heatCapacity (optional coefficients, kJ/(kg·K)). Row errors name "file:line N".',
+      tag: 'liquors',
+      request: { params: AccountIdParamsSchema, bodyContentType: 'multipart/form-data' },
+      middleware: [multipartUpload],
+      response: LiquorLibraryItemSchema,
+      status: 201,
+      handler: ({ req, res, params }) => {
+        const account = requireAccount(deps.db, params.id);
+        const fields = validate(LiquorUploadFieldsSchema, req.body ?? {});
+        if (!req.file) {
+          throw problem('validation-failed', 'The upload needs a CSV file in the field "file".', {
+            errors: [{ field: 'file', message: 'is required' }],
+          });
+        }
+        const boilingPoint = duhringFromCsv(req.file.buffer.toString('utf8'));
+        const heat =
+          fields.heatCapacity === undefined ? undefined : heatCapacityCoefficients(fields.heatCapacity);
+        const input = validate(StoredLiquorCreateSchema, {
+          ...(fields.id !== undefined ? { id: fields.id } : {}),
+          definition: {
+            name: fields.name,
+            boilingPoint,
+            ...(heat ? { heatCapacity: { polynomial: heat } } : {}),
+          },
+        });
+        const id = input.id ?? slugify(input.definition.name);
+        if (!/^[a-z0-9]+(?:-[a-z0-9]+)*$/.test(id)) {
+          throw problem('validation-failed', 'The name gives no usable id; give an id.', {
+            errors: [{ field: 'id', message: 'is required when the name has no letters or digits' }],
+          });
+        }
+        if (
+          findBuiltInLiquor(id) ||
+          deps.db
+            .select({ id: storedLiquors.id })
+            .from(storedLiquors)
+            .where(and(eq(storedLiquors.accountId, account.id), eq(storedLiquors.liquorId, id)))
+            .get()
+        ) {
+          throw problem(
+            'conflict',
+            `A liquor with the id "${id}" exists already for this account; choose another id.`,
+            {
+              errors: [{ field: 'id', message: 'is taken', value: id }],
+            },
+          );
+        }
+        const model = buildCustomLiquor(input.definition, 'definition', id);
+        deps.db
+          .insert(storedLiquors)
+          .values({
+            accountId: account.id,
+            liquorId: id,
+            name: input.definition.name,
+            definition: input.definition,
+            createdAt: deps.clock(),
+          })
+          .run();
+        recordAudit(deps, req, res, {
+          action: 'liquor.upload',
+          targetType: 'stored-liquor',
+          targetId: `${account.id}/${id}`,
+          detail: { accountId: account.id, liquorId: id, lines: boilingPoint.duhring.length },
+        });
+        res.location(`/console-api/liquors/${id}/charts?accountId=${account.id}`);
+        return libraryItem(model, 'stored', id, account);
+      },
+    });
+  },
+};

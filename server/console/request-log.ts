@@ -1,0 +1,183 @@
+/**
+ * Console routes for the request log: GET /request-log (server-side paging, sort and filters),
+ * GET /request-log/:id (redacted bodies and timings), GET /request-log/export.csv (the same
+ * filters, at most CSV_ROW_CAP rows). Developers see only their accounts' rows.
+ *
+ * Also the CSV writer the usage export shares: RFC 4180 (CRLF record ends, fields with comma,
+ * quote or line break quoted, quotes doubled; csv-stringify does the quoting) and text cells
+ * that a spreadsheet would read as a formula prefixed with a single quote (OWASP, "CSV Injection").
+ */
+import { stringify } from 'csv-stringify/sync';
+import type { Response } from 'express';
+import { z } from 'zod';
+import {
+  CSV_ROW_CAP,
+  REQUEST_LOG_CSV_COLUMNS,
+  RequestLogDetailSchema,
+  RequestLogFilterSchema,
+  RequestLogIdParamsSchema,
+  RequestLogPageSchema,
+  RequestLogQuerySchema,
+  RequestLogSortSchema,
+  type RequestLogFilter,
+  type RequestLogItem,
+} from '../../shared/console/request-log.js';
+import { getAccount } from '../accounts/accounts.js';
+import {
+  countRequestLog,
+  getRequestLogEntry,
+  iterateRequestLog,
+  queryRequestLog,
+  type RequestLogFilterInput,
+  type RequestLogRow,
+} from '../accounts/request-log-query.js';
+import { problem } from '../http/problem.js';
+import { queryScope, scopeOf } from './accounts.js';
+import { consoleRoute, type ConsoleRouteModule } from './route.js';
+
+/** Neutralises a text cell a spreadsheet would evaluate (=, +, -, @, tab, CR first). */
+export function csvSafe(value: unknown): unknown {
+  if (typeof value === 'string' && /^[=+\-@\t\r]/.test(value)) return `'${value}`;
+  return value;
+}
+
+/** Sends rows as an RFC 4180 CSV attachment with a header row. */
+export function sendCsv(
+  res: Response,
+  filename: string,
+  columns: readonly string[],
+  rows: Iterable<Record<string, unknown>>,
+  info: { total: number; cap: number },
+): void {
+  const records: Record<string, unknown>[] = [];
+  for (const row of rows) records.push(Object.fromEntries(columns.map((c) => [c, csvSafe(row[c] ?? null)])));
+  const text = stringify(records, {
+    header: true,
+    columns: [...columns],
+    record_delimiter: 'windows',
+    cast: { date: (d) => d.toISOString() },
+  });
+  res.setHeader('Content-Type', 'text/csv; charset=utf-8; header=present');
+  res.setHeader('Content-Disposition', `attachment; filename="${filename}"`);
+  res.setHeader('X-Total-Count', String(info.total));
+  if (info.total > records.length) res.setHeader('X-Export-Truncated', `rows capped at ${info.cap}`);
+  res.status(200).send(text);
+}
+
+function filterInput(q: RequestLogFilter): RequestLogFilterInput {
+  return {
+    keyId: q.keyId,
+    operation: q.operation,
+    status: q.status,
+    from: q.from ? new Date(q.from) : undefined,
+    to: q.to ? new Date(q.to) : undefined,
+    requestId: q.requestId,
+  };
+}
+
+function item(row: RequestLogRow): RequestLogItem {
+  return { ...row, at: row.at.toISOString() };
+}
+
+const ExportQuerySchema = RequestLogFilterSchema.extend({
+  sort: RequestLogSortSchema.default('at'),
+  order: z.enum(['asc', 'desc']).default('desc'),
+});
+
+function checkRange(q: RequestLogFilter): void {
+  if (q.from && q.to && Date.parse(q.to) <= Date.parse(q.from)) {
+    throw problem('validation-failed', '"to" must be after "from".', {
+      errors: [{ field: 'query.to', message: 'must be after from', value: q.to }],
+    });
+  }
+}
+
+export const requestLogRoutes: ConsoleRouteModule = {
+  register(router, deps) {
+    consoleRoute(router, {
+      method: 'get',
+      path: '/request-log',
+      roles: ['admin', 'billing', 'developer'],
+      summary: 'Search the request log (paged, sorted and filtered on the server)',
+      request: { query: RequestLogQuerySchema },
+      response: RequestLogPageSchema,
+      handler: ({ query, user }) => {
+        checkRange(query);
+        const scope = queryScope(user, query.accountId);
+        const page = queryRequestLog(
+          deps.sqlite,
+          {
+            ...filterInput(query),
+            page: query.page,
+            pageSize: query.pageSize,
+            sort: query.sort,
+            order: query.order,
+          },
+          scope,
+        );
+        return { ...page, items: page.items.map(item) };
+      },
+    });
+
+    // Declared before /request-log/:id so "export.csv" is not read as an id.
+    consoleRoute(router, {
+      method: 'get',
+      path: '/request-log/export.csv',
+      roles: ['admin', 'billing', 'developer'],
+      summary: `Export the filtered request log as CSV (at most ${CSV_ROW_CAP} rows)`,
+      request: { query: ExportQuerySchema },
+      response: z.string().meta({ description: 'text/csv (RFC 4180), one header row' }),
+      responseContentType: 'text/csv',
+      handler: ({ query, user, res }) => {
+        checkRange(query);
+        const scope = queryScope(user, query.accountId);
+        const filter = filterInput(query);
+        const total = countRequestLog(deps.sqlite, filter, scope);
+        const rows = iterateRequestLog(
+          deps.sqlite,
+          { ...filter, sort: query.sort, order: query.order },
+          scope,
+          CSV_ROW_CAP,
+        );
+        sendCsv(res, 'request-log.csv', REQUEST_LOG_CSV_COLUMNS, rows as Iterable<Record<string, unknown>>, {
+          total,
+          cap: CSV_ROW_CAP,
+        });
+      },
+    });
+
+    consoleRoute(router, {
+      method: 'get',
+      path: '/request-log/:id',
+      roles: ['admin', 'billing', 'developer'],
+      summary: 'One request with its redacted bodies and timings',
+      request: { params: RequestLogIdParamsSchema },
+      response: RequestLogDetailSchema,
+      handler: ({ params, user }) => {
+        const row = getRequestLogEntry(deps.sqlite, params.id, null);
+        if (!row) throw problem('not-found', `There is no request-log entry ${params.id}.`);
+        const scope = scopeOf(user);
+        if (scope !== null && (row.accountId === null || !scope.includes(row.accountId))) {
+          throw problem(
+            'forbidden',
+            `Request-log entry ${params.id} belongs to an account you are not a member of.`,
+          );
+        }
+        const account = row.accountId === null ? undefined : getAccount(deps.db, row.accountId);
+        return {
+          ...item(row),
+          engineVersion: row.engineVersion,
+          bodiesRetained:
+            row.requestBody !== null || row.responseBody !== null || (account?.retainRequestBodies ?? false),
+          requestBody: row.requestBody,
+          responseBody: row.responseBody,
+          timings: {
+            receivedAt: new Date(row.at.getTime() - row.latencyMs).toISOString(),
+            completedAt: row.at.toISOString(),
+            latencyMs: row.latencyMs,
+          },
+        };
+      },
+    });
+  },
+};

@@ -1,0 +1,127 @@
+// Test harness for the console data routes: a temp (in-memory) database with migrations, an
+// injectable clock, seeded plans, two invented accounts and one signed-in agent per role that goes
+// through the real console pipeline (session cookie from POST /auth/sign-in, CSRF double submit).
+import request from 'supertest';
+import type TestAgent from 'supertest/lib/agent.js';
+import { addMember, createAccount, createUser, type Role } from '../../server/accounts/accounts.js';
+import { recordRequest, type RequestRecord } from '../../server/accounts/metering.js';
+import { openDatabase, runMigrations } from '../../server/db/client.js';
+import { plans } from '../../server/db/schema.js';
+import { createApp, type AppDeps } from '../../server/http/app.js';
+import { consoleRouteModules } from '../../server/console/index.js';
+import { accountRoutes } from '../../server/console/accounts.js';
+import { keyRoutes } from '../../server/console/keys.js';
+import { liquorRoutes } from '../../server/console/liquors.js';
+import { overviewRoutes } from '../../server/console/overview.js';
+import { requestLogRoutes } from '../../server/console/request-log.js';
+import { usageRoutes } from '../../server/console/usage.js';
+import { defaultMailCapture } from '../../server/mail/send.js';
+import { testConfig } from '../http/helpers.js';
+
+for (const m of [overviewRoutes, accountRoutes, keyRoutes, requestLogRoutes, usageRoutes, liquorRoutes]) {
+  if (!consoleRouteModules.includes(m)) consoleRouteModules.push(m);
+}
+
+export const PASSWORD = 'correct-horse-battery-42';
+
+export interface SignedIn {
+  agent: TestAgent;
+  csrf: string;
+  userId: number;
+}
+
+export interface ConsoleHarness {
+  deps: AppDeps;
+  clock: { now: Date };
+  app: ReturnType<typeof createApp>;
+  /** "Invented Alpha Works" (developer is a member) and "Invented Beta Mills" (not). */
+  alphaId: number;
+  betaId: number;
+  admin: SignedIn;
+  billing: SignedIn;
+  developer: SignedIn;
+  close(): Promise<void>;
+}
+
+async function signIn(app: ConsoleHarness['app'], email: string): Promise<Omit<SignedIn, 'userId'>> {
+  const agent = request.agent(app);
+  const first = await agent.get('/console-api/auth/csrf').expect(200);
+  const token = (first.body as { csrfToken: string }).csrfToken;
+  await agent
+    .post('/console-api/auth/sign-in')
+    .set('X-CSRF-Token', token)
+    .send({ email, password: PASSWORD })
+    .expect(200);
+  const again = await agent.get('/console-api/auth/csrf').expect(200);
+  return { agent, csrf: (again.body as { csrfToken: string }).csrfToken };
+}
+
+export async function makeConsoleHarness(): Promise<ConsoleHarness> {
+  const { sqlite, db } = openDatabase(':memory:');
+  runMigrations(db);
+  const clock = { now: new Date('2031-03-14T10:00:00Z') };
+  const deps: AppDeps = {
+    db,
+    sqlite,
+    config: testConfig({ consoleSignInLimit: 1000 }),
+    clock: () => clock.now,
+    engineVersion: 'test-engine',
+  };
+  db.insert(plans)
+    .values([
+      { name: 'starter', displayName: 'Starter', includedUnits: 10_000, pricePer1000UnitsMinor: 200 },
+      { name: 'works', displayName: 'Works', includedUnits: 200_000, pricePer1000UnitsMinor: 120 },
+    ])
+    .run();
+  const alpha = createAccount(db, {
+    name: 'Invented Alpha Works',
+    monthlyUnitQuota: 1000,
+    billingEmail: 'ops@alpha.invalid',
+    now: clock.now,
+  });
+  const beta = createAccount(db, { name: 'Invented Beta Mills', monthlyUnitQuota: 500, now: clock.now });
+  const app = createApp(deps);
+  const users: Record<Role, number> = { admin: 0, billing: 0, developer: 0 };
+  const signedIn = {} as Record<Role, SignedIn>;
+  for (const role of ['admin', 'billing', 'developer'] as const) {
+    const email = `${role}@ebullio.invalid`;
+    users[role] = createUser(db, { email, password: PASSWORD, role, now: clock.now }).id;
+    if (role === 'developer') addMember(db, users[role], alpha.id);
+    signedIn[role] = { ...(await signIn(app, email)), userId: users[role] };
+  }
+  return {
+    deps,
+    clock,
+    app,
+    alphaId: alpha.id,
+    betaId: beta.id,
+    ...signedIn,
+    async close() {
+      await (await defaultMailCapture(deps)).close();
+      sqlite.close();
+    },
+  };
+}
+
+let seq = 0;
+/** Writes one metered request exactly as the v1 metering hook does (server/accounts/metering.ts). */
+export function meter(
+  h: ConsoleHarness,
+  r: Partial<RequestRecord> & { accountId: number; keyId: number },
+): void {
+  seq++;
+  recordRequest(h.deps.sqlite, {
+    at: h.clock.now,
+    operation: 'steam.state',
+    status: 200,
+    units: 1,
+    latencyMs: 10,
+    requestId: `req-${seq}`,
+    engineVersion: 'test-engine',
+    method: 'POST',
+    path: '/v1/steam/state',
+    requestBody: null,
+    responseBody: null,
+    ...r,
+  });
+}
