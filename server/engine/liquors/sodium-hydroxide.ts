@@ -356,8 +356,14 @@ function boilingPoint(massFraction: number, pressure: number, warnings?: Warning
     );
   }
   checkAgainst(MODEL_ID, 'pressure', pressure, 'Pa', P_VALID, P_LIMITS, warnings);
-  const t = olssonBoilingTemperatureCelsius(1 - massFraction, pressure / KPA);
-  const temperature = C(t);
+  // The rise is taken within the one correlation (solution minus its own pure-water line at the
+  // same pressure) and added to IF97's T_sat, so the fit's pure-water error (−0.04 K at
+  // 101.325 kPa, −0.14 K at 5 kPa) cancels and the rise is exactly 0 at x = 0.
+  const rise =
+    olssonBoilingTemperatureCelsius(1 - massFraction, pressure / KPA) -
+    olssonBoilingTemperatureCelsius(1, pressure / KPA);
+  const temperature = saturationTemperature(pressure) + rise;
+  const t = temperature - KELVIN_OFFSET;
   checkAgainst(MODEL_ID, 'temperature', temperature, 'K', T_VALID_BOILING, T_LIMITS, warnings);
   warnOutsideStaircase(massFraction, t, olssonVaporPressureMinWaterFraction(t), 'vapour-pressure', warnings);
   return temperature;
@@ -374,12 +380,12 @@ function checkEnthalpyInputs(massFraction: number, temperature: number, warnings
 /**
  * Aqueous sodium hydroxide, Olsson, Jernqvist and Aly (1997).
  *
- * - boilingPoint(x, p): Olsson's vapour-pressure equation solved for t (no iteration).
- * - boilingPointRise(x, p) = boilingPoint(x, p) − T_sat,IF97(p). We report the rise against
- *   IF97 rather than against the fit's own pure-water boiling point so that T = T_sat + BPR is
- *   exactly the liquor boiling point the rest of the engine uses with IF97 vapour properties.
- *   The price: the fit's pure-water error (−0.04 K at 101.325 kPa, −0.14 K at 5 kPa) appears as
- *   a slightly negative rise for very dilute solutions. Callers must not assume BPR ≥ 0.
+ * - boilingPointRise(x, p) = t_Olsson(ξ, p) − t_Olsson(ξ = 1, p): Olsson's vapour-pressure
+ *   equation solved for t (no iteration) at the solution's and at pure water's composition, so
+ *   the rise comes from one correlation and the fit's pure-water error (−0.04 K at 101.325 kPa,
+ *   −0.14 K at 5 kPa against IF97) cancels; the rise is 0 at x = 0 and never negative.
+ * - boilingPoint(x, p) = T_sat,IF97(p) + boilingPointRise(x, p): the liquor boiling point the
+ *   rest of the engine uses with IF97 vapour properties (T − T_sat is the vapour's superheat).
  * - enthalpy, heatCapacity: Olsson's enthalpy polynomial and its t-derivative, kJ → J.
  */
 export const sodiumHydroxide: LiquorModel = {

@@ -20,6 +20,7 @@ import {
   sodiumHydroxide,
 } from '../../../server/engine/liquors/sodium-hydroxide.js';
 import type { EngineWarning } from '../../../server/engine/types.js';
+import { designSingleEffect } from '../../../server/engine/evaporators/single-effect.js';
 
 interface WaterFixture {
   saturationByPressure: { pressure: number; temperature: number }[];
@@ -266,5 +267,33 @@ describe('sodium-hydroxide: description', () => {
     expect(sodiumHydroxide.sources.map((s) => s.key)).toContain('olsson-1997');
     expect(sodiumHydroxide.density).toBeUndefined();
     expect(sodiumHydroxide.solubilityLimit).toBeUndefined();
+  });
+});
+
+describe('sodium-hydroxide: dilute solutions', () => {
+  // Common practice: pure water has no boiling-point rise, and a dissolved non-volatile solute
+  // only raises the boiling point (the rise grows from 0 with concentration).
+  it('has no rise for pure water and a positive, increasing rise for dilute caustic', () => {
+    for (const p of [5e3, 20e3, 101_325, 500e3]) {
+      expect(sodiumHydroxide.boilingPointRise(0, p)).toBe(0);
+      let previous = 0;
+      for (const x of [0.001, 0.005, 0.01, 0.02, 0.05]) {
+        const rise = sodiumHydroxide.boilingPointRise(x, p);
+        expect(rise).toBeGreaterThan(previous);
+        previous = rise;
+      }
+    }
+  });
+
+  it('lets a dilute caustic feed be evaporated (0.5 % to 0.8 % at 20 kPa)', () => {
+    const r = designSingleEffect({
+      liquor: sodiumHydroxide,
+      feed: { massFlow: 2, massFraction: 0.005, temperature: 50 + 273.15 },
+      product: { massFraction: 0.008 },
+      steam: { pressure: 200e3 },
+      body: { pressure: 20e3, overallHeatTransferCoefficient: 2000 },
+    });
+    expect(r.boilingPointRise).toBeGreaterThan(0);
+    expect(r.vapor.superheat).toBeCloseTo(r.boilingPointRise, 12);
   });
 });
