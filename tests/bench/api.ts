@@ -123,17 +123,28 @@ interface Child {
   exited: Promise<number | null>;
 }
 
+function killGroup(proc: ChildProcess): void {
+  try {
+    if (proc.pid !== undefined) process.kill(-proc.pid, 'SIGKILL');
+  } catch {
+    // already gone
+  }
+}
+
 function startChild(args: string[], env: Record<string, string>): Promise<Child> {
   const proc = spawn(TSX, args, {
     cwd: ROOT,
     env: { ...process.env, ...env },
     stdio: ['ignore', 'pipe', 'pipe'],
+    // tsx runs the script in a child node process: give it its own process group so a forced
+    // stop (SIGKILL, which tsx cannot relay) reaches that process too.
+    detached: true,
   });
   const exited = new Promise<number | null>((resolve) => proc.on('exit', (code) => resolve(code)));
   return new Promise((resolve, reject) => {
     let out = '';
     const timer = setTimeout(() => {
-      proc.kill('SIGKILL');
+      killGroup(proc);
       reject(new Error(`child ${args.join(' ')} did not start in time: ${out}`));
     }, CHILD_START_TIMEOUT_MS);
     const onData = (chunk: Buffer) => {
@@ -158,7 +169,7 @@ function startChild(args: string[], env: Record<string, string>): Promise<Child>
 
 async function stopChild(child: Child): Promise<void> {
   child.proc.kill('SIGTERM');
-  const timer = setTimeout(() => child.proc.kill('SIGKILL'), 5000);
+  const timer = setTimeout(() => killGroup(child.proc), 5000);
   await child.exited;
   clearTimeout(timer);
 }
