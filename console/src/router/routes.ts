@@ -52,6 +52,30 @@ export const consoleRoutes: ConsoleRoute[] = [
     meta: { title: 'API keys', icon: 'mdi-key-chain-variant', roles: ALL },
   },
   // ---- request log, usage, billing and liquor library pages: append their records below ----
+  {
+    path: 'request-log',
+    name: 'request-log',
+    component: () => import('../views/RequestLogView.vue'),
+    meta: { title: 'Request log', icon: 'mdi-text-box-search-outline', roles: ALL },
+  },
+  {
+    path: 'usage',
+    name: 'usage',
+    component: () => import('../views/UsageView.vue'),
+    meta: { title: 'Usage', icon: 'mdi-chart-bar', roles: ALL },
+  },
+  {
+    path: 'billing',
+    name: 'billing',
+    component: () => import('../views/BillingView.vue'),
+    meta: { title: 'Billing', icon: 'mdi-receipt-text-outline', roles: ['admin', 'billing'] },
+  },
+  {
+    path: 'liquors',
+    name: 'liquors',
+    component: () => import('../views/LiquorLibraryView.vue'),
+    meta: { title: 'Liquor library', icon: 'mdi-flask-round-bottom-outline', roles: ['admin', 'billing'] },
+  },
   // ---- (end of the appended pages) ----
   {
     path: 'users',
