@@ -15,6 +15,9 @@ import { requestId } from './middleware/request-id.js';
 import { problem, problemCatalogue, ProblemError, sendProblem, type ProblemSlug } from './problem.js';
 import { createV1Router } from './v1/index.js';
 import { openApiModule } from './openapi.js';
+import { consoleApiModule } from '../console/index.js';
+import { paymentsWebhookModule } from '../billing/webhook.js';
+import { consoleStaticModule } from '../console/static.js';
 
 export interface AppDeps {
   db: Db;
@@ -32,7 +35,12 @@ export interface AppModule {
 }
 
 /** Other modules append themselves here, one line each. */
-export const appModules: AppModule[] = [openApiModule];
+export const appModules: AppModule[] = [
+  openApiModule,
+  consoleApiModule,
+  paymentsWebhookModule,
+  consoleStaticModule,
+];
 
 function escapeHtml(text: string): string {
   return text.replace(/[&<>"']/g, (c) => `&#${c.charCodeAt(0)};`);
