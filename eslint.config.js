@@ -1,14 +1,32 @@
-// One lint configuration for the whole repository (run by `npm test`).
+// One lint configuration for the whole repository (run by `npm test`): server, shared, tests and
+// the Vue console (eslint-plugin-vue; formatting left to Prettier).
 import js from '@eslint/js';
+import pluginVue from 'eslint-plugin-vue';
 import tseslint from 'typescript-eslint';
 
 export default tseslint.config(
   { ignores: ['node_modules/', 'dist/', 'coverage/', 'data/', 'console/dist/', 'openapi/', 'drizzle/meta/'] },
   js.configs.recommended,
   ...tseslint.configs.recommended,
+  ...pluginVue.configs['flat/recommended'],
+  {
+    files: ['console/**/*.vue'],
+    languageOptions: {
+      parserOptions: { parser: tseslint.parser, extraFileExtensions: ['.vue'], sourceType: 'module' },
+    },
+    // vue-tsc checks names (as tsc does for .ts files, where typescript-eslint turns this off too)
+    rules: { 'no-undef': 'off' },
+  },
   {
     rules: {
       '@typescript-eslint/no-unused-vars': ['error', { argsIgnorePattern: '^_', varsIgnorePattern: '^_' }],
+      // layout rules that Prettier owns
+      'vue/max-attributes-per-line': 'off',
+      'vue/singleline-html-element-content-newline': 'off',
+      'vue/multiline-html-element-content-newline': 'off',
+      'vue/html-indent': 'off',
+      'vue/html-closing-bracket-newline': 'off',
+      'vue/html-self-closing': 'off',
     },
   },
 );
