@@ -20,8 +20,13 @@ export interface MeterState {
   units: number;
   /** The account's monthly quota, units. */
   quota: number;
-  /** Units already used this calendar month (UTC) before this request. */
-  usedBefore: number;
+  /**
+   * Units the rest of the account has used this calendar month (UTC), read at the moment of the
+   * call: units committed to the database plus units charged by the account's other requests that
+   * are still in flight. `chargeUnits` checks the quota against this, so two concurrent requests
+   * cannot both spend the same remaining units.
+   */
+  usedByOthers: () => number;
 }
 
 declare global {

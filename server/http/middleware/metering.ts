@@ -11,6 +11,11 @@
  * recorded with status 499 when the socket closes.
  *
  * If the database refuses the write, the client gets a 500 problem instead of an unbilled result.
+ *
+ * Quota: each request's meter is kept in a per-account in-flight set until its row is written.
+ * `meter.usedByOthers()` (used by `chargeUnits` when units are charged, i.e. after the body is
+ * read) returns the units committed this month plus those charged by the account's other
+ * in-flight requests, so concurrent requests cannot spend the same remaining units twice.
  */
 import type { RequestHandler, Response } from 'express';
 import { recordRequest } from '../../accounts/metering.js';
@@ -19,7 +24,7 @@ import { unitsUsedThisMonth } from '../../accounts/usage.js';
 import type { AppDeps } from '../app.js';
 import { presentedToken } from './auth.js';
 import { elapsedMs } from './request-id.js';
-import './locals.js';
+import type { MeterState } from './locals.js';
 
 function chunkOf(args: unknown[]): Buffer | string | undefined {
   const first = args[0];
@@ -32,40 +37,58 @@ export function metering(deps: AppDeps): RequestHandler {
   const accountStmt = deps.sqlite.prepare(
     'SELECT monthly_unit_quota AS quota, retain_request_bodies AS retain FROM accounts WHERE id = ?',
   );
+  // The meters of requests in flight, per account: their charged units count against the quota
+  // of the account's other requests until they are committed (this process only; see rate-limit.ts).
+  const inFlight = new Map<number, Set<MeterState>>();
   return (req, res, next) => {
     const auth = res.locals.auth;
     if (!auth) throw new Error('metering must run after authentication');
     const account = accountStmt.get(auth.accountId) as { quota: number; retain: number } | undefined;
-    const now = deps.clock();
-    res.locals.meter = {
+    const siblings = inFlight.get(auth.accountId) ?? new Set<MeterState>();
+    inFlight.set(auth.accountId, siblings);
+    const meter: MeterState = {
       operation: 'unmatched',
       units: 0,
       quota: account?.quota ?? 0,
-      usedBefore: unitsUsedThisMonth(deps.sqlite, auth.accountId, now),
+      usedByOthers: () => {
+        let pending = 0;
+        for (const other of siblings) if (other !== meter) pending += other.units;
+        return unitsUsedThisMonth(deps.sqlite, auth.accountId, deps.clock()) + pending;
+      },
     };
+    siblings.add(meter);
+    const leave = () => {
+      siblings.delete(meter);
+      if (siblings.size === 0 && inFlight.get(auth.accountId) === siblings) inFlight.delete(auth.accountId);
+    };
+    res.locals.meter = meter;
     const retain = account?.retain === 1;
     const token = presentedToken(req.get('authorization'));
     let recorded = false;
 
     const record = (status: number, responseChunk: Buffer | string | undefined): void => {
       recorded = true;
-      const meter = res.locals.meter!;
       const limit = deps.config.logBodyLimitBytes;
-      recordRequest(deps.sqlite, {
-        at: deps.clock(),
-        accountId: auth.accountId,
-        keyId: auth.keyId,
-        operation: meter.operation,
-        status,
-        units: status < 400 ? meter.units : 0,
-        latencyMs: elapsedMs(res.locals.startedAt),
-        requestId: res.locals.requestId ?? '',
-        engineVersion: deps.engineVersion,
-        method: req.method,
-        path: req.originalUrl.split('?')[0] ?? req.originalUrl,
-        requestBody: retain ? logBody(req.body, limit, token) : null,
-        responseBody: retain ? logBody(responseChunk, limit, token) : null,
-      });
+      // The units move from "in flight" to the database in one synchronous step.
+      try {
+        recordRequest(deps.sqlite, {
+          at: deps.clock(),
+          accountId: auth.accountId,
+          keyId: auth.keyId,
+          operation: meter.operation,
+          status,
+          units: status < 400 ? meter.units : 0,
+          latencyMs: elapsedMs(res.locals.startedAt),
+          requestId: res.locals.requestId ?? '',
+          engineVersion: deps.engineVersion,
+          method: req.method,
+          path: req.originalUrl.split('?')[0] ?? req.originalUrl,
+          requestBody: retain ? logBody(req.body, limit, token) : null,
+          responseBody: retain ? logBody(responseChunk, limit, token) : null,
+        });
+      } finally {
+        leave();
+      }
     };
 
     const originalEnd = res.end.bind(res) as (...args: unknown[]) => Response;

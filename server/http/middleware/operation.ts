@@ -26,8 +26,9 @@ export function chargeUnits(res: Response, units: number): void {
   if (!Number.isInteger(units) || units < 0)
     throw new Error(`chargeUnits: units must be a non-negative integer`);
   const wanted = meter.units + units;
-  if (meter.usedBefore + wanted > meter.quota) {
-    const remaining = Math.max(0, meter.quota - meter.usedBefore);
+  const used = meter.usedByOthers();
+  if (used + wanted > meter.quota) {
+    const remaining = Math.max(0, meter.quota - used);
     throw problem(
       'quota-exceeded',
       `This request costs ${wanted} units but only ${remaining} of the monthly quota of ${meter.quota} units remain.`,
