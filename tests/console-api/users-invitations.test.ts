@@ -27,12 +27,11 @@ function tokenFrom(text: string, page: string): string {
 
 async function admin(h: ConsoleHarness) {
   const s = await signIn(h, 'admin@ebullio.invalid');
-  const send = (method: 'post' | 'patch', path: string, body: object) =>
-    request(h.app)
-      [method](`/console-api${path}`)
-      .set('Cookie', s.jar.header())
-      .set('X-CSRF-Token', s.token)
-      .send(body);
+  const send = (method: 'post' | 'patch', path: string, body: object) => {
+    const agent = request(h.app);
+    const req = method === 'post' ? agent.post(`/console-api${path}`) : agent.patch(`/console-api${path}`);
+    return req.set('Cookie', s.jar.header()).set('X-CSRF-Token', s.token).send(body);
+  };
   const get = (path: string) => request(h.app).get(`/console-api${path}`).set('Cookie', s.jar.header());
   return { ...s, send, get };
 }
