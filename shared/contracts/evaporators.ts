@@ -59,6 +59,11 @@ export const SteamSpecSchema = z
       133,
     ).optional(),
     superheat: quantity(specs.superheat, 'Superheat of the heating steam above saturation', 0).optional(),
+    condensateSubcooling: quantity(
+      specs.superheat,
+      'Subcooling of the steam condensate below saturation when it leaves the chest (default 0: saturated)',
+      0,
+    ).optional(),
   })
   .strict()
   .superRefine((s, ctx) => {
@@ -171,6 +176,12 @@ export const SingleEffectResponseSchema = z
     ),
     area: out('area', 'Heat-transfer area'),
     steamEconomy: out({ symbol: '1', label: 'kg vapour per kg steam' }, 'Steam economy V/S'),
+    specificSteamConsumption: out(
+      { symbol: '1', label: 'kg steam per kg vapour' },
+      'Specific steam consumption S/V (the inverse of the steam economy)',
+    ),
+    waterBoilingPoint: out('temperature', 'Boiling point of pure water at the body pressure'),
+    heatLoss: out('power', 'Heat lost to the surroundings (heatLossFraction × duty)'),
     warnings: z.array(WarningSchema),
     cautions: z.array(CautionSchema),
     provenance: ProvenanceSchema,
@@ -220,6 +231,31 @@ export const MultipleEffectRequestSchema = z
       )
       .max(MAX_EFFECTS)
       .optional(),
+    feedPreheat: z
+      .object({
+        temperature: quantity(
+          specs.temperature,
+          'Temperature the fresh feed is heated to before it enters',
+          80,
+        ),
+        source: z
+          .union([
+            z.literal('external'),
+            z.object({ vaporFromEffect: z.int().min(1).max(MAX_EFFECTS) }).strict(),
+          ])
+          .default('external')
+          .meta({
+            description:
+              '"external" (another heat source; its duty is reported) or vapour bled from an effect (added to that effect\'s bleed)',
+          }),
+      })
+      .strict()
+      .optional()
+      .meta({ description: 'Feed preheating before the first effect the liquor enters' }),
+    condensateFlash: z.boolean().optional().meta({
+      description:
+        'Flash the condensate of vapour chests 2…N down the train; its flash vapour joins the vapour heating the next chest',
+    }),
   })
   .strict()
   .superRefine((r, ctx) => {
@@ -312,6 +348,7 @@ export const EffectResultSchema = z
     vaporFlow: out('massFlow', 'Vapour produced'),
     duty: out('power', 'Heat duty'),
     area: out('area', 'Heat-transfer area'),
+    vaporBleed: out('massFlow', 'Vapour bled from this effect to other users (including any feed preheat)'),
   })
   .meta({ id: 'EffectResult' });
 
@@ -324,6 +361,10 @@ export const MultipleEffectResponseSchema = z
     evaporation: out('massFlow', 'Total water evaporated'),
     steamEconomy: out({ symbol: '1', label: 'kg vapour per kg steam' }, 'Steam economy'),
     iterations: z.int().meta({ description: 'Solver iterations' }),
+    residual: z.number().meta({
+      description: 'Largest relative residual of the balances at the solution (dimensionless)',
+    }),
+    feedPreheatDuty: out('power', 'Duty of the feed preheater (0 without preheat)'),
     warnings: z.array(WarningSchema),
     cautions: z.array(CautionSchema),
     provenance: ProvenanceSchema,

@@ -113,6 +113,62 @@ describe('POST /v1/evaporators/multiple-effect', () => {
     expect(res.status).toBe(422);
     expect(res.body.errors[0].field).toBe('overallHeatTransferCoefficients');
   });
+
+  const cold = {
+    liquor: 'sodium-hydroxide',
+    effects: 3,
+    feed: { massFlow: 2, massFraction: 0.1, temperature: 25 },
+    product: { massFraction: 0.3 },
+    steam: { pressure: '3 barg', condensateSubcooling: 5 },
+    lastEffectPressure: 15,
+    overallHeatTransferCoefficients: [2500, 2000, 1500],
+  };
+
+  it('preheats the feed with vapour bled from an effect and reports the bleed and the duty', async () => {
+    const res = await request(h.app)
+      .post('/v1/evaporators/multiple-effect')
+      .set(auth())
+      .send({
+        ...cold,
+        feedPreheat: { temperature: 70, source: { vaporFromEffect: 1 } },
+        condensateFlash: false,
+      });
+    expect(res.status).toBe(200);
+    expect(res.body.feedPreheatDuty).toBeGreaterThan(0);
+    // The preheat vapour is taken from effect 1's vapour (a bleed), the others bleed nothing.
+    expect(res.body.effects[0].vaporBleed).toBeGreaterThan(0);
+    expect(res.body.effects[1].vaporBleed).toBe(0);
+    // Energy bookkeeping (first law): the preheater's duty is the bled vapour's condensing heat,
+    // so it is at most the bleed times the heat of condensation of steam at that pressure
+    // (< 2.4 MJ/kg below 1 MPa, IAPWS-IF97 saturation tables).
+    expect(res.body.feedPreheatDuty).toBeLessThan(res.body.effects[0].vaporBleed * 2400);
+    expect(res.body.residual).toBeLessThan(1e-9);
+  });
+
+  it('names feedPreheat.temperature when the preheat is hotter than the heating steam', async () => {
+    const res = await request(h.app)
+      .post('/v1/evaporators/multiple-effect')
+      .set(auth())
+      .send({ ...cold, feedPreheat: { temperature: 180 } });
+    expect(res.status).toBe(422);
+    expect(res.body.errors[0].field).toBe('feedPreheat.temperature');
+    // Range in display units: from the feed temperature up to the steam's condensing temperature
+    // (3 barg = 401.3 kPa: 143.7 °C, IAPWS-IF97 saturation table; common practice).
+    expect(res.body.errors[0].validRange).toMatchObject({ min: 25, unit: 'degC' });
+    expect(res.body.errors[0].validRange.max).toBeCloseTo(143.7, 0);
+  });
+});
+
+describe('single-effect derived figures', () => {
+  it('gives the specific steam consumption as the inverse of the steam economy', async () => {
+    // Definitions (common practice): economy = V/S, specific steam consumption = S/V.
+    const res = await request(h.app).post('/v1/evaporators/single-effect').set(auth()).send(geankoplis841);
+    expect(res.status).toBe(200);
+    expect(res.body.steamEconomy * res.body.specificSteamConsumption).toBeCloseTo(1, 9);
+    // Pure water at 101.325 kPa boils at 99.974 °C (IAPWS-IF97; common practice).
+    expect(res.body.waterBoilingPoint).toBeCloseTo(99.974, 2);
+    expect(res.body.heatLoss).toBe(0);
+  });
 });
 
 describe('liquor routes', () => {

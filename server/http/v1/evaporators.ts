@@ -57,16 +57,27 @@ const EVAPORATOR_FIELDS: FieldMap = {
 };
 
 function steamSpec(
-  s: { pressure?: number | string; temperature?: number | string; superheat?: number | string },
+  s: {
+    pressure?: number | string;
+    temperature?: number | string;
+    superheat?: number | string;
+    condensateSubcooling?: number | string;
+  },
   prefix: string,
 ): SteamSupplySpec {
   const pressure = readOptional(s.pressure, specs.pressure, `${prefix}steam.pressure`);
   const saturationTemperature = readOptional(s.temperature, specs.temperature, `${prefix}steam.temperature`);
   const superheat = readOptional(s.superheat, specs.superheat, `${prefix}steam.superheat`);
+  const condensateSubcooling = readOptional(
+    s.condensateSubcooling,
+    specs.superheat,
+    `${prefix}steam.condensateSubcooling`,
+  );
   return {
     ...(pressure !== undefined ? { pressure } : {}),
     ...(saturationTemperature !== undefined ? { saturationTemperature } : {}),
     ...(superheat !== undefined ? { superheat } : {}),
+    ...(condensateSubcooling !== undefined ? { condensateSubcooling } : {}),
   };
 }
 
@@ -87,6 +98,8 @@ function prefixed(map: FieldMap, prefix: string): FieldMap {
     'vaporBleeds',
     'heatLossFraction',
     'lastEffectPressure',
+    'feedPreheat',
+    'condensateFlash',
   ]) {
     out[k] ??= prefix + k;
   }
@@ -198,6 +211,9 @@ export function runSingleEffect(
     temperatureDifference: r(result.temperatureDifference),
     area: r(result.area),
     steamEconomy: r(result.steamEconomy),
+    specificSteamConsumption: r(result.specificSteamConsumption),
+    waterBoilingPoint: display(result.waterBoilingPoint, 'temperature'),
+    heatLoss: display(result.heatLoss, 'power'),
     warnings: warningsOut([...liquor.definitionWarnings, ...result.warnings], map),
     cautions: result.cautions,
     provenance: provenance(engineVersion, [IF97_MODEL, ...liquor.models]),
@@ -251,6 +267,19 @@ export function runMultipleEffect(
           }
         : {}),
       ...(productMassFraction !== undefined ? { productMassFraction } : {}),
+      ...(b.feedPreheat
+        ? {
+            feedPreheat: {
+              temperature: readQuantity(
+                b.feedPreheat.temperature,
+                specs.temperature,
+                `${prefix}feedPreheat.temperature`,
+              ),
+              source: b.feedPreheat.source,
+            },
+          }
+        : {}),
+      ...(b.condensateFlash !== undefined ? { condensateFlash: b.condensateFlash } : {}),
     };
     if (b.areas) {
       const areas = b.areas.map((a, i) => readQuantity(a, specs.area, `${prefix}areas[${i}]`));
@@ -270,6 +299,7 @@ export function runMultipleEffect(
       vaporFlow: r(e.vaporFlow),
       duty: display(e.duty, 'power'),
       area: r(e.area),
+      vaporBleed: r(e.vaporBleed),
     })),
     steam: {
       massFlow: r(result.steam.massFlow),
@@ -282,6 +312,8 @@ export function runMultipleEffect(
     evaporation: r(result.evaporation),
     steamEconomy: r(result.steamEconomy),
     iterations: result.iterations,
+    residual: result.residual,
+    feedPreheatDuty: display(result.feedPreheat?.duty ?? 0, 'power'),
     warnings: warningsOut([...liquor.definitionWarnings, ...result.warnings], map),
     cautions: result.cautions,
     provenance: provenance(engineVersion, [IF97_MODEL, ...liquor.models]),
