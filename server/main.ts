@@ -1,9 +1,22 @@
 /**
- * Start-up: config → database (WAL, migrations) → seed/bootstrap → listen; request-log pruning at
- * start and hourly; graceful shutdown on SIGTERM/SIGINT (stop accepting, let in-flight requests
- * finish for up to SHUTDOWN_TIMEOUT_MS, close the database, exit 0).
+ * Start-up: config → database (WAL, migrations) → seed/bootstrap → development services → listen;
+ * request-log pruning at start and hourly; graceful shutdown on SIGTERM/SIGINT (stop accepting,
+ * let in-flight requests finish for up to SHUTDOWN_TIMEOUT_MS, stop the development services, close the database, exit 0).
  *
  *   PORT=8080 DB_FILE=./data/ebullio.db BOOTSTRAP_API_KEY=… npx tsx server/main.ts
+ *
+ * Development services (never with NODE_ENV=production):
+ *
+ * | variable | default | meaning |
+ * |---|---|---|
+ * | MAIL_CAPTURE | 1 when SMTP_URL is unset | "0": not started here (server/mail/send.ts then starts one on a random port at the first mail) |
+ * | MAIL_CAPTURE_PORT | 0 (any free port) | loopback port of the capture server; SMTP_URL is pointed at it |
+ * | FAKE_PAYMENTS | 1 when PAYMENTS_API_BASE is a loopback http URL (the default) | "0": do not start the local fake of the payment provider |
+ * | FAKE_PAYMENTS_AUTOPAY | 0 | "1": the fake pays every invoice right after it is finalized and sends the signed invoice.paid webhook |
+ *
+ * The fake provider listens on the port of PAYMENTS_API_BASE (default 12111, see
+ * server/integrations/payments/config.ts) and delivers its webhooks to this server's
+ * /webhooks/payments.
  */
 import fs from 'node:fs';
 import path from 'node:path';
@@ -11,11 +24,65 @@ import type { AddressInfo } from 'node:net';
 import { pruneRequestLog } from './accounts/request-log.js';
 import { ConfigError, loadConfig, type Config } from './config.js';
 import { openDatabase, runMigrations } from './db/client.js';
-import { createApp } from './http/app.js';
+import { createApp, type AppDeps } from './http/app.js';
+import { startMailCapture, type MailCapture } from './integrations/mail-capture.js';
+import { loadPaymentsConfig, PaymentsConfigError } from './integrations/payments/config.js';
+import { startFakePaymentProvider, type FakePaymentProvider } from './integrations/payments/fake-provider.js';
 import { bootstrap } from './seed/bootstrap.js';
 
 const SHUTDOWN_TIMEOUT_MS = 10_000;
 const PRUNE_INTERVAL_MS = 3_600_000;
+
+function flag(name: string, fallback: boolean): boolean {
+  const raw = process.env[name];
+  if (raw === undefined || raw === '') return fallback;
+  if (/^(1|true|on|yes)$/i.test(raw)) return true;
+  if (/^(0|false|off|no)$/i.test(raw)) return false;
+  throw new ConfigError(`${name} must be 1 or 0, got "${raw}"`);
+}
+
+/** Local SMTP capture server: outside production, when no SMTP server is configured. */
+async function startDevMail(
+  config: Config,
+  deps: Pick<AppDeps, 'db' | 'clock'>,
+): Promise<MailCapture | undefined> {
+  if (config.nodeEnv === 'production' || config.smtpUrl !== undefined || !flag('MAIL_CAPTURE', true))
+    return undefined;
+  const raw = process.env.MAIL_CAPTURE_PORT;
+  const port = raw === undefined || raw === '' ? 0 : Number(raw);
+  if (!Number.isInteger(port) || port < 0 || port > 65535)
+    throw new ConfigError(`MAIL_CAPTURE_PORT must be a port number, got "${raw}"`);
+  const capture = await startMailCapture({ db: deps.db, port, clock: deps.clock });
+  // sendMail reads config.smtpUrl: point it at the capture server (loopback, no TLS).
+  config.smtpUrl = capture.url;
+  console.log(
+    `[start-up] development mail capture on ${capture.url} (messages appear in the console outbox)`,
+  );
+  return capture;
+}
+
+/** Local fake of the payment provider: outside production, when PAYMENTS_API_BASE is loopback http. */
+async function startDevPayments(
+  config: Config,
+  serverPort: number,
+): Promise<FakePaymentProvider | undefined> {
+  if (config.nodeEnv === 'production') return undefined;
+  const payments = loadPaymentsConfig(process.env);
+  const base = payments.apiBase;
+  const loopback =
+    base !== undefined && base.protocol === 'http:' && /^(127\.0\.0\.1|localhost)$/.test(base.hostname);
+  if (!payments.enabled || !loopback || !flag('FAKE_PAYMENTS', true)) return undefined;
+  const fake = await startFakePaymentProvider({
+    port: Number(base.port || 80),
+    host: '127.0.0.1',
+    webhookUrl: `http://127.0.0.1:${serverPort}/webhooks/payments`,
+    webhookSecret: payments.webhookSecret,
+    apiKey: payments.apiKey,
+    autoPayAfterFinalize: flag('FAKE_PAYMENTS_AUTOPAY', false),
+  });
+  console.log(`[start-up] development fake payment provider on ${fake.url} (webhooks to /webhooks/payments)`);
+  return fake;
+}
 
 function engineVersion(): string {
   const pkg = JSON.parse(fs.readFileSync(path.resolve(import.meta.dirname, '../package.json'), 'utf8')) as {
@@ -24,12 +91,17 @@ function engineVersion(): string {
   return `ebullio-${pkg.version}`;
 }
 
-function main(): void {
+async function main(): Promise<void> {
   let config: Config;
   try {
     config = loadConfig(process.env);
+    // Validate the payment settings and the development-service flags before opening anything.
+    loadPaymentsConfig(process.env);
+    flag('MAIL_CAPTURE', true);
+    flag('FAKE_PAYMENTS', true);
+    flag('FAKE_PAYMENTS_AUTOPAY', false);
   } catch (err) {
-    if (err instanceof ConfigError) {
+    if (err instanceof ConfigError || err instanceof PaymentsConfigError) {
       console.error(`[start-up] configuration error: ${err.message}`);
       process.exit(1);
     }
@@ -60,7 +132,17 @@ function main(): void {
   const pruneTimer = setInterval(prune, PRUNE_INTERVAL_MS);
   pruneTimer.unref();
 
-  const app = createApp({ db, sqlite, config, clock, engineVersion: version });
+  let mail: MailCapture | undefined;
+  try {
+    mail = await startDevMail(config, { db, clock });
+  } catch (err) {
+    // A busy capture port should not stop the service: mail is then logged as failed.
+    console.error(`[start-up] development mail capture not started: ${(err as Error).message}`);
+  }
+  let payments: FakePaymentProvider | undefined;
+
+  const deps: AppDeps = { db, sqlite, config, clock, engineVersion: version };
+  const app = createApp(deps);
   const server = app.listen(config.port, (err?: Error) => {
     if (err) {
       console.error(`[start-up] cannot listen on port ${config.port}: ${err.message}`);
@@ -68,7 +150,16 @@ function main(): void {
       process.exit(1);
     }
     const { port } = server.address() as AddressInfo;
-    console.log(`[start-up] Ebullio ${version} listening on http://localhost:${port}`);
+    startDevPayments(config, port)
+      .then((fake) => {
+        payments = fake;
+      })
+      .catch((e: unknown) => {
+        console.error(`[start-up] development fake payment provider not started: ${(e as Error).message}`);
+      })
+      .finally(() => {
+        console.log(`[start-up] Ebullio ${version} listening on http://localhost:${port}`);
+      });
   });
 
   let stopping = false;
@@ -89,9 +180,12 @@ function main(): void {
     server.close(() => {
       clearTimeout(force);
       clearInterval(reaper);
-      sqlite.close();
-      console.log('[shutdown] done');
-      process.exit(0);
+      // Development services after the last request: a finalize in flight may still call the fake.
+      void Promise.allSettled([payments?.close(), mail?.close()]).then(() => {
+        sqlite.close();
+        console.log('[shutdown] done');
+        process.exit(0);
+      });
     });
     server.closeIdleConnections();
   };
@@ -99,4 +193,4 @@ function main(): void {
   process.on('SIGINT', () => shutdown('SIGINT'));
 }
 
-main();
+void main();

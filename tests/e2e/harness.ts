@@ -95,13 +95,15 @@ export async function startServer(extraEnv: Record<string, string> = {}): Promis
     BOOTSTRAP_API_KEY: apiKey,
     BOOTSTRAP_ADMIN_EMAIL: ADMIN_EMAIL,
     BOOTSTRAP_ADMIN_PASSWORD: ADMIN_PASSWORD,
-    // Development stand-ins (read by server/main.ts): the SMTP capture server and the fake payment
-    // provider, on ports picked here so parallel test files do not collide.
-    MAIL_CAPTURE: 'on',
+    // Development stand-ins started by server/main.ts: the SMTP capture server and the fake payment
+    // provider (which pays each finalized invoice and sends the signed webhook), on ports picked
+    // here so parallel test files do not collide.
+    MAIL_CAPTURE: '1',
     MAIL_CAPTURE_PORT: String(smtpPort),
-    SMTP_URL: `smtp://127.0.0.1:${smtpPort}`,
-    FAKE_PAYMENTS: 'on',
-    FAKE_PAYMENTS_PORT: String(paymentsPort),
+    SMTP_URL: '',
+    PAYMENTS_API_BASE: `http://127.0.0.1:${paymentsPort}`,
+    FAKE_PAYMENTS: '1',
+    FAKE_PAYMENTS_AUTOPAY: '1',
     ...extraEnv,
   };
   const child = spawn(path.join(ROOT, 'node_modules/.bin/tsx'), ['server/main.ts'], {
@@ -120,9 +122,15 @@ export async function startServer(extraEnv: Record<string, string> = {}): Promis
     }),
   );
   const origin = `http://127.0.0.1:${port}`;
-  await waitFor200(`${origin}/readyz`, 30_000, () =>
-    exitCode !== undefined ? `server exited early (${exitCode}):\n${output}` : undefined,
-  );
+  const dead = () => (exitCode !== undefined ? `server exited early (${exitCode}):\n${output}` : undefined);
+  await waitFor200(`${origin}/readyz`, 30_000, dead);
+  // main.ts logs the URL once the development services are up too.
+  for (const deadline = Date.now() + 15_000; !/listening on http:/.test(output);) {
+    const why = dead();
+    if (why !== undefined) throw new Error(why);
+    if (Date.now() > deadline) throw new Error(`server did not log its URL:\n${output}`);
+    await new Promise((r) => setTimeout(r, 50));
+  }
   return {
     origin,
     port,
