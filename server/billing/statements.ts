@@ -147,6 +147,33 @@ export function listStatements(db: Db, filter: StatementFilter): Statement[] {
     .map((r) => toStatement(r.statement, r.accountName, planByName.get(r.statement.planName)));
 }
 
+/**
+ * Recomputes one DRAFT statement from its month's usage and its account's current plan; leaves
+ * any other status alone. Returns the row as it now is (undefined if there is none).
+ */
+export function refreshDraft(db: Db, sqlite: Sqlite, id: number): StatementRow | undefined {
+  const row = getStatementRow(db, id);
+  if (!row || row.status !== 'draft') return row;
+  const account = db.select().from(accounts).where(eq(accounts.id, row.accountId)).get();
+  const plan = account ? getPlan(db, account.plan) : undefined;
+  if (!plan) return row;
+  const units = unitsByAccount(sqlite, row.month).get(row.accountId) ?? 0;
+  const figures = computeStatement(units, plan);
+  return db
+    .update(statements)
+    .set({
+      planName: plan.name,
+      units: figures.units,
+      includedUnits: figures.includedUnits,
+      overageUnits: figures.overageUnits,
+      amountMinor: figures.amountMinor,
+      currency: figures.currency,
+    })
+    .where(and(eq(statements.id, id), eq(statements.status, 'draft')))
+    .returning()
+    .get();
+}
+
 export function getStatementRow(db: Db, id: number): StatementRow | undefined {
   return db.select().from(statements).where(eq(statements.id, id)).get();
 }

@@ -155,7 +155,8 @@ export const FinalizeStatementResponse = z
   .object({
     statement: StatementDetail,
     mailedTo: z.string().nullable().meta({
-      description: 'Where the statement-ready e-mail went; null if the account has no billing e-mail.',
+      description:
+        'Where the statement-ready e-mail went; null if the account has no billing e-mail or the mail failed (see the mail log).',
     }),
   })
   .meta({ id: 'ConsoleFinalizeStatementResponse' });

@@ -1,0 +1,172 @@
+// Test harness for billing: a temp (in-memory) database with migrations and the default plans, an
+// injectable clock, the app listening on a loopback port (so the fake provider can deliver
+// webhooks to it), the local fake of the payment provider driven through the official SDK, and
+// one signed-in agent per role through the real console pipeline (sign-in cookie, CSRF double submit).
+import type http from 'node:http';
+import type { AddressInfo } from 'node:net';
+import request from 'supertest';
+import type TestAgent from 'supertest/lib/agent.js';
+import { addMember, createAccount, createUser, type Role } from '../../server/accounts/accounts.js';
+import { recordRequest } from '../../server/accounts/metering.js';
+import { ensureDefaultPlans } from '../../server/billing/plans.js';
+import { billingRouteModule } from '../../server/console/billing.js';
+import { consoleRouteModules } from '../../server/console/index.js';
+import { openDatabase, runMigrations } from '../../server/db/client.js';
+import { createApp, type AppDeps } from '../../server/http/app.js';
+import { configurePayments } from '../../server/integrations/payments/client.js';
+import {
+  startFakePaymentProvider,
+  type FakePaymentProvider,
+} from '../../server/integrations/payments/fake-provider.js';
+import { defaultMailCapture } from '../../server/mail/send.js';
+import { testConfig } from '../http/helpers.js';
+
+if (!consoleRouteModules.includes(billingRouteModule)) consoleRouteModules.push(billingRouteModule);
+
+export const PASSWORD = 'correct-horse-battery-42';
+export const API_KEY = 'sk_test_billing_harness_key';
+export const WEBHOOK_SECRET = 'whsec_billing_harness_secret';
+
+export interface SignedIn {
+  agent: TestAgent;
+  csrf: string;
+}
+
+export interface BillingHarness {
+  deps: AppDeps;
+  clock: { now: Date };
+  app: ReturnType<typeof createApp>;
+  baseUrl: string;
+  fake: FakePaymentProvider;
+  /** Professional plan, billing e-mail set. */
+  alphaId: number;
+  /** Starter plan (no fee), no billing e-mail. */
+  betaId: number;
+  admin: SignedIn;
+  billing: SignedIn;
+  developer: SignedIn;
+  anonymous: SignedIn;
+  close(): Promise<void>;
+}
+
+async function csrfAgent(app: BillingHarness['app']): Promise<SignedIn> {
+  const agent = request.agent(app);
+  const res = await agent.get('/console-api/auth/csrf').expect(200);
+  return { agent, csrf: (res.body as { csrfToken: string }).csrfToken };
+}
+
+async function signIn(app: BillingHarness['app'], email: string): Promise<SignedIn> {
+  const first = await csrfAgent(app);
+  await first.agent
+    .post('/console-api/auth/sign-in')
+    .set('X-CSRF-Token', first.csrf)
+    .send({ email, password: PASSWORD })
+    .expect(200);
+  const again = await first.agent.get('/console-api/auth/csrf').expect(200);
+  return { agent: first.agent, csrf: (again.body as { csrfToken: string }).csrfToken };
+}
+
+export async function makeBillingHarness(
+  opts: { autoPay?: boolean; now?: string } = {},
+): Promise<BillingHarness> {
+  const { sqlite, db } = openDatabase(':memory:');
+  runMigrations(db);
+  ensureDefaultPlans(db);
+  // 3 April 2031: March is complete.
+  const clock = { now: new Date(opts.now ?? '2031-04-03T09:00:00Z') };
+  const deps: AppDeps = {
+    db,
+    sqlite,
+    config: testConfig({ consoleSignInLimit: 1000 }),
+    clock: () => clock.now,
+    engineVersion: 'test-engine',
+  };
+  const alpha = createAccount(db, {
+    name: 'Invented Alpha Evaporation Works',
+    plan: 'professional',
+    monthlyUnitQuota: 200_000,
+    billingEmail: 'accounts@alpha.invalid',
+    now: new Date('2031-01-01T00:00:00Z'),
+  });
+  const beta = createAccount(db, {
+    name: 'Invented Beta Brine Co',
+    plan: 'starter',
+    monthlyUnitQuota: 20_000,
+    now: new Date('2031-01-01T00:00:00Z'),
+  });
+  const app = createApp(deps);
+  const server = await new Promise<http.Server>((resolve) => {
+    const s = app.listen(0, '127.0.0.1', () => resolve(s));
+  });
+  const baseUrl = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
+  const fake = await startFakePaymentProvider({
+    webhookUrl: `${baseUrl}/webhooks/payments`,
+    webhookSecret: WEBHOOK_SECRET,
+    apiKey: API_KEY,
+    autoPayAfterFinalize: opts.autoPay ?? false,
+    clock: () => clock.now,
+  });
+  configurePayments(deps, {
+    enabled: true,
+    apiKey: API_KEY,
+    apiBase: new URL(fake.url),
+    webhookSecret: WEBHOOK_SECRET,
+  });
+  const signedIn = {} as Record<Role, SignedIn>;
+  for (const role of ['admin', 'billing', 'developer'] as const) {
+    const email = `${role}@ebullio.invalid`;
+    const user = createUser(db, { email, password: PASSWORD, role, now: clock.now });
+    if (role === 'developer') addMember(db, user.id, alpha.id);
+    signedIn[role] = await signIn(app, email);
+  }
+  return {
+    deps,
+    clock,
+    app,
+    baseUrl,
+    fake,
+    alphaId: alpha.id,
+    betaId: beta.id,
+    ...signedIn,
+    anonymous: await csrfAgent(app),
+    async close() {
+      await fake.close();
+      await new Promise<void>((resolve) => {
+        server.close(() => resolve());
+        server.closeAllConnections();
+      });
+      await (await defaultMailCapture(deps)).close();
+      sqlite.close();
+    },
+  };
+}
+
+let seq = 0;
+/** Writes metered usage exactly as the v1 metering hook does (one request of `units` at `at`). */
+export function meter(h: BillingHarness, accountId: number, units: number, at: string): void {
+  seq++;
+  recordRequest(h.deps.sqlite, {
+    at: new Date(at),
+    accountId,
+    keyId: null as unknown as number,
+    operation: 'evaporators.single-effect',
+    status: 200,
+    units,
+    latencyMs: 5,
+    requestId: `billing-req-${seq}`,
+    engineVersion: 'test-engine',
+    method: 'POST',
+    path: '/v1/evaporators/single-effect',
+    requestBody: null,
+    responseBody: null,
+  });
+}
+
+export function mailRows(h: BillingHarness): { kind: string; to: string; subject: string; status: string }[] {
+  return h.deps.sqlite.prepare('SELECT kind, "to", subject, status FROM mail_log ORDER BY id').all() as {
+    kind: string;
+    to: string;
+    subject: string;
+    status: string;
+  }[];
+}
