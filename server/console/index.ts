@@ -13,6 +13,7 @@ import express from 'express';
 import { consoleSettings } from '../config.js';
 import type { AppDeps, AppModule } from '../http/app.js';
 import { auditRouteModule } from './audit.js';
+import { billingRouteModule } from './billing.js';
 import { authRouteModule } from './auth/routes.js';
 import { csrfCheck } from './auth/csrf.js';
 import { sessionMiddleware } from './auth/session.js';
@@ -27,6 +28,7 @@ export const consoleRouteModules: ConsoleRouteModule[] = [
   usersRouteModule,
   auditRouteModule,
   outboxRouteModule,
+  billingRouteModule,
 ];
 
 /** Builds the console router (without mounting it). */
