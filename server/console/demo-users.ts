@@ -1,0 +1,33 @@
+/**
+ * Demo console users for development and browser tests (names invented): one billing user and
+ * one developer who is a member of the given accounts. Idempotent: an existing e-mail is left as
+ * it is (its password is never overwritten). Call from the seed only outside production, e.g.
+ *
+ *   if (config.nodeEnv !== 'production') seedDemoConsoleUsers(db, now, [demoAccountId]);
+ *
+ * The password is the same documented demo value for both, so do not run this on a public host.
+ */
+import { addMember, createUser, findUserByEmail } from '../accounts/accounts.js';
+import type { Db } from '../db/client.js';
+import { users } from '../db/schema.js';
+import { eq } from 'drizzle-orm';
+
+export const DEMO_CONSOLE_PASSWORD = 'ebullio-demo-console';
+export const DEMO_BILLING_EMAIL = 'billing@ebullio.invalid';
+export const DEMO_DEVELOPER_EMAIL = 'developer@ebullio.invalid';
+
+export function seedDemoConsoleUsers(db: Db, now: Date, developerAccountIds: readonly number[]): string[] {
+  const created: string[] = [];
+  const demo = [
+    { email: DEMO_BILLING_EMAIL, role: 'billing' as const, name: 'Maren Oduya (demo billing)' },
+    { email: DEMO_DEVELOPER_EMAIL, role: 'developer' as const, name: 'Tomasz Lindqvist (demo developer)' },
+  ];
+  for (const d of demo) {
+    if (findUserByEmail(db, d.email)) continue;
+    const user = createUser(db, { email: d.email, password: DEMO_CONSOLE_PASSWORD, role: d.role, now });
+    db.update(users).set({ name: d.name }).where(eq(users.id, user.id)).run();
+    if (d.role === 'developer') for (const id of developerAccountIds) addMember(db, user.id, id);
+    created.push(d.email);
+  }
+  return created;
+}
