@@ -1,7 +1,8 @@
 /**
  * Start-up: config → database (WAL, migrations) → seed/bootstrap → development services → listen;
- * request-log pruning at start and hourly; graceful shutdown on SIGTERM/SIGINT (stop accepting,
- * let in-flight requests finish for up to SHUTDOWN_TIMEOUT_MS, stop the development services, close the database, exit 0).
+ * request-log pruning at start and hourly; quota-notice sweep at start and every 10 minutes;
+ * graceful shutdown on SIGTERM/SIGINT (stop accepting, let in-flight requests finish for up to
+ * SHUTDOWN_TIMEOUT_MS, stop the development services, close the database, exit 0).
  *
  *   PORT=8080 DB_FILE=./data/ebullio.db BOOTSTRAP_API_KEY=… npx tsx server/main.ts
  *
@@ -12,6 +13,7 @@
  * | MAIL_CAPTURE | 1 when SMTP_URL is unset | "0": not started here (server/mail/send.ts then starts one on a random port at the first mail) |
  * | MAIL_CAPTURE_PORT | 0 (any free port) | loopback port of the capture server; SMTP_URL is pointed at it |
  * | FAKE_PAYMENTS | 1 when PAYMENTS_API_BASE is a loopback http URL (the default) | "0": do not start the local fake of the payment provider |
+ * | DEMO_CONSOLE_USERS | 0 | "1": create the demo billing and developer users of server/console/demo-users.ts (documented shared password: never on a reachable host) |
  * | FAKE_PAYMENTS_AUTOPAY | 0 | "1": the fake pays every invoice right after it is finalized and sends the signed invoice.paid webhook |
  *
  * The fake provider listens on the port of PAYMENTS_API_BASE (default 12111, see
@@ -22,6 +24,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import type { AddressInfo } from 'node:net';
 import { pruneRequestLog } from './accounts/request-log.js';
+import { checkQuotaNotices } from './billing/quota-notices.js';
 import { ConfigError, loadConfig, type Config } from './config.js';
 import { openDatabase, runMigrations } from './db/client.js';
 import { createApp, type AppDeps } from './http/app.js';
@@ -29,9 +32,12 @@ import { startMailCapture, type MailCapture } from './integrations/mail-capture.
 import { loadPaymentsConfig, PaymentsConfigError } from './integrations/payments/config.js';
 import { startFakePaymentProvider, type FakePaymentProvider } from './integrations/payments/fake-provider.js';
 import { bootstrap } from './seed/bootstrap.js';
+import { seedDemoConsoleUsers } from './console/demo-users.js';
+import { DEMO_ACCOUNT_NAME } from './seed/demo.js';
 
 const SHUTDOWN_TIMEOUT_MS = 10_000;
 const PRUNE_INTERVAL_MS = 3_600_000;
+const QUOTA_SWEEP_INTERVAL_MS = 600_000;
 
 function flag(name: string, fallback: boolean): boolean {
   const raw = process.env[name];
@@ -100,6 +106,7 @@ async function main(): Promise<void> {
     flag('MAIL_CAPTURE', true);
     flag('FAKE_PAYMENTS', true);
     flag('FAKE_PAYMENTS_AUTOPAY', false);
+    flag('DEMO_CONSOLE_USERS', false);
   } catch (err) {
     if (err instanceof ConfigError || err instanceof PaymentsConfigError) {
       console.error(`[start-up] configuration error: ${err.message}`);
@@ -117,6 +124,12 @@ async function main(): Promise<void> {
   if (report.apiKeyRegistered)
     console.log('[start-up] BOOTSTRAP_API_KEY registered on the demo account with all scopes');
   if (report.adminCreated) console.log(`[start-up] admin user ${config.bootstrapAdminEmail} created`);
+  if (config.nodeEnv !== 'production' && flag('DEMO_CONSOLE_USERS', false)) {
+    const demoAccount = sqlite.prepare('SELECT id FROM accounts WHERE name = ?').get(DEMO_ACCOUNT_NAME) as
+      { id: number } | undefined;
+    for (const email of seedDemoConsoleUsers(db, clock(), demoAccount ? [demoAccount.id] : []))
+      console.log(`[start-up] demo console user ${email} created (DEMO_CONSOLE_USERS=1)`);
+  }
   console.log(
     `[start-up] server secret from ${config.secretSource === 'env' ? 'EBULLIO_SECRET' : config.secretSource}`,
   );
@@ -142,6 +155,28 @@ async function main(): Promise<void> {
   let payments: FakePaymentProvider | undefined;
 
   const deps: AppDeps = { db, sqlite, config, clock, engineVersion: version };
+  // Quota e-mails (80 % and 100 %, once per account and month; server/billing/quota-notices.ts):
+  // a sweep over every account catches usage that no request-time check saw (seeded or imported).
+  let sweeping = false;
+  const sweepQuotas = async () => {
+    if (sweeping) return;
+    sweeping = true;
+    try {
+      const ids = sqlite.prepare('SELECT id FROM accounts ORDER BY id').all() as { id: number }[];
+      for (const { id } of ids) {
+        const r = await checkQuotaNotices(deps, id);
+        if (r.sent !== null)
+          console.log(`[quota] account ${id}: ${r.sent} % notice sent (${r.used}/${r.quota} units)`);
+      }
+    } catch (err) {
+      console.error('[quota] notice sweep failed:', err);
+    } finally {
+      sweeping = false;
+    }
+  };
+  const quotaTimer = setInterval(() => void sweepQuotas(), QUOTA_SWEEP_INTERVAL_MS);
+  quotaTimer.unref();
+
   const app = createApp(deps);
   const server = app.listen(config.port, (err?: Error) => {
     if (err) {
@@ -159,6 +194,7 @@ async function main(): Promise<void> {
       })
       .finally(() => {
         console.log(`[start-up] Ebullio ${version} listening on http://localhost:${port}`);
+        void sweepQuotas();
       });
   });
 
@@ -168,6 +204,7 @@ async function main(): Promise<void> {
     stopping = true;
     console.log(`[shutdown] ${signal}: no new connections; finishing in-flight requests`);
     clearInterval(pruneTimer);
+    clearInterval(quotaTimer);
     const force = setTimeout(() => {
       console.error(`[shutdown] requests still open after ${SHUTDOWN_TIMEOUT_MS} ms; closing them`);
       server.closeAllConnections();
