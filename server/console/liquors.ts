@@ -44,30 +44,27 @@ import { consoleRoute, type ConsoleRouteModule } from './route.js';
 const IF97_T_MIN = 273.16;
 const IF97_T_MAX = 647.0;
 
-/** Number of Dühring lines (concentrations) and of enthalpy curves (temperatures). */
-export const DUHRING_LINES = 6;
-export const ENTHALPY_CURVES = 6;
-/** Grid points along each enthalpy curve. */
-export const ENTHALPY_POINTS = 21;
+/** About this many intervals between Dühring lines, enthalpy curves, and points along a curve. */
+export const DUHRING_INTERVALS = 8;
+export const ENTHALPY_INTERVALS = 10;
+export const ENTHALPY_POINT_INTERVALS = 20;
 
-const NICE_STEPS = [1, 2, 5, 10, 20, 25, 50, 100];
+const NICE_STEPS = [
+  0.001, 0.002, 0.005, 0.01, 0.02, 0.025, 0.05, 0.1, 0.2, 0.25, 0.5, 1, 2, 5, 10, 20, 25, 50, 100,
+];
 
-/** Round-number temperatures (°C) from min to max with about `count` intervals. */
-export function niceTemperatureGrid(minC: number, maxC: number, count: number): number[] {
-  const step = NICE_STEPS.find((s) => (maxC - minC) / s <= count) ?? 100;
+/**
+ * Round-number values from min to max with at most about `intervals` steps; the ends are
+ * always included (so the grid spans the whole validity box), rounded to 6 decimals.
+ */
+export function niceGrid(min: number, max: number, intervals: number): number[] {
+  if (!(max > min)) return [min];
+  const step = NICE_STEPS.find((s) => (max - min) / s <= intervals) ?? (max - min) / intervals;
   const out: number[] = [];
-  for (let t = Math.ceil(minC / step) * step; t <= maxC + 1e-9; t += step) out.push(t);
-  if (out.length === 0 || out[0]! - minC > 1e-9) out.unshift(minC);
-  if (maxC - out[out.length - 1]! > 1e-9) out.push(maxC);
-  return out.map((t) => Math.round(t * 1e6) / 1e6);
-}
-
-/** `count` evenly spaced values from min to max inclusive, rounded to 4 decimals. */
-export function evenGrid(min: number, max: number, count: number): number[] {
-  return Array.from(
-    { length: count },
-    (_, i) => Math.round((min + ((max - min) * i) / (count - 1)) * 1e4) / 1e4,
-  );
+  for (let i = Math.ceil(min / step - 1e-9); i * step <= max + 1e-9; i++) out.push(i * step);
+  if (out.length === 0 || out[0]! - min > 1e-9) out.unshift(min);
+  if (max - out[out.length - 1]! > 1e-9) out.push(max);
+  return out.map((v) => Math.round(v * 1e6) / 1e6);
 }
 
 const degC = (kelvin: number) => r(formatOutput(kelvin, 'temperature'));
@@ -91,8 +88,8 @@ export function liquorChartData(model: LiquorModel): Omit<ConsoleLiquorCharts, '
 
   const twMin = Math.max(box.temperature.min, IF97_T_MIN) - KELVIN_OFFSET;
   const twMax = Math.min(box.temperature.max, IF97_T_MAX) - KELVIN_OFFSET;
-  const waterTemps = niceTemperatureGrid(twMin, twMax, 12);
-  const lines = evenGrid(box.massFraction.min, box.massFraction.max, DUHRING_LINES).map((x) => {
+  const waterTemps = niceGrid(twMin, twMax, 12);
+  const lines = niceGrid(box.massFraction.min, box.massFraction.max, DUHRING_INTERVALS).map((x) => {
     const points: ConsoleLiquorCharts['duhring']['lines'][number]['points'] = [];
     for (const twC of waterTemps) {
       const p = saturationPressure(twC + KELVIN_OFFSET);
@@ -111,12 +108,12 @@ export function liquorChartData(model: LiquorModel): Omit<ConsoleLiquorCharts, '
     return { massFraction: x, points };
   });
 
-  const temps = niceTemperatureGrid(
+  const temps = niceGrid(
     box.temperature.min - KELVIN_OFFSET,
     box.temperature.max - KELVIN_OFFSET,
-    ENTHALPY_CURVES - 1,
+    ENTHALPY_INTERVALS,
   );
-  const fractions = evenGrid(box.massFraction.min, box.massFraction.max, ENTHALPY_POINTS);
+  const fractions = niceGrid(box.massFraction.min, box.massFraction.max, ENTHALPY_POINT_INTERVALS);
   const curves = temps.map((tC) => {
     const points: ConsoleLiquorCharts['enthalpy']['curves'][number]['points'] = [];
     for (const x of fractions) {
