@@ -45,7 +45,10 @@ export function uploadForm(fields: LiquorUploadFields, file: Blob, fileName = 'd
   form.append('name', fields.name);
   if (fields.id) form.append('id', fields.id);
   if (fields.heatCapacity) form.append('heatCapacity', fields.heatCapacity);
-  form.append('file', file, fileName);
+  // A File of that name (some FormData implementations drop the third argument for a Blob).
+  const named =
+    file instanceof File && file.name === fileName ? file : new File([file], fileName, { type: 'text/csv' });
+  form.append('file', named, fileName);
   return form;
 }
 

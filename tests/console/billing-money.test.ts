@@ -1,0 +1,135 @@
+/**
+ * Billing in the console: amounts arrive in the currency's minor unit and must be shown in the
+ * major unit with the currency's own number of decimals (ISO 4217), formatted by Intl (CLDR).
+ */
+import { mount } from '@vue/test-utils';
+import { createPinia, setActivePinia } from 'pinia';
+import { beforeEach, describe, expect, it, vi } from 'vitest';
+import { createVuetify } from 'vuetify';
+import * as components from 'vuetify/components';
+import type { StatementDetail } from '../../shared/console/billing.js';
+import { createApiClient } from '../../console/src/api/client.js';
+import { formatMinor, formatMonth, minorDigits } from '../../console/src/components/billing/money.js';
+import StatementDetailCard from '../../console/src/components/billing/StatementDetailCard.vue';
+import { previousUtcMonth, useBillingClient, useBillingStore } from '../../console/src/stores/billing.js';
+
+/** Intl puts a no-break space (U+00A0) or narrow no-break space between number and symbol. */
+const spaces = (s: string) => s.replace(/[\u00a0\u202f]/g, ' ');
+
+describe('minor-unit amounts', () => {
+  it('uses the ISO 4217 minor unit of each currency: 2 for EUR and USD, 0 for JPY, 3 for BHD and KWD', () => {
+    // Source: ISO 4217 currency code list, "minor unit" column (from memory)
+    expect(minorDigits('EUR')).toBe(2);
+    expect(minorDigits('USD')).toBe(2);
+    expect(minorDigits('JPY')).toBe(0);
+    expect(minorDigits('BHD')).toBe(3);
+    expect(minorDigits('KWD')).toBe(3);
+  });
+
+  it('shows 123456 euro cents as €1,234.56 in English and 1.234,56 € in German', () => {
+    // Source: CLDR number patterns for en (¤#,##0.00) and de (#,##0.00 ¤, "." grouping, "," decimal) — from memory
+    expect(formatMinor(123456, 'eur', 'en-US')).toBe('€1,234.56');
+    expect(spaces(formatMinor(123456, 'eur', 'de-DE'))).toBe('1.234,56 €');
+  });
+
+  it('does not divide yen by 100, and gives dinars three decimals', () => {
+    // Source: ISO 4217 minor units (JPY 0, BHD 3), from memory; CLDR en pattern for the symbols
+    expect(formatMinor(1234, 'jpy', 'en-US')).toBe('¥1,234');
+    expect(spaces(formatMinor(1234, 'bhd', 'en-US'))).toBe('BHD 1.234');
+  });
+
+  it('names months in UTC, so the first of a month never slips into the one before', () => {
+    // Source: Gregorian calendar month names (common practice)
+    expect(formatMonth('2031-03', 'en-US')).toBe('March 2031');
+    // Source: calendar arithmetic — the month before January 2032 is December 2031
+    expect(previousUtcMonth(new Date('2032-01-15T00:00:00Z'))).toBe('2031-12');
+  });
+});
+
+describe('statement detail', () => {
+  const vuetify = createVuetify({ components });
+  // An invented statement; its numbers follow the rule printed in shared/console/billing.ts:
+  // 23 456 units, 10 000 included → 13 456 overage → ceil(13 456 / 1000) = 14 blocks.
+  const statement: StatementDetail = {
+    id: 7,
+    accountId: 3,
+    accountName: 'Saltmarsh Cooperative (invented)',
+    month: '2031-03',
+    planName: 'process',
+    planDisplayName: 'Process',
+    units: 23456,
+    includedUnits: 10000,
+    overageUnits: 13456,
+    overageBlocks: 14,
+    amountMinor: 4900 + 14 * 250,
+    currency: 'eur',
+    status: 'finalized',
+    providerInvoiceId: 'in_fake_123',
+    createdAt: '2031-04-01T00:00:00.000Z',
+    finalizedAt: '2031-04-02T09:00:00.000Z',
+    paidAt: null,
+    billingEmail: 'accounts@saltmarsh.example',
+    monthlyFeeMinor: 4900,
+    pricePer1000UnitsMinor: 250,
+    lineItems: [
+      {
+        code: 'monthly-fee',
+        description: 'Process plan, March 2031',
+        quantity: 1,
+        unitAmountMinor: 4900,
+        amountMinor: 4900,
+      },
+      {
+        code: 'overage',
+        description: 'Blocks of 1000 units beyond the plan',
+        quantity: 14,
+        unitAmountMinor: 250,
+        amountMinor: 3500,
+      },
+    ],
+  };
+
+  it('shows the total in euros with two decimals and the provider invoice id', () => {
+    const wrapper = mount(StatementDetailCard, {
+      props: { statement, csvUrl: '/console-api/statements/7/export.csv', canFinalize: true },
+      global: { plugins: [vuetify] },
+    });
+    // Source: ceil(13456/1000) = 14 (arithmetic); 4900 + 14 × 250 = 8400 cents = €84.00 (ISO 4217: EUR has 2 decimals)
+    expect(wrapper.get('[data-test="statement-total"]').text()).toBe(formatMinor(8400, 'eur'));
+    expect(spaces(formatMinor(8400, 'eur', 'en-US'))).toBe('€84.00');
+    expect(wrapper.get('[data-test="invoice-id"]').text()).toBe('in_fake_123');
+    // A finalized statement cannot be finalized again.
+    expect(wrapper.find('[data-test="finalize"]').exists()).toBe(false);
+  });
+});
+
+describe('billing store', () => {
+  beforeEach(() => setActivePinia(createPinia()));
+
+  it('asks for the statements of the chosen month and account, and posts the finalize with the CSRF header', async () => {
+    const calls: { url: string; init: RequestInit }[] = [];
+    const fetch = vi.fn(async (url: string, init: RequestInit) => {
+      calls.push({ url, init });
+      const body = url.includes('/finalize')
+        ? { statement: { id: 7, status: 'finalized', providerInvoiceId: 'in_1' }, mailedTo: null }
+        : { items: [] };
+      return new Response(JSON.stringify(body), {
+        status: 200,
+        headers: { 'content-type': 'application/json' },
+      });
+    });
+    useBillingClient(
+      createApiClient({ fetch: fetch as unknown as typeof globalThis.fetch, readCookie: () => 'tok' }),
+    );
+    const store = useBillingStore();
+    await store.applyFilters({ month: '2031-03', accountId: 3 });
+    // Source: WHATWG URL Standard, application/x-www-form-urlencoded serializer (URLSearchParams)
+    expect(calls[0]!.url).toBe('/console-api/statements?month=2031-03&accountId=3');
+    await store.finalize(7);
+    const post = calls[1]!;
+    expect(post.url).toBe('/console-api/statements/7/finalize');
+    expect(post.init.method).toBe('POST');
+    // Source: OWASP CSRF Prevention Cheat Sheet, double-submit cookie (header equals cookie)
+    expect((post.init.headers as Record<string, string>)['X-CSRF-Token']).toBe('tok');
+  });
+});

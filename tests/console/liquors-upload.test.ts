@@ -1,0 +1,77 @@
+/**
+ * Upload of a Dühring table: the server's line-numbered refusals (produced here by the real v1
+ * CSV parser) are listed per line in the upload card, and the multipart body has the fields the
+ * contract names.
+ */
+import { mount } from '@vue/test-utils';
+import { describe, expect, it } from 'vitest';
+import { createVuetify } from 'vuetify';
+import * as components from 'vuetify/components';
+import { ApiProblem } from '../../console/src/api/client.js';
+import LiquorUploadCard from '../../console/src/components/liquors/LiquorUploadCard.vue';
+import { uploadForm, uploadLineErrors } from '../../console/src/stores/liquors.js';
+import { duhringFromCsv } from '../../server/http/v1/stored-liquors.js';
+import { ProblemError } from '../../server/http/problem.js';
+
+// Lines 3 and 5 are bad; counting lines from 1 with the header on line 1 (RFC 4180 §2: one record per line).
+const csv = [
+  'massFraction,waterBoilingPoint,solutionBoilingPoint',
+  '0.2,50,51.2',
+  '0.2,abc,101.5',
+  '0.45,50,54.1',
+  '1.3,100,105.0',
+].join('\n');
+
+function serverProblem(): ApiProblem {
+  try {
+    duhringFromCsv(csv);
+  } catch (err) {
+    const p = err as ProblemError;
+    return new ApiProblem({
+      status: p.status,
+      type: `/problems/${p.type}`,
+      title: p.title,
+      detail: p.detail,
+      errors: p.errors,
+    });
+  }
+  throw new Error('the parser accepted a bad table');
+}
+
+describe('Dühring upload errors', () => {
+  it('lists each refused CSV line by its number, in order', () => {
+    const lines = uploadLineErrors(serverProblem().errors);
+    // Source: RFC 4180 §2 (header record on line 1, then one record per line) applied to the table above
+    expect(lines.map((l) => l.line)).toEqual([3, 5]);
+  });
+
+  it('shows the line numbers and messages in the upload card', () => {
+    const problem = serverProblem();
+    const wrapper = mount(LiquorUploadCard, {
+      props: {
+        accounts: [{ title: 'Brine Works', value: 2 }],
+        uploading: false,
+        problem,
+        lineErrors: uploadLineErrors(problem.errors),
+      },
+      global: { plugins: [createVuetify({ components })] },
+    });
+    const text = wrapper.get('[data-test="upload-errors"]').text();
+    expect(text).toContain('Line 3:');
+    expect(text).toContain('Line 5:');
+    expect(text.indexOf('Line 3:')).toBeLessThan(text.indexOf('Line 5:'));
+  });
+
+  it('sends name, heat capacity and the file under the field names of the contract', () => {
+    const form = uploadForm(
+      { name: 'Spent wash (invented)', heatCapacity: '4.18,-2.4' },
+      new Blob([csv]),
+      'wash.csv',
+    );
+    // Source: shared/console/liquors.ts LiquorUploadFieldsSchema and the v1 multipart field "file"
+    expect(form.get('name')).toBe('Spent wash (invented)');
+    expect(form.get('heatCapacity')).toBe('4.18,-2.4');
+    expect((form.get('file') as File).name).toBe('wash.csv');
+    expect(form.has('id')).toBe(false);
+  });
+});
