@@ -21,6 +21,12 @@ import { buildConsoleOpenApiDocument } from './openapi.js';
 import { outboxRouteModule } from './outbox.js';
 import { CONSOLE_BASE, consoleRouteTable, type ConsoleRouteModule } from './route.js';
 import { usersRouteModule } from './users.js';
+import { overviewRoutes } from './overview.js';
+import { accountRoutes } from './accounts.js';
+import { keyRoutes } from './keys.js';
+import { requestLogRoutes } from './request-log.js';
+import { usageRoutes } from './usage.js';
+import { liquorRoutes } from './liquors.js';
 
 /** Console route modules, registered in this order. Append yours, one line. */
 export const consoleRouteModules: ConsoleRouteModule[] = [
@@ -29,6 +35,12 @@ export const consoleRouteModules: ConsoleRouteModule[] = [
   auditRouteModule,
   outboxRouteModule,
   billingRouteModule,
+  overviewRoutes,
+  accountRoutes,
+  keyRoutes,
+  requestLogRoutes,
+  usageRoutes,
+  liquorRoutes,
 ];
 
 /** Builds the console router (without mounting it). */
