@@ -21,6 +21,7 @@ import type { RequestHandler, Response } from 'express';
 import { recordRequest } from '../../accounts/metering.js';
 import { logBody } from '../../accounts/request-log.js';
 import { unitsUsedThisMonth } from '../../accounts/usage.js';
+import { scheduleQuotaCheck } from '../../billing/quota-notices.js';
 import type { AppDeps } from '../app.js';
 import { presentedToken } from './auth.js';
 import { elapsedMs } from './request-id.js';
@@ -86,6 +87,8 @@ export function metering(deps: AppDeps): RequestHandler {
           requestBody: retain ? logBody(req.body, limit, token) : null,
           responseBody: retain ? logBody(responseChunk, limit, token) : null,
         });
+        // Quota e-mails (80 % / 100 %, once a month) are checked after this turn, off the hot path.
+        if (status < 400 && meter.units > 0) scheduleQuotaCheck(deps, auth.accountId);
       } finally {
         leave();
       }
