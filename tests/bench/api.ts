@@ -69,6 +69,8 @@ export interface RunFigures {
   errors: number;
   /** Requests written but not answered when autocannon stopped. */
   abandoned: number;
+  /** CPU time the server process spent per answered request, µs (robust to a busy machine). */
+  serverCpuMicrosPerRequest: number;
 }
 
 export interface ApiBenchResult {
@@ -76,6 +78,8 @@ export interface ApiBenchResult {
   metered: RunFigures;
   bare: RunFigures;
   ratio: number;
+  /** Bare CPU per request / metered CPU per request. */
+  cpuRatio: number;
   /** Usage rows with a 2xx status for the duration-run key, and all its rows. */
   durationRows: { ok2xx: number; all: number };
   exact: { ok2xx: number; non2xx: number; errors: number; rows2xx: number; rowsAll: number };
@@ -104,6 +108,10 @@ function serveApp(): void {
     }
     console.log(JSON.stringify({ port: (server.address() as AddressInfo).port }));
   });
+  process.stdin.setEncoding('utf8');
+  process.stdin.on('data', (text: string) => {
+    if (text.includes('cpu')) console.log(JSON.stringify({ cpu: process.cpuUsage() }));
+  });
   process.on('SIGTERM', () => {
     server.close(() => {
       sqlite.close();
@@ -121,6 +129,8 @@ interface Child {
   proc: ChildProcess;
   port: number;
   exited: Promise<number | null>;
+  /** CPU time (user + system, µs) the server process has used so far. */
+  cpuMicros: () => Promise<number>;
 }
 
 function killGroup(proc: ChildProcess): void {
@@ -135,12 +145,27 @@ function startChild(args: string[], env: Record<string, string>): Promise<Child>
   const proc = spawn(TSX, args, {
     cwd: ROOT,
     env: { ...process.env, ...env },
-    stdio: ['ignore', 'pipe', 'pipe'],
+    stdio: ['pipe', 'pipe', 'pipe'],
     // tsx runs the script in a child node process: give it its own process group so a forced
     // stop (SIGKILL, which tsx cannot relay) reaches that process too.
     detached: true,
   });
   const exited = new Promise<number | null>((resolve) => proc.on('exit', (code) => resolve(code)));
+  const cpuWaiters: ((micros: number) => void)[] = [];
+  let cpuBuffer = '';
+  const cpuMicros = () =>
+    new Promise<number>((resolve) => {
+      cpuWaiters.push(resolve);
+      proc.stdin?.write('cpu\n');
+    });
+  proc.stdout?.on('data', (chunk: Buffer) => {
+    cpuBuffer += chunk.toString();
+    let m: RegExpExecArray | null;
+    while ((m = /\{"cpu":\{"user":(\d+),"system":(\d+)\}\}\n/.exec(cpuBuffer))) {
+      cpuBuffer = cpuBuffer.slice(m.index + m[0].length);
+      cpuWaiters.shift()?.(Number(m[1]) + Number(m[2]));
+    }
+  });
   return new Promise((resolve, reject) => {
     let out = '';
     const timer = setTimeout(() => {
@@ -152,7 +177,7 @@ function startChild(args: string[], env: Record<string, string>): Promise<Child>
       const m = /\{"port":(\d+)\}/.exec(out);
       if (m?.[1]) {
         clearTimeout(timer);
-        resolve({ proc, port: Number(m[1]), exited });
+        resolve({ proc, port: Number(m[1]), exited, cpuMicros });
       }
     };
     proc.stdout?.on('data', onData);
@@ -190,8 +215,9 @@ function cannon(
   });
 }
 
-function figures(r: autocannon.Result): RunFigures {
+function figures(r: autocannon.Result, cpuMicros: number): RunFigures {
   return {
+    serverCpuMicrosPerRequest: cpuMicros / Math.max(1, r['2xx'] + r.non2xx),
     requestsPerSecond: r.requests.average,
     p50Ms: r.latency.p50,
     p99Ms: r.latency.p99,
@@ -295,8 +321,15 @@ export async function runApiBench(): Promise<ApiBenchResult> {
     await cannon(appUrl, { authorization: `Bearer ${warmKey.token}` }, body, { duration: WARMUP_S });
     await cannon(bareUrl, {}, body, { duration: WARMUP_S });
 
-    const metered = figures(await cannon(appUrl, { authorization: `Bearer ${runKey.token}` }, body, {}));
-    const bareFig = figures(await cannon(bareUrl, {}, body, {}));
+    const measure = async (child: Child, run: () => Promise<autocannon.Result>) => {
+      const cpu0 = await child.cpuMicros();
+      const result = await run();
+      return figures(result, (await child.cpuMicros()) - cpu0);
+    };
+    const metered = await measure(app, () =>
+      cannon(appUrl, { authorization: `Bearer ${runKey.token}` }, body, {}),
+    );
+    const bareFig = await measure(bare, () => cannon(bareUrl, {}, body, {}));
     const exactRun = await cannon(appUrl, { authorization: `Bearer ${exactKey.token}` }, body, {
       amount: EXACT_AMOUNT,
     });
@@ -314,6 +347,12 @@ export async function runApiBench(): Promise<ApiBenchResult> {
     console.log(line('metered POST ' + PATH, metered));
     console.log(line('bare Express 5 POST /bare', bareFig));
     console.log(`throughput ratio metered / bare: ${ratio.toFixed(2)} (target ≥ 0.6)`);
+    const cpuRatio = bareFig.serverCpuMicrosPerRequest / metered.serverCpuMicrosPerRequest;
+    console.log(
+      `server CPU per request: metered ${fmt(metered.serverCpuMicrosPerRequest)} µs, bare ${fmt(bareFig.serverCpuMicrosPerRequest)} µs; ` +
+        `CPU-bound throughput ratio bare/metered cost ${cpuRatio.toFixed(2)} (what the ratio would be with a core to spare; ` +
+        `load average ${os.loadavg()[0]!.toFixed(2)} on ${os.cpus().length} cores)`,
+    );
     console.log(
       `duration run: usage rows 2xx ${durationRows.ok2xx} (all rows ${durationRows.all}) vs 2xx received ${metered.ok2xx}; ` +
         `requests abandoned in flight when autocannon stopped: ${metered.abandoned} ` +
@@ -333,7 +372,7 @@ export async function runApiBench(): Promise<ApiBenchResult> {
     );
     if (metered.non2xx > 0 || exact.non2xx > 0)
       console.log('note: non-2xx responses seen (rate limit or quota?); the figures above include them');
-    return { responseBytes, metered, bare: bareFig, ratio, durationRows, exact };
+    return { responseBytes, metered, bare: bareFig, ratio, cpuRatio, durationRows, exact };
   } finally {
     for (const c of children) await stopChild(c);
     fs.rmSync(dir, { recursive: true, force: true });

@@ -7,7 +7,8 @@
  *
  *   BARE_BODY_FILE=/tmp/body.json npx tsx tests/bench/bare-server.ts
  *
- * Listens on 127.0.0.1 (an ephemeral port) and prints one line `{"port": N}` on stdout.
+ * Listens on 127.0.0.1 (an ephemeral port) and prints one line `{"port": N}` on stdout; a line
+ * `cpu` on stdin is answered with `{"cpu": {"user": µs, "system": µs}}` (process.cpuUsage()).
  */
 import fs from 'node:fs';
 import type { AddressInfo } from 'node:net';
@@ -35,3 +36,8 @@ const server = app.listen(0, '127.0.0.1', (err?: Error) => {
   console.log(JSON.stringify({ port: (server.address() as AddressInfo).port }));
 });
 process.on('SIGTERM', () => server.close(() => process.exit(0)));
+// `cpu` on stdin → this process's CPU time so far, one JSON line (the benchmark's per-request cost).
+process.stdin.setEncoding('utf8');
+process.stdin.on('data', (text: string) => {
+  if (text.includes('cpu')) console.log(JSON.stringify({ cpu: process.cpuUsage() }));
+});
