@@ -16,7 +16,7 @@
  * old key's expiry to the end of an overlap window; after it the old key gets 401 'expired'.
  */
 import crypto from 'node:crypto';
-import { desc, eq } from 'drizzle-orm';
+import { desc, eq, sql } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
 import { apiKeys } from '../db/schema.js';
 import { isScope, type Scope } from './operations.js';
@@ -178,11 +178,26 @@ export type AuthResult =
   | { ok: true; key: ApiKeyView }
   | { ok: false; reason: 'malformed' | 'unknown' | 'revoked' | 'expired' | 'rotated' };
 
+function prepareLookup(db: Db) {
+  return db
+    .select()
+    .from(apiKeys)
+    .where(eq(apiKeys.keyHash, sql.placeholder('hash')))
+    .prepare();
+}
+/** The by-hash lookup, built and prepared once per database (it runs on every request). */
+const lookups = new WeakMap<Db, ReturnType<typeof prepareLookup>>();
+
 /** Checks a presented token at time `now`. */
 export function authenticateToken(db: Db, serverSecret: Buffer, token: string, now: Date): AuthResult {
   if (!TOKEN_PATTERN.test(token)) return { ok: false, reason: 'malformed' };
   const computed = hashKey(serverSecret, token);
-  const row = db.select().from(apiKeys).where(eq(apiKeys.keyHash, computed)).get();
+  let lookup = lookups.get(db);
+  if (!lookup) {
+    lookup = prepareLookup(db);
+    lookups.set(db, lookup);
+  }
+  const row = lookup.get({ hash: computed });
   if (!row || !crypto.timingSafeEqual(Buffer.from(row.keyHash, 'hex'), Buffer.from(computed, 'hex'))) {
     return { ok: false, reason: 'unknown' };
   }

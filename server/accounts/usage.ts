@@ -2,6 +2,7 @@
  * Monthly usage and quota, read from the usage_daily roll-up (one row per account, UTC day and
  * operation). Calendar months are UTC.
  */
+import type { Statement } from 'better-sqlite3';
 import type { Sqlite } from '../db/client.js';
 
 /** 'YYYY-MM-DD' of a time, UTC. */
@@ -17,14 +18,20 @@ export function nextMonthStartUtc(at: Date): Date {
   return new Date(Date.UTC(at.getUTCFullYear(), at.getUTCMonth() + 1, 1));
 }
 
+/** The month-sum statement, prepared once per connection (it runs on every charged request). */
+const monthSums = new WeakMap<Sqlite, Statement<[number, string, string], { units: number }>>();
+
 /** Units used by an account in the calendar month (UTC) containing `now`. */
 export function unitsUsedThisMonth(sqlite: Sqlite, accountId: number, now: Date): number {
-  const row = sqlite
-    .prepare(
+  let stmt = monthSums.get(sqlite);
+  if (!stmt) {
+    stmt = sqlite.prepare<[number, string, string], { units: number }>(
       'SELECT COALESCE(SUM(units), 0) AS units FROM usage_daily WHERE account_id = ? AND day >= ? AND day < ?',
-    )
-    .get(accountId, utcDay(monthStartUtc(now)), utcDay(nextMonthStartUtc(now))) as { units: number };
-  return row.units;
+    );
+    monthSums.set(sqlite, stmt);
+  }
+  const row = stmt.get(accountId, utcDay(monthStartUtc(now)), utcDay(nextMonthStartUtc(now)));
+  return row?.units ?? 0;
 }
 
 export interface MonthUsage {
