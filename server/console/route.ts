@@ -199,8 +199,8 @@ export function consoleRoute<
   else consoleRouteTable.push(entry);
 
   const run: RequestHandler = async (req, res) => {
-    const params = parsePart(def.request?.params, req.params, 'params.');
-    const query = parsePart(def.request?.query, req.query, 'query.');
+    const params = parsePart(def.request?.params, req.params, 'params');
+    const query = parsePart(def.request?.query, req.query, 'query');
     const body =
       entry.bodyContentType === 'application/json'
         ? parsePart(def.request?.body, req.body ?? {}, '')
