@@ -41,10 +41,27 @@ export function bodyParsers(limitBytes: number): RequestHandler[] {
 interface BodyParserError extends Error {
   type?: string;
   status?: number;
+  statusCode?: number;
+  /** http-errors sets this for client errors whose message is safe to show. */
+  expose?: boolean;
   limit?: number;
 }
 
-/** Turns body-parser errors into ProblemErrors; passes everything else on. */
+/**
+ * Any other client error that Express or a parser raises as an http-errors error (a 4xx `status`
+ * and `expose`), e.g. the router's "Failed to decode param" for a malformed percent-encoding in
+ * the path, or a request body that does not decompress: a problem of the nearest catalogued type,
+ * so it does not fall through to a 500.
+ */
+function clientErrorProblem(e: BodyParserError): ProblemError | undefined {
+  const status = e.status ?? e.statusCode;
+  if (typeof status !== 'number' || status < 400 || status > 499 || e.expose === false) return undefined;
+  if (status === 413) return problem('payload-too-large', e.message);
+  if (status === 415) return problem('unsupported-media-type', e.message);
+  return problem('bad-request', e.message);
+}
+
+/** Turns body-parser (and other http-errors client) errors into ProblemErrors; passes the rest on. */
 export function bodyErrorTranslator(): ErrorRequestHandler {
   return (err: unknown, _req, _res, next) => {
     if (err instanceof ProblemError || !(err instanceof Error)) return next(err);
@@ -62,7 +79,7 @@ export function bodyErrorTranslator(): ErrorRequestHandler {
       case 'stream.encoding.set':
         return next(problem('bad-request', e.message));
       default:
-        return next(err);
+        return next(clientErrorProblem(e) ?? err);
     }
   };
 }
