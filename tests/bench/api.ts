@@ -18,6 +18,10 @@
  * so requests still in flight at that moment reach the server (and are metered) without
  * autocannon counting their responses; for that run the report gives rows = 2xx + abandoned. The
  * count-bounded run waits for every response, so there rows must equal 2xx exactly.
+ *
+ * Besides wall-clock throughput, each server reports its own CPU time (process.cpuUsage) around
+ * the measured run; CPU µs per request is the steadier comparison when other work shares the
+ * machine, and bare/metered CPU per request is the ratio the two would reach with a core to spare.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import crypto from 'node:crypto';
