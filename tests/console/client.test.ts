@@ -2,7 +2,8 @@
 // Sources: OWASP Cross-Site Request Forgery Prevention Cheat Sheet ("Double Submit Cookie";
 // safe methods carry no token), RFC 9457 (problem details members), RFC 9110 §9.2.1 (safe methods),
 // the console API contract in /tmp/prompts/console-common.md (cookie ebullio_csrf, header
-// X-CSRF-Token, GET /auth/csrf, POST /auth/refresh).
+// X-CSRF-Token, GET /auth/csrf, POST /auth/refresh). RFC and OWASP section references are from
+// memory, not re-read; the contract was read.
 import { describe, expect, it, vi } from 'vitest';
 import { ApiProblem, createApiClient } from '../../console/src/api/client.js';
 import { fakeFetch, json } from './fake-fetch.js';

@@ -1,7 +1,8 @@
 // The keys view shows a new key's secret once: in the create answer's dialog, with a copy button
 // and a "store it now" note, and nowhere after the dialog is closed.
 // Sources: the console API contract (POST /console-api/keys → {key, secret}, "secret once"),
-// OWASP Secrets Management Cheat Sheet (show a generated secret once; do not keep it around).
+// OWASP Secrets Management Cheat Sheet (show a generated secret once; do not keep it around;
+// from memory).
 import { flushPromises, mount } from '@vue/test-utils';
 import { createPinia, setActivePinia } from 'pinia';
 import { afterEach, beforeEach, describe, expect, it, vi } from 'vitest';

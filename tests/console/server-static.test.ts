@@ -1,7 +1,7 @@
 // @vitest-environment node
 // Serving the built console: SPA fallback, cache headers for hashed assets, 404 for missing files,
 // 503 before a build. Checked against HTTP semantics (RFC 9110), caching (RFC 9111) and the
-// `immutable` directive (RFC 8246).
+// `immutable` directive (RFC 8246). Section numbers below are from memory, not re-read.
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
