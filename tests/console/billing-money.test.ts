@@ -11,7 +11,12 @@ import type { StatementDetail } from '../../shared/console/billing.js';
 import { createApiClient } from '../../console/src/api/client.js';
 import { formatMinor, formatMonth, minorDigits } from '../../console/src/components/billing/money.js';
 import StatementDetailCard from '../../console/src/components/billing/StatementDetailCard.vue';
-import { previousUtcMonth, useBillingClient, useBillingStore } from '../../console/src/stores/billing.js';
+import {
+  monthIsOver,
+  previousUtcMonth,
+  useBillingClient,
+  useBillingStore,
+} from '../../console/src/stores/billing.js';
 
 /** Intl puts a no-break space (U+00A0) or narrow no-break space between number and symbol. */
 const spaces = (s: string) => s.replace(/[\u00a0\u202f]/g, ' ');
@@ -43,6 +48,16 @@ describe('minor-unit amounts', () => {
     expect(formatMonth('2031-03', 'en-US')).toBe('March 2031');
     // Source: calendar arithmetic — the month before January 2032 is December 2031
     expect(previousUtcMonth(new Date('2032-01-15T00:00:00Z'))).toBe('2031-12');
+  });
+});
+
+describe('finalizing only a month that is over', () => {
+  it('treats December as running until midnight UTC on 1 January, and over from then', () => {
+    // Source: UTC calendar — a month ends at 00:00:00Z on the first of the next; the year rolls over after December
+    expect(monthIsOver('2026-12', new Date('2026-12-31T23:59:59.999Z'))).toBe(false);
+    expect(monthIsOver('2026-12', new Date('2027-01-01T00:00:00.000Z'))).toBe(true);
+    // 1 January 00:30 in Berlin (UTC+1) is still 31 December in UTC
+    expect(monthIsOver('2026-12', new Date('2027-01-01T00:30:00+01:00'))).toBe(false);
   });
 });
 
@@ -91,7 +106,12 @@ describe('statement detail', () => {
 
   it('shows the total in euros with two decimals and the provider invoice id', () => {
     const wrapper = mount(StatementDetailCard, {
-      props: { statement, csvUrl: '/console-api/statements/7/export.csv', canFinalize: true },
+      props: {
+        statement,
+        csvUrl: '/console-api/statements/7/export.csv',
+        canFinalize: true,
+        monthOver: true,
+      },
       global: { plugins: [vuetify] },
     });
     // Source: ceil(13456/1000) = 14 (arithmetic); 4900 + 14 × 250 = 8400 cents = €84.00 (ISO 4217: EUR has 2 decimals)

@@ -30,6 +30,16 @@ export function previousUtcMonth(now: Date): string {
   return d.toISOString().slice(0, 7);
 }
 
+/**
+ * True once a UTC calendar month is over (from 00:00 UTC on the first of the next month): only
+ * then is its usage final and may its statement be finalized (the server enforces the same).
+ */
+export function monthIsOver(month: string, now: Date): boolean {
+  const m = /^(\d{4})-(\d{2})$/.exec(month);
+  if (!m) return false;
+  return now.getTime() >= Date.UTC(Number(m[1]), Number(m[2]), 1);
+}
+
 export interface StatementFilters {
   month: string | null;
   accountId: number | null;
@@ -97,6 +107,7 @@ export const useBillingStore = defineStore('billing', () => {
   }
 
   async function openDetail(id: number): Promise<void> {
+    actionError.value = null;
     detailLoading.value = true;
     detailError.value = null;
     try {
