@@ -44,16 +44,16 @@ describe('minor-unit amounts', () => {
   });
 
   it('names months in UTC, so the first of a month never slips into the one before', () => {
-    // Source: Gregorian calendar month names (common practice)
+    // Source: Gregorian calendar month names (common practice) (from memory)
     expect(formatMonth('2031-03', 'en-US')).toBe('March 2031');
-    // Source: calendar arithmetic — the month before January 2032 is December 2031
+    // Source: calendar arithmetic — the month before January 2032 is December 2031 (from memory)
     expect(previousUtcMonth(new Date('2032-01-15T00:00:00Z'))).toBe('2031-12');
   });
 });
 
 describe('finalizing only a month that is over', () => {
   it('treats December as running until midnight UTC on 1 January, and over from then', () => {
-    // Source: UTC calendar — a month ends at 00:00:00Z on the first of the next; the year rolls over after December
+    // Source: UTC calendar — a month ends at 00:00:00Z on the first of the next; the year rolls over after December (from memory)
     expect(monthIsOver('2026-12', new Date('2026-12-31T23:59:59.999Z'))).toBe(false);
     expect(monthIsOver('2026-12', new Date('2027-01-01T00:00:00.000Z'))).toBe(true);
     // 1 January 00:30 in Berlin (UTC+1) is still 31 December in UTC
@@ -114,7 +114,7 @@ describe('statement detail', () => {
       },
       global: { plugins: [vuetify] },
     });
-    // Source: ceil(13456/1000) = 14 (arithmetic); 4900 + 14 × 250 = 8400 cents = €84.00 (ISO 4217: EUR has 2 decimals)
+    // Source: ceil(13456/1000) = 14 (arithmetic); 4900 + 14 × 250 = 8400 cents = €84.00 (ISO 4217: EUR has 2 decimals) (from memory)
     expect(wrapper.get('[data-test="statement-total"]').text()).toBe(formatMinor(8400, 'eur'));
     expect(spaces(formatMinor(8400, 'eur', 'en-US'))).toBe('€84.00');
     expect(wrapper.get('[data-test="invoice-id"]').text()).toBe('in_fake_123');
@@ -143,13 +143,13 @@ describe('billing store', () => {
     );
     const store = useBillingStore();
     await store.applyFilters({ month: '2031-03', accountId: 3 });
-    // Source: WHATWG URL Standard, application/x-www-form-urlencoded serializer (URLSearchParams)
+    // Source: WHATWG URL Standard, application/x-www-form-urlencoded serializer (URLSearchParams) (from memory)
     expect(calls[0]!.url).toBe('/console-api/statements?month=2031-03&accountId=3');
     await store.finalize(7);
     const post = calls[1]!;
     expect(post.url).toBe('/console-api/statements/7/finalize');
     expect(post.init.method).toBe('POST');
-    // Source: OWASP CSRF Prevention Cheat Sheet, double-submit cookie (header equals cookie)
+    // Source: OWASP CSRF Prevention Cheat Sheet, double-submit cookie (header equals cookie) (from memory)
     expect((post.init.headers as Record<string, string>)['X-CSRF-Token']).toBe('tok');
   });
 });

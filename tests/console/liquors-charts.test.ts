@@ -30,7 +30,7 @@ vi.mock('vue-chartjs', async () => {
   return { Line, Bar: Line };
 });
 
-/** K → °C: the Celsius scale is defined as T − 273.15 K (SI Brochure, 9th ed., §2.3.1). */
+/** K → °C: the Celsius scale is defined as T − 273.15 K (SI Brochure, 9th ed., §2.3.1; from memory). */
 const degC = (k: number) => k - 273.15;
 
 /** The fixture as the charts endpoint shapes it: lines per mass fraction, °C. */
@@ -83,7 +83,7 @@ describe('Dühring chart data', () => {
     for (const p of boiling.points) {
       const line = sets.find((s) => s.value === p.massFraction)!;
       const point = line.data.find((d) => Math.abs(d.x - degC(p.waterBoilingPoint)) < 1e-9);
-      // Source: the same fixture; °C = K − 273.15 by definition (SI Brochure §2.3.1)
+      // Source: the same fixture; °C = K − 273.15 by definition (SI Brochure §2.3.1, from memory)
       expect(point).toBeDefined();
       expect(point!.y).toBeCloseTo(degC(p.solutionBoilingPoint), 9);
     }

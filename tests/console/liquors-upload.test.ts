@@ -41,7 +41,7 @@ function serverProblem(): ApiProblem {
 describe('Dühring upload errors', () => {
   it('lists each refused CSV line by its number, in order', () => {
     const lines = uploadLineErrors(serverProblem().errors);
-    // Source: RFC 4180 §2 (header record on line 1, then one record per line) applied to the table above
+    // Source: RFC 4180 §2 (header record on line 1, then one record per line) applied to the table above (from memory)
     expect(lines.map((l) => l.line)).toEqual([3, 5]);
   });
 

@@ -54,7 +54,7 @@ describe('request log query', () => {
     await store.setOptions({ page: 4, itemsPerPage: 25, sortBy: [] });
     await store.applyFilters({ accountId: 2, status: '4XX', operation: '  ', requestId: 'req 7/8' });
     const last = urls.at(-1)!;
-    // Source: WHATWG URL Standard, application/x-www-form-urlencoded serializer: space → "+", "/" → %2F
+    // Source: WHATWG URL Standard, application/x-www-form-urlencoded serializer: space → "+", "/" → %2F (from memory)
     expect(last).toBe(
       '/console-api/request-log?accountId=2&status=4xx&requestId=req+7%2F8&page=1&pageSize=25&sort=at&order=desc',
     );
@@ -68,7 +68,7 @@ describe('request log query', () => {
   });
 
   it('sends a time typed in New York in March as the UTC instant four hours later (daylight time)', () => {
-    // Source: US daylight saving time starts the second Sunday of March (Energy Policy Act of 2005,
+    // Source: US daylight saving time starts the second Sunday of March (Energy Policy Act of 2005, (from memory)
     // tz database America/New_York): on 14 March 2031 New York is at UTC−4.
     process.env.TZ = 'America/New_York';
     expect(localToInstant('2031-03-14T10:00')).toBe('2031-03-14T14:00:00.000Z');
@@ -78,7 +78,7 @@ describe('request log query', () => {
   });
 
   it('classes statuses by their first digit', () => {
-    // Source: RFC 9110 §15 — the first digit of the status code defines its class
+    // Source: RFC 9110 §15 — the first digit of the status code defines its class (from memory)
     expect(statusClass(204)).toBe('2xx');
     expect(statusClass(429)).toBe('4xx');
     expect(statusClass(503)).toBe('5xx');
@@ -118,9 +118,9 @@ describe('request detail', () => {
       global: { plugins: [vuetify] },
     });
     const req = wrapper.get('[data-test="request-body"]');
-    // Source: ECMA-262 JSON.stringify with an indent of 2 (one member per line)
+    // Source: ECMA-262 JSON.stringify with an indent of 2 (one member per line) (from memory)
     expect(req.text()).toContain('"massFraction": 0.3,\n  "note"');
-    // Source: OWASP XSS Prevention Cheat Sheet — untrusted data goes into text, never into HTML
+    // Source: OWASP XSS Prevention Cheat Sheet — untrusted data goes into text, never into HTML (from memory)
     expect(req.find('img').exists()).toBe(false);
     expect(req.element.innerHTML).toContain('&lt;img');
     const res = wrapper.get('[data-test="response-body"]');

@@ -12,13 +12,13 @@ beforeEach(() => setActivePinia(createPinia()));
 
 describe('usage day series', () => {
   it('has 29 days for February of a leap year and 28 for a common year', () => {
-    // Source: Gregorian calendar rule — divisible by 4, except centuries not divisible by 400 (2032 leap, 2100 not)
+    // Source: Gregorian calendar rule — divisible by 4, except centuries not divisible by 400 (2032 leap, 2100 not) (from memory)
     expect(daysBetween('2032-02-01', '2032-02-29')).toHaveLength(29);
     expect(daysBetween('2100-02-01', '2100-03-01').at(-2)).toBe('2100-02-28');
   });
 
   it('counts `to` in and crosses a month end without skipping a day', () => {
-    // Source: calendar — 30 April is followed by 1 May; an inclusive range 28 Apr–2 May has 5 days
+    // Source: calendar — 30 April is followed by 1 May; an inclusive range 28 Apr–2 May has 5 days (from memory)
     expect(daysBetween('2031-04-28', '2031-05-02')).toEqual([
       '2031-04-28',
       '2031-04-29',
@@ -40,7 +40,7 @@ describe('usage day series', () => {
   });
 
   it('takes the default range in UTC: the month of a late-evening time west of Greenwich is the UTC one', () => {
-    // Source: ISO 8601 / UTC — 2031-04-30T23:30−05:00 is 2031-05-01T04:30Z
+    // Source: ISO 8601 / UTC — 2031-04-30T23:30−05:00 is 2031-05-01T04:30Z (from memory)
     const t = new Date('2031-04-30T23:30:00-05:00');
     expect(utcDay(t)).toBe('2031-05-01');
     expect(firstOfUtcMonth(t)).toBe('2031-05-01');
