@@ -1,6 +1,7 @@
 /**
  * Opens the SQLite database (better-sqlite3, synchronous) and wraps it in Drizzle.
- * Pragmas: WAL journal (readers never block the writer), foreign keys on, 5 s busy timeout.
+ * Pragmas: WAL journal (readers never block the writer) with synchronous=NORMAL, foreign keys on,
+ * 5 s busy timeout.
  */
 import fs from 'node:fs';
 import path from 'node:path';
@@ -19,7 +20,15 @@ export const migrationsFolder = path.resolve(import.meta.dirname, '../../drizzle
 export function openDatabase(file: string): { sqlite: Sqlite; db: Db } {
   if (file !== ':memory:') fs.mkdirSync(path.dirname(path.resolve(file)), { recursive: true });
   const sqlite = new Database(file);
-  if (file !== ':memory:') sqlite.pragma('journal_mode = WAL');
+  if (file !== ':memory:') {
+    sqlite.pragma('journal_mode = WAL');
+    // WAL + synchronous=NORMAL: a committed transaction survives a crash or SIGKILL of this
+    // process (the WAL is written before COMMIT returns); only an OS crash or power loss can lose
+    // the last commits (SQLite documentation, "PRAGMA synchronous"). That is the guarantee
+    // metering needs — a response is sent only after its usage row is committed — without an
+    // fsync on every request.
+    sqlite.pragma('synchronous = NORMAL');
+  }
   sqlite.pragma('foreign_keys = ON');
   sqlite.pragma('busy_timeout = 5000');
   const db = drizzle({ client: sqlite, schema });

@@ -27,6 +27,8 @@ export interface MeterState {
    * cannot both spend the same remaining units.
    */
   usedByOthers: () => number;
+  /** What `usedByOthers()` returned at the last charge (to see whether this request crossed a quota-notice threshold). */
+  usedByOthersAtCharge?: number;
 }
 
 declare global {

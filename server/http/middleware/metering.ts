@@ -21,7 +21,7 @@ import type { RequestHandler, Response } from 'express';
 import { recordRequest } from '../../accounts/metering.js';
 import { logBody } from '../../accounts/request-log.js';
 import { unitsUsedThisMonth } from '../../accounts/usage.js';
-import { scheduleQuotaCheck } from '../../billing/quota-notices.js';
+import { scheduleQuotaCheck, thresholdsReached } from '../../billing/quota-notices.js';
 import type { AppDeps } from '../app.js';
 import { presentedToken } from './auth.js';
 import { elapsedMs } from './request-id.js';
@@ -87,8 +87,15 @@ export function metering(deps: AppDeps): RequestHandler {
           requestBody: retain ? logBody(req.body, limit, token) : null,
           responseBody: retain ? logBody(responseChunk, limit, token) : null,
         });
-        // Quota e-mails (80 % / 100 %, once a month) are checked after this turn, off the hot path.
-        if (status < 400 && meter.units > 0) scheduleQuotaCheck(deps, auth.accountId);
+        // Quota e-mails (80 % / 100 %, once a month): only a request that crossed a threshold
+        // schedules the check, which then runs after this turn, off the hot path.
+        if (status < 400 && meter.units > 0) {
+          const before = meter.usedByOthersAtCharge ?? 0;
+          const after = before + meter.units;
+          if (thresholdsReached(after, meter.quota).length > thresholdsReached(before, meter.quota).length) {
+            scheduleQuotaCheck(deps, auth.accountId);
+          }
+        }
       } finally {
         leave();
       }

@@ -36,6 +36,7 @@ export function chargeUnits(res: Response, units: number): void {
     );
   }
   meter.units = wanted;
+  meter.usedByOthersAtCharge = used;
 }
 
 function secondsUntilReset(res: Response): number {
