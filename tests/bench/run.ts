@@ -7,11 +7,20 @@ import os from 'node:os';
 import { runSteamBench } from './steam.js';
 import { runSingleEffectBench } from './single-effect.js';
 import { runMultipleEffectBench } from './multiple-effect.js';
+import { runApiBench } from './api.js';
+import { runBundleBench } from './bundle.js';
 
 const sections: { title: string; run: () => Promise<void> }[] = [
   { title: 'IAPWS-IF97 steam properties', run: runSteamBench },
   { title: 'Single-effect evaporator', run: runSingleEffectBench },
   { title: 'Multiple-effect evaporator', run: runMultipleEffectBench },
+  {
+    title: 'Metered API vs a bare Express route (autocannon, loopback)',
+    run: async () => {
+      await runApiBench();
+    },
+  },
+  { title: 'Console initial load (gzipped JS + CSS)', run: runBundleBench },
 ];
 
 console.log(
