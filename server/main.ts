@@ -24,6 +24,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import type { AddressInfo } from 'node:net';
 import { pruneRequestLog } from './accounts/request-log.js';
+import { ensureDefaultPlans } from './billing/plans.js';
 import { checkQuotaNotices } from './billing/quota-notices.js';
 import { ConfigError, loadConfig, type Config } from './config.js';
 import { openDatabase, runMigrations } from './db/client.js';
@@ -118,6 +119,9 @@ async function main(): Promise<void> {
   const version = engineVersion();
   const { sqlite, db } = openDatabase(config.dbFile);
   runMigrations(db);
+  // Price plans (server/billing/plans.ts): inserts the missing default tiers, never overwrites one.
+  const plansAdded = ensureDefaultPlans(db);
+  if (plansAdded > 0) console.log(`[start-up] ${plansAdded} default price plan(s) added`);
   const report = bootstrap(db, sqlite, config, clock(), version);
   if (report.seeded)
     console.log('[start-up] empty database: demo accounts and usage seeded (demo key secrets are not shown)');

@@ -170,8 +170,12 @@ export interface BrowserSession {
   requests: string[];
   /** Requests whose origin differs from the server's (should stay empty). */
   foreignRequests(): string[];
-  /** Console errors and uncaught page errors. */
+  /** Console errors and uncaught page errors (failed loads are in `failedResponses`). */
   pageErrors: string[];
+  /** "<status> <method> <url>" of every response ≥ 400 the page received. */
+  failedResponses: string[];
+  /** Waits until no request of the page has been in flight for `quietMs` (at most `timeoutMs`). */
+  settle(quietMs?: number, timeoutMs?: number): Promise<void>;
   close(): Promise<void>;
 }
 
@@ -196,11 +200,30 @@ export async function openBrowser(origin: string): Promise<BrowserSession> {
   });
   const requests: string[] = [];
   const pageErrors: string[] = [];
-  context.on('request', (req) => requests.push(req.url()));
+  const failedResponses: string[] = [];
+  let inFlight = 0;
+  let lastChange = Date.now();
+  const done = () => {
+    inFlight = Math.max(0, inFlight - 1);
+    lastChange = Date.now();
+  };
+  context.on('request', (req) => {
+    requests.push(req.url());
+    inFlight++;
+    lastChange = Date.now();
+  });
+  context.on('requestfinished', done);
+  context.on('requestfailed', done);
+  context.on('response', (res) => {
+    if (res.status() >= 400) failedResponses.push(`${res.status()} ${res.request().method()} ${res.url()}`);
+  });
   const page = context.pages()[0] ?? (await context.newPage());
+  // Fail a missing element in 10 s rather than Playwright's 30 s, so one broken step reports quickly.
+  page.setDefaultTimeout(10_000);
   page.on('pageerror', (err) => pageErrors.push(err.message));
   page.on('console', (msg) => {
-    if (msg.type() === 'error') pageErrors.push(msg.text());
+    if (msg.type() === 'error' && !msg.text().startsWith('Failed to load resource'))
+      pageErrors.push(msg.text());
   });
   const allowed = new URL(origin).origin;
   return {
@@ -208,6 +231,14 @@ export async function openBrowser(origin: string): Promise<BrowserSession> {
     page,
     requests,
     pageErrors,
+    failedResponses,
+    async settle(quietMs = 400, timeoutMs = 10_000) {
+      const deadline = Date.now() + timeoutMs;
+      while (Date.now() < deadline) {
+        if (inFlight === 0 && Date.now() - lastChange >= quietMs) return;
+        await new Promise((r) => setTimeout(r, 50));
+      }
+    },
     foreignRequests: () =>
       requests.filter((u) => {
         // data: and blob: URLs are produced inside the page (inline fonts, chart canvases).
@@ -231,4 +262,26 @@ export async function screenshot(page: Page, name: string): Promise<string> {
   const file = path.join(SCREENSHOT_DIR, `${name}.png`);
   await page.screenshot({ path: file, fullPage: true });
   return file;
+}
+
+/** Signs in through the console's sign-in page and waits for the signed-in layout. */
+export async function signIn(page: Page, origin: string, email: string, password: string): Promise<void> {
+  await page.goto(`${origin}/console/`);
+  await page.getByLabel('E-mail').fill(email);
+  await page.getByLabel('Password', { exact: true }).fill(password);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.locator('.v-navigation-drawer').first().waitFor({ state: 'visible' });
+}
+
+/** Opens a page through the navigation drawer and waits for its heading. */
+export async function openFromDrawer(page: Page, title: string, heading = title): Promise<void> {
+  await page.locator('.v-navigation-drawer .v-list-item', { hasText: title }).first().click();
+  await page.getByRole('heading', { level: 1, name: heading }).waitFor();
+}
+
+/** The titles in the navigation drawer, in order. */
+export async function drawerTitles(page: Page): Promise<string[]> {
+  return (await page.locator('.v-navigation-drawer .v-list-item-title').allTextContents()).map((t) =>
+    t.trim(),
+  );
 }
