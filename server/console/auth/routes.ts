@@ -20,7 +20,7 @@ import {
   SignInRequestSchema,
 } from '../../../shared/console/auth.js';
 import { CSRF_COOKIE, OkSchema } from '../../../shared/console/common.js';
-import { hashPassword, verifyPassword } from '../../accounts/passwords.js';
+import { hashPassword, needsRehash, verifyPassword } from '../../accounts/passwords.js';
 import { consoleSettings } from '../../config.js';
 import { accountMembers, accounts, consoleSessions, users, userTokens } from '../../db/schema.js';
 import type { AppDeps } from '../../http/app.js';
@@ -141,7 +141,12 @@ export const authRouteModule: ConsoleRouteModule = {
         if (row && row.active && !lockActive && passwordOk) {
           deps.db
             .update(users)
-            .set({ failedSignIns: 0, lockedUntil: null })
+            .set({
+              failedSignIns: 0,
+              lockedUntil: null,
+              // an older hash scheme is replaced by the current one now that the password is known
+              ...(needsRehash(row.passwordHash) ? { passwordHash: hashPassword(body.password) } : {}),
+            })
             .where(eq(users.id, row.id))
             .run();
           const session = await issueSession(deps, req, res, row);
