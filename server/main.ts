@@ -123,8 +123,15 @@ async function main(): Promise<void> {
   const plansAdded = ensureDefaultPlans(db);
   if (plansAdded > 0) console.log(`[start-up] ${plansAdded} default price plan(s) added`);
   const report = bootstrap(db, sqlite, config, clock(), version);
-  if (report.seeded)
-    console.log('[start-up] empty database: demo accounts and usage seeded (demo key secrets are not shown)');
+  if (report.seeded) console.log('[start-up] empty database: demo accounts and usage seeded');
+  if (report.demoCredentials && config.nodeEnv !== 'production') {
+    // Shown once, on the start that created them (they are stored only as hashes).
+    const c = report.demoCredentials;
+    console.log(
+      `[start-up] demo console sign-in (shown once): ${c.operatorEmail} / ${c.operatorPassword}\n` +
+        `[start-up] demo API key (shown once): ${c.apiKey}`,
+    );
+  }
   if (report.apiKeyRegistered)
     console.log('[start-up] BOOTSTRAP_API_KEY registered on the demo account with all scopes');
   if (report.adminCreated) console.log(`[start-up] admin user ${config.bootstrapAdminEmail} created`);

@@ -12,10 +12,12 @@ import { accounts } from '../db/schema.js';
 import { addMember, createAccount, createUser, findUserByEmail } from '../accounts/accounts.js';
 import { createKey, keyExists } from '../accounts/keys.js';
 import { scopes } from '../accounts/operations.js';
-import { DEMO_ACCOUNT_NAME, isDatabaseEmpty, seedDemo } from './demo.js';
+import { DEMO_ACCOUNT_NAME, isDatabaseEmpty, seedDemo, type DemoCredentials } from './demo.js';
 
 export interface BootstrapReport {
   seeded: boolean;
+  /** Set when this start seeded the demo scenario: shown once by start-up, outside production. */
+  demoCredentials?: DemoCredentials;
   apiKeyRegistered: boolean;
   adminCreated: boolean;
 }
@@ -29,7 +31,7 @@ export function bootstrap(
 ): BootstrapReport {
   const report: BootstrapReport = { seeded: false, apiKeyRegistered: false, adminCreated: false };
   if (isDatabaseEmpty(sqlite)) {
-    seedDemo(db, sqlite, config.secret, now, engineVersion);
+    report.demoCredentials = seedDemo(db, sqlite, config.secret, now, engineVersion);
     report.seeded = true;
   }
   const demoAccountId = () =>

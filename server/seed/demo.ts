@@ -80,19 +80,33 @@ function seedUsage(
   }
 }
 
-/** Fills an empty database with the demo scenario. Returns the demo account's id. */
+/** What a first start may show once: the demo operator's sign-in and the demo account's key. */
+export interface DemoCredentials {
+  accountId: number;
+  operatorEmail: string;
+  /** Random, generated at seeding; stored only as a hash. */
+  operatorPassword: string;
+  /** The secret of the caustic account's demo key; stored only as a keyed hash. */
+  apiKey: string;
+}
+
+/**
+ * Fills an empty database with the demo scenario. The operator's password and the demo key are
+ * random; they are returned (committed first, stored only as hashes) so start-up can show them
+ * once, and are never shown again.
+ */
 export function seedDemo(
   db: Db,
   sqlite: Sqlite,
   serverSecret: Buffer,
   now: Date,
   engineVersion: string,
-): number {
+): DemoCredentials {
   return sqlite.transaction(() => {
-    // The operator's password is random and unknown: sign in with BOOTSTRAP_ADMIN_* instead.
+    const operatorPassword = crypto.randomBytes(12).toString('base64url');
     const operator = createUser(db, {
       email: DEMO_OPERATOR_EMAIL,
-      password: crypto.randomBytes(24).toString('base64url'),
+      password: operatorPassword,
       role: 'admin',
       now,
     });
@@ -113,13 +127,14 @@ export function seedDemo(
     });
     addMember(db, operator.id, caustic.id);
     addMember(db, operator.id, dairy.id);
-    const causticKey = createKey(db, serverSecret, {
+    const causticCreated = createKey(db, serverSecret, {
       accountId: caustic.id,
       name: 'Caustic evaporator studies',
       scopes: ['steam', 'liquors', 'evaporators', 'batch', 'usage'],
       rateLimitPerMinute: 120,
       now,
-    }).key;
+    });
+    const causticKey = causticCreated.key;
     const dairyKey = createKey(db, serverSecret, {
       accountId: dairy.id,
       name: 'Falling-film line 2',
@@ -153,6 +168,11 @@ export function seedDemo(
       4,
       engineVersion,
     );
-    return caustic.id;
+    return {
+      accountId: caustic.id,
+      operatorEmail: DEMO_OPERATOR_EMAIL,
+      operatorPassword,
+      apiKey: causticCreated.token,
+    };
   })();
 }

@@ -60,10 +60,11 @@ describe('seed and bootstrap variables', () => {
       bootstrapAdminPassword: 'correct horse battery staple',
     });
     const now = new Date('2031-03-14T10:00:00Z');
-    expect(bootstrap(db, sqlite, config, now, 'test')).toEqual({
+    expect(bootstrap(db, sqlite, config, now, 'test')).toMatchObject({
       seeded: true,
       apiKeyRegistered: true,
       adminCreated: true,
+      demoCredentials: { operatorEmail: 'operator@ebullio.invalid' },
     });
     expect(bootstrap(db, sqlite, config, now, 'test')).toEqual({
       seeded: false,
@@ -155,4 +156,47 @@ describe('graceful shutdown', () => {
     check.close();
     expect(row).toEqual({ status: 200 });
   }, 30_000);
+});
+
+describe('first start with no bootstrap variables', () => {
+  it('shows the demo sign-in and demo key once, and both work; a second start shows nothing', async () => {
+    const dir = tempDir();
+    const dbFile = path.join(dir, 'first.db');
+    const env = {
+      PORT: '0',
+      DB_FILE: dbFile,
+      NODE_ENV: 'development',
+      BOOTSTRAP_API_KEY: '',
+      BOOTSTRAP_ADMIN_EMAIL: '',
+      BOOTSTRAP_ADMIN_PASSWORD: '',
+      MAIL_CAPTURE: '0',
+      FAKE_PAYMENTS: '0',
+    };
+    const first = startServer(env);
+    const port = await first.port;
+    const signIn = /demo console sign-in \(shown once\): (\S+) \/ (\S+)/.exec(first.output());
+    const key = /demo API key \(shown once\): (\S+)/.exec(first.output());
+    expect(signIn).not.toBeNull();
+    expect(key).not.toBeNull();
+
+    // The shown key was stored: the API accepts it (a usage read needs no calculation).
+    const usage = await fetch(`http://127.0.0.1:${port}/v1/usage`, {
+      headers: { authorization: `Bearer ${key![1]}` },
+    });
+    expect(usage.status).toBe(200);
+    first.child.kill('SIGTERM');
+    expect(await first.exited).toBe(0);
+
+    // The shown password was stored: it verifies against the operator's stored hash.
+    const { db, sqlite } = openDatabase(dbFile);
+    expect(verifyUserPassword(db, signIn![1]!, signIn![2]!)).toBeDefined();
+    sqlite.close();
+
+    // Nothing secret is shown again on the next start.
+    const second = startServer(env);
+    await second.port;
+    expect(second.output()).not.toMatch(/shown once/);
+    second.child.kill('SIGTERM');
+    expect(await second.exited).toBe(0);
+  }, 40_000);
 });
