@@ -21,12 +21,9 @@ export const OverviewSchema = z
       .number()
       .nullable()
       .meta({ description: 'Share of this month’s requests with status ≥ 400 (0–1); null without requests' }),
-    p95LatencyMs: z
-      .number()
-      .nullable()
-      .meta({
-        description: '95th percentile latency this month, nearest-rank method; null without requests',
-      }),
+    p95LatencyMs: z.number().nullable().meta({
+      description: '95th percentile latency this month, nearest-rank method; null without requests',
+    }),
     topOperations: z.array(UsageFiguresSchema.extend({ operation: z.string() })),
     nearQuota: z.array(
       z.object({
