@@ -284,7 +284,7 @@ const validity: ValidityBox = {
     'x is the mass fraction of NaOH; Olsson et al. write their equations in the water fraction ξ = 1 − x.',
     'Boiling point (vapour pressure) data, lowest water fraction by temperature: 0–20 °C ξ ≥ 0.582; 20–60 °C ξ ≥ 0.500; 60–70 °C ξ ≥ 0.353; 70–150 °C ξ ≥ 0.300; 150–200 °C ξ ≥ 0.200. Outside these steps a "model-extrapolated" warning is returned.',
     'Enthalpy data, lowest water fraction by temperature: 0–4 °C 0.78; 4–10 °C 0.68; 10–15 °C 0.58; 15–26 °C 0.54; 26–37 °C 0.44; 37–48 °C 0.40; 48–60 °C 0.34; 60–71 °C 0.30; 71–82 °C 0.28; 82–93 °C 0.24; 93–204 °C 0.22.',
-    'Boiling-point rise is reported against IF97 T_sat(p); the fit itself puts pure water 0.04 K below IF97 at 101.325 kPa (0.14 K below at 5 kPa), so very dilute solutions can show a slightly negative rise.',
+    'Boiling-point rise = the fit’s boiling point at the solution minus its own pure-water boiling point at the same pressure, added to IF97 T_sat(p); the fit’s pure-water error (0.04 K at 101.325 kPa, 0.14 K at 5 kPa) cancels, so the rise is 0 for pure water.',
     'Density and the crystallisation (hydrate solubility) limit are not provided by this model.',
   ],
 };
