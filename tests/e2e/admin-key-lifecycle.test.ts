@@ -2,33 +2,17 @@
 // calculation API with the key's one-time secret, find that call in the request log by its
 // request id, revoke the key in the console and see the API refuse it.
 import crypto from 'node:crypto';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import {
   ADMIN_EMAIL,
   ADMIN_PASSWORD,
-  ensureConsoleBuilt,
-  openBrowser,
   openFromDrawer,
   screenshot,
+  setUpConsoleFlow,
   signIn,
-  startServer,
-  type BrowserSession,
-  type RunningServer,
 } from './harness.js';
 
-let server: RunningServer;
-let browser: BrowserSession;
-
-beforeAll(async () => {
-  ensureConsoleBuilt();
-  server = await startServer();
-  browser = await openBrowser(server.origin);
-}, 240_000);
-
-afterAll(async () => {
-  await browser?.close();
-  await server?.stop();
-}, 30_000);
+const flow = setUpConsoleFlow();
 
 /** Invented case: a caustic concentrator taking 1.5 kg/s of 10 % liquor at 60 °C to 30 %, body
  * at 20 kPa, heated by steam at 3 barg, U = 1800 W/(m²·K). */
@@ -44,7 +28,7 @@ const ACCOUNT = 'Kestrel Valley Caustic Recovery';
 const KEY_NAME = 'e2e evaporator sizing script';
 
 async function callSingleEffect(secret: string, requestId: string) {
-  return fetch(`${server.origin}/v1/evaporators/single-effect`, {
+  return fetch(`${flow.server.origin}/v1/evaporators/single-effect`, {
     method: 'POST',
     headers: {
       // RFC 6750 §2.1: the bearer token in the Authorization header.
@@ -61,15 +45,15 @@ describe('admin: account, key, API call, request log, revocation', () => {
   const requestId = crypto.randomUUID();
 
   it('signs in as admin and shows the overview', async () => {
-    const { page } = browser;
-    await signIn(page, server.origin, ADMIN_EMAIL, ADMIN_PASSWORD);
+    const { page } = flow.browser;
+    await signIn(page, flow.server.origin, ADMIN_EMAIL, ADMIN_PASSWORD);
     await page.getByRole('heading', { level: 1, name: 'Overview' }).waitFor();
-    await browser.settle(300, 3000);
+    await flow.browser.settle(300, 3000);
     await screenshot(page, 'overview');
   }, 60_000);
 
   it('creates an account in the accounts view', async () => {
-    const { page } = browser;
+    const { page } = flow.browser;
     await openFromDrawer(page, 'Accounts');
     await page.getByRole('button', { name: 'New account' }).click();
     const dialog = page.locator('.v-dialog .v-card', { hasText: 'New account' });
@@ -81,7 +65,7 @@ describe('admin: account, key, API call, request log, revocation', () => {
   }, 60_000);
 
   it('creates a key for that account and shows its secret once', async () => {
-    const { page } = browser;
+    const { page } = flow.browser;
     await openFromDrawer(page, 'API keys');
     await page.getByRole('button', { name: 'New key' }).click();
     const dialog = page.locator('.v-dialog .v-card', { hasText: 'New API key' });
@@ -115,7 +99,7 @@ describe('admin: account, key, API call, request log, revocation', () => {
   });
 
   it('finds the call in the request log by its request id', async () => {
-    const { page } = browser;
+    const { page } = flow.browser;
     await openFromDrawer(page, 'Request log');
     await page.locator('.filter-bar').getByRole('textbox', { name: 'Request id' }).fill(requestId);
     await page.getByRole('button', { name: 'Apply' }).click();
@@ -131,7 +115,7 @@ describe('admin: account, key, API call, request log, revocation', () => {
   }, 60_000);
 
   it('revokes the key in the console, after which the API answers 401', async () => {
-    const { page } = browser;
+    const { page } = flow.browser;
     await page.keyboard.press('Escape');
     await openFromDrawer(page, 'API keys');
     await page.getByRole('button', { name: `Revoke ${KEY_NAME}` }).click();
@@ -147,7 +131,7 @@ describe('admin: account, key, API call, request log, revocation', () => {
   }, 60_000);
 
   it('saves the remaining admin views', async () => {
-    const { page } = browser;
+    const { page } = flow.browser;
     for (const [title, file] of [
       ['Usage', 'usage'],
       ['Liquor library', 'liquor-library'],
@@ -156,7 +140,7 @@ describe('admin: account, key, API call, request log, revocation', () => {
       ['Outbox', 'outbox'],
     ] as const) {
       await openFromDrawer(page, title);
-      await browser.settle(300, 3000);
+      await flow.browser.settle(300, 3000);
       await screenshot(page, file);
     }
     // The audit trail names the revocation this flow just made.
@@ -165,11 +149,11 @@ describe('admin: account, key, API call, request log, revocation', () => {
   }, 90_000);
 
   it('made no request outside the server origin and raised no page error', () => {
-    expect(browser.requests.some((u) => u.includes('/console/assets/'))).toBe(true);
-    expect(browser.foreignRequests()).toEqual([]);
-    expect(browser.pageErrors).toEqual([]);
+    expect(flow.browser.requests.some((u) => u.includes('/console/assets/'))).toBe(true);
+    expect(flow.browser.foreignRequests()).toEqual([]);
+    expect(flow.browser.pageErrors).toEqual([]);
     // Before sign-in the console asks who is signed in and tries a refresh: both 401 (no session).
-    const unexpected = browser.failedResponses.filter(
+    const unexpected = flow.browser.failedResponses.filter(
       (r) => !/^401 (GET|POST) \S+\/console-api\/auth\/(me|refresh)$/.test(r),
     );
     expect(unexpected).toEqual([]);

@@ -1,32 +1,16 @@
 // Browser flow 3 (developer): the navigation offers only the developer's pages, and the console
 // API refuses the admin and billing areas to the developer's own session with 403.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import {
   DEMO_CONSOLE_PASSWORD,
   DEMO_DEVELOPER_EMAIL,
   drawerTitles,
-  ensureConsoleBuilt,
-  openBrowser,
   screenshot,
+  setUpConsoleFlow,
   signIn,
-  startServer,
-  type BrowserSession,
-  type RunningServer,
 } from './harness.js';
 
-let server: RunningServer;
-let browser: BrowserSession;
-
-beforeAll(async () => {
-  ensureConsoleBuilt();
-  server = await startServer();
-  browser = await openBrowser(server.origin);
-}, 240_000);
-
-afterAll(async () => {
-  await browser?.close();
-  await server?.stop();
-}, 30_000);
+const flow = setUpConsoleFlow();
 
 /** Pages and console API areas outside the developer role (issue 4, role rules). */
 const ADMIN_PAGES = ['Accounts', 'Billing', 'Liquor library', 'People', 'Audit trail', 'Outbox'];
@@ -41,18 +25,18 @@ const REFUSED_CALLS = [
 
 describe('developer: only keys, usage and the request log of their accounts', () => {
   it('shows no admin or billing page in the navigation', async () => {
-    const { page } = browser;
-    await signIn(page, server.origin, DEMO_DEVELOPER_EMAIL, DEMO_CONSOLE_PASSWORD);
+    const { page } = flow.browser;
+    await signIn(page, flow.server.origin, DEMO_DEVELOPER_EMAIL, DEMO_CONSOLE_PASSWORD);
     await page.getByRole('heading', { level: 1, name: 'Overview' }).waitFor();
     const titles = await drawerTitles(page);
     expect(titles).toEqual(expect.arrayContaining(['API keys', 'Request log', 'Usage']));
     for (const title of ADMIN_PAGES) expect(titles).not.toContain(title);
-    await browser.settle(300, 3000);
+    await flow.browser.settle(300, 3000);
     await screenshot(page, 'developer-navigation');
   }, 60_000);
 
   it('is refused the admin and billing console API with 403 problem details', async () => {
-    const results = await browser.page.evaluate(async (paths) => {
+    const results = await flow.browser.page.evaluate(async (paths) => {
       const out: { path: string; status: number; type: string | null; contentType: string | null }[] = [];
       for (const path of paths) {
         const res = await fetch(path, { credentials: 'same-origin' });
@@ -75,20 +59,20 @@ describe('developer: only keys, usage and the request log of their accounts', ()
   });
 
   it('still reaches its own keys through the same session (the refusals are by role, not a broken session)', async () => {
-    const status = await browser.page.evaluate(async () => (await fetch('/console-api/keys')).status);
+    const status = await flow.browser.page.evaluate(async () => (await fetch('/console-api/keys')).status);
     expect(status).toBe(200);
   });
 
   it('sends the developer to the no-access page when an admin page is typed into the address bar', async () => {
-    const { page } = browser;
-    await page.goto(`${server.origin}/console/users`);
+    const { page } = flow.browser;
+    await page.goto(`${flow.server.origin}/console/users`);
     await page.waitForURL(/\/console\/no-access/);
     await page.getByText('Not for your role').first().waitFor();
     expect(await page.getByRole('heading', { level: 1, name: 'People' }).count()).toBe(0);
   }, 30_000);
 
   it('made no request outside the server origin', () => {
-    expect(browser.foreignRequests()).toEqual([]);
-    expect(browser.pageErrors).toEqual([]);
+    expect(flow.browser.foreignRequests()).toEqual([]);
+    expect(flow.browser.pageErrors).toEqual([]);
   });
 });

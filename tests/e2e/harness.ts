@@ -8,6 +8,8 @@
  * - `openBrowser(origin)` launches Chromium with a fresh profile and records every request the
  *   page makes, so a test can assert that none leaves the server's origin.
  * - `screenshot(page, name)` saves test-results/screenshots/<name>.png (git-ignored).
+ * - `setUpConsoleFlow()` registers a console flow's beforeAll/afterAll: all of the above, then
+ *   closing the browser and stopping the server.
  */
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
 import crypto from 'node:crypto';
@@ -16,6 +18,7 @@ import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import { afterAll, beforeAll } from 'vitest';
 export {
   DEMO_BILLING_EMAIL,
   DEMO_CONSOLE_PASSWORD,
@@ -257,6 +260,30 @@ export async function openBrowser(origin: string): Promise<BrowserSession> {
 }
 
 /** Saves a full-page screenshot as test-results/screenshots/<name>.png and returns its path. */
+/** The server and browser of one console browser flow (set once its beforeAll has run). */
+export interface ConsoleFlow {
+  server: RunningServer;
+  browser: BrowserSession;
+}
+
+/**
+ * Registers the hooks of a console browser flow: before all tests, build the console when missing,
+ * start the server and open Chromium on it; after all tests, close the browser and stop the server.
+ */
+export function setUpConsoleFlow(): ConsoleFlow {
+  const flow = {} as ConsoleFlow;
+  beforeAll(async () => {
+    ensureConsoleBuilt();
+    flow.server = await startServer();
+    flow.browser = await openBrowser(flow.server.origin);
+  }, 240_000);
+  afterAll(async () => {
+    await flow.browser?.close();
+    await flow.server?.stop();
+  }, 30_000);
+  return flow;
+}
+
 export async function screenshot(page: Page, name: string): Promise<string> {
   fs.mkdirSync(SCREENSHOT_DIR, { recursive: true });
   const file = path.join(SCREENSHOT_DIR, `${name}.png`);
