@@ -77,6 +77,11 @@ export function isApiProblem(err: unknown): err is ApiProblem {
   return err instanceof ApiProblem;
 }
 
+/** A failed call as shown in a view's alert: an ApiProblem as it is, anything else titled with its text. */
+export function asProblemTitledByError(err: unknown): ApiProblem {
+  return err instanceof ApiProblem ? err : new ApiProblem({ status: 0, title: String(err) });
+}
+
 /** A readable message for any thrown value. */
 export function errorMessage(err: unknown): string {
   if (err instanceof ApiProblem) return err.summary;
