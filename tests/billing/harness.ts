@@ -4,9 +4,7 @@
 // one signed-in agent per role through the real console pipeline (sign-in cookie, CSRF double submit).
 import type http from 'node:http';
 import type { AddressInfo } from 'node:net';
-import request from 'supertest';
-import type TestAgent from 'supertest/lib/agent.js';
-import { addMember, createAccount, createUser, type Role } from '../../server/accounts/accounts.js';
+import { createAccount } from '../../server/accounts/accounts.js';
 import { recordRequest } from '../../server/accounts/metering.js';
 import { ensureDefaultPlans } from '../../server/billing/plans.js';
 import { billingRouteModule } from '../../server/console/billing.js';
@@ -19,6 +17,7 @@ import {
   type FakePaymentProvider,
 } from '../../server/integrations/payments/fake-provider.js';
 import { defaultMailCapture } from '../../server/mail/send.js';
+import { csrfAgent, signInOnePerRole, type ConsoleAgent } from '../console-api/console-agents.js';
 import { testConfig } from '../http/helpers.js';
 
 if (!consoleRouteModules.includes(billingRouteModule)) consoleRouteModules.push(billingRouteModule);
@@ -27,10 +26,7 @@ export const PASSWORD = 'correct-horse-battery-42';
 export const API_KEY = 'sk_test_billing_harness_key';
 export const WEBHOOK_SECRET = 'whsec_billing_harness_secret';
 
-export interface SignedIn {
-  agent: TestAgent;
-  csrf: string;
-}
+export type SignedIn = ConsoleAgent;
 
 export interface BillingHarness {
   deps: AppDeps;
@@ -47,23 +43,6 @@ export interface BillingHarness {
   developer: SignedIn;
   anonymous: SignedIn;
   close(): Promise<void>;
-}
-
-async function csrfAgent(app: BillingHarness['app']): Promise<SignedIn> {
-  const agent = request.agent(app);
-  const res = await agent.get('/console-api/auth/csrf').expect(200);
-  return { agent, csrf: (res.body as { csrfToken: string }).csrfToken };
-}
-
-async function signIn(app: BillingHarness['app'], email: string): Promise<SignedIn> {
-  const first = await csrfAgent(app);
-  await first.agent
-    .post('/console-api/auth/sign-in')
-    .set('X-CSRF-Token', first.csrf)
-    .send({ email, password: PASSWORD })
-    .expect(200);
-  const again = await first.agent.get('/console-api/auth/csrf').expect(200);
-  return { agent: first.agent, csrf: (again.body as { csrfToken: string }).csrfToken };
 }
 
 export async function makeBillingHarness(
@@ -112,13 +91,11 @@ export async function makeBillingHarness(
     apiBase: new URL(fake.url),
     webhookSecret: WEBHOOK_SECRET,
   });
-  const signedIn = {} as Record<Role, SignedIn>;
-  for (const role of ['admin', 'billing', 'developer'] as const) {
-    const email = `${role}@ebullio.invalid`;
-    const user = createUser(db, { email, password: PASSWORD, role, now: clock.now });
-    if (role === 'developer') addMember(db, user.id, alpha.id);
-    signedIn[role] = await signIn(app, email);
-  }
+  const signedIn = await signInOnePerRole(db, app, {
+    password: PASSWORD,
+    developerAccountId: alpha.id,
+    now: clock.now,
+  });
   return {
     deps,
     clock,

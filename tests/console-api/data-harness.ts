@@ -1,9 +1,7 @@
 // Test harness for the console data routes: a temp (in-memory) database with migrations, an
 // injectable clock, seeded plans, two invented accounts and one signed-in agent per role that goes
 // through the real console pipeline (session cookie from POST /auth/sign-in, CSRF double submit).
-import request from 'supertest';
-import type TestAgent from 'supertest/lib/agent.js';
-import { addMember, createAccount, createUser, type Role } from '../../server/accounts/accounts.js';
+import { createAccount } from '../../server/accounts/accounts.js';
 import { recordRequest, type RequestRecord } from '../../server/accounts/metering.js';
 import { openDatabase, runMigrations } from '../../server/db/client.js';
 import { plans } from '../../server/db/schema.js';
@@ -17,6 +15,7 @@ import { requestLogRoutes } from '../../server/console/request-log.js';
 import { usageRoutes } from '../../server/console/usage.js';
 import { defaultMailCapture } from '../../server/mail/send.js';
 import { testConfig } from '../http/helpers.js';
+import { signInOnePerRole, type ConsoleAgent } from './console-agents.js';
 
 for (const m of [overviewRoutes, accountRoutes, keyRoutes, requestLogRoutes, usageRoutes, liquorRoutes]) {
   if (!consoleRouteModules.includes(m)) consoleRouteModules.push(m);
@@ -24,9 +23,7 @@ for (const m of [overviewRoutes, accountRoutes, keyRoutes, requestLogRoutes, usa
 
 export const PASSWORD = 'correct-horse-battery-42';
 
-export interface SignedIn {
-  agent: TestAgent;
-  csrf: string;
+export interface SignedIn extends ConsoleAgent {
   userId: number;
 }
 
@@ -41,19 +38,6 @@ export interface ConsoleHarness {
   billing: SignedIn;
   developer: SignedIn;
   close(): Promise<void>;
-}
-
-async function signIn(app: ConsoleHarness['app'], email: string): Promise<Omit<SignedIn, 'userId'>> {
-  const agent = request.agent(app);
-  const first = await agent.get('/console-api/auth/csrf').expect(200);
-  const token = (first.body as { csrfToken: string }).csrfToken;
-  await agent
-    .post('/console-api/auth/sign-in')
-    .set('X-CSRF-Token', token)
-    .send({ email, password: PASSWORD })
-    .expect(200);
-  const again = await agent.get('/console-api/auth/csrf').expect(200);
-  return { agent, csrf: (again.body as { csrfToken: string }).csrfToken };
 }
 
 export async function makeConsoleHarness(): Promise<ConsoleHarness> {
@@ -81,14 +65,11 @@ export async function makeConsoleHarness(): Promise<ConsoleHarness> {
   });
   const beta = createAccount(db, { name: 'Invented Beta Mills', monthlyUnitQuota: 500, now: clock.now });
   const app = createApp(deps);
-  const users: Record<Role, number> = { admin: 0, billing: 0, developer: 0 };
-  const signedIn = {} as Record<Role, SignedIn>;
-  for (const role of ['admin', 'billing', 'developer'] as const) {
-    const email = `${role}@ebullio.invalid`;
-    users[role] = createUser(db, { email, password: PASSWORD, role, now: clock.now }).id;
-    if (role === 'developer') addMember(db, users[role], alpha.id);
-    signedIn[role] = { ...(await signIn(app, email)), userId: users[role] };
-  }
+  const signedIn = await signInOnePerRole(db, app, {
+    password: PASSWORD,
+    developerAccountId: alpha.id,
+    now: clock.now,
+  });
   return {
     deps,
     clock,
