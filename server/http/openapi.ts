@@ -93,6 +93,23 @@ function jsonBody(schema: z.ZodType, example: unknown, summary: string) {
   };
 }
 
+/**
+ * A body sent as JSON (with the schema's own example under `exampleName`) or uploaded as
+ * multipart/form-data.
+ */
+function jsonOrUploadBody(schema: z.ZodType, uploadSchema: z.ZodType, exampleName: string, summary: string) {
+  return {
+    required: true,
+    content: {
+      'application/json': {
+        schema,
+        examples: { [exampleName]: { summary, value: schema.meta()?.example } },
+      },
+      'multipart/form-data': { schema: uploadSchema },
+    },
+  };
+}
+
 /** Builds a fresh registry holding every v1 calculation route. */
 export function buildRegistry(): OpenAPIRegistry {
   const registry = new OpenAPIRegistry();
@@ -157,21 +174,12 @@ export function buildRegistry(): OpenAPIRegistry {
       'The stored id can then be used as `liquor` in any calculation.',
     security,
     request: {
-      body: {
-        required: true,
-        content: {
-          'application/json': {
-            schema: StoredLiquorCreateSchema,
-            examples: {
-              'spent-wash': {
-                summary: 'Dühring table of an invented spent wash at North Mill',
-                value: StoredLiquorCreateSchema.meta()?.example,
-              },
-            },
-          },
-          'multipart/form-data': { schema: StoredLiquorUploadSchema },
-        },
-      },
+      body: jsonOrUploadBody(
+        StoredLiquorCreateSchema,
+        StoredLiquorUploadSchema,
+        'spent-wash',
+        'Dühring table of an invented spent wash at North Mill',
+      ),
     },
     responses: {
       201: ok('Stored', StoredLiquorSchema),
@@ -328,21 +336,12 @@ export function buildRegistry(): OpenAPIRegistry {
       'Send `Accept: text/csv` to receive the results as CSV (one line per case, dotted column names, `status` and `error` columns).',
     security,
     request: {
-      body: {
-        required: true,
-        content: {
-          'application/json': {
-            schema: BatchRequestSchema,
-            examples: {
-              'caustic-sweep': {
-                summary: 'Boiling points along an invented caustic concentration sweep',
-                value: BatchRequestSchema.meta()?.example,
-              },
-            },
-          },
-          'multipart/form-data': { schema: BatchUploadSchema },
-        },
-      },
+      body: jsonOrUploadBody(
+        BatchRequestSchema,
+        BatchUploadSchema,
+        'caustic-sweep',
+        'Boiling points along an invented caustic concentration sweep',
+      ),
     },
     responses: {
       200: ok('One result or problem per case', BatchResponseSchema, {
