@@ -77,6 +77,16 @@ export function isApiProblem(err: unknown): err is ApiProblem {
   return err instanceof ApiProblem;
 }
 
+/** A failed call as a store keeps it: an ApiProblem as it is, anything else as "cannot reach the server". */
+export function asProblem(err: unknown): ApiProblem {
+  if (err instanceof ApiProblem) return err;
+  return new ApiProblem({
+    status: 0,
+    title: 'The console cannot reach the server',
+    detail: err instanceof Error ? err.message : String(err),
+  });
+}
+
 /** A failed call as shown in a view's alert: an ApiProblem as it is, anything else titled with its text. */
 export function asProblemTitledByError(err: unknown): ApiProblem {
   return err instanceof ApiProblem ? err : new ApiProblem({ status: 0, title: String(err) });

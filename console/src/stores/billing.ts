@@ -15,8 +15,7 @@ import type {
   StatementsResponse,
   StatementStatus,
 } from '../../../shared/console/billing.js';
-import { api as defaultApi, type ApiClient, type ApiProblem, type Query } from '../api/client.js';
-import { asProblem } from './requestLog.js';
+import { api as defaultApi, type ApiClient, type ApiProblem, type Query, asProblem } from '../api/client.js';
 
 let client: ApiClient = defaultApi;
 /** Tests swap the client (a createApiClient with a mocked fetch). */

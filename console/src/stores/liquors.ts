@@ -11,8 +11,13 @@ import type {
   ConsoleLiquorLibrary,
   LiquorUploadFields,
 } from '../../../shared/console/liquors.js';
-import { api as defaultApi, type ApiClient, type ApiFieldError, type ApiProblem } from '../api/client.js';
-import { asProblem } from './requestLog.js';
+import {
+  api as defaultApi,
+  type ApiClient,
+  type ApiFieldError,
+  type ApiProblem,
+  asProblem,
+} from '../api/client.js';
 
 let client: ApiClient = defaultApi;
 /** Tests swap the client (a createApiClient with a mocked fetch). */

@@ -10,7 +10,7 @@ import type {
   RequestLogItem,
   RequestLogPage,
 } from '../../../shared/console/request-log.js';
-import { api as defaultApi, ApiProblem, type ApiClient } from '../api/client.js';
+import { api as defaultApi, ApiProblem, asProblem, type ApiClient } from '../api/client.js';
 import {
   emptyFilters,
   filterQuery,
@@ -129,12 +129,3 @@ export const useRequestLogStore = defineStore('requestLog', () => {
     closeDetail,
   };
 });
-
-export function asProblem(err: unknown): ApiProblem {
-  if (err instanceof ApiProblem) return err;
-  return new ApiProblem({
-    status: 0,
-    title: 'The console cannot reach the server',
-    detail: err instanceof Error ? err.message : String(err),
-  });
-}

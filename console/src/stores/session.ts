@@ -5,7 +5,7 @@
  */
 import { defineStore } from 'pinia';
 import { computed, ref } from 'vue';
-import { api as defaultApi, ApiProblem, type ApiClient } from '../api/client.js';
+import { api as defaultApi, ApiProblem, asProblem, type ApiClient } from '../api/client.js';
 import { unwrapUser, type ConsoleUser, type Role } from '../api/types.js';
 
 let client: ApiClient = defaultApi;
@@ -95,12 +95,3 @@ export const useSessionStore = defineStore('session', () => {
 
   return { user, role, loading, error, loaded, signedIn, can, load, signIn, signOut, refresh, expire };
 });
-
-function asProblem(err: unknown): ApiProblem {
-  if (err instanceof ApiProblem) return err;
-  return new ApiProblem({
-    status: 0,
-    title: 'The console cannot reach the server',
-    detail: err instanceof Error ? err.message : String(err),
-  });
-}

@@ -6,8 +6,7 @@
 import { defineStore } from 'pinia';
 import { computed, ref } from 'vue';
 import type { UsageFigures, UsageReport, UsageRow } from '../../../shared/console/usage.js';
-import { api as defaultApi, type ApiClient, type ApiProblem, type Query } from '../api/client.js';
-import { asProblem } from './requestLog.js';
+import { api as defaultApi, type ApiClient, type ApiProblem, type Query, asProblem } from '../api/client.js';
 
 let client: ApiClient = defaultApi;
 /** Tests swap the client (a createApiClient with a mocked fetch). */
