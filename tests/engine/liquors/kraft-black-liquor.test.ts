@@ -8,6 +8,7 @@
  */
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
+import { expectRangeError } from '../expect-range-error.js';
 import { EngineRangeError } from '../../../server/engine/errors.js';
 import {
   blackLiquorEnthalpyKJPerKg,
@@ -141,16 +142,11 @@ describe('kraft-black-liquor: heat capacity and enthalpy', () => {
 
 describe('kraft-black-liquor: validity and limits', () => {
   it('rejects a dry-solids fraction above 0.85 with the valid range', () => {
-    try {
-      kraftBlackLiquor.boilingPointRise(0.9, 101_325);
-      expect.unreachable();
-    } catch (error) {
-      expect(error).toBeInstanceOf(EngineRangeError);
-      const e = error as EngineRangeError;
-      expect(e.field).toBe('massFraction');
-      expect(e.value).toBe(0.9);
-      expect(e.validRange).toEqual({ min: 0, max: 0.85, unit: 'kg dry solids/kg liquor' });
-    }
+    expectRangeError(() => kraftBlackLiquor.boilingPointRise(0.9, 101_325), {
+      field: 'massFraction',
+      value: 0.9,
+      validRange: { min: 0, max: 0.85, unit: 'kg dry solids/kg liquor' },
+    });
   });
 
   it('rejects negative and non-finite solids instead of returning NaN', () => {

@@ -12,6 +12,7 @@
  */
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
+import { expectRangeError } from '../expect-range-error.js';
 import { EngineRangeError } from '../../../server/engine/errors.js';
 import {
   jamiesonHeatCapacity,
@@ -167,16 +168,11 @@ describe('seawater enthalpy, heat capacity and density against IAPWS-08', () => 
 
 describe('seawater validity rule', () => {
   it('rejects a mass fraction above the 0.16 kg/kg limit with the valid range', () => {
-    try {
-      seawater.boilingPoint(0.2, 20_000);
-      expect.unreachable();
-    } catch (error) {
-      expect(error).toBeInstanceOf(EngineRangeError);
-      const e = error as EngineRangeError;
-      expect(e.field).toBe('massFraction');
-      expect(e.value).toBe(0.2);
-      expect(e.validRange).toEqual({ min: 0, max: 0.16, unit: 'kg/kg' });
-    }
+    expectRangeError(() => seawater.boilingPoint(0.2, 20_000), {
+      field: 'massFraction',
+      value: 0.2,
+      validRange: { min: 0, max: 0.16, unit: 'kg/kg' },
+    });
   });
 
   it('rejects a negative or non-finite mass fraction instead of returning NaN', () => {

@@ -9,6 +9,7 @@
  */
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
+import { expectRangeError } from '../expect-range-error.js';
 import { EngineRangeError } from '../../../server/engine/errors.js';
 import {
   olssonBoilingTemperatureCelsius,
@@ -182,16 +183,11 @@ describe('sodium-hydroxide: enthalpy and heat capacity', () => {
 
 describe('sodium-hydroxide: validity and limits', () => {
   it('rejects a mass fraction above 0.8 with the valid range', () => {
-    try {
-      sodiumHydroxide.boilingPoint(0.85, 101_325);
-      expect.unreachable();
-    } catch (error) {
-      expect(error).toBeInstanceOf(EngineRangeError);
-      const e = error as EngineRangeError;
-      expect(e.field).toBe('massFraction');
-      expect(e.value).toBe(0.85);
-      expect(e.validRange).toEqual({ min: 0, max: 0.8, unit: 'kg NaOH/kg solution' });
-    }
+    expectRangeError(() => sodiumHydroxide.boilingPoint(0.85, 101_325), {
+      field: 'massFraction',
+      value: 0.85,
+      validRange: { min: 0, max: 0.8, unit: 'kg NaOH/kg solution' },
+    });
   });
 
   it('rejects a negative or non-finite mass fraction instead of returning NaN', () => {
@@ -202,16 +198,9 @@ describe('sodium-hydroxide: validity and limits', () => {
 
   it('rejects a pressure at which the boiling point would pass 250 °C, naming the pressure', () => {
     // 50 % NaOH at 2 MPa would boil far above the 250 °C hard limit.
-    try {
-      sodiumHydroxide.boilingPoint(0.5, 2e6);
-      expect.unreachable();
-    } catch (error) {
-      expect(error).toBeInstanceOf(EngineRangeError);
-      const e = error as EngineRangeError;
-      expect(e.field).toBe('pressure');
-      expect(e.validRange.unit).toBe('Pa');
-      expect(e.validRange.max).toBeLessThan(2e6);
-    }
+    const e = expectRangeError(() => sodiumHydroxide.boilingPoint(0.5, 2e6), { field: 'pressure' });
+    expect(e.validRange.unit).toBe('Pa');
+    expect(e.validRange.max).toBeLessThan(2e6);
   });
 
   it('rejects an enthalpy temperature above 250 °C or below 0 °C', () => {

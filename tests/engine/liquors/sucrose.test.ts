@@ -4,6 +4,7 @@
  * recalled rather than read are marked "from memory".
  */
 import { describe, expect, it } from 'vitest';
+import { expectRangeError } from '../expect-range-error.js';
 import { EngineRangeError } from '../../../server/engine/errors.js';
 import {
   lyleHeatCapacity,
@@ -159,16 +160,11 @@ describe('sucrose solubility (Vavrinecz 1962)', () => {
 
 describe('sucrose validity rule', () => {
   it('rejects a mass fraction above 0.95 with the valid range', () => {
-    try {
-      sucrose.boilingPoint(0.97, ATM);
-      expect.unreachable();
-    } catch (error) {
-      expect(error).toBeInstanceOf(EngineRangeError);
-      const e = error as EngineRangeError;
-      expect(e.field).toBe('massFraction');
-      expect(e.value).toBe(0.97);
-      expect(e.validRange).toEqual({ min: 0, max: 0.95, unit: 'kg/kg' });
-    }
+    expectRangeError(() => sucrose.boilingPoint(0.97, ATM), {
+      field: 'massFraction',
+      value: 0.97,
+      validRange: { min: 0, max: 0.95, unit: 'kg/kg' },
+    });
   });
 
   it('rejects a non-finite input instead of returning NaN', () => {
