@@ -28,8 +28,14 @@ import {
   type WarningDto,
 } from '../../shared/contracts/index.js';
 import { EngineInputError, EngineNoSolutionError, EngineRangeError } from '../engine/errors.js';
-import { KELVIN_OFFSET, type EngineWarning } from '../engine/types.js';
-import { parseQuantity, UnitError, type QuantityKind as UnitsKind } from '../units/index.js';
+import type { EngineWarning } from '../engine/types.js';
+import {
+  fromDefaultUnit,
+  parseQuantity,
+  toDefaultUnit,
+  UnitError,
+  type QuantityKind as UnitsKind,
+} from '../units/index.js';
 import { problem, ProblemError, type ProblemFieldError } from './problem.js';
 
 /** Our quantity kinds → the kinds of server/units. */
@@ -56,45 +62,14 @@ function isUnitError(err: unknown): err is UnitError {
   return err instanceof UnitError;
 }
 
-/** SI value → display (default) unit of its kind. */
+/** SI value → display (default) unit of its kind (server/units holds the unit table). */
 export function siToDisplay(valueSI: number, kind: QuantityKind): number {
-  switch (kind) {
-    case 'temperature':
-      return valueSI - KELVIN_OFFSET;
-    case 'pressure':
-    case 'specificEnthalpy':
-    case 'specificHeatCapacity':
-    case 'specificEntropy':
-    case 'power':
-      return valueSI / 1000;
-    default:
-      return valueSI;
-  }
+  return toDefaultUnit(valueSI, UNITS_KIND[kind]);
 }
 
 /** Display (default) unit of its kind → SI. */
 export function displayToSI(value: number, kind: QuantityKind): number {
-  switch (kind) {
-    case 'temperature':
-      return value + KELVIN_OFFSET;
-    case 'pressure':
-    case 'specificEnthalpy':
-    case 'specificHeatCapacity':
-    case 'specificEntropy':
-    case 'power':
-      return value * 1000;
-    default:
-      return value;
-  }
-}
-
-const BARE_NUMBER = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
-
-/** A string quantity → SI: a bare number is in the default unit; anything else goes to server/units. */
-function parseQuantityString(input: string, kind: QuantityKind, field: string): number {
-  const text = input.trim();
-  if (BARE_NUMBER.test(text)) return displayToSI(Number(text), kind);
-  return parseWithUnit(text, kind, field);
+  return fromDefaultUnit(value, UNITS_KIND[kind]);
 }
 
 /** Dotted request path of a zod issue path: ['effects', 2, 'area'] → "effects[2].area". */
@@ -327,7 +302,8 @@ export function readQuantity(input: QuantityInput, spec: QuantitySpec, field: st
   if (typeof input === 'number') return displayToSI(input, spec.kind);
   let si: number;
   try {
-    si = parseQuantityString(input, spec.kind, field);
+    // a bare number in a string is read in the default unit by server/units itself
+    si = parseWithUnit(input, spec.kind, field);
   } catch (err) {
     throw toProblem(err);
   }

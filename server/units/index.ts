@@ -387,6 +387,22 @@ export function parseQuantity(input: number | string, kind: QuantityKind, field:
   return si;
 }
 
+/** Each kind's default unit as its affine map to SI, looked up once (the API converts every field). */
+const DEFAULT_UNIT = new Map<QuantityKind, Affine>(
+  quantityKinds.map((kind) => [kind, LOOKUP.get(kind)?.get(key(defaultUnits[kind])) as Affine]),
+);
+
+/** A number in the kind's default unit → SI (no parsing, no physical check: for checked numbers). */
+export function fromDefaultUnit(value: number, kind: QuantityKind): number {
+  return convert(value, DEFAULT_UNIT.get(kind) as Affine);
+}
+
+/** An SI value → the kind's default unit. */
+export function toDefaultUnit(valueSI: number, kind: QuantityKind): number {
+  const unit = DEFAULT_UNIT.get(kind) as Affine;
+  return (valueSI - unit.offset) / unit.factor;
+}
+
 /**
  * Converts an SI value to the given unit of the kind (default: Ebullio's default output unit,
  * {@link defaultUnits}: °C, kPa absolute, kg/s, kJ/kg, kJ/(kg·K), kW, m², W/(m²·K), mass fraction).

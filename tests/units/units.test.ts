@@ -12,8 +12,10 @@ import {
   acceptedUnits,
   defaultUnits,
   formatOutput,
+  fromDefaultUnit,
   parseQuantity,
   quantityKinds,
+  toDefaultUnit,
   UnitError,
   type QuantityKind,
 } from '../../server/units/index.js';
@@ -226,5 +228,22 @@ describe('formatOutput and defaultUnits', () => {
       power: 'kW',
       heatCapacity: 'kJ/(kg·K)',
     });
+  });
+});
+
+describe('default-unit conversions used for every API field', () => {
+  it('match the exact definitions of the default units and invert each other', () => {
+    // Exact definitions (SI brochure; common practice): 0 °C = 273.15 K, 1 kPa = 1000 Pa,
+    // 1 kJ/kg = 1000 J/kg, 1 kW = 1000 W.
+    expect(fromDefaultUnit(0, 'temperature')).toBe(273.15);
+    expect(toDefaultUnit(373.15, 'temperature')).toBeCloseTo(100, 12);
+    expect(fromDefaultUnit(101.325, 'pressure')).toBeCloseTo(101_325, 9);
+    expect(fromDefaultUnit(2257, 'specificEnthalpy')).toBe(2_257_000);
+    expect(toDefaultUnit(1500, 'power')).toBe(1.5);
+    for (const kind of quantityKinds) {
+      expect(toDefaultUnit(fromDefaultUnit(0.5, kind), kind)).toBeCloseTo(0.5, 12);
+      // the same default unit as parseQuantity reads a plain number in
+      expect(fromDefaultUnit(0.5, kind)).toBe(parseQuantity(0.5, kind, 'f'));
+    }
   });
 });
