@@ -9,11 +9,11 @@ import express, { type ErrorRequestHandler, type RequestHandler } from 'express'
 import type { Config } from '../config.js';
 import type { Db, Sqlite } from '../db/client.js';
 import { pendingMigrationCount } from '../db/client.js';
-import { EngineInputError, EngineNoSolutionError, EngineRangeError } from '../engine/errors.js';
 import { bodyErrorTranslator } from './middleware/body.js';
 import { requestId } from './middleware/request-id.js';
 import { problem, problemCatalogue, ProblemError, sendProblem, type ProblemSlug } from './problem.js';
 import { createV1Router } from './v1/index.js';
+import { engineProblem } from './validation.js';
 import { openApiModule } from './openapi.js';
 import { consoleApiModule } from '../console/index.js';
 import { paymentsWebhookModule } from '../billing/webhook.js';
@@ -65,24 +65,9 @@ const problemPage: RequestHandler = (req, res) => {
   res.json({ type: `/problems/${slug}`, ...entry });
 };
 
-/** Maps the engine's typed errors to 422 problems (a fallback: routes may map them more precisely). */
-function engineProblem(err: unknown): ProblemError | undefined {
-  if (err instanceof EngineRangeError) {
-    return problem('out-of-range', err.message, {
-      errors: [{ field: err.field, message: err.message, value: err.value, validRange: err.validRange }],
-    });
-  }
-  if (err instanceof EngineInputError) {
-    return problem('validation-failed', err.message, {
-      errors: [{ field: err.field, message: err.message }],
-    });
-  }
-  if (err instanceof EngineNoSolutionError) return problem('no-solution', err.message);
-  return undefined;
-}
-
 const finalErrorHandler: ErrorRequestHandler = (err: unknown, _req, res, next) => {
   if (res.headersSent) return next(err);
+  // Routes map engine errors to their request fields; this catches any that reach the app.
   const known = err instanceof ProblemError ? err : engineProblem(err);
   if (known) return sendProblem(res, known);
   console.error(`[error] request ${res.locals.requestId}:`, err);
