@@ -45,7 +45,12 @@
  */
 import { EngineInputError } from '../errors.js';
 import { addWarning, type Citation, type EngineWarning, type WarningSink } from '../types.js';
-import { IF97, saturationAtTemperature, saturationPressure, saturationTemperature } from '../steam/if97.js';
+import {
+  IF97,
+  saturatedLiquidAtTemperature,
+  saturationPressure,
+  saturationTemperature,
+} from '../steam/if97.js';
 import { fitLine, interpolateLinear, interpolateSlope, lerp, segmentIndex } from '../numeric/interpolate.js';
 import { polyMinimum, polyval } from '../numeric/polynomial.js';
 import type { Interval, LiquorModel, ValidityBox } from './model.js';
@@ -728,7 +733,7 @@ export function createCustomLiquor(definition: CustomLiquorDefinition): CustomLi
     checkAgainst(id, 'temperature', t, 'K', pair.validity, pair.limits, w);
     const at = (r: CompiledRow): { h: number; cp: number } => {
       if (r.index === -1) {
-        const liquid = saturationAtTemperature(t).liquid;
+        const liquid = saturatedLiquidAtTemperature(t);
         return { h: liquid.enthalpy, cp: liquid.heatCapacity as number };
       }
       return { h: interpolateLinear(r.ts, r.hs, t), cp: interpolateSlope(r.ts, r.hs, t) };

@@ -16,7 +16,7 @@
  * Checked against IAPWS-08 (python3-iapws) in tests/engine/liquors/seawater.test.ts.
  */
 import { EngineNoSolutionError, EngineRangeError } from '../errors.js';
-import { saturationAtTemperature, saturationPressure, saturationTemperature } from '../steam/if97.js';
+import { saturatedLiquidAtTemperature, saturationPressure, saturationTemperature } from '../steam/if97.js';
 import { addWarning, KELVIN_OFFSET, type Citation, type EngineCaution, type WarningSink } from '../types.js';
 import type { Interval, LiquorModel, ValidityBox } from './model.js';
 import { checkAgainst } from './validity.js';
@@ -282,7 +282,7 @@ export const seawater: LiquorModel = {
   enthalpy(massFraction: number, temperature: number, warnings?: WarningSink): number {
     checkMassFraction(massFraction, RANGES.enthalpy.massFraction, warnings);
     checkTemperature(temperature, RANGES.enthalpy.temperature, ENTHALPY_TEMPERATURE_LIMITS, warnings);
-    const water = saturationAtTemperature(temperature).liquid.enthalpy;
+    const water = saturatedLiquidAtTemperature(temperature).enthalpy;
     return water + sharqawyEnthalpyDifference(massFraction, temperature);
   },
 
@@ -290,7 +290,7 @@ export const seawater: LiquorModel = {
   heatCapacity(massFraction: number, temperature: number, warnings?: WarningSink): number {
     checkMassFraction(massFraction, RANGES.heatCapacity.massFraction, warnings);
     checkTemperature(temperature, RANGES.heatCapacity.temperature, TEMPERATURE_LIMITS, warnings);
-    const water = saturationAtTemperature(temperature).liquid.heatCapacity;
+    const water = saturatedLiquidAtTemperature(temperature).heatCapacity;
     if (water === undefined) {
       throw new EngineNoSolutionError('IF97 gave no heat capacity for saturated liquid', {
         reason: 'missing-property',
@@ -303,7 +303,7 @@ export const seawater: LiquorModel = {
   density(massFraction: number, temperature: number, warnings?: WarningSink): number {
     checkMassFraction(massFraction, RANGES.density.massFraction, warnings);
     checkTemperature(temperature, RANGES.density.temperature, TEMPERATURE_LIMITS, warnings);
-    const water = saturationAtTemperature(temperature).liquid.density;
+    const water = saturatedLiquidAtTemperature(temperature).density;
     return water + sharqawyDensityDifference(massFraction, temperature);
   },
 };

@@ -8,7 +8,7 @@
  * {@link LiquorModel} `sucrose`, which applies the validity rule.
  */
 import { EngineNoSolutionError, EngineRangeError } from '../errors.js';
-import { saturationAtTemperature, saturationPressure, saturationTemperature } from '../steam/if97.js';
+import { saturatedLiquidAtTemperature, saturationPressure, saturationTemperature } from '../steam/if97.js';
 import { addWarning, KELVIN_OFFSET, type Citation, type EngineCaution, type WarningSink } from '../types.js';
 import type { Interval, LiquorModel, ValidityBox } from './model.js';
 import { checkAgainst } from './validity.js';
@@ -314,7 +314,7 @@ export const sucrose: LiquorModel = {
     checkTemperature(temperature, HEAT_CAPACITY_TEMPERATURE, warnings);
     checkSaturation(massFraction, temperature, warnings);
     return (
-      saturationAtTemperature(temperature).liquid.enthalpy + lyleEnthalpyDifference(massFraction, temperature)
+      saturatedLiquidAtTemperature(temperature).enthalpy + lyleEnthalpyDifference(massFraction, temperature)
     );
   },
 
@@ -322,7 +322,7 @@ export const sucrose: LiquorModel = {
   heatCapacity(massFraction: number, temperature: number, warnings?: WarningSink): number {
     checkMassFraction(massFraction, HEAT_CAPACITY_MASS_FRACTION, warnings);
     checkTemperature(temperature, HEAT_CAPACITY_TEMPERATURE, warnings);
-    const water = saturationAtTemperature(temperature).liquid.heatCapacity;
+    const water = saturatedLiquidAtTemperature(temperature).heatCapacity;
     if (water === undefined) {
       throw new EngineNoSolutionError('IF97 gave no heat capacity for saturated liquid', {
         reason: 'missing-property',

@@ -497,6 +497,24 @@ export function saturationAtTemperature(
 }
 
 /**
+ * Saturated liquid at temperature T, K (273.15 K to 647.095 K), without transport properties and
+ * without the vapour state: the lean path for liquor models that take their water part from
+ * saturated liquid at the solution temperature (h, c_p, ρ), called inside solver iterations.
+ */
+export function saturatedLiquidAtTemperature(temperature: number): WaterState {
+  checkRange('temperature', temperature, 'K', IF97.minTemperature, IF97.maxSaturationStateTemperature);
+  const pressure = PT.r4_T_Psat(temperature) * MPA;
+  const raw =
+    temperature <= IF97.region13Temperature
+      ? PT.r1(pressure / MPA, temperature)
+      : rawSaturated(pressure, temperature).liquid;
+  const liquid = toState(raw, 4, 'liquid', false);
+  liquid.pressure = pressure;
+  liquid.quality = 0;
+  return liquid;
+}
+
+/**
  * Saturated enthalpies h_f and h_g at pressure p (611.213 Pa to 22.0637 MPa), J/kg, with T_s:
  * the lean path for solvers (no transport properties, no state objects).
  */

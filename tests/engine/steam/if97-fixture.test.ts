@@ -9,6 +9,7 @@ import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import {
   saturationAtPressure,
+  saturatedLiquidAtTemperature,
   saturationAtTemperature,
   stateAtPH,
   stateAtPT,
@@ -100,6 +101,8 @@ describe(`IF97 adapter agrees with python3-iapws ${fixture.iapwsVersion} (${fixt
       expect(rel(sat.pressure, ref.pressure, 0)).toBeLessThan(2e-8);
       compare(sat.liquid, ref.liquid, false);
       compare(sat.vapor, ref.vapor, false);
+      // The lean saturated-liquid path the liquor models use: same reference, same tolerance.
+      compare(saturatedLiquidAtTemperature(temperature), ref.liquid, false);
     },
   );
 
