@@ -9,6 +9,7 @@ import { and, eq, type SQL } from 'drizzle-orm';
 import type { Db, Sqlite } from '../db/client.js';
 import { accounts, statements } from '../db/schema.js';
 import { getPlan, listPlans, type PlanRow } from './plans.js';
+import { toCsv } from '../http/csv.js';
 import {
   computeStatement,
   isMonthComplete,
@@ -234,17 +235,10 @@ export function statementDetail(db: Db, id: number): StatementDetail | undefined
   };
 }
 
-/** RFC 4180 field quoting, with formula-leading text neutralised (OWASP "CSV Injection"). */
-export function csvField(value: string | number): string {
-  let text = String(value);
-  if (typeof value === 'string' && /^[=+\-@\t\r]/.test(text)) text = `'${text}`;
-  return /[",\r\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
-}
-
-/** The statement's line items as CSV (header row, one row per line item, CRLF line ends). */
+/** The statement's line items as CSV (header row, one row per line item; ../http/csv.ts). */
 export function statementCsv(detail: StatementDetail, columns: readonly string[]): string {
-  const rows = detail.lineItems.map((item) =>
-    [
+  const rows = detail.lineItems.map((item) => {
+    const cells = [
       detail.id,
       detail.accountId,
       detail.accountName,
@@ -256,9 +250,8 @@ export function statementCsv(detail: StatementDetail, columns: readonly string[]
       item.unitAmountMinor,
       item.amountMinor,
       detail.currency,
-    ]
-      .map(csvField)
-      .join(','),
-  );
-  return [columns.join(','), ...rows].join('\r\n') + '\r\n';
+    ];
+    return Object.fromEntries(columns.map((c, i) => [c, cells[i]]));
+  });
+  return toCsv(columns, rows);
 }

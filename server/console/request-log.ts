@@ -3,11 +3,8 @@
  * GET /request-log/:id (redacted bodies and timings), GET /request-log/export.csv (the same
  * filters, at most CSV_ROW_CAP rows). Developers see only their accounts' rows.
  *
- * Also the CSV writer the usage export shares: RFC 4180 (CRLF record ends, fields with comma,
- * quote or line break quoted, quotes doubled; csv-stringify does the quoting) and text cells
- * that a spreadsheet would read as a formula prefixed with a single quote (OWASP, "CSV Injection").
+ * Also `sendCsv`, the CSV attachment response the usage export shares (the writer: ../http/csv.ts).
  */
-import { stringify } from 'csv-stringify/sync';
 import type { Response } from 'express';
 import { z } from 'zod';
 import {
@@ -31,15 +28,10 @@ import {
   type RequestLogFilterInput,
   type RequestLogRow,
 } from '../accounts/request-log-query.js';
+import { toCsv } from '../http/csv.js';
 import { problem } from '../http/problem.js';
 import { queryScope, scopeOf } from './accounts.js';
 import { consoleRoute, type ConsoleRouteModule } from './route.js';
-
-/** Neutralises a text cell a spreadsheet would evaluate (=, +, -, @, tab, CR first). */
-export function csvSafe(value: unknown): unknown {
-  if (typeof value === 'string' && /^[=+\-@\t\r]/.test(value)) return `'${value}`;
-  return value;
-}
 
 /** Sends rows as an RFC 4180 CSV attachment with a header row. */
 export function sendCsv(
@@ -49,18 +41,12 @@ export function sendCsv(
   rows: Iterable<Record<string, unknown>>,
   info: { total: number; cap: number },
 ): void {
-  const records: Record<string, unknown>[] = [];
-  for (const row of rows) records.push(Object.fromEntries(columns.map((c) => [c, csvSafe(row[c] ?? null)])));
-  const text = stringify(records, {
-    header: true,
-    columns: [...columns],
-    record_delimiter: 'windows',
-    cast: { date: (d) => d.toISOString() },
-  });
+  const rowList = [...rows];
+  const text = toCsv(columns, rowList);
   res.setHeader('Content-Type', 'text/csv; charset=utf-8; header=present');
   res.setHeader('Content-Disposition', `attachment; filename="${filename}"`);
   res.setHeader('X-Total-Count', String(info.total));
-  if (info.total > records.length) res.setHeader('X-Export-Truncated', `rows capped at ${info.cap}`);
+  if (info.total > rowList.length) res.setHeader('X-Export-Truncated', `rows capped at ${info.cap}`);
   res.status(200).send(text);
 }
 

@@ -6,7 +6,6 @@
  * cannot cover them). `Accept: text/csv` returns one line per case with dotted column names.
  */
 import { parse as parseCsv } from 'csv-parse/sync';
-import { stringify } from 'csv-stringify/sync';
 import type { Request } from 'express';
 import multer from 'multer';
 import {
@@ -20,6 +19,7 @@ import {
 import { operations, type OperationId } from '../../accounts/operations.js';
 import type { AppDeps } from '../app.js';
 import { chargeUnits, requireOperation } from '../middleware/operation.js';
+import { toCsv } from '../csv.js';
 import { problem, problemTypeUri, ProblemError } from '../problem.js';
 import { findNonFinite, toProblem, validate } from '../validation.js';
 import { multipleEffectUnits, runMultipleEffect, runSingleEffect } from './evaporators.js';
@@ -246,7 +246,7 @@ export const batchRoutes: V1RouteModule = {
           return flat;
         });
         const columns = [...new Set(rows.flatMap((r) => Object.keys(r)))];
-        res.type('text/csv').send(stringify(rows, { header: true, columns }));
+        res.type('text/csv').send(toCsv(columns, rows));
         return;
       }
       res.json(response);
