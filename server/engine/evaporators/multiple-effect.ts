@@ -72,12 +72,13 @@ import {
   saturationTemperature,
   saturatedLiquidEnthalpy,
   saturatedVaporEnthalpy,
-  stateAtPT,
+  enthalpyAtPT,
 } from '../steam/if97.js';
 import type { Citation, EngineCaution, EngineWarning } from '../types.js';
 import {
   balanceResidual,
   collectSources,
+  leavingVapor,
   requireInRange,
   requireMassFraction,
   requirePositive,
@@ -293,11 +294,6 @@ function requireEffect(field: string, value: number, n: number): number {
 // ---------------------------------------------------------------------------------------------
 // The solver
 // ---------------------------------------------------------------------------------------------
-
-/** Vapour enthalpy at (p, T): region 2, or saturated vapour when there is no superheat. */
-function vaporEnthalpy(p: number, t: number, tsat: number): number {
-  return t - tsat > 1e-9 ? stateAtPT(p, t).enthalpy : saturatedVaporEnthalpy(p);
-}
 
 /**
  * Solves a multiple-effect train: mode 'equal-area' (design for equal areas) or 'given-areas'
@@ -515,9 +511,9 @@ export function solveMultipleEffect(input: MultipleEffectInput): MultipleEffectR
       bpr[i] = r;
       const t = (Tsat[i] as number) + r;
       Tb[i] = t;
-      HV[i] = vaporEnthalpy(pi, t, Tsat[i] as number);
+      HV[i] = leavingVapor(pi, t, Tsat[i] as number).enthalpy;
       hf[i] = saturatedLiquidEnthalpy(pi);
-      hc[i] = subcool > 0 ? stateAtPT(pi, (Tsat[i] as number) - subcool).enthalpy : (hf[i] as number);
+      hc[i] = subcool > 0 ? enthalpyAtPT(pi, (Tsat[i] as number) - subcool) : (hf[i] as number);
       hL[i] = liquor.enthalpy(x[i] as number, t, sink);
     }
     for (let i = 0; i < n; i++) bleed[i] = fixedBleed[i] as number;

@@ -17,6 +17,7 @@ import { EngineRangeError } from '../errors.js';
 import { saturationTemperature, IF97 } from '../steam/if97.js';
 import { addWarning, KELVIN_OFFSET, type Citation, type WarningSink } from '../types.js';
 import type { Interval, LiquorModel, ValidityBox } from './model.js';
+import { polyval } from '../numeric/polynomial.js';
 import { checkAgainst } from './validity.js';
 
 const MODEL_ID = 'sodium-hydroxide';
@@ -53,13 +54,6 @@ const H_N = [-8.5131313, 136.52823, -875.68741, 2920.0398, -5488.2983, 5841.8034
   (n) => n * 1e-5,
 );
 
-/** Σ c_i·z^i by Horner's rule. */
-function polynomial(coefficients: readonly number[], z: number): number {
-  let sum = 0;
-  for (let i = coefficients.length - 1; i >= 0; i--) sum = sum * z + (coefficients[i] ?? 0);
-  return sum;
-}
-
 function requireWaterFraction(waterMassFraction: number): void {
   if (!Number.isFinite(waterMassFraction) || waterMassFraction <= 0 || waterMassFraction > 1) {
     throw new EngineRangeError('waterMassFraction', waterMassFraction, {
@@ -73,7 +67,7 @@ function requireWaterFraction(waterMassFraction: number): void {
 /** The three ξ-dependent parameters of Olsson's vapour-pressure equation. */
 function vaporPressureParameters(waterMassFraction: number): { a1: number; a2: number; a3: number } {
   const z = Math.log(waterMassFraction);
-  return { a1: polynomial(VP_K, z), a2: polynomial(VP_L, z), a3: polynomial(VP_M, z) };
+  return { a1: polyval(VP_K, z), a2: polyval(VP_L, z), a3: polyval(VP_M, z) };
 }
 
 /**
@@ -170,7 +164,7 @@ export function olssonEnthalpyKJPerKg(waterMassFraction: number, temperatureCels
   const c1 =
     (k0 + k2 * xi + k4 * xi ** 2 + k6 * xi ** 3) / (1 + k1 * xi + k3 * xi ** 2 + k5 * xi ** 3 + k7 * xi ** 4);
   const t = temperatureCelsius;
-  return c1 + polynomial(H_L, xi) * t + polynomial(H_M, xi) * t ** 2 + polynomial(H_N, xi) * t ** 3;
+  return c1 + polyval(H_L, xi) * t + polyval(H_M, xi) * t ** 2 + polyval(H_N, xi) * t ** 3;
 }
 
 /**
@@ -191,7 +185,7 @@ export function olssonHeatCapacityKJPerKgK(waterMassFraction: number, temperatur
   requireWaterFraction(waterMassFraction);
   const xi = waterMassFraction;
   const t = temperatureCelsius;
-  return polynomial(H_L, xi) + 2 * polynomial(H_M, xi) * t + 3 * polynomial(H_N, xi) * t ** 2;
+  return polyval(H_L, xi) + 2 * polyval(H_M, xi) * t + 3 * polyval(H_N, xi) * t ** 2;
 }
 
 /** [upper temperature bound °C, lowest water fraction ξ] steps of Olsson's data for p(ξ, t). */
