@@ -2,7 +2,7 @@
  * Browser-test harness: the real server process (`tsx server/main.ts`) on a free port with a temp
  * database, and Debian's Chromium driven by playwright-core (never a downloaded browser).
  *
- * - `ensureConsoleBuilt()` runs `npm run build` once when console/dist is missing.
+ * - `ensureConsoleBuilt()` runs `npm run build` when console/dist is missing or older than its sources.
  * - `startServer()` spawns the server with a bootstrap API key and admin, the development mail
  *   capture and fake payment provider enabled, and waits for /readyz.
  * - `openBrowser(origin)` launches Chromium with a fresh profile and records every request the
@@ -11,13 +11,14 @@
  * - `setUpConsoleFlow()` registers a console flow's beforeAll/afterAll: all of the above, then
  *   closing the browser and stopping the server.
  */
-import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
+import { spawn, type ChildProcess } from 'node:child_process';
 import crypto from 'node:crypto';
 import fs from 'node:fs';
 import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import { ensureConsoleBuilt } from '../support/console-build.js';
 import { afterAll, beforeAll } from 'vitest';
 export {
   DEMO_BILLING_EMAIL,
@@ -46,15 +47,7 @@ export async function freePort(): Promise<number> {
   });
 }
 
-/** Builds the console once (`npm run build`) when console/dist/index.html is missing. */
-export function ensureConsoleBuilt(): { built: boolean; present: boolean } {
-  const dist = path.join(ROOT, 'console', 'dist', 'index.html');
-  if (fs.existsSync(dist)) return { built: false, present: true };
-  if (!fs.existsSync(path.join(ROOT, 'console', 'vite.config.ts'))) return { built: false, present: false };
-  const out = spawnSync('npm', ['run', 'build'], { cwd: ROOT, encoding: 'utf8', timeout: 180_000 });
-  if (out.status !== 0) throw new Error(`console build failed:\n${out.stdout}\n${out.stderr}`);
-  return { built: true, present: fs.existsSync(dist) };
-}
+export { ensureConsoleBuilt };
 
 export interface RunningServer {
   origin: string;
