@@ -141,6 +141,10 @@ function modelRefs(model: LiquorModel): ModelRef[] {
   return [{ id: model.id, source: model.sources.map((s) => s.reference).join('; ') }];
 }
 
+/** Compiled stored liquors, oldest first (a Map keeps insertion order), bounded. */
+const compiledStored = new Map<number, ResolvedLiquor>();
+const COMPILED_STORED_MAX = 256;
+
 /**
  * The liquor a request names: a built-in id, an id stored by this account, or an inline
  * definition. 404 'not-found' for an unknown id (the field is named in `errors`).
@@ -159,8 +163,18 @@ export function resolveLiquor(ref: LiquorRef, db: Db, accountId: number, field: 
         },
       );
     }
+    // Stored rows are immutable (created or deleted, never edited) and row ids are never reused,
+    // so a row compiles once; the lookup above still runs first, so a deleted or re-created
+    // liquor is never served stale.
+    const cached = compiledStored.get(stored.rowId);
+    if (cached) return cached;
     const model = buildCustomLiquor(stored.definition, field, ref);
-    return { model, models: modelRefs(model), definitionWarnings: model.definitionWarnings };
+    const resolved = { model, models: modelRefs(model), definitionWarnings: model.definitionWarnings };
+    if (compiledStored.size >= COMPILED_STORED_MAX) {
+      compiledStored.delete(compiledStored.keys().next().value as number);
+    }
+    compiledStored.set(stored.rowId, resolved);
+    return resolved;
   }
   const model = buildCustomLiquor(ref, field);
   return { model, models: modelRefs(model), definitionWarnings: model.definitionWarnings };

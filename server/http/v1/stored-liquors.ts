@@ -30,6 +30,8 @@ import { buildCustomLiquor } from './liquors.js';
 import type { V1RouteModule } from './index.js';
 
 export interface StoredLiquorRecord {
+  /** Database row id: never reused, so it identifies this exact definition (internal only). */
+  rowId: number;
   id: string;
   name: string;
   definition: CustomLiquorDefinition;
@@ -38,6 +40,7 @@ export interface StoredLiquorRecord {
 
 function toRecord(row: typeof storedLiquors.$inferSelect): StoredLiquorRecord {
   return {
+    rowId: row.id,
     id: row.liquorId,
     name: row.name,
     definition: CustomLiquorDefinitionSchema.parse(row.definition),
@@ -261,7 +264,7 @@ export const storedLiquorRoutes: V1RouteModule = {
       }
       buildCustomLiquor(input.definition, 'definition', id); // refuses a definition the engine cannot use
       const createdAt = deps.clock();
-      deps.db
+      const row = deps.db
         .insert(storedLiquors)
         .values({
           accountId,
@@ -270,11 +273,12 @@ export const storedLiquorRoutes: V1RouteModule = {
           definition: input.definition,
           createdAt,
         })
-        .run();
+        .returning()
+        .get();
       res
         .status(201)
         .location(`/v1/liquors/${id}`)
-        .json(view({ id, name: input.definition.name, definition: input.definition, createdAt }));
+        .json(view(toRecord(row)));
     });
 
     router.delete('/stored-liquors/:liquorId', requireOperation('liquors.stored.delete'), (req, res) => {
