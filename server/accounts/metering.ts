@@ -1,12 +1,22 @@
 /**
- * Metering: one usage_events row, the usage_daily upsert, the request_log row and the key's
- * last_used_at, all in ONE synchronous better-sqlite3 transaction.
+ * Metering: for each request one usage_events row, its share of the usage_daily roll-up, one
+ * request_log row and the key's last_used_at, committed in a synchronous better-sqlite3
+ * transaction before the response leaves.
  *
- * The HTTP layer calls {@link recordRequest} from its `res.end` hook, before the response bytes are
- * handed to the socket. better-sqlite3 is synchronous, so when `recordRequest` returns the
- * transaction is committed (WAL) and the request is billed before the client can see the answer:
- * a client never holds a result that was not metered.
+ * Group commit. The HTTP layer hands each finished request to a {@link MeteringWriter} and holds
+ * the response bytes back until the writer reports the commit. The writer gathers the requests
+ * finished in one turn of the event loop and commits them together in ONE transaction on the next
+ * `setImmediate` (i.e. after the poll phase has handled every socket that was ready), so the WAL
+ * pages of the tables and indexes are written once per group, not once per request, and the daily
+ * roll-up gets one upsert per (account, day, operation) in the group. The promise is unchanged: a
+ * response is written only after the transaction holding its row has committed, so a process
+ * killed at any moment has billed every request that got a response (plus, at most, those that
+ * were in flight). If the group's transaction fails, each record is retried alone, so one bad
+ * record cannot cost the others their response.
+ *
+ * {@link recordRequest} is the same write for one record, synchronously (seeding, tests).
  */
+import { setImmediate as nextTurn } from 'node:timers';
 import type { Sqlite } from '../db/client.js';
 import { utcDay } from './usage.js';
 
@@ -29,17 +39,19 @@ export interface RequestRecord {
 /** last_used_at is written at most once a minute per key, to keep the hot path cheap. */
 const LAST_USED_GRANULARITY_MS = 60_000;
 
-const statements = new WeakMap<Sqlite, (r: RequestRecord) => void>();
+type CommitRecords = (records: readonly RequestRecord[]) => void;
 
-function prepare(sqlite: Sqlite): (r: RequestRecord) => void {
+const committers = new WeakMap<Sqlite, CommitRecords>();
+
+function prepareCommit(sqlite: Sqlite): CommitRecords {
   const insertEvent = sqlite.prepare(
     `INSERT INTO usage_events (at, account_id, key_id, operation, status, units, latency_ms, request_id, engine_version)
      VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)`,
   );
   const upsertDaily = sqlite.prepare(
-    `INSERT INTO usage_daily (account_id, day, operation, requests, units, errors) VALUES (?, ?, ?, 1, ?, ?)
+    `INSERT INTO usage_daily (account_id, day, operation, requests, units, errors) VALUES (?, ?, ?, ?, ?, ?)
      ON CONFLICT (account_id, day, operation) DO UPDATE SET
-       requests = requests + 1, units = units + excluded.units, errors = errors + excluded.errors`,
+       requests = requests + excluded.requests, units = units + excluded.units, errors = errors + excluded.errors`,
   );
   const insertLog = sqlite.prepare(
     `INSERT INTO request_log (request_id, at, account_id, key_id, method, path, status, latency_ms,
@@ -48,44 +60,147 @@ function prepare(sqlite: Sqlite): (r: RequestRecord) => void {
   const touchKey = sqlite.prepare(
     'UPDATE api_keys SET last_used_at = ? WHERE id = ? AND (last_used_at IS NULL OR last_used_at < ?)',
   );
-  return sqlite.transaction((r: RequestRecord) => {
-    const at = r.at.getTime();
-    const isError = r.status >= 400 ? 1 : 0;
-    insertEvent.run(
-      at,
-      r.accountId,
-      r.keyId,
-      r.operation,
-      r.status,
-      r.units,
-      r.latencyMs,
-      r.requestId,
-      r.engineVersion,
-    );
-    upsertDaily.run(r.accountId, utcDay(r.at), r.operation, r.units, isError);
-    insertLog.run(
-      r.requestId,
-      at,
-      r.accountId,
-      r.keyId,
-      r.method,
-      r.path,
-      r.status,
-      r.latencyMs,
-      r.requestBody,
-      r.responseBody,
-      r.engineVersion,
-    );
-    touchKey.run(at, r.keyId, at - LAST_USED_GRANULARITY_MS);
+  return sqlite.transaction((records: readonly RequestRecord[]) => {
+    const daily = new Map<
+      string,
+      { accountId: number; day: string; operation: string; requests: number; units: number; errors: number }
+    >();
+    const lastUse = new Map<number, number>();
+    for (const r of records) {
+      const at = r.at.getTime();
+      const isError = r.status >= 400 ? 1 : 0;
+      insertEvent.run(
+        at,
+        r.accountId,
+        r.keyId,
+        r.operation,
+        r.status,
+        r.units,
+        r.latencyMs,
+        r.requestId,
+        r.engineVersion,
+      );
+      insertLog.run(
+        r.requestId,
+        at,
+        r.accountId,
+        r.keyId,
+        r.method,
+        r.path,
+        r.status,
+        r.latencyMs,
+        r.requestBody,
+        r.responseBody,
+        r.engineVersion,
+      );
+      const day = utcDay(r.at);
+      const rollKey = `${r.accountId}\u0000${day}\u0000${r.operation}`;
+      const roll = daily.get(rollKey);
+      if (roll) {
+        roll.requests += 1;
+        roll.units += r.units;
+        roll.errors += isError;
+      } else {
+        daily.set(rollKey, {
+          accountId: r.accountId,
+          day,
+          operation: r.operation,
+          requests: 1,
+          units: r.units,
+          errors: isError,
+        });
+      }
+      lastUse.set(r.keyId, Math.max(lastUse.get(r.keyId) ?? at, at));
+    }
+    for (const d of daily.values())
+      upsertDaily.run(d.accountId, d.day, d.operation, d.requests, d.units, d.errors);
+    for (const [keyId, at] of lastUse) touchKey.run(at, keyId, at - LAST_USED_GRANULARITY_MS);
   });
 }
 
-/** Writes the record durably (synchronous transaction). Throws if the database refuses. */
-export function recordRequest(sqlite: Sqlite, record: RequestRecord): void {
-  let run = statements.get(sqlite);
-  if (!run) {
-    run = prepare(sqlite);
-    statements.set(sqlite, run);
+function committerFor(sqlite: Sqlite): CommitRecords {
+  let commit = committers.get(sqlite);
+  if (!commit) {
+    commit = prepareCommit(sqlite);
+    committers.set(sqlite, commit);
   }
-  run(record);
+  return commit;
+}
+
+/** Writes one record durably (synchronous transaction). Throws if the database refuses. */
+export function recordRequest(sqlite: Sqlite, record: RequestRecord): void {
+  committerFor(sqlite)([record]);
+}
+
+/** Called once the record is committed (`error` undefined) or could not be written. */
+export type CommitCallback = (error?: unknown) => void;
+
+export interface MeteringWriter {
+  /** Queues a record for the next group commit; `done` runs after that commit (or its failure). */
+  submit(record: RequestRecord, done: CommitCallback): void;
+  /** Commits what is queued now, synchronously. */
+  flush(): void;
+  /** Records queued and not yet committed. */
+  readonly pending: number;
+}
+
+/** Runs a commit callback; one that throws must not keep the others' responses waiting. */
+function settle(cb: CommitCallback, error?: unknown): void {
+  try {
+    cb(error);
+  } catch (err) {
+    console.error('[metering] a commit callback failed:', err);
+  }
+}
+
+/** A group-commit writer on this connection (one per app). */
+export function meteringWriter(sqlite: Sqlite): MeteringWriter {
+  const commit = committerFor(sqlite);
+  let records: RequestRecord[] = [];
+  let callbacks: CommitCallback[] = [];
+  let scheduled = false;
+
+  const flush = (): void => {
+    scheduled = false;
+    if (records.length === 0) return;
+    const group = records;
+    const done = callbacks;
+    records = [];
+    callbacks = [];
+    let groupError: unknown;
+    try {
+      commit(group);
+    } catch (err) {
+      groupError = err;
+    }
+    if (groupError === undefined) {
+      for (const cb of done) settle(cb);
+      return;
+    }
+    // The group was rolled back as a whole: retry each record alone so only a bad one fails.
+    for (let i = 0; i < group.length; i++) {
+      let error: unknown;
+      try {
+        commit([group[i]!]);
+      } catch (err) {
+        error = err;
+      }
+      settle(done[i]!, error);
+    }
+  };
+
+  return {
+    submit(record, done) {
+      records.push(record);
+      callbacks.push(done);
+      if (!scheduled) {
+        scheduled = true;
+        nextTurn(flush);
+      }
+    },
+    flush,
+    get pending() {
+      return records.length;
+    },
+  };
 }
