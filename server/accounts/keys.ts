@@ -16,8 +16,9 @@
  * old key's expiry to the end of an overlap window; after it the old key gets 401 'expired'.
  */
 import crypto from 'node:crypto';
-import { desc, eq, sql } from 'drizzle-orm';
-import type { Db } from '../db/client.js';
+import { desc, eq } from 'drizzle-orm';
+import type { Statement } from 'better-sqlite3';
+import type { Db, Sqlite } from '../db/client.js';
 import { apiKeys } from '../db/schema.js';
 import { isScope, type Scope } from './operations.js';
 
@@ -174,41 +175,104 @@ export function rotateKey(
   });
 }
 
+/** What a request authenticated by a key may do, and its account's metering settings. */
+export interface AuthenticatedKey {
+  id: number;
+  accountId: number;
+  publicId: string;
+  scopes: Scope[];
+  rateLimitPerMinute: number;
+  account: { monthlyUnitQuota: number; retainRequestBodies: boolean };
+}
+
 export type AuthResult =
-  | { ok: true; key: ApiKeyView }
+  | { ok: true; key: AuthenticatedKey }
   | { ok: false; reason: 'malformed' | 'unknown' | 'revoked' | 'expired' | 'rotated' };
 
-function prepareLookup(db: Db) {
-  return db
-    .select()
-    .from(apiKeys)
-    .where(eq(apiKeys.keyHash, sql.placeholder('hash')))
-    .prepare();
+interface KeyLookupRow {
+  id: number;
+  accountId: number;
+  publicId: string;
+  keyHash: string;
+  scopes: string;
+  rateLimitPerMinute: number;
+  expiresAt: number | null;
+  revokedAt: number | null;
+  monthlyUnitQuota: number;
+  retainRequestBodies: number;
 }
-/** The by-hash lookup, built and prepared once per database (it runs on every request). */
-const lookups = new WeakMap<Db, ReturnType<typeof prepareLookup>>();
+
+/**
+ * The by-hash lookup (it runs on every request): one statement for the key and its account's
+ * metering settings, prepared once per connection. Raw SQL rather than Drizzle's builder, which
+ * maps every column of the row on each call. Whether an expired key has a rotation successor is
+ * asked only when it has expired.
+ */
+const lookups = new WeakMap<Sqlite, Statement<[string], KeyLookupRow>>();
+function lookupFor(sqlite: Sqlite): Statement<[string], KeyLookupRow> {
+  let stmt = lookups.get(sqlite);
+  if (!stmt) {
+    stmt = sqlite.prepare<[string], KeyLookupRow>(
+      `SELECT k.id, k.account_id AS accountId, k.public_id AS publicId, k.key_hash AS keyHash, k.scopes,
+         k.rate_limit_per_minute AS rateLimitPerMinute, k.expires_at AS expiresAt, k.revoked_at AS revokedAt,
+         a.monthly_unit_quota AS monthlyUnitQuota, a.retain_request_bodies AS retainRequestBodies
+       FROM api_keys k JOIN accounts a ON a.id = k.account_id WHERE k.key_hash = ?`,
+    );
+    lookups.set(sqlite, stmt);
+  }
+  return stmt;
+}
+
+/**
+ * HMACs of recently presented tokens. The HMAC is a pure function of (server secret, token), so a
+ * remembered one can never be stale; the key's state is still read from the database on every
+ * request, so revocation and expiry take effect at once. Bounded: cleared when full.
+ */
+const HASH_MEMO_LIMIT = 10_000;
+const hashMemos = new WeakMap<Buffer, Map<string, string>>();
+function memoHash(serverSecret: Buffer, token: string): string {
+  let memo = hashMemos.get(serverSecret);
+  if (!memo) {
+    memo = new Map();
+    hashMemos.set(serverSecret, memo);
+  }
+  let hash = memo.get(token);
+  if (hash === undefined) {
+    hash = hashKey(serverSecret, token);
+    if (memo.size >= HASH_MEMO_LIMIT) memo.clear();
+    memo.set(token, hash);
+  }
+  return hash;
+}
 
 /** Checks a presented token at time `now`. */
-export function authenticateToken(db: Db, serverSecret: Buffer, token: string, now: Date): AuthResult {
+export function authenticateToken(
+  sqlite: Sqlite,
+  serverSecret: Buffer,
+  token: string,
+  now: Date,
+): AuthResult {
   if (!TOKEN_PATTERN.test(token)) return { ok: false, reason: 'malformed' };
-  const computed = hashKey(serverSecret, token);
-  let lookup = lookups.get(db);
-  if (!lookup) {
-    lookup = prepareLookup(db);
-    lookups.set(db, lookup);
-  }
-  const row = lookup.get({ hash: computed });
+  const computed = memoHash(serverSecret, token);
+  const row = lookupFor(sqlite).get(computed);
   if (!row || !crypto.timingSafeEqual(Buffer.from(row.keyHash, 'hex'), Buffer.from(computed, 'hex'))) {
     return { ok: false, reason: 'unknown' };
   }
-  if (row.revokedAt && row.revokedAt <= now) return { ok: false, reason: 'revoked' };
-  if (row.expiresAt && row.expiresAt <= now) {
-    const successor = db
-      .select({ id: apiKeys.id })
-      .from(apiKeys)
-      .where(eq(apiKeys.rotatedFromId, row.id))
-      .get();
+  const at = now.getTime();
+  if (row.revokedAt !== null && row.revokedAt <= at) return { ok: false, reason: 'revoked' };
+  if (row.expiresAt !== null && row.expiresAt <= at) {
+    const successor = sqlite.prepare('SELECT 1 FROM api_keys WHERE rotated_from_id = ? LIMIT 1').get(row.id);
     return { ok: false, reason: successor ? 'rotated' : 'expired' };
   }
-  return { ok: true, key: view(row) };
+  return {
+    ok: true,
+    key: {
+      id: row.id,
+      accountId: row.accountId,
+      publicId: row.publicId,
+      scopes: (JSON.parse(row.scopes) as string[]).filter(isScope),
+      rateLimitPerMinute: row.rateLimitPerMinute,
+      account: { monthlyUnitQuota: row.monthlyUnitQuota, retainRequestBodies: row.retainRequestBodies === 1 },
+    },
+  };
 }

@@ -15,10 +15,17 @@
  * record cannot cost the others their response.
  *
  * {@link recordRequest} is the same write for one record, synchronously (seeding, tests).
+ *
+ * Month totals. Every charged request checks the account's quota against the units committed
+ * this month. This module is the only writer of usage_daily, so it keeps those totals per
+ * account in memory ({@link committedUnitsThisMonth}): read from usage_daily on first use in a
+ * month, then advanced by each commit, in the same synchronous step that commits the rows. (A
+ * second process writing usage_daily to the same file would need the query instead; one server
+ * process per database is the supported layout, see middleware/rate-limit.ts.)
  */
 import { setImmediate as nextTurn } from 'node:timers';
 import type { Sqlite } from '../db/client.js';
-import { utcDay } from './usage.js';
+import { unitsUsedThisMonth, utcDay } from './usage.js';
 
 export interface RequestRecord {
   at: Date;
@@ -43,6 +50,32 @@ type CommitRecords = (records: readonly RequestRecord[]) => void;
 
 const committers = new WeakMap<Sqlite, CommitRecords>();
 
+/** 'YYYY-MM' of a time, UTC. */
+const utcMonth = (at: Date) => `${at.getUTCFullYear()}-${String(at.getUTCMonth() + 1).padStart(2, '0')}`;
+
+/** Units committed per account in one calendar month (UTC), per connection. */
+type MonthTotals = Map<number, { month: string; units: number }>;
+const monthTotals = new WeakMap<Sqlite, MonthTotals>();
+function totalsFor(sqlite: Sqlite): MonthTotals {
+  let totals = monthTotals.get(sqlite);
+  if (!totals) {
+    totals = new Map();
+    monthTotals.set(sqlite, totals);
+  }
+  return totals;
+}
+
+/** Units the account has committed in the calendar month (UTC) containing `now`. */
+export function committedUnitsThisMonth(sqlite: Sqlite, accountId: number, now: Date): number {
+  const totals = totalsFor(sqlite);
+  const month = utcMonth(now);
+  const known = totals.get(accountId);
+  if (known?.month === month) return known.units;
+  const units = unitsUsedThisMonth(sqlite, accountId, now);
+  totals.set(accountId, { month, units });
+  return units;
+}
+
 function prepareCommit(sqlite: Sqlite): CommitRecords {
   const insertEvent = sqlite.prepare(
     `INSERT INTO usage_events (at, account_id, key_id, operation, status, units, latency_ms, request_id, engine_version)
@@ -60,7 +93,7 @@ function prepareCommit(sqlite: Sqlite): CommitRecords {
   const touchKey = sqlite.prepare(
     'UPDATE api_keys SET last_used_at = ? WHERE id = ? AND (last_used_at IS NULL OR last_used_at < ?)',
   );
-  return sqlite.transaction((records: readonly RequestRecord[]) => {
+  const write = sqlite.transaction((records: readonly RequestRecord[]) => {
     const daily = new Map<
       string,
       { accountId: number; day: string; operation: string; requests: number; units: number; errors: number }
@@ -116,6 +149,15 @@ function prepareCommit(sqlite: Sqlite): CommitRecords {
       upsertDaily.run(d.accountId, d.day, d.operation, d.requests, d.units, d.errors);
     for (const [keyId, at] of lastUse) touchKey.run(at, keyId, at - LAST_USED_GRANULARITY_MS);
   });
+  const totals = totalsFor(sqlite);
+  return (records) => {
+    write(records);
+    // Committed: advance the month totals already known (others are read on first use).
+    for (const r of records) {
+      const known = totals.get(r.accountId);
+      if (known?.month === utcMonth(r.at)) known.units += r.units;
+    }
+  };
 }
 
 function committerFor(sqlite: Sqlite): CommitRecords {

@@ -79,6 +79,10 @@ export function createApp(deps: AppDeps): express.Express {
   app.disable('x-powered-by');
   app.set('clock', deps.clock);
   app.set('query parser', 'simple');
+  // No ETag on JSON answers: calculation results are POST responses that no client revalidates,
+  // and hashing every body costs each request. (Console assets keep theirs: express.static sets
+  // its own ETag and Last-Modified.)
+  app.set('etag', false);
   app.use(requestId());
 
   app.get('/healthz', (_req, res) => {

@@ -40,7 +40,7 @@ describe('POST /console-api/keys', () => {
       rateLimitPerMinute: 120,
     });
     expect(secret.startsWith(res.body.key.prefix)).toBe(true);
-    const auth = authenticateToken(h.deps.db, h.deps.config.secret, secret, h.clock.now);
+    const auth = authenticateToken(h.deps.sqlite, h.deps.config.secret, secret, h.clock.now);
     expect(auth.ok).toBe(true);
     // The secret itself is not stored anywhere in the row (only its HMAC).
     const row = h.deps.db.select().from(apiKeys).where(eq(apiKeys.id, res.body.key.id)).get()!;
@@ -137,7 +137,7 @@ describe('POST /console-api/keys/:id/revoke', () => {
       .set('X-CSRF-Token', h.developer.csrf)
       .expect(200);
     expect(res.body.key.state).toBe('revoked');
-    expect(authenticateToken(h.deps.db, h.deps.config.secret, token, h.clock.now)).toEqual({
+    expect(authenticateToken(h.deps.sqlite, h.deps.config.secret, token, h.clock.now)).toEqual({
       ok: false,
       reason: 'revoked',
     });
@@ -198,12 +198,12 @@ describe('POST /console-api/keys/:id/rotate', () => {
       expiresAt: '2031-03-14T11:00:00.000Z',
     });
     const secret = res.body.secret as string;
-    expect(authenticateToken(h.deps.db, h.deps.config.secret, secret, h.clock.now).ok).toBe(true);
+    expect(authenticateToken(h.deps.sqlite, h.deps.config.secret, secret, h.clock.now).ok).toBe(true);
     expect(
-      authenticateToken(h.deps.db, h.deps.config.secret, token, new Date('2031-03-14T10:59:59Z')).ok,
+      authenticateToken(h.deps.sqlite, h.deps.config.secret, token, new Date('2031-03-14T10:59:59Z')).ok,
     ).toBe(true);
     expect(
-      authenticateToken(h.deps.db, h.deps.config.secret, token, new Date('2031-03-14T11:00:00Z')),
+      authenticateToken(h.deps.sqlite, h.deps.config.secret, token, new Date('2031-03-14T11:00:00Z')),
     ).toEqual({ ok: false, reason: 'rotated' });
   });
 

@@ -4,7 +4,13 @@
 // request a 500 (never an unbilled 2xx).
 import request from 'supertest';
 import { describe, expect, it } from 'vitest';
-import { meteringWriter, type RequestRecord } from '../../server/accounts/metering.js';
+import {
+  committedUnitsThisMonth,
+  meteringWriter,
+  recordRequest,
+  type RequestRecord,
+} from '../../server/accounts/metering.js';
+import { unitsUsedThisMonth } from '../../server/accounts/usage.js';
 import { makeHarness, usageRows } from './helpers.js';
 
 function record(
@@ -114,5 +120,32 @@ describe('metering group commit', () => {
     // The refused request's units left the in-flight set: the account is not blocked by them.
     const usage = await request(h.app).get('/v1/usage').set('Authorization', auth);
     expect(usage.status).toBe(200);
+  });
+
+  it('keeps the month total that quotas are checked against equal to the roll-up, across commits and months', async () => {
+    const h = makeHarness();
+    const writer = meteringWriter(h.sqlite);
+    const march = h.clock.now;
+    const april = new Date('2031-04-01T00:00:05Z');
+    const agree = (at: Date) => {
+      const cached = committedUnitsThisMonth(h.sqlite, h.accountId, at);
+      expect(cached).toBe(unitsUsedThisMonth(h.sqlite, h.accountId, at));
+      return cached;
+    };
+    expect(agree(march)).toBe(0);
+    writer.submit(record(h, 'm1', 7), () => {});
+    writer.submit(record(h, 'm2', 0, 500), () => {});
+    expect(agree(march)).toBe(0); // queued, not committed: the quota check counts it as in flight
+    writer.flush();
+    expect(agree(march)).toBe(7);
+    recordRequest(h.sqlite, record(h, 'm3', 4)); // the synchronous path keeps it too
+    expect(agree(march)).toBe(11);
+    // A record of the next month does not touch March's total; April starts from the roll-up.
+    recordRequest(h.sqlite, { ...record(h, 'a1', 5), at: april });
+    expect(agree(march)).toBe(11);
+    expect(agree(april)).toBe(5);
+    writer.submit({ ...record(h, 'a2', 6), at: april }, () => {});
+    writer.flush();
+    expect(agree(april)).toBe(11);
   });
 });

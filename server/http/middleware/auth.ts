@@ -38,7 +38,7 @@ export function authenticate(deps: AppDeps): RequestHandler {
     if (header === undefined || header.trim() === '') throw unauthorized('missing');
     const token = presentedToken(header);
     if (token === undefined) throw unauthorized('malformed');
-    const result = authenticateToken(deps.db, deps.config.secret, token, deps.clock());
+    const result = authenticateToken(deps.sqlite, deps.config.secret, token, deps.clock());
     if (!result.ok) throw unauthorized(result.reason);
     res.locals.auth = {
       accountId: result.key.accountId,
@@ -46,6 +46,8 @@ export function authenticate(deps: AppDeps): RequestHandler {
       publicId: result.key.publicId,
       scopes: result.key.scopes,
       rateLimitPerMinute: result.key.rateLimitPerMinute,
+      monthlyUnitQuota: result.key.account.monthlyUnitQuota,
+      retainRequestBodies: result.key.account.retainRequestBodies,
     };
     next();
   };

@@ -10,6 +10,9 @@ export interface AuthContext {
   publicId: string;
   scopes: Scope[];
   rateLimitPerMinute: number;
+  /** The account's monthly quota (units) and whether its request bodies are logged, read with the key. */
+  monthlyUnitQuota: number;
+  retainRequestBodies: boolean;
 }
 
 /** What the current request will be metered as; set by the metering middleware. */

@@ -20,9 +20,8 @@
  * in-flight requests, so concurrent requests cannot spend the same remaining units twice.
  */
 import type { RequestHandler, Response } from 'express';
-import { meteringWriter, type RequestRecord } from '../../accounts/metering.js';
+import { committedUnitsThisMonth, meteringWriter, type RequestRecord } from '../../accounts/metering.js';
 import { logBody } from '../../accounts/request-log.js';
-import { unitsUsedThisMonth } from '../../accounts/usage.js';
 import { scheduleQuotaCheck, thresholdsReached } from '../../billing/quota-notices.js';
 import type { AppDeps } from '../app.js';
 import { presentedToken } from './auth.js';
@@ -37,9 +36,6 @@ function chunkOf(args: unknown[]): Buffer | string | undefined {
 }
 
 export function metering(deps: AppDeps): RequestHandler {
-  const accountStmt = deps.sqlite.prepare(
-    'SELECT monthly_unit_quota AS quota, retain_request_bodies AS retain FROM accounts WHERE id = ?',
-  );
   // The meters of requests in flight, per account: their charged units count against the quota
   // of the account's other requests until they are committed (this process only; see rate-limit.ts).
   const inFlight = new Map<number, Set<MeterState>>();
@@ -47,17 +43,16 @@ export function metering(deps: AppDeps): RequestHandler {
   return (req, res, next) => {
     const auth = res.locals.auth;
     if (!auth) throw new Error('metering must run after authentication');
-    const account = accountStmt.get(auth.accountId) as { quota: number; retain: number } | undefined;
     const siblings = inFlight.get(auth.accountId) ?? new Set<MeterState>();
     inFlight.set(auth.accountId, siblings);
     const meter: MeterState = {
       operation: 'unmatched',
       units: 0,
-      quota: account?.quota ?? 0,
+      quota: auth.monthlyUnitQuota,
       usedByOthers: () => {
         let pending = 0;
         for (const other of siblings) if (other !== meter) pending += other.units;
-        return unitsUsedThisMonth(deps.sqlite, auth.accountId, deps.clock()) + pending;
+        return committedUnitsThisMonth(deps.sqlite, auth.accountId, deps.clock()) + pending;
       },
     };
     siblings.add(meter);
@@ -66,7 +61,7 @@ export function metering(deps: AppDeps): RequestHandler {
       if (siblings.size === 0 && inFlight.get(auth.accountId) === siblings) inFlight.delete(auth.accountId);
     };
     res.locals.meter = meter;
-    const retain = account?.retain === 1;
+    const retain = auth.retainRequestBodies;
     const token = presentedToken(req.get('authorization'));
     let recorded = false;
 
