@@ -5,6 +5,11 @@
  * rows the database holds for the measuring key beside the 2xx responses autocannon received.
  * Targets: throughput ratio real / bare ≥ 0.6; usage rows (2xx) = 2xx responses, exactly.
  *
+ * A third server runs the same single-effect route code with no key, metering or rate limit
+ * (bare-server.ts, BARE_MODE=calculation). It splits the gap: bare-calculation / bare is the
+ * ceiling any metered calculation route can reach here (the calculation's own cost), and
+ * metered / bare-calculation is what the metered layers cost.
+ *
  *   npx tsx tests/bench/api.ts
  *
  * Layout (2 cores): each server runs in its own child process (`tsx`), the load generator
@@ -81,7 +86,13 @@ export interface ApiBenchResult {
   responseBytes: number;
   metered: RunFigures;
   bare: RunFigures;
+  /** The same calculation without key, metering or rate limit. */
+  calculation: RunFigures;
   ratio: number;
+  /** bare-calculation / bare: the ratio a metered route could reach if metering cost nothing. */
+  calculationCeiling: number;
+  /** metered / bare-calculation: the share of throughput the metered layers leave. */
+  meteredVsCalculation: number;
   /** Bare CPU per request / metered CPU per request. */
   cpuRatio: number;
   /** Usage rows with a 2xx status for the duration-run key, and all its rows. */
@@ -302,28 +313,35 @@ export async function runApiBench(): Promise<ApiBenchResult> {
     const bodyFile = path.join(dir, 'single-effect-response.json');
     fs.writeFileSync(bodyFile, firstText);
 
-    const bare = await startChild([path.join(ROOT, 'tests/bench/bare-server.ts')], {
-      BARE_BODY_FILE: bodyFile,
-    });
-    children.push(bare);
-    const bareUrl = `http://127.0.0.1:${bare.port}/bare`;
-    const bareCheck = await fetch(bareUrl, {
-      method: 'POST',
-      headers: { 'content-type': 'application/json' },
-      body,
-    });
-    const bareBytes = Buffer.byteLength(await bareCheck.text());
-    if (bareCheck.status !== 200 || bareBytes !== responseBytes)
-      throw new Error(
-        `bare route answered ${bareCheck.status} with ${bareBytes} bytes, want 200 and ${responseBytes}`,
-      );
+    const startBare = async (mode: 'fixed' | 'calculation') => {
+      const child = await startChild([path.join(ROOT, 'tests/bench/bare-server.ts')], {
+        BARE_BODY_FILE: bodyFile,
+        BARE_MODE: mode,
+      });
+      children.push(child);
+      const url = `http://127.0.0.1:${child.port}/bare`;
+      const check = await fetch(url, {
+        method: 'POST',
+        headers: { 'content-type': 'application/json' },
+        body,
+      });
+      const text = await check.text();
+      if (check.status !== 200 || Buffer.byteLength(text) !== responseBytes)
+        throw new Error(
+          `bare ${mode} route answered ${check.status} with ${Buffer.byteLength(text)} bytes, want 200 and ${responseBytes}`,
+        );
+      return { child, url };
+    };
+    const { child: bare, url: bareUrl } = await startBare('fixed');
+    const { child: calc, url: calcUrl } = await startBare('calculation');
 
     console.log(
-      `server children: real app and bare Express 5 route, one process each; load generator in the parent; ` +
+      `server children: real app, bare Express 5 route and bare calculation route, one process each; load generator in the parent; ` +
         `${CONNECTIONS} connections; response body ${responseBytes} bytes; request body ${Buffer.byteLength(body)} bytes`,
     );
     await cannon(appUrl, { authorization: `Bearer ${warmKey.token}` }, body, { duration: WARMUP_S });
     await cannon(bareUrl, {}, body, { duration: WARMUP_S });
+    await cannon(calcUrl, {}, body, { duration: WARMUP_S });
 
     const measure = async (child: Child, run: () => Promise<autocannon.Result>) => {
       const cpu0 = await child.cpuMicros();
@@ -334,6 +352,7 @@ export async function runApiBench(): Promise<ApiBenchResult> {
       cannon(appUrl, { authorization: `Bearer ${runKey.token}` }, body, {}),
     );
     const bareFig = await measure(bare, () => cannon(bareUrl, {}, body, {}));
+    const calcFig = await measure(calc, () => cannon(calcUrl, {}, body, {}));
     const exactRun = await cannon(appUrl, { authorization: `Bearer ${exactKey.token}` }, body, {
       amount: EXACT_AMOUNT,
     });
@@ -350,7 +369,15 @@ export async function runApiBench(): Promise<ApiBenchResult> {
     console.log(`${DURATION_S} s each after a ${WARMUP_S} s warm-up:`);
     console.log(line('metered POST ' + PATH, metered));
     console.log(line('bare Express 5 POST /bare', bareFig));
+    console.log(line('same calculation, no key/metering', calcFig));
     console.log(`throughput ratio metered / bare: ${ratio.toFixed(2)} (target ≥ 0.6)`);
+    const calculationCeiling = calcFig.requestsPerSecond / bareFig.requestsPerSecond;
+    const meteredVsCalculation = metered.requestsPerSecond / calcFig.requestsPerSecond;
+    console.log(
+      `  of which: the calculation route alone / bare ${calculationCeiling.toFixed(2)} (the ceiling for any metered ` +
+        `calculation here: CPU per request ${fmt(calcFig.serverCpuMicrosPerRequest)} µs); ` +
+        `metered / same calculation unmetered ${meteredVsCalculation.toFixed(2)} (what keys, metering and rate limit leave)`,
+    );
     const cpuRatio = bareFig.serverCpuMicrosPerRequest / metered.serverCpuMicrosPerRequest;
     console.log(
       `server CPU per request: metered ${fmt(metered.serverCpuMicrosPerRequest)} µs, bare ${fmt(bareFig.serverCpuMicrosPerRequest)} µs; ` +
@@ -376,7 +403,18 @@ export async function runApiBench(): Promise<ApiBenchResult> {
     );
     if (metered.non2xx > 0 || exact.non2xx > 0)
       console.log('note: non-2xx responses seen (rate limit or quota?); the figures above include them');
-    return { responseBytes, metered, bare: bareFig, ratio, cpuRatio, durationRows, exact };
+    return {
+      responseBytes,
+      metered,
+      bare: bareFig,
+      calculation: calcFig,
+      ratio,
+      calculationCeiling,
+      meteredVsCalculation,
+      cpuRatio,
+      durationRows,
+      exact,
+    };
   } finally {
     for (const c of children) await stopChild(c);
     fs.rmSync(dir, { recursive: true, force: true });

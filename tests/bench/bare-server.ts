@@ -1,11 +1,17 @@
 /**
- * The baseline of the API benchmark (tests/bench/api.ts): a bare Express 5 app with one JSON
- * route, `POST /bare`, that parses the JSON request body as the real app does and answers with a
- * fixed JSON body (the single-effect response captured by the benchmark, so both send the same
- * number of bytes and serialise the same object). No authentication, metering, rate limit, DB or
- * calculation: the gap between the two is what Ebullio's own layers cost.
+ * The baselines of the API benchmark (tests/bench/api.ts), bare Express 5 apps with one JSON
+ * route, `POST /bare`, that parse the JSON request body as the real app does:
  *
- *   BARE_BODY_FILE=/tmp/body.json npx tsx tests/bench/bare-server.ts
+ * - `BARE_MODE=fixed` (default): answers with a fixed JSON body (the single-effect response
+ *   captured by the benchmark, so both send the same number of bytes and serialise the same
+ *   object). No authentication, metering, rate limit, DB or calculation: the gap between this and
+ *   the real app is what all of Ebullio's work costs, the calculation included.
+ * - `BARE_MODE=calculation`: runs the real single-effect route code (validation, units, engine,
+ *   output) on the body and sends its result the way the real route does, with no API key,
+ *   metering or rate limit. The gap between this and the real app is what the metered layers
+ *   cost; the gap between this and `fixed` is what the calculation itself costs.
+ *
+ *   BARE_BODY_FILE=/tmp/body.json [BARE_MODE=calculation] npx tsx tests/bench/bare-server.ts
  *
  * Listens on 127.0.0.1 (an ephemeral port) and prints one line `{"port": N}` on stdout; a line
  * `cpu` on stdin is answered with `{"cpu": {"user": µs, "system": µs}}` (process.cpuUsage()).
@@ -13,6 +19,9 @@
 import fs from 'node:fs';
 import type { AddressInfo } from 'node:net';
 import express from 'express';
+import { openDatabase, runMigrations } from '../../server/db/client.js';
+import { runSingleEffect } from '../../server/http/v1/evaporators.js';
+import { sendCalculation } from '../../server/http/validation.js';
 
 const file = process.env.BARE_BODY_FILE;
 if (!file) {
@@ -24,9 +33,20 @@ const responseBody = JSON.parse(fs.readFileSync(file, 'utf8')) as unknown;
 const app = express();
 app.disable('x-powered-by');
 app.use(express.json({ limit: 1024 * 1024 }));
-app.post('/bare', (_req, res) => {
-  res.json(responseBody);
-});
+app.set('etag', false); // as the real app (server/http/app.ts)
+if (process.env.BARE_MODE === 'calculation') {
+  // A built-in liquor needs no stored rows; the in-memory database only satisfies the signature.
+  const { db } = openDatabase(':memory:');
+  runMigrations(db);
+  const engineVersion = (responseBody as { provenance: { engineVersion: string } }).provenance.engineVersion;
+  app.post('/bare', (req, res) => {
+    sendCalculation(res, runSingleEffect(req.body, db, 0, engineVersion));
+  });
+} else {
+  app.post('/bare', (_req, res) => {
+    res.json(responseBody);
+  });
+}
 
 const server = app.listen(0, '127.0.0.1', (err?: Error) => {
   if (err) {
