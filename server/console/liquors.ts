@@ -8,10 +8,9 @@
  * model refuses (beyond its hard limits) is left out and counted in `omittedPoints`; a point it
  * answers with a "model-extrapolated" warning is kept and flagged `extrapolated`. No NaN is sent.
  */
-import multer from 'multer';
 import type { RequestHandler } from 'express';
 import { and, eq } from 'drizzle-orm';
-import { MAX_UPLOAD_BYTES, StoredLiquorCreateSchema } from '../../shared/contracts/liquors.js';
+import { StoredLiquorCreateSchema } from '../../shared/contracts/liquors.js';
 import { AccountIdParamsSchema } from '../../shared/console/accounts.js';
 import {
   LiquorChartParamsSchema,
@@ -36,6 +35,7 @@ import { buildCustomLiquor, summarise } from '../http/v1/liquors.js';
 import { duhringFromCsv, findStoredLiquor } from '../http/v1/stored-liquors.js';
 import { r, validate } from '../http/validation.js';
 import { formatOutput } from '../units/index.js';
+import { singleCsvUpload } from '../http/upload.js';
 import { requireAccount } from './accounts.js';
 import { recordAudit } from './audit.js';
 import { consoleRoute, type ConsoleRouteModule } from './route.js';
@@ -174,32 +174,15 @@ function storedItems(deps: AppDeps, accountId: number | undefined): ConsoleLiquo
   });
 }
 
-const upload = multer({
-  storage: multer.memoryStorage(),
-  limits: { fileSize: MAX_UPLOAD_BYTES, files: 1, fields: 10, fieldSize: 4096 },
-});
-
 /** multipart/form-data only (415 otherwise); multer's errors as problems (413 for size). */
+const readUpload = singleCsvUpload({ fieldSize: 4096 });
 const multipartUpload: RequestHandler = (req, res, next) => {
   if (!req.is('multipart/form-data')) {
     return next(
       problem('unsupported-media-type', 'Upload the Dühring table as multipart/form-data with a CSV "file".'),
     );
   }
-  upload.single('file')(req, res, (err: unknown) => {
-    if (!err) return next();
-    if (err instanceof multer.MulterError) {
-      if (err.code === 'LIMIT_FILE_SIZE') {
-        return next(problem('payload-too-large', `The uploaded file exceeds ${MAX_UPLOAD_BYTES} bytes.`));
-      }
-      return next(
-        problem('validation-failed', err.message, {
-          errors: [{ field: err.field ?? 'file', message: err.message }],
-        }),
-      );
-    }
-    next(problem('bad-request', `The multipart body could not be read: ${(err as Error).message}`));
-  });
+  readUpload(req, res).then(() => next(), next);
 };
 
 function heatCapacityCoefficients(text: string): number[] {

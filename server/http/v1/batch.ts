@@ -6,12 +6,9 @@
  * cannot cover them). `Accept: text/csv` returns one line per case with dotted column names.
  */
 import { parse as parseCsv } from 'csv-parse/sync';
-import type { Request } from 'express';
-import multer from 'multer';
 import {
   BatchRequestSchema,
   MAX_BATCH_ROWS,
-  MAX_UPLOAD_BYTES,
   type BatchOperation,
   type BatchResponse,
   type LiquorRef,
@@ -20,6 +17,7 @@ import { operations, type OperationId } from '../../accounts/operations.js';
 import type { AppDeps } from '../app.js';
 import { chargeUnits, requireOperation } from '../middleware/operation.js';
 import { toCsv } from '../csv.js';
+import { singleCsvUpload } from '../upload.js';
 import { problem, problemTypeUri, ProblemError } from '../problem.js';
 import { findNonFinite, toProblem, validate } from '../validation.js';
 import { multipleEffectUnits, runMultipleEffect, runSingleEffect } from './evaporators.js';
@@ -144,22 +142,8 @@ function runCase(
   }
 }
 
-const upload = multer({
-  storage: multer.memoryStorage(),
-  limits: { fileSize: MAX_UPLOAD_BYTES, files: 1, fields: 10 },
-});
-
-function readUpload(req: Request, res: Parameters<ReturnType<typeof upload.single>>[1]): Promise<void> {
-  return new Promise((resolve, reject) => {
-    upload.single('file')(req, res, (err: unknown) => {
-      if (!err) return resolve();
-      if (err instanceof multer.MulterError && err.code === 'LIMIT_FILE_SIZE') {
-        return reject(problem('payload-too-large', `The uploaded file exceeds ${MAX_UPLOAD_BYTES} bytes.`));
-      }
-      reject(problem('bad-request', `The multipart body could not be read: ${(err as Error).message}`));
-    });
-  });
-}
+// Text fields can hold an inline liquor definition, so they keep multer's 1 MB default.
+const readUpload = singleCsvUpload();
 
 export const batchRoutes: V1RouteModule = {
   register(router, deps) {

@@ -9,12 +9,10 @@
 import { parse as parseCsv } from 'csv-parse/sync';
 import { and, asc, eq } from 'drizzle-orm';
 import type { RequestHandler } from 'express';
-import multer from 'multer';
 import {
   CustomLiquorDefinitionSchema,
   LiquorIdParamsSchema,
   MAX_DUHRING_ROWS,
-  MAX_UPLOAD_BYTES,
   StoredLiquorCreateSchema,
   type CustomLiquorDefinition,
   type StoredLiquor,
@@ -28,6 +26,7 @@ import { problem, type ProblemFieldError } from '../problem.js';
 import { validate } from '../validation.js';
 import { buildCustomLiquor } from './liquors.js';
 import type { V1RouteModule } from './index.js';
+import { multipartOnly } from '../upload.js';
 
 export interface StoredLiquorRecord {
   /** Database row id: never reused, so it identifies this exact definition (internal only). */
@@ -179,33 +178,6 @@ export function duhringFromCsv(
   };
 }
 
-const upload = multer({
-  storage: multer.memoryStorage(),
-  limits: { fileSize: MAX_UPLOAD_BYTES, files: 1, fields: 10, fieldSize: 4096 },
-});
-
-/** multer for multipart requests only, its errors as problems (413 for size). */
-function multipartOnly(): RequestHandler {
-  const single = upload.single('file');
-  return (req, res, next) => {
-    if (!req.is('multipart/form-data')) return next();
-    single(req, res, (err: unknown) => {
-      if (!err) return next();
-      if (err instanceof multer.MulterError) {
-        if (err.code === 'LIMIT_FILE_SIZE') {
-          return next(problem('payload-too-large', `The uploaded file exceeds ${MAX_UPLOAD_BYTES} bytes.`));
-        }
-        return next(
-          problem('validation-failed', err.message, {
-            errors: [{ field: err.field ?? 'file', message: err.message }],
-          }),
-        );
-      }
-      next(problem('bad-request', `The multipart body could not be read: ${(err as Error).message}`));
-    });
-  };
-}
-
 function coefficients(text: unknown, field: string): number[] {
   const parts = typeof text === 'string' ? text.split(/[,;\s]+/).filter(Boolean) : [];
   const values = parts.map(Number);
@@ -246,40 +218,45 @@ export const storedLiquorRoutes: V1RouteModule = {
       res.json({ liquors: listStoredLiquors(deps.db, res.locals.auth!.accountId).map(view) });
     });
 
-    router.post('/stored-liquors', requireOperation('liquors.stored.create'), multipartOnly(), (req, res) => {
-      const accountId = res.locals.auth!.accountId;
-      const input = createInput(req);
-      const id = input.id ?? slugify(input.definition.name);
-      if (!/^[a-z0-9]+(?:-[a-z0-9]+)*$/.test(id)) {
-        throw problem('validation-failed', 'The name gives no usable id; give an id.', {
-          errors: [{ field: 'id', message: 'is required when the name has no letters or digits' }],
-        });
-      }
-      if (findBuiltInLiquor(id) || findStoredLiquor(deps.db, accountId, id)) {
-        throw problem(
-          'conflict',
-          `A liquor with the id "${id}" exists already; choose another id or delete the stored one first.`,
-          { errors: [{ field: 'id', message: 'is taken', value: id }] },
-        );
-      }
-      buildCustomLiquor(input.definition, 'definition', id); // refuses a definition the engine cannot use
-      const createdAt = deps.clock();
-      const row = deps.db
-        .insert(storedLiquors)
-        .values({
-          accountId,
-          liquorId: id,
-          name: input.definition.name,
-          definition: input.definition,
-          createdAt,
-        })
-        .returning()
-        .get();
-      res
-        .status(201)
-        .location(`/v1/liquors/${id}`)
-        .json(view(toRecord(row)));
-    });
+    router.post(
+      '/stored-liquors',
+      requireOperation('liquors.stored.create'),
+      multipartOnly({ fieldSize: 4096 }),
+      (req, res) => {
+        const accountId = res.locals.auth!.accountId;
+        const input = createInput(req);
+        const id = input.id ?? slugify(input.definition.name);
+        if (!/^[a-z0-9]+(?:-[a-z0-9]+)*$/.test(id)) {
+          throw problem('validation-failed', 'The name gives no usable id; give an id.', {
+            errors: [{ field: 'id', message: 'is required when the name has no letters or digits' }],
+          });
+        }
+        if (findBuiltInLiquor(id) || findStoredLiquor(deps.db, accountId, id)) {
+          throw problem(
+            'conflict',
+            `A liquor with the id "${id}" exists already; choose another id or delete the stored one first.`,
+            { errors: [{ field: 'id', message: 'is taken', value: id }] },
+          );
+        }
+        buildCustomLiquor(input.definition, 'definition', id); // refuses a definition the engine cannot use
+        const createdAt = deps.clock();
+        const row = deps.db
+          .insert(storedLiquors)
+          .values({
+            accountId,
+            liquorId: id,
+            name: input.definition.name,
+            definition: input.definition,
+            createdAt,
+          })
+          .returning()
+          .get();
+        res
+          .status(201)
+          .location(`/v1/liquors/${id}`)
+          .json(view(toRecord(row)));
+      },
+    );
 
     router.delete('/stored-liquors/:liquorId', requireOperation('liquors.stored.delete'), (req, res) => {
       const { liquorId } = validate(LiquorIdParamsSchema, req.params);

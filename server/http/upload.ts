@@ -1,0 +1,56 @@
+/**
+ * Multipart uploads of one CSV file in the field "file" (multer, memory storage), shared by
+ * /v1/batch, /v1/stored-liquors and the console's liquor library, so the three answer alike:
+ *
+ * - the file over MAX_UPLOAD_BYTES → 413 'payload-too-large';
+ * - any other limit multer enforces (a file in another field, a second file, too many or too long
+ *   text fields) → 422 'validation-failed' naming the field;
+ * - a body that is not readable multipart → 400 'bad-request'.
+ */
+import type { Request, RequestHandler, Response } from 'express';
+import multer from 'multer';
+import { MAX_UPLOAD_BYTES } from '../../shared/contracts/liquors.js';
+import { problem, type ProblemError } from './problem.js';
+
+export interface UploadOptions {
+  /** Largest text field, bytes (multer's default is 1 MB). */
+  fieldSize?: number;
+}
+
+function uploadProblem(err: unknown): ProblemError {
+  if (err instanceof multer.MulterError) {
+    if (err.code === 'LIMIT_FILE_SIZE') {
+      return problem('payload-too-large', `The uploaded file exceeds ${MAX_UPLOAD_BYTES} bytes.`);
+    }
+    return problem('validation-failed', err.message, {
+      errors: [{ field: err.field ?? 'file', message: err.message }],
+    });
+  }
+  return problem('bad-request', `The multipart body could not be read: ${(err as Error).message}`);
+}
+
+/** Reads the multipart body into req.file and req.body; rejects with a problem. */
+export function singleCsvUpload(options: UploadOptions = {}): (req: Request, res: Response) => Promise<void> {
+  const single = multer({
+    storage: multer.memoryStorage(),
+    limits: {
+      fileSize: MAX_UPLOAD_BYTES,
+      files: 1,
+      fields: 10,
+      ...(options.fieldSize !== undefined ? { fieldSize: options.fieldSize } : {}),
+    },
+  }).single('file');
+  return (req, res) =>
+    new Promise((resolve, reject) => {
+      single(req, res, (err: unknown) => (err ? reject(uploadProblem(err)) : resolve()));
+    });
+}
+
+/** Middleware form: reads multipart requests, passes the others on untouched. */
+export function multipartOnly(options: UploadOptions = {}): RequestHandler {
+  const read = singleCsvUpload(options);
+  return (req, res, next) => {
+    if (!req.is('multipart/form-data')) return next();
+    read(req, res).then(() => next(), next);
+  };
+}
