@@ -229,11 +229,15 @@ async function main(): Promise<void> {
       clearTimeout(force);
       clearInterval(reaper);
       // Development services after the last request: a finalize in flight may still call the fake.
-      void Promise.allSettled([payments?.close(), mail?.close()]).then(() => {
-        sqlite.close();
-        console.log('[shutdown] done');
-        process.exit(0);
-      });
+      // Then one more turn of the event loop: the row of a request its client abandoned is still
+      // queued for the metering group commit, which runs on the next turn.
+      void Promise.allSettled([payments?.close(), mail?.close()])
+        .then(() => new Promise((resolve) => setImmediate(resolve)))
+        .then(() => {
+          sqlite.close();
+          console.log('[shutdown] done');
+          process.exit(0);
+        });
     });
     server.closeIdleConnections();
   };
