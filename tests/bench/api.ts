@@ -18,7 +18,10 @@
  * in WAL mode (opened and migrated by the child exactly as server/main.ts does).
  *
  * Runs, all with CONNECTIONS connections: a warm-up of each server (WARMUP_S s, a separate key);
- * the measured runs (DURATION_S s each, same request body); then an exact metering check of
+ * the measured runs, interleaved in ROUNDS rounds of ROUND_S s per server (metered, bare,
+ * calculation, metered, …) so that a change in the machine's speed during the run (a shared
+ * 2-core VM drifts by tens of per cent over minutes) weighs on the three alike, each server's
+ * figures summed over its rounds; then an exact metering check of
  * EXACT_AMOUNT requests on a third key. A duration-bounded run stops by destroying its sockets,
  * so requests still in flight at that moment reach the server (and are metered) without
  * autocannon counting their responses; for that run the report gives rows = 2xx + abandoned. The
@@ -49,7 +52,8 @@ const TSX = path.join(ROOT, 'node_modules/.bin/tsx');
 const SELF = fileURLToPath(import.meta.url);
 const CONNECTIONS = 10;
 const WARMUP_S = 3;
-const DURATION_S = 10;
+const ROUNDS = 4;
+const ROUND_S = 4;
 const EXACT_AMOUNT = 3000;
 /** The largest per-key limit keys.ts accepts; the runs stay below it (checked after each run). */
 const RATE_LIMIT_PER_MINUTE = 100_000;
@@ -226,20 +230,29 @@ function cannon(
     headers: { 'content-type': 'application/json', ...headers },
     body,
     connections: CONNECTIONS,
-    ...(bound.amount !== undefined ? { amount: bound.amount } : { duration: bound.duration ?? DURATION_S }),
+    ...(bound.amount !== undefined ? { amount: bound.amount } : { duration: bound.duration ?? ROUND_S }),
   });
 }
 
-function figures(r: autocannon.Result, cpuMicros: number): RunFigures {
+/** One server's figures over its rounds: totals summed; p50 and p99 the median of the rounds'. */
+function figures(rounds: readonly { result: autocannon.Result; cpuMicros: number }[]): RunFigures {
+  const sum = (f: (r: autocannon.Result) => number) => rounds.reduce((t, x) => t + f(x.result), 0);
+  const median = (values: number[]) => {
+    const s = [...values].sort((a, b) => a - b);
+    const mid = Math.floor(s.length / 2);
+    return s.length % 2 ? s[mid]! : (s[mid - 1]! + s[mid]!) / 2;
+  };
+  const answered = sum((r) => r['2xx'] + r.non2xx);
+  const seconds = sum((r) => r.duration);
   return {
-    serverCpuMicrosPerRequest: cpuMicros / Math.max(1, r['2xx'] + r.non2xx),
-    requestsPerSecond: r.requests.average,
-    p50Ms: r.latency.p50,
-    p99Ms: r.latency.p99,
-    ok2xx: r['2xx'],
-    non2xx: r.non2xx,
-    errors: r.errors,
-    abandoned: Math.max(0, r.requests.sent - r.requests.total),
+    serverCpuMicrosPerRequest: rounds.reduce((t, x) => t + x.cpuMicros, 0) / Math.max(1, answered),
+    requestsPerSecond: answered / seconds,
+    p50Ms: median(rounds.map((x) => x.result.latency.p50)),
+    p99Ms: median(rounds.map((x) => x.result.latency.p99)),
+    ok2xx: sum((r) => r['2xx']),
+    non2xx: sum((r) => r.non2xx),
+    errors: sum((r) => r.errors),
+    abandoned: sum((r) => Math.max(0, r.requests.sent - r.requests.total)),
   };
 }
 
@@ -346,13 +359,23 @@ export async function runApiBench(): Promise<ApiBenchResult> {
     const measure = async (child: Child, run: () => Promise<autocannon.Result>) => {
       const cpu0 = await child.cpuMicros();
       const result = await run();
-      return figures(result, (await child.cpuMicros()) - cpu0);
+      return { result, cpuMicros: (await child.cpuMicros()) - cpu0 };
     };
-    const metered = await measure(app, () =>
-      cannon(appUrl, { authorization: `Bearer ${runKey.token}` }, body, {}),
-    );
-    const bareFig = await measure(bare, () => cannon(bareUrl, {}, body, {}));
-    const calcFig = await measure(calc, () => cannon(calcUrl, {}, body, {}));
+    const rounds = {
+      metered: [] as Awaited<ReturnType<typeof measure>>[],
+      bare: [] as Awaited<ReturnType<typeof measure>>[],
+      calc: [] as Awaited<ReturnType<typeof measure>>[],
+    };
+    for (let round = 0; round < ROUNDS; round++) {
+      rounds.metered.push(
+        await measure(app, () => cannon(appUrl, { authorization: `Bearer ${runKey.token}` }, body, {})),
+      );
+      rounds.bare.push(await measure(bare, () => cannon(bareUrl, {}, body, {})));
+      rounds.calc.push(await measure(calc, () => cannon(calcUrl, {}, body, {})));
+    }
+    const metered = figures(rounds.metered);
+    const bareFig = figures(rounds.bare);
+    const calcFig = figures(rounds.calc);
     const exactRun = await cannon(appUrl, { authorization: `Bearer ${exactKey.token}` }, body, {
       amount: EXACT_AMOUNT,
     });
@@ -366,7 +389,9 @@ export async function runApiBench(): Promise<ApiBenchResult> {
     const line = (label: string, f: RunFigures) =>
       `${label.padEnd(34)} ${fmt(f.requestsPerSecond).padStart(8)} req/s   p50 ${fmt(f.p50Ms, 1).padStart(5)} ms   ` +
       `p99 ${fmt(f.p99Ms, 1).padStart(5)} ms   2xx ${f.ok2xx}, non-2xx ${f.non2xx}, errors ${f.errors}`;
-    console.log(`${DURATION_S} s each after a ${WARMUP_S} s warm-up:`);
+    console.log(
+      `${ROUNDS} interleaved rounds of ${ROUND_S} s per server after a ${WARMUP_S} s warm-up (p50/p99: median of the rounds):`,
+    );
     console.log(line('metered POST ' + PATH, metered));
     console.log(line('bare Express 5 POST /bare', bareFig));
     console.log(line('same calculation, no key/metering', calcFig));
@@ -387,7 +412,7 @@ export async function runApiBench(): Promise<ApiBenchResult> {
     console.log(
       `duration run: usage rows 2xx ${durationRows.ok2xx} (all rows ${durationRows.all}) vs 2xx received ${metered.ok2xx}; ` +
         `requests abandoned in flight when autocannon stopped: ${metered.abandoned} ` +
-        `(rows − 2xx = ${durationRows.ok2xx - metered.ok2xx}, allowed 0…${metered.abandoned})`,
+        `over the ${ROUNDS} rounds (rows − 2xx = ${durationRows.ok2xx - metered.ok2xx}, allowed 0…${metered.abandoned})`,
     );
     const exact = {
       ok2xx: exactRun['2xx'],
