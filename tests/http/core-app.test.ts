@@ -90,6 +90,30 @@ describe('request bodies', () => {
     expect(res.body.type).toBe('/problems/unsupported-media-type');
   });
 
+  // RFC 9110 §8.3.1: media type names are case-insensitive and may carry parameters; RFC 6839 §3.1:
+  // a "+json" structured-syntax suffix is JSON.
+  it.each([
+    ['Application/JSON', '{"a":1}', { a: 1 }],
+    ['application/json; charset=utf-8', '{"a":2}', { a: 2 }],
+    ['application/vnd.ebullio.case+json', '{"a":3}', { a: 3 }],
+    ['text/csv; charset=utf-8', 'x,y\n1,2\n', 'x,y\n1,2\n'],
+  ])('reads a body sent as %s', async (type, body, echo) => {
+    const h = makeHarness();
+    const res = await request(h.app)
+      .post('/v1/__test/charge')
+      .set('Authorization', `Bearer ${h.token}`)
+      .set('Content-Type', type)
+      .send(body);
+    expect(res.status).toBe(200);
+    expect(res.body.echo).toEqual(echo);
+  });
+
+  it('asks no media type of a POST without a body', async () => {
+    const h = makeHarness();
+    const res = await request(h.app).post('/v1/__test/charge').set('Authorization', `Bearer ${h.token}`);
+    expect(res.status).toBe(200);
+  });
+
   it('accepts a JSON body and passes it to the route', async () => {
     const h = makeHarness();
     const res = await request(h.app)

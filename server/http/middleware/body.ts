@@ -1,6 +1,7 @@
 /**
- * Request-body handling for /v1: a media-type guard (415), JSON and CSV parsers with the size
- * limit (413), and translation of the parsers' errors into problems (400 'malformed-json', 413, 415).
+ * Request-body handling for /v1: one step that checks the media type (415) and runs the JSON or
+ * CSV parser with the size limit (413), and translation of the parsers' errors into problems
+ * (400 'malformed-json', 413, 415).
  *
  * Accepted media types for POST/PUT/PATCH bodies: application/json (and +json), text/csv (parsed
  * to a string in req.body), multipart/form-data (left unparsed for a route's own multer).
@@ -9,7 +10,6 @@ import express, { type ErrorRequestHandler, type RequestHandler } from 'express'
 import { problem, ProblemError } from '../problem.js';
 
 const BODY_METHODS = new Set(['POST', 'PUT', 'PATCH']);
-const ACCEPTED = ['application/json', 'application/*+json', 'text/csv', 'multipart/form-data'];
 
 function hasBody(headers: Record<string, string | string[] | undefined>): boolean {
   if (headers['transfer-encoding'] !== undefined) return true;
@@ -17,11 +17,31 @@ function hasBody(headers: Record<string, string | string[] | undefined>): boolea
   return length !== undefined && length !== '0';
 }
 
-/** 415 for a body whose media type is not one the API accepts. */
-export function mediaTypeGuard(): RequestHandler {
-  return (req, _res, next) => {
-    if (!BODY_METHODS.has(req.method) || !hasBody(req.headers)) return next();
-    if (!req.get('content-type') || req.is(ACCEPTED) === false) {
+/** What the API does with a body, by the essence of its media type (RFC 9110 §8.3.1); else undefined. */
+function mediaKind(header: string | undefined): 'json' | 'csv' | 'multipart' | undefined {
+  if (header === undefined) return undefined;
+  const semicolon = header.indexOf(';');
+  const essence = (semicolon === -1 ? header : header.slice(0, semicolon)).trim().toLowerCase();
+  if (essence === 'application/json' || /^application\/[a-z0-9!#$&^_.-]+\+json$/.test(essence)) return 'json';
+  if (essence === 'text/csv') return 'csv';
+  if (essence === 'multipart/form-data') return 'multipart';
+  return undefined;
+}
+
+/**
+ * One body step for /v1: the media type is read once and the body handed to the parser for it
+ * (JSON, or CSV as a string), with the size limit (413); multipart is left to the route; any
+ * other media type on a POST/PUT/PATCH with a body is a 415. The parsers are told not to check
+ * the type again.
+ */
+export function bodyReader(limitBytes: number): RequestHandler {
+  const json = express.json({ limit: limitBytes, type: () => true });
+  const csv = express.text({ limit: limitBytes, type: () => true });
+  return (req, res, next) => {
+    const kind = mediaKind(req.headers['content-type']);
+    if (kind === 'json') return json(req, res, next);
+    if (kind === 'csv') return csv(req, res, next);
+    if (kind === undefined && BODY_METHODS.has(req.method) && hasBody(req.headers)) {
       throw problem(
         'unsupported-media-type',
         `Content-Type "${req.get('content-type') ?? '(none)'}" is not accepted; send application/json.`,
@@ -29,13 +49,6 @@ export function mediaTypeGuard(): RequestHandler {
     }
     next();
   };
-}
-
-export function bodyParsers(limitBytes: number): RequestHandler[] {
-  return [
-    express.json({ limit: limitBytes, type: ['application/json', 'application/*+json'] }),
-    express.text({ limit: limitBytes, type: 'text/csv' }),
-  ];
 }
 
 interface BodyParserError extends Error {

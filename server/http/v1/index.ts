@@ -2,8 +2,8 @@
  * The /v1 calculation API router.
  *
  * Order: API-key authentication (401) → metering (every authenticated request is recorded, see
- * middleware/metering.ts) → per-key rate limit (429 'rate-limited') → media-type guard (415) →
- * JSON / CSV body parsers (413, 400) → the route modules in {@link v1RouteModules}.
+ * middleware/metering.ts) → per-key rate limit (429 'rate-limited') → body reader (media type
+ * 415, JSON / CSV parsing 413, 400) → the route modules in {@link v1RouteModules}.
  *
  * A route module registers its routes on the router and guards each with
  * `requireOperation('<operation id>')` from middleware/operation.ts (scope check, metering and
@@ -12,7 +12,7 @@
 import express from 'express';
 import type { AppDeps } from '../app.js';
 import { authenticate } from '../middleware/auth.js';
-import { bodyParsers, mediaTypeGuard } from '../middleware/body.js';
+import { bodyReader } from '../middleware/body.js';
 import { metering } from '../middleware/metering.js';
 import { perKeyRateLimit } from '../middleware/rate-limit.js';
 import { usageRoutes } from './usage.js';
@@ -41,8 +41,7 @@ export function createV1Router(deps: AppDeps): express.Router {
   router.use(authenticate(deps));
   router.use(metering(deps));
   router.use(perKeyRateLimit());
-  router.use(mediaTypeGuard());
-  router.use(...bodyParsers(deps.config.bodyLimitBytes));
+  router.use(bodyReader(deps.config.bodyLimitBytes));
   for (const module of v1RouteModules) module.register(router, deps);
   return router;
 }
