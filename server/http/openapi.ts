@@ -33,6 +33,7 @@ import {
   SteamStateRequestSchema,
   SteamStateResponseSchema,
   StoredLiquorCreateSchema,
+  StoredLiquorIdParamsSchema,
   StoredLiquorListSchema,
   StoredLiquorSchema,
   StoredLiquorUploadSchema,
@@ -46,11 +47,14 @@ export const API_VERSION = '1.0.0';
 const rateLimitHeaders = {
   RateLimit: {
     description:
-      'Remaining quota of the current window (IETF draft-ietf-httpapi-ratelimit-headers-08), e.g. `"default";r=58;t=42`',
+      'Requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-08), ' +
+      'e.g. `"per-key";r=58;t=42`',
     schema: { type: 'string' as const },
   },
   'RateLimit-Policy': {
-    description: 'The rate-limit policy (draft-08), e.g. `"default";q=60;w=60`',
+    description:
+      'The key’s rate-limit policy (draft-08): requests per window, window in seconds and a partition key, ' +
+      'e.g. `"per-key";q=60;w=60;pk=:ZjhmZjAxODdlNWIw:`',
     schema: { type: 'string' as const },
   },
 };
@@ -73,13 +77,52 @@ const commonProblems = {
   429: problem('Rate limit or monthly quota exceeded (type rate-limited or quota-exceeded); see Retry-After'),
 };
 
-function ok(description: string, schema: z.ZodType, extra: Record<string, { schema: z.ZodType }> = {}) {
+function ok(
+  description: string,
+  schema: z.ZodType,
+  extra: Record<string, { schema: z.ZodType }> = {},
+  example?: unknown,
+) {
   return {
     description,
     headers: rateLimitHeaders,
-    content: { 'application/json': { schema }, ...extra },
+    content: { 'application/json': { schema, ...(example === undefined ? {} : { example }) }, ...extra },
   };
 }
+
+/**
+ * Worked answers for the operations that take no input, for the invented North Mill account (a
+ * test checks each against its schema and its sums).
+ */
+export const responseExamples = {
+  listStoredLiquors: {
+    liquors: [
+      {
+        id: 'north-mill-spent-wash',
+        name: 'North Mill spent wash (invented)',
+        kind: 'stored',
+        definition: (StoredLiquorCreateSchema.meta() as { example: { definition: unknown } }).example
+          .definition,
+        createdAt: '2026-11-30T08:15:00.000Z',
+      },
+    ],
+  },
+  getUsage: {
+    month: '2026-12',
+    quota: { limit: 50_000, used: 1_218, remaining: 48_782, resetsAt: '2027-01-01T00:00:00.000Z' },
+    totals: { requests: 412, units: 1_218, errors: 9 },
+    byOperation: [
+      { operation: 'evaporators.multiple-effect', requests: 41, units: 800, errors: 1 },
+      { operation: 'evaporators.single-effect', requests: 80, units: 395, errors: 1 },
+      { operation: 'steam.saturation', requests: 23, units: 23, errors: 0 },
+      { operation: 'usage.read', requests: 268, units: 0, errors: 7 },
+    ],
+    byDay: [
+      { day: '2026-12-01', requests: 230, units: 690, errors: 5 },
+      { day: '2026-12-02', requests: 182, units: 528, errors: 4 },
+    ],
+  },
+} as const;
 
 function jsonBody(schema: z.ZodType, example: unknown, summary: string) {
   return {
@@ -196,7 +239,10 @@ export function buildRegistry(): OpenAPIRegistry {
     tags: ['Liquors'],
     summary: 'The liquors stored by this account, with their definitions',
     security,
-    responses: { 200: ok('Stored liquors', StoredLiquorListSchema), ...commonProblems },
+    responses: {
+      200: ok('Stored liquors', StoredLiquorListSchema, {}, responseExamples.listStoredLiquors),
+      ...commonProblems,
+    },
   });
 
   registry.registerPath({
@@ -221,7 +267,7 @@ export function buildRegistry(): OpenAPIRegistry {
     tags: ['Liquors'],
     summary: 'Delete a stored liquor (built-in models cannot be deleted)',
     security,
-    request: { params: LiquorIdParamsSchema },
+    request: { params: StoredLiquorIdParamsSchema },
     responses: {
       204: { description: 'Deleted', headers: rateLimitHeaders },
       404: problem('No stored liquor with this id'),
@@ -362,7 +408,10 @@ export function buildRegistry(): OpenAPIRegistry {
       'Totals, by operation and by day for the current calendar month (UTC), and the quota: limit, used, remaining and when it resets. ' +
       'Requests answered with a status of 400 or more are counted but charge no units.',
     security,
-    responses: { 200: ok('Usage this month', UsageResponseSchema), ...commonProblems },
+    responses: {
+      200: ok('Usage this month', UsageResponseSchema, {}, responseExamples.getUsage),
+      ...commonProblems,
+    },
   });
 
   return registry;

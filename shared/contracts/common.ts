@@ -111,7 +111,11 @@ export const MAX_QUANTITY_STRING = 64;
  * against the same range. A failed range check carries `params.validRange` for the problem's
  * `errors` list.
  */
-export function quantity(spec: QuantitySpec, description: string, example: number | string) {
+/**
+ * A quantity input. `example` is what the documentation pre-fills; leave it undefined for a field
+ * that is an alternative to another one (pre-filling both would send a request that is refused).
+ */
+export function quantity(spec: QuantitySpec, description: string, example: number | string | undefined) {
   const unit = defaultUnits[spec.kind];
   const schema = z
     .union([z.number(), z.string().trim().min(1).max(MAX_QUANTITY_STRING)])
@@ -128,7 +132,7 @@ export function quantity(spec: QuantitySpec, description: string, example: numbe
       description:
         `${description}. A number in ${unit.label}, or a string with a unit ` +
         `(e.g. ${unit.examples.map((e) => `"${e}"`).join(', ')}). Range: ${describeRange(spec)}.`,
-      example,
+      ...(example === undefined ? {} : { example }),
       'x-unit': unit.symbol,
       'x-quantity-kind': spec.kind,
     });

@@ -40,10 +40,10 @@ export const LiquorSummarySchema = z
 export type LiquorSummary = z.infer<typeof LiquorSummarySchema>;
 
 export const LiquorListQuerySchema = z.object({
-  kind: z
-    .enum(['all', 'built-in', 'stored'])
-    .default('all')
-    .meta({ description: 'Which liquors to list: built-in models, this account’s stored liquors, or both' }),
+  kind: z.enum(['all', 'built-in', 'stored']).default('all').meta({
+    description: 'Which liquors to list: built-in models, this account’s stored liquors, or both',
+    example: 'built-in',
+  }),
 });
 
 export const LiquorListSchema = z
@@ -55,6 +55,14 @@ export const LiquorIdParamsSchema = z.object({
   liquorId: IdSchema.meta({
     description: 'Built-in liquor id or the id of a liquor stored by this account',
     example: 'sodium-hydroxide',
+  }),
+});
+
+/** The same path parameter where only a stored liquor will do (deleting one). */
+export const StoredLiquorIdParamsSchema = z.object({
+  liquorId: IdSchema.meta({
+    description: 'The id of a liquor stored by this account',
+    example: 'north-mill-spent-wash',
   }),
 });
 

@@ -5,7 +5,12 @@ import { out, ProvenanceSchema, quantity, specs } from './common.js';
 export const SaturationQuerySchema = z
   .object({
     pressure: quantity(specs.pressure, 'Saturation pressure', '1.4 bar').optional(),
-    temperature: quantity(specs.temperature, 'Saturation temperature', 120).optional(),
+    // No pre-filled example: the documented request gives the pressure only (exactly one of the two).
+    temperature: quantity(
+      specs.temperature,
+      'Saturation temperature (instead of pressure, e.g. 120)',
+      undefined,
+    ).optional(),
   })
   .superRefine((q, ctx) => {
     const given = (q.pressure !== undefined ? 1 : 0) + (q.temperature !== undefined ? 1 : 0);

@@ -11,7 +11,7 @@ import { and, asc, eq } from 'drizzle-orm';
 import type { RequestHandler } from 'express';
 import {
   CustomLiquorDefinitionSchema,
-  LiquorIdParamsSchema,
+  StoredLiquorIdParamsSchema,
   MAX_DUHRING_ROWS,
   StoredLiquorCreateSchema,
   type CustomLiquorDefinition,
@@ -259,7 +259,7 @@ export const storedLiquorRoutes: V1RouteModule = {
     );
 
     router.delete('/stored-liquors/:liquorId', requireOperation('liquors.stored.delete'), (req, res) => {
-      const { liquorId } = validate(LiquorIdParamsSchema, req.params);
+      const { liquorId } = validate(StoredLiquorIdParamsSchema, req.params);
       const result = deps.db
         .delete(storedLiquors)
         .where(
