@@ -1,6 +1,8 @@
 // Builds the console for the browser tests and the bundle benchmark: once when console/dist is
 // missing, and again whenever a console or shared source is newer than the build, so a local run
-// never tests a stale build (CI always starts without one).
+// never tests a stale build (CI always starts without one). Test files run in parallel workers and
+// each asks for the build: a lock directory lets one build while the others wait and then find the
+// build fresh. (Two builds at once would empty console/dist under a server that is serving it.)
 import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
@@ -18,14 +20,50 @@ function newestMtime(entry: string): number {
   return newest;
 }
 
+const LOCK = path.join(ROOT, 'console', '.build-lock');
+const BUILD_TIMEOUT_MS = 180_000;
+
+function isStale(): boolean {
+  const built = fs.statSync(DIST_INDEX, { throwIfNoEntry: false })?.mtimeMs;
+  return built === undefined || Math.max(...SOURCES.map((s) => newestMtime(path.join(ROOT, s)))) > built;
+}
+
+/** Holds the build lock while `fn` runs (mkdir is atomic); a lock older than a build is taken over. */
+function withBuildLock<T>(fn: () => T): T {
+  const deadline = Date.now() + 2 * BUILD_TIMEOUT_MS;
+  for (;;) {
+    try {
+      fs.mkdirSync(LOCK);
+      break;
+    } catch (err) {
+      if ((err as NodeJS.ErrnoException).code !== 'EEXIST') throw err;
+      const since = fs.statSync(LOCK, { throwIfNoEntry: false })?.mtimeMs;
+      if (since !== undefined && Date.now() - since > BUILD_TIMEOUT_MS)
+        fs.rmSync(LOCK, { recursive: true, force: true });
+      if (Date.now() > deadline) throw new Error(`waited too long for the console build lock ${LOCK}`);
+      Atomics.wait(new Int32Array(new SharedArrayBuffer(4)), 0, 0, 250);
+    }
+  }
+  try {
+    return fn();
+  } finally {
+    fs.rmSync(LOCK, { recursive: true, force: true });
+  }
+}
+
 /** Runs `npm run build` when the build is missing, older than its sources, or `force` is set. */
 export function ensureConsoleBuilt(options: { force?: boolean } = {}): { built: boolean; present: boolean } {
   if (!fs.existsSync(path.join(ROOT, 'console', 'vite.config.ts'))) return { built: false, present: false };
-  const built = fs.statSync(DIST_INDEX, { throwIfNoEntry: false })?.mtimeMs;
-  const stale =
-    built === undefined || Math.max(...SOURCES.map((s) => newestMtime(path.join(ROOT, s)))) > built;
-  if (!stale && !options.force) return { built: false, present: true };
-  const out = spawnSync('npm', ['run', 'build'], { cwd: ROOT, encoding: 'utf8', timeout: 180_000 });
-  if (out.status !== 0) throw new Error(`console build failed:\n${out.stdout}\n${out.stderr}`);
-  return { built: true, present: fs.existsSync(DIST_INDEX) };
+  if (!isStale() && !options.force) return { built: false, present: true };
+  return withBuildLock(() => {
+    // Another worker may have built it while this one waited.
+    if (!isStale() && !options.force) return { built: false, present: true };
+    const out = spawnSync('npm', ['run', 'build'], {
+      cwd: ROOT,
+      encoding: 'utf8',
+      timeout: BUILD_TIMEOUT_MS,
+    });
+    if (out.status !== 0) throw new Error(`console build failed:\n${out.stdout}\n${out.stderr}`);
+    return { built: true, present: fs.existsSync(DIST_INDEX) };
+  });
 }
