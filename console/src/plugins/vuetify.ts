@@ -5,7 +5,8 @@
  */
 import 'vuetify/styles';
 import { createVuetify, type ThemeDefinition } from 'vuetify';
-import { aliases, mdi } from 'vuetify/iconsets/mdi';
+import { aliases } from 'vuetify/iconsets/mdi-svg';
+import { ebullioIcons } from './icons.js';
 
 export const ebullioLight: ThemeDefinition = {
   dark: false,
@@ -61,7 +62,7 @@ export function createEbullioVuetify() {
       defaultTheme: initialTheme(),
       themes: { ebullioLight, ebullioDark },
     },
-    icons: { defaultSet: 'mdi', aliases, sets: { mdi } },
+    icons: { defaultSet: 'ebullio', aliases, sets: { ebullio: ebullioIcons } },
     defaults: {
       VCard: { rounded: 'lg' },
       VBtn: { rounded: 'lg' },
