@@ -33,18 +33,30 @@ export const SCREENSHOT_DIR = path.join(ROOT, 'test-results', 'screenshots');
 export const ADMIN_EMAIL = 'e2e-admin@ebullio.invalid';
 export const ADMIN_PASSWORD = 'e2e admin passphrase 4711';
 
-/** A free TCP port on 127.0.0.1 (the kernel picks it; we release it just before the server binds). */
-export async function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const srv = net.createServer();
-    srv.unref();
-    srv.on('error', reject);
-    srv.listen(0, '127.0.0.1', () => {
-      const address = srv.address();
-      const port = typeof address === 'object' && address ? address.port : 0;
-      srv.close(() => resolve(port));
-    });
+/**
+ * `count` distinct free TCP ports on 127.0.0.1. The kernel picks each; all are held open until the
+ * last is picked and then released together, because a port released at once can be handed out
+ * again by the next pick (the HTTP and SMTP ports of one server once came out equal).
+ */
+export async function freePorts(count: number): Promise<number[]> {
+  const servers = await Promise.all(
+    Array.from(
+      { length: count },
+      () =>
+        new Promise<net.Server>((resolve, reject) => {
+          const srv = net.createServer();
+          srv.unref();
+          srv.on('error', reject);
+          srv.listen(0, '127.0.0.1', () => resolve(srv));
+        }),
+    ),
+  );
+  const ports = servers.map((srv) => {
+    const address = srv.address();
+    return typeof address === 'object' && address ? address.port : 0;
   });
+  await Promise.all(servers.map((srv) => new Promise<void>((resolve) => srv.close(() => resolve()))));
+  return ports;
 }
 
 export { ensureConsoleBuilt };
@@ -85,7 +97,7 @@ export async function waitFor200(url: string, timeoutMs: number, isDead: () => s
 export async function startServer(extraEnv: Record<string, string> = {}): Promise<RunningServer> {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'ebullio-e2e-'));
   const dbFile = path.join(dir, 'e2e.db');
-  const [port, smtpPort, paymentsPort] = [await freePort(), await freePort(), await freePort()];
+  const [port, smtpPort, paymentsPort] = (await freePorts(3)) as [number, number, number];
   // BOOTSTRAP_API_KEY: 32–256 chars of [A-Za-z0-9_.-] (server/config.ts).
   const apiKey = `ebl_live_E2eBootstrap_${crypto.randomBytes(18).toString('base64url')}`;
   const env: Record<string, string> = {
