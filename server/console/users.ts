@@ -9,6 +9,7 @@ import { IdParamsSchema, type UserSummary } from '../../shared/console/common.js
 import {
   InvitationCreatedSchema,
   InvitationCreateSchema,
+  InvitationSummarySchema,
   UserListSchema,
   UserPatchSchema,
   type InvitationSummary,
@@ -173,6 +174,39 @@ export const usersRouteModule: ConsoleRouteModule = {
           detail: { email, role: body.role, accountIds: body.accountIds, mailStatus: mail.status },
         });
         return { invitation: invitationSummary(row, user.email), mailStatus: mail.status };
+      },
+    });
+
+    consoleRoute(router, {
+      method: 'post',
+      path: '/users/invitations/:id/withdraw',
+      roles: ['admin'],
+      summary: 'Withdraw a pending invitation: its link stops working at once',
+      request: { params: IdParamsSchema },
+      response: InvitationSummarySchema,
+      handler: ({ deps, req, res, params }) => {
+        const now = deps.clock();
+        const row = deps.db
+          .select()
+          .from(userTokens)
+          .where(and(eq(userTokens.id, params.id), eq(userTokens.purpose, 'invitation')))
+          .get();
+        if (!row || row.usedAt !== null || row.expiresAt <= now) {
+          throw problem('not-found', `No pending invitation with id ${params.id}.`);
+        }
+        // A used token is what the accept step refuses, so marking it used ends the link.
+        deps.db.update(userTokens).set({ usedAt: now }).where(eq(userTokens.id, row.id)).run();
+        const invitedBy = row.createdByUserId
+          ? (deps.db.select({ email: users.email }).from(users).where(eq(users.id, row.createdByUserId)).get()
+              ?.email ?? null)
+          : null;
+        recordAudit(deps, req, res, {
+          action: 'user.invitation.withdraw',
+          targetType: 'invitation',
+          targetId: row.id,
+          detail: { email: row.email, role: row.role },
+        });
+        return invitationSummary(row, invitedBy);
       },
     });
 

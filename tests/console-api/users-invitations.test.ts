@@ -101,6 +101,45 @@ describe('invitations', () => {
     expect((await request(h.app).get(`/console-api/auth/invitations/${token}`)).status).toBe(404);
   });
 
+  it('withdraws a pending invitation: its link stops working, it leaves the list, and it is audited', async () => {
+    const h = makeConsoleHarness();
+    const a = await admin(h);
+    const inv = await a.send('post', '/users/invitations', {
+      email: 'changed-mind@ebullio.invalid',
+      role: 'developer',
+      accountIds: [],
+    });
+    const token = tokenFrom((await waitForMail(h, 'changed-mind@ebullio.invalid')).text, 'accept-invitation');
+    expect((await request(h.app).get(`/console-api/auth/invitations/${token}`)).status).toBe(200);
+
+    const withdrawn = await a.send('post', `/users/invitations/${inv.body.invitation.id}/withdraw`, {});
+    expect(withdrawn.status).toBe(200);
+    expect(withdrawn.body).toMatchObject({
+      id: inv.body.invitation.id,
+      email: 'changed-mind@ebullio.invalid',
+    });
+    // The link is dead at once, for reading and for accepting.
+    expect((await request(h.app).get(`/console-api/auth/invitations/${token}`)).status).toBe(404);
+    const jar = new Jar();
+    const t = await csrf(h, jar);
+    const accept = await request(h.app)
+      .post('/console-api/auth/invitations/accept')
+      .set('Cookie', jar.header())
+      .set('X-CSRF-Token', t)
+      .send({ token, name: 'Too Late', password: 'a long new password' });
+    expect(accept.status).toBe(422);
+    expect((await a.get('/users')).body.invitations).toEqual([]);
+    const audit = h.sqlite
+      .prepare("SELECT target_id AS targetId FROM audit_log WHERE action = 'user.invitation.withdraw'")
+      .all() as { targetId: string }[];
+    expect(audit).toEqual([{ targetId: String(inv.body.invitation.id) }]);
+    // Withdrawing twice, or something that is not a pending invitation, is a 404.
+    expect((await a.send('post', `/users/invitations/${inv.body.invitation.id}/withdraw`, {})).status).toBe(
+      404,
+    );
+    expect((await a.send('post', '/users/invitations/99999/withdraw', {})).status).toBe(404);
+  });
+
   it('refuses to invite an existing user or into an account that does not exist', async () => {
     const h = makeConsoleHarness();
     const a = await admin(h);
