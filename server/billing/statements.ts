@@ -60,6 +60,21 @@ function toStatement(row: StatementRow, accountName: string, plan: PlanRow | und
   };
 }
 
+/** A draft's figures from its units and plan, with the prices used (kept on the statement). */
+function statementValues(units: number, plan: PlanRow) {
+  const figures = computeStatement(units, plan);
+  return {
+    planName: plan.name,
+    units: figures.units,
+    includedUnits: figures.includedUnits,
+    overageUnits: figures.overageUnits,
+    amountMinor: figures.amountMinor,
+    currency: figures.currency,
+    monthlyFeeMinor: plan.monthlyFeeMinor,
+    pricePer1000UnitsMinor: plan.pricePer1000UnitsMinor,
+  };
+}
+
 /** Creates or refreshes the statements of `month` for every account. */
 export function generateStatements(
   db: Db,
@@ -99,15 +114,7 @@ export function generateStatements(
         });
         continue;
       }
-      const figures = computeStatement(units.get(account.id) ?? 0, plan);
-      const values = {
-        planName: plan.name,
-        units: figures.units,
-        includedUnits: figures.includedUnits,
-        overageUnits: figures.overageUnits,
-        amountMinor: figures.amountMinor,
-        currency: figures.currency,
-      };
+      const values = statementValues(units.get(account.id) ?? 0, plan);
       let row: StatementRow;
       if (existing) {
         row = tx.update(statements).set(values).where(eq(statements.id, existing.id)).returning().get();
@@ -159,17 +166,9 @@ export function refreshDraft(db: Db, sqlite: Sqlite, id: number): StatementRow |
   const plan = account ? getPlan(db, account.plan) : undefined;
   if (!plan) return row;
   const units = unitsByAccount(sqlite, row.month).get(row.accountId) ?? 0;
-  const figures = computeStatement(units, plan);
   return db
     .update(statements)
-    .set({
-      planName: plan.name,
-      units: figures.units,
-      includedUnits: figures.includedUnits,
-      overageUnits: figures.overageUnits,
-      amountMinor: figures.amountMinor,
-      currency: figures.currency,
-    })
+    .set(statementValues(units, plan))
     .where(and(eq(statements.id, id), eq(statements.status, 'draft')))
     .returning()
     .get();
@@ -180,9 +179,11 @@ export function getStatementRow(db: Db, id: number): StatementRow | undefined {
 }
 
 /**
- * The statement with its line items. The prices come from the plan; if the plan has gone or its
- * prices no longer reproduce the stored amount, the line items are rebuilt from the stored figures
- * alone (fee = amount − overage) so they always sum to `amountMinor`.
+ * The statement with its line items, from the prices kept on the statement when it was made, so
+ * a repriced or removed plan does not change a finalized statement. A statement made before the
+ * prices were kept takes them from its plan; if the plan has gone or its prices no longer
+ * reproduce the stored amount, the stored total is shown as one line so the lines always sum to
+ * `amountMinor`.
  */
 export function statementDetail(db: Db, id: number): StatementDetail | undefined {
   const found = db
@@ -197,18 +198,28 @@ export function statementDetail(db: Db, id: number): StatementDetail | undefined
   let lineItems: LineItem[];
   let monthlyFeeMinor: number;
   let pricePer1000UnitsMinor: number;
-  const recomputed = plan
-    ? computeStatement(row.units, { ...plan, includedUnits: row.includedUnits })
-    : undefined;
+  const prices =
+    row.monthlyFeeMinor !== null && row.pricePer1000UnitsMinor !== null
+      ? {
+          displayName: plan?.displayName ?? row.planName,
+          includedUnits: row.includedUnits,
+          monthlyFeeMinor: row.monthlyFeeMinor,
+          pricePer1000UnitsMinor: row.pricePer1000UnitsMinor,
+          currency: row.currency,
+        }
+      : plan
+        ? { ...plan, includedUnits: row.includedUnits }
+        : undefined;
+  const recomputed = prices ? computeStatement(row.units, prices) : undefined;
   if (
-    plan &&
+    prices &&
     recomputed &&
     recomputed.amountMinor === row.amountMinor &&
     recomputed.currency === row.currency
   ) {
     lineItems = recomputed.lineItems;
-    monthlyFeeMinor = plan.monthlyFeeMinor;
-    pricePer1000UnitsMinor = plan.pricePer1000UnitsMinor;
+    monthlyFeeMinor = prices.monthlyFeeMinor;
+    pricePer1000UnitsMinor = prices.pricePer1000UnitsMinor;
   } else {
     // Plan gone or repriced since: keep the stored total, show it as one fee line.
     monthlyFeeMinor = row.amountMinor;

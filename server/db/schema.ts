@@ -280,6 +280,12 @@ export const statements = sqliteTable(
     overageUnits: integer('overage_units').notNull(),
     amountMinor: integer('amount_minor').notNull(),
     currency: text('currency').notNull(),
+    /**
+     * The plan's prices the amount was computed with, kept so a finalized statement shows the
+     * same line items after the plan is repriced (null on statements made before they were kept).
+     */
+    monthlyFeeMinor: integer('monthly_fee_minor'),
+    pricePer1000UnitsMinor: integer('price_per_1000_units_minor'),
     status: text('status', { enum: ['draft', 'finalized', 'paid', 'void'] })
       .notNull()
       .default('draft'),

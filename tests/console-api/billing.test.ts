@@ -287,6 +287,46 @@ describe('finalize through the payment provider', () => {
     expect(h.fake.state.invoices.size).toBe(1);
   });
 
+  it('keeps a finalized statement’s line items when its plan is repriced later', async () => {
+    const list = await h.billing.agent
+      .get(`/console-api/statements?month=2031-03&accountId=${h.alphaId}`)
+      .expect(200);
+    const id = (list.body.items[0] as StatementBody).id;
+    const reprice = h.deps.sqlite.prepare(
+      'UPDATE plans SET monthly_fee_minor = ?, price_per_1000_units_minor = ? WHERE name = ?',
+    );
+    reprice.run(9_900, 250, 'professional'); // an operator raises the prices in April
+    try {
+      const detail = (await h.billing.agent.get(`/console-api/statements/${id}`).expect(200))
+        .body as StatementBody;
+      // Still March's prices: €49.00 fee and 12 blocks at €1.00 (hand-computed above).
+      expect(detail.amountMinor).toBe(6_100);
+      expect(detail.lineItems).toEqual([
+        expect.objectContaining({ code: 'monthly-fee', unitAmountMinor: 4_900, amountMinor: 4_900 }),
+        expect.objectContaining({ code: 'overage', quantity: 12, unitAmountMinor: 100, amountMinor: 1_200 }),
+      ]);
+      // A statement made before prices were kept falls back to the plan; repriced, it shows the
+      // stored total as one line rather than line items that would not add up.
+      h.deps.sqlite
+        .prepare(
+          'UPDATE statements SET monthly_fee_minor = NULL, price_per_1000_units_minor = NULL WHERE id = ?',
+        )
+        .run(id);
+      const legacy = (await h.billing.agent.get(`/console-api/statements/${id}`).expect(200))
+        .body as StatementBody;
+      expect(legacy.lineItems).toEqual([
+        expect.objectContaining({ code: 'monthly-fee', quantity: 1, amountMinor: 6_100 }),
+      ]);
+    } finally {
+      reprice.run(4_900, 100, 'professional');
+      h.deps.sqlite
+        .prepare(
+          'UPDATE statements SET monthly_fee_minor = 4900, price_per_1000_units_minor = 100 WHERE id = ?',
+        )
+        .run(id);
+    }
+  });
+
   it('lets an admin finalize; a statement with nothing due comes back paid from the provider', async () => {
     const zero = createAccount(h.deps.db, {
       name: 'Invented Quiet Works',
