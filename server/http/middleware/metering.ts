@@ -62,7 +62,8 @@ export function metering(deps: AppDeps): RequestHandler {
     };
     res.locals.meter = meter;
     const retain = auth.retainRequestBodies;
-    const token = presentedToken(req.get('authorization'));
+    // The presented key is needed only to redact it from logged bodies.
+    const token = retain ? presentedToken(req.get('authorization')) : undefined;
     let recorded = false;
 
     const recordOf = (status: number, responseChunk: Buffer | string | undefined): RequestRecord => {
