@@ -227,7 +227,9 @@ export async function openBrowser(origin: string): Promise<BrowserSession> {
   });
   const page = context.pages()[0] ?? (await context.newPage());
   // Fail a missing element in 10 s rather than Playwright's 30 s, so one broken step reports quickly.
-  page.setDefaultTimeout(10_000);
+  // Generous: on the 2-core CI machine the browser shares the cores with the server under test
+  // and another test worker, and a sign-in once took longer than 10 s.
+  page.setDefaultTimeout(30_000);
   page.on('pageerror', (err) => pageErrors.push(err.message));
   page.on('console', (msg) => {
     if (msg.type() === 'error' && !msg.text().startsWith('Failed to load resource'))

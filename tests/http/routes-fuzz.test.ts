@@ -1,14 +1,26 @@
 // Fuzz: random and adversarial bodies per route → never a 5xx, and never NaN/Infinity (or the
 // null JSON makes of them) in a 2xx body. Property-based with fast-check: a thousand random bodies
 // per route and a thousand adversarial JSON shapes per POST route (about 14 000 requests).
+import http from 'node:http';
+import type { AddressInfo } from 'node:net';
 import fc from 'fast-check';
 import request from 'supertest';
-import { beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeHarness, type Harness } from './helpers.js';
 
 let h: Harness;
-beforeAll(() => {
+// One listening server for all requests: supertest given the bare app would start and stop a
+// server for each of the 14 000, which made this file the heaviest CPU load beside the browser tests.
+let server: http.Server;
+let origin: string;
+beforeAll(async () => {
   h = makeHarness({ quota: 10_000_000, rateLimit: 100_000 });
+  server = http.createServer(h.app);
+  await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve));
+  origin = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
+});
+afterAll(async () => {
+  await new Promise<void>((resolve) => server.close(() => resolve()));
 });
 
 const weirdNumber = fc.oneof(
@@ -56,7 +68,7 @@ function hasNonFiniteOrNull(v: unknown, key = '', parent = ''): boolean {
 }
 
 async function check(method: 'get' | 'post', path: string, payload: unknown): Promise<void> {
-  const req = request(h.app)[method](path).set('Authorization', `Bearer ${h.token}`);
+  const req = request(origin)[method](path).set('Authorization', `Bearer ${h.token}`);
   const res =
     method === 'get' ? await req.query(payload as Record<string, string>) : await req.send(payload as object);
   expect(res.status, JSON.stringify(payload)).toBeLessThan(500);
