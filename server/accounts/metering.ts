@@ -25,7 +25,7 @@
  */
 import { setImmediate as nextTurn } from 'node:timers';
 import type { Sqlite } from '../db/client.js';
-import { unitsUsedThisMonth, utcDay } from './usage.js';
+import { unitsUsedThisMonth, utcDay, utcMonth } from './usage.js';
 
 export interface RequestRecord {
   at: Date;
@@ -49,9 +49,6 @@ const LAST_USED_GRANULARITY_MS = 60_000;
 type CommitRecords = (records: readonly RequestRecord[]) => void;
 
 const committers = new WeakMap<Sqlite, CommitRecords>();
-
-/** 'YYYY-MM' of a time, UTC. */
-const utcMonth = (at: Date) => `${at.getUTCFullYear()}-${String(at.getUTCMonth() + 1).padStart(2, '0')}`;
 
 /** Units committed per account in one calendar month (UTC), per connection. */
 type MonthTotals = Map<number, { month: string; units: number }>;

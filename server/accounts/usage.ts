@@ -10,6 +10,11 @@ export function utcDay(at: Date): string {
   return at.toISOString().slice(0, 10);
 }
 
+/** 'YYYY-MM' of a time, UTC. */
+export function utcMonth(at: Date): string {
+  return at.toISOString().slice(0, 7);
+}
+
 export function monthStartUtc(at: Date): Date {
   return new Date(Date.UTC(at.getUTCFullYear(), at.getUTCMonth(), 1));
 }
@@ -67,7 +72,7 @@ export function monthUsage(sqlite: Sqlite, accountId: number, now: Date): MonthU
     { requests: 0, units: 0, errors: 0 },
   );
   return {
-    month: from.slice(0, 7),
+    month: utcMonth(now),
     quota: {
       limit: account.quota,
       used: totals.units,

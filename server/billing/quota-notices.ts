@@ -13,11 +13,10 @@
  */
 import { and, eq, inArray } from 'drizzle-orm';
 import { getAccount } from '../accounts/accounts.js';
-import { nextMonthStartUtc, unitsUsedThisMonth } from '../accounts/usage.js';
+import { nextMonthStartUtc, unitsUsedThisMonth, utcMonth } from '../accounts/usage.js';
 import { quotaNotices } from '../db/schema.js';
 import type { AppDeps } from '../http/app.js';
 import { sendMail } from '../mail/send.js';
-import { utcMonth } from './statement.js';
 
 export const QUOTA_THRESHOLDS = [80, 100] as const;
 export type QuotaThreshold = (typeof QUOTA_THRESHOLDS)[number];

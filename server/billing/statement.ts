@@ -106,11 +106,6 @@ export function isMonthComplete(month: string, now: Date): boolean {
   return now.toISOString().slice(0, 10) >= monthDayRange(month).toDay;
 }
 
-/** 'YYYY-MM' of a time, UTC. */
-export function utcMonth(at: Date): string {
-  return at.toISOString().slice(0, 7);
-}
-
 /** Formats a minor-unit amount for people, e.g. (12345, 'eur') → "€123.45". */
 export function formatMoney(amountMinor: number, currency: string): string {
   const format = new Intl.NumberFormat('en-IE', { style: 'currency', currency: currency.toUpperCase() });
