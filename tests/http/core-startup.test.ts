@@ -1,6 +1,5 @@
 // Start-up: configuration, the generated server secret, the bootstrap variables, seeding, and a
 // graceful shutdown of the real process (spawned with `npx tsx server/main.ts`).
-import { spawn } from 'node:child_process';
 import fs from 'node:fs';
 import net from 'node:net';
 import os from 'node:os';
@@ -14,6 +13,7 @@ import { openDatabase, runMigrations } from '../../server/db/client.js';
 import { createApp } from '../../server/http/app.js';
 import { bootstrap } from '../../server/seed/bootstrap.js';
 import { DEMO_ACCOUNT_NAME } from '../../server/seed/demo.js';
+import { startServerProcess } from '../support/server-process.js';
 import { testConfig } from './helpers.js';
 
 const BOOT_KEY = 'ebl_live_BootBootBoot_0123456789abcdefghijABCDEFGHIJKL';
@@ -96,37 +96,11 @@ describe('seed and bootstrap variables', () => {
   });
 });
 
-/**
- * Starts the real server; resolves with its port once it logs the URL. This is `npx tsx
- * server/main.ts` without the npm wrapper: npm's exec process dies of the signal itself instead of
- * reporting the server's exit code, so the test runs the same tsx binary that npx resolves.
- */
-function startServer(env: Record<string, string>) {
-  const child = spawn(path.resolve(import.meta.dirname, '../../node_modules/.bin/tsx'), ['server/main.ts'], {
-    cwd: path.resolve(import.meta.dirname, '../..'),
-    env: { ...process.env, ...env },
-    stdio: ['ignore', 'pipe', 'pipe'],
-  });
-  let output = '';
-  const port = new Promise<number>((resolve, reject) => {
-    const onData = (chunk: Buffer) => {
-      output += chunk.toString();
-      const m = /listening on http:\/\/localhost:(\d+)/.exec(output);
-      if (m?.[1]) resolve(Number(m[1]));
-    };
-    child.stdout.on('data', onData);
-    child.stderr.on('data', onData);
-    child.on('exit', (code) => reject(new Error(`server exited early (${code}): ${output}`)));
-  });
-  const exited = new Promise<number | null>((resolve) => child.on('exit', (code) => resolve(code)));
-  return { child, port, exited, output: () => output };
-}
-
 describe('graceful shutdown', () => {
   it('finishes an in-flight request after SIGTERM, records it, then exits 0', async () => {
     const dir = tempDir();
     const dbFile = path.join(dir, 'e.db');
-    const server = startServer({ PORT: '0', DB_FILE: dbFile, BOOTSTRAP_API_KEY: BOOT_KEY });
+    const server = startServerProcess({ PORT: '0', DB_FILE: dbFile, BOOTSTRAP_API_KEY: BOOT_KEY });
     const port = await server.port;
 
     // An in-flight request: headers and half the body sent, the rest after SIGTERM.
@@ -149,7 +123,7 @@ describe('graceful shutdown', () => {
 
     expect(response).toMatch(/^HTTP\/1\.1 200 /);
     expect(response).toMatch(/x-request-id: in-flight-1/i);
-    expect(await server.exited).toBe(0);
+    expect((await server.exited).code).toBe(0);
     expect(server.output()).toContain('[shutdown] done');
     const check = new Database(dbFile, { readonly: true });
     const row = check.prepare("SELECT status FROM usage_events WHERE request_id = 'in-flight-1'").get();
@@ -172,7 +146,7 @@ describe('first start with no bootstrap variables', () => {
       MAIL_CAPTURE: '0',
       FAKE_PAYMENTS: '0',
     };
-    const first = startServer(env);
+    const first = startServerProcess(env);
     const port = await first.port;
     const signIn = /demo console sign-in \(shown once\): (\S+) \/ (\S+)/.exec(first.output());
     const key = /demo API key \(shown once\): (\S+)/.exec(first.output());
@@ -185,7 +159,7 @@ describe('first start with no bootstrap variables', () => {
     });
     expect(usage.status).toBe(200);
     first.child.kill('SIGTERM');
-    expect(await first.exited).toBe(0);
+    expect((await first.exited).code).toBe(0);
 
     // The shown password was stored: it verifies against the operator's stored hash.
     const { db, sqlite } = openDatabase(dbFile);
@@ -193,10 +167,10 @@ describe('first start with no bootstrap variables', () => {
     sqlite.close();
 
     // Nothing secret is shown again on the next start.
-    const second = startServer(env);
+    const second = startServerProcess(env);
     await second.port;
     expect(second.output()).not.toMatch(/shown once/);
     second.child.kill('SIGTERM');
-    expect(await second.exited).toBe(0);
+    expect((await second.exited).code).toBe(0);
   }, 40_000);
 });

@@ -3,15 +3,14 @@
 // authenticated single-effect and batch requests (JSON and CSV answers). Afterwards the database must hold a 2xx usage row for
 // every 2xx response the client saw (a row is committed before the response leaves), and its
 // extra 2xx rows can only belong to requests that were still in flight at the kill.
-import { spawn } from 'node:child_process';
 import fs from 'node:fs';
 import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import Database from 'better-sqlite3';
 import { describe, expect, it } from 'vitest';
+import { startServerProcess } from '../support/server-process.js';
 
-const ROOT = path.resolve(import.meta.dirname, '../..');
 const BOOT_KEY = 'ebl_live_KillKillKill_0123456789abcdefghijABCDEFGHIJKL';
 /** Concurrent client workers; each sends its next request as soon as the last one is answered. */
 const WORKERS = 8;
@@ -45,37 +44,6 @@ const KINDS = [
   { path: '/v1/batch', body: JSON.stringify(BATCH), accept: 'text/csv' },
 ] as const;
 
-/**
- * The tsx binary runs the server in a child node process and relays catchable signals to it; a
- * SIGKILL of tsx alone would orphan the server. So tsx starts as the leader of its own process
- * group (detached) and the kill goes to the whole group: tsx and the server die together.
- */
-function startServer(env: Record<string, string>) {
-  const child = spawn(path.join(ROOT, 'node_modules/.bin/tsx'), ['server/main.ts'], {
-    cwd: ROOT,
-    env: { ...process.env, ...env },
-    stdio: ['ignore', 'pipe', 'pipe'],
-    detached: true,
-  });
-  let output = '';
-  const port = new Promise<number>((resolve, reject) => {
-    const onData = (chunk: Buffer) => {
-      output += chunk.toString();
-      const m = /listening on http:\/\/localhost:(\d+)/.exec(output);
-      if (m?.[1]) resolve(Number(m[1]));
-    };
-    child.stdout.on('data', onData);
-    child.stderr.on('data', onData);
-    child.on('exit', (code, signal) =>
-      reject(new Error(`server exited early (${code ?? signal}): ${output}`)),
-    );
-  });
-  const exited = new Promise<NodeJS.Signals | null>((resolve) =>
-    child.on('exit', (_c, signal) => resolve(signal)),
-  );
-  return { child, port, exited };
-}
-
 /** True once nothing accepts connections on the port (polls for up to 3 s). */
 async function portClosed(port: number): Promise<boolean> {
   for (let i = 0; i < 30; i++) {
@@ -97,7 +65,11 @@ describe('metering across a SIGKILL', () => {
   it('holds a committed 2xx usage row for every 2xx the client received, and extra rows only for requests in flight at the kill', async () => {
     const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'ebullio-kill-'));
     const dbFile = path.join(dir, 'e.db');
-    const server = startServer({ PORT: '0', DB_FILE: dbFile, BOOTSTRAP_API_KEY: BOOT_KEY });
+    // Detached, so the SIGKILL below can go to tsx and the server together (see server-process.ts).
+    const server = startServerProcess(
+      { PORT: '0', DB_FILE: dbFile, BOOTSTRAP_API_KEY: BOOT_KEY },
+      { detached: true },
+    );
     const port = await server.port;
 
     const ok = new Set<string>(); // request ids answered 2xx
@@ -146,7 +118,7 @@ describe('metering across a SIGKILL', () => {
     await Promise.all(Array.from({ length: WORKERS }, (_, w) => worker(w)));
     clearTimeout(timer);
     kill();
-    expect(await server.exited).toBe('SIGKILL');
+    expect((await server.exited).signal).toBe('SIGKILL');
     expect(await portClosed(port)).toBe(true); // the server process itself is gone, not only tsx
 
     // Opening read-write lets SQLite recover the WAL the killed process left behind.

@@ -1,0 +1,51 @@
+// Starts the real server (`server/main.ts`) in a child process for the tests that need a process
+// of their own: graceful shutdown, start-up seeding, SIGKILL metering. This is `npx tsx
+// server/main.ts` without the npm wrapper, because npm's exec process dies of a signal itself
+// instead of reporting the server's exit, so the tests run the same tsx binary that npx resolves.
+// `port` resolves once main.ts logs its URL (start it with PORT=0 for an ephemeral port).
+import { spawn, type ChildProcess } from 'node:child_process';
+import path from 'node:path';
+
+const ROOT = path.resolve(import.meta.dirname, '../..');
+
+export interface ServerProcess {
+  child: ChildProcess;
+  port: Promise<number>;
+  /** How the process ended: its exit code, or the signal that ended it. */
+  exited: Promise<{ code: number | null; signal: NodeJS.Signals | null }>;
+  output(): string;
+}
+
+/**
+ * `detached`: tsx runs the server in a child node process and relays catchable signals to it, but
+ * a SIGKILL of tsx alone would orphan the server. Detached, tsx leads its own process group, and a
+ * kill sent to the group (`process.kill(-pid, 'SIGKILL')`) ends both.
+ */
+export function startServerProcess(
+  env: Record<string, string>,
+  opts: { detached?: boolean } = {},
+): ServerProcess {
+  const child = spawn(path.join(ROOT, 'node_modules/.bin/tsx'), ['server/main.ts'], {
+    cwd: ROOT,
+    env: { ...process.env, ...env },
+    stdio: ['ignore', 'pipe', 'pipe'],
+    detached: opts.detached ?? false,
+  });
+  let output = '';
+  const port = new Promise<number>((resolve, reject) => {
+    const onData = (chunk: Buffer) => {
+      output += chunk.toString();
+      const m = /listening on http:\/\/localhost:(\d+)/.exec(output);
+      if (m?.[1]) resolve(Number(m[1]));
+    };
+    child.stdout?.on('data', onData);
+    child.stderr?.on('data', onData);
+    child.on('exit', (code, signal) =>
+      reject(new Error(`server exited early (${code ?? signal}): ${output}`)),
+    );
+  });
+  const exited = new Promise<{ code: number | null; signal: NodeJS.Signals | null }>((resolve) =>
+    child.on('exit', (code, signal) => resolve({ code, signal })),
+  );
+  return { child, port, exited, output: () => output };
+}
