@@ -19,7 +19,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
 import { ensureConsoleBuilt } from '../support/console-build.js';
-import { afterAll, beforeAll } from 'vitest';
+import { afterAll, afterEach, beforeAll } from 'vitest';
 export {
   DEMO_BILLING_EMAIL,
   DEMO_CONSOLE_PASSWORD,
@@ -226,9 +226,8 @@ export async function openBrowser(origin: string): Promise<BrowserSession> {
     if (res.status() >= 400) failedResponses.push(`${res.status()} ${res.request().method()} ${res.url()}`);
   });
   const page = context.pages()[0] ?? (await context.newPage());
-  // Fail a missing element in 10 s rather than Playwright's 30 s, so one broken step reports quickly.
-  // Generous: on the 2-core CI machine the browser shares the cores with the server under test
-  // and another test worker, and a sign-in once took longer than 10 s.
+  // Playwright's own default, set explicitly: on the 2-core CI machine the browser shares the cores
+  // with the server under test and another test worker (a sign-in once took longer than 10 s).
   page.setDefaultTimeout(30_000);
   page.on('pageerror', (err) => pageErrors.push(err.message));
   page.on('console', (msg) => {
@@ -284,6 +283,18 @@ export function setUpConsoleFlow(): ConsoleFlow {
     flow.server = await startServer();
     flow.browser = await openBrowser(flow.server.origin);
   }, 240_000);
+  // A failed step prints what the server and the page reported, for a CI log read after the fact.
+  afterEach((context) => {
+    if (context.task.result?.state !== 'fail' || !flow.server) return;
+    console.error(
+      [
+        `--- ${context.task.name}: diagnostics`,
+        `page errors: ${JSON.stringify(flow.browser?.pageErrors ?? [])}`,
+        `responses >= 400: ${JSON.stringify(flow.browser?.failedResponses ?? [])}`,
+        `server output (last 3000 characters):\n${flow.server.output().slice(-3000)}`,
+      ].join('\n'),
+    );
+  });
   afterAll(async () => {
     await flow.browser?.close();
     await flow.server?.stop();
@@ -298,13 +309,35 @@ export async function screenshot(page: Page, name: string): Promise<string> {
   return file;
 }
 
-/** Signs in through the console's sign-in page and waits for the signed-in layout. */
+/**
+ * Signs in through the console's sign-in page and waits for the signed-in layout. A refused
+ * sign-in, or a layout that never appears, fails with what the page showed, so a failure on the
+ * CI machine can be read from its log alone.
+ */
 export async function signIn(page: Page, origin: string, email: string, password: string): Promise<void> {
   await page.goto(`${origin}/console/`);
   await page.getByLabel('E-mail').fill(email);
   await page.getByLabel('Password', { exact: true }).fill(password);
+  const answer = page.waitForResponse(
+    (res) => res.request().method() === 'POST' && new URL(res.url()).pathname === '/console-api/auth/sign-in',
+  );
   await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.locator('.v-navigation-drawer').first().waitFor({ state: 'visible' });
+  const res = await answer;
+  if (res.status() !== 200) {
+    throw new Error(`sign-in as ${email} answered ${res.status()}: ${await res.text()}`);
+  }
+  try {
+    await page.locator('.v-navigation-drawer').first().waitFor({ state: 'visible' });
+  } catch (err) {
+    const text = await page
+      .locator('body')
+      .innerText()
+      .catch(() => '(no body)');
+    throw new Error(
+      `signed in as ${email} (200), but no navigation drawer appeared; page ${page.url()} shows: ${text.slice(0, 600)}`,
+      { cause: err },
+    );
+  }
 }
 
 /** Opens a page through the navigation drawer and waits for its heading. */
