@@ -204,6 +204,9 @@ export async function openBrowser(origin: string): Promise<BrowserSession> {
       '--disable-component-update',
       '--disable-sync',
       '--no-first-run',
+      // Shared memory in /tmp rather than /dev/shm, which a container may cap at 64 MB; a tab that
+      // runs out of it crashes and leaves a blank page (common practice for Chromium in containers).
+      '--disable-dev-shm-usage',
     ],
   });
   const requests: string[] = [];
@@ -230,6 +233,7 @@ export async function openBrowser(origin: string): Promise<BrowserSession> {
   // with the server under test and another test worker (a sign-in once took longer than 10 s).
   page.setDefaultTimeout(30_000);
   page.on('pageerror', (err) => pageErrors.push(err.message));
+  page.on('crash', () => pageErrors.push(`the page crashed at ${page.url()}`));
   page.on('console', (msg) => {
     if (msg.type() === 'error' && !msg.text().startsWith('Failed to load resource'))
       pageErrors.push(msg.text());
