@@ -203,10 +203,9 @@ interface KeyLookupRow {
 }
 
 /**
- * The by-hash lookup (it runs on every request): one statement for the key and its account's
- * metering settings, prepared once per connection. Raw SQL rather than Drizzle's builder, which
- * maps every column of the row on each call. Whether an expired key has a rotation successor is
- * asked only when it has expired.
+ * The by-hash lookup: one statement for the key and its account's metering settings, prepared
+ * once per connection. Raw SQL rather than Drizzle's builder, which maps every column of the row
+ * on each call. Whether an expired key has a rotation successor is asked only when it has expired.
  */
 const lookups = new WeakMap<Sqlite, Statement<[string], KeyLookupRow>>();
 function lookupFor(sqlite: Sqlite): Statement<[string], KeyLookupRow> {
@@ -225,8 +224,7 @@ function lookupFor(sqlite: Sqlite): Statement<[string], KeyLookupRow> {
 
 /**
  * HMACs of recently presented tokens. The HMAC is a pure function of (server secret, token), so a
- * remembered one can never be stale; the key's state is still read from the database on every
- * request, so revocation and expiry take effect at once. Bounded: cleared when full.
+ * remembered one can never be stale. Bounded: cleared when full.
  */
 const HASH_MEMO_LIMIT = 10_000;
 const hashMemos = new WeakMap<Buffer, Map<string, string>>();
@@ -245,7 +243,63 @@ function memoHash(serverSecret: Buffer, token: string): string {
   return hash;
 }
 
-/** Checks a presented token at time `now`. */
+/** A found key as the lookup row gave it, with its scopes parsed (shared, never mutated). */
+interface KnownKey {
+  key: Readonly<AuthenticatedKey>;
+  expiresAt: number | null;
+  revokedAt: number | null;
+}
+
+/**
+ * Found keys by key hash, per connection, trusted only while `auth_revision.revision` is the one
+ * they were read under. Triggers (migration drizzle/0003_auth_revision.sql) bump that revision in
+ * the same transaction as any change to a key or account that authentication reads, whoever makes
+ * it, so a revocation, re-scoping or quota change is seen by the very next request; each request
+ * reads the one-row revision (a primary-key lookup) instead of the key JOIN account lookup and
+ * its row mapping. Expiry and revocation times are still compared with the request's clock on
+ * every request. Unknown tokens are never cached. Bounded: cleared when full.
+ */
+const KNOWN_KEY_LIMIT = 10_000;
+interface KnownKeys {
+  revision: Statement<[], number>;
+  seen: number;
+  byHash: Map<string, KnownKey>;
+}
+const knownKeys = new WeakMap<Sqlite, KnownKeys>();
+function knownKeysFor(sqlite: Sqlite): Map<string, KnownKey> {
+  let known = knownKeys.get(sqlite);
+  if (!known) {
+    const revision = sqlite.prepare<[], number>('SELECT revision FROM auth_revision WHERE id = 1').pluck();
+    known = { revision, seen: -1, byHash: new Map() };
+    knownKeys.set(sqlite, known);
+  }
+  const current = known.revision.get() ?? -1;
+  if (current !== known.seen || known.byHash.size >= KNOWN_KEY_LIMIT) {
+    known.byHash.clear();
+    known.seen = current;
+  }
+  return known.byHash;
+}
+
+function knownKeyOf(row: KeyLookupRow): KnownKey {
+  const key: AuthenticatedKey = {
+    id: row.id,
+    accountId: row.accountId,
+    publicId: row.publicId,
+    scopes: Object.freeze((JSON.parse(row.scopes) as string[]).filter(isScope)) as Scope[],
+    rateLimitPerMinute: row.rateLimitPerMinute,
+    account: Object.freeze({
+      monthlyUnitQuota: row.monthlyUnitQuota,
+      retainRequestBodies: row.retainRequestBodies === 1,
+    }),
+  };
+  return { key: Object.freeze(key), expiresAt: row.expiresAt, revokedAt: row.revokedAt };
+}
+
+/**
+ * The key a presented token belongs to, if it is valid at `now`. The returned key object is
+ * shared between requests (frozen): copy what you need.
+ */
 export function authenticateToken(
   sqlite: Sqlite,
   serverSecret: Buffer,
@@ -254,25 +308,23 @@ export function authenticateToken(
 ): AuthResult {
   if (!TOKEN_PATTERN.test(token)) return { ok: false, reason: 'malformed' };
   const computed = memoHash(serverSecret, token);
-  const row = lookupFor(sqlite).get(computed);
-  if (!row || !crypto.timingSafeEqual(Buffer.from(row.keyHash, 'hex'), Buffer.from(computed, 'hex'))) {
-    return { ok: false, reason: 'unknown' };
+  const known = knownKeysFor(sqlite);
+  let found = known.get(computed);
+  if (found === undefined) {
+    const row = lookupFor(sqlite).get(computed);
+    if (!row || !crypto.timingSafeEqual(Buffer.from(row.keyHash, 'hex'), Buffer.from(computed, 'hex'))) {
+      return { ok: false, reason: 'unknown' };
+    }
+    found = knownKeyOf(row);
+    known.set(computed, found);
   }
   const at = now.getTime();
-  if (row.revokedAt !== null && row.revokedAt <= at) return { ok: false, reason: 'revoked' };
-  if (row.expiresAt !== null && row.expiresAt <= at) {
-    const successor = sqlite.prepare('SELECT 1 FROM api_keys WHERE rotated_from_id = ? LIMIT 1').get(row.id);
+  if (found.revokedAt !== null && found.revokedAt <= at) return { ok: false, reason: 'revoked' };
+  if (found.expiresAt !== null && found.expiresAt <= at) {
+    const successor = sqlite
+      .prepare('SELECT 1 FROM api_keys WHERE rotated_from_id = ? LIMIT 1')
+      .get(found.key.id);
     return { ok: false, reason: successor ? 'rotated' : 'expired' };
   }
-  return {
-    ok: true,
-    key: {
-      id: row.id,
-      accountId: row.accountId,
-      publicId: row.publicId,
-      scopes: (JSON.parse(row.scopes) as string[]).filter(isScope),
-      rateLimitPerMinute: row.rateLimitPerMinute,
-      account: { monthlyUnitQuota: row.monthlyUnitQuota, retainRequestBodies: row.retainRequestBodies === 1 },
-    },
-  };
+  return { ok: true, key: found.key };
 }
