@@ -2,8 +2,8 @@
  * The Express app factory. `createApp(deps)` builds the whole app without listening, so tests
  * mount it with supertest and main.ts listens on it.
  *
- * Pipeline: X-Request-Id → /healthz, /readyz, /problems/:slug → extra modules (appModules) →
- * /v1 (API key → metering → rate limit → body → operations) → 404 problem → error handler.
+ * Pipeline: X-Request-Id → /healthz, /readyz, /problems/:slug → /v1 (API key → metering → rate
+ * limit → body → operations) → extra modules (appModules) → 404 problem → error handler.
  */
 import express, { type ErrorRequestHandler, type RequestHandler } from 'express';
 import type { Config } from '../config.js';
@@ -113,9 +113,12 @@ export function createApp(deps: AppDeps): express.Express {
   });
   app.get('/problems/:slug', problemPage);
 
-  for (const module of appModules) module.register(app, deps);
-
+  // /v1 first: the calculation API is the hot path, and every layer registered before it is one
+  // more path match per request. The modules' paths (/openapi.json, /docs, /console…) never
+  // overlap /v1.
   app.use('/v1', createV1Router(deps));
+
+  for (const module of appModules) module.register(app, deps);
 
   app.use((req, _res, next) => {
     next(problem('not-found', `No route for ${req.method} ${req.path}.`));

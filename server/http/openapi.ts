@@ -476,7 +476,7 @@ export function openApiRouter(): Router {
   return router;
 }
 
-/** For app.ts: `appModules.push(openApiModule)` (or `app.use(openApiRouter())` before /v1). */
+/** For app.ts: `appModules.push(openApiModule)` (or `app.use(openApiRouter())`). */
 export const openApiModule = {
   register(app: { use: (handler: Router) => unknown }): void {
     app.use(openApiRouter());
