@@ -16,6 +16,7 @@
  * old key's expiry to the end of an overlap window; after it the old key gets 401 'expired'.
  */
 import crypto from 'node:crypto';
+import { setImmediate as nextTurn } from 'node:timers';
 import { desc, eq } from 'drizzle-orm';
 import type { Statement } from 'better-sqlite3';
 import type { Db, Sqlite } from '../db/client.js';
@@ -254,30 +255,79 @@ interface KnownKey {
  * Found keys by key hash, per connection, trusted only while `auth_revision.revision` is the one
  * they were read under. Triggers (migration drizzle/0003_auth_revision.sql) bump that revision in
  * the same transaction as any change to a key or account that authentication reads, whoever makes
- * it, so a revocation, re-scoping or quota change is seen by the very next request; each request
- * reads the one-row revision (a primary-key lookup) instead of the key JOIN account lookup and
- * its row mapping. Expiry and revocation times are still compared with the request's clock on
- * every request. Unknown tokens are never cached. Bounded: cleared when full.
+ * it. Expiry and revocation times are still compared with the request's clock on every request.
+ * Unknown tokens are never cached. Bounded: cleared when full.
+ *
+ * - Changes made through this connection (the console, this process's own writes) clear the
+ *   cache from inside the writing statement: at start-up each of the migration's triggers gets a
+ *   TEMP twin on this connection, with the same events and columns, that calls back into JS.
+ * - Changes committed by another connection are seen through the revision, read at most once
+ *   per turn of the event loop: every request that starts in a later turn than the commit sees
+ *   it. (A request that is answered after a revocation was confirmed to its issuer always starts
+ *   in a later turn.)
+ *
+ * So a request reads one row per turn instead of the key JOIN account lookup per request (each
+ * read is a read transaction on the WAL, which showed in profiles of the metered route).
  */
 const KNOWN_KEY_LIMIT = 10_000;
 interface KnownKeys {
   revision: Statement<[], number>;
   seen: number;
+  checkedThisTurn: boolean;
   byHash: Map<string, KnownKey>;
 }
 const knownKeys = new WeakMap<Sqlite, KnownKeys>();
+const FORGET_FUNCTION = 'ebullio_forget_known_keys';
+
+/** TEMP twins of the auth-revision triggers that call {@link FORGET_FUNCTION} instead. */
+function installLocalForgetting(sqlite: Sqlite, forget: () => void): void {
+  sqlite.function(FORGET_FUNCTION, { deterministic: false }, () => {
+    forget();
+    return null;
+  });
+  const triggers = sqlite
+    .prepare<[], { name: string; sql: string }>(
+      `SELECT name, sql FROM sqlite_master WHERE type = 'trigger' AND name LIKE '%auth_revision%'`,
+    )
+    .all();
+  if (triggers.length === 0) throw new Error('auth_revision triggers missing: are the migrations applied?');
+  for (const { name, sql } of triggers) {
+    const twin = sql
+      .replace(/^CREATE TRIGGER `[^`]+`/, `CREATE TEMP TRIGGER IF NOT EXISTS \`${name}_local\``)
+      .replace(/ ON `(api_keys|accounts)`/, ' ON main.`$1`')
+      .replace(/BEGIN[\s\S]*END$/, `BEGIN SELECT ${FORGET_FUNCTION}(); END`);
+    if (twin === sql || !twin.includes('TEMP TRIGGER') || !twin.includes('main.')) {
+      throw new Error(`cannot derive the local twin of trigger ${name}`);
+    }
+    sqlite.exec(twin);
+  }
+}
+
 function knownKeysFor(sqlite: Sqlite): Map<string, KnownKey> {
   let known = knownKeys.get(sqlite);
   if (!known) {
     const revision = sqlite.prepare<[], number>('SELECT revision FROM auth_revision WHERE id = 1').pluck();
-    known = { revision, seen: -1, byHash: new Map() };
+    const fresh: KnownKeys = { revision, seen: -1, checkedThisTurn: false, byHash: new Map() };
+    installLocalForgetting(sqlite, () => {
+      fresh.byHash.clear();
+      fresh.checkedThisTurn = false;
+    });
+    known = fresh;
     knownKeys.set(sqlite, known);
   }
-  const current = known.revision.get() ?? -1;
-  if (current !== known.seen || known.byHash.size >= KNOWN_KEY_LIMIT) {
-    known.byHash.clear();
-    known.seen = current;
+  if (!known.checkedThisTurn) {
+    const turn = known;
+    turn.checkedThisTurn = true;
+    nextTurn(() => {
+      turn.checkedThisTurn = false;
+    });
+    const current = turn.revision.get() ?? -1;
+    if (current !== turn.seen) {
+      turn.byHash.clear();
+      turn.seen = current;
+    }
   }
+  if (known.byHash.size >= KNOWN_KEY_LIMIT) known.byHash.clear();
   return known.byHash;
 }
 

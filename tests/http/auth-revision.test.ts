@@ -10,7 +10,7 @@ import Database from 'better-sqlite3';
 import request from 'supertest';
 import { afterEach, describe, expect, it } from 'vitest';
 import { createAccount } from '../../server/accounts/accounts.js';
-import { createKey } from '../../server/accounts/keys.js';
+import { authenticateToken, createKey, revokeKey } from '../../server/accounts/keys.js';
 import { scopes as ALL_SCOPES } from '../../server/accounts/operations.js';
 import { openDatabase, runMigrations } from '../../server/db/client.js';
 import { createApp } from '../../server/http/app.js';
@@ -39,11 +39,24 @@ function fileHarness(quota = 1000) {
     now,
   });
   const app = createApp({ db, sqlite, config, clock: () => now, engineVersion: 'test-engine' });
+  const authenticate = () => authenticateToken(sqlite, config.secret, token, now);
   const other = new Database(file);
   const revision = () =>
     other.prepare('SELECT revision FROM auth_revision WHERE id = 1').pluck().get() as number;
   const usage = () => request(app).get('/v1/usage').set('Authorization', `Bearer ${token}`);
-  return { app, sqlite, other, revision, usage, token, keyId: key.id, accountId: account.id, now };
+  return {
+    app,
+    db,
+    sqlite,
+    other,
+    revision,
+    usage,
+    authenticate,
+    token,
+    keyId: key.id,
+    accountId: account.id,
+    now,
+  };
 }
 
 describe('remembered keys follow the database at once', () => {
@@ -108,6 +121,23 @@ describe('remembered keys follow the database at once', () => {
     expect(h.revision()).toBe(before + 1);
     h.other.prepare('UPDATE api_keys SET rate_limit_per_minute = 5 WHERE id = ?').run(h.keyId);
     expect(h.revision()).toBe(before + 2);
+    h.other.close();
+  });
+
+  it('sees a revocation made through its own connection within the same turn of the event loop', () => {
+    const h = fileHarness();
+    expect(h.authenticate().ok).toBe(true); // remembered, revision checked for this turn
+    revokeKey(h.db, h.keyId, h.now); // the TEMP twin of the trigger clears the memory at once
+    expect(h.authenticate()).toEqual({ ok: false, reason: 'revoked' });
+    h.other.close();
+  });
+
+  it('sees a revocation by another connection from the next turn of the event loop on', async () => {
+    const h = fileHarness();
+    expect(h.authenticate().ok).toBe(true);
+    h.other.prepare('UPDATE api_keys SET revoked_at = ? WHERE id = ?').run(h.now.getTime() - 1, h.keyId);
+    await new Promise((resolve) => setImmediate(resolve));
+    expect(h.authenticate()).toEqual({ ok: false, reason: 'revoked' });
     h.other.close();
   });
 });
