@@ -47,14 +47,13 @@ export const API_VERSION = '1.0.0';
 const rateLimitHeaders = {
   RateLimit: {
     description:
-      'Requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-08), ' +
-      'e.g. `"per-key";r=58;t=42`',
+      'The key’s limit, requests left in the current window and seconds until it resets (IETF ' +
+      'draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42`',
     schema: { type: 'string' as const },
   },
   'RateLimit-Policy': {
     description:
-      'The key’s rate-limit policy (draft-08): requests per window, window in seconds and a partition key, ' +
-      'e.g. `"per-key";q=60;w=60;pk=:ZjhmZjAxODdlNWIw:`',
+      'The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60`',
     schema: { type: 'string' as const },
   },
 };
@@ -434,7 +433,7 @@ export function buildOpenApiDocument(): ReturnType<OpenApiGeneratorV31['generate
         'or a string with a unit ("1.4 bar", "38 degC", "4.5 t/h", "2 barg", "65 %", "60 Bx"). Outputs are plain numbers in the ' +
         'default units; each field states its unit (`x-unit`). Every result carries `provenance` (engine version and models used).\n\n' +
         'Errors are RFC 9457 problem details (`application/problem+json`). Rate-limit state is sent in the `RateLimit` and ' +
-        '`RateLimit-Policy` headers (IETF draft-08).\n\n' +
+        '`RateLimit-Policy` headers (IETF draft-ietf-httpapi-ratelimit-headers-07).\n\n' +
         'Results are preliminary engineering estimates; pressure and vacuum equipment must be designed under local codes by a licensed engineer.',
     },
     servers: [{ url: '/' }],

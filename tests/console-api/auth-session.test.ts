@@ -262,7 +262,7 @@ describe('sign-in lock-out and rate limit', () => {
     }
     expect(statuses).toEqual([401, 401, 401, 429]);
     expect(last!.body.type).toBe('/problems/rate-limited');
-    // draft-ietf-httpapi-ratelimit-headers-08 field names (express-rate-limit standardHeaders 'draft-8').
+    // draft-ietf-httpapi-ratelimit-headers-07 fields (express-rate-limit standardHeaders 'draft-7').
     expect(last!.headers['ratelimit-policy']).toBeDefined();
   });
 });

@@ -33,7 +33,7 @@ describe('openapi/openapi.json', () => {
       for (const [method, op] of Object.entries(item)) {
         expect(op.security, `${method} ${path}`).toBeDefined();
         expect(op.responses['422']?.content?.['application/problem+json'], `${method} ${path}`).toBeDefined();
-        // IETF draft-ietf-httpapi-ratelimit-headers-08 field names.
+        // IETF draft-ietf-httpapi-ratelimit-headers-07 field names.
         expect(Object.keys(op.responses['422']?.headers ?? {})).toEqual(['RateLimit', 'RateLimit-Policy']);
       }
     }

@@ -57,7 +57,7 @@ function signInLimiter(deps: AppDeps, what: string): RequestHandler {
   return rateLimit({
     windowMs: 15 * 60_000,
     limit: settings.signInLimit,
-    standardHeaders: 'draft-8',
+    standardHeaders: 'draft-7', // as the API (server/http/middleware/rate-limit.ts)
     legacyHeaders: false,
     identifier: `console-${what}`,
     keyGenerator: (req) => ipKeyGenerator(req.ip ?? '0.0.0.0'),
