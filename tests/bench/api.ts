@@ -160,8 +160,22 @@ function killGroup(proc: ChildProcess): void {
   }
 }
 
+/**
+ * The Node flags `npm start` gives the server (package.json "start": `tsx <flags> server/main.ts`),
+ * given here to all three servers alike, so the service is measured as it ships and the bare
+ * routes under the same runtime settings.
+ */
+export function serverNodeFlags(): string[] {
+  const pkg = JSON.parse(fs.readFileSync(path.join(ROOT, 'package.json'), 'utf8')) as {
+    scripts: Record<string, string>;
+  };
+  const m = /\btsx((?:\s+--[\w-]+(?:=\S+)?)*)\s+server\/main\.ts/.exec(pkg.scripts.start ?? '');
+  if (!m) throw new Error('package.json "start" does not run `tsx [flags] server/main.ts`');
+  return m[1]!.trim().split(/\s+/).filter(Boolean);
+}
+
 function startChild(args: string[], env: Record<string, string>): Promise<Child> {
-  const proc = spawn(TSX, args, {
+  const proc = spawn(TSX, [...serverNodeFlags(), ...args], {
     cwd: ROOT,
     env: { ...process.env, ...env },
     stdio: ['pipe', 'pipe', 'pipe'],
@@ -350,7 +364,8 @@ export async function runApiBench(): Promise<ApiBenchResult> {
 
     console.log(
       `server children: real app, bare Express 5 route and bare calculation route, one process each; load generator in the parent; ` +
-        `${CONNECTIONS} connections; response body ${responseBytes} bytes; request body ${Buffer.byteLength(body)} bytes`,
+        `${CONNECTIONS} connections; response body ${responseBytes} bytes; request body ${Buffer.byteLength(body)} bytes; ` +
+        `node flags of all three (as npm start): ${serverNodeFlags().join(' ') || 'none'}`,
     );
     await cannon(appUrl, { authorization: `Bearer ${warmKey.token}` }, body, { duration: WARMUP_S });
     await cannon(bareUrl, {}, body, { duration: WARMUP_S });
