@@ -81,7 +81,11 @@ export const apiKeys = sqliteTable(
 export const usageEvents = sqliteTable(
   'usage_events',
   {
-    id: integer('id').primaryKey({ autoIncrement: true }),
+    // A plain rowid key, not AUTOINCREMENT: SQLite's documentation ("SQLite Autoincrement") says
+    // AUTOINCREMENT "imposes extra CPU, memory, disk space, and disk I/O overhead and should be
+    // avoided if not strictly needed" (an sqlite_sequence update with every insert). Ids still
+    // grow with each insert; one could be reused only after the newest row was deleted.
+    id: integer('id').primaryKey(),
     at: integer('at', { mode: 'timestamp_ms' }).notNull(),
     accountId: integer('account_id')
       .notNull()
@@ -117,7 +121,7 @@ export const usageDaily = sqliteTable(
 export const requestLog = sqliteTable(
   'request_log',
   {
-    id: integer('id').primaryKey({ autoIncrement: true }),
+    id: integer('id').primaryKey(), // plain rowid key, as usage_events
     requestId: text('request_id').notNull(),
     at: integer('at', { mode: 'timestamp_ms' }).notNull(),
     accountId: integer('account_id').references(() => accounts.id, { onDelete: 'cascade' }),
