@@ -19,14 +19,19 @@
  * read) returns the units committed this month plus those charged by the account's other
  * in-flight requests, so concurrent requests cannot spend the same remaining units twice.
  */
-import type { RequestHandler, Response } from 'express';
-import { committedUnitsThisMonth, meteringWriter, type RequestRecord } from '../../accounts/metering.js';
+import type { Request, RequestHandler, Response } from 'express';
+import {
+  committedUnitsThisMonth,
+  meteringWriter,
+  type MeteringWriter,
+  type RequestRecord,
+} from '../../accounts/metering.js';
 import { logBody } from '../../accounts/request-log.js';
 import { scheduleQuotaCheck, thresholdsReached } from '../../billing/quota-notices.js';
 import type { AppDeps } from '../app.js';
 import { presentedToken } from './auth.js';
 import { elapsedMs } from './request-id.js';
-import type { MeterState } from './locals.js';
+import type { AuthContext, MeterState } from './locals.js';
 
 function chunkOf(args: unknown[]): Buffer | string | undefined {
   const first = args[0];
@@ -35,128 +40,182 @@ function chunkOf(args: unknown[]): Buffer | string | undefined {
   return undefined;
 }
 
+/** What every metered request of one app shares. */
+interface MeteringContext {
+  deps: AppDeps;
+  writer: MeteringWriter;
+  /** The meters of requests in flight, per account (see the module comment on quota). */
+  inFlight: Map<number, Set<MeteredRequest>>;
+}
+
+/**
+ * One authenticated request's meter and its way through the group commit. Its steps are methods
+ * rather than closures made per request: profiles of the metered route showed the allocation.
+ */
+class MeteredRequest implements MeterState {
+  operation = 'unmatched';
+  units = 0;
+  quota: number;
+  usedByOthersAtCharge?: number;
+  private recorded = false;
+  private readonly siblings: Set<MeteredRequest>;
+  private readonly originalEnd: (...args: unknown[]) => Response;
+  /** The presented key, kept only when a logged body must be redacted. */
+  private readonly token: string | undefined;
+
+  constructor(
+    private readonly ctx: MeteringContext,
+    private readonly req: Request,
+    private readonly res: Response,
+    private readonly auth: AuthContext,
+  ) {
+    this.quota = auth.monthlyUnitQuota;
+    let siblings = ctx.inFlight.get(auth.accountId);
+    if (!siblings) {
+      siblings = new Set();
+      ctx.inFlight.set(auth.accountId, siblings);
+    }
+    siblings.add(this);
+    this.siblings = siblings;
+    this.originalEnd = res.end.bind(res) as (...args: unknown[]) => Response;
+    this.token = auth.retainRequestBodies ? presentedToken(req.get('authorization')) : undefined;
+  }
+
+  usedByOthers(): number {
+    let pending = 0;
+    for (const other of this.siblings) if (other !== this) pending += other.units;
+    const { deps } = this.ctx;
+    return committedUnitsThisMonth(deps.sqlite, this.auth.accountId, deps.clock()) + pending;
+  }
+
+  /** Leaves the in-flight set once the record is committed (or could not be). */
+  private leave(): void {
+    this.siblings.delete(this);
+    const { inFlight } = this.ctx;
+    if (this.siblings.size === 0 && inFlight.get(this.auth.accountId) === this.siblings) {
+      inFlight.delete(this.auth.accountId);
+    }
+  }
+
+  private recordOf(status: number, responseChunk: Buffer | string | undefined): RequestRecord {
+    const { deps } = this.ctx;
+    const { req, res, auth } = this;
+    const retain = auth.retainRequestBodies;
+    const limit = deps.config.logBodyLimitBytes;
+    const url = req.originalUrl;
+    const query = url.indexOf('?');
+    return {
+      at: deps.clock(),
+      accountId: auth.accountId,
+      keyId: auth.keyId,
+      operation: this.operation,
+      status,
+      units: status < 400 ? this.units : 0,
+      latencyMs: elapsedMs(res.locals.startedAt),
+      requestId: res.locals.requestId ?? '',
+      engineVersion: deps.engineVersion,
+      method: req.method,
+      path: query === -1 ? url : url.slice(0, query),
+      requestBody: retain ? logBody(req.body, limit, this.token) : null,
+      responseBody: retain ? logBody(responseChunk, limit, this.token) : null,
+    };
+  }
+
+  /**
+   * Quota e-mails (80 % / 100 %, once a month): only a request that crossed a threshold
+   * schedules the check, which then runs after this turn, off the hot path.
+   */
+  private noticeQuota(status: number): void {
+    if (status < 400 && this.units > 0) {
+      const before = this.usedByOthersAtCharge ?? 0;
+      const after = before + this.units;
+      if (thresholdsReached(after, this.quota).length > thresholdsReached(before, this.quota).length) {
+        scheduleQuotaCheck(this.ctx.deps, this.auth.accountId);
+      }
+    }
+  }
+
+  /** The database refused the record: a 500 problem instead of an unbilled result. */
+  private refuseUnmetered(err: unknown): void {
+    const { req, res } = this;
+    console.error(`[metering] could not record request ${res.locals.requestId}:`, err);
+    if (res.headersSent) {
+      // Headers (and maybe a part of a streamed body) have left: cut the response short.
+      res.destroy();
+      return;
+    }
+    const body = JSON.stringify({
+      type: '/problems/internal',
+      title: 'Internal error',
+      status: 500,
+      detail: 'The request could not be metered; no result was returned.',
+      instance: req.originalUrl.split('?')[0],
+      requestId: res.locals.requestId,
+    });
+    res.statusCode = 500;
+    res.removeHeader('ETag');
+    res.setHeader('Content-Type', 'application/problem+json');
+    res.setHeader('Content-Length', Buffer.byteLength(body));
+    this.originalEnd(body);
+  }
+
+  /** `res.end`: queue the record, and hand the bytes to the socket once it is committed. */
+  end(args: unknown[]): void {
+    if (this.recorded) {
+      this.originalEnd(...args);
+      return;
+    }
+    this.recorded = true;
+    const status = this.res.statusCode;
+    let record: RequestRecord;
+    try {
+      record = this.recordOf(status, chunkOf(args));
+    } catch (err) {
+      this.leave();
+      this.refuseUnmetered(err);
+      return;
+    }
+    // The units move from "in flight" to the database when the group commits.
+    this.ctx.writer.submit(record, (err) => {
+      this.leave();
+      if (err !== undefined) return this.refuseUnmetered(err);
+      this.noticeQuota(status);
+      this.originalEnd(...args);
+    });
+  }
+
+  /** The socket closed: a request that never finished is recorded as 499. */
+  closed(): void {
+    if (this.recorded || this.res.writableFinished) return;
+    this.recorded = true;
+    const requestId = this.res.locals.requestId;
+    let record: RequestRecord;
+    try {
+      record = this.recordOf(499, undefined);
+    } catch (err) {
+      this.leave();
+      console.error(`[metering] could not record aborted request ${requestId}:`, err);
+      return;
+    }
+    this.ctx.writer.submit(record, (err) => {
+      this.leave();
+      if (err !== undefined) console.error(`[metering] could not record aborted request ${requestId}:`, err);
+    });
+  }
+}
+
 export function metering(deps: AppDeps): RequestHandler {
-  // The meters of requests in flight, per account: their charged units count against the quota
-  // of the account's other requests until they are committed (this process only; see rate-limit.ts).
-  const inFlight = new Map<number, Set<MeterState>>();
-  const writer = meteringWriter(deps.sqlite);
+  const ctx: MeteringContext = { deps, writer: meteringWriter(deps.sqlite), inFlight: new Map() };
   return (req, res, next) => {
     const auth = res.locals.auth;
     if (!auth) throw new Error('metering must run after authentication');
-    const siblings = inFlight.get(auth.accountId) ?? new Set<MeterState>();
-    inFlight.set(auth.accountId, siblings);
-    const meter: MeterState = {
-      operation: 'unmatched',
-      units: 0,
-      quota: auth.monthlyUnitQuota,
-      usedByOthers: () => {
-        let pending = 0;
-        for (const other of siblings) if (other !== meter) pending += other.units;
-        return committedUnitsThisMonth(deps.sqlite, auth.accountId, deps.clock()) + pending;
-      },
-    };
-    siblings.add(meter);
-    const leave = () => {
-      siblings.delete(meter);
-      if (siblings.size === 0 && inFlight.get(auth.accountId) === siblings) inFlight.delete(auth.accountId);
-    };
+    const meter = new MeteredRequest(ctx, req, res, auth);
     res.locals.meter = meter;
-    const retain = auth.retainRequestBodies;
-    // The presented key is needed only to redact it from logged bodies.
-    const token = retain ? presentedToken(req.get('authorization')) : undefined;
-    let recorded = false;
-
-    const recordOf = (status: number, responseChunk: Buffer | string | undefined): RequestRecord => {
-      const limit = deps.config.logBodyLimitBytes;
-      return {
-        at: deps.clock(),
-        accountId: auth.accountId,
-        keyId: auth.keyId,
-        operation: meter.operation,
-        status,
-        units: status < 400 ? meter.units : 0,
-        latencyMs: elapsedMs(res.locals.startedAt),
-        requestId: res.locals.requestId ?? '',
-        engineVersion: deps.engineVersion,
-        method: req.method,
-        path: req.originalUrl.split('?')[0] ?? req.originalUrl,
-        requestBody: retain ? logBody(req.body, limit, token) : null,
-        responseBody: retain ? logBody(responseChunk, limit, token) : null,
-      };
-    };
-    // Quota e-mails (80 % / 100 %, once a month): only a request that crossed a threshold
-    // schedules the check, which then runs after this turn, off the hot path.
-    const noticeQuota = (status: number) => {
-      if (status < 400 && meter.units > 0) {
-        const before = meter.usedByOthersAtCharge ?? 0;
-        const after = before + meter.units;
-        if (thresholdsReached(after, meter.quota).length > thresholdsReached(before, meter.quota).length) {
-          scheduleQuotaCheck(deps, auth.accountId);
-        }
-      }
-    };
-
-    const originalEnd = res.end.bind(res) as (...args: unknown[]) => Response;
-    const refuseUnmetered = (err: unknown): void => {
-      console.error(`[metering] could not record request ${res.locals.requestId}:`, err);
-      if (res.headersSent) {
-        // Headers (and maybe a part of a streamed body) have left: cut the response short.
-        res.destroy();
-        return;
-      }
-      const body = JSON.stringify({
-        type: '/problems/internal',
-        title: 'Internal error',
-        status: 500,
-        detail: 'The request could not be metered; no result was returned.',
-        instance: req.originalUrl.split('?')[0],
-        requestId: res.locals.requestId,
-      });
-      res.statusCode = 500;
-      res.removeHeader('ETag');
-      res.setHeader('Content-Type', 'application/problem+json');
-      res.setHeader('Content-Length', Buffer.byteLength(body));
-      originalEnd(body);
-    };
     res.end = function meteredEnd(this: Response, ...args: unknown[]): Response {
-      if (recorded) return originalEnd(...args);
-      recorded = true;
-      const status = res.statusCode;
-      let record: RequestRecord;
-      try {
-        record = recordOf(status, chunkOf(args));
-      } catch (err) {
-        leave();
-        refuseUnmetered(err);
-        return this;
-      }
-      // The units move from "in flight" to the database when the group commits.
-      writer.submit(record, (err) => {
-        leave();
-        if (err !== undefined) return refuseUnmetered(err);
-        noticeQuota(status);
-        originalEnd(...args);
-      });
+      meter.end(args);
       return this;
     } as Response['end'];
-    res.on('close', () => {
-      if (!recorded && !res.writableFinished) {
-        recorded = true;
-        let record: RequestRecord;
-        try {
-          record = recordOf(499, undefined);
-        } catch (err) {
-          leave();
-          console.error(`[metering] could not record aborted request ${res.locals.requestId}:`, err);
-          return;
-        }
-        writer.submit(record, (err) => {
-          leave();
-          if (err !== undefined)
-            console.error(`[metering] could not record aborted request ${res.locals.requestId}:`, err);
-        });
-      }
-    });
+    res.on('close', () => meter.closed());
     next();
   };
 }
