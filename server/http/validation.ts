@@ -225,8 +225,28 @@ function displayNumber(valueSI: number, kind: QuantityKind | undefined): number 
   return roundForDisplay(siToDisplay(valueSI, kind));
 }
 
-/** 12 significant digits: hides binary noise like 0.30000000000000004 in messages and ranges. */
+/** 10^0 … 10^22, each exactly representable as a double. */
+const EXACT_POWERS_OF_TEN = Array.from({ length: 23 }, (_, i) => 10 ** i);
+
+/**
+ * 12 significant digits: hides binary noise like 0.30000000000000004 in results, messages and
+ * ranges. Every output number passes here, and `Number(v.toPrecision(12))` (a string made and
+ * parsed per number) showed in profiles of the calculation routes, so the usual magnitudes are
+ * rounded arithmetically: |v|·10^d is rounded to an integer and divided by 10^d, an exact power
+ * of ten, which gives the double nearest to the 12-digit decimal. It can differ from
+ * toPrecision(12) only in the 12th digit of a value within an ulp of a rounding tie (tested
+ * against toPrecision on random values). Other magnitudes, and non-finite values, go the old way.
+ */
 function roundForDisplay(v: number): number {
+  const a = Math.abs(v);
+  if (a >= 1e-10 && a < 1e11) {
+    const d = 11 - Math.floor(Math.log10(a));
+    const scale = EXACT_POWERS_OF_TEN[d];
+    if (scale !== undefined) {
+      const rounded = Math.round(a * scale) / scale;
+      return v < 0 ? -rounded : rounded;
+    }
+  }
   return Number.isFinite(v) ? Number(v.toPrecision(12)) : v;
 }
 
