@@ -321,6 +321,11 @@ function convert(value: number, unit: Affine): number {
   return value * unit.factor + unit.offset;
 }
 
+/** Each kind's default unit as its affine map to SI, looked up once (the API converts every field). */
+const DEFAULT_UNIT = new Map<QuantityKind, Affine>(
+  quantityKinds.map((kind) => [kind, LOOKUP.get(kind)?.get(key(defaultUnits[kind])) as Affine]),
+);
+
 /**
  * Parses a dimensional input to SI. A number is in the kind's default unit ({@link defaultUnits});
  * a string is a number followed by an optional unit ("1.4 bar", "1.4bar", "-3 °C", "2 barg").
@@ -334,63 +339,89 @@ function convert(value: number, unit: Affine): number {
  * @returns the value in SI (Pa, K, kg/s, J/kg, J/(kg·K), W/(m²·K), m², m, W, kg/kg, kg/m³)
  */
 export function parseQuantity(input: number | string, kind: QuantityKind, field: string): number {
-  const accepted = acceptedUnits(kind);
+  // The success path builds no message and copies no unit list: every quantity of every request
+  // comes through here, and that work showed in profiles of the calculation routes.
   const lookup = LOOKUP.get(kind) as Map<string, Affine>;
-  const error = (message: string): UnitError => new UnitError(field, input, kind, accepted, message);
-  const listed = `accepted units: ${accepted.join(', ')}`;
 
   let value: number;
   let unit: Affine;
   if (typeof input === 'number') {
     if (!Number.isFinite(input)) {
-      throw error(
+      throw unitErrorFor(
+        field,
+        input,
+        kind,
         `${field}: ${String(input)} is not a finite number (${kindLabel(kind)} in ${defaultUnits[kind]})`,
       );
     }
     value = input;
-    unit = lookup.get(key(defaultUnits[kind])) as Affine;
+    unit = DEFAULT_UNIT.get(kind) as Affine;
   } else if (typeof input === 'string') {
     const text = input.trim();
-    if (text.length === 0) throw error(`${field}: empty; give a number with an optional unit (${listed})`);
+    if (text.length === 0) {
+      throw unitErrorFor(
+        field,
+        input,
+        kind,
+        `${field}: empty; give a number with an optional unit (${listed(kind)})`,
+      );
+    }
     const match = NUMBER_AND_UNIT.exec(text);
     if (!match) {
-      throw error(
+      const accepted = acceptedUnits(kind);
+      throw unitErrorFor(
+        field,
+        input,
+        kind,
         `${field}: "${input}" does not start with a number; expected e.g. "1.4 ${accepted[1] ?? accepted[0]}"`,
       );
     }
     value = Number(match[1]);
-    if (!Number.isFinite(value)) throw error(`${field}: "${input}" is not a finite number`);
+    if (!Number.isFinite(value))
+      throw unitErrorFor(field, input, kind, `${field}: "${input}" is not a finite number`);
     const spelled = (match[2] ?? '').trim();
     if (spelled.length === 0) {
-      unit = lookup.get(key(defaultUnits[kind])) as Affine;
+      unit = DEFAULT_UNIT.get(kind) as Affine;
     } else {
       const found = lookup.get(key(spelled));
       if (!found) {
         const other = quantityKinds.find((k) => k !== kind && LOOKUP.get(k)?.has(key(spelled)));
-        throw error(
+        throw unitErrorFor(
+          field,
+          input,
+          kind,
           other
-            ? `${field}: "${spelled}" is a ${kindLabel(other)} unit, not a ${kindLabel(kind)} unit (${listed})`
-            : `${field}: unknown unit "${spelled}" for a ${kindLabel(kind)} (${listed})`,
+            ? `${field}: "${spelled}" is a ${kindLabel(other)} unit, not a ${kindLabel(kind)} unit (${listed(kind)})`
+            : `${field}: unknown unit "${spelled}" for a ${kindLabel(kind)} (${listed(kind)})`,
         );
       }
       unit = found;
     }
   } else {
-    throw error(`${field}: expected a number or a string such as "1.4 ${accepted[1] ?? accepted[0]}"`);
+    const accepted = acceptedUnits(kind);
+    throw unitErrorFor(
+      field,
+      input,
+      kind,
+      `${field}: expected a number or a string such as "1.4 ${accepted[1] ?? accepted[0]}"`,
+    );
   }
 
   const si = convert(value, unit);
   const bound = PHYSICAL_MIN[kind];
   if (bound && (si < bound.min || (bound.max !== undefined && si > bound.max))) {
-    throw error(`${field}: ${String(input)} is not physical: ${bound.what}`);
+    throw unitErrorFor(field, input, kind, `${field}: ${String(input)} is not physical: ${bound.what}`);
   }
   return si;
 }
 
-/** Each kind's default unit as its affine map to SI, looked up once (the API converts every field). */
-const DEFAULT_UNIT = new Map<QuantityKind, Affine>(
-  quantityKinds.map((kind) => [kind, LOOKUP.get(kind)?.get(key(defaultUnits[kind])) as Affine]),
-);
+function unitErrorFor(field: string, input: unknown, kind: QuantityKind, message: string): UnitError {
+  return new UnitError(field, input, kind, acceptedUnits(kind), message);
+}
+
+function listed(kind: QuantityKind): string {
+  return `accepted units: ${acceptedUnits(kind).join(', ')}`;
+}
 
 /** A number in the kind's default unit → SI (no parsing, no physical check: for checked numbers). */
 export function fromDefaultUnit(value: number, kind: QuantityKind): number {
