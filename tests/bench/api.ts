@@ -52,8 +52,8 @@ const TSX = path.join(ROOT, 'node_modules/.bin/tsx');
 const SELF = fileURLToPath(import.meta.url);
 const CONNECTIONS = 10;
 const WARMUP_S = 3;
-const ROUNDS = 4;
-const ROUND_S = 4;
+const ROUNDS = 8;
+const ROUND_S = 3;
 const EXACT_AMOUNT = 3000;
 /** The largest per-key limit keys.ts accepts; the runs stay below it (checked after each run). */
 const RATE_LIMIT_PER_MINUTE = 100_000;
