@@ -29,7 +29,7 @@ export interface MeterState {
    * are still in flight. `chargeUnits` checks the quota against this, so two concurrent requests
    * cannot both spend the same remaining units.
    */
-  usedByOthers: () => number;
+  usedByOthers(): number;
   /** What `usedByOthers()` returned at the last charge (to see whether this request crossed a quota-notice threshold). */
   usedByOthersAtCharge?: number;
 }
