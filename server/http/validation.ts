@@ -375,36 +375,40 @@ function finiteOrNull(v: number): number | null {
   return Number.isFinite(v) ? v : null;
 }
 
-/** Path of the first non-finite number in a JSON-bound value, or undefined if there is none. */
-export function findNonFinite(value: unknown, path = ''): string | undefined {
-  if (typeof value === 'number') return Number.isFinite(value) ? undefined : path || '(root)';
+/**
+ * Path of the first non-finite number in a JSON-bound value ("effects[2].area", "(root)"), or
+ * undefined if there is none. The walk builds no path strings on the way down: every calculation
+ * answer and every batch row is checked, and nearly all of them are clean.
+ */
+export function findNonFinite(value: unknown): string | undefined {
+  const segments = nonFiniteSegments(value);
+  if (segments === undefined) return undefined;
+  if (segments.length === 0) return '(root)';
+  let path = '';
+  for (const segment of segments) {
+    path += typeof segment === 'number' ? `[${segment}]` : path ? `.${segment}` : segment;
+  }
+  return path;
+}
+
+/** The keys and indices down to the first non-finite number (innermost last), or undefined. */
+function nonFiniteSegments(value: unknown): (string | number)[] | undefined {
+  if (typeof value === 'number') return Number.isFinite(value) ? undefined : [];
+  if (value === null || typeof value !== 'object') return undefined;
   if (Array.isArray(value)) {
     for (let i = 0; i < value.length; i++) {
-      const hit = findNonFinite(value[i], `${path}[${i}]`);
-      if (hit) return hit;
+      const hit = nonFiniteSegments(value[i]);
+      if (hit) return (hit.unshift(i), hit);
     }
     return undefined;
   }
-  if (value !== null && typeof value === 'object') {
-    for (const [k, v] of Object.entries(value)) {
-      const hit = findNonFinite(v, path ? `${path}.${k}` : k);
-      if (hit) return hit;
-    }
+  const record = value as Record<string, unknown>;
+  for (const k in record) {
+    if (!Object.hasOwn(record, k)) continue;
+    const hit = nonFiniteSegments(record[k]);
+    if (hit) return (hit.unshift(k), hit);
   }
   return undefined;
-}
-
-/** True when every number in a JSON-like value is finite (no paths built: the common case). */
-function allFinite(value: unknown): boolean {
-  if (typeof value === 'number') return Number.isFinite(value);
-  if (value === null || typeof value !== 'object') return true;
-  if (Array.isArray(value)) {
-    for (let i = 0; i < value.length; i++) if (!allFinite(value[i])) return false;
-    return true;
-  }
-  const record = value as Record<string, unknown>;
-  for (const k in record) if (!allFinite(record[k])) return false;
-  return true;
 }
 
 /**
@@ -415,10 +419,11 @@ function allFinite(value: unknown): boolean {
  * route and that a calculation answer never needs.
  */
 export function sendCalculation(res: Response, body: unknown, status = 200): void {
-  if (!allFinite(body)) {
+  const bad = findNonFinite(body);
+  if (bad !== undefined) {
     throw problem(
       'no-solution',
-      `The calculation produced a non-finite number (${findNonFinite(body)}); no result is returned.`,
+      `The calculation produced a non-finite number (${bad}); no result is returned.`,
     );
   }
   const text = JSON.stringify(body);
