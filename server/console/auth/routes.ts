@@ -59,7 +59,6 @@ function signInLimiter(deps: AppDeps, what: string): RequestHandler {
     limit: settings.signInLimit,
     standardHeaders: 'draft-7', // as the API (server/http/middleware/rate-limit.ts)
     legacyHeaders: false,
-    identifier: `console-${what}`,
     keyGenerator: (req) => ipKeyGenerator(req.ip ?? '0.0.0.0'),
     validate: { trustProxy: false, xForwardedForHeader: false },
     handler: (_req, _res, next, options) => {

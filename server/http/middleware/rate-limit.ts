@@ -21,7 +21,6 @@ export function perKeyRateLimit(): RequestHandler {
     limit: (_req, res) => res.locals.auth?.rateLimitPerMinute ?? 60,
     standardHeaders: 'draft-7',
     legacyHeaders: false,
-    identifier: 'per-key',
     keyGenerator: (_req, res) => `key:${res.locals.auth?.keyId ?? 'none'}`,
     handler: (_req, res, next) => {
       const limit = res.locals.auth?.rateLimitPerMinute ?? 60;
