@@ -40,6 +40,12 @@ function chunkOf(args: unknown[]): Buffer | string | undefined {
   return undefined;
 }
 
+/** The URL without its query string (the log and the problem name the path, never the query). */
+function pathOf(url: string): string {
+  const query = url.indexOf('?');
+  return query === -1 ? url : url.slice(0, query);
+}
+
 /** What every metered request of one app shares. */
 interface MeteringContext {
   deps: AppDeps;
@@ -102,8 +108,6 @@ class MeteredRequest implements MeterState {
     const { req, res, auth } = this;
     const retain = auth.retainRequestBodies;
     const limit = deps.config.logBodyLimitBytes;
-    const url = req.originalUrl;
-    const query = url.indexOf('?');
     return {
       at: deps.clock(),
       accountId: auth.accountId,
@@ -115,7 +119,7 @@ class MeteredRequest implements MeterState {
       requestId: res.locals.requestId ?? '',
       engineVersion: deps.engineVersion,
       method: req.method,
-      path: query === -1 ? url : url.slice(0, query),
+      path: pathOf(req.originalUrl),
       requestBody: retain ? logBody(req.body, limit, this.token) : null,
       responseBody: retain ? logBody(responseChunk, limit, this.token) : null,
     };
@@ -149,7 +153,7 @@ class MeteredRequest implements MeterState {
       title: 'Internal error',
       status: 500,
       detail: 'The request could not be metered; no result was returned.',
-      instance: req.originalUrl.split('?')[0],
+      instance: pathOf(req.originalUrl),
       requestId: res.locals.requestId,
     });
     res.statusCode = 500;
