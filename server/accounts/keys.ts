@@ -296,7 +296,12 @@ function installLocalForgetting(sqlite: Sqlite, forget: () => void): void {
       .replace(/^CREATE TRIGGER `[^`]+`/, `CREATE TEMP TRIGGER IF NOT EXISTS \`${name}_local\``)
       .replace(/ ON `(api_keys|accounts)`/, ' ON main.`$1`')
       .replace(/BEGIN[\s\S]*END$/, `BEGIN SELECT ${FORGET_FUNCTION}(); END`);
-    if (twin === sql || !twin.includes('TEMP TRIGGER') || !twin.includes('main.')) {
+    // Each of the three rewrites must have taken, or the twin would not do its one job.
+    if (
+      !twin.includes('TEMP TRIGGER') ||
+      !twin.includes(' ON main.') ||
+      !twin.includes(`SELECT ${FORGET_FUNCTION}();`)
+    ) {
       throw new Error(`cannot derive the local twin of trigger ${name}`);
     }
     sqlite.exec(twin);
