@@ -368,12 +368,11 @@ export function parseQuantity(input: number | string, kind: QuantityKind, field:
     }
     const match = NUMBER_AND_UNIT.exec(text);
     if (!match) {
-      const accepted = acceptedUnits(kind);
       throw unitErrorFor(
         field,
         input,
         kind,
-        `${field}: "${input}" does not start with a number; expected e.g. "1.4 ${accepted[1] ?? accepted[0]}"`,
+        `${field}: "${input}" does not start with a number; expected e.g. "1.4 ${exampleUnit(kind)}"`,
       );
     }
     value = Number(match[1]);
@@ -398,12 +397,11 @@ export function parseQuantity(input: number | string, kind: QuantityKind, field:
       unit = found;
     }
   } else {
-    const accepted = acceptedUnits(kind);
     throw unitErrorFor(
       field,
       input,
       kind,
-      `${field}: expected a number or a string such as "1.4 ${accepted[1] ?? accepted[0]}"`,
+      `${field}: expected a number or a string such as "1.4 ${exampleUnit(kind)}"`,
     );
   }
 
@@ -417,6 +415,12 @@ export function parseQuantity(input: number | string, kind: QuantityKind, field:
 
 function unitErrorFor(field: string, input: unknown, kind: QuantityKind, message: string): UnitError {
   return new UnitError(field, input, kind, acceptedUnits(kind), message);
+}
+
+/** A unit to show in an example: the first alternative spelling, else the default. */
+function exampleUnit(kind: QuantityKind): string {
+  const accepted = acceptedUnits(kind);
+  return accepted[1] ?? accepted[0] ?? '';
 }
 
 function listed(kind: QuantityKind): string {
