@@ -26,6 +26,26 @@ import { isScope, type Scope } from './operations.js';
 /** Accepted shape of a presented bearer token (anything else is "malformed"). */
 export const TOKEN_PATTERN = /^[A-Za-z0-9_.-]{32,256}$/;
 const GENERATED_KEY_PATTERN = /^ebl_(live|test)_([A-Za-z0-9]{12})_([A-Za-z0-9]{32})$/;
+
+/**
+ * Every key-shaped token, wherever it appears in text: the one pattern redaction uses (the request
+ * log: path, problem instance, bodies, property names). Extend it here when a key format is added.
+ * It covers:
+ * - issued keys, `ebl_<kind>_<publicId>_<secret>`, of any kind and length;
+ * - every other token {@link TOKEN_PATTERN} accepts: a registered (bootstrap) key may be any run
+ *   of 32 or more of its characters, and an issued key's bare secret is 32 of them.
+ * The second branch also catches long identifiers (UUIDs, hashes): a log loses an identifier
+ * rather than keep a key.
+ */
+export const KEY_SHAPED_PATTERN = /ebl_[a-z]+_[A-Za-z0-9]+_[A-Za-z0-9]+|[A-Za-z0-9_.-]{32,}/g;
+/** The issued-format branch of {@link KEY_SHAPED_PATTERN} alone (not global: for `test`). */
+export const ISSUED_KEY_SHAPED = new RegExp(KEY_SHAPED_PATTERN.source.split('|')[0]!);
+
+/** The secret part of an issued key (the characters after its public id), if it is one. */
+export function secretPartOf(token: string): string | undefined {
+  return GENERATED_KEY_PATTERN.exec(token)?.[3];
+}
+
 const BASE62 = 'ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789';
 
 /** Uniform random base62 string (rejection sampling, no modulo bias). */

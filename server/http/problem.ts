@@ -8,6 +8,7 @@
  * in app.ts renders it with {@link sendProblem}.
  */
 import type { Request, Response } from 'express';
+import { redactText } from '../accounts/request-log.js';
 
 /** One offending input, named by its dotted path into the request (e.g. `feed.massFraction`). */
 export interface ProblemFieldError {
@@ -177,7 +178,8 @@ export function sendProblem(res: Response, p: ProblemError): void {
     title: p.title,
     status: p.status,
     ...(p.detail !== undefined ? { detail: p.detail } : {}),
-    instance: req.originalUrl.split('?')[0] ?? req.originalUrl,
+    // The path only, with key-shaped segments redacted (the body is logged and may be shown).
+    instance: redactText(req.originalUrl.split('?')[0] ?? req.originalUrl),
     ...(typeof res.locals.requestId === 'string' ? { requestId: res.locals.requestId } : {}),
     ...(p.errors && p.errors.length > 0 ? { errors: p.errors } : {}),
   };

@@ -26,7 +26,8 @@ import {
   type MeteringWriter,
   type RequestRecord,
 } from '../../accounts/metering.js';
-import { logBody } from '../../accounts/request-log.js';
+import crypto from 'node:crypto';
+import { carriesKey, logBody, redactText, type RedactionContext } from '../../accounts/request-log.js';
 import { scheduleQuotaCheck, thresholdsReached } from '../../billing/quota-notices.js';
 import type { AppDeps } from '../app.js';
 import { presentedToken } from './auth.js';
@@ -40,10 +41,28 @@ function chunkOf(args: unknown[]): Buffer | string | undefined {
   return undefined;
 }
 
-/** The URL without its query string (the log and the problem name the path, never the query). */
-function pathOf(url: string): string {
+/**
+ * The URL without its query string (the log and the problem name the path, never the query), with
+ * key-shaped segments redacted (a key sent as `/v1/liquors/<key>` is not stored).
+ */
+export function pathOf(url: string): string {
   const query = url.indexOf('?');
-  return query === -1 ? url : url.slice(0, query);
+  return redactText(query === -1 ? url : url.slice(0, query));
+}
+
+/**
+ * A request id the client offered is stored and echoed back: one that carries a key (issued
+ * format, the presented key or its secret part, the bootstrap key) is replaced by a fresh UUID
+ * before either happens. Other ids, UUIDs included, are kept for the client's correlation.
+ */
+function keepRequestIdKeyFree(req: Request, res: Response, bootstrapKey: string | undefined): void {
+  const id = res.locals.requestId;
+  if (id === undefined || req.get('x-request-id') !== id) return;
+  if (carriesKey(id, [presentedToken(req.get('authorization')), bootstrapKey])) {
+    const fresh = crypto.randomUUID();
+    res.locals.requestId = fresh;
+    res.setHeader('X-Request-Id', fresh);
+  }
 }
 
 /** What every metered request of one app shares. */
@@ -85,6 +104,7 @@ class MeteredRequest implements MeterState {
     this.siblings = siblings;
     this.originalEnd = res.end.bind(res) as (...args: unknown[]) => Response;
     this.token = auth.retainRequestBodies ? presentedToken(req.get('authorization')) : undefined;
+    keepRequestIdKeyFree(req, res, ctx.deps.config.bootstrapApiKey);
   }
 
   usedByOthers(): number {
@@ -101,6 +121,10 @@ class MeteredRequest implements MeterState {
     if (this.siblings.size === 0 && inFlight.get(this.auth.accountId) === this.siblings) {
       inFlight.delete(this.auth.accountId);
     }
+  }
+
+  private redaction(): RedactionContext {
+    return { presentedToken: this.token, requestId: this.res.locals.requestId };
   }
 
   private recordOf(status: number, responseChunk: Buffer | string | undefined): RequestRecord {
@@ -120,8 +144,8 @@ class MeteredRequest implements MeterState {
       engineVersion: deps.engineVersion,
       method: req.method,
       path: pathOf(req.originalUrl),
-      requestBody: retain ? logBody(req.body, limit, this.token) : null,
-      responseBody: retain ? logBody(responseChunk, limit, this.token) : null,
+      requestBody: retain ? logBody(req.body, limit, this.redaction()) : null,
+      responseBody: retain ? logBody(responseChunk, limit, this.redaction()) : null,
     };
   }
 
