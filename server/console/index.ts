@@ -12,6 +12,7 @@ import cookieParser from 'cookie-parser';
 import express from 'express';
 import { consoleSettings } from '../config.js';
 import type { AppDeps, AppModule } from '../http/app.js';
+import { jsonBodyGuard } from '../http/middleware/body.js';
 import { auditRouteModule } from './audit.js';
 import { billingRouteModule } from './billing.js';
 import { authRouteModule } from './auth/routes.js';
@@ -55,6 +56,8 @@ export function createConsoleRouter(deps: AppDeps): express.Router {
   router.use(
     express.json({ limit: deps.config.bodyLimitBytes, type: ['application/json', 'application/*+json'] }),
   );
+  // The same nesting limit and refused property names as /v1 bodies.
+  router.use(jsonBodyGuard());
   router.use(sessionMiddleware(deps));
   router.use(csrfCheck(deps));
   router.get('/openapi.json', (_req, res) => {

@@ -57,6 +57,12 @@ export const problemCatalogue = {
     title: 'Bad request',
     description: 'The request could not be understood (for example an invalid header or query string).',
   },
+  'body-too-deep': {
+    status: 400,
+    title: 'Body nested too deeply',
+    description:
+      'The JSON body nests arrays and objects deeper than the service accepts; the detail states the limit.',
+  },
   'malformed-json': {
     status: 400,
     title: 'Malformed JSON',

@@ -10,6 +10,7 @@
 import type { Request, RequestHandler, Response } from 'express';
 import multer from 'multer';
 import { MAX_UPLOAD_BYTES } from '../../shared/contracts/liquors.js';
+import { checkJsonBody } from './middleware/body.js';
 import { problem, type ProblemError } from './problem.js';
 
 export interface UploadOptions {
@@ -37,12 +38,25 @@ export function singleCsvUpload(options: UploadOptions = {}): (req: Request, res
       fileSize: MAX_UPLOAD_BYTES,
       files: 1,
       fields: 10,
+      // Bracketed field names build nested objects: bound their nesting and array indices so a
+      // field name cannot make a huge sparse array or a deep tree for later code to walk.
+      fieldNestingDepth: 8,
+      fieldArrayIndexLimit: 999,
       ...(options.fieldSize !== undefined ? { fieldSize: options.fieldSize } : {}),
     },
   }).single('file');
   return (req, res) =>
     new Promise((resolve, reject) => {
-      single(req, res, (err: unknown) => (err ? reject(uploadProblem(err)) : resolve()));
+      single(req, res, (err: unknown) => {
+        if (err) return reject(uploadProblem(err));
+        // Field names are as hostile as JSON property names: the same refusals.
+        const refused = checkJsonBody(req.body);
+        if (refused) {
+          req.body = undefined;
+          return reject(refused);
+        }
+        resolve();
+      });
     });
 }
 

@@ -1,6 +1,7 @@
 /**
  * Request-body handling for /v1: one step that checks the media type (415) and runs the JSON or
- * CSV parser with the size limit (413), and translation of the parsers' errors into problems
+ * CSV parser with the size limit (413), the JSON nesting limit (400) and refused property names
+ * (422), and translation of the parsers' errors into problems
  * (400 'malformed-json', 413, 415).
  *
  * Accepted media types for POST/PUT/PATCH bodies: application/json (and +json), text/csv (parsed
@@ -8,6 +9,98 @@
  */
 import express, { type ErrorRequestHandler, type RequestHandler } from 'express';
 import { problem, ProblemError } from '../problem.js';
+
+/**
+ * Deepest nesting of arrays and objects accepted in a JSON body. The deepest body the API
+ * documents (a batch of cases with an inline custom liquor) nests about ten levels; 64 leaves room
+ * and stays far below what recursive code (zod, redaction for the log, JSON.stringify) survives.
+ */
+export const MAX_JSON_DEPTH = 64;
+
+/**
+ * Property names refused anywhere in a JSON body. JSON.parse makes them own properties, which is
+ * harmless by itself, but code that copies such a body by assignment would set a prototype
+ * instead of a property; no field of the API has these names.
+ */
+export const FORBIDDEN_KEYS: ReadonlySet<string> = new Set(['__proto__', 'constructor', 'prototype']);
+
+/** The dotted path (`cases[2].feed.__proto__`) of the first forbidden property name; slow path. */
+function forbiddenKeyPath(root: unknown): string {
+  const stack: [unknown, string][] = [[root, '']];
+  while (stack.length > 0) {
+    const [value, path] = stack.pop()!;
+    if (value === null || typeof value !== 'object') continue;
+    if (Array.isArray(value)) {
+      value.forEach((v, i) => stack.push([v, `${path}[${i}]`]));
+      continue;
+    }
+    for (const key of Object.keys(value)) {
+      const child = path === '' ? key : `${path}.${key}`;
+      if (FORBIDDEN_KEYS.has(key)) return child;
+      stack.push([(value as Record<string, unknown>)[key], child]);
+    }
+  }
+  return '';
+}
+
+/**
+ * Checks a parsed JSON body without recursion (an explicit stack), so a body nested thousands of
+ * levels deep is refused before any recursive code sees it: a 400 'body-too-deep' beyond
+ * {@link MAX_JSON_DEPTH} levels, a 422 naming the field for a {@link FORBIDDEN_KEYS} name.
+ */
+export function checkJsonBody(body: unknown): ProblemError | undefined {
+  if (body === null || typeof body !== 'object') return undefined;
+  const values: unknown[] = [body];
+  const depths: number[] = [1];
+  while (values.length > 0) {
+    const value = values.pop() as object;
+    const depth = depths.pop()!;
+    if (depth > MAX_JSON_DEPTH) {
+      return problem(
+        'body-too-deep',
+        `The JSON body nests deeper than ${MAX_JSON_DEPTH} levels of arrays and objects; at most ${MAX_JSON_DEPTH} are accepted.`,
+      );
+    }
+    const children: unknown[] = Array.isArray(value) ? value : Object.keys(value);
+    for (const item of children) {
+      let child: unknown = item;
+      if (!Array.isArray(value)) {
+        if (FORBIDDEN_KEYS.has(item as string)) {
+          const field = forbiddenKeyPath(body);
+          return problem('validation-failed', `${field}: is not an accepted field name.`, {
+            errors: [
+              {
+                field,
+                message: `is not an accepted field name (${[...FORBIDDEN_KEYS].join(', ')} are refused)`,
+              },
+            ],
+          });
+        }
+        child = (value as Record<string, unknown>)[item as string];
+      }
+      if (child !== null && typeof child === 'object') {
+        values.push(child);
+        depths.push(depth + 1);
+      }
+    }
+  }
+  return undefined;
+}
+
+/**
+ * Runs after a JSON parser: refuses a body {@link checkJsonBody} rejects. The refused body is
+ * dropped from the request, so nothing later (the request log included) walks it.
+ */
+export function jsonBodyGuard(): RequestHandler {
+  return (req, _res, next) => {
+    const refused = checkJsonBody(req.body);
+    if (refused) {
+      req.body = undefined;
+      return next(refused);
+    }
+    next();
+  };
+}
 
 const BODY_METHODS = new Set(['POST', 'PUT', 'PATCH']);
 
@@ -37,9 +130,12 @@ function mediaKind(header: string | undefined): 'json' | 'csv' | 'multipart' | u
 export function bodyReader(limitBytes: number): RequestHandler {
   const json = express.json({ limit: limitBytes, type: () => true });
   const csv = express.text({ limit: limitBytes, type: () => true });
+  const guard = jsonBodyGuard();
   return (req, res, next) => {
     const kind = mediaKind(req.headers['content-type']);
-    if (kind === 'json') return json(req, res, next);
+    if (kind === 'json') {
+      return json(req, res, (err?: unknown) => (err ? next(err) : guard(req, res, next)));
+    }
     if (kind === 'csv') return csv(req, res, next);
     if (kind === undefined && BODY_METHODS.has(req.method) && hasBody(req.headers)) {
       throw problem(

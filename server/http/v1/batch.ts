@@ -17,6 +17,7 @@ import { operations, type OperationId } from '../../accounts/operations.js';
 import type { AppDeps } from '../app.js';
 import { chargeUnits, requireOperation } from '../middleware/operation.js';
 import { toCsv } from '../csv.js';
+import { FORBIDDEN_KEYS } from '../middleware/body.js';
 import { singleCsvUpload } from '../upload.js';
 import { problem, problemTypeUri, ProblemError } from '../problem.js';
 import { findNonFinite, toProblem, validate } from '../validation.js';
@@ -42,19 +43,53 @@ function caseUnits(operation: BatchOperation, c: Record<string, unknown>): numbe
   return operations[OPERATION_OF[operation]].units;
 }
 
-/** Sets a dotted path ("feed.massFlow", "overallHeatTransferCoefficients[1]") in an object. */
+/** Largest array index a CSV column may name: no array of a case has more than 50 entries. */
+const MAX_COLUMN_INDEX = 999;
+
+function columnProblem(column: string, message: string): ProblemError {
+  return problem('validation-failed', `CSV column "${column}" ${message}.`, {
+    errors: [{ field: column, message }],
+  });
+}
+
+/**
+ * Sets a dotted path ("feed.massFlow", "overallHeatTransferCoefficients[1]") in an object. The
+ * path is a CSV column name, so it is hostile: a segment naming a prototype (`__proto__`,
+ * `constructor`, `prototype`) is refused, only own properties are descended into (never an
+ * inherited `toString`), an array takes only indices up to {@link MAX_COLUMN_INDEX} (never
+ * `length`), and a column that would overwrite another column's value is refused.
+ */
 function setPath(target: Record<string, unknown>, path: string, value: unknown): void {
   const keys = path.split(/\.|\[(\d+)\]/).filter((k) => k !== undefined && k !== '');
   let node: Record<string, unknown> | unknown[] = target;
   keys.forEach((key, i) => {
+    if (FORBIDDEN_KEYS.has(key)) {
+      throw columnProblem(
+        path,
+        `names "${key}", which is not a field (${[...FORBIDDEN_KEYS].join(', ')} are refused)`,
+      );
+    }
+    const isIndex = /^\d+$/.test(key);
+    if (Array.isArray(node) && (!isIndex || Number(key) > MAX_COLUMN_INDEX)) {
+      throw columnProblem(
+        path,
+        `needs an index from 0 to ${MAX_COLUMN_INDEX} after "${keys.slice(0, i).join('.')}"`,
+      );
+    }
     const last = i === keys.length - 1;
     const nextIsIndex = /^\d+$/.test(keys[i + 1] ?? '');
-    const k = /^\d+$/.test(key) ? Number(key) : key;
+    const k = isIndex ? Number(key) : key;
     const container = node as Record<string | number, unknown>;
-    if (last) container[k] = value;
-    else {
-      container[k] ??= nextIsIndex ? [] : {};
-      node = container[k] as Record<string, unknown>;
+    const existing = Object.hasOwn(container, k) ? container[k] : undefined;
+    if (last) {
+      if (existing !== undefined) throw columnProblem(path, 'sets a value that another column sets too');
+      container[k] = value;
+    } else if (existing === undefined) {
+      node = container[k] = nextIsIndex ? [] : {};
+    } else if (existing !== null && typeof existing === 'object') {
+      node = existing as Record<string, unknown>;
+    } else {
+      throw columnProblem(path, `goes inside "${keys.slice(0, i + 1).join('.')}", which another column sets`);
     }
   });
 }
