@@ -46,6 +46,16 @@ export function secretPartOf(token: string): string | undefined {
   return GENERATED_KEY_PATTERN.exec(token)?.[3];
 }
 
+/**
+ * What the console shows for a key: never a secret character. An issued key (or a registered key
+ * of the issued format) shows its first 16 characters, `ebl_<kind>_` and the start of its public
+ * id; a registered key of another format shows only its public id (`boot…`, made up at
+ * registration), since every character of such a key is secret.
+ */
+export function displayPrefix(token: string, publicId: string): string {
+  const issued = GENERATED_KEY_PATTERN.exec(token);
+  return issued ? `ebl_${issued[1]}_${issued[2]}`.slice(0, 16) : publicId;
+}
 const BASE62 = 'ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789';
 
 /** Uniform random base62 string (rejection sampling, no modulo bias). */
@@ -116,7 +126,7 @@ export function createKey(
       expiresAt: input.expiresAt ?? null,
       createdAt: input.now,
       rotatedFromId: input.rotatedFromId ?? null,
-      prefix: token.slice(0, 16),
+      prefix: displayPrefix(token, publicId),
     })
     .returning()
     .get();

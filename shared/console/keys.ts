@@ -26,7 +26,10 @@ export const KeySchema = z
     accountId: z.int(),
     accountName: z.string(),
     name: z.string(),
-    prefix: z.string().meta({ description: 'First characters of the key, safe to show' }),
+    prefix: z.string().meta({
+      description:
+        'Non-secret identifier of the key: for an issued key its first characters (ebl_<kind>_ and the start of its public id); for a registered key of another format, its public id',
+    }),
     scopes: z.array(KeyScopeSchema),
     rateLimitPerMinute: z.int(),
     createdAt: InstantSchema,
