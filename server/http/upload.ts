@@ -12,6 +12,16 @@ import multer from 'multer';
 import { MAX_UPLOAD_BYTES } from '../../shared/contracts/liquors.js';
 import { problem, type ProblemError } from './problem.js';
 
+/** multer's limits below: at most this many text fields, each at most this large by default. */
+const MAX_FIELDS = 10;
+const DEFAULT_FIELD_SIZE = 1024 * 1024;
+/**
+ * The largest multipart body any upload route can accept: the file, every text field at its
+ * largest, and 64 KiB for the part headers and boundaries. server.ts refuses a larger declared
+ * Content-Length under Expect: 100-continue before the body is sent.
+ */
+export const MULTIPART_BODY_CEILING = MAX_UPLOAD_BYTES + MAX_FIELDS * DEFAULT_FIELD_SIZE + 64 * 1024;
+
 export interface UploadOptions {
   /** Largest text field, bytes (multer's default is 1 MB). */
   fieldSize?: number;
@@ -36,13 +46,22 @@ export function singleCsvUpload(options: UploadOptions = {}): (req: Request, res
     limits: {
       fileSize: MAX_UPLOAD_BYTES,
       files: 1,
-      fields: 10,
+      fields: MAX_FIELDS,
       ...(options.fieldSize !== undefined ? { fieldSize: options.fieldSize } : {}),
     },
   }).single('file');
   return (req, res) =>
     new Promise((resolve, reject) => {
-      single(req, res, (err: unknown) => (err ? reject(uploadProblem(err)) : resolve()));
+      single(req, res, (err: unknown) => {
+        if (err) return reject(uploadProblem(err));
+        // The body is complete: an API key revoked while it arrived refuses the request here.
+        try {
+          res.locals.recheckKey?.();
+        } catch (e) {
+          return reject(e as Error);
+        }
+        resolve();
+      });
     });
 }
 
