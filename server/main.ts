@@ -31,7 +31,7 @@ import { checkQuotaNotices } from './billing/quota-notices.js';
 import { ConfigError, loadConfig, serverSettings, type Config } from './config.js';
 import { openDatabase, runMigrations } from './db/client.js';
 import { createApp, type AppDeps } from './http/app.js';
-import { createHttpServer, type Lifecycle } from './http/server.js';
+import { createHttpServer, startDraining, type Lifecycle } from './http/server.js';
 import { startMailCapture, type MailCapture } from './integrations/mail-capture.js';
 import { loadPaymentsConfig, PaymentsConfigError } from './integrations/payments/config.js';
 import { startFakePaymentProvider, type FakePaymentProvider } from './integrations/payments/fake-provider.js';
@@ -228,9 +228,9 @@ async function main(): Promise<void> {
    *    during the grace period clients reconnect after each `Connection: close`, and the
    *    connections the kernel had accepted but Node had not yet taken when the listener closed
    *    would be reset with their request written.
-   * 2. For SHUTDOWN_GRACE_MS the open connections stay open; every request on them is answered
-   *    with `Connection: close` (server.ts), so each client drops its connection after its next
-   *    answer, and /readyz says 503. When the last connection is gone the process exits at once.
+   * 2. For SHUTDOWN_GRACE_MS the open connections stay open; every answer from now on, those of
+   *    requests in flight included, carries `Connection: close` (server.ts), so each client drops
+   *    its connection after its next answer, and /readyz says 503. When the last connection is gone the process exits at once.
    * 3. Then the connections still idle (silent for the whole grace period) are closed, and closed
    *    again as requests in flight finish; after SHUTDOWN_TIMEOUT_MS more, everything is cut.
    *    (Node counts a connection as idle only when no byte of a request has been parsed on it; a
@@ -241,7 +241,7 @@ async function main(): Promise<void> {
   const shutdown = (signal: string) => {
     if (stopping) return;
     stopping = true;
-    lifecycle.draining = true;
+    startDraining(server);
     const { shutdownGraceMs } = serverSettings(config);
     console.log(
       `[shutdown] ${signal}: no new connections; answering open ones with Connection: close for ${shutdownGraceMs} ms`,

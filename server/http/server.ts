@@ -17,9 +17,9 @@
  *   a 413 problem and `Connection: close`, so the client never sends the body; otherwise the
  *   server says `100 Continue` and hands the request to the app. The refusal comes before
  *   authentication, so it is not metered (nothing was computed; a 2xx is always metered).
- * - **Draining.** Once `lifecycle.draining` is set (main.ts on SIGTERM), every response carries
- *   `Connection: close`, so keep-alive clients stop reusing their connections, and /readyz
- *   answers 503 (app.ts).
+ * - **Draining.** From `startDraining(server)` on (main.ts on SIGTERM), every response that has
+ *   not started carries `Connection: close`, those of requests already in flight included, so
+ *   keep-alive clients stop reusing their connections; /readyz answers 503 (app.ts).
  */
 import http from 'node:http';
 import type { Socket } from 'node:net';
@@ -146,14 +146,42 @@ function checkContinue(
   };
 }
 
+/** What startDraining needs of a server made here. */
+interface ServerState {
+  lifecycle: Lifecycle;
+  /** Responses whose requests have arrived and which have not closed yet. */
+  inFlight: Set<http.ServerResponse>;
+}
+const states = new WeakMap<http.Server, ServerState>();
+
+/**
+ * Marks the server as draining: later responses and those of the requests in flight close their
+ * connection once sent. The caller closes the listener and, later, the idle connections.
+ */
+export function startDraining(server: http.Server): void {
+  const state = states.get(server);
+  if (!state) throw new Error('startDraining: not a server made by createHttpServer');
+  state.lifecycle.draining = true;
+  for (const res of state.inFlight) if (!res.headersSent) res.setHeader('Connection', 'close');
+}
+
 export function createHttpServer(
   app: http.RequestListener,
   config: Config,
   lifecycle: Lifecycle = { draining: false },
 ): http.Server {
   const settings = serverSettings(config);
+  const inFlight = new Set<http.ServerResponse>();
+  // One shared listener, not a closure per request.
+  function settled(this: http.ServerResponse): void {
+    inFlight.delete(this);
+  }
   const handle: http.RequestListener = (req, res) => {
     if (lifecycle.draining) res.setHeader('Connection', 'close');
+    else {
+      inFlight.add(res);
+      res.on('close', settled);
+    }
     app(req, res);
   };
   const server = http.createServer(
@@ -172,5 +200,6 @@ export function createHttpServer(
   );
   server.on('checkContinue', checkContinue(config, handle));
   server.on('clientError', onClientError);
+  states.set(server, { lifecycle, inFlight });
   return server;
 }

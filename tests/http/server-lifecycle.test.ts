@@ -16,7 +16,7 @@ import { scopes as ALL_SCOPES } from '../../server/accounts/operations.js';
 import { ConfigError, loadConfig, type Config } from '../../server/config.js';
 import { openDatabase, runMigrations } from '../../server/db/client.js';
 import { createApp } from '../../server/http/app.js';
-import { createHttpServer, type Lifecycle } from '../../server/http/server.js';
+import { createHttpServer, startDraining, type Lifecycle } from '../../server/http/server.js';
 import { MULTIPART_BODY_CEILING } from '../../server/http/upload.js';
 import { makeHarness, testConfig, usageRows } from './helpers.js';
 
@@ -330,15 +330,30 @@ describe('the key is checked again when the body is complete', () => {
 });
 
 describe('a draining server', () => {
-  it('answers every request with Connection: close and reports not ready', async () => {
+  it('answers every request with Connection: close, those in flight at the start included, and reports not ready', async () => {
     const h = makeHarness();
     const lifecycle: Lifecycle = { draining: false };
     const port = await listen(createApp({ ...h.deps, lifecycle }), h.config, lifecycle);
+    const server = servers.at(-1)!;
     const before = await fetch(`http://127.0.0.1:${port}/readyz`);
     expect(before.status).toBe(200);
     expect(before.headers.get('connection')).toBe('keep-alive');
 
-    lifecycle.draining = true;
+    // A request in flight when draining starts: headers and half the body sent.
+    const body = JSON.stringify({ note: 'in flight' });
+    const c = await connect(port);
+    c.socket.write(
+      `POST /v1/__test/charge HTTP/1.1\r\nHost: localhost\r\nAuthorization: Bearer ${h.token}\r\n` +
+        `Content-Type: application/json\r\nContent-Length: ${body.length}\r\n\r\n${body.slice(0, 4)}`,
+    );
+    await sleep(100);
+    startDraining(server);
+    expect(lifecycle.draining).toBe(true);
+    c.socket.write(body.slice(4));
+    await c.closed; // the server closes the connection once the answer is sent
+    expect(c.received()).toMatch(/^HTTP\/1\.1 200 /);
+    expect(c.received()).toMatch(/connection: close/i);
+
     const ready = await fetch(`http://127.0.0.1:${port}/readyz`);
     expect(ready.status).toBe(503);
     expect(ready.headers.get('connection')).toBe('close');
