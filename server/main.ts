@@ -6,7 +6,7 @@
  * ones, let in-flight requests finish for up to SHUTDOWN_TIMEOUT_MS more, stop the development
  * services, close the database, exit 0).
  *
- *   PORT=8080 DB_FILE=./data/ebullio.db BOOTSTRAP_API_KEY=… npx tsx server/main.ts
+ *   PORT=8080 DB_FILE=./data/ebullio.db BOOTSTRAP_API_KEY=… node --import tsx server/main.ts
  *
  * Development services (never with NODE_ENV=production):
  *
