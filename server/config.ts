@@ -8,6 +8,10 @@
  * | EBULLIO_SECRET | generated | server secret for API-key HMACs (≥ 32 chars); if unset, 32 random bytes are generated into `<db folder>/server-secret` (mode 0600) on first start and reused |
  * | REQUEST_LOG_RETENTION_DAYS | 30 | request_log rows older than this are pruned |
  * | BODY_LIMIT | 1mb | largest accepted request body (bytes, or a size like "512kb") |
+ * | HEADERS_TIMEOUT_MS | 10000 | a client must send the request line and headers within this (408 otherwise) |
+ * | REQUEST_TIMEOUT_MS | 30000 | … and the whole request, body included, within this (408 otherwise); ≥ HEADERS_TIMEOUT_MS |
+ * | KEEP_ALIVE_TIMEOUT_MS | 5000 | an idle keep-alive connection is closed after this |
+ * | SHUTDOWN_GRACE_MS | 3000 | on SIGTERM, how long connections stay open to be answered with `Connection: close` before idle ones are closed |
  * | BOOTSTRAP_API_KEY | — | an API key (≥ 32 chars of [A-Za-z0-9_.-]) registered with all scopes on the demo account |
  * | BOOTSTRAP_ADMIN_EMAIL / BOOTSTRAP_ADMIN_PASSWORD | — | an admin user created if absent |
  * | NODE_ENV | development | 'production' turns off the dev-only console outbox and the mail capture default |
@@ -40,6 +44,12 @@ export interface Config {
   bodyLimitBytes: number;
   /** Request and response bodies in the request log are truncated to this many bytes. */
   logBodyLimitBytes: number;
+  // Connection settings: optional so hand-built configs (tests) keep working; read them through
+  // serverSettings(config), which fills the defaults.
+  headersTimeoutMs?: number;
+  requestTimeoutMs?: number;
+  keepAliveTimeoutMs?: number;
+  shutdownGraceMs?: number;
   bootstrapApiKey: string | undefined;
   bootstrapAdminEmail: string | undefined;
   bootstrapAdminPassword: string | undefined;
@@ -76,6 +86,34 @@ export interface ConsoleSettings {
   mailFrom: string;
   invitationTtlMs: number;
   resetTtlMs: number;
+}
+
+/** Connection and shutdown settings with every default filled in. */
+export interface ServerSettings {
+  headersTimeoutMs: number;
+  requestTimeoutMs: number;
+  keepAliveTimeoutMs: number;
+  shutdownGraceMs: number;
+}
+
+/**
+ * An API answers in milliseconds: a client that needs more than seconds to send its headers or
+ * body is stalled or hostile, and holds a connection (and a parser) for nothing.
+ */
+export const SERVER_DEFAULTS: ServerSettings = {
+  headersTimeoutMs: 10_000,
+  requestTimeoutMs: 30_000,
+  keepAliveTimeoutMs: 5_000,
+  shutdownGraceMs: 3_000,
+};
+
+export function serverSettings(config: Config): ServerSettings {
+  return {
+    headersTimeoutMs: config.headersTimeoutMs ?? SERVER_DEFAULTS.headersTimeoutMs,
+    requestTimeoutMs: config.requestTimeoutMs ?? SERVER_DEFAULTS.requestTimeoutMs,
+    keepAliveTimeoutMs: config.keepAliveTimeoutMs ?? SERVER_DEFAULTS.keepAliveTimeoutMs,
+    shutdownGraceMs: config.shutdownGraceMs ?? SERVER_DEFAULTS.shutdownGraceMs,
+  };
 }
 
 const jwtKeyCache = new WeakMap<Buffer, Uint8Array>();
@@ -219,6 +257,26 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   ) {
     throw new ConfigError('CONSOLE_JWT_SECRET must be at least 32 characters');
   }
+  const headersTimeoutMs = parseIntVar(
+    env,
+    'HEADERS_TIMEOUT_MS',
+    SERVER_DEFAULTS.headersTimeoutMs,
+    100,
+    300_000,
+  );
+  const requestTimeoutMs = parseIntVar(
+    env,
+    'REQUEST_TIMEOUT_MS',
+    SERVER_DEFAULTS.requestTimeoutMs,
+    100,
+    600_000,
+  );
+  // Node refuses a headers timeout above the request timeout (the request includes its headers).
+  if (headersTimeoutMs > requestTimeoutMs) {
+    throw new ConfigError(
+      `HEADERS_TIMEOUT_MS (${headersTimeoutMs}) must not exceed REQUEST_TIMEOUT_MS (${requestTimeoutMs})`,
+    );
+  }
   if (env.SMTP_URL && !/^smtps?:\/\//.test(env.SMTP_URL)) {
     throw new ConfigError('SMTP_URL must start with smtp:// or smtps://');
   }
@@ -243,6 +301,16 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     requestLogRetentionDays: parseIntVar(env, 'REQUEST_LOG_RETENTION_DAYS', 30, 1, 3650),
     bodyLimitBytes: env.BODY_LIMIT ? parseSize(env.BODY_LIMIT) : 1024 * 1024,
     logBodyLimitBytes: 8 * 1024,
+    headersTimeoutMs,
+    requestTimeoutMs,
+    keepAliveTimeoutMs: parseIntVar(
+      env,
+      'KEEP_ALIVE_TIMEOUT_MS',
+      SERVER_DEFAULTS.keepAliveTimeoutMs,
+      100,
+      600_000,
+    ),
+    shutdownGraceMs: parseIntVar(env, 'SHUTDOWN_GRACE_MS', SERVER_DEFAULTS.shutdownGraceMs, 0, 60_000),
     bootstrapApiKey,
     bootstrapAdminEmail,
     bootstrapAdminPassword,

@@ -1,10 +1,12 @@
 /**
  * Start-up: config → database (WAL, migrations) → seed/bootstrap → development services → listen;
  * request-log pruning at start and hourly; quota-notice sweep at start and every 10 minutes;
- * graceful shutdown on SIGTERM/SIGINT (stop accepting, let in-flight requests finish for up to
- * SHUTDOWN_TIMEOUT_MS, stop the development services, close the database, exit 0).
+ * a draining shutdown on SIGTERM/SIGINT (see `shutdown` below: refuse new connections, answer
+ * what arrives on open ones with `Connection: close` for SHUTDOWN_GRACE_MS, then close the idle
+ * ones, let in-flight requests finish for up to SHUTDOWN_TIMEOUT_MS more, stop the development
+ * services, close the database, exit 0).
  *
- *   PORT=8080 DB_FILE=./data/ebullio.db BOOTSTRAP_API_KEY=… npx tsx server/main.ts
+ *   PORT=8080 DB_FILE=./data/ebullio.db BOOTSTRAP_API_KEY=… node --import tsx server/main.ts
  *
  * Development services (never with NODE_ENV=production):
  *
@@ -22,13 +24,14 @@
  */
 import fs from 'node:fs';
 import path from 'node:path';
-import type { AddressInfo } from 'node:net';
+import net, { type AddressInfo } from 'node:net';
 import { pruneRequestLog } from './accounts/request-log.js';
 import { ensureDefaultPlans } from './billing/plans.js';
 import { checkQuotaNotices } from './billing/quota-notices.js';
-import { ConfigError, loadConfig, type Config } from './config.js';
+import { ConfigError, loadConfig, serverSettings, type Config } from './config.js';
 import { openDatabase, runMigrations } from './db/client.js';
 import { createApp, type AppDeps } from './http/app.js';
+import { createHttpServer, startDraining, type Lifecycle } from './http/server.js';
 import { startMailCapture, type MailCapture } from './integrations/mail-capture.js';
 import { loadPaymentsConfig, PaymentsConfigError } from './integrations/payments/config.js';
 import { startFakePaymentProvider, type FakePaymentProvider } from './integrations/payments/fake-provider.js';
@@ -36,6 +39,7 @@ import { bootstrap } from './seed/bootstrap.js';
 import { seedDemoConsoleUsers } from './console/demo-users.js';
 import { DEMO_ACCOUNT_NAME } from './seed/demo.js';
 
+/** After the grace period, how long requests still in flight may take before they are cut. */
 const SHUTDOWN_TIMEOUT_MS = 10_000;
 const PRUNE_INTERVAL_MS = 3_600_000;
 const QUOTA_SWEEP_INTERVAL_MS = 600_000;
@@ -165,7 +169,8 @@ async function main(): Promise<void> {
   }
   let payments: FakePaymentProvider | undefined;
 
-  const deps: AppDeps = { db, sqlite, config, clock, engineVersion: version };
+  const lifecycle: Lifecycle = { draining: false };
+  const deps: AppDeps = { db, sqlite, config, clock, engineVersion: version, lifecycle };
   // Quota e-mails (80 % and 100 %, once per account and month; server/billing/quota-notices.ts):
   // a sweep over every account catches usage that no request-time check saw (seeded or imported).
   let sweeping = false;
@@ -189,12 +194,15 @@ async function main(): Promise<void> {
   quotaTimer.unref();
 
   const app = createApp(deps);
-  const server = app.listen(config.port, (err?: Error) => {
-    if (err) {
-      console.error(`[start-up] cannot listen on port ${config.port}: ${err.message}`);
-      sqlite.close();
-      process.exit(1);
-    }
+  const server = createHttpServer(app, config, lifecycle);
+  const onListenError = (err: Error) => {
+    console.error(`[start-up] cannot listen on port ${config.port}: ${err.message}`);
+    sqlite.close();
+    process.exit(1);
+  };
+  server.once('error', onListenError);
+  server.listen(config.port, () => {
+    server.off('error', onListenError);
     const { port } = server.address() as AddressInfo;
     startDevPayments(config, port)
       .then((fake) => {
@@ -209,23 +217,51 @@ async function main(): Promise<void> {
       });
   });
 
+  /**
+   * Draining. A keep-alive client may write its next request on an idle connection at the very
+   * moment the server closes that connection; the client then sees a reset and cannot know
+   * whether the request was processed. So idle connections are not closed at once:
+   *
+   * 1. The listener closes at once (net.Server#close: http.Server#close would also drop every
+   *    idle keep-alive connection). A refused connection carries no request, so a client can
+   *    safely retry elsewhere. Closing it now rather than after the grace period also matters:
+   *    during the grace period clients reconnect after each `Connection: close`, and the
+   *    connections the kernel had accepted but Node had not yet taken when the listener closed
+   *    would be reset with their request written.
+   * 2. For SHUTDOWN_GRACE_MS the open connections stay open; every answer from now on, those of
+   *    requests in flight included, carries `Connection: close` (server.ts), so each client drops
+   *    its connection after its next answer, and /readyz says 503. When the last connection is gone the process exits at once.
+   * 3. Then the connections still idle (silent for the whole grace period) are closed, and closed
+   *    again as requests in flight finish; after SHUTDOWN_TIMEOUT_MS more, everything is cut.
+   *    (Node counts a connection as idle only when no byte of a request has been parsed on it; a
+   *    request written in the very instant of the close is reset, the race every keep-alive
+   *    timeout has, now only for a client that sent nothing for the whole grace period.)
+   */
   let stopping = false;
   const shutdown = (signal: string) => {
     if (stopping) return;
     stopping = true;
-    console.log(`[shutdown] ${signal}: no new connections; finishing in-flight requests`);
+    startDraining(server);
+    const { shutdownGraceMs } = serverSettings(config);
+    console.log(
+      `[shutdown] ${signal}: no new connections; answering open ones with Connection: close for ${shutdownGraceMs} ms`,
+    );
     clearInterval(pruneTimer);
     clearInterval(quotaTimer);
+    let reaper: NodeJS.Timeout | undefined;
+    const grace = setTimeout(() => {
+      server.closeIdleConnections();
+      reaper = setInterval(() => server.closeIdleConnections(), 100);
+    }, shutdownGraceMs);
     const force = setTimeout(() => {
-      console.error(`[shutdown] requests still open after ${SHUTDOWN_TIMEOUT_MS} ms; closing them`);
+      console.error(
+        `[shutdown] requests still open ${SHUTDOWN_TIMEOUT_MS} ms after the grace period; closing them`,
+      );
       server.closeAllConnections();
-    }, SHUTDOWN_TIMEOUT_MS);
+    }, shutdownGraceMs + SHUTDOWN_TIMEOUT_MS);
     force.unref();
-    // Keep-alive connections become idle once their in-flight request is answered: close them then,
-    // instead of waiting for the keep-alive timeout.
-    const reaper = setInterval(() => server.closeIdleConnections(), 100);
-    reaper.unref();
-    server.close(() => {
+    net.Server.prototype.close.call(server, () => {
+      clearTimeout(grace);
       clearTimeout(force);
       clearInterval(reaper);
       // Development services after the last request: a finalize in flight may still call the fake.
@@ -239,7 +275,6 @@ async function main(): Promise<void> {
           process.exit(0);
         });
     });
-    server.closeIdleConnections();
   };
   process.on('SIGTERM', () => shutdown('SIGTERM'));
   process.on('SIGINT', () => shutdown('SIGINT'));

@@ -12,6 +12,7 @@ import { pendingMigrationCount } from '../db/client.js';
 import { bodyErrorTranslator } from './middleware/body.js';
 import { requestId } from './middleware/request-id.js';
 import { problem, problemCatalogue, ProblemError, sendProblem, type ProblemSlug } from './problem.js';
+import type { Lifecycle } from './server.js';
 import { createV1Router } from './v1/index.js';
 import { engineProblem } from './validation.js';
 import { openApiModule } from './openapi.js';
@@ -27,6 +28,8 @@ export interface AppDeps {
   clock: () => Date;
   /** Recorded with every usage event and request-log row. */
   engineVersion: string;
+  /** Set to draining on SIGTERM (main.ts): /readyz then answers 503. Absent in most tests. */
+  lifecycle?: Lifecycle;
 }
 
 /** Routes outside /v1 (OpenAPI document, docs page, console API): registered before the 404. */
@@ -89,6 +92,15 @@ export function createApp(deps: AppDeps): express.Express {
     res.json({ status: 'ok' });
   });
   app.get('/readyz', (_req, res) => {
+    // A draining server still answers what reaches it, but should be sent nothing new.
+    if (deps.lifecycle?.draining) {
+      throw new ProblemError({
+        status: 503,
+        type: 'internal',
+        title: 'Not ready',
+        detail: 'The server is shutting down.',
+      });
+    }
     let pending: number;
     try {
       deps.sqlite.prepare('SELECT 1').get();

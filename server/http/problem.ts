@@ -96,6 +96,12 @@ export const problemCatalogue = {
     description:
       'A state-changing console request must send the X-CSRF-Token header equal to the ebullio_csrf cookie (GET /console-api/auth/csrf sets it).',
   },
+  'request-timeout': {
+    status: 408,
+    title: 'Request timeout',
+    description:
+      'The request line, headers or body did not arrive in time (HEADERS_TIMEOUT_MS, REQUEST_TIMEOUT_MS); the connection is closed. Send the whole request promptly.',
+  },
   'payload-too-large': {
     status: 413,
     title: 'Payload too large',

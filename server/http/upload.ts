@@ -13,6 +13,16 @@ import { MAX_UPLOAD_BYTES } from '../../shared/contracts/liquors.js';
 import { checkJsonBody } from './middleware/body.js';
 import { problem, type ProblemError } from './problem.js';
 
+/** multer's limits below: at most this many text fields, each at most this large by default. */
+const MAX_FIELDS = 10;
+const DEFAULT_FIELD_SIZE = 1024 * 1024;
+/**
+ * The largest multipart body any upload route can accept: the file, every text field at its
+ * largest, and 64 KiB for the part headers and boundaries. server.ts refuses a larger declared
+ * Content-Length under Expect: 100-continue before the body is sent.
+ */
+export const MULTIPART_BODY_CEILING = MAX_UPLOAD_BYTES + MAX_FIELDS * DEFAULT_FIELD_SIZE + 64 * 1024;
+
 export interface UploadOptions {
   /** Largest text field, bytes (multer's default is 1 MB). */
   fieldSize?: number;
@@ -37,7 +47,7 @@ export function singleCsvUpload(options: UploadOptions = {}): (req: Request, res
     limits: {
       fileSize: MAX_UPLOAD_BYTES,
       files: 1,
-      fields: 10,
+      fields: MAX_FIELDS,
       // Bracketed field names build nested objects: bound their nesting and array indices so a
       // field name cannot make a huge sparse array or a deep tree for later code to walk.
       fieldNestingDepth: 8,
@@ -49,6 +59,12 @@ export function singleCsvUpload(options: UploadOptions = {}): (req: Request, res
     new Promise((resolve, reject) => {
       single(req, res, (err: unknown) => {
         if (err) return reject(uploadProblem(err));
+        // The body is complete: an API key revoked while it arrived refuses the request here.
+        try {
+          res.locals.recheckKey?.();
+        } catch (e) {
+          return reject(e as Error);
+        }
         // Field names are as hostile as JSON property names: the same refusals.
         const refused = checkJsonBody(req.body);
         if (refused) {

@@ -161,7 +161,8 @@ function killGroup(proc: ChildProcess): void {
 }
 
 /**
- * The Node flags `npm start` gives the server (package.json "start": `tsx <flags> server/main.ts`),
+ * The Node flags `npm start` gives the server (package.json "start":
+ * `node <flags> --import tsx server/main.ts`),
  * given here to all three servers alike, so the service is measured as it ships and the bare
  * routes under the same runtime settings.
  */
@@ -169,8 +170,10 @@ export function serverNodeFlags(): string[] {
   const pkg = JSON.parse(fs.readFileSync(path.join(ROOT, 'package.json'), 'utf8')) as {
     scripts: Record<string, string>;
   };
-  const m = /\btsx((?:\s+--[\w-]+(?:=\S+)?)*)\s+server\/main\.ts/.exec(pkg.scripts.start ?? '');
-  if (!m) throw new Error('package.json "start" does not run `tsx [flags] server/main.ts`');
+  const m = /\bnode((?:\s+--[\w-]+(?:=\S+)?)*)\s+--import tsx\s+server\/main\.ts/.exec(
+    pkg.scripts.start ?? '',
+  );
+  if (!m) throw new Error('package.json "start" does not run `node [flags] --import tsx server/main.ts`');
   return m[1]!.trim().split(/\s+/).filter(Boolean);
 }
 

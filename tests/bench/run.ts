@@ -9,6 +9,7 @@ import { runSingleEffectBench } from './single-effect.js';
 import { runMultipleEffectBench } from './multiple-effect.js';
 import { runApiBench } from './api.js';
 import { runBundleBench } from './bundle.js';
+import { runDrainBench } from './drain.js';
 
 const sections: { title: string; run: () => Promise<void> }[] = [
   { title: 'IAPWS-IF97 steam properties', run: runSteamBench },
@@ -21,6 +22,7 @@ const sections: { title: string; run: () => Promise<void> }[] = [
     },
   },
   { title: 'Console initial load (gzipped JS + CSS)', run: runBundleBench },
+  { title: 'SIGTERM drain under keep-alive load (real server process)', run: runDrainBench },
 ];
 
 console.log(

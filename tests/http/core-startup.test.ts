@@ -1,5 +1,5 @@
 // Start-up: configuration, the generated server secret, the bootstrap variables, seeding, and a
-// graceful shutdown of the real process (spawned with `npx tsx server/main.ts`).
+// graceful shutdown of the real process (spawned with `node --import tsx server/main.ts`).
 import fs from 'node:fs';
 import net from 'node:net';
 import os from 'node:os';

@@ -1,4 +1,4 @@
-// Metering survives a hard crash: the real server (node_modules/.bin/tsx server/main.ts, a temp
+// Metering survives a hard crash: the real server (node --import tsx server/main.ts, a temp
 // file database in WAL mode) is SIGKILLed in the middle of a bounded load of concurrent
 // authenticated single-effect and batch requests (JSON and CSV answers). Afterwards the database must hold a 2xx usage row for
 // every 2xx response the client saw (a row is committed before the response leaves), and its
@@ -65,7 +65,7 @@ describe('metering across a SIGKILL', () => {
   it('holds a committed 2xx usage row for every 2xx the client received, and extra rows only for requests in flight at the kill', async () => {
     const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'ebullio-kill-'));
     const dbFile = path.join(dir, 'e.db');
-    // Detached, so the SIGKILL below can go to tsx and the server together (see server-process.ts).
+    // Detached, so the SIGKILL below goes to the server's whole process group (see server-process.ts).
     const server = startServerProcess(
       { PORT: '0', DB_FILE: dbFile, BOOTSTRAP_API_KEY: BOOT_KEY },
       { detached: true },
@@ -119,7 +119,7 @@ describe('metering across a SIGKILL', () => {
     clearTimeout(timer);
     kill();
     expect((await server.exited).signal).toBe('SIGKILL');
-    expect(await portClosed(port)).toBe(true); // the server process itself is gone, not only tsx
+    expect(await portClosed(port)).toBe(true); // nothing of the server is left listening
 
     // Opening read-write lets SQLite recover the WAL the killed process left behind.
     const check = new Database(dbFile);

@@ -1,7 +1,9 @@
 // Starts the real server (`server/main.ts`) in a child process for the tests that need a process
-// of their own: graceful shutdown, start-up seeding, SIGKILL metering. This is `npx tsx
-// server/main.ts` without the npm wrapper, because npm's exec process dies of a signal itself
-// instead of reporting the server's exit, so the tests run the same tsx binary that npx resolves.
+// of their own: graceful shutdown, start-up seeding, SIGKILL metering. It runs as `npm start`
+// does (without the build, npm or the memory flag): `node --import tsx server/main.ts`, one
+// process that receives the signals itself. (The tsx command would put a relay process in front, which
+// SIGKILLs the server when it does not acknowledge a SIGTERM within about 60 ms, as happens to a
+// server busy under load: the drain would never run.)
 // `port` resolves once main.ts logs its URL (start it with PORT=0 for an ephemeral port).
 import { spawn, type ChildProcess } from 'node:child_process';
 import path from 'node:path';
@@ -17,15 +19,14 @@ export interface ServerProcess {
 }
 
 /**
- * `detached`: tsx runs the server in a child node process and relays catchable signals to it, but
- * a SIGKILL of tsx alone would orphan the server. Detached, tsx leads its own process group, and a
- * kill sent to the group (`process.kill(-pid, 'SIGKILL')`) ends both.
+ * `detached`: the server leads its own process group, so a test can end it and anything it
+ * started with one kill sent to the group (`process.kill(-pid, 'SIGKILL')`).
  */
 export function startServerProcess(
   env: Record<string, string>,
   opts: { detached?: boolean } = {},
 ): ServerProcess {
-  const child = spawn(path.join(ROOT, 'node_modules/.bin/tsx'), ['server/main.ts'], {
+  const child = spawn(process.execPath, ['--import', 'tsx', 'server/main.ts'], {
     cwd: ROOT,
     env: { ...process.env, ...env },
     stdio: ['ignore', 'pipe', 'pipe'],

@@ -52,3 +52,26 @@ export function authenticate(deps: AppDeps): RequestHandler {
     next();
   };
 }
+
+/**
+ * Authentication happens on the headers, but a body can take seconds to arrive: after the body
+ * is read, the key is checked again, so a key revoked (or expired) while its request's body was
+ * still coming is refused with the same 401 as at the door. Cheap: the found key is remembered
+ * while the database's auth_revision is unchanged (server/accounts/keys.ts).
+ */
+export function reauthenticate(deps: AppDeps): RequestHandler {
+  return (req, res, next) => {
+    const recheck = () => {
+      const token = presentedToken(req.get('authorization'));
+      const result =
+        token === undefined
+          ? ({ ok: false, reason: 'malformed' } as const)
+          : authenticateToken(deps.sqlite, deps.config.secret, token, deps.clock());
+      if (!result.ok) throw unauthorized(result.reason);
+    };
+    // Multipart bodies are read by the route (upload.ts), which calls this again when done.
+    res.locals.recheckKey = recheck;
+    recheck();
+    next();
+  };
+}

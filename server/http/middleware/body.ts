@@ -9,6 +9,7 @@
  */
 import express, { type ErrorRequestHandler, type RequestHandler } from 'express';
 import { problem, ProblemError } from '../problem.js';
+import { timedOutRequests } from '../server.js';
 
 /**
  * Deepest nesting of arrays and objects accepted in a JSON body. The deepest body the API
@@ -172,10 +173,16 @@ function clientErrorProblem(e: BodyParserError): ProblemError | undefined {
 
 /** Turns body-parser (and other http-errors client) errors into ProblemErrors; passes the rest on. */
 export function bodyErrorTranslator(): ErrorRequestHandler {
-  return (err: unknown, _req, _res, next) => {
+  return (err: unknown, req, _res, next) => {
     if (err instanceof ProblemError || !(err instanceof Error)) return next(err);
     const e = err as BodyParserError;
     switch (e.type) {
+      case 'request.aborted':
+        // The server cut a body that arrived too slowly (server.ts): recorded as the 408 it sent.
+        if (timedOutRequests.has(req)) {
+          return next(problem('request-timeout', 'The request body did not arrive in time.'));
+        }
+        return next(problem('bad-request', e.message));
       case 'entity.too.large':
         return next(problem('payload-too-large', `The request body exceeds the limit of ${e.limit} bytes.`));
       case 'entity.parse.failed':
@@ -183,7 +190,6 @@ export function bodyErrorTranslator(): ErrorRequestHandler {
       case 'encoding.unsupported':
       case 'charset.unsupported':
         return next(problem('unsupported-media-type', e.message));
-      case 'request.aborted':
       case 'request.size.invalid':
       case 'stream.encoding.set':
         return next(problem('bad-request', e.message));

@@ -43,6 +43,12 @@ declare global {
       startedAt?: bigint;
       auth?: AuthContext;
       meter?: MeterState;
+      /**
+       * Checks the API key again once the request body is complete; throws the 401 problem if it
+       * was revoked or expired meanwhile. Set by `reauthenticate` (middleware/auth.ts), called by
+       * it after the body reader and by upload.ts after a multipart body.
+       */
+      recheckKey?: () => void;
     }
   }
 }

@@ -3,7 +3,8 @@
  *
  * Order: API-key authentication (401) → metering (every authenticated request is recorded, see
  * middleware/metering.ts) → per-key rate limit (429 'rate-limited') → body reader (media type
- * 415, JSON / CSV parsing 413, 400) → the route modules in {@link v1RouteModules}.
+ * 415, JSON / CSV parsing 413, 400) → the key checked again now that the body is in (401 if it
+ * was revoked meanwhile) → the route modules in {@link v1RouteModules}.
  *
  * A route module registers its routes on the router and guards each with
  * `requireOperation('<operation id>')` from middleware/operation.ts (scope check, metering and
@@ -11,7 +12,7 @@
  */
 import express from 'express';
 import type { AppDeps } from '../app.js';
-import { authenticate } from '../middleware/auth.js';
+import { authenticate, reauthenticate } from '../middleware/auth.js';
 import { bodyReader } from '../middleware/body.js';
 import { metering } from '../middleware/metering.js';
 import { perKeyRateLimit } from '../middleware/rate-limit.js';
@@ -42,6 +43,7 @@ export function createV1Router(deps: AppDeps): express.Router {
   router.use(metering(deps));
   router.use(perKeyRateLimit());
   router.use(bodyReader(deps.config.bodyLimitBytes));
+  router.use(reauthenticate(deps));
   for (const module of v1RouteModules) module.register(router, deps);
   return router;
 }
