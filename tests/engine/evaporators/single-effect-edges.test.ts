@@ -81,6 +81,33 @@ describe('liquid head of a liquor without a density model', () => {
   });
 });
 
+describe('liquid head: design → rating round trip where the old lookup failed', () => {
+  it('rates a BPR = 10·x liquor at 20 kPa back to the product it was designed for (x = 0.1)', () => {
+    // At 20 kPa and a 1 K rise the (p_sat(T), T) lookup landed on the vapour side, so the
+    // design lost its head while every rating iterate kept it. Saturated liquid has no such seam.
+    const liquor = createCustomLiquor({
+      name: 'Linear-BPR liquor without density',
+      boilingPointRise: { polynomial: [0, 10] },
+      heatCapacity: { polynomial: [4180, -2000] },
+      validity: { massFraction: { min: 0, max: 0.5 } },
+    });
+    const design: SingleEffectDesignInput = {
+      liquor,
+      feed: { massFlow: 3, massFraction: 0.05, temperature: 320 },
+      product: { massFraction: 0.1 },
+      steam: { pressure: 200e3 },
+      body: { pressure: 20e3, overallHeatTransferCoefficient: 1500, liquidHeight: 2 },
+    };
+    const d = designSingleEffect(design);
+    // Hydrostatics (common practice): p_mid − p = ρ·g·H/2 with ρ of liquid water, ≈ 970 kg/m³.
+    expect((d.body.meanBoilingPressure - 20e3) / (G * 1)).toBeGreaterThan(900);
+    const { product: _omit, ...rest } = design;
+    const r = rateSingleEffect({ ...rest, body: { ...design.body, area: d.area } });
+    expect(Math.abs(r.product.massFraction - 0.1)).toBeLessThan(1e-8);
+    expect(rel(r.area, d.area)).toBeLessThan(1e-9);
+  });
+});
+
 describe('pure-water feed', () => {
   const water: SingleEffectDesignInput = {
     liquor: sodiumHydroxide,
