@@ -19,6 +19,8 @@ export class EngineRangeError extends Error {
     readonly value: number,
     readonly validRange: ValidRange,
     message?: string,
+    /** Where in a larger calculation the value arose, unit-free (e.g. "effect 2"), for messages. */
+    readonly context?: string,
   ) {
     super(
       message ??

@@ -19,8 +19,8 @@ import type { Response } from 'express';
 import type { z } from 'zod';
 import {
   defaultUnits,
-  describeRange,
   inRange,
+  outOfRangeMessage,
   type QuantityInput,
   type QuantityKind,
   type QuantitySpec,
@@ -269,8 +269,12 @@ export function engineProblem(err: unknown, map: FieldMap = {}): ProblemError | 
     const range = displayRange(err.validRange, kind);
     const value = displayNumber(err.value, kind);
     const unit = kind ? defaultUnits[kind].symbol : err.validRange.unit;
-    const message = `${path} = ${Number.isFinite(value) ? value : String(value)} ${unit} is outside the valid range ${range.min} to ${range.max} ${unit}`;
-    return problem('out-of-range', `${message}. ${err.message}`, {
+    // The context ("effect 2") leads, so a value from inside a train says where it arose.
+    const where = err.context ? `${err.context}: ` : '';
+    const message = `${where}${path} = ${Number.isFinite(value) ? value : String(value)} ${unit} is outside the valid range ${range.min} to ${range.max} ${unit}`;
+    // A labelled error (from inside a train) is fully said by the display-unit message; the
+    // engine's own text would repeat it in SI units.
+    return problem('out-of-range', err.context ? message : `${message}. ${err.message}`, {
       errors: [{ field: path, message, value: echo(value), validRange: range }],
     });
   }
@@ -330,20 +334,17 @@ export function readQuantity(input: QuantityInput, spec: QuantitySpec, field: st
   const display = siToDisplay(si, spec.kind);
   if (!inRange(spec, display)) {
     const unit = defaultUnits[spec.kind].symbol;
-    throw problem(
-      'validation-failed',
-      `${field}: "${input}" is ${roundForDisplay(display)} ${unit}; it must be ${describeRange(spec)}`,
-      {
-        errors: [
-          {
-            field,
-            message: `must be ${describeRange(spec)}`,
-            value: input,
-            validRange: { min: spec.min ?? -Infinity, max: spec.max ?? Infinity, unit },
-          },
-        ],
-      },
-    );
+    const message = outOfRangeMessage(spec, roundForDisplay(display));
+    throw problem('validation-failed', `${field}: "${input}" = ${message}`, {
+      errors: [
+        {
+          field,
+          message: `"${input}" = ${message}`,
+          value: input,
+          validRange: { min: spec.min ?? -Infinity, max: spec.max ?? Infinity, unit },
+        },
+      ],
+    });
   }
   return si;
 }

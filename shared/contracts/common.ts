@@ -69,28 +69,97 @@ export interface QuantitySpec extends QuantityRange {
 }
 
 /**
- * The input quantities of the v1 API with their ranges in default units. The contracts use them
- * to check plain numbers; the server uses the same specs to check strings after unit conversion.
+ * The physically plausible range of every quantity kind, in its default unit: what an input of
+ * that kind may be at all. Anything outside is a typing slip or a probe, never a plant, and is
+ * refused (422 naming the field and this range) before any calculation. The models refuse or
+ * warn further inside these bounds where their own data end.
+ */
+export const physicalRanges: Record<QuantityKind, Required<Pick<QuantityRange, 'min' | 'max'>>> = {
+  // IAPWS-IF97 reaches 2000 °C (region 5); −50 °C covers cold feeds and brines below 0 °C.
+  temperature: { min: -50, max: 2000 },
+  // Superheat, subcooling, BPR: IF97's 2000 °C ceiling less a saturation temperature above 0 °C.
+  temperatureDifference: { min: 0, max: 2000 },
+  // 0.1 kPa (deep vacuum, below the triple point of water) to 100 MPa, IF97's upper pressure.
+  pressure: { min: 0.1, max: 100_000 },
+  // 10 000 kg/s (36 000 t/h) is above the largest evaporator trains and boilers in service.
+  massFlow: { min: 0, max: 10_000 },
+  // IF97 reaches ≈ 7 400 kJ/kg at 2000 °C; liquor enthalpies on the steam-table datum can be
+  // negative (heats of solution), so ±10 000 kJ/kg bounds every state either side.
+  specificEnthalpy: { min: -10_000, max: 10_000 },
+  // Water ≈ 4.2, steam near the critical point up to a few hundred: 0 to 1000 kJ/(kg·K).
+  specificHeatCapacity: { min: 0, max: 1000 },
+  // IF97 entropies lie between 0 and ≈ 12 kJ/(kg·K); 100 leaves room for any liquor datum.
+  specificEntropy: { min: -100, max: 100 },
+  // 10 GW: a steam duty of 10 000 kg/s × ≈ 2 000 kJ/kg is 20 GW; 1e8 kW bounds it generously.
+  power: { min: 0, max: 1e8 },
+  // 1e6 m² is larger than any heat-transfer surface built; a body is tens to a few thousand m².
+  area: { min: 0, max: 1e6 },
+  // U of evaporators is 100–7 000 W/(m²·K) (common practice); 1 to 20 000 spans fouled gas-side
+  // exchangers to dropwise condensation.
+  heatTransferCoefficient: { min: 1, max: 20_000 },
+  massFraction: { min: 0, max: 1 },
+  // A liquid column or tube: up to 1 km bounds any vessel (evaporator heads are 0–30 m).
+  length: { min: 0, max: 1000 },
+  fraction: { min: 0, max: 1 },
+};
+
+/** A kind's physical range, tightened by a field's own bounds where it has them. */
+function within(kind: QuantityKind, own: QuantityRange = {}): QuantitySpec {
+  const phys = physicalRanges[kind];
+  return {
+    kind,
+    min: Math.max(own.min ?? phys.min, phys.min),
+    max: Math.min(own.max ?? phys.max, phys.max),
+    ...(own.minExclusive ? { minExclusive: true } : {}),
+  };
+}
+
+/**
+ * The input quantities of the v1 API with their ranges in default units: each kind's physical
+ * range ({@link physicalRanges}), narrowed where a field needs it (a flow must be > 0). The
+ * contracts use them to check plain numbers; the server uses the same specs to check strings
+ * after unit conversion.
  */
 export const specs = {
-  pressure: { kind: 'pressure', min: 0, minExclusive: true },
-  temperature: { kind: 'temperature', min: -273.15, minExclusive: true },
-  massFraction: { kind: 'massFraction', min: 0, max: 1 },
-  massFlow: { kind: 'massFlow', min: 0, minExclusive: true },
-  bleedFlow: { kind: 'massFlow', min: 0 },
-  enthalpy: { kind: 'specificEnthalpy' },
-  superheat: { kind: 'temperatureDifference', min: 0 },
-  heatTransferCoefficient: { kind: 'heatTransferCoefficient', min: 0, minExclusive: true },
-  area: { kind: 'area', min: 0, minExclusive: true },
-  liquidHeight: { kind: 'length', min: 0, max: 30 },
-  heatLossFraction: { kind: 'fraction', min: 0, max: 0.5 },
-} as const satisfies Record<string, QuantitySpec>;
+  pressure: within('pressure'),
+  temperature: within('temperature'),
+  massFraction: within('massFraction'),
+  massFlow: within('massFlow', { min: 0, minExclusive: true }),
+  bleedFlow: within('massFlow'),
+  enthalpy: within('specificEnthalpy'),
+  superheat: within('temperatureDifference'),
+  heatTransferCoefficient: within('heatTransferCoefficient'),
+  area: within('area', { min: 0, minExclusive: true }),
+  liquidHeight: within('length', { max: 30 }),
+  heatLossFraction: within('fraction', { max: 0.5 }),
+} satisfies Record<string, QuantitySpec>;
 
-/** Human-readable range in default units, e.g. "0 to 1", "> 0 kg/s". */
+/**
+ * Thresholds on the heating side above which a result carries a warning (data in `warnings`, not
+ * a log line): the case still computes but is unusual for an evaporator.
+ */
+export const heatingWarningThresholds = {
+  /** Steam superheat above 50 K: the chest works partly as a gas cooler and U falls (common practice). */
+  steamSuperheat: 50,
+  /** ΔT across a heating surface above 60 K: film boiling and fouling risk (common practice). */
+  temperatureDifference: 60,
+} as const;
+
+/** A number for a message: grouped thousands ("10 000"), plain otherwise. */
+function plain(v: number): string {
+  return Math.abs(v) >= 10_000 && Number.isInteger(v) && Math.abs(v) < 1e15
+    ? v.toLocaleString('en-US').replace(/,/g, ' ')
+    : String(v);
+}
+
+/** Human-readable range in default units, e.g. "0 to 1 mass fraction 0–1", "above 0 to 10 000 kg/s". */
 export function describeRange(spec: QuantitySpec): string {
   const unit = defaultUnits[spec.kind].label;
-  const lo = spec.min === undefined ? undefined : `${spec.minExclusive ? '>' : '≥'} ${spec.min}`;
-  const hi = spec.max === undefined ? undefined : `≤ ${spec.max}`;
+  if (spec.min !== undefined && spec.max !== undefined) {
+    return `${spec.minExclusive ? 'above ' : ''}${plain(spec.min)} to ${plain(spec.max)} ${unit}`;
+  }
+  const lo = spec.min === undefined ? undefined : `${spec.minExclusive ? '>' : '≥'} ${plain(spec.min)}`;
+  const hi = spec.max === undefined ? undefined : `≤ ${plain(spec.max)}`;
   return [lo, hi].filter(Boolean).join(' and ') + ` ${unit}`;
 }
 
@@ -100,6 +169,11 @@ export function inRange(spec: QuantityRange, value: number): boolean {
   if (spec.min !== undefined && (spec.minExclusive ? value <= spec.min : value < spec.min)) return false;
   if (spec.max !== undefined && value > spec.max) return false;
   return true;
+}
+
+/** "1.2e+29 kg/s lies outside the accepted range above 0 to 10 000 kg/s" (value in the default unit). */
+export function outOfRangeMessage(spec: QuantitySpec, value: number): string {
+  return `${value} ${defaultUnits[spec.kind].label} lies outside the accepted range ${describeRange(spec)}`;
 }
 
 /** Longest unit string accepted ("1.4 bar", "38 degC"): anything longer is not a quantity. */
@@ -117,13 +191,23 @@ export const MAX_QUANTITY_STRING = 64;
  */
 export function quantity(spec: QuantitySpec, description: string, example: number | string | undefined) {
   const unit = defaultUnits[spec.kind];
+  // The bounds of the number branch, as JSON Schema keywords, so OpenAPI shows them; zod itself
+  // checks them in the refinement below (one message form for numbers and converted strings).
+  const bounds = {
+    ...(spec.min === undefined
+      ? {}
+      : spec.minExclusive
+        ? { exclusiveMinimum: spec.min }
+        : { minimum: spec.min }),
+    ...(spec.max === undefined ? {} : { maximum: spec.max }),
+  };
   const schema = z
-    .union([z.number(), z.string().trim().min(1).max(MAX_QUANTITY_STRING)])
+    .union([z.number().meta(bounds), z.string().trim().min(1).max(MAX_QUANTITY_STRING)])
     .superRefine((value, ctx) => {
       if (typeof value === 'number' && !inRange(spec, value)) {
         ctx.addIssue({
           code: 'custom',
-          message: `must be ${describeRange(spec)}`,
+          message: outOfRangeMessage(spec, value),
           params: { validRange: { min: spec.min ?? null, max: spec.max ?? null, unit: unit.symbol } },
         });
       }
@@ -131,7 +215,8 @@ export function quantity(spec: QuantitySpec, description: string, example: numbe
     .meta({
       description:
         `${description}. A number in ${unit.label}, or a string with a unit ` +
-        `(e.g. ${unit.examples.map((e) => `"${e}"`).join(', ')}). Range: ${describeRange(spec)}.`,
+        `(e.g. ${unit.examples.map((e) => `"${e}"`).join(', ')}). Accepted range: ${describeRange(spec)}; ` +
+        `a string with a unit is checked against it after conversion to ${unit.label}.`,
       ...(example === undefined ? {} : { example }),
       'x-unit': unit.symbol,
       'x-quantity-kind': spec.kind,

@@ -1,6 +1,14 @@
 /** Contracts of the evaporator routes: single effect (design or rating) and multiple-effect trains. */
 import { z } from 'zod';
-import { CautionSchema, out, ProvenanceSchema, quantity, specs, WarningSchema } from './common.js';
+import {
+  CautionSchema,
+  heatingWarningThresholds,
+  out,
+  ProvenanceSchema,
+  quantity,
+  specs,
+  WarningSchema,
+} from './common.js';
 import { LiquorRefSchema } from './liquors.js';
 
 export const FeedSchema = z
@@ -16,6 +24,18 @@ export const FeedSchema = z
   })
   .strict()
   .meta({ id: 'Feed' });
+
+/**
+ * The single-effect feed: as {@link FeedSchema}, but the mass flow may be left out in rating, where
+ * it is what a given area and product concentration determine.
+ */
+export const SingleEffectFeedSchema = FeedSchema.extend({
+  massFlow: quantity(
+    specs.massFlow,
+    'Feed mass flow. Required in design; in rating (body.area given) give this to find the product, or omit it and give product.massFraction to find the feed',
+    '4.5 t/h',
+  ).optional(),
+}).meta({ id: 'SingleEffectFeed' });
 
 export const ProductSpecSchema = z
   .object({
@@ -58,7 +78,11 @@ export const SteamSpecSchema = z
       'Heating steam saturation temperature (give this or pressure)',
       133,
     ).optional(),
-    superheat: quantity(specs.superheat, 'Superheat of the heating steam above saturation', 0).optional(),
+    superheat: quantity(
+      specs.superheat,
+      `Superheat of the heating steam above saturation; above ${heatingWarningThresholds.steamSuperheat} K the result carries a "large-steam-superheat" warning`,
+      0,
+    ).optional(),
     condensateSubcooling: quantity(
       specs.superheat,
       'Subcooling of the steam condensate below saturation when it leaves the chest (default 0: saturated)',
@@ -105,7 +129,7 @@ const heatLossFraction = quantity(
 export const SingleEffectRequestSchema = z
   .object({
     liquor: LiquorRefSchema,
-    feed: FeedSchema,
+    feed: SingleEffectFeedSchema,
     product: ProductSpecSchema.default({}),
     steam: SteamSpecSchema,
     body: BodySpecSchema,
@@ -115,17 +139,46 @@ export const SingleEffectRequestSchema = z
   .superRefine((r, ctx) => {
     const designTargets =
       (r.product.massFraction !== undefined ? 1 : 0) + (r.product.massFlow !== undefined ? 1 : 0);
-    if (r.body.area === undefined && designTargets === 0) {
+    if (r.body.area === undefined) {
+      if (designTargets === 0) {
+        ctx.addIssue({
+          code: 'custom',
+          path: ['product', 'massFraction'],
+          message: 'design mode (no body.area) needs product.massFraction or product.massFlow',
+        });
+      }
+      if (r.feed.massFlow === undefined) {
+        ctx.addIssue({
+          code: 'custom',
+          path: ['feed', 'massFlow'],
+          message: 'is required in design mode (no body.area)',
+        });
+      }
+      return;
+    }
+    // Rating: body.area fixes one more quantity, so exactly one of feed.massFlow and
+    // product.massFraction is given and the other is found. Both given over-determine the
+    // case; neither leaves it open. Never drop a given value silently.
+    const hasFeed = r.feed.massFlow !== undefined;
+    const hasProduct = r.product.massFraction !== undefined;
+    if (hasFeed && hasProduct) {
+      const message =
+        'over-determined: with body.area given, feed.massFlow and product.massFraction cannot both be given (each is found from the other); omit one';
+      ctx.addIssue({ code: 'custom', path: ['feed', 'massFlow'], message });
+      ctx.addIssue({ code: 'custom', path: ['product', 'massFraction'], message });
+    } else if (!hasFeed && !hasProduct) {
       ctx.addIssue({
         code: 'custom',
-        path: ['product', 'massFraction'],
-        message: 'design mode (no body.area) needs product.massFraction or product.massFlow',
+        path: ['feed', 'massFlow'],
+        message:
+          'rating (body.area given) needs feed.massFlow (to find the product) or product.massFraction (to find the feed)',
       });
     }
   })
   .meta({
     id: 'SingleEffectRequest',
-    description: 'Design (product given, area found) or rating (body.area given, product found).',
+    description:
+      'Design (product given, area found) or rating (body.area given): with feed.massFlow the product is found, with product.massFraction instead the feed is found. Giving both in rating is refused (422 naming both fields), never silently overridden.',
     example: {
       liquor: 'sodium-hydroxide',
       feed: { massFlow: '4.5 t/h', massFraction: 0.1, temperature: 40 },
@@ -172,7 +225,7 @@ export const SingleEffectResponseSchema = z
     duty: out('power', 'Heat duty Q = S·λ'),
     temperatureDifference: out(
       'temperatureDifference',
-      'ΔT = T_steam − T_boiling (boiling point includes the BPR)',
+      `ΔT = T_steam − T_boiling (boiling point includes the BPR); above ${heatingWarningThresholds.temperatureDifference} K the result carries a "large-temperature-difference" warning, below 5 K "small-temperature-difference"`,
     ),
     area: out('area', 'Heat-transfer area'),
     steamEconomy: out({ symbol: '1', label: 'kg vapour per kg steam' }, 'Steam economy V/S'),
@@ -341,7 +394,7 @@ export const EffectResultSchema = z
     boilingPointRise: out('temperatureDifference', 'Boiling-point rise'),
     temperatureDifference: out(
       'temperatureDifference',
-      'ΔT between the heating medium and the boiling liquor',
+      `ΔT between the heating medium and the boiling liquor; above ${heatingWarningThresholds.temperatureDifference} K the result carries a "large-temperature-difference" warning`,
     ),
     liquorFlow: out('massFlow', 'Liquor leaving the effect'),
     massFraction: out('massFraction', 'Mass fraction of the liquor leaving the effect'),

@@ -18,11 +18,11 @@ import {
   enthalpyAtPT,
   IF97,
   regionAtPT,
+  saturatedLiquidAtTemperature,
   saturationEnthalpies,
   saturationPressure,
   saturationTemperature,
   saturatedVaporEnthalpy,
-  stateAtPT,
 } from '../steam/if97.js';
 import {
   addWarning,
@@ -42,6 +42,17 @@ export const IF97_CITATION: Citation = {
 
 /** ΔT (K) below which a heating surface is flagged as impractically large (common practice). */
 export const SMALL_TEMPERATURE_DIFFERENCE = 5;
+/**
+ * Steam superheat (K) above which a result is flagged: a strongly superheated chest first works as
+ * a gas cooler with a poor film coefficient, so U falls (common practice: desuperheat first).
+ * The API contract states the same threshold (shared/contracts/common.ts).
+ */
+export const LARGE_STEAM_SUPERHEAT = 50;
+/**
+ * ΔT (K) across a heating surface above which a result is flagged: past the nucleate-boiling peak
+ * the surface may film-boil and fouls fast (common practice: evaporator ΔT of 10–40 K).
+ */
+export const LARGE_TEMPERATURE_DIFFERENCE = 60;
 /** Relative margin to a solubility limit that triggers the near-limit warning (5 %). */
 export const SOLUBILITY_MARGIN = 0.05;
 
@@ -270,7 +281,8 @@ export interface LiquidColumn {
 
 /**
  * Mid-depth pressure of a column of liquor: the liquor model's density at (x, T) when it has one;
- * otherwise the density of liquid water at T (IF97 region 1, at max(p, p_sat(T))), with a
+ * otherwise the density of saturated liquid water at T (IF97 region 1 at p_sat(T), never a
+ * vapour state), with a
  * "density-assumed-water" warning (the head, and so the boiling point at depth, is then
  * understated for a dense liquor).
  *
@@ -298,8 +310,11 @@ export function liquidColumnPressure(
     density = liquor.density(massFraction, temperature, warnings);
     densitySource = 'liquor';
   } else {
+    // Saturated liquid at the boiling temperature (IF97 region 1 on the saturation line). A state
+    // looked up by (p, T) at p_sat(T) can round onto the vapour side and give the vapour density
+    // (≈ 0.6 kg/m³), which silently dropped the head and made the area jump with x.
     const t = Math.min(temperature, IF97.region13Temperature);
-    density = stateAtPT(Math.max(surfacePressure, saturationPressure(t)), t, { transport: false }).density;
+    density = saturatedLiquidAtTemperature(t).density;
     densitySource = 'water';
     addWarning(warnings, {
       code: 'density-assumed-water',
@@ -330,6 +345,38 @@ export function warnSmallTemperatureDifference(
   }
 }
 
+/** Warns "large-steam-superheat" when the heating steam is superheated by more than 50 K. */
+export function warnLargeSteamSuperheat(
+  superheat: number,
+  warnings: WarningSink,
+  field = 'steam.superheat',
+): void {
+  if (superheat > LARGE_STEAM_SUPERHEAT) {
+    addWarning(warnings, {
+      code: 'large-steam-superheat',
+      field,
+      message: `The heating steam is superheated by ${superheat.toFixed(2)} K (above ${LARGE_STEAM_SUPERHEAT} K): part of the chest only cools gas, so the overall coefficient U given is likely too high; desuperheat the steam first`,
+      validRange: { min: 0, max: LARGE_STEAM_SUPERHEAT, unit: 'K' },
+    });
+  }
+}
+
+/** Warns "large-temperature-difference" when ΔT across a heating surface exceeds 60 K. */
+export function warnLargeTemperatureDifference(
+  temperatureDifference: number,
+  warnings: WarningSink,
+  field = 'temperatureDifference',
+): void {
+  if (temperatureDifference > LARGE_TEMPERATURE_DIFFERENCE) {
+    addWarning(warnings, {
+      code: 'large-temperature-difference',
+      field,
+      message: `The temperature difference across the heating surface is ${temperatureDifference.toFixed(2)} K (above ${LARGE_TEMPERATURE_DIFFERENCE} K): the liquor may film-boil and foul, and U falls`,
+      validRange: { min: 0, max: LARGE_TEMPERATURE_DIFFERENCE, unit: 'K' },
+    });
+  }
+}
+
 /**
  * Warns "feed-flash" when the feed enters hotter than its own boiling point at the body pressure:
  * part of it flashes to vapour on entry (the balances still hold; the flash vapour is part of V).
@@ -353,7 +400,8 @@ export function warnFeedFlash(
 /**
  * Warns when a product's mass fraction is within 5 % (relative) of the liquor's solubility
  * limit at its temperature ("near-solubility-limit") or above it ("above-solubility-limit").
- * Silent when the model gives no limit.
+ * Silent when the model gives no limit; a "solubility-not-checked" warning (not a refusal) when the
+ * temperature lies outside the range of the model's solubility correlation.
  */
 export function warnSolubility(
   liquor: LiquorModel,
@@ -363,7 +411,20 @@ export function warnSolubility(
   field = 'product.massFraction',
 ): void {
   if (!liquor.solubilityLimit) return;
-  const limit = liquor.solubilityLimit(temperature);
+  let limit: number;
+  try {
+    limit = liquor.solubilityLimit(temperature);
+  } catch (err) {
+    // A solubility correlation often covers a narrower temperature range than the boiling-point
+    // model. Inside the model's own range a missing limit is a warning, never a refusal.
+    if (!(err instanceof EngineRangeError)) throw err;
+    addWarning(warnings, {
+      code: 'solubility-not-checked',
+      field,
+      message: `The ${liquor.id} solubility correlation does not reach ${temperature.toFixed(2)} K (${err.validRange.min} to ${err.validRange.max} K): the product at x = ${massFraction.toFixed(4)} was not checked against a solubility limit`,
+    });
+    return;
+  }
   if (!Number.isFinite(limit)) return;
   const range = { min: 0, max: limit, unit: 'kg/kg' };
   if (massFraction > limit) {

@@ -74,7 +74,7 @@ import {
   saturatedVaporEnthalpy,
   enthalpyAtPT,
 } from '../steam/if97.js';
-import type { Citation, EngineCaution, EngineWarning } from '../types.js';
+import { addWarning, type Citation, type EngineCaution, type EngineWarning } from '../types.js';
 import {
   balanceResidual,
   collectSources,
@@ -85,6 +85,8 @@ import {
   resolveSteamSupply,
   standardCautions,
   warnFeedFlash,
+  warnLargeSteamSuperheat,
+  warnLargeTemperatureDifference,
   warnSmallTemperatureDifference,
   warnSolubility,
   type SteamSupplySpec,
@@ -306,6 +308,65 @@ function requireEffect(field: string, value: number, n: number): number {
  *   takes more vapour than an effect makes, the areas would evaporate all the feed) or when the
  *   iteration does not converge; never returns NaN.
  */
+/**
+ * The quantity a liquor model's own input names stands for inside effect i: the model checks
+ * "temperature" (the liquor's boiling temperature in the effect), "pressure" (the effect's vapour
+ * space) and "massFraction" (the liquor leaving the effect).
+ */
+const EFFECT_QUANTITY: Record<string, string> = {
+  temperature: 'boilingTemperature',
+  pressure: 'pressure',
+  massFraction: 'massFraction',
+};
+
+/**
+ * Runs a property evaluation of one stream and re-labels what the liquor model or IF97 reports:
+ * a range error or a warning about "temperature" becomes one about `effects[i].boilingTemperature`
+ * (or `feed.temperature`), with "effect i+1: " leading its text, so a refusal names the effect and
+ * the quantity rather than a request field that merely shares the word.
+ */
+function labelled<T>(
+  where: { field: (quantity: string) => string; text: string },
+  sink: EngineWarning[] | undefined,
+  run: (inner: EngineWarning[] | undefined) => T,
+): T {
+  const inner: EngineWarning[] | undefined = sink ? [] : undefined;
+  let out: T;
+  try {
+    out = run(inner);
+  } catch (err) {
+    if (err instanceof EngineRangeError && !err.context) {
+      throw new EngineRangeError(
+        where.field(err.field),
+        err.value,
+        err.validRange,
+        `${where.text}: ${err.message}`,
+        where.text,
+      );
+    }
+    if (err instanceof EngineInputError) {
+      throw new EngineInputError(where.field(err.field), `${where.text}: ${err.message}`);
+    }
+    throw err;
+  }
+  for (const w of inner ?? []) {
+    addWarning(sink, {
+      ...w,
+      ...(w.field !== undefined ? { field: where.field(w.field) } : {}),
+      message: `${where.text}: ${w.message}`,
+    });
+  }
+  return out;
+}
+
+/** Labels for effect i (0-based). */
+function effectLabel(i: number): { field: (quantity: string) => string; text: string } {
+  return {
+    field: (q) => `effects[${i}].${EFFECT_QUANTITY[q] ?? q}`,
+    text: `effect ${i + 1}`,
+  };
+}
+
 export function solveMultipleEffect(input: MultipleEffectInput): MultipleEffectResult {
   // ---- validation ----
   const { liquor } = input;
@@ -341,7 +402,10 @@ export function solveMultipleEffect(input: MultipleEffectInput): MultipleEffectR
   const xF = input.feed.massFraction;
   requireMassFraction('feed.massFraction', xF);
   if (xF <= 0) {
-    throw new EngineRangeError('feed.massFraction', xF, { min: Number.MIN_VALUE, max: 1, unit: 'kg/kg' });
+    throw new EngineInputError(
+      'feed.massFraction',
+      'feed.massFraction = 0: a multiple-effect train is solved for a liquor with solute (feed mass fraction above 0); evaporate pure water with the single-effect calculation',
+    );
   }
   const xMax = liquor.limits.massFraction.max;
   let xP = Number.NaN;
@@ -405,7 +469,8 @@ export function solveMultipleEffect(input: MultipleEffectInput): MultipleEffectR
 
   // feed (after preheat)
   const warnings: EngineWarning[] = [];
-  const hFeedRaw = liquor.enthalpy(xF, input.feed.temperature, warnings);
+  const feedLabel = { field: (q: string) => `feed.${q}`, text: 'feed' };
+  const hFeedRaw = labelled(feedLabel, warnings, (w) => liquor.enthalpy(xF, input.feed.temperature, w));
   let TfeedIn = input.feed.temperature;
   let preheatDuty = 0;
   let preheatEffect = -1;
@@ -418,7 +483,13 @@ export function solveMultipleEffect(input: MultipleEffectInput): MultipleEffectR
       preheatEffect = requireEffect('feedPreheat.source.vaporFromEffect', src.vaporFromEffect, n);
     }
   }
-  const hFeed = input.feedPreheat ? liquor.enthalpy(xF, TfeedIn, warnings) : hFeedRaw;
+  const preheatLabel = {
+    field: (q: string) => (q === 'temperature' ? 'feedPreheat.temperature' : `feed.${q}`),
+    text: 'preheated feed',
+  };
+  const hFeed = input.feedPreheat
+    ? labelled(preheatLabel, warnings, (w) => liquor.enthalpy(xF, TfeedIn, w))
+    : hFeedRaw;
   preheatDuty = F * (hFeed - hFeedRaw);
 
   // ---- state arrays ----
@@ -497,7 +568,16 @@ export function solveMultipleEffect(input: MultipleEffectInput): MultipleEffectR
 
   /** Freezes every property at the current Tsat, x. */
   const evaluateProperties = (sink: EngineWarning[] | undefined): void => {
-    for (let i = 0; i < n; i++) {
+    for (let i = 0; i < n; i++) labelled(effectLabel(i), sink, (w) => evaluateEffect(i, w));
+    for (let i = 0; i < n; i++) bleed[i] = fixedBleed[i] as number;
+    if (preheatEffect >= 0) {
+      bleed[preheatEffect] =
+        (bleed[preheatEffect] as number) +
+        preheatDuty / ((HV[preheatEffect] as number) - (hc[preheatEffect] as number));
+    }
+  };
+  const evaluateEffect = (i: number, sink: EngineWarning[] | undefined): void => {
+    {
       const pi = p[i] as number;
       const r = liquor.boilingPointRise(x[i] as number, pi, sink);
       if (!(r >= 0) || !Number.isFinite(r)) {
@@ -515,12 +595,6 @@ export function solveMultipleEffect(input: MultipleEffectInput): MultipleEffectR
       hf[i] = saturatedLiquidEnthalpy(pi);
       hc[i] = subcool > 0 ? enthalpyAtPT(pi, (Tsat[i] as number) - subcool) : (hf[i] as number);
       hL[i] = liquor.enthalpy(x[i] as number, t, sink);
-    }
-    for (let i = 0; i < n; i++) bleed[i] = fixedBleed[i] as number;
-    if (preheatEffect >= 0) {
-      bleed[preheatEffect] =
-        (bleed[preheatEffect] as number) +
-        preheatDuty / ((HV[preheatEffect] as number) - (hc[preheatEffect] as number));
     }
   };
 
@@ -629,7 +703,10 @@ export function solveMultipleEffect(input: MultipleEffectInput): MultipleEffectR
   for (let i = 0; i < n - 1; i++) Tsat[i] = Ts - ((Ts - TN) * (i + 1)) / n;
   setPressures();
   for (let pass = 0; pass < 2; pass++) {
-    for (let i = 0; i < n; i++) bpr[i] = liquor.boilingPointRise(x[i] as number, p[i] as number, undefined);
+    for (let i = 0; i < n; i++)
+      bpr[i] = labelled(effectLabel(i), undefined, () =>
+        liquor.boilingPointRise(x[i] as number, p[i] as number, undefined),
+      );
     const avail = Ts - TN - sumBpr();
     if (!(avail > n * minDT) || !(avail > 0)) throw noAvailable(avail, 0);
     let t = Ts;
@@ -716,7 +793,9 @@ export function solveMultipleEffect(input: MultipleEffectInput): MultipleEffectR
       wsum += dT[i] as number;
     }
     for (let i = 0; i < n; i++)
-      bpr[i] = liquor.boilingPointRise(xNew[i] as number, p[i] as number, undefined);
+      bpr[i] = labelled(effectLabel(i), undefined, () =>
+        liquor.boilingPointRise(xNew[i] as number, p[i] as number, undefined),
+      );
     const avail = Ts - TN - sumBpr();
     if (!(avail > 0)) throw noAvailable(avail, iter);
     let t = Ts;
@@ -900,7 +979,9 @@ export function solveMultipleEffect(input: MultipleEffectInput): MultipleEffectR
   for (const e of feedTargets) warnFeedFlash(TfeedIn, Tb[e] as number, warnings, 'feed.temperature');
   for (let i = 0; i < n; i++) {
     warnSmallTemperatureDifference(dT[i] as number, warnings, `effects[${i}].temperatureDifference`);
+    warnLargeTemperatureDifference(dT[i] as number, warnings, `effects[${i}].temperatureDifference`);
   }
+  warnLargeSteamSuperheat(steam.superheat, warnings);
   warnSolubility(liquor, productX, productT, warnings, 'product.massFraction');
 
   const effects: EffectResult[] = [];

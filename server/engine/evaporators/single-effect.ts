@@ -41,6 +41,8 @@ import {
   resolveSteamSupply,
   standardCautions,
   warnFeedFlash,
+  warnLargeSteamSuperheat,
+  warnLargeTemperatureDifference,
   warnSmallTemperatureDifference,
   warnSolubility,
   type SteamSupply,
@@ -207,9 +209,11 @@ interface CoreState {
  * Balances for product fraction x_L and feed F. May return S ≤ 0 (hot feed) or dT ≤ 0 (steam too
  * cold); the public functions decide what that means. `warnings` undefined inside iterations.
  */
-function core(pr: Prepared, F: number, xL: number, warnings: WarningSink): CoreState {
+function core(pr: Prepared, F: number, xL: number, warnings: WarningSink, productFlow?: number): CoreState {
   const { liquor, pressure } = pr;
-  const L = xL > 0 ? (F * pr.feedFraction) / xL : F;
+  // A pure-water feed (x_F = 0) leaves x_L = 0 whatever L is: the solute balance cannot give L,
+  // so the caller passes it (from product.massFlow or F − V).
+  const L = productFlow ?? (xL > 0 ? (F * pr.feedFraction) / xL : F);
   const V = F - L;
   const T = liquor.boilingPoint(xL, pressure, warnings);
   let Tmean = T;
@@ -313,6 +317,8 @@ function assemble(
     });
   }
   warnSmallTemperatureDifference(c.dT, warnings);
+  warnLargeTemperatureDifference(c.dT, warnings);
+  warnLargeSteamSuperheat(pr.steam.superheat, warnings);
   if (pr.feedTemperature > pr.waterBoilingPoint) {
     // The BPR is ≥ 0, so a feed below T_sat(p) cannot flash: skip the model call then.
     warnFeedFlash(pr.feedTemperature, pr.liquor.boilingPoint(pr.feedFraction, pr.pressure), warnings);
@@ -401,8 +407,12 @@ export function singleEffectBalances(r: SingleEffectResult): {
 // Design
 // ---------------------------------------------------------------------------------------------
 
-/** Product fraction x_L from whichever product quantity was given; typed errors for contradictions. */
-function productFraction(F: number, xF: number, product: ProductSpec): number {
+/**
+ * Product fraction x_L from whichever product quantity was given; typed errors for contradictions.
+ * For a pure-water feed (x_F = 0) the product flow L is returned too: the solute balance is then
+ * silent about it, and V = F − L.
+ */
+function productTarget(F: number, xF: number, product: ProductSpec): { xL: number; L?: number } {
   const given = (['massFraction', 'massFlow', 'evaporation'] as const).filter(
     (k) => product[k] !== undefined,
   );
@@ -477,7 +487,28 @@ function productFraction(F: number, xF: number, product: ProductSpec): number {
       `The product (x = ${xL}) is no richer than the feed: nothing is evaporated`,
     );
   }
-  return xL;
+  if (xF === 0) {
+    const L = product.massFlow ?? F - (product.evaporation ?? 0);
+    if (!(L < F)) {
+      const field =
+        product.massFlow !== undefined
+          ? 'product.massFlow'
+          : product.evaporation !== undefined
+            ? 'product.evaporation'
+            : 'product.massFraction';
+      throw new EngineInputError(
+        field,
+        `${field}: with a feed of pure water give a product mass flow below the feed ${F} kg/s (or an evaporation above 0); otherwise nothing is evaporated`,
+      );
+    }
+    return { xL, L };
+  }
+  return { xL };
+}
+
+/** x_L alone (the product flow follows from the solute balance when x_F > 0). */
+function productFraction(F: number, xF: number, product: ProductSpec): number {
+  return productTarget(F, xF, product).xL;
 }
 
 /**
@@ -497,9 +528,9 @@ export function designSingleEffect(input: SingleEffectDesignInput): SingleEffect
   requirePositive('feed.massFlow', input.feed.massFlow, 'kg/s');
   if (!input.product) throw new EngineInputError('product', 'product is required');
   const F = input.feed.massFlow;
-  const xL = productFraction(F, pr.feedFraction, input.product);
+  const { xL, L } = productTarget(F, pr.feedFraction, input.product);
   const warnings: EngineWarning[] = [];
-  const c = core(pr, F, xL, warnings);
+  const c = core(pr, F, xL, warnings, L);
   if (!(c.dT > 0)) throw noSteamHotEnough(pr, c);
   if (!(c.S > 0)) {
     throw new EngineNoSolutionError(

@@ -124,8 +124,11 @@ export function runSingleEffect(
   ) => readOptional(v, spec, prefix + f);
   const result = calculate(map, () => {
     const feedEnthalpy = q(b.feed.enthalpy, specs.enthalpy, 'feed.enthalpy');
+    // The contract requires feed.massFlow in design and allows its absence only in rating with
+    // product.massFraction, where the engine finds it; so it is never read and then dropped.
+    const feedFlow = q(b.feed.massFlow, specs.massFlow, 'feed.massFlow');
     const feed = {
-      massFlow: readQuantity(b.feed.massFlow, specs.massFlow, `${prefix}feed.massFlow`),
+      ...(feedFlow !== undefined ? { massFlow: feedFlow } : {}),
       massFraction: readQuantity(b.feed.massFraction, specs.massFraction, `${prefix}feed.massFraction`),
       temperature: readQuantity(b.feed.temperature, specs.temperature, `${prefix}feed.temperature`),
       ...(feedEnthalpy !== undefined ? { enthalpy: feedEnthalpy } : {}),
@@ -152,9 +155,15 @@ export function runSingleEffect(
       ...(heatLossFraction !== undefined ? { heatLossFraction } : {}),
     };
     if (area === undefined) {
+      if (feedFlow === undefined) {
+        // unreachable past the contract; kept so the engine never sees a missing flow
+        throw problem('validation-failed', 'feed.massFlow is required in design mode', {
+          errors: [{ field: `${prefix}feed.massFlow`, message: 'is required in design mode (no body.area)' }],
+        });
+      }
       return designSingleEffect({
         ...common,
-        feed,
+        feed: { ...feed, massFlow: feedFlow },
         body: bodySpec,
         product: {
           ...(productFraction !== undefined ? { massFraction: productFraction } : {}),
@@ -231,7 +240,10 @@ export function runMultipleEffect(
   const b = validate(MultipleEffectRequestSchema, body, prefix);
   const liquor = resolveLiquor(b.liquor, db, accountId, `${prefix}liquor`);
   const map = prefixed(
-    { ...EVAPORATOR_FIELDS, pressure: 'lastEffectPressure', massFraction: 'product.massFraction' },
+    // The engine names the last effect's pressure itself, and labels what a liquor model refuses
+    // inside effect i as effects[i].pressure / .boilingTemperature / .massFraction; a bare
+    // "pressure" is not the last effect's.
+    { ...EVAPORATOR_FIELDS, pressure: 'pressure', massFraction: 'product.massFraction' },
     prefix,
   );
   const result = calculate(map, () => {
