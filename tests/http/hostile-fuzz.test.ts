@@ -287,6 +287,8 @@ type ClassName =
 let sent = 0;
 const perClass = new Map<ClassName, number>();
 const failures = new Map<ClassName, string[]>();
+/** How each area answered (printed at the end: shows the requests got past the keys, sessions and CSRF). */
+const answers = new Map<string, number>();
 
 function fail(cls: ClassName, message: string): void {
   const list = failures.get(cls) ?? [];
@@ -436,6 +438,8 @@ async function fire(cls: ClassName, t: Target, shot: Shot): Promise<Got> {
   if (t.area === 'webhook' && shot.body !== undefined)
     headers['Stripe-Signature'] = webhookSignature(shot.body);
   const got = await send(t.method, path, headers, t.method === 'GET' ? undefined : shot.body);
+  const answer = `${t.area} ${got.closed ? 'closed' : got.timedOut ? 'hung' : got.status}`;
+  answers.set(answer, (answers.get(answer) ?? 0) + 1);
   judge(cls, `${t.method} ${path.slice(0, 100)} [${(shot.contentType ?? '').slice(0, 40)}]`, got, {
     allowClosed: shot.allowClosed,
   });
@@ -1097,6 +1101,7 @@ describe(
 
     it('sends at least 1 000 hostile requests, then the process is healthy and another account still gets its result', async () => {
       console.log(`hostile fuzz: ${sent} requests`, Object.fromEntries(perClass));
+      console.log('hostile fuzz: answers by area', Object.fromEntries([...answers].sort()));
       // Soft expectations: each of these checks is reported on its own.
       expect.soft(sent).toBeGreaterThanOrEqual(1000);
       // No prototype was polluted in this process (the server runs in it), not even for a while.
