@@ -31,7 +31,6 @@ export default defineConfig({
       {
         extends: true,
         plugins: [vue()],
-        resolve: { alias: { '@shared': new URL('./shared', import.meta.url).pathname } },
         test: {
           name: 'console',
           include: ['tests/console/**/*.test.ts'],

@@ -1,7 +1,7 @@
 // Vite build of the Ebullio console: served by the API server at /console (server/console/static.ts).
 //   npm run build        → console/dist
 //   npm run dev:console  → dev server with a proxy to the API on :8080
-import { fileURLToPath } from 'node:url';
+// The console reaches shared/ by relative imports (types only, plus the zod-free shared/access.ts).
 import vue from '@vitejs/plugin-vue';
 import { defineConfig } from 'vite';
 import vuetify from 'vite-plugin-vuetify';
@@ -13,9 +13,6 @@ export default defineConfig({
   base: '/console/',
   // vite-plugin-vuetify's autoImport pulls in only the components and directives the templates use.
   plugins: [vue(), vuetify({ autoImport: true })],
-  resolve: {
-    alias: { '@shared': fileURLToPath(new URL('../shared', import.meta.url)) },
-  },
   build: {
     outDir: 'dist',
     emptyOutDir: true,

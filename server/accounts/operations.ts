@@ -12,7 +12,10 @@
  * `path` is the OpenAPI-style path (full, including `/v1`), `method` the HTTP method.
  */
 
-export const scopes = ['steam', 'liquors', 'evaporators', 'batch', 'usage'] as const;
+import { KEY_SCOPES } from '../../shared/access.js';
+
+/** The key scopes (shared/access.ts), under the catalogue's own name. */
+export const scopes = KEY_SCOPES;
 export type Scope = (typeof scopes)[number];
 
 export interface OperationSpec {

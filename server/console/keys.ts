@@ -27,7 +27,7 @@ import { problem } from '../http/problem.js';
 import { sendMail } from '../mail/send.js';
 import { assertAccountInScope, queryScope, requireAccount } from './accounts.js';
 import { recordAudit } from './audit.js';
-import { consoleRoute, type ConsoleRouteModule, type ConsoleUser } from './route.js';
+import { ALL_ROLES, consoleRoute, type ConsoleRouteModule, type ConsoleUser } from './route.js';
 
 export function keyState(key: Pick<ApiKeyView, 'revokedAt' | 'expiresAt'>, now: Date): ConsoleKey['state'] {
   if (key.revokedAt && key.revokedAt <= now) return 'revoked';
@@ -88,7 +88,7 @@ export const keyRoutes: ConsoleRouteModule = {
     consoleRoute(router, {
       method: 'get',
       path: '/keys',
-      roles: ['admin', 'billing', 'developer'],
+      roles: ALL_ROLES,
       summary: 'List API keys (a developer sees only the keys of their accounts)',
       request: { query: KeyListQuerySchema },
       response: KeyListSchema,

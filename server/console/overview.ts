@@ -7,7 +7,7 @@
 import { NEAR_QUOTA_PERCENT, OverviewQuerySchema, OverviewSchema } from '../../shared/console/overview.js';
 import { overview } from '../accounts/usage-report.js';
 import { queryScope } from './accounts.js';
-import { consoleRoute, type ConsoleRouteModule } from './route.js';
+import { ALL_ROLES, consoleRoute, type ConsoleRouteModule } from './route.js';
 
 export const OVERVIEW_DAYS = 30;
 export const TOP_OPERATIONS = 5;
@@ -17,7 +17,7 @@ export const overviewRoutes: ConsoleRouteModule = {
     consoleRoute(router, {
       method: 'get',
       path: '/overview',
-      roles: ['admin', 'billing', 'developer'],
+      roles: ALL_ROLES,
       summary: 'Traffic, errors, latency and quota at a glance',
       request: { query: OverviewQuerySchema },
       response: OverviewSchema,

@@ -31,7 +31,7 @@ import {
 import { toCsv } from '../http/csv.js';
 import { problem } from '../http/problem.js';
 import { queryScope, scopeOf } from './accounts.js';
-import { consoleRoute, type ConsoleRouteModule } from './route.js';
+import { ALL_ROLES, consoleRoute, type ConsoleRouteModule } from './route.js';
 
 /** Sends rows as an RFC 4180 CSV attachment with a header row. */
 export function sendCsv(
@@ -83,7 +83,7 @@ export const requestLogRoutes: ConsoleRouteModule = {
     consoleRoute(router, {
       method: 'get',
       path: '/request-log',
-      roles: ['admin', 'billing', 'developer'],
+      roles: ALL_ROLES,
       summary: 'Search the request log (paged, sorted and filtered on the server)',
       request: { query: RequestLogQuerySchema },
       response: RequestLogPageSchema,
@@ -109,7 +109,7 @@ export const requestLogRoutes: ConsoleRouteModule = {
     consoleRoute(router, {
       method: 'get',
       path: '/request-log/export.csv',
-      roles: ['admin', 'billing', 'developer'],
+      roles: ALL_ROLES,
       summary: `Export the filtered request log as CSV (at most ${CSV_ROW_CAP} rows)`,
       request: { query: ExportQuerySchema },
       response: z.string().meta({ description: 'text/csv (RFC 4180), one header row' }),
@@ -135,7 +135,7 @@ export const requestLogRoutes: ConsoleRouteModule = {
     consoleRoute(router, {
       method: 'get',
       path: '/request-log/:id',
-      roles: ['admin', 'billing', 'developer'],
+      roles: ALL_ROLES,
       summary: 'One request with its redacted bodies and timings',
       request: { params: RequestLogIdParamsSchema },
       response: RequestLogDetailSchema,

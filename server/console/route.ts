@@ -17,13 +17,15 @@
 import type express from 'express';
 import type { Request, RequestHandler, Response } from 'express';
 import type { z } from 'zod';
+import { ROLES } from '../../shared/access.js';
 import type { Role } from '../../shared/console/common.js';
 import type { AppDeps } from '../http/app.js';
 import { problem } from '../http/problem.js';
 import { zodProblem } from '../http/validation.js';
 
 export type { Role } from '../../shared/console/common.js';
-export const ALL_ROLES: readonly Role[] = ['admin', 'billing', 'developer'];
+/** Every console role (shared/access.ts): for routes that any signed-in role may use. */
+export const ALL_ROLES: readonly Role[] = ROLES;
 
 /** The signed-in console user (res.locals.user). */
 export interface ConsoleUser {

@@ -17,7 +17,7 @@ import { monthStartUtc, utcDay } from '../accounts/usage.js';
 import { problem } from '../http/problem.js';
 import { queryScope } from './accounts.js';
 import { sendCsv } from './request-log.js';
-import { consoleRoute, type ConsoleRouteModule } from './route.js';
+import { ALL_ROLES, consoleRoute, type ConsoleRouteModule } from './route.js';
 
 /** The day range of a query with its defaults, refused (422) when reversed or too long. */
 export function dayRange(query: Pick<UsageQuery, 'from' | 'to'>, now: Date): { from: string; to: string } {
@@ -44,7 +44,7 @@ export const usageRoutes: ConsoleRouteModule = {
     consoleRoute(router, {
       method: 'get',
       path: '/usage',
-      roles: ['admin', 'billing', 'developer'],
+      roles: ALL_ROLES,
       summary: 'Requests, units and errors between two days, grouped by day, operation or account',
       request: { query: UsageQuerySchema },
       response: UsageReportSchema,
@@ -64,7 +64,7 @@ export const usageRoutes: ConsoleRouteModule = {
     consoleRoute(router, {
       method: 'get',
       path: '/usage/export.csv',
-      roles: ['admin', 'billing', 'developer'],
+      roles: ALL_ROLES,
       summary: 'Export usage as CSV: one row per day, account and operation',
       request: { query: UsageExportQuerySchema },
       response: z.string().meta({ description: 'text/csv (RFC 4180), one header row' }),

@@ -5,6 +5,7 @@
  */
 import { sql } from 'drizzle-orm';
 import { index, integer, primaryKey, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core';
+import { ROLES } from '../../shared/access.js';
 
 const createdAt = () =>
   integer('created_at', { mode: 'timestamp_ms' })
@@ -29,7 +30,7 @@ export const users = sqliteTable('users', {
   email: text('email').notNull().unique(),
   /** `scrypt$N$r$p$<salt b64url>$<hash b64url>` (see server/accounts/passwords.ts). */
   passwordHash: text('password_hash').notNull(),
-  role: text('role', { enum: ['admin', 'billing', 'developer'] }).notNull(),
+  role: text('role', { enum: ROLES }).notNull(),
   active: integer('active', { mode: 'boolean' }).notNull().default(true),
   /** Display name shown in the console. */
   name: text('name'),
@@ -188,7 +189,7 @@ export const userTokens = sqliteTable('user_tokens', {
   /** Set for password resets; for invitations, set when accepted. */
   userId: integer('user_id').references(() => users.id, { onDelete: 'cascade' }),
   /** Invitations: the role and accounts the new user gets. */
-  role: text('role', { enum: ['admin', 'billing', 'developer'] }),
+  role: text('role', { enum: ROLES }),
   accountIds: text('account_ids', { mode: 'json' }).$type<number[]>(),
   createdByUserId: integer('created_by_user_id').references(() => users.id, { onDelete: 'set null' }),
   createdAt: createdAt(),

@@ -10,7 +10,7 @@ import type { Db, Sqlite } from '../db/client.js';
 import { addMember, createAccount, createUser } from '../accounts/accounts.js';
 import { createKey } from '../accounts/keys.js';
 import { recordRequest } from '../accounts/metering.js';
-import { operations, type OperationId } from '../accounts/operations.js';
+import { operations, scopes, type OperationId } from '../accounts/operations.js';
 
 /** The account BOOTSTRAP_API_KEY is registered on. */
 export const DEMO_ACCOUNT_NAME = 'Saltmarsh Chlor-Alkali Works, Process Engineering';
@@ -130,7 +130,7 @@ export function seedDemo(
     const causticCreated = createKey(db, serverSecret, {
       accountId: caustic.id,
       name: 'Caustic evaporator studies',
-      scopes: ['steam', 'liquors', 'evaporators', 'batch', 'usage'],
+      scopes: [...scopes],
       rateLimitPerMinute: 120,
       now,
     });

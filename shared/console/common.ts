@@ -7,10 +7,10 @@
  * problem (`application/problem+json`).
  */
 import { z } from 'zod';
+import { ROLES } from '../access.js';
 
-/** Console roles. admin: everything; billing: billing plus read-only views; developer: own accounts' keys, usage, request log. */
-export const roles = ['admin', 'billing', 'developer'] as const;
-export const RoleSchema = z.enum(roles).meta({
+/** Console roles (the list itself is shared/access.ts ROLES). */
+export const RoleSchema = z.enum(ROLES).meta({
   id: 'ConsoleRole',
   description:
     'admin: everything; billing: statements and invoices, read-only elsewhere; developer: keys, usage and request log of the accounts the user is a member of',

@@ -3,10 +3,11 @@
  * POST /keys/:id/rotate). The secret appears only in the create and rotate responses, once.
  */
 import { z } from 'zod';
+import { KEY_SCOPES } from '../access.js';
 import { IdNumberSchema, InstantSchema } from './accounts.js';
 
-/** The scopes an API key can hold (the same list as the server's operation catalogue). */
-export const KEY_SCOPES = ['steam', 'liquors', 'evaporators', 'batch', 'usage'] as const;
+/** The scopes an API key can hold (the list itself is shared/access.ts KEY_SCOPES). */
+export { KEY_SCOPES };
 export const KeyScopeSchema = z.enum(KEY_SCOPES);
 
 export const KeyIdParamsSchema = z.object({ id: IdNumberSchema });

@@ -9,7 +9,7 @@ import { createVuetify } from 'vuetify';
 import * as components from 'vuetify/components';
 import type { StatementDetail } from '../../shared/console/billing.js';
 import { createApiClient } from '../../console/src/api/client.js';
-import { formatMinor, formatMonth, minorDigits } from '../../console/src/components/billing/money.js';
+import { formatMinor, formatMonth, minorDigits } from '../../console/src/composables/money.js';
 import StatementDetailCard from '../../console/src/components/billing/StatementDetailCard.vue';
 import {
   monthIsOver,

@@ -14,7 +14,7 @@ import {
   duhringReference,
   enthalpyDatasets,
   massFractionLabel,
-} from '../../console/src/components/charts/chart-data.js';
+} from '../../console/src/composables/chart-data.js';
 
 // vue-chartjs draws on a canvas happy-dom does not have: capture what the component hands it.
 const seen: { data?: { datasets: { label: string; data: { x: number; y: number }[] }[] } } = {};

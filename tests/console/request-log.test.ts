@@ -11,7 +11,11 @@ import * as components from 'vuetify/components';
 import type { RequestLogDetail } from '../../shared/console/request-log.js';
 import { createApiClient } from '../../console/src/api/client.js';
 import RequestLogDetailPanel from '../../console/src/components/request-log/RequestLogDetailPanel.vue';
-import { emptyFilters, localToInstant, statusClass } from '../../console/src/components/request-log/query.js';
+import {
+  emptyFilters,
+  localToInstant,
+  statusClass,
+} from '../../console/src/composables/request-log-query.js';
 import { useRequestLogClient, useRequestLogStore } from '../../console/src/stores/requestLog.js';
 
 function fakeServer() {

@@ -5,7 +5,7 @@
 import { createPinia, setActivePinia } from 'pinia';
 import { beforeEach, describe, expect, it, vi } from 'vitest';
 import { createApiClient } from '../../console/src/api/client.js';
-import { daysBetween, usageDaySeries } from '../../console/src/components/charts/chart-data.js';
+import { daysBetween, usageDaySeries } from '../../console/src/composables/chart-data.js';
 import { firstOfUtcMonth, useUsageClient, useUsageStore, utcDay } from '../../console/src/stores/usage.js';
 
 beforeEach(() => setActivePinia(createPinia()));

@@ -1,12 +1,10 @@
 /**
  * Session types of the console, from the shared contract (`import type` only: no zod at runtime).
+ * The role list itself comes from shared/access.ts, which has no imports.
  */
-import type { Role } from '../../../shared/console/common.js';
+import { ROLES, type Role } from '../../../shared/access.js';
 
 export type { Paged, Role, UserSummary } from '../../../shared/console/common.js';
-
-/** The same list as shared/console/common.ts `roles`, without pulling zod into the bundle. */
-export const ROLES: readonly Role[] = ['admin', 'billing', 'developer'];
 
 /** The signed-in user as GET /console-api/auth/me returns it (res.locals.user on the server). */
 export interface ConsoleUser {

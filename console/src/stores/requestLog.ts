@@ -17,7 +17,7 @@ import {
   pageQuery,
   type RequestLogFilters,
   type SortItem,
-} from '../components/request-log/query.js';
+} from '../composables/request-log-query.js';
 
 let client: ApiClient = defaultApi;
 /** Tests swap the client (a createApiClient with a mocked fetch). */

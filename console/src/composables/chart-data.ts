@@ -2,9 +2,9 @@
  * Pure mappings from console API data to chart.js datasets. The chart components only add
  * styling callbacks and options; everything a test needs to check lives here.
  */
-import type { ConsoleLiquorCharts } from '../../../../shared/console/liquors.js';
-import type { UsageRow } from '../../../../shared/console/usage.js';
-import { paletteColour } from './palette.js';
+import type { ConsoleLiquorCharts } from '../../../shared/console/liquors.js';
+import type { UsageRow } from '../../../shared/console/usage.js';
+import { paletteColour } from './chart-palette.js';
 
 export interface XYPoint {
   x: number;

@@ -4,10 +4,10 @@
  * choices are the accounts they belong to (from the session), named by number.
  */
 import { ref } from 'vue';
-import type { ConsoleAccountList } from '../../../../shared/console/accounts.js';
-import type { ConsoleKeyList } from '../../../../shared/console/keys.js';
-import { api, type ApiClient } from '../../api/client.js';
-import type { ConsoleUser } from '../../api/types.js';
+import type { ConsoleAccountList } from '../../../shared/console/accounts.js';
+import type { ConsoleKeyList } from '../../../shared/console/keys.js';
+import { api, type ApiClient } from '../api/client.js';
+import type { ConsoleUser } from '../api/types.js';
 
 export interface Choice {
   title: string;

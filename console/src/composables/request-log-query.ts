@@ -3,7 +3,7 @@
  * export always agree: GET /console-api/request-log and /request-log/export.csv take the same
  * filters (shared/console/request-log.ts), the page adds paging and sorting.
  */
-import type { Query } from '../../api/client.js';
+import type { Query } from '../api/client.js';
 
 /** What the filter bar holds. Times are the values of <input type="datetime-local"> (local time). */
 export interface RequestLogFilters {
