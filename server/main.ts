@@ -28,7 +28,7 @@ import { ensureDefaultPlans } from './billing/plans.js';
 import { checkQuotaNotices } from './billing/quota-notices.js';
 import { ConfigError, loadConfig, type Config } from './config.js';
 import { openDatabase, runMigrations } from './db/client.js';
-import { createApp, type AppDeps } from './http/app.js';
+import { createApp, type AppDeps } from './app.js';
 import { startMailCapture, type MailCapture } from './integrations/mail-capture.js';
 import { loadPaymentsConfig, PaymentsConfigError } from './integrations/payments/config.js';
 import { startFakePaymentProvider, type FakePaymentProvider } from './integrations/payments/fake-provider.js';
