@@ -101,3 +101,13 @@ export function monthUsage(sqlite: Sqlite, accountId: number, now: Date): MonthU
     byDay,
   };
 }
+
+/** Quota-notice thresholds in per cent of the monthly unit quota. */
+export const QUOTA_THRESHOLDS = [80, 100] as const;
+export type QuotaThreshold = (typeof QUOTA_THRESHOLDS)[number];
+
+/** Thresholds reached: used/quota ≥ t/100, compared in integers (used·100 ≥ t·quota). */
+export function thresholdsReached(used: number, quota: number): QuotaThreshold[] {
+  if (quota <= 0) return [];
+  return QUOTA_THRESHOLDS.filter((t) => used * 100 >= t * quota);
+}

@@ -16,7 +16,7 @@ import { and, eq } from 'drizzle-orm';
 import type { FinalizeStatementResponse, StatementDetail } from '../../shared/console/billing.js';
 import { getAccount } from '../accounts/accounts.js';
 import { accounts, statements } from '../db/schema.js';
-import type { AppDeps } from '../http/app.js';
+import type { AppDeps } from '../deps.js';
 import { problem, ProblemError } from '../http/problem.js';
 import { paymentsFor } from '../integrations/payments/client.js';
 import { sendMail } from '../mail/send.js';

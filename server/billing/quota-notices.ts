@@ -13,19 +13,16 @@
  */
 import { and, eq, inArray } from 'drizzle-orm';
 import { getAccount } from '../accounts/accounts.js';
-import { nextMonthStartUtc, unitsUsedThisMonth, utcMonth } from '../accounts/usage.js';
+import {
+  nextMonthStartUtc,
+  thresholdsReached,
+  unitsUsedThisMonth,
+  utcMonth,
+  type QuotaThreshold,
+} from '../accounts/usage.js';
 import { quotaNotices } from '../db/schema.js';
-import type { AppDeps } from '../http/app.js';
+import type { AppDeps } from '../deps.js';
 import { sendMail } from '../mail/send.js';
-
-export const QUOTA_THRESHOLDS = [80, 100] as const;
-export type QuotaThreshold = (typeof QUOTA_THRESHOLDS)[number];
-
-/** Thresholds reached: used/quota ≥ t/100, compared in integers (used·100 ≥ t·quota). */
-export function thresholdsReached(used: number, quota: number): QuotaThreshold[] {
-  if (quota <= 0) return [];
-  return QUOTA_THRESHOLDS.filter((t) => used * 100 >= t * quota);
-}
 
 export interface QuotaCheckResult {
   month: string;

@@ -16,9 +16,9 @@ import { eq } from 'drizzle-orm';
 import express, { type RequestHandler } from 'express';
 import Stripe from 'stripe';
 import { paymentEvents, statements } from '../db/schema.js';
-import type { AppDeps, AppModule } from '../http/app.js';
+import type { AppDeps, AppModule } from '../deps.js';
 import { problem } from '../http/problem.js';
-import { recordAudit } from '../console/audit.js';
+import { recordAudit } from '../accounts/audit.js';
 import { paymentsFor } from '../integrations/payments/client.js';
 
 export const WEBHOOK_PATH = '/webhooks/payments';

@@ -19,9 +19,9 @@ import { monthStartUtc, nextMonthStartUtc, utcDay } from '../accounts/usage.js';
 import { quotaPercent } from '../accounts/usage-report.js';
 import type { Db, Sqlite } from '../db/client.js';
 import { accounts as accountsTable, plans } from '../db/schema.js';
-import type { AppDeps } from '../http/app.js';
+import type { AppDeps } from '../deps.js';
 import { problem } from '../http/problem.js';
-import { recordAudit } from './audit.js';
+import { recordAudit } from '../accounts/audit.js';
 import { consoleRoute, type ConsoleRouteModule, type ConsoleUser } from './route.js';
 
 /** The accounts a user may see: null = all (admin, billing), else the memberships (developer). */

@@ -1,50 +1,13 @@
 /**
- * The audit log: every admin (and billing) mutation and every security event (sign-in success
- * and failure, lock-out, refresh-token replay), with who, what, when and from where.
- *
- *   recordAudit(deps, req, res, { action: 'key.revoke', targetType: 'api-key', targetId: String(id) });
- *
- * The actor is res.locals.user unless `actor` is given (e.g. a failed sign-in names the e-mail
- * that was tried). Time comes from deps.clock, the address from req.ip (honours trust proxy).
+ * The audit log in the console: GET /audit (admins), newest first, paged and filtered. Rows are
+ * written by recordAudit (server/accounts/audit.ts).
  */
 import { and, count, desc, eq, gte, lt, type SQL } from 'drizzle-orm';
-import type { Request, Response } from 'express';
 import { AuditPageSchema, AuditQuerySchema, type AuditEntry } from '../../shared/console/users.js';
+import type { AuditRow } from '../accounts/audit.js';
 import { auditLog } from '../db/schema.js';
-import type { AppDeps } from '../http/app.js';
+import type { AppDeps } from '../deps.js';
 import { consoleRoute, type ConsoleRouteModule } from './route.js';
-
-export interface AuditInput {
-  /** Dotted verb, e.g. "key.create", "account.update", "user.invite", "auth.sign-in". */
-  action: string;
-  targetType?: string;
-  targetId?: string | number;
-  detail?: Record<string, unknown>;
-  /** Overrides res.locals.user as the actor. */
-  actor?: { id: number | null; email: string };
-}
-
-export type AuditRow = typeof auditLog.$inferSelect;
-
-export function recordAudit(deps: AppDeps, req: Request, res: Response, input: AuditInput): AuditRow {
-  const user = res.locals.user;
-  const actor =
-    input.actor ?? (user ? { id: user.id, email: user.email } : { id: null, email: '(anonymous)' });
-  return deps.db
-    .insert(auditLog)
-    .values({
-      at: deps.clock(),
-      actorUserId: actor.id,
-      actorEmail: actor.email,
-      action: input.action,
-      targetType: input.targetType ?? null,
-      targetId: input.targetId === undefined ? null : String(input.targetId),
-      detail: input.detail ?? null,
-      ip: req.ip ?? null,
-    })
-    .returning()
-    .get();
-}
 
 export interface AuditFilter {
   action?: string;

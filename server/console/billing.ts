@@ -26,7 +26,7 @@ import { finalizeStatement } from '../billing/finalize.js';
 import { listPlans } from '../billing/plans.js';
 import { generateStatements, listStatements, statementCsv, statementDetail } from '../billing/statements.js';
 import { problem } from '../http/problem.js';
-import { recordAudit } from './audit.js';
+import { recordAudit } from '../accounts/audit.js';
 import { consoleRoute, type ConsoleRouteModule } from './route.js';
 
 const BILLING = ['billing'] as const; // admin is always allowed as well

@@ -11,7 +11,7 @@
 import cookieParser from 'cookie-parser';
 import express from 'express';
 import { consoleSettings } from '../config.js';
-import type { AppDeps, AppModule } from '../http/app.js';
+import type { AppDeps, AppModule } from '../deps.js';
 import { jsonBodyGuard } from '../http/middleware/body.js';
 import { auditRouteModule } from './audit.js';
 import { billingRouteModule } from './billing.js';

@@ -22,11 +22,11 @@ import type { Account } from '../accounts/accounts.js';
 import { createKey, getKey, revokeKey, rotateKey, type ApiKeyView } from '../accounts/keys.js';
 import { isScope } from '../accounts/operations.js';
 import { accounts, apiKeys } from '../db/schema.js';
-import type { AppDeps } from '../http/app.js';
+import type { AppDeps } from '../deps.js';
 import { problem } from '../http/problem.js';
 import { sendMail } from '../mail/send.js';
 import { assertAccountInScope, queryScope, requireAccount } from './accounts.js';
-import { recordAudit } from './audit.js';
+import { recordAudit } from '../accounts/audit.js';
 import { ALL_ROLES, consoleRoute, type ConsoleRouteModule, type ConsoleUser } from './route.js';
 
 export function keyState(key: Pick<ApiKeyView, 'revokedAt' | 'expiresAt'>, now: Date): ConsoleKey['state'] {

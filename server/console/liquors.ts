@@ -29,7 +29,7 @@ import type { LiquorModel } from '../engine/liquors/model.js';
 import { builtInLiquors, findBuiltInLiquor } from '../engine/liquors/registry.js';
 import { saturationPressure } from '../engine/steam/if97.js';
 import { KELVIN_OFFSET, type EngineWarning } from '../engine/types.js';
-import type { AppDeps } from '../http/app.js';
+import type { AppDeps } from '../deps.js';
 import { problem } from '../http/problem.js';
 import { buildCustomLiquor, summarise } from '../http/v1/liquors.js';
 import { duhringFromCsv, findStoredLiquor } from '../http/v1/stored-liquors.js';
@@ -37,7 +37,7 @@ import { r, validate } from '../http/validation.js';
 import { formatOutput } from '../units/index.js';
 import { singleCsvUpload } from '../http/upload.js';
 import { requireAccount } from './accounts.js';
-import { recordAudit } from './audit.js';
+import { recordAudit } from '../accounts/audit.js';
 import { consoleRoute, type ConsoleRouteModule } from './route.js';
 
 /** Lowest and highest water temperatures the IF97 saturation line covers, K (IAPWS R7-97 region 4). */

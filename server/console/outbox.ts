@@ -8,7 +8,7 @@ import { IdParamsSchema } from '../../shared/console/common.js';
 import { OutboxDetailSchema, OutboxPageSchema, OutboxQuerySchema } from '../../shared/console/users.js';
 import { consoleSettings } from '../config.js';
 import { capturedMail } from '../db/schema.js';
-import type { AppDeps } from '../http/app.js';
+import type { AppDeps } from '../deps.js';
 import { problem } from '../http/problem.js';
 import { consoleRoute, type ConsoleRouteModule } from './route.js';
 

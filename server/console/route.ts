@@ -19,7 +19,7 @@ import type { Request, RequestHandler, Response } from 'express';
 import type { z } from 'zod';
 import { ROLES } from '../../shared/access.js';
 import type { Role } from '../../shared/console/common.js';
-import type { AppDeps } from '../http/app.js';
+import type { AppDeps } from '../deps.js';
 import { problem } from '../http/problem.js';
 import { zodProblem } from '../http/validation.js';
 

@@ -14,7 +14,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import express from 'express';
-import type { AppModule } from '../http/app.js';
+import type { AppModule } from '../deps.js';
 import { problem, ProblemError } from '../http/problem.js';
 
 export const CONSOLE_DIST = path.resolve(import.meta.dirname, '../../console/dist');

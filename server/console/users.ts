@@ -17,10 +17,10 @@ import {
 import { UserSummarySchema } from '../../shared/console/common.js';
 import { consoleSettings } from '../config.js';
 import { accountMembers, accounts, users, userTokens } from '../db/schema.js';
-import type { AppDeps } from '../http/app.js';
+import type { AppDeps } from '../deps.js';
 import { problem } from '../http/problem.js';
 import { sendMail } from '../mail/send.js';
-import { recordAudit } from './audit.js';
+import { recordAudit } from '../accounts/audit.js';
 import { accountIdsOf, revokeUserSessions } from './auth/session.js';
 import { createUserToken, supersedeTokens } from './auth/user-tokens.js';
 import { consoleRoute, type ConsoleRouteModule } from './route.js';

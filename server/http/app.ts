@@ -1,49 +1,18 @@
 /**
- * The Express app factory. `createApp(deps)` builds the whole app without listening, so tests
- * mount it with supertest and main.ts listens on it.
+ * The Express app factory. `createHttpApp(deps, modules)` builds the app without listening;
+ * `server/app.ts` composes it with the service's modules for main.ts and the tests.
  *
  * Pipeline: X-Request-Id → /healthz, /readyz, /problems/:slug → /v1 (API key → metering → rate
- * limit → body → operations) → extra modules (appModules) → 404 problem → error handler.
+ * limit → body → operations) → the modules given → 404 problem → error handler.
  */
 import express, { type ErrorRequestHandler, type RequestHandler } from 'express';
-import type { Config } from '../config.js';
-import type { Db, Sqlite } from '../db/client.js';
+import type { AppDeps, AppModule } from '../deps.js';
 import { pendingMigrationCount } from '../db/client.js';
 import { bodyErrorTranslator } from './middleware/body.js';
 import { requestId } from './middleware/request-id.js';
 import { problem, problemCatalogue, ProblemError, sendProblem, type ProblemSlug } from './problem.js';
-import type { Lifecycle } from './server.js';
 import { createV1Router } from './v1/index.js';
 import { engineProblem } from './validation.js';
-import { openApiModule } from './openapi.js';
-import { consoleApiModule } from '../console/index.js';
-import { paymentsWebhookModule } from '../billing/webhook.js';
-import { consoleStaticModule } from '../console/static.js';
-
-export interface AppDeps {
-  db: Db;
-  sqlite: Sqlite;
-  config: Config;
-  /** Injectable clock: every time the service reasons about (expiry, quotas, logs) comes from here. */
-  clock: () => Date;
-  /** Recorded with every usage event and request-log row. */
-  engineVersion: string;
-  /** Set to draining on SIGTERM (main.ts): /readyz then answers 503. Absent in most tests. */
-  lifecycle?: Lifecycle;
-}
-
-/** Routes outside /v1 (OpenAPI document, docs page, console API): registered before the 404. */
-export interface AppModule {
-  register(app: express.Express, deps: AppDeps): void;
-}
-
-/** Other modules append themselves here, one line each. */
-export const appModules: AppModule[] = [
-  openApiModule,
-  consoleApiModule,
-  paymentsWebhookModule,
-  consoleStaticModule,
-];
 
 function escapeHtml(text: string): string {
   return text.replace(/[&<>"']/g, (c) => `&#${c.charCodeAt(0)};`);
@@ -77,7 +46,11 @@ const finalErrorHandler: ErrorRequestHandler = (err: unknown, _req, res, next) =
   sendProblem(res, problem('internal', `Unexpected error; quote request id ${res.locals.requestId}.`));
 };
 
-export function createApp(deps: AppDeps): express.Express {
+/**
+ * The HTTP app of `deps` with the routes outside /v1 given as `modules` (registered after /v1,
+ * before the 404). `server/app.ts` composes the service's modules; this file imports none of them.
+ */
+export function createHttpApp(deps: AppDeps, modules: readonly AppModule[]): express.Express {
   const app = express();
   app.disable('x-powered-by');
   app.set('clock', deps.clock);
@@ -130,7 +103,7 @@ export function createApp(deps: AppDeps): express.Express {
   // overlap /v1.
   app.use('/v1', createV1Router(deps));
 
-  for (const module of appModules) module.register(app, deps);
+  for (const module of modules) module.register(app, deps);
 
   app.use((req, _res, next) => {
     next(problem('not-found', `No route for ${req.method} ${req.path}.`));

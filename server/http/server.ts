@@ -25,20 +25,11 @@ import http from 'node:http';
 import type { Socket } from 'node:net';
 import crypto from 'node:crypto';
 import { serverSettings, type Config } from '../config.js';
+import type { Lifecycle } from '../deps.js';
+import { timedOutRequests } from './middleware/body.js';
 import { REQUEST_ID_PATTERN } from './middleware/request-id.js';
 import { problemCatalogue, problemTypeUri, type ProblemBody } from './problem.js';
 import { MULTIPART_BODY_CEILING } from './upload.js';
-
-/**
- * Requests the server timed out while the app was reading their body. The app then sees the
- * request aborted; body.ts answers (and so meters) those as 408, like the answer that left.
- */
-export const timedOutRequests = new WeakSet<http.IncomingMessage>();
-
-/** Shared between main.ts, the app (/readyz) and the server: set once on SIGTERM. */
-export interface Lifecycle {
-  draining: boolean;
-}
 
 /** The largest body a request with this Content-Type can have accepted, bytes. */
 export function bodyCeiling(contentType: string | undefined, config: Config): number {

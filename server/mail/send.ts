@@ -13,7 +13,7 @@ import nodemailer, { type Transporter } from 'nodemailer';
 import { consoleSettings } from '../config.js';
 import type { Db } from '../db/client.js';
 import { mailLog } from '../db/schema.js';
-import type { AppDeps } from '../http/app.js';
+import type { AppDeps } from '../deps.js';
 import { startMailCapture, type MailCapture } from '../integrations/mail-capture.js';
 
 export const mailKinds = [

@@ -45,7 +45,7 @@ import { createKey } from '../../server/accounts/keys.js';
 import { scopes } from '../../server/accounts/operations.js';
 import { loadConfig } from '../../server/config.js';
 import { openDatabase, runMigrations } from '../../server/db/client.js';
-import { createApp } from '../../server/http/app.js';
+import { createApp } from '../../server/app.js';
 
 const ROOT = path.resolve(import.meta.dirname, '../..');
 const TSX = path.join(ROOT, 'node_modules/.bin/tsx');

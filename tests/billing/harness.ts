@@ -10,7 +10,7 @@ import { ensureDefaultPlans } from '../../server/billing/plans.js';
 import { billingRouteModule } from '../../server/console/billing.js';
 import { consoleRouteModules } from '../../server/console/index.js';
 import { openDatabase, runMigrations } from '../../server/db/client.js';
-import { createApp, type AppDeps } from '../../server/http/app.js';
+import { createApp, type AppDeps } from '../../server/app.js';
 import { configurePayments } from '../../server/integrations/payments/client.js';
 import {
   startFakePaymentProvider,

@@ -3,11 +3,8 @@
 // thresholds are compared exactly in integers (used·100 ≥ t·quota), hand-computed below.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createAccount } from '../../server/accounts/accounts.js';
-import {
-  checkQuotaNotices,
-  scheduleQuotaCheck,
-  thresholdsReached,
-} from '../../server/billing/quota-notices.js';
+import { thresholdsReached } from '../../server/accounts/usage.js';
+import { checkQuotaNotices, scheduleQuotaCheck } from '../../server/billing/quota-notices.js';
 import { mailRows, makeBillingHarness, meter, type BillingHarness } from './harness.js';
 
 let h: BillingHarness;

@@ -3,7 +3,7 @@
 import request from 'supertest';
 import type TestAgent from 'supertest/lib/agent.js';
 import { addMember, createUser, type Role } from '../../server/accounts/accounts.js';
-import type { AppDeps, createApp } from '../../server/http/app.js';
+import type { AppDeps, createApp } from '../../server/app.js';
 
 type App = ReturnType<typeof createApp>;
 

@@ -5,7 +5,7 @@ import { createAccount } from '../../server/accounts/accounts.js';
 import { recordRequest, type RequestRecord } from '../../server/accounts/metering.js';
 import { openDatabase, runMigrations } from '../../server/db/client.js';
 import { plans } from '../../server/db/schema.js';
-import { createApp, type AppDeps } from '../../server/http/app.js';
+import { createApp, type AppDeps } from '../../server/app.js';
 import { consoleRouteModules } from '../../server/console/index.js';
 import { accountRoutes } from '../../server/console/accounts.js';
 import { keyRoutes } from '../../server/console/keys.js';

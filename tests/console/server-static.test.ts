@@ -10,7 +10,7 @@ import request from 'supertest';
 import { afterAll, describe, expect, it } from 'vitest';
 import { createConsoleStaticModule } from '../../server/console/static.js';
 import { ProblemError, sendProblem } from '../../server/http/problem.js';
-import type { AppDeps } from '../../server/http/app.js';
+import type { AppDeps } from '../../server/app.js';
 
 const tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'ebullio-console-'));
 const built = path.join(tmp, 'built');

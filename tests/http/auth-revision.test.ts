@@ -13,7 +13,7 @@ import { createAccount } from '../../server/accounts/accounts.js';
 import { authenticateToken, createKey, revokeKey } from '../../server/accounts/keys.js';
 import { scopes as ALL_SCOPES } from '../../server/accounts/operations.js';
 import { openDatabase, runMigrations } from '../../server/db/client.js';
-import { createApp } from '../../server/http/app.js';
+import { createApp } from '../../server/app.js';
 import { testConfig } from './helpers.js';
 
 const dirs: string[] = [];

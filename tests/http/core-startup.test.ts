@@ -10,7 +10,7 @@ import { describe, expect, it } from 'vitest';
 import { verifyUserPassword } from '../../server/accounts/accounts.js';
 import { ConfigError, loadConfig } from '../../server/config.js';
 import { openDatabase, runMigrations } from '../../server/db/client.js';
-import { createApp } from '../../server/http/app.js';
+import { createApp } from '../../server/app.js';
 import { bootstrap } from '../../server/seed/bootstrap.js';
 import { DEMO_ACCOUNT_NAME } from '../../server/seed/demo.js';
 import { startServerProcess } from '../support/server-process.js';

@@ -7,7 +7,8 @@ import type { AddressInfo } from 'node:net';
 import type { Server } from 'node:http';
 import { afterEach, describe, expect, it } from 'vitest';
 import { requireOperation } from '../../server/http/middleware/operation.js';
-import { v1RouteModules, type V1RouteModule } from '../../server/http/v1/index.js';
+import { v1RouteModules } from '../../server/http/v1/index.js';
+import type { V1RouteModule } from '../../server/http/v1/module.js';
 import { makeHarness, usageRows, type Harness } from './helpers.js';
 
 /** POST /v1/__race/hold: charged 5 units (as evaporators.multiple-effect), answers once released. */

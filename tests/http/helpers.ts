@@ -6,9 +6,10 @@ import { createKey } from '../../server/accounts/keys.js';
 import type { Scope } from '../../server/accounts/operations.js';
 import type { Config } from '../../server/config.js';
 import { openDatabase, runMigrations, type Db, type Sqlite } from '../../server/db/client.js';
-import { createApp, type AppDeps } from '../../server/http/app.js';
+import { createApp, type AppDeps } from '../../server/app.js';
 import { chargeUnits, requireOperation } from '../../server/http/middleware/operation.js';
-import { v1RouteModules, type V1RouteModule } from '../../server/http/v1/index.js';
+import { v1RouteModules } from '../../server/http/v1/index.js';
+import type { V1RouteModule } from '../../server/http/v1/module.js';
 
 export const ALL_SCOPES: Scope[] = ['steam', 'liquors', 'evaporators', 'batch', 'usage'];
 

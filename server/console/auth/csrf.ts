@@ -10,7 +10,7 @@ import crypto from 'node:crypto';
 import type { Request, RequestHandler } from 'express';
 import { CSRF_COOKIE, CSRF_HEADER } from '../../../shared/console/common.js';
 import { consoleSettings } from '../../config.js';
-import type { AppDeps } from '../../http/app.js';
+import type { AppDeps } from '../../deps.js';
 import { problem } from '../../http/problem.js';
 import { randomToken } from './session.js';
 

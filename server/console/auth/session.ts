@@ -19,7 +19,7 @@ import { jwtVerify, SignJWT } from 'jose';
 import { ACCESS_COOKIE, REFRESH_COOKIE } from '../../../shared/console/common.js';
 import { consoleSettings } from '../../config.js';
 import { accountMembers, consoleSessions, users } from '../../db/schema.js';
-import type { AppDeps } from '../../http/app.js';
+import type { AppDeps } from '../../deps.js';
 import type { ConsoleUser, Role } from '../route.js';
 
 export const JWT_ISSUER = 'ebullio-console';

@@ -5,7 +5,7 @@
  */
 import { and, eq, gt, isNull } from 'drizzle-orm';
 import { userTokens } from '../../db/schema.js';
-import type { AppDeps } from '../../http/app.js';
+import type { AppDeps } from '../../deps.js';
 import type { Role } from '../route.js';
 import { randomToken, sha256Hex } from './session.js';
 

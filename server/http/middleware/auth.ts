@@ -6,7 +6,7 @@
  */
 import type { RequestHandler } from 'express';
 import { authenticateToken } from '../../accounts/keys.js';
-import type { AppDeps } from '../app.js';
+import type { AppDeps } from '../../deps.js';
 import { problem } from '../problem.js';
 import './locals.js';
 

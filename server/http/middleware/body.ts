@@ -7,9 +7,15 @@
  * Accepted media types for POST/PUT/PATCH bodies: application/json (and +json), text/csv (parsed
  * to a string in req.body), multipart/form-data (left unparsed for a route's own multer).
  */
+import type http from 'node:http';
 import express, { type ErrorRequestHandler, type RequestHandler } from 'express';
 import { problem, ProblemError } from '../problem.js';
-import { timedOutRequests } from '../server.js';
+
+/**
+ * Requests the server timed out while the app was reading their body. The app then sees the
+ * request aborted; this module answers (and so meters) those as 408, like the answer that left.
+ */
+export const timedOutRequests = new WeakSet<http.IncomingMessage>();
 
 /**
  * Deepest nesting of arrays and objects accepted in a JSON body. The deepest body the API

@@ -28,8 +28,8 @@ import {
 } from '../../accounts/metering.js';
 import crypto from 'node:crypto';
 import { carriesKey, logBody, redactText, type RedactionContext } from '../../accounts/request-log.js';
-import { scheduleQuotaCheck, thresholdsReached } from '../../billing/quota-notices.js';
-import type { AppDeps } from '../app.js';
+import { thresholdsReached } from '../../accounts/usage.js';
+import type { AppDeps } from '../../deps.js';
 import { presentedToken } from './auth.js';
 import { elapsedMs } from './request-id.js';
 import type { AuthContext, MeterState } from './locals.js';
@@ -158,7 +158,7 @@ class MeteredRequest implements MeterState {
       const before = this.usedByOthersAtCharge ?? 0;
       const after = before + this.units;
       if (thresholdsReached(after, this.quota).length > thresholdsReached(before, this.quota).length) {
-        scheduleQuotaCheck(this.ctx.deps, this.auth.accountId);
+        this.ctx.deps.onQuotaThresholdCrossed?.(this.auth.accountId);
       }
     }
   }

@@ -14,7 +14,7 @@ import {
   type LiquorRef,
 } from '../../../shared/contracts/index.js';
 import { operations, type OperationId } from '../../accounts/operations.js';
-import type { AppDeps } from '../app.js';
+import type { AppDeps } from '../../deps.js';
 import { chargeUnits, requireOperation } from '../middleware/operation.js';
 import { toCsv } from '../csv.js';
 import { FORBIDDEN_KEYS } from '../middleware/body.js';
@@ -24,7 +24,7 @@ import { findNonFinite, toProblem, validate } from '../validation.js';
 import { multipleEffectUnits, runMultipleEffect, runSingleEffect } from './evaporators.js';
 import { resolveLiquor, runBoilingPoint, runEnthalpy } from './liquors.js';
 import { runSaturation, runSteamState } from './steam.js';
-import type { V1RouteModule } from './index.js';
+import type { V1RouteModule } from './module.js';
 
 const OPERATION_OF: Record<BatchOperation, OperationId> = {
   'steam-saturation': 'steam.saturation',

@@ -37,7 +37,7 @@ import {
 } from '../validation.js';
 import { resolveLiquor } from './liquors.js';
 import { IF97_MODEL } from './steam.js';
-import type { V1RouteModule } from './index.js';
+import type { V1RouteModule } from './module.js';
 
 function stream(s: StreamState) {
   return {

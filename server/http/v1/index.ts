@@ -11,7 +11,7 @@
  * quota). Paths inside the router are relative to /v1 (e.g. `router.get('/steam/saturation', …)`).
  */
 import express from 'express';
-import type { AppDeps } from '../app.js';
+import type { AppDeps } from '../../deps.js';
 import { authenticate, reauthenticate } from '../middleware/auth.js';
 import { bodyReader } from '../middleware/body.js';
 import { metering } from '../middleware/metering.js';
@@ -22,10 +22,7 @@ import { liquorRoutes } from './liquors.js';
 import { storedLiquorRoutes } from './stored-liquors.js';
 import { evaporatorRoutes } from './evaporators.js';
 import { batchRoutes } from './batch.js';
-
-export interface V1RouteModule {
-  register(router: express.Router, deps: AppDeps): void;
-}
+import type { V1RouteModule } from './module.js';
 
 /** Route modules of /v1, registered in this order. Append one line per module. */
 export const v1RouteModules: V1RouteModule[] = [

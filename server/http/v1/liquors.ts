@@ -41,7 +41,7 @@ import {
 } from '../validation.js';
 import { IF97_MODEL } from './steam.js';
 import { findStoredLiquor, listStoredLiquors } from './stored-liquors.js';
-import type { V1RouteModule } from './index.js';
+import type { V1RouteModule } from './module.js';
 
 const KJ = 1000;
 

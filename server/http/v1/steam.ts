@@ -20,7 +20,7 @@ import {
 } from '../../engine/steam/if97.js';
 import { requireOperation } from '../middleware/operation.js';
 import { calculate, display, provenance, r, readQuantity, sendCalculation, validate } from '../validation.js';
-import type { V1RouteModule } from './index.js';
+import type { V1RouteModule } from './module.js';
 
 export const IF97_MODEL = { id: IF97_CITATION.key, source: IF97_CITATION.reference };
 

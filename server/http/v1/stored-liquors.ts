@@ -25,7 +25,7 @@ import { requireOperation } from '../middleware/operation.js';
 import { problem, type ProblemFieldError } from '../problem.js';
 import { validate } from '../validation.js';
 import { buildCustomLiquor } from './liquors.js';
-import type { V1RouteModule } from './index.js';
+import type { V1RouteModule } from './module.js';
 import { multipartOnly } from '../upload.js';
 
 export interface StoredLiquorRecord {

@@ -5,7 +5,7 @@
 import { UsageResponseSchema } from '../../../shared/contracts/usage.js';
 import { monthUsage } from '../../accounts/usage.js';
 import { requireOperation } from '../middleware/operation.js';
-import type { V1RouteModule } from './index.js';
+import type { V1RouteModule } from './module.js';
 
 export const usageRoutes: V1RouteModule = {
   register(router, deps) {

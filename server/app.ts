@@ -1,0 +1,31 @@
+/**
+ * The composition root of the HTTP service: the app of `server/http/app.ts` with the service's
+ * modules outside /v1, and the hooks that connect rooms without an import between them (metering
+ * tells billing's quota notices when an account crosses a threshold). main.ts and the tests build
+ * the service here.
+ */
+import type express from 'express';
+import { scheduleQuotaCheck } from './billing/quota-notices.js';
+import { paymentsWebhookModule } from './billing/webhook.js';
+import { consoleApiModule } from './console/index.js';
+import { consoleStaticModule } from './console/static.js';
+import type { AppDeps, AppModule } from './deps.js';
+import { createHttpApp } from './http/app.js';
+import { openApiModule } from './http/openapi.js';
+
+export type { AppDeps, AppModule } from './deps.js';
+
+/** Routes outside /v1, registered in this order after /v1. */
+export const appModules: readonly AppModule[] = [
+  openApiModule,
+  consoleApiModule,
+  paymentsWebhookModule,
+  consoleStaticModule,
+];
+
+/** The whole service on `deps` (a hook the caller did not set gets the service's own). */
+export function createApp(deps: AppDeps): express.Express {
+  const composed: AppDeps = { ...deps };
+  composed.onQuotaThresholdCrossed ??= (accountId) => scheduleQuotaCheck(composed, accountId);
+  return createHttpApp(composed, appModules);
+}

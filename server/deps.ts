@@ -1,0 +1,36 @@
+/**
+ * What every room of the server is handed at start-up: the database, the configuration, the clock
+ * and the hooks between rooms. This module imports nothing of the app but types, so any module
+ * may depend on it without closing an import circle; `server/app.ts` composes the modules.
+ */
+import type express from 'express';
+import type { Config } from './config.js';
+import type { Db, Sqlite } from './db/client.js';
+
+export interface AppDeps {
+  db: Db;
+  sqlite: Sqlite;
+  config: Config;
+  /** Injectable clock: every time the service reasons about (expiry, quotas, logs) comes from here. */
+  clock: () => Date;
+  /** Recorded with every usage event and request-log row. */
+  engineVersion: string;
+  /**
+   * Called after a metered request whose units took its account across a quota-notice threshold
+   * (80 % or 100 %). The composition root points it at billing's quota notices, so metering
+   * needs no import of billing.
+   */
+  onQuotaThresholdCrossed?: (accountId: number) => void;
+  /** Set to draining on SIGTERM (main.ts): /readyz then answers 503. Absent in most tests. */
+  lifecycle?: Lifecycle;
+}
+
+/** Shared between main.ts, the app (/readyz) and the HTTP server: set once on SIGTERM. */
+export interface Lifecycle {
+  draining: boolean;
+}
+
+/** Routes outside /v1 (OpenAPI document, docs page, console API, webhooks, static console). */
+export interface AppModule {
+  register(app: express.Express, deps: AppDeps): void;
+}
