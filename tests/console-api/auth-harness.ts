@@ -17,12 +17,12 @@ export interface ConsoleHarness extends Harness {
   otherAccountId: number;
 }
 
-export function makeConsoleHarness(config: Partial<Config> = {}): ConsoleHarness {
+export async function makeConsoleHarness(config: Partial<Config> = {}): Promise<ConsoleHarness> {
   const h = makeHarness({ config: { consoleSignInLimit: 1000, ...config } });
   const otherAccountId = createAccount(h.db, { name: 'Invented Other Works', now: h.clock.now }).id;
   const users = {} as ConsoleHarness['users'];
   for (const role of ['admin', 'billing', 'developer'] as const) {
-    const u = createUser(h.db, {
+    const u = await createUser(h.db, {
       email: `${role}@ebullio.invalid`,
       password: PASSWORD,
       role,
