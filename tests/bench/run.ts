@@ -9,6 +9,7 @@ import { runSingleEffectBench } from './single-effect.js';
 import { runMultipleEffectBench } from './multiple-effect.js';
 import { runApiBench } from './api.js';
 import { runBundleBench } from './bundle.js';
+import { runHashFloodBench } from './hash-flood.js';
 
 const sections: { title: string; run: () => Promise<void> }[] = [
   { title: 'IAPWS-IF97 steam properties', run: runSteamBench },
@@ -18,6 +19,12 @@ const sections: { title: string; run: () => Promise<void> }[] = [
     title: 'Metered API vs a bare Express route (autocannon, loopback)',
     run: async () => {
       await runApiBench();
+    },
+  },
+  {
+    title: 'Metered route latency under anonymous password-hashing floods',
+    run: async () => {
+      await runHashFloodBench();
     },
   },
   { title: 'Console initial load (gzipped JS + CSS)', run: runBundleBench },
