@@ -6,6 +6,7 @@ import type { Response } from 'supertest';
 import request from 'supertest';
 import { addMember, createAccount, createUser } from '../../server/accounts/accounts.js';
 import type { Config } from '../../server/config.js';
+import { CSRF_COOKIE } from '../../shared/console/common.js';
 import { issueSession } from '../../server/console/auth/session.js';
 import type { Role } from '../../server/console/route.js';
 import { makeHarness, type Harness } from '../http/helpers.js';
@@ -83,7 +84,8 @@ export async function signIn(
       .set('X-CSRF-Token', token)
       .send({ email, password }),
   );
-  return { jar, token, res };
+  // A successful sign-in replaces the CSRF cookie with a token bound to the new session.
+  return { jar, token: jar.cookies.get(CSRF_COOKIE) ?? token, res };
 }
 
 /** A session for a user without the password round trip (fast; for the role matrix). */

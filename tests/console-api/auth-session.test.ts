@@ -5,6 +5,7 @@
 import request from 'supertest';
 import { describe, expect, it } from 'vitest';
 import { decodeJwt, decodeProtectedHeader } from 'jose';
+import { CSRF_COOKIE } from '../../shared/console/common.js';
 import { Jar, PASSWORD, csrf, makeConsoleHarness, setCookies, signIn } from './auth-harness.js';
 
 describe('console sign-in', () => {
@@ -166,6 +167,54 @@ describe('console sign-in', () => {
 });
 
 describe('console CSRF protection', () => {
+  it('refuses a token minted for another session with 403 csrf-failed and accepts the session’s own', async () => {
+    // OWASP CSRF Prevention cheat sheet ("Signed Double-Submit Cookie"): the token is bound to
+    // the session, so a validly signed token obtained by another client does not work here.
+    const h = await makeConsoleHarness();
+    const other = await signIn(h, 'developer@ebullio.invalid');
+    const admin = await signIn(h, 'admin@ebullio.invalid');
+    expect(other.token).not.toBe(admin.token);
+    const refresh = (jar: Jar, token: string) =>
+      request(h.app).post('/console-api/auth/refresh').set('Cookie', jar.header()).set('X-CSRF-Token', token);
+
+    const planted = new Jar();
+    for (const [name, value] of admin.jar.cookies) planted.cookies.set(name, value);
+    planted.cookies.set(CSRF_COOKIE, other.token);
+    const refused = await refresh(planted, other.token);
+    expect(refused.status).toBe(403);
+    expect(refused.body.type).toBe('/problems/csrf-failed');
+
+    expect(admin.jar.cookies.get(CSRF_COOKIE)).toBe(admin.token);
+    expect((await refresh(admin.jar, admin.token)).status).toBe(200);
+  });
+
+  it('issues a token bound to the new session on sign-in; the one minted before sign-in stops working', async () => {
+    const h = await makeConsoleHarness();
+    const jar = new Jar();
+    const before = await csrf(h, jar);
+    const { token: after } = await signIn(h, 'billing@ebullio.invalid', PASSWORD, jar);
+    expect(after).not.toBe(before);
+    // The console reads the cookie before each call, so the new token reaches it by itself.
+    expect(jar.cookies.get(CSRF_COOKIE)).toBe(after);
+    // GET /auth/csrf keeps answering the bound token for this session.
+    expect(await csrf(h, jar)).toBe(after);
+
+    const stale = new Jar();
+    for (const [name, value] of jar.cookies) stale.cookies.set(name, value);
+    stale.cookies.set(CSRF_COOKIE, before);
+    const refused = await request(h.app)
+      .post('/console-api/auth/sign-out')
+      .set('Cookie', stale.header())
+      .set('X-CSRF-Token', before);
+    expect(refused.status).toBe(403);
+    expect(refused.body.type).toBe('/problems/csrf-failed');
+    const out = await request(h.app)
+      .post('/console-api/auth/sign-out')
+      .set('Cookie', jar.header())
+      .set('X-CSRF-Token', after);
+    expect(out.status).toBe(200);
+  });
+
   it('refuses a state-changing request without the X-CSRF-Token header', async () => {
     const h = await makeConsoleHarness();
     const jar = new Jar();

@@ -77,11 +77,14 @@ describe('invitations', () => {
     });
     expect((await request(h.app).get('/console-api/auth/me').set('Cookie', jar.header())).status).toBe(200);
 
+    // Accepting signed the new user in, and the CSRF cookie now holds a token bound to that session.
+    const bound = jar.cookies.get('ebullio_csrf');
+    expect(bound).not.toBe(t);
     // OWASP Forgot Password cheat sheet: tokens are single use.
     const again = await request(h.app)
       .post('/console-api/auth/invitations/accept')
       .set('Cookie', jar.header())
-      .set('X-CSRF-Token', t)
+      .set('X-CSRF-Token', bound!)
       .send({ token, name: 'Someone Else', password: 'another long password' });
     expect(again.status).toBe(422);
     expect(again.body.errors[0].field).toBe('token');

@@ -33,7 +33,7 @@ import { sendMail } from '../../mail/send.js';
 import { recordAudit } from '../audit.js';
 import { consoleRoute, type ConsoleRouteModule } from '../route.js';
 import { loadUserSummary } from '../users.js';
-import { isValidCsrfToken, newCsrfToken, presentedCsrfCookie } from './csrf.js';
+import { issueCsrfCookie, isValidCsrfToken, presentedCsrfCookie } from './csrf.js';
 import {
   clearSessionCookies,
   issueSession,
@@ -145,15 +145,19 @@ export const authRouteModule: ConsoleRouteModule = {
       summary: `Get the CSRF token (sets the readable ${CSRF_COOKIE} cookie); send it as X-CSRF-Token`,
       response: CsrfResponseSchema,
       handler: ({ deps, req, res }) => {
+        // Bound to the session the request names (none before sign-in); kept while it still fits.
+        const sessionId = presentedSessionId(req, res) ?? '';
         const existing = presentedCsrfCookie(req);
-        const csrfToken = existing && isValidCsrfToken(deps, existing) ? existing : newCsrfToken(deps);
-        res.cookie(CSRF_COOKIE, csrfToken, {
-          httpOnly: false,
-          sameSite: 'strict',
-          secure: req.secure,
-          path: '/',
-        });
-        return { csrfToken };
+        if (existing && isValidCsrfToken(deps, existing, sessionId)) {
+          res.cookie(CSRF_COOKIE, existing, {
+            httpOnly: false,
+            sameSite: 'strict',
+            secure: req.secure,
+            path: '/',
+          });
+          return { csrfToken: existing };
+        }
+        return { csrfToken: issueCsrfCookie(deps, req, res, sessionId) };
       },
     });
 
@@ -195,6 +199,8 @@ export const authRouteModule: ConsoleRouteModule = {
             .where(eq(users.id, row.id))
             .run();
           const session = await issueSession(deps, req, res, row);
+          // The token minted before sign-in is replaced by one bound to the new session.
+          issueCsrfCookie(deps, req, res, session.sessionId);
           recordAudit(deps, req, res, {
             action: 'auth.sign-in',
             targetType: 'user',
@@ -299,6 +305,7 @@ export const authRouteModule: ConsoleRouteModule = {
           }
         }
         clearSessionCookies(req, res);
+        issueCsrfCookie(deps, req, res);
         return { ok: true as const };
       },
     });
@@ -480,6 +487,7 @@ export const authRouteModule: ConsoleRouteModule = {
           detail: { invitationId: created.tokenId, role: user.role },
         });
         const session = await issueSession(deps, req, res, user);
+        issueCsrfCookie(deps, req, res, session.sessionId);
         return sessionBody(deps, user.id, session);
       },
     });
