@@ -25,6 +25,7 @@
 import crypto from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
+import { ensurePrivateDir, restrictFile } from './private-files.js';
 
 export interface Config {
   port: number;
@@ -161,17 +162,18 @@ export function parseSize(raw: string, name = 'BODY_LIMIT'): number {
 
 /**
  * Reads the server secret from `<dataDir>/server-secret`, generating 32 random bytes (hex) with
- * file mode 0600 the first time. The file is created exclusively ('wx') so two processes starting
+ * file mode 0600 the first time (in a 0700 folder; an existing file is set to 0600). The file is created exclusively ('wx') so two processes starting
  * together cannot overwrite each other's secret.
  */
 export function loadOrCreateSecretFile(dataDir: string): { secret: Buffer; file: string } {
   const file = path.join(dataDir, 'server-secret');
-  fs.mkdirSync(dataDir, { recursive: true });
+  ensurePrivateDir(dataDir);
   try {
     fs.writeFileSync(file, crypto.randomBytes(32).toString('hex') + '\n', { mode: 0o600, flag: 'wx' });
   } catch (err) {
     if ((err as NodeJS.ErrnoException).code !== 'EEXIST') throw err;
   }
+  restrictFile(file); // a secret file written by an earlier version or by hand
   const text = fs.readFileSync(file, 'utf8').trim();
   if (!/^[0-9a-f]{64}$/.test(text)) throw new ConfigError(`${file} does not hold a 64-digit hex secret`);
   return { secret: Buffer.from(text, 'hex'), file };
