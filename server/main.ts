@@ -127,7 +127,7 @@ async function main(): Promise<void> {
   // Price plans (server/billing/plans.ts): inserts the missing default tiers, never overwrites one.
   const plansAdded = ensureDefaultPlans(db);
   if (plansAdded > 0) console.log(`[start-up] ${plansAdded} default price plan(s) added`);
-  const report = bootstrap(db, sqlite, config, clock(), version);
+  const report = await bootstrap(db, sqlite, config, clock(), version);
   if (report.seeded) console.log('[start-up] empty database: demo accounts and usage seeded');
   if (report.demoCredentials && config.nodeEnv !== 'production') {
     // Shown once, on the start that created them (they are stored only as hashes).
@@ -143,7 +143,7 @@ async function main(): Promise<void> {
   if (config.nodeEnv !== 'production' && flag('DEMO_CONSOLE_USERS', false)) {
     const demoAccount = sqlite.prepare('SELECT id FROM accounts WHERE name = ?').get(DEMO_ACCOUNT_NAME) as
       { id: number } | undefined;
-    for (const email of seedDemoConsoleUsers(db, clock(), demoAccount ? [demoAccount.id] : []))
+    for (const email of await seedDemoConsoleUsers(db, clock(), demoAccount ? [demoAccount.id] : []))
       console.log(`[start-up] demo console user ${email} created (DEMO_CONSOLE_USERS=1)`);
   }
   console.log(

@@ -57,12 +57,25 @@ function publicUser(row: typeof users.$inferSelect): User {
   return rest;
 }
 
-export function createUser(db: Db, input: { email: string; password: string; role: Role; now: Date }): User {
+/** Hashes the password (off the event loop, see passwords.ts) and inserts the user. */
+export async function createUser(
+  db: Db,
+  input: { email: string; password: string; role: Role; now: Date },
+): Promise<User> {
+  const passwordHash = await hashPassword(input.password);
+  return insertUser(db, { email: input.email, passwordHash, role: input.role, now: input.now });
+}
+
+/** Inserts a user with an already computed hash (synchronous, so it fits inside a transaction). */
+export function insertUser(
+  db: Db,
+  input: { email: string; passwordHash: string; role: Role; now: Date },
+): User {
   const row = db
     .insert(users)
     .values({
       email: input.email.trim().toLowerCase(),
-      passwordHash: hashPassword(input.password),
+      passwordHash: input.passwordHash,
       role: input.role,
       createdAt: input.now,
     })
@@ -77,10 +90,10 @@ export function findUserByEmail(db: Db, email: string): User | undefined {
 }
 
 /** Returns the user if the e-mail and password match an active user; undefined otherwise. */
-export function verifyUserPassword(db: Db, email: string, password: string): User | undefined {
+export async function verifyUserPassword(db: Db, email: string, password: string): Promise<User | undefined> {
   const row = db.select().from(users).where(eq(users.email, email.trim().toLowerCase())).get();
   if (!row || !row.active) return undefined;
-  return verifyPassword(password, row.passwordHash) ? publicUser(row) : undefined;
+  return (await verifyPassword(password, row.passwordHash)) ? publicUser(row) : undefined;
 }
 
 export function addMember(db: Db, userId: number, accountId: number): void {

@@ -3,7 +3,7 @@
  * one developer who is a member of the given accounts. Idempotent: an existing e-mail is left as
  * it is (its password is never overwritten). Call from the seed only outside production, e.g.
  *
- *   if (config.nodeEnv !== 'production') seedDemoConsoleUsers(db, now, [demoAccountId]);
+ *   if (config.nodeEnv !== 'production') await seedDemoConsoleUsers(db, now, [demoAccountId]);
  *
  * The password is the same documented demo value for both, so do not run this on a public host.
  */
@@ -16,7 +16,11 @@ export const DEMO_CONSOLE_PASSWORD = 'ebullio-demo-console';
 export const DEMO_BILLING_EMAIL = 'billing@ebullio.invalid';
 export const DEMO_DEVELOPER_EMAIL = 'developer@ebullio.invalid';
 
-export function seedDemoConsoleUsers(db: Db, now: Date, developerAccountIds: readonly number[]): string[] {
+export async function seedDemoConsoleUsers(
+  db: Db,
+  now: Date,
+  developerAccountIds: readonly number[],
+): Promise<string[]> {
   const created: string[] = [];
   const demo = [
     { email: DEMO_BILLING_EMAIL, role: 'billing' as const, name: 'Maren Oduya (demo billing)' },
@@ -24,7 +28,7 @@ export function seedDemoConsoleUsers(db: Db, now: Date, developerAccountIds: rea
   ];
   for (const d of demo) {
     if (findUserByEmail(db, d.email)) continue;
-    const user = createUser(db, { email: d.email, password: DEMO_CONSOLE_PASSWORD, role: d.role, now });
+    const user = await createUser(db, { email: d.email, password: DEMO_CONSOLE_PASSWORD, role: d.role, now });
     db.update(users).set({ name: d.name }).where(eq(users.id, user.id)).run();
     if (d.role === 'developer') for (const id of developerAccountIds) addMember(db, user.id, id);
     created.push(d.email);

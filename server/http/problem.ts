@@ -147,6 +147,12 @@ export const problemCatalogue = {
     description:
       'The payment provider refused, did not answer or is not configured; the statement was left as it was. Retrying is safe.',
   },
+  busy: {
+    status: 503,
+    title: 'Busy',
+    description:
+      'The server is too busy to take this request now (for example, too many password checks are queued). Nothing was changed; retry after the Retry-After header.',
+  },
   internal: {
     status: 500,
     title: 'Internal error',

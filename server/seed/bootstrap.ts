@@ -22,16 +22,16 @@ export interface BootstrapReport {
   adminCreated: boolean;
 }
 
-export function bootstrap(
+export async function bootstrap(
   db: Db,
   sqlite: Sqlite,
   config: Config,
   now: Date,
   engineVersion: string,
-): BootstrapReport {
+): Promise<BootstrapReport> {
   const report: BootstrapReport = { seeded: false, apiKeyRegistered: false, adminCreated: false };
   if (isDatabaseEmpty(sqlite)) {
-    report.demoCredentials = seedDemo(db, sqlite, config.secret, now, engineVersion);
+    report.demoCredentials = await seedDemo(db, sqlite, config.secret, now, engineVersion);
     report.seeded = true;
   }
   const demoAccountId = () =>
@@ -54,7 +54,7 @@ export function bootstrap(
     config.bootstrapAdminPassword !== undefined &&
     !findUserByEmail(db, config.bootstrapAdminEmail)
   ) {
-    const user = createUser(db, {
+    const user = await createUser(db, {
       email: config.bootstrapAdminEmail,
       password: config.bootstrapAdminPassword,
       role: 'admin',

@@ -7,7 +7,8 @@
  */
 import crypto from 'node:crypto';
 import type { Db, Sqlite } from '../db/client.js';
-import { addMember, createAccount, createUser } from '../accounts/accounts.js';
+import { addMember, createAccount, insertUser } from '../accounts/accounts.js';
+import { hashPassword } from '../accounts/passwords.js';
 import { createKey } from '../accounts/keys.js';
 import { recordRequest } from '../accounts/metering.js';
 import { operations, scopes, type OperationId } from '../accounts/operations.js';
@@ -95,18 +96,20 @@ export interface DemoCredentials {
  * random; they are returned (committed first, stored only as hashes) so start-up can show them
  * once, and are never shown again.
  */
-export function seedDemo(
+export async function seedDemo(
   db: Db,
   sqlite: Sqlite,
   serverSecret: Buffer,
   now: Date,
   engineVersion: string,
-): DemoCredentials {
+): Promise<DemoCredentials> {
+  const operatorPassword = crypto.randomBytes(12).toString('base64url');
+  // Hashed before the (synchronous) transaction: hashing runs in a worker thread.
+  const operatorHash = await hashPassword(operatorPassword);
   return sqlite.transaction(() => {
-    const operatorPassword = crypto.randomBytes(12).toString('base64url');
-    const operator = createUser(db, {
+    const operator = insertUser(db, {
       email: DEMO_OPERATOR_EMAIL,
-      password: operatorPassword,
+      passwordHash: operatorHash,
       role: 'admin',
       now,
     });

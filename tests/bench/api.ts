@@ -144,7 +144,7 @@ function serveApp(): void {
 // Parent mode.
 // ---------------------------------------------------------------------------------------------
 
-interface Child {
+export interface Child {
   proc: ChildProcess;
   port: number;
   exited: Promise<number | null>;
@@ -177,7 +177,7 @@ export function serverNodeFlags(): string[] {
   return m[1]!.trim().split(/\s+/).filter(Boolean);
 }
 
-function startChild(args: string[], env: Record<string, string>): Promise<Child> {
+export function startChild(args: string[], env: Record<string, string>): Promise<Child> {
   const proc = spawn(TSX, [...serverNodeFlags(), ...args], {
     cwd: ROOT,
     env: { ...process.env, ...env },
@@ -228,7 +228,7 @@ function startChild(args: string[], env: Record<string, string>): Promise<Child>
   });
 }
 
-async function stopChild(child: Child): Promise<void> {
+export async function stopChild(child: Child): Promise<void> {
   child.proc.kill('SIGTERM');
   const timer = setTimeout(() => killGroup(child.proc), 5000);
   await child.exited;

@@ -10,6 +10,7 @@ import { runMultipleEffectBench } from './multiple-effect.js';
 import { runApiBench } from './api.js';
 import { runBundleBench } from './bundle.js';
 import { runDrainBench } from './drain.js';
+import { runHashFloodBench } from './hash-flood.js';
 
 const sections: { title: string; run: () => Promise<void> }[] = [
   { title: 'IAPWS-IF97 steam properties', run: runSteamBench },
@@ -19,6 +20,12 @@ const sections: { title: string; run: () => Promise<void> }[] = [
     title: 'Metered API vs a bare Express route (autocannon, loopback)',
     run: async () => {
       await runApiBench();
+    },
+  },
+  {
+    title: 'Metered route latency under anonymous password-hashing floods',
+    run: async () => {
+      await runHashFloodBench();
     },
   },
   { title: 'Console initial load (gzipped JS + CSS)', run: runBundleBench },

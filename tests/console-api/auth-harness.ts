@@ -6,6 +6,7 @@ import type { Response } from 'supertest';
 import request from 'supertest';
 import { addMember, createAccount, createUser } from '../../server/accounts/accounts.js';
 import type { Config } from '../../server/config.js';
+import { CSRF_COOKIE } from '../../shared/console/common.js';
 import { issueSession } from '../../server/console/auth/session.js';
 import type { Role } from '../../server/console/route.js';
 import { makeHarness, type Harness } from '../http/helpers.js';
@@ -17,12 +18,12 @@ export interface ConsoleHarness extends Harness {
   otherAccountId: number;
 }
 
-export function makeConsoleHarness(config: Partial<Config> = {}): ConsoleHarness {
+export async function makeConsoleHarness(config: Partial<Config> = {}): Promise<ConsoleHarness> {
   const h = makeHarness({ config: { consoleSignInLimit: 1000, ...config } });
   const otherAccountId = createAccount(h.db, { name: 'Invented Other Works', now: h.clock.now }).id;
   const users = {} as ConsoleHarness['users'];
   for (const role of ['admin', 'billing', 'developer'] as const) {
-    const u = createUser(h.db, {
+    const u = await createUser(h.db, {
       email: `${role}@ebullio.invalid`,
       password: PASSWORD,
       role,
@@ -83,7 +84,8 @@ export async function signIn(
       .set('X-CSRF-Token', token)
       .send({ email, password }),
   );
-  return { jar, token, res };
+  // A successful sign-in replaces the CSRF cookie with a token bound to the new session.
+  return { jar, token: jar.cookies.get(CSRF_COOKIE) ?? token, res };
 }
 
 /** A session for a user without the password round trip (fast; for the role matrix). */

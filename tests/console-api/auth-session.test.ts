@@ -5,11 +5,12 @@
 import request from 'supertest';
 import { describe, expect, it } from 'vitest';
 import { decodeJwt, decodeProtectedHeader } from 'jose';
+import { CSRF_COOKIE } from '../../shared/console/common.js';
 import { Jar, PASSWORD, csrf, makeConsoleHarness, setCookies, signIn } from './auth-harness.js';
 
 describe('console sign-in', () => {
   it('sets an httpOnly SameSite=Strict access cookie and a refresh cookie scoped to /console-api/auth', async () => {
-    const h = makeConsoleHarness();
+    const h = await makeConsoleHarness();
     const { res } = await signIn(h, 'admin@ebullio.invalid');
     expect(res.status).toBe(200);
     const cookies = setCookies(res);
@@ -35,7 +36,7 @@ describe('console sign-in', () => {
   });
 
   it('marks the cookies Secure when a trusted proxy says the request came over HTTPS', async () => {
-    const h = makeConsoleHarness({ trustProxy: true });
+    const h = await makeConsoleHarness({ trustProxy: true });
     const jar = new Jar();
     const token = await csrf(h, jar);
     const res = await request(h.app)
@@ -51,7 +52,7 @@ describe('console sign-in', () => {
   });
 
   it('ignores X-Forwarded-Proto when no proxy is trusted', async () => {
-    const h = makeConsoleHarness();
+    const h = await makeConsoleHarness();
     const jar = new Jar();
     const token = await csrf(h, jar);
     const res = await request(h.app)
@@ -65,7 +66,7 @@ describe('console sign-in', () => {
   });
 
   it('gives the same answer for an unknown e-mail and a wrong password', async () => {
-    const h = makeConsoleHarness();
+    const h = await makeConsoleHarness();
     const unknown = await signIn(h, 'nobody@ebullio.invalid', 'whatever-password');
     const wrong = await signIn(h, 'admin@ebullio.invalid', 'wrong-password-here');
     // OWASP Authentication cheat sheet ("Authentication and error messages"): one generic response.
@@ -80,7 +81,7 @@ describe('console sign-in', () => {
   });
 
   it('refuses the access cookie once it has expired and accepts a refreshed one', async () => {
-    const h = makeConsoleHarness();
+    const h = await makeConsoleHarness();
     const { jar, token } = await signIn(h, 'developer@ebullio.invalid');
     expect((await request(h.app).get('/console-api/auth/me').set('Cookie', jar.header())).status).toBe(200);
     h.clock.now = new Date(h.clock.now.getTime() + 16 * 60_000);
@@ -100,7 +101,7 @@ describe('console sign-in', () => {
   });
 
   it('refuses a refresh after the session lifetime', async () => {
-    const h = makeConsoleHarness({ consoleSessionHours: 8 });
+    const h = await makeConsoleHarness({ consoleSessionHours: 8 });
     const { jar, token } = await signIn(h, 'admin@ebullio.invalid');
     h.clock.now = new Date(h.clock.now.getTime() + 8 * 3_600_000 + 1000);
     const res = await request(h.app)
@@ -112,7 +113,7 @@ describe('console sign-in', () => {
   });
 
   it('rotates the refresh token and revokes the session when an old one is replayed', async () => {
-    const h = makeConsoleHarness();
+    const h = await makeConsoleHarness();
     const { jar, token } = await signIn(h, 'admin@ebullio.invalid');
     const first = jar.cookies.get('ebullio_refresh')!;
     jar.take(
@@ -147,7 +148,7 @@ describe('console sign-in', () => {
   });
 
   it('signs out by revoking the session, so the old access cookie is refused immediately', async () => {
-    const h = makeConsoleHarness();
+    const h = await makeConsoleHarness();
     const { jar, token } = await signIn(h, 'billing@ebullio.invalid');
     const stolen = jar.header();
     const out = await request(h.app)
@@ -166,8 +167,56 @@ describe('console sign-in', () => {
 });
 
 describe('console CSRF protection', () => {
+  it('refuses a token minted for another session with 403 csrf-failed and accepts the session’s own', async () => {
+    // OWASP CSRF Prevention cheat sheet ("Signed Double-Submit Cookie"): the token is bound to
+    // the session, so a validly signed token obtained by another client does not work here.
+    const h = await makeConsoleHarness();
+    const other = await signIn(h, 'developer@ebullio.invalid');
+    const admin = await signIn(h, 'admin@ebullio.invalid');
+    expect(other.token).not.toBe(admin.token);
+    const refresh = (jar: Jar, token: string) =>
+      request(h.app).post('/console-api/auth/refresh').set('Cookie', jar.header()).set('X-CSRF-Token', token);
+
+    const planted = new Jar();
+    for (const [name, value] of admin.jar.cookies) planted.cookies.set(name, value);
+    planted.cookies.set(CSRF_COOKIE, other.token);
+    const refused = await refresh(planted, other.token);
+    expect(refused.status).toBe(403);
+    expect(refused.body.type).toBe('/problems/csrf-failed');
+
+    expect(admin.jar.cookies.get(CSRF_COOKIE)).toBe(admin.token);
+    expect((await refresh(admin.jar, admin.token)).status).toBe(200);
+  });
+
+  it('issues a token bound to the new session on sign-in; the one minted before sign-in stops working', async () => {
+    const h = await makeConsoleHarness();
+    const jar = new Jar();
+    const before = await csrf(h, jar);
+    const { token: after } = await signIn(h, 'billing@ebullio.invalid', PASSWORD, jar);
+    expect(after).not.toBe(before);
+    // The console reads the cookie before each call, so the new token reaches it by itself.
+    expect(jar.cookies.get(CSRF_COOKIE)).toBe(after);
+    // GET /auth/csrf keeps answering the bound token for this session.
+    expect(await csrf(h, jar)).toBe(after);
+
+    const stale = new Jar();
+    for (const [name, value] of jar.cookies) stale.cookies.set(name, value);
+    stale.cookies.set(CSRF_COOKIE, before);
+    const refused = await request(h.app)
+      .post('/console-api/auth/sign-out')
+      .set('Cookie', stale.header())
+      .set('X-CSRF-Token', before);
+    expect(refused.status).toBe(403);
+    expect(refused.body.type).toBe('/problems/csrf-failed');
+    const out = await request(h.app)
+      .post('/console-api/auth/sign-out')
+      .set('Cookie', jar.header())
+      .set('X-CSRF-Token', after);
+    expect(out.status).toBe(200);
+  });
+
   it('refuses a state-changing request without the X-CSRF-Token header', async () => {
-    const h = makeConsoleHarness();
+    const h = await makeConsoleHarness();
     const jar = new Jar();
     await csrf(h, jar);
     const res = await request(h.app)
@@ -180,7 +229,7 @@ describe('console CSRF protection', () => {
   });
 
   it('refuses a header that does not match the cookie', async () => {
-    const h = makeConsoleHarness();
+    const h = await makeConsoleHarness();
     const jar = new Jar();
     await csrf(h, jar);
     const other = await csrf(h, new Jar());
@@ -194,7 +243,7 @@ describe('console CSRF protection', () => {
   });
 
   it('refuses a cookie and header pair the server did not sign', async () => {
-    const h = makeConsoleHarness();
+    const h = await makeConsoleHarness();
     const forged = 'attacker-chosen.value';
     const res = await request(h.app)
       .post('/console-api/auth/sign-in')
@@ -207,7 +256,7 @@ describe('console CSRF protection', () => {
   });
 
   it('sets a CSRF cookie that scripts can read (not HttpOnly) and SameSite=Strict', async () => {
-    const h = makeConsoleHarness();
+    const h = await makeConsoleHarness();
     const res = await request(h.app).get('/console-api/auth/csrf');
     const c = setCookies(res).get('ebullio_csrf');
     // Double-submit needs the page script to read the cookie (OWASP CSRF cheat sheet).
@@ -219,7 +268,7 @@ describe('console CSRF protection', () => {
 
 describe('sign-in lock-out and rate limit', () => {
   it('locks an account after 5 consecutive failures for 15 minutes, then lets it in again', async () => {
-    const h = makeConsoleHarness();
+    const h = await makeConsoleHarness();
     for (let i = 0; i < 5; i++) {
       expect((await signIn(h, 'admin@ebullio.invalid', 'not-the-password')).res.status).toBe(401);
     }
@@ -244,7 +293,7 @@ describe('sign-in lock-out and rate limit', () => {
   });
 
   it('counts failures afresh after a lock has run out', async () => {
-    const h = makeConsoleHarness();
+    const h = await makeConsoleHarness();
     for (let i = 0; i < 5; i++) await signIn(h, 'admin@ebullio.invalid', 'not-the-password');
     h.clock.now = new Date(h.clock.now.getTime() + 16 * 60_000);
     expect((await signIn(h, 'admin@ebullio.invalid', 'not-the-password')).res.status).toBe(401);
@@ -253,7 +302,7 @@ describe('sign-in lock-out and rate limit', () => {
   });
 
   it('rate-limits sign-in attempts per address with the IETF RateLimit fields', async () => {
-    const h = makeConsoleHarness({ consoleSignInLimit: 3 });
+    const h = await makeConsoleHarness({ consoleSignInLimit: 3 });
     const statuses: number[] = [];
     let last;
     for (let i = 0; i < 4; i++) {

@@ -43,7 +43,7 @@ export async function signInOnePerRole(
   const signedIn = {} as Record<Role, ConsoleAgent & { userId: number }>;
   for (const role of ['admin', 'billing', 'developer'] as const) {
     const email = `${role}@ebullio.invalid`;
-    const user = createUser(db, { email, password: opts.password, role, now: opts.now });
+    const user = await createUser(db, { email, password: opts.password, role, now: opts.now });
     if (role === 'developer') addMember(db, user.id, opts.developerAccountId);
     signedIn[role] = { ...(await signedInAgent(app, email, opts.password)), userId: user.id };
   }

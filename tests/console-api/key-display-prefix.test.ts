@@ -34,7 +34,7 @@ function sharedRuns(shown: string, secret: string, run = 4): string[] {
 
 describe('key prefix shown by the console', () => {
   it('shows a registered bootstrap key by an identifier that holds no piece of the key', async () => {
-    const report = bootstrap(
+    const report = await bootstrap(
       h.deps.db,
       h.deps.sqlite,
       { ...h.deps.config, bootstrapApiKey: BOOT_KEY },

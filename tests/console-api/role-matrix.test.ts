@@ -20,7 +20,7 @@ const callers: Caller[] = ['admin', 'billing', 'developer', 'anonymous'];
 
 describe('console role matrix', () => {
   it('answers every route × role exactly as the route declares', async () => {
-    const h = makeConsoleHarness();
+    const h = await makeConsoleHarness();
     // Only routes declared by this app (the table is process-wide; createApp just registered them all).
     const routes = [...consoleRouteTable];
     expect(routes.length).toBeGreaterThan(10);

@@ -38,7 +38,7 @@ async function admin(h: ConsoleHarness) {
 
 describe('invitations', () => {
   it('mails a single-use link over SMTP that creates the user with role and memberships', async () => {
-    const h = makeConsoleHarness();
+    const h = await makeConsoleHarness();
     const a = await admin(h);
     const inv = await a.send('post', '/users/invitations', {
       email: 'New.Engineer@Ebullio.invalid',
@@ -77,11 +77,14 @@ describe('invitations', () => {
     });
     expect((await request(h.app).get('/console-api/auth/me').set('Cookie', jar.header())).status).toBe(200);
 
+    // Accepting signed the new user in, and the CSRF cookie now holds a token bound to that session.
+    const bound = jar.cookies.get('ebullio_csrf');
+    expect(bound).not.toBe(t);
     // OWASP Forgot Password cheat sheet: tokens are single use.
     const again = await request(h.app)
       .post('/console-api/auth/invitations/accept')
       .set('Cookie', jar.header())
-      .set('X-CSRF-Token', t)
+      .set('X-CSRF-Token', bound!)
       .send({ token, name: 'Someone Else', password: 'another long password' });
     expect(again.status).toBe(422);
     expect(again.body.errors[0].field).toBe('token');
@@ -89,7 +92,7 @@ describe('invitations', () => {
   });
 
   it('refuses an invitation after 72 hours', async () => {
-    const h = makeConsoleHarness();
+    const h = await makeConsoleHarness();
     const a = await admin(h);
     await a.send('post', '/users/invitations', {
       email: 'late@ebullio.invalid',
@@ -102,7 +105,7 @@ describe('invitations', () => {
   });
 
   it('withdraws a pending invitation: its link stops working, it leaves the list, and it is audited', async () => {
-    const h = makeConsoleHarness();
+    const h = await makeConsoleHarness();
     const a = await admin(h);
     const inv = await a.send('post', '/users/invitations', {
       email: 'changed-mind@ebullio.invalid',
@@ -141,7 +144,7 @@ describe('invitations', () => {
   });
 
   it('refuses to invite an existing user or into an account that does not exist', async () => {
-    const h = makeConsoleHarness();
+    const h = await makeConsoleHarness();
     const a = await admin(h);
     const dup = await a.send('post', '/users/invitations', {
       email: 'billing@ebullio.invalid',
@@ -160,7 +163,7 @@ describe('invitations', () => {
 
 describe('password reset', () => {
   it('answers 202 alike for known and unknown addresses and mails only the known one', async () => {
-    const h = makeConsoleHarness();
+    const h = await makeConsoleHarness();
     const jar = new Jar();
     const t = await csrf(h, jar);
     const ask = (email: string) =>
@@ -183,7 +186,7 @@ describe('password reset', () => {
   });
 
   it('sets the new password once, ends every session, and refuses the token a second time', async () => {
-    const h = makeConsoleHarness();
+    const h = await makeConsoleHarness();
     const session = await signIn(h, 'developer@ebullio.invalid');
     const jar = new Jar();
     const t = await csrf(h, jar);
@@ -211,7 +214,7 @@ describe('password reset', () => {
   });
 
   it('refuses a reset token after one hour', async () => {
-    const h = makeConsoleHarness();
+    const h = await makeConsoleHarness();
     const jar = new Jar();
     const t = await csrf(h, jar);
     await request(h.app)
@@ -232,7 +235,7 @@ describe('password reset', () => {
 
 describe('user administration', () => {
   it('deactivating a user revokes their sessions at once and is audited', async () => {
-    const h = makeConsoleHarness();
+    const h = await makeConsoleHarness();
     const a = await admin(h);
     const dev = await signIn(h, 'developer@ebullio.invalid');
     const res = await a.send('patch', `/users/${h.users.developer.id}`, { active: false });
@@ -251,7 +254,7 @@ describe('user administration', () => {
   });
 
   it('changes role and memberships, and keeps at least one active admin', async () => {
-    const h = makeConsoleHarness();
+    const h = await makeConsoleHarness();
     const a = await admin(h);
     const res = await a.send('patch', `/users/${h.users.billing.id}`, {
       role: 'developer',

@@ -60,13 +60,13 @@ describe('seed and bootstrap variables', () => {
       bootstrapAdminPassword: 'correct horse battery staple',
     });
     const now = new Date('2031-03-14T10:00:00Z');
-    expect(bootstrap(db, sqlite, config, now, 'test')).toMatchObject({
+    expect(await bootstrap(db, sqlite, config, now, 'test')).toMatchObject({
       seeded: true,
       apiKeyRegistered: true,
       adminCreated: true,
       demoCredentials: { operatorEmail: 'operator@ebullio.invalid' },
     });
-    expect(bootstrap(db, sqlite, config, now, 'test')).toEqual({
+    expect(await bootstrap(db, sqlite, config, now, 'test')).toEqual({
       seeded: false,
       apiKeyRegistered: false,
       adminCreated: false,
@@ -75,10 +75,10 @@ describe('seed and bootstrap variables', () => {
     expect(accounts).toHaveLength(2);
     const demoUsage = sqlite.prepare('SELECT COUNT(*) AS n FROM usage_daily').get() as { n: number };
     expect(demoUsage.n).toBeGreaterThan(0);
-    expect(verifyUserPassword(db, 'admin@example.invalid', 'correct horse battery staple')?.role).toBe(
-      'admin',
-    );
-    expect(verifyUserPassword(db, 'admin@example.invalid', 'wrong password here')).toBeUndefined();
+    expect(
+      (await verifyUserPassword(db, 'admin@example.invalid', 'correct horse battery staple'))?.role,
+    ).toBe('admin');
+    expect(await verifyUserPassword(db, 'admin@example.invalid', 'wrong password here')).toBeUndefined();
 
     const app = createApp({ db, sqlite, config, clock: () => now, engineVersion: 'test' });
     const res = await request(app).get('/v1/usage').set('Authorization', `Bearer ${BOOT_KEY}`);
@@ -163,7 +163,7 @@ describe('first start with no bootstrap variables', () => {
 
     // The shown password was stored: it verifies against the operator's stored hash.
     const { db, sqlite } = openDatabase(dbFile);
-    expect(verifyUserPassword(db, signIn![1]!, signIn![2]!)).toBeDefined();
+    expect(await verifyUserPassword(db, signIn![1]!, signIn![2]!)).toBeDefined();
     sqlite.close();
 
     // Nothing secret is shown again on the next start.

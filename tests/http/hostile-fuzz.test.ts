@@ -508,7 +508,7 @@ beforeAll(async () => {
       now: h.clock.now,
     }).token,
   };
-  const adminUser = createUser(h.db, {
+  const adminUser = await createUser(h.db, {
     email: 'hostile-admin@ebullio.invalid',
     password: 'correct horse battery staple',
     role: 'admin',

@@ -3,8 +3,12 @@
  * consecutive failures, one answer for unknown e-mail, wrong password, inactive or locked
  * account), refresh (rotation with replay detection), sign-out, me, password reset and
  * invitation acceptance.
+ *
+ * Password hashing is the expensive part of these public routes, so: every route that hashes
+ * (sign-in, password-reset confirmation, invitation acceptance) is rate-limited per client
+ * address; the single-use tokens are checked before any hashing; and hashing itself runs in
+ * worker threads behind a small queue (server/accounts/passwords.ts) whose overflow is a 503.
  */
-import crypto from 'node:crypto';
 import { eq } from 'drizzle-orm';
 import type { RequestHandler } from 'express';
 import { ipKeyGenerator, rateLimit } from 'express-rate-limit';
@@ -20,7 +24,7 @@ import {
   SignInRequestSchema,
 } from '../../../shared/console/auth.js';
 import { CSRF_COOKIE, OkSchema } from '../../../shared/console/common.js';
-import { hashPassword, needsRehash, verifyPassword } from '../../accounts/passwords.js';
+import { HashingBusyError, hashPassword, needsRehash, verifyPassword } from '../../accounts/passwords.js';
 import { consoleSettings } from '../../config.js';
 import { accountMembers, accounts, consoleSessions, users, userTokens } from '../../db/schema.js';
 import type { AppDeps } from '../../deps.js';
@@ -29,7 +33,7 @@ import { sendMail } from '../../mail/send.js';
 import { recordAudit } from '../../accounts/audit.js';
 import { consoleRoute, type ConsoleRouteModule } from '../route.js';
 import { loadUserSummary } from '../users.js';
-import { isValidCsrfToken, newCsrfToken, presentedCsrfCookie } from './csrf.js';
+import { issueCsrfCookie, isValidCsrfToken, presentedCsrfCookie } from './csrf.js';
 import {
   clearSessionCookies,
   issueSession,
@@ -45,29 +49,60 @@ import { consumeToken, createUserToken, findValidToken, supersedeTokens } from '
 export const SIGN_IN_FAILED_DETAIL =
   'The e-mail or password is wrong, or the account is temporarily locked after repeated failed sign-ins.';
 
-let dummyHash: string | undefined;
-/** A hash to verify against when the e-mail is unknown, so both paths cost one scrypt. */
-function timingDummyHash(): string {
-  dummyHash ??= hashPassword(crypto.randomBytes(16).toString('hex'));
-  return dummyHash;
-}
+/**
+ * A bcrypt hash (cost 11) of 32 random hex digits nobody kept, verified when the e-mail is
+ * unknown so both paths cost one bcrypt computation. It matches no user, so it need not be secret.
+ */
+const TIMING_DUMMY_HASH = '$2b$11$fTGMu1IW23CyznE1oxtNzOfx3yTuFamNdTBo.wMlc1CSc4ZMKm6WO';
 
+/** Window of the per-address limit of each route that hashes a password (and of reset requests). */
+const HASHING_ROUTE_WINDOW_MS = 15 * 60_000;
+
+/**
+ * Per-address limit of one public route (the limit is `consoleSettings.signInLimit` per 15
+ * minutes, each route counted on its own). One client flooding a hashing route is stopped here,
+ * long before it can fill the shared hashing queue for everybody.
+ */
 function signInLimiter(deps: AppDeps, what: string): RequestHandler {
   const settings = consoleSettings(deps.config);
   return rateLimit({
-    windowMs: 15 * 60_000,
+    windowMs: HASHING_ROUTE_WINDOW_MS,
     limit: settings.signInLimit,
     standardHeaders: 'draft-7', // as the API (server/http/middleware/rate-limit.ts)
     legacyHeaders: false,
     keyGenerator: (req) => ipKeyGenerator(req.ip ?? '0.0.0.0'),
     validate: { trustProxy: false, xForwardedForHeader: false },
-    handler: (_req, _res, next, options) => {
+    handler: (req, _res, next, options) => {
+      const resetTime = (req as { rateLimit?: { resetTime?: Date } }).rateLimit?.resetTime;
+      const seconds = resetTime
+        ? Math.max(1, Math.ceil((resetTime.getTime() - Date.now()) / 1000))
+        : Math.ceil(options.windowMs / 1000);
       next(
         problem('rate-limited', `Too many ${what} attempts from this address; try again later.`, {
-          headers: { 'Retry-After': String(Math.ceil(options.windowMs / 1000)) },
+          headers: { 'Retry-After': String(seconds) },
         }),
       );
     },
+  });
+}
+
+/** Runs a password computation; a full hashing queue becomes a 503 'busy' with Retry-After. */
+async function hashing<T>(work: Promise<T>): Promise<T> {
+  try {
+    return await work;
+  } catch (err) {
+    if (err instanceof HashingBusyError) {
+      throw problem('busy', 'Too many password checks are in progress; try again in a moment.', {
+        headers: { 'Retry-After': String(err.retryAfterSeconds) },
+      });
+    }
+    throw err;
+  }
+}
+
+function tokenRefused(detail: string) {
+  return problem('validation-failed', detail, {
+    errors: [{ field: 'token', message: 'unknown, used or expired' }],
   });
 }
 
@@ -100,6 +135,8 @@ export const authRouteModule: ConsoleRouteModule = {
     const settings = consoleSettings(deps.config);
     const signInLimit = signInLimiter(deps, 'sign-in');
     const resetLimit = signInLimiter(deps, 'password-reset');
+    const resetConfirmLimit = signInLimiter(deps, 'password-reset confirmation');
+    const acceptLimit = signInLimiter(deps, 'invitation acceptance');
 
     consoleRoute(router, {
       method: 'get',
@@ -108,15 +145,19 @@ export const authRouteModule: ConsoleRouteModule = {
       summary: `Get the CSRF token (sets the readable ${CSRF_COOKIE} cookie); send it as X-CSRF-Token`,
       response: CsrfResponseSchema,
       handler: ({ deps, req, res }) => {
+        // Bound to the session the request names (none before sign-in); kept while it still fits.
+        const sessionId = presentedSessionId(req, res) ?? '';
         const existing = presentedCsrfCookie(req);
-        const csrfToken = existing && isValidCsrfToken(deps, existing) ? existing : newCsrfToken(deps);
-        res.cookie(CSRF_COOKIE, csrfToken, {
-          httpOnly: false,
-          sameSite: 'strict',
-          secure: req.secure,
-          path: '/',
-        });
-        return { csrfToken };
+        if (existing && isValidCsrfToken(deps, existing, sessionId)) {
+          res.cookie(CSRF_COOKIE, existing, {
+            httpOnly: false,
+            sameSite: 'strict',
+            secure: req.secure,
+            path: '/',
+          });
+          return { csrfToken: existing };
+        }
+        return { csrfToken: issueCsrfCookie(deps, req, res, sessionId) };
       },
     });
 
@@ -132,23 +173,34 @@ export const authRouteModule: ConsoleRouteModule = {
       response: SessionResponseSchema,
       middleware: [signInLimit],
       handler: async ({ deps, req, res, body }) => {
-        const now = deps.clock();
         const email = body.email.trim().toLowerCase();
         const row = deps.db.select().from(users).where(eq(users.email, email)).get();
+        const now = deps.clock();
         const lockActive = row?.lockedUntil != null && row.lockedUntil.getTime() > now.getTime();
-        const passwordOk = verifyPassword(body.password, row?.passwordHash ?? timingDummyHash());
+        const passwordOk = await hashing(
+          verifyPassword(body.password, row?.passwordHash ?? TIMING_DUMMY_HASH),
+        );
         if (row && row.active && !lockActive && passwordOk) {
+          // An older hash scheme is replaced by the current one now that the password is known;
+          // when the hashing queue is full that waits for a later sign-in.
+          const rehash = needsRehash(row.passwordHash)
+            ? await hashPassword(body.password).catch((err: unknown) => {
+                if (err instanceof HashingBusyError) return undefined;
+                throw err;
+              })
+            : undefined;
           deps.db
             .update(users)
             .set({
               failedSignIns: 0,
               lockedUntil: null,
-              // an older hash scheme is replaced by the current one now that the password is known
-              ...(needsRehash(row.passwordHash) ? { passwordHash: hashPassword(body.password) } : {}),
+              ...(rehash ? { passwordHash: rehash } : {}),
             })
             .where(eq(users.id, row.id))
             .run();
           const session = await issueSession(deps, req, res, row);
+          // The token minted before sign-in is replaced by one bound to the new session.
+          issueCsrfCookie(deps, req, res, session.sessionId);
           recordAudit(deps, req, res, {
             action: 'auth.sign-in',
             targetType: 'user',
@@ -253,6 +305,7 @@ export const authRouteModule: ConsoleRouteModule = {
           }
         }
         clearSessionCookies(req, res);
+        issueCsrfCookie(deps, req, res);
         return { ok: true as const };
       },
     });
@@ -325,25 +378,32 @@ export const authRouteModule: ConsoleRouteModule = {
       summary: 'Set a new password with the token from the reset e-mail (single use; signs out all sessions)',
       request: { body: PasswordResetConfirmSchema },
       response: OkSchema,
-      handler: ({ deps, req, res, body }) => {
-        const token = consumeToken(deps, 'password-reset', body.token);
-        const row = token?.userId
-          ? deps.db.select().from(users).where(eq(users.id, token.userId)).get()
+      middleware: [resetConfirmLimit],
+      handler: async ({ deps, req, res, body }) => {
+        const refused = 'The reset link is unknown, used or expired; ask for a new one.';
+        // The token is checked before the password is hashed: a bogus token costs no hashing.
+        const pending = findValidToken(deps, 'password-reset', body.token);
+        const pendingUser = pending?.userId
+          ? deps.db.select().from(users).where(eq(users.id, pending.userId)).get()
           : undefined;
-        if (!token || !row || !row.active) {
-          throw problem(
-            'validation-failed',
-            'The reset link is unknown, used or expired; ask for a new one.',
-            {
-              errors: [{ field: 'token', message: 'unknown, used or expired' }],
-            },
+        if (!pending || !pendingUser || !pendingUser.active) throw tokenRefused(refused);
+        const passwordHash = await hashing(hashPassword(body.password));
+        // Used only now, after hashing, so a busy answer leaves the link usable; the consuming
+        // UPDATE still lets only one of two concurrent confirmations through.
+        const row = deps.db.transaction((tx) => {
+          const token = consumeToken(
+            { ...deps, db: tx as unknown as AppDeps['db'] },
+            'password-reset',
+            body.token,
           );
-        }
-        deps.db
-          .update(users)
-          .set({ passwordHash: hashPassword(body.password), failedSignIns: 0, lockedUntil: null })
-          .where(eq(users.id, row.id))
-          .run();
+          if (!token || token.userId !== pendingUser.id) return undefined;
+          tx.update(users)
+            .set({ passwordHash, failedSignIns: 0, lockedUntil: null })
+            .where(eq(users.id, pendingUser.id))
+            .run();
+          return pendingUser;
+        });
+        if (!row) throw tokenRefused(refused);
         supersedeTokens(deps, 'password-reset', row.email);
         const revoked = revokeUserSessions(deps, row.id);
         clearSessionCookies(req, res);
@@ -380,15 +440,16 @@ export const authRouteModule: ConsoleRouteModule = {
       request: { body: InvitationAcceptSchema },
       response: SessionResponseSchema,
       status: 201,
+      middleware: [acceptLimit],
       handler: async ({ deps, req, res, body }) => {
+        const refused = 'The invitation link is unknown, used or expired.';
+        // The token is checked before the password is hashed: a bogus token costs no hashing.
         const pending = findValidToken(deps, 'invitation', body.token);
-        if (
-          pending &&
-          deps.db.select({ id: users.id }).from(users).where(eq(users.email, pending.email)).get()
-        ) {
+        if (!pending) throw tokenRefused(refused);
+        if (deps.db.select({ id: users.id }).from(users).where(eq(users.email, pending.email)).get()) {
           throw problem('conflict', `A console user with the e-mail ${pending.email} exists already.`);
         }
-        const passwordHash = hashPassword(body.password);
+        const passwordHash = await hashing(hashPassword(body.password));
         const created = deps.db.transaction((tx) => {
           const now = deps.clock();
           const token = consumeToken(
@@ -416,11 +477,7 @@ export const authRouteModule: ConsoleRouteModule = {
           tx.update(userTokens).set({ userId: user.id }).where(eq(userTokens.id, token.id)).run();
           return { user, tokenId: token.id };
         });
-        if (!created) {
-          throw problem('validation-failed', 'The invitation link is unknown, used or expired.', {
-            errors: [{ field: 'token', message: 'unknown, used or expired' }],
-          });
-        }
+        if (!created) throw tokenRefused(refused);
         const { user } = created;
         recordAudit(deps, req, res, {
           action: 'user.invitation-accept',
@@ -430,6 +487,7 @@ export const authRouteModule: ConsoleRouteModule = {
           detail: { invitationId: created.tokenId, role: user.role },
         });
         const session = await issueSession(deps, req, res, user);
+        issueCsrfCookie(deps, req, res, session.sessionId);
         return sessionBody(deps, user.id, session);
       },
     });

@@ -3,8 +3,14 @@
  * `WWW-Authenticate: Bearer` (RFC 6750 §3) and a detail naming the reason: missing, malformed,
  * unknown, revoked, expired or rotated (see server/accounts/keys.ts on why "unknown" never reveals
  * whether a public id exists).
+ *
+ * Failed attempts are limited per client address: after {@link KEY_FAILURE_LIMIT} presented but
+ * refused keys (unknown, revoked, expired, rotated) within {@link KEY_FAILURE_WINDOW_MS}, the
+ * address gets 429 'rate-limited' with Retry-After until the window ends, before its key is even
+ * looked up. Only failures count, so a client using a valid key never moves towards the limit.
  */
 import type { RequestHandler } from 'express';
+import { ipKeyGenerator } from 'express-rate-limit';
 import { authenticateToken } from '../../accounts/keys.js';
 import type { AppDeps } from '../../deps.js';
 import { problem } from '../problem.js';
@@ -26,6 +32,40 @@ function unauthorized(reason: keyof typeof DETAILS) {
   });
 }
 
+/** Refused keys one client address may present per window before it is turned away. */
+export const KEY_FAILURE_LIMIT = 30;
+/** The failure window (fixed, shared by all addresses: one map swap ends it for everybody). */
+export const KEY_FAILURE_WINDOW_MS = 60_000;
+/** Addresses remembered per window at most; beyond it new addresses go uncounted (memory bound). */
+const KEY_FAILURE_MAX_ADDRESSES = 100_000;
+
+/** Failed key attempts per address in the current fixed window (synchronous: a Map lookup). */
+class KeyFailureCounter {
+  private counts = new Map<string, number>();
+  private windowStart = Number.NEGATIVE_INFINITY;
+
+  private roll(now: number): void {
+    if (now - this.windowStart >= KEY_FAILURE_WINDOW_MS || now < this.windowStart) {
+      this.counts = new Map();
+      this.windowStart = now;
+    }
+  }
+
+  /** Seconds until the window ends when the address is over the limit, else 0. */
+  blockedFor(address: string, now: number): number {
+    this.roll(now);
+    if ((this.counts.get(address) ?? 0) < KEY_FAILURE_LIMIT) return 0;
+    return Math.max(1, Math.ceil((this.windowStart + KEY_FAILURE_WINDOW_MS - now) / 1000));
+  }
+
+  fail(address: string, now: number): void {
+    this.roll(now);
+    const n = this.counts.get(address);
+    if (n === undefined && this.counts.size >= KEY_FAILURE_MAX_ADDRESSES) return;
+    this.counts.set(address, (n ?? 0) + 1);
+  }
+}
+
 /** Presented token of the request, if any (used for redaction). */
 export function presentedToken(header: string | undefined): string | undefined {
   const m = header === undefined ? null : /^Bearer +(\S+)\s*$/i.exec(header);
@@ -33,13 +73,25 @@ export function presentedToken(header: string | undefined): string | undefined {
 }
 
 export function authenticate(deps: AppDeps): RequestHandler {
+  const failures = new KeyFailureCounter();
   return (req, res, next) => {
     const header = req.get('authorization');
     if (header === undefined || header.trim() === '') throw unauthorized('missing');
     const token = presentedToken(header);
     if (token === undefined) throw unauthorized('malformed');
-    const result = authenticateToken(deps.sqlite, deps.config.secret, token, deps.clock());
-    if (!result.ok) throw unauthorized(result.reason);
+    const now = deps.clock();
+    const address = ipKeyGenerator(req.ip ?? '0.0.0.0');
+    const wait = failures.blockedFor(address, now.getTime());
+    if (wait > 0) {
+      throw problem('rate-limited', 'Too many refused API keys from this address; try again later.', {
+        headers: { 'Retry-After': String(wait) },
+      });
+    }
+    const result = authenticateToken(deps.sqlite, deps.config.secret, token, now);
+    if (!result.ok) {
+      failures.fail(address, now.getTime());
+      throw unauthorized(result.reason);
+    }
     res.locals.auth = {
       accountId: result.key.accountId,
       keyId: result.key.id,
