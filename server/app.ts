@@ -23,9 +23,12 @@ export const appModules: readonly AppModule[] = [
   consoleStaticModule,
 ];
 
-/** The whole service on `deps` (a hook the caller did not set gets the service's own). */
+/**
+ * The whole service on `deps`. A hook the caller did not set gets the service's own, on `deps`
+ * itself: rooms keep per-deps state keyed by the object (the payment client, for one), so the app
+ * must run on the caller's object, not a copy.
+ */
 export function createApp(deps: AppDeps): express.Express {
-  const composed: AppDeps = { ...deps };
-  composed.onQuotaThresholdCrossed ??= (accountId) => scheduleQuotaCheck(composed, accountId);
-  return createHttpApp(composed, appModules);
+  deps.onQuotaThresholdCrossed ??= (accountId) => scheduleQuotaCheck(deps, accountId);
+  return createHttpApp(deps, appModules);
 }
