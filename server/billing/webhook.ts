@@ -62,6 +62,24 @@ function handler(deps: AppDeps): RequestHandler {
     } catch (err) {
       throw problem('bad-request', `Webhook signature verification failed: ${(err as Error).message}`);
     }
+    // A correctly signed body is still only as well-formed as its sender made it: refuse an event
+    // without the fields handled below instead of failing on them (a NOT NULL id, a missing object).
+    const shape = event as unknown as { id?: unknown; type?: unknown; data?: { object?: unknown } | null };
+    const object = shape.data?.object;
+    if (
+      typeof shape.id !== 'string' ||
+      shape.id === '' ||
+      shape.id.length > 255 ||
+      typeof shape.type !== 'string' ||
+      object === null ||
+      typeof object !== 'object' ||
+      Array.isArray(object)
+    ) {
+      throw problem(
+        'bad-request',
+        'The webhook event must carry a string "id" (1–255 characters), a string "type" and an object "data.object".',
+      );
+    }
     const now = deps.clock();
     const outcome = deps.db.transaction((tx): WebhookOutcome => {
       const fresh = tx

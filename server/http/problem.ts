@@ -107,6 +107,12 @@ export const problemCatalogue = {
     title: 'Payload too large',
     description: 'The request body exceeds the size limit of the service.',
   },
+  'expectation-failed': {
+    status: 417,
+    title: 'Expectation failed',
+    description:
+      'The request carries an Expect header other than 100-continue, the only expectation the service meets.',
+  },
   'unsupported-media-type': {
     status: 415,
     title: 'Unsupported media type',

@@ -38,7 +38,7 @@ export function bodyCeiling(contentType: string | undefined, config: Config): nu
 }
 
 function problemText(
-  slug: 'request-timeout' | 'payload-too-large',
+  slug: 'request-timeout' | 'payload-too-large' | 'expectation-failed',
   detail: string,
   instance: string,
   requestId: string,
@@ -137,6 +137,24 @@ function checkContinue(
   };
 }
 
+/** Any other expectation: a 417 problem instead of Node's bodiless 417 (RFC 9110 §10.1.1). */
+function checkExpectation(req: http.IncomingMessage, res: http.ServerResponse): void {
+  const requestId = requestIdOf(req);
+  const body = problemText(
+    'expectation-failed',
+    `Expect: ${String(req.headers.expect).slice(0, 80)} cannot be met; send the request without it or with Expect: 100-continue.`,
+    pathOf(req.url),
+    requestId,
+  );
+  res.writeHead(417, {
+    'Content-Type': 'application/problem+json',
+    'Content-Length': Buffer.byteLength(body),
+    'X-Request-Id': requestId,
+    Connection: 'close',
+  });
+  res.end(body);
+}
+
 /** What startDraining needs of a server made here. */
 interface ServerState {
   lifecycle: Lifecycle;
@@ -190,6 +208,7 @@ export function createHttpServer(
     handle,
   );
   server.on('checkContinue', checkContinue(config, handle));
+  server.on('checkExpectation', checkExpectation);
   server.on('clientError', onClientError);
   states.set(server, { lifecycle, inFlight });
   return server;

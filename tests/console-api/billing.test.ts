@@ -490,4 +490,29 @@ describe('payments webhook', () => {
     };
     expect(stored.n).toBe(0);
   });
+
+  it('refuses a correctly signed event without an id, a type or an object with a 400 problem, storing nothing', async () => {
+    const count = () =>
+      (h.deps.sqlite.prepare('SELECT COUNT(*) AS n FROM payment_events').get() as { n: number }).n;
+    const before = count();
+    const bodies = [
+      JSON.stringify({ object: 'event', type: 'invoice.paid', data: { object: { id: 'in_x' } } }),
+      JSON.stringify({ id: 'evt_no_type', object: 'event', data: { object: { id: 'in_x' } } }),
+      JSON.stringify({ id: 'evt_no_object', object: 'event', type: 'invoice.paid', data: {} }),
+      JSON.stringify({ id: { nested: 1 }, type: 'invoice.paid', data: { object: {} } }),
+    ];
+    for (const payload of bodies) {
+      const res = await fetch(`${h.baseUrl}/webhooks/payments`, {
+        method: 'POST',
+        headers: {
+          'Content-Type': 'application/json',
+          'Stripe-Signature': signed(payload, WEBHOOK_SECRET, nowSeconds()),
+        },
+        body: payload,
+      });
+      expect({ payload, status: res.status }).toEqual({ payload, status: 400 });
+      expect(res.headers.get('content-type')).toMatch(/^application\/problem\+json/);
+    }
+    expect(count()).toBe(before);
+  });
 });

@@ -24,6 +24,7 @@ import { consoleRouteTable, CONSOLE_BASE } from '../../server/console/route.js';
 import { WEBHOOK_PATH } from '../../server/billing/webhook.js';
 import { configurePayments } from '../../server/integrations/payments/client.js';
 import { Jar, mintSession } from '../console-api/auth-harness.js';
+import { createHttpServer } from '../../server/http/server.js';
 import { ALL_SCOPES, makeHarness, type Harness } from './helpers.js';
 
 const SEED = process.env.FUZZ_SEED ? Number(process.env.FUZZ_SEED) : crypto.randomInt(2 ** 31 - 1);
@@ -516,7 +517,8 @@ beforeAll(async () => {
   });
   admin = { id: adminUser.id, jar: await mintSession(h, { id: adminUser.id, role: 'admin' }) };
 
-  server = http.createServer(h.app);
+  // The server main.ts runs: its timeouts and its answers to Expect are part of what is fuzzed.
+  server = createHttpServer(h.app, h.config);
   await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve));
   port = (server.address() as AddressInfo).port;
   targets = [...v1Targets(), ...consoleTargets(h.accountId), webhookTarget];

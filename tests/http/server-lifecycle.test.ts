@@ -190,6 +190,20 @@ describe('header and body timeouts', () => {
 });
 
 describe('Expect: 100-continue', () => {
+  it('answers an expectation other than 100-continue with a 417 problem', async () => {
+    const h = makeHarness();
+    const port = await listen(h.app, h.config);
+    const c = await connect(port);
+    c.socket.write(
+      `POST /v1/evaporators/single-effect HTTP/1.1\r\nHost: localhost\r\nAuthorization: Bearer ${h.token}\r\n` +
+        'Content-Type: application/json\r\nContent-Length: 2\r\nExpect: 200-ok\r\n\r\n',
+    );
+    await c.closed;
+    expect(c.received()).toMatch(/^HTTP\/1\.1 417 /);
+    expect(c.received()).toMatch(/content-type: application\/problem\+json/i);
+    expect(lastBody(c.received())).toMatchObject({ type: '/problems/expectation-failed', status: 417 });
+  });
+
   it('refuses a declared 100 MB JSON body with a 413 problem before the body is sent, without 100 Continue', async () => {
     const h = makeHarness();
     const port = await listen(h.app, h.config);
