@@ -1,5 +1,5 @@
 /**
- * Browser-test harness: the real server process (`tsx server/main.ts`) on a free port with a temp
+ * Browser-test harness: the real server process (`node --import tsx server/main.ts`) on a free port with a temp
  * database, and Debian's Chromium driven by playwright-core (never a downloaded browser).
  *
  * - `ensureConsoleBuilt()` runs `npm run build` when console/dist is missing or older than its sources.
@@ -121,7 +121,9 @@ export async function startServer(extraEnv: Record<string, string> = {}): Promis
     DEMO_CONSOLE_USERS: '1',
     ...extraEnv,
   };
-  const child = spawn(path.join(ROOT, 'node_modules/.bin/tsx'), ['server/main.ts'], {
+  // One node process, as npm start runs it: the tsx command would SIGKILL a server slow to
+  // acknowledge SIGTERM, cutting its drain short.
+  const child = spawn(process.execPath, ['--import', 'tsx', 'server/main.ts'], {
     cwd: ROOT,
     env,
     stdio: ['ignore', 'pipe', 'pipe'],
