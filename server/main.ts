@@ -15,7 +15,7 @@
  * | MAIL_CAPTURE | 1 when SMTP_URL is unset | "0": not started here (server/mail/send.ts then starts one on a random port at the first mail) |
  * | MAIL_CAPTURE_PORT | 0 (any free port) | loopback port of the capture server; SMTP_URL is pointed at it |
  * | FAKE_PAYMENTS | 1 when PAYMENTS_API_BASE is a loopback http URL (the default) | "0": do not start the local fake of the payment provider |
- * | DEMO_CONSOLE_USERS | 0 | "1": create the demo billing and developer users of server/console/demo-users.ts (documented shared password: never on a reachable host) |
+ * | DEMO_CONSOLE_USERS | 0 | "1": create the demo billing and developer users of server/accounts/demo-users.ts (documented shared password: never on a reachable host) |
  * | FAKE_PAYMENTS_AUTOPAY | 0 | "1": the fake pays every invoice right after it is finalized and sends the signed invoice.paid webhook |
  *
  * The fake provider listens on the port of PAYMENTS_API_BASE (default 12111, see
@@ -37,7 +37,7 @@ import { startMailCapture, type MailCapture } from './integrations/mail-capture.
 import { loadPaymentsConfig, PaymentsConfigError } from './integrations/payments/config.js';
 import { startFakePaymentProvider, type FakePaymentProvider } from './integrations/payments/fake-provider.js';
 import { bootstrap } from './seed/bootstrap.js';
-import { seedDemoConsoleUsers } from './console/demo-users.js';
+import { seedDemoConsoleUsers } from './accounts/demo-users.js';
 import { DEMO_ACCOUNT_NAME } from './seed/demo.js';
 
 /** After the grace period, how long requests still in flight may take before they are cut. */

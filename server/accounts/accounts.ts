@@ -119,3 +119,14 @@ export function accountsOfUser(db: Db, userId: number): Account[] {
     .all()
     .map((r) => r.account);
 }
+
+/** The ids of the accounts a user is a member of, ascending. */
+export function accountIdsOf(db: Db, userId: number): number[] {
+  return db
+    .select({ id: accountMembers.accountId })
+    .from(accountMembers)
+    .where(eq(accountMembers.userId, userId))
+    .orderBy(accountMembers.accountId)
+    .all()
+    .map((r) => r.id);
+}

@@ -8,7 +8,6 @@
  * The actor is res.locals.user unless `actor` is given (e.g. a failed sign-in names the e-mail
  * that was tried). Time comes from deps.clock, the address from req.ip (honours trust proxy).
  */
-import type { Request, Response } from 'express';
 import { auditLog } from '../db/schema.js';
 import type { AppDeps } from '../deps.js';
 
@@ -24,7 +23,22 @@ export interface AuditInput {
 
 export type AuditRow = typeof auditLog.$inferSelect;
 
-export function recordAudit(deps: AppDeps, req: Request, res: Response, input: AuditInput): AuditRow {
+/** What the audit reads of a request: its client address (an Express request fits). */
+export interface AuditRequest {
+  ip?: string | undefined;
+}
+
+/** What the audit reads of a response: the signed-in user, if any (an Express response fits). */
+export interface AuditResponse {
+  locals: { user?: { id: number; email: string } | undefined };
+}
+
+export function recordAudit(
+  deps: AppDeps,
+  req: AuditRequest,
+  res: AuditResponse,
+  input: AuditInput,
+): AuditRow {
   const user = res.locals.user;
   const actor =
     input.actor ?? (user ? { id: user.id, email: user.email } : { id: null, email: '(anonymous)' });

@@ -7,7 +7,8 @@
  * 2. runs the route's own middleware (e.g. multer for an upload);
  * 3. validates params, query and (JSON) body with zod — 422 'validation-failed' with field paths;
  * 4. calls the handler with the parsed input; a returned value is sent as JSON with `status`
- *    (default 200); a handler that answers itself (CSV, redirects) returns nothing;
+ *    (default 200); a handler that answers itself (CSV, redirects) returns nothing; a service's
+ *    typed refusal it throws becomes its problem answer (server/console/service-errors.ts);
  * 5. records the route in {@link consoleRouteTable}, from which the console OpenAPI document
  *    (server/console/openapi.ts) and the role-matrix test are built.
  *
@@ -22,6 +23,7 @@ import type { Role } from '../../shared/console/common.js';
 import type { AppDeps } from '../deps.js';
 import { problem } from '../http/problem.js';
 import { zodProblem } from '../http/validation.js';
+import { problemOfServiceError } from './service-errors.js';
 
 export type { Role } from '../../shared/console/common.js';
 /** Every console role (shared/access.ts): for routes that any signed-in role may use. */
@@ -224,7 +226,12 @@ export function consoleRoute<
       },
       optionalUser: res.locals.user,
     };
-    const result = await def.handler(ctx);
+    let result: Awaited<ReturnType<typeof def.handler>>;
+    try {
+      result = await def.handler(ctx);
+    } catch (err) {
+      throw problemOfServiceError(err);
+    }
     if (res.headersSent) return;
     if (result === undefined) {
       res.status(entry.status === 200 ? 204 : entry.status).end();

@@ -24,7 +24,7 @@ export {
   DEMO_BILLING_EMAIL,
   DEMO_CONSOLE_PASSWORD,
   DEMO_DEVELOPER_EMAIL,
-} from '../../server/console/demo-users.js';
+} from '../../server/accounts/demo-users.js';
 
 export const ROOT = path.resolve(import.meta.dirname, '../..');
 export const CHROMIUM = '/usr/bin/chromium';
@@ -117,7 +117,7 @@ export async function startServer(extraEnv: Record<string, string> = {}): Promis
     PAYMENTS_API_BASE: `http://127.0.0.1:${paymentsPort}`,
     FAKE_PAYMENTS: '1',
     FAKE_PAYMENTS_AUTOPAY: '1',
-    // server/console/demo-users.ts: a billing user and a developer on the demo account.
+    // server/accounts/demo-users.ts: a billing user and a developer on the demo account.
     DEMO_CONSOLE_USERS: '1',
     ...extraEnv,
   };

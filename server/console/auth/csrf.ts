@@ -18,10 +18,11 @@
 import crypto from 'node:crypto';
 import type { Request, RequestHandler, Response } from 'express';
 import { CSRF_COOKIE, CSRF_HEADER } from '../../../shared/console/common.js';
+import { randomToken } from '../../accounts/sessions.js';
 import { consoleSettings } from '../../config.js';
 import type { AppDeps } from '../../deps.js';
 import { problem } from '../../http/problem.js';
-import { presentedSessionId, randomToken } from './session.js';
+import { presentedSessionId } from './session.js';
 
 const SAFE_METHODS = new Set(['GET', 'HEAD', 'OPTIONS']);
 

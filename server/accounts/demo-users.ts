@@ -7,7 +7,7 @@
  *
  * The password is the same documented demo value for both, so do not run this on a public host.
  */
-import { addMember, createUser, findUserByEmail } from '../accounts/accounts.js';
+import { addMember, createUser, findUserByEmail } from './accounts.js';
 import type { Db } from '../db/client.js';
 import { users } from '../db/schema.js';
 import { eq } from 'drizzle-orm';

@@ -4,10 +4,10 @@
  * checks it is unused and unexpired, so two concurrent uses cannot both succeed.
  */
 import { and, eq, gt, isNull } from 'drizzle-orm';
-import { userTokens } from '../../db/schema.js';
-import type { AppDeps } from '../../deps.js';
-import type { Role } from '../route.js';
-import { randomToken, sha256Hex } from './session.js';
+import { userTokens } from '../db/schema.js';
+import type { AppDeps } from '../deps.js';
+import type { Role } from './accounts.js';
+import { randomToken, sha256Hex } from './sessions.js';
 
 export type UserToken = typeof userTokens.$inferSelect;
 export type TokenPurpose = UserToken['purpose'];

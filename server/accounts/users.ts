@@ -1,0 +1,312 @@
+/**
+ * Console users: list users and pending invitations, invite a user by e-mail (a single-use link),
+ * withdraw an invitation, accept one (creates the user), and change a user's role, activity or
+ * account memberships (deactivation revokes every session at once). At least one active admin
+ * always remains.
+ *
+ * Refusals are {@link AccountsError}s; a full password-hashing queue is HashingBusyError.
+ */
+import { and, eq, gt, inArray, isNull } from 'drizzle-orm';
+import type { UserSummary } from '../../shared/console/common.js';
+import type { InvitationSummary } from '../../shared/console/users.js';
+import { consoleSettings } from '../config.js';
+import { accountMembers, accounts, users, userTokens } from '../db/schema.js';
+import type { AppDeps } from '../deps.js';
+import { sendMail, type MailResult } from '../mail/send.js';
+import { accountIdsOf, type Role } from './accounts.js';
+import { AccountsError } from './errors.js';
+import { hashPassword } from './passwords.js';
+import { revokeUserSessions } from './sessions.js';
+import {
+  consumeToken,
+  createUserToken,
+  findValidToken,
+  supersedeTokens,
+  type UserToken,
+} from './user-tokens.js';
+
+export type UserRow = typeof users.$inferSelect;
+
+/** Trimmed and lower-cased: the one form e-mails are stored and looked up in. */
+export function normaliseEmail(email: string): string {
+  return email.trim().toLowerCase();
+}
+
+export function userSummary(row: UserRow, accountIds: number[]): UserSummary {
+  return {
+    id: row.id,
+    email: row.email,
+    name: row.name,
+    role: row.role,
+    active: row.active,
+    accountIds,
+    createdAt: row.createdAt.toISOString(),
+    lockedUntil: row.lockedUntil ? row.lockedUntil.toISOString() : null,
+  };
+}
+
+export function loadUserSummary(deps: AppDeps, userId: number): UserSummary | undefined {
+  const row = deps.db.select().from(users).where(eq(users.id, userId)).get();
+  return row ? userSummary(row, accountIdsOf(deps.db, row.id)) : undefined;
+}
+
+/** The user row with this id (password hash included: for the services only). */
+export function findUserRow(deps: AppDeps, userId: number): UserRow | undefined {
+  return deps.db.select().from(users).where(eq(users.id, userId)).get();
+}
+
+/** The user row with this (normalised) e-mail. */
+export function findUserRowByEmail(deps: AppDeps, email: string): UserRow | undefined {
+  return deps.db.select().from(users).where(eq(users.email, email)).get();
+}
+
+function refuseExistingEmail(deps: AppDeps, email: string): void {
+  if (deps.db.select({ id: users.id }).from(users).where(eq(users.email, email)).get()) {
+    throw new AccountsError('conflict', `A console user with the e-mail ${email} exists already.`);
+  }
+}
+
+/** Refuses (validation-failed) naming each account id that does not exist. */
+function checkAccountsExist(deps: AppDeps, ids: readonly number[], field: string): void {
+  if (ids.length === 0) return;
+  const found = new Set(
+    deps.db
+      .select({ id: accounts.id })
+      .from(accounts)
+      .where(inArray(accounts.id, [...ids]))
+      .all()
+      .map((r) => r.id),
+  );
+  const errors = ids.flatMap((id, i) =>
+    found.has(id) ? [] : [{ field: `${field}[${i}]`, message: `no account with id ${id}`, value: id }],
+  );
+  if (errors.length > 0) throw new AccountsError('validation-failed', errors[0]!.message, errors);
+}
+
+function activeAdminCount(deps: AppDeps): number {
+  return deps.db
+    .select({ id: users.id })
+    .from(users)
+    .where(and(eq(users.role, 'admin'), eq(users.active, true)))
+    .all().length;
+}
+
+function invitationSummary(row: UserToken, invitedBy: string | null): InvitationSummary {
+  return {
+    id: row.id,
+    email: row.email,
+    role: row.role ?? 'developer',
+    accountIds: row.accountIds ?? [],
+    createdAt: row.createdAt.toISOString(),
+    expiresAt: row.expiresAt.toISOString(),
+    invitedBy,
+  };
+}
+
+export function invitationText(link: string, role: string, expiresAt: Date): string {
+  return [
+    'Hello,',
+    '',
+    `you have been invited to the Ebullio console with the role "${role}".`,
+    'Choose your name and password here:',
+    '',
+    link,
+    '',
+    `The link works once and expires at ${expiresAt.toISOString()} (UTC).`,
+    'If you did not expect this invitation, ignore this message.',
+  ].join('\n');
+}
+
+/** Every user (with their accounts) and every pending invitation, oldest first. */
+export function listUsers(deps: AppDeps): { items: UserSummary[]; invitations: InvitationSummary[] } {
+  const rows = deps.db.select().from(users).orderBy(users.id).all();
+  const members = deps.db.select().from(accountMembers).all();
+  const items = rows.map((row) =>
+    userSummary(
+      row,
+      members
+        .filter((m) => m.userId === row.id)
+        .map((m) => m.accountId)
+        .sort((a, b) => a - b),
+    ),
+  );
+  const emailById = new Map(rows.map((r) => [r.id, r.email]));
+  const invitations = deps.db
+    .select()
+    .from(userTokens)
+    .where(
+      and(
+        eq(userTokens.purpose, 'invitation'),
+        isNull(userTokens.usedAt),
+        gt(userTokens.expiresAt, deps.clock()),
+      ),
+    )
+    .orderBy(userTokens.id)
+    .all()
+    .map((t) => invitationSummary(t, t.createdByUserId ? (emailById.get(t.createdByUserId) ?? null) : null));
+  return { items, invitations };
+}
+
+/**
+ * Invites a user: supersedes earlier invitations of the e-mail, stores a new single-use token and
+ * mails its link. Refuses an e-mail that is a user already (conflict) and unknown account ids.
+ */
+export async function inviteUser(
+  deps: AppDeps,
+  input: { email: string; role: Role; accountIds: number[]; invitedBy: { id: number; email: string } },
+): Promise<{ email: string; invitation: InvitationSummary; mailStatus: MailResult['status'] }> {
+  const email = normaliseEmail(input.email);
+  refuseExistingEmail(deps, email);
+  checkAccountsExist(deps, input.accountIds, 'accountIds');
+  const settings = consoleSettings(deps.config);
+  supersedeTokens(deps, 'invitation', email);
+  const { token, row } = createUserToken(deps, {
+    purpose: 'invitation',
+    email,
+    ttlMs: settings.invitationTtlMs,
+    role: input.role,
+    accountIds: input.accountIds,
+    createdByUserId: input.invitedBy.id,
+  });
+  const link = `${settings.publicUrl}/console/accept-invitation?token=${encodeURIComponent(token)}`;
+  const mail = await sendMail(deps, {
+    kind: 'invitation',
+    to: email,
+    subject: 'Your invitation to the Ebullio console',
+    text: invitationText(link, input.role, row.expiresAt),
+  });
+  return { email, invitation: invitationSummary(row, input.invitedBy.email), mailStatus: mail.status };
+}
+
+/** Ends a pending invitation's link at once; not-found unless it is pending. */
+export function withdrawInvitation(
+  deps: AppDeps,
+  invitationId: number,
+): { invitation: InvitationSummary; token: UserToken } {
+  const now = deps.clock();
+  const row = deps.db
+    .select()
+    .from(userTokens)
+    .where(and(eq(userTokens.id, invitationId), eq(userTokens.purpose, 'invitation')))
+    .get();
+  if (!row || row.usedAt !== null || row.expiresAt <= now) {
+    throw new AccountsError('not-found', `No pending invitation with id ${invitationId}.`);
+  }
+  // A used token is what the accept step refuses, so marking it used ends the link.
+  deps.db.update(userTokens).set({ usedAt: now }).where(eq(userTokens.id, row.id)).run();
+  const invitedBy = row.createdByUserId
+    ? (deps.db.select({ email: users.email }).from(users).where(eq(users.id, row.createdByUserId)).get()
+        ?.email ?? null)
+    : null;
+  return { invitation: invitationSummary(row, invitedBy), token: row };
+}
+
+/** What a pending invitation offers; not-found when the token is unknown, used or expired. */
+export function invitationOffer(
+  deps: AppDeps,
+  token: string,
+): { email: string; role: Role; expiresAt: Date } {
+  const row = findValidToken(deps, 'invitation', token);
+  if (!row) throw new AccountsError('not-found', 'This invitation link is unknown, used or expired.');
+  return { email: row.email, role: row.role ?? 'developer', expiresAt: row.expiresAt };
+}
+
+/** The refusal of an unknown, used or expired single-use token, naming the `token` field. */
+export function tokenRefused(detail: string): AccountsError {
+  return new AccountsError('validation-failed', detail, [
+    { field: 'token', message: 'unknown, used or expired' },
+  ]);
+}
+
+/**
+ * Accepts an invitation: creates the user with the invited role and accounts (those that still
+ * exist) and the chosen name and password, and uses the token up. The token is checked before the
+ * password is hashed, so a bogus token costs no hashing; it is used only after hashing, in the
+ * transaction that creates the user, so a busy answer leaves the link usable and only one of two
+ * concurrent acceptances gets through.
+ */
+export async function acceptInvitation(
+  deps: AppDeps,
+  input: { token: string; name: string; password: string },
+): Promise<{ user: UserRow; invitationId: number }> {
+  const refused = 'The invitation link is unknown, used or expired.';
+  const pending = findValidToken(deps, 'invitation', input.token);
+  if (!pending) throw tokenRefused(refused);
+  refuseExistingEmail(deps, pending.email);
+  const passwordHash = await hashPassword(input.password);
+  const created = deps.db.transaction((tx) => {
+    const now = deps.clock();
+    const token = consumeToken({ ...deps, db: tx as unknown as AppDeps['db'] }, 'invitation', input.token);
+    if (!token) return undefined;
+    const user = tx
+      .insert(users)
+      .values({
+        email: token.email,
+        passwordHash,
+        role: token.role ?? 'developer',
+        name: input.name,
+        createdAt: now,
+      })
+      .returning()
+      .get();
+    for (const accountId of new Set(token.accountIds ?? [])) {
+      if (tx.select({ id: accounts.id }).from(accounts).where(eq(accounts.id, accountId)).get()) {
+        tx.insert(accountMembers).values({ userId: user.id, accountId }).onConflictDoNothing().run();
+      }
+    }
+    tx.update(userTokens).set({ userId: user.id }).where(eq(userTokens.id, token.id)).run();
+    return { user, invitationId: token.id };
+  });
+  if (!created) throw tokenRefused(refused);
+  return created;
+}
+
+export interface UserPatch {
+  role?: Role | undefined;
+  active?: boolean | undefined;
+  accountIds?: number[] | undefined;
+}
+
+/**
+ * Changes a user's role, activity or account memberships. Deactivating revokes all their
+ * sessions. Refuses to leave no active admin (conflict), an unknown user (not-found) and unknown
+ * account ids.
+ */
+export function updateUser(
+  deps: AppDeps,
+  userId: number,
+  patch: UserPatch,
+): {
+  before: UserSummary;
+  after: UserSummary;
+  /** True when this change deactivated an active user. */
+  deactivated: boolean;
+  sessionsRevoked: number;
+} {
+  const row = deps.db.select().from(users).where(eq(users.id, userId)).get();
+  if (!row) throw new AccountsError('not-found', `No console user with id ${userId}.`);
+  const before = userSummary(row, accountIdsOf(deps.db, row.id));
+  const losesAdmin =
+    row.role === 'admin' &&
+    row.active &&
+    ((patch.role !== undefined && patch.role !== 'admin') || patch.active === false);
+  if (losesAdmin && activeAdminCount(deps) <= 1) {
+    throw new AccountsError('conflict', 'This is the last active admin; make another user admin first.');
+  }
+  if (patch.accountIds) checkAccountsExist(deps, patch.accountIds, 'accountIds');
+  deps.db.transaction((tx) => {
+    const set: Partial<UserRow> = {};
+    if (patch.role !== undefined) set.role = patch.role;
+    if (patch.active !== undefined) set.active = patch.active;
+    if (Object.keys(set).length > 0) tx.update(users).set(set).where(eq(users.id, row.id)).run();
+    if (patch.accountIds) {
+      tx.delete(accountMembers).where(eq(accountMembers.userId, row.id)).run();
+      for (const accountId of new Set(patch.accountIds)) {
+        tx.insert(accountMembers).values({ userId: row.id, accountId }).run();
+      }
+    }
+  });
+  const sessionsRevoked = patch.active === false ? revokeUserSessions(deps, row.id) : 0;
+  const after = loadUserSummary(deps, row.id)!;
+  return { before, after, deactivated: patch.active === false && row.active, sessionsRevoked };
+}
