@@ -47,6 +47,7 @@ import { EngineInputError } from '../errors.js';
 import { addWarning, type Citation, type EngineWarning, type WarningSink } from '../types.js';
 import {
   IF97,
+  if97CitationFor,
   saturatedLiquidAtTemperature,
   saturationPressure,
   saturationTemperature,
@@ -170,11 +171,7 @@ const DUHRING: Citation = {
   reference:
     'U. Dühring, "Neue Grundgesetze zur rationellen Physik und Chemie", Leipzig, 1878 (Dühring\'s rule)',
 };
-const IF97_CITATION: Citation = {
-  key: 'iapws-if97',
-  reference:
-    'IAPWS R7-97(2012), Revised Release on the IAPWS Industrial Formulation 1997 for the Thermodynamic Properties of Water and Steam (boiling point of water)',
-};
+const IF97_CITATION: Citation = if97CitationFor('boiling point of water');
 
 // ---------------------------------------------------------------------------------------------
 // Validation

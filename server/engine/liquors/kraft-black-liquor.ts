@@ -16,7 +16,7 @@
  *
  * Density and a solubility (burkeite / sodium-salt crystallisation) limit are not provided.
  */
-import { saturationPressure, saturationTemperature, IF97 } from '../steam/if97.js';
+import { saturationPressure, saturationTemperature, IF97, if97CitationFor } from '../steam/if97.js';
 import { KELVIN_OFFSET, type Citation, type WarningSink } from '../types.js';
 import type { Interval, LiquorModel, ValidityBox } from './model.js';
 import { checkAgainst } from './validity.js';
@@ -189,11 +189,7 @@ const sources: Citation[] = [
     reference:
       'A.A. Zaman, T.W. McNally, A.L. Fricke, "Vapor pressure and boiling point elevation of slash pine black liquors: predictive models with statistical approach", Industrial & Engineering Chemistry Research 37 (1998) 275–283 (data range and slope change near 65 % solids)',
   },
-  {
-    key: 'iapws-if97',
-    reference:
-      'IAPWS R7-97(2012), Revised Release on the IAPWS Industrial Formulation 1997 for the Thermodynamic Properties of Water and Steam (pure-water saturation temperature)',
-  },
+  if97CitationFor('pure-water saturation temperature'),
 ];
 
 /** Water boiling temperature at p (IF97) and the liquor's rise over it, both K. */

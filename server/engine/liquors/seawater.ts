@@ -16,7 +16,12 @@
  * Checked against IAPWS-08 (python3-iapws) in tests/engine/liquors/seawater.test.ts.
  */
 import { EngineNoSolutionError, EngineRangeError } from '../errors.js';
-import { saturatedLiquidAtTemperature, saturationPressure, saturationTemperature } from '../steam/if97.js';
+import {
+  if97CitationFor,
+  saturatedLiquidAtTemperature,
+  saturationPressure,
+  saturationTemperature,
+} from '../steam/if97.js';
 import { addWarning, KELVIN_OFFSET, type Citation, type EngineCaution, type WarningSink } from '../types.js';
 import type { Interval, LiquorModel, ValidityBox } from './model.js';
 import { checkAgainst } from './validity.js';
@@ -214,11 +219,7 @@ const sources: Citation[] = [
     reference:
       'M. H. Sharqawy, J. H. Lienhard V, S. M. Zubair, "Thermophysical properties of seawater: a review of existing correlations and data", Desalination and Water Treatment 16 (2010) 354-380',
   },
-  {
-    key: 'iapws-if97',
-    reference:
-      'IAPWS R7-97(2012), Revised Release on the IAPWS Industrial Formulation 1997 for the Thermodynamic Properties of Water and Steam (pure-water parts)',
-  },
+  if97CitationFor('pure-water parts'),
 ];
 
 const cautions: EngineCaution[] = [

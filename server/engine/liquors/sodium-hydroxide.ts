@@ -14,7 +14,7 @@
  * published NaOH-hydrate solubility correlation at hand. Both optional methods are left out.
  */
 import { EngineRangeError } from '../errors.js';
-import { saturationTemperature, IF97 } from '../steam/if97.js';
+import { saturationTemperature, IF97, if97CitationFor } from '../steam/if97.js';
 import { addWarning, KELVIN_OFFSET, type Citation, type WarningSink } from '../types.js';
 import type { Interval, LiquorModel, ValidityBox } from './model.js';
 import { polyval } from '../numeric/polynomial.js';
@@ -298,11 +298,7 @@ const sources: Citation[] = [
     reference:
       'M. Olsson, Å. Jernqvist, G. Aly, "Thermophysical properties of aqueous NaOH–H2O solutions at high concentrations", International Journal of Thermophysics 18(3) (1997)',
   },
-  {
-    key: 'iapws-if97',
-    reference:
-      'IAPWS R7-97(2012), Revised Release on the IAPWS Industrial Formulation 1997 for the Thermodynamic Properties of Water and Steam (pure-water saturation temperature for the boiling-point rise)',
-  },
+  if97CitationFor('pure-water saturation temperature for the boiling-point rise'),
 ];
 
 function checkMassFraction(x: number, warnings: WarningSink): void {

@@ -8,7 +8,12 @@
  * {@link LiquorModel} `sucrose`, which applies the validity rule.
  */
 import { EngineNoSolutionError, EngineRangeError } from '../errors.js';
-import { saturatedLiquidAtTemperature, saturationPressure, saturationTemperature } from '../steam/if97.js';
+import {
+  if97CitationFor,
+  saturatedLiquidAtTemperature,
+  saturationPressure,
+  saturationTemperature,
+} from '../steam/if97.js';
 import { addWarning, KELVIN_OFFSET, type Citation, type EngineCaution, type WarningSink } from '../types.js';
 import type { Interval, LiquorModel, ValidityBox } from './model.js';
 import { checkAgainst } from './validity.js';
@@ -233,11 +238,7 @@ const sources: Citation[] = [
     reference:
       'G. Vavrinecz, "Neue Tabelle über die Löslichkeit reiner Saccharose in Wasser", Zeitschrift für die Zuckerindustrie 12 (1962) 481-487',
   },
-  {
-    key: 'iapws-if97',
-    reference:
-      'IAPWS R7-97(2012), Revised Release on the IAPWS Industrial Formulation 1997 for the Thermodynamic Properties of Water and Steam (water vapour pressure and pure-water parts)',
-  },
+  if97CitationFor('water vapour pressure and pure-water parts'),
 ];
 
 const cautions: EngineCaution[] = [

@@ -1,7 +1,7 @@
 /**
  * Ebullio's one adapter to IAPWS-IF97: IAPWS R7-97(2012), "Revised Release on the IAPWS
  * Industrial Formulation 1997 for the Thermodynamic Properties of Water and Steam" (IAPWS,
- * Lucerne, 2007, revised 2012); W. Wagner et al., "The IAPWS Industrial Formulation 1997 for the
+ * Lucerne, 2007, revised 2012; cited in results as {@link IF97_CITATION}); W. Wagner et al., "The IAPWS Industrial Formulation 1997 for the
  * Thermodynamic Properties of Water and Steam", J. Eng. Gas Turbines Power 122 (2000) 150–182.
  *
  * The equations themselves come from the npm package `@neutrium/thermo.eos.iapws97` 2.0.2
@@ -34,6 +34,7 @@
  */
 import { createRequire } from 'node:module';
 import { EngineNoSolutionError, EngineRangeError } from '../errors.js';
+import type { Citation } from '../types.js';
 
 const require = createRequire(import.meta.url);
 
@@ -133,6 +134,28 @@ const {
 
 /** p_s(647.095 K) by eq. 30, Pa: the highest pressure with saturated states (≈ 22.0637 MPa). */
 const MAX_SATURATION_STATE_PRESSURE = PT.r4_T_Psat(647.095) * 1e6;
+
+/** Title of the IAPWS release this module implements. */
+const IF97_RELEASE =
+  'IAPWS R7-97(2012), Revised Release on the IAPWS Industrial Formulation 1997 for the Thermodynamic Properties of Water and Steam';
+
+/**
+ * The citation of IAPWS-IF97, defined once: every result that uses water or steam properties
+ * (evaporators, liquor models, the steam routes) cites it through this constant or
+ * {@link if97CitationFor}.
+ */
+export const IF97_CITATION: Citation = {
+  key: 'iapws-if97',
+  reference: `${IF97_RELEASE}, International Association for the Properties of Water and Steam (2012)`,
+};
+
+/**
+ * {@link IF97_CITATION} with what a liquor model takes from it, e.g.
+ * `if97CitationFor('pure-water parts')` (same key, so results list IF97 once).
+ */
+export function if97CitationFor(use: string): Citation {
+  return { key: IF97_CITATION.key, reference: `${IF97_RELEASE} (${use})` };
+}
 
 /** IF97 constants (R7-97(2012), sections 2–4 and 6). */
 export const IF97 = {
