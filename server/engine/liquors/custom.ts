@@ -54,7 +54,7 @@ import {
 } from '../steam/if97.js';
 import { fitLine, interpolateLinear, interpolateSlope, lerp, segmentIndex } from '../numeric/interpolate.js';
 import { polyMinimum, polyval } from '../numeric/polynomial.js';
-import type { Interval, LiquorModel, ValidityBox } from './model.js';
+import { defineLiquorModel, type Interval, type LiquorModel, type ValidityBox } from './model.js';
 import { checkAgainst } from './validity.js';
 
 // ---------------------------------------------------------------------------------------------
@@ -760,7 +760,7 @@ export function createCustomLiquor(definition: CustomLiquorDefinition): CustomLi
     return noThermal();
   };
 
-  const model: CustomLiquorModel = {
+  const model = defineLiquorModel<CustomLiquorModel>({
     id,
     name: c.name,
     kind: 'custom',
@@ -771,9 +771,8 @@ export function createCustomLiquor(definition: CustomLiquorDefinition): CustomLi
     cautions: [],
     definitionWarnings: c.definitionWarnings,
     boilingPoint,
-    boilingPointRise: (x, p, w) => boilingPoint(x, p, w) - saturationTemperature(p),
     enthalpy,
-  };
+  });
   if (c.cp || c.rows) model.heatCapacity = heatCapacity;
   return model;
 }

@@ -18,7 +18,7 @@
  */
 import { saturationPressure, saturationTemperature, IF97, if97CitationFor } from '../steam/if97.js';
 import { KELVIN_OFFSET, type Citation, type WarningSink } from '../types.js';
-import type { Interval, LiquorModel, ValidityBox } from './model.js';
+import { defineLiquorModel, type Interval, type LiquorModel, type ValidityBox } from './model.js';
 import { checkAgainst } from './validity.js';
 import { EngineRangeError } from '../errors.js';
 
@@ -233,7 +233,7 @@ function checkEnthalpyInputs(massFraction: number, temperature: number, warnings
  * Kraft black liquor (Frederick 1997). boilingPoint = T_sat,IF97(p) + BPR(S, p); the BPR is zero
  * for S = 0 and never negative. enthalpy = ∫ c_p dT from 0.01 °C, kJ → J.
  */
-export const kraftBlackLiquor: LiquorModel = {
+export const kraftBlackLiquor: LiquorModel = defineLiquorModel({
   id: MODEL_ID,
   name: 'Kraft black liquor',
   kind: 'built-in',
@@ -264,6 +264,7 @@ export const kraftBlackLiquor: LiquorModel = {
     return waterBoilingTemperature + rise;
   },
 
+  // Frederick's correlation gives the rise itself: returned as computed, not as boilingPoint − T_sat.
   boilingPointRise(massFraction: number, pressure: number, warnings?: WarningSink): number {
     return riseOverWater(massFraction, pressure, warnings).rise;
   },
@@ -277,4 +278,4 @@ export const kraftBlackLiquor: LiquorModel = {
     const t = checkEnthalpyInputs(massFraction, temperature, warnings);
     return blackLiquorHeatCapacityKJPerKgK(massFraction, t) * KJ;
   },
-};
+});

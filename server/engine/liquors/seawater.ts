@@ -23,7 +23,7 @@ import {
   saturationTemperature,
 } from '../steam/if97.js';
 import { addWarning, KELVIN_OFFSET, type Citation, type EngineCaution, type WarningSink } from '../types.js';
-import type { Interval, LiquorModel, ValidityBox } from './model.js';
+import { defineLiquorModel, type Interval, type LiquorModel, type ValidityBox } from './model.js';
 import { checkAgainst } from './validity.js';
 
 const MODEL_ID = 'seawater';
@@ -263,7 +263,7 @@ function boilingPoint(massFraction: number, pressure: number, warnings?: Warning
   return seawaterBoilingTemperature(massFraction, pressure);
 }
 
-export const seawater: LiquorModel = {
+export const seawater: LiquorModel = defineLiquorModel({
   id: MODEL_ID,
   name: 'Seawater and desalination brine',
   kind: 'built-in',
@@ -274,10 +274,6 @@ export const seawater: LiquorModel = {
   cautions,
 
   boilingPoint,
-
-  boilingPointRise(massFraction: number, pressure: number, warnings?: WarningSink): number {
-    return boilingPoint(massFraction, pressure, warnings) - saturationTemperature(pressure);
-  },
 
   /** h = h_f,IF97(T) + (h_sw − h_w)_Sharqawy(S, T); IF97 saturated liquid at T, J/kg. */
   enthalpy(massFraction: number, temperature: number, warnings?: WarningSink): number {
@@ -307,4 +303,4 @@ export const seawater: LiquorModel = {
     const water = saturatedLiquidAtTemperature(temperature).density;
     return water + sharqawyDensityDifference(massFraction, temperature);
   },
-};
+});

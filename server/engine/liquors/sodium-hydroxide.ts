@@ -16,7 +16,7 @@
 import { EngineRangeError } from '../errors.js';
 import { saturationTemperature, IF97, if97CitationFor } from '../steam/if97.js';
 import { addWarning, KELVIN_OFFSET, type Citation, type WarningSink } from '../types.js';
-import type { Interval, LiquorModel, ValidityBox } from './model.js';
+import { defineLiquorModel, type Interval, type LiquorModel, type ValidityBox } from './model.js';
 import { polyval } from '../numeric/polynomial.js';
 import { checkAgainst } from './validity.js';
 
@@ -374,11 +374,13 @@ function checkEnthalpyInputs(massFraction: number, temperature: number, warnings
  *   equation solved for t (no iteration) at the solution's and at pure water's composition, so
  *   the rise comes from one correlation and the fit's pure-water error (−0.04 K at 101.325 kPa,
  *   −0.14 K at 5 kPa against IF97) cancels; the rise is 0 at x = 0 and never negative.
- * - boilingPoint(x, p) = T_sat,IF97(p) + boilingPointRise(x, p): the liquor boiling point the
- *   rest of the engine uses with IF97 vapour properties (T − T_sat is the vapour's superheat).
+ * - boilingPoint(x, p) = T_sat,IF97(p) + that rise: the liquor boiling point the rest of the
+ *   engine uses with IF97 vapour properties (T − T_sat is the vapour's superheat). The model's
+ *   boilingPointRise is the default of {@link defineLiquorModel}, boilingPoint − T_sat, which
+ *   returns the rise taken within Olsson's correlation.
  * - enthalpy, heatCapacity: Olsson's enthalpy polynomial and its t-derivative, kJ → J.
  */
-export const sodiumHydroxide: LiquorModel = {
+export const sodiumHydroxide: LiquorModel = defineLiquorModel({
   id: MODEL_ID,
   name: 'Sodium hydroxide solution (caustic soda)',
   kind: 'built-in',
@@ -406,10 +408,6 @@ export const sodiumHydroxide: LiquorModel = {
 
   boilingPoint,
 
-  boilingPointRise(massFraction: number, pressure: number, warnings?: WarningSink): number {
-    return boilingPoint(massFraction, pressure, warnings) - saturationTemperature(pressure);
-  },
-
   enthalpy(massFraction: number, temperature: number, warnings?: WarningSink): number {
     const t = checkEnthalpyInputs(massFraction, temperature, warnings);
     return olssonEnthalpyKJPerKg(1 - massFraction, t) * KJ;
@@ -419,4 +417,4 @@ export const sodiumHydroxide: LiquorModel = {
     const t = checkEnthalpyInputs(massFraction, temperature, warnings);
     return olssonHeatCapacityKJPerKgK(1 - massFraction, t) * KJ;
   },
-};
+});

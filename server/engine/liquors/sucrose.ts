@@ -15,7 +15,7 @@ import {
   saturationTemperature,
 } from '../steam/if97.js';
 import { addWarning, KELVIN_OFFSET, type Citation, type EngineCaution, type WarningSink } from '../types.js';
-import type { Interval, LiquorModel, ValidityBox } from './model.js';
+import { defineLiquorModel, type Interval, type LiquorModel, type ValidityBox } from './model.js';
 import { checkAgainst } from './validity.js';
 import { brent } from '../numeric/roots.js';
 
@@ -293,7 +293,7 @@ function boilingPoint(massFraction: number, pressure: number, warnings?: Warning
   return t;
 }
 
-export const sucrose: LiquorModel = {
+export const sucrose: LiquorModel = defineLiquorModel({
   id: MODEL_ID,
   name: 'Sucrose solution (sugar juice and syrup)',
   kind: 'built-in',
@@ -304,10 +304,6 @@ export const sucrose: LiquorModel = {
   cautions,
 
   boilingPoint,
-
-  boilingPointRise(massFraction: number, pressure: number, warnings?: WarningSink): number {
-    return boilingPoint(massFraction, pressure, warnings) - saturationTemperature(pressure);
-  },
 
   /** h = h_f,IF97(T) + Δh_Lyle(x, T): IF97 saturated liquid at T plus the sucrose increment, J/kg. */
   enthalpy(massFraction: number, temperature: number, warnings?: WarningSink): number {
@@ -340,4 +336,4 @@ export const sucrose: LiquorModel = {
     checkAgainst(MODEL_ID, 'temperature', temperature, 'K', SOLUBILITY_VALIDITY, SOLUBILITY_LIMITS, warnings);
     return vavrineczSolubility(temperature);
   },
-};
+});
