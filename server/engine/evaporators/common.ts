@@ -17,6 +17,7 @@ import type { LiquorModel } from '../liquors/model.js';
 import {
   enthalpyAtPT,
   IF97,
+  IF97_CITATION,
   regionAtPT,
   saturatedLiquidAtTemperature,
   saturationEnthalpies,
@@ -33,12 +34,8 @@ import {
   type WarningSink,
 } from '../types.js';
 
-/** The citation of the water and steam properties every evaporator result uses. */
-export const IF97_CITATION: Citation = {
-  key: 'iapws-if97',
-  reference:
-    'IAPWS R7-97(2012), Revised Release on the IAPWS Industrial Formulation 1997 for the Thermodynamic Properties of Water and Steam, International Association for the Properties of Water and Steam (2012)',
-};
+/** The citation of the water and steam properties every evaporator result uses (defined in steam/if97.ts). */
+export { IF97_CITATION };
 
 /** ΔT (K) below which a heating surface is flagged as impractically large (common practice). */
 export const SMALL_TEMPERATURE_DIFFERENCE = 5;

@@ -89,6 +89,7 @@ import {
   warnLargeTemperatureDifference,
   warnSmallTemperatureDifference,
   warnSolubility,
+  type SteamSupply,
   type SteamSupplySpec,
 } from './common.js';
 
@@ -294,20 +295,9 @@ function requireEffect(field: string, value: number, n: number): number {
 }
 
 // ---------------------------------------------------------------------------------------------
-// The solver
+// Labels: which effect and quantity a liquor or IF97 message is about
 // ---------------------------------------------------------------------------------------------
 
-/**
- * Solves a multiple-effect train: mode 'equal-area' (design for equal areas) or 'given-areas'
- * (rating). See the module comment for the model, the feed arrangements, the options and the
- * solver.
- *
- * @throws EngineRangeError / EngineInputError for invalid inputs, naming the field
- * @throws EngineNoSolutionError when no physical solution exists (e.g. the boiling-point rises
- *   use up the available temperature difference, an effect's ΔT falls below the minimum, a bleed
- *   takes more vapour than an effect makes, the areas would evaporate all the feed) or when the
- *   iteration does not converge; never returns NaN.
- */
 /**
  * The quantity a liquor model's own input names stands for inside effect i: the model checks
  * "temperature" (the liquor's boiling temperature in the effect), "pressure" (the effect's vapour
@@ -367,8 +357,134 @@ function effectLabel(i: number): { field: (quantity: string) => string; text: st
   };
 }
 
-export function solveMultipleEffect(input: MultipleEffectInput): MultipleEffectResult {
-  // ---- validation ----
+// ---------------------------------------------------------------------------------------------
+// Named state
+// ---------------------------------------------------------------------------------------------
+
+/** The validated train: everything fixed before the iteration starts (SI). */
+interface TrainSpec {
+  input: MultipleEffectInput;
+  liquor: LiquorModel;
+  /** true for 'equal-area' (design), false for 'given-areas' (rating). */
+  design: boolean;
+  /** Number of effects. */
+  n: number;
+  /** U_i, W/(m²·K). */
+  U: readonly number[];
+  /** Given areas (rating only), m². */
+  areas: readonly number[] | undefined;
+  /** Fresh feed, kg/s. */
+  feedFlow: number;
+  /** Fresh-feed solute mass fraction. */
+  feedFraction: number;
+  /** Highest mass fraction the liquor model accepts. */
+  maxFraction: number;
+  /** Product mass fraction asked for (design); NaN in rating. */
+  productFraction: number;
+  steam: SteamSupply;
+  /** Steam condensing temperature T_s, K. */
+  steamTemperature: number;
+  /** Last effect's pressure p_N, Pa, and its water saturation temperature T_N, K. */
+  lastPressure: number;
+  lastTemperature: number;
+  /** Liquor path: order[k] is the k-th effect the liquor passes (0-based). */
+  order: number[];
+  /** position[i] = order.indexOf(i): where effect i sits on the liquor path. */
+  position: number[];
+  parallel: boolean;
+  arrangementName: MultipleEffectResult['feedArrangement'];
+  minimumTemperatureDifference: number;
+  /** Subcooling of the vapour-chest condensate, K. */
+  subcooling: number;
+  condensateFlash: boolean;
+  maxIterations: number;
+  /** Bleeds asked for per effect (without the preheat bleed), kg/s. */
+  fixedBleed: Float64Array;
+  /** Temperature and enthalpy of the fresh feed as it enters (after any preheat), K and J/kg. */
+  feedInTemperature: number;
+  feedEnthalpy: number;
+  /** Feed-preheat duty, W, and the effect whose vapour supplies it (−1: external or none). */
+  preheatDuty: number;
+  preheatEffect: number;
+  /** Total evaporation of a design, F·(1 − x_F/x_P), kg/s; NaN in rating. */
+  evaporationTarget: number;
+  /** Weight of each effect's ΔT: U_i (design) or U_i·A_i (rating). */
+  heatWeights: Float64Array;
+  /** Warnings collected so far (the feed's, then the converged point's). */
+  warnings: EngineWarning[];
+}
+
+/** One effect's state at the current iterate. */
+interface EffectState {
+  /** Water saturation temperature T_i of the vapour space, K. */
+  vaporTemperature: number;
+  /** Vapour-space pressure p_i, Pa. */
+  pressure: number;
+  /** Solute mass fraction of the liquor leaving. */
+  massFraction: number;
+  /** K */
+  boilingPointRise: number;
+  /** Liquor boiling point T_b,i = T_i + BPR_i, K. */
+  boilingPoint: number;
+  /** Enthalpy of the vapour leaving (superheated by the BPR), J/kg. */
+  vaporEnthalpy: number;
+  /** Saturated liquid at p_i, J/kg. */
+  saturatedLiquidEnthalpy: number;
+  /** Condensate of this effect's vapour leaving the next chest, J/kg. */
+  condensateEnthalpy: number;
+  /** Liquor leaving, J/kg. */
+  liquorEnthalpy: number;
+  /** Vapour bled (asked for plus any preheat bleed), kg/s. */
+  bleed: number;
+  /** Liquor entering and leaving, kg/s. */
+  liquorIn: number;
+  liquorOut: number;
+  /** Heat transferred in the chest, W. */
+  duty: number;
+  /** ΔT of the chest: a weight while iterating, T_cond − T_b at the converged point, K. */
+  temperatureDifference: number;
+}
+
+/** The iterate: effect states, the flows and the work buffers of the linear solve. */
+interface TrainState {
+  effects: EffectState[];
+  /** Unknowns of the linear system: [S, V_1 … V_N], kg/s. */
+  flows: Float64Array;
+  /** The linear solve's answer for `flows` before the step control. */
+  proposedFlows: Float64Array;
+  /** Parallel feed: the share of effect i is F_i = feedPerVapor·V_i. */
+  feedPerVapor: number;
+  /** Product mass fraction: the design's, or (parallel rating) the current estimate. */
+  productFraction: number;
+  /** (N+1)×(N+1) matrix, right-hand side and one coefficient row (length N+2). */
+  matrix: Float64Array;
+  rhs: Float64Array;
+  row: Float64Array;
+}
+
+/** What the Anderson mixing remembers between iterations, on u = [T_1…T_{N−1}, 100·x_1…100·x_N]. */
+interface AndersonHistory {
+  depth: number;
+  u: Float64Array;
+  g: Float64Array;
+  uHist: Float64Array[];
+  fHist: Float64Array[];
+}
+
+/** The fixed-point map's proposal: new temperatures T_1…T_{N−1} and concentrations. */
+interface Proposal {
+  vaporTemperature: Float64Array;
+  massFraction: Float64Array;
+}
+
+const effectAt = (st: TrainState, i: number): EffectState => st.effects[i] as EffectState;
+
+// ---------------------------------------------------------------------------------------------
+// Prepare: validation, feed and preheat
+// ---------------------------------------------------------------------------------------------
+
+/** Validates the input and fixes everything that does not change while iterating. */
+function prepareTrain(input: MultipleEffectInput): TrainSpec {
   const { liquor } = input;
   if (input.mode !== 'equal-area' && input.mode !== 'given-areas') {
     throw new EngineInputError('mode', `mode must be 'equal-area' or 'given-areas'`);
@@ -407,7 +523,6 @@ export function solveMultipleEffect(input: MultipleEffectInput): MultipleEffectR
       'feed.massFraction = 0: a multiple-effect train is solved for a liquor with solute (feed mass fraction above 0); evaporate pure water with the single-effect calculation',
     );
   }
-  const xMax = liquor.limits.massFraction.max;
   let xP = Number.NaN;
   if (design) {
     if (input.productMassFraction === undefined) {
@@ -459,20 +574,61 @@ export function solveMultipleEffect(input: MultipleEffectInput): MultipleEffectR
   }
   const maxIter = input.maxIterations ?? 200;
   requireInRange('maxIterations', maxIter, 1, 10_000, 'iterations');
+  const heatWeights = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    heatWeights[i] = design ? (U[i] as number) : (U[i] as number) * (areas?.[i] as number);
+  }
+  return {
+    input,
+    liquor,
+    design,
+    n,
+    U,
+    areas,
+    feedFlow: F,
+    feedFraction: xF,
+    maxFraction: liquor.limits.massFraction.max,
+    productFraction: xP,
+    steam,
+    steamTemperature: Ts,
+    lastPressure: pN,
+    lastTemperature: TN,
+    order,
+    position: range(n).map((i) => order.indexOf(i)),
+    parallel,
+    arrangementName,
+    minimumTemperatureDifference: minDT,
+    subcooling: subcool,
+    condensateFlash: flash,
+    maxIterations: maxIter,
+    ...prepareFeed(input, n, F, xF, Ts),
+    evaporationTarget: design ? F * (1 - xF / xP) : Number.NaN,
+    heatWeights,
+  };
+}
 
+/** Bleeds, the feed's enthalpy as it enters and the preheat duty (with the feed's warnings). */
+function prepareFeed(
+  input: MultipleEffectInput,
+  n: number,
+  F: number,
+  xF: number,
+  Ts: number,
+): Pick<
+  TrainSpec,
+  'fixedBleed' | 'feedInTemperature' | 'feedEnthalpy' | 'preheatDuty' | 'preheatEffect' | 'warnings'
+> {
+  const { liquor } = input;
   const fixedBleed = new Float64Array(n);
   (input.vaporBleeds ?? []).forEach((b, k) => {
     const e = requireEffect(`vaporBleeds[${k}].effect`, b.effect, n);
     requireInRange(`vaporBleeds[${k}].massFlow`, b.massFlow, 0, F, 'kg/s');
     fixedBleed[e] = (fixedBleed[e] as number) + b.massFlow;
   });
-
-  // feed (after preheat)
   const warnings: EngineWarning[] = [];
   const feedLabel = { field: (q: string) => `feed.${q}`, text: 'feed' };
   const hFeedRaw = labelled(feedLabel, warnings, (w) => liquor.enthalpy(xF, input.feed.temperature, w));
   let TfeedIn = input.feed.temperature;
-  let preheatDuty = 0;
   let preheatEffect = -1;
   if (input.feedPreheat) {
     const tp = input.feedPreheat.temperature;
@@ -490,541 +646,750 @@ export function solveMultipleEffect(input: MultipleEffectInput): MultipleEffectR
   const hFeed = input.feedPreheat
     ? labelled(preheatLabel, warnings, (w) => liquor.enthalpy(xF, TfeedIn, w))
     : hFeedRaw;
-  preheatDuty = F * (hFeed - hFeedRaw);
-
-  // ---- state arrays ----
-  const M = n + 1; // unknowns: S, V_1..V_N
-  const Tsat = new Float64Array(n); // T_i, water saturation temperature of effect i
-  const p = new Float64Array(n);
-  const x = new Float64Array(n); // leaving mass fraction
-  const bpr = new Float64Array(n);
-  const Tb = new Float64Array(n);
-  const HV = new Float64Array(n);
-  const hf = new Float64Array(n); // saturated liquid at p_i
-  const hc = new Float64Array(n); // condensate leaving chest i+1 (condensing vapour of effect i)
-  const hL = new Float64Array(n);
-  const bleed = new Float64Array(n);
-  const z = new Float64Array(M); // S, V
-  const zNew = new Float64Array(M);
-  const A = new Float64Array(M * M);
-  const b = new Float64Array(M);
-  const Lin = new Float64Array(n);
-  const Lout = new Float64Array(n);
-  const Q = new Float64Array(n);
-  const dT = new Float64Array(n);
-  const Tcond = new Float64Array(n);
-  const Uw = new Float64Array(n); // U_i (design) or U_i·A_i (rating)
-  for (let i = 0; i < n; i++) Uw[i] = design ? (U[i] as number) : (U[i] as number) * (areas?.[i] as number);
-  const E = design ? F * (1 - xF / xP) : Number.NaN;
-  let phi = 1; // parallel: F_i = phi·V_i
-
-  const setPressures = (): void => {
-    for (let i = 0; i < n - 1; i++) {
-      const t = Tsat[i] as number;
-      if (!(t > TN && t < Ts)) {
-        throw new EngineNoSolutionError(
-          'An intermediate effect temperature left the range between the last effect and the steam',
-          {
-            reason: 'temperature-out-of-range',
-          },
-        );
-      }
-      p[i] = saturationPressure(t);
-    }
-    Tsat[n - 1] = TN;
-    p[n - 1] = pN;
+  return {
+    fixedBleed,
+    feedInTemperature: TfeedIn,
+    feedEnthalpy: hFeed,
+    preheatDuty: F * (hFeed - hFeedRaw),
+    preheatEffect,
+    warnings,
   };
+}
 
-  /** Liquor flows and leaving concentrations from V (z), for the current phi. */
-  const flowsFrom = (zz: Float64Array): boolean => {
-    if (parallel) {
-      for (let i = 0; i < n; i++) {
-        const v = zz[i + 1] as number;
-        Lin[i] = phi * v;
-        Lout[i] = (phi - 1) * v;
-        if (!(v >= 0)) return false;
-      }
-      return true;
+// ---------------------------------------------------------------------------------------------
+// The equations at frozen properties
+// ---------------------------------------------------------------------------------------------
+
+function newTrainState(spec: TrainSpec): TrainState {
+  const M = spec.n + 1; // unknowns: S, V_1..V_N
+  const effects: EffectState[] = [];
+  for (let i = 0; i < spec.n; i++) {
+    effects.push({
+      vaporTemperature: 0,
+      pressure: 0,
+      massFraction: 0,
+      boilingPointRise: 0,
+      boilingPoint: 0,
+      vaporEnthalpy: 0,
+      saturatedLiquidEnthalpy: 0,
+      condensateEnthalpy: 0,
+      liquorEnthalpy: 0,
+      bleed: 0,
+      liquorIn: 0,
+      liquorOut: 0,
+      duty: 0,
+      temperatureDifference: 0,
+    });
+  }
+  return {
+    effects,
+    flows: new Float64Array(M),
+    proposedFlows: new Float64Array(M),
+    feedPerVapor: 1,
+    productFraction: spec.productFraction,
+    matrix: new Float64Array(M * M),
+    rhs: new Float64Array(M),
+    row: new Float64Array(M + 1),
+  };
+}
+
+/** p_i = p_sat(T_i) for the intermediate effects; the last effect sits at p_N. */
+function setPressures(spec: TrainSpec, st: TrainState): void {
+  const { n, lastTemperature: TN, steamTemperature: Ts } = spec;
+  for (let i = 0; i < n - 1; i++) {
+    const e = effectAt(st, i);
+    const t = e.vaporTemperature;
+    if (!(t > TN && t < Ts)) {
+      throw new EngineNoSolutionError(
+        'An intermediate effect temperature left the range between the last effect and the steam',
+        {
+          reason: 'temperature-out-of-range',
+        },
+      );
     }
-    let l = F;
-    for (let k = 0; k < n; k++) {
-      const e = order[k] as number;
-      Lin[e] = l;
-      const v = zz[e + 1] as number;
-      l -= v;
-      Lout[e] = l;
-      if (!(v >= 0) || !(l > 0)) return false;
+    e.pressure = saturationPressure(t);
+  }
+  const last = effectAt(st, n - 1);
+  last.vaporTemperature = TN;
+  last.pressure = spec.lastPressure;
+}
+
+/** Liquor flows from the vapour flows `flows` (for the current feedPerVapor); false if unphysical. */
+function flowsFrom(spec: TrainSpec, st: TrainState, flows: Float64Array): boolean {
+  const { n } = spec;
+  if (spec.parallel) {
+    const phi = st.feedPerVapor;
+    for (let i = 0; i < n; i++) {
+      const e = effectAt(st, i);
+      const v = flows[i + 1] as number;
+      e.liquorIn = phi * v;
+      e.liquorOut = (phi - 1) * v;
+      if (!(v >= 0)) return false;
     }
     return true;
-  };
-  const concentrationsFrom = (xx: Float64Array): boolean => {
-    for (let i = 0; i < n; i++) {
-      const xi = parallel ? xP : (F * xF) / (Lout[i] as number);
-      if (!(xi > 0 && xi <= xMax)) return false;
-      xx[i] = xi;
-    }
-    return true;
-  };
+  }
+  let l = spec.feedFlow;
+  for (let k = 0; k < n; k++) {
+    const i = spec.order[k] as number;
+    const e = effectAt(st, i);
+    e.liquorIn = l;
+    const v = flows[i + 1] as number;
+    l -= v;
+    e.liquorOut = l;
+    if (!(v >= 0) || !(l > 0)) return false;
+  }
+  return true;
+}
 
-  /** Freezes every property at the current Tsat, x. */
-  const evaluateProperties = (sink: EngineWarning[] | undefined): void => {
-    for (let i = 0; i < n; i++) labelled(effectLabel(i), sink, (w) => evaluateEffect(i, w));
-    for (let i = 0; i < n; i++) bleed[i] = fixedBleed[i] as number;
-    if (preheatEffect >= 0) {
-      bleed[preheatEffect] =
-        (bleed[preheatEffect] as number) +
-        preheatDuty / ((HV[preheatEffect] as number) - (hc[preheatEffect] as number));
-    }
-  };
-  const evaluateEffect = (i: number, sink: EngineWarning[] | undefined): void => {
-    {
-      const pi = p[i] as number;
-      const r = liquor.boilingPointRise(x[i] as number, pi, sink);
-      if (!(r >= 0) || !Number.isFinite(r)) {
-        throw new EngineNoSolutionError(
-          `The liquor model gave an invalid boiling-point rise in effect ${i + 1}`,
-          {
-            reason: 'invalid-bpr',
-          },
-        );
-      }
-      bpr[i] = r;
-      const t = (Tsat[i] as number) + r;
-      Tb[i] = t;
-      HV[i] = leavingVapor(pi, t, Tsat[i] as number).enthalpy;
-      hf[i] = saturatedLiquidEnthalpy(pi);
-      hc[i] = subcool > 0 ? enthalpyAtPT(pi, (Tsat[i] as number) - subcool) : (hf[i] as number);
-      hL[i] = liquor.enthalpy(x[i] as number, t, sink);
-    }
-  };
+/** Leaving concentrations from the liquor flows into `out`; false if outside the model. */
+function concentrationsFrom(spec: TrainSpec, st: TrainState, out: Float64Array): boolean {
+  for (let i = 0; i < spec.n; i++) {
+    const xi = spec.parallel
+      ? st.productFraction
+      : (spec.feedFlow * spec.feedFraction) / effectAt(st, i).liquorOut;
+    if (!(xi > 0 && xi <= spec.maxFraction)) return false;
+    out[i] = xi;
+  }
+  return true;
+}
 
-  /**
-   * Coefficients of Q_i as an affine function of z: Q_i = Σ_j c[j]·z[j] + c[M]. Writes into row.
-   */
-  const qRow = (i: number, row: Float64Array): void => {
-    row.fill(0);
-    if (i === 0) {
-      row[0] = steam.heatPerKg;
-      return;
-    }
-    const j = i - 1; // vapour of effect j heats chest i
-    const lat = (HV[j] as number) - (hc[j] as number);
-    row[j + 1] = lat;
-    row[M] = -(bleed[j] as number) * lat;
-    if (flash && j >= 1) {
-      // flash vapour: (h_f,j−1 − h_f,j)·Σ_{k<j}(V_k − B_k)
-      const dh = (hf[j - 1] as number) - (hf[j] as number);
-      for (let k = 0; k < j; k++) {
-        row[k + 1] = (row[k + 1] as number) + dh;
-        row[M] = (row[M] as number) - dh * (bleed[k] as number);
-      }
-    }
-  };
-  const rowBuf = new Float64Array(M + 1);
-  const evalQ = (zz: Float64Array, i: number): number => {
-    qRow(i, rowBuf);
-    let s = rowBuf[M] as number;
-    for (let j = 0; j < M; j++) s += (rowBuf[j] as number) * (zz[j] as number);
-    return s;
-  };
+/** BPR of effect i at mass fraction x and the current pressure (labelled, no warnings). */
+function boilingPointRiseAt(spec: TrainSpec, st: TrainState, i: number, x: number): number {
+  return labelled(effectLabel(i), undefined, () =>
+    spec.liquor.boilingPointRise(x, effectAt(st, i).pressure, undefined),
+  );
+}
 
-  const sumBpr = (): number => {
-    let s = 0;
-    for (let i = 0; i < n; i++) s += bpr[i] as number;
-    return s;
-  };
+/** Freezes every property (BPR, boiling point, enthalpies, bleeds) at the current T_i, x_i. */
+function evaluateProperties(spec: TrainSpec, st: TrainState, sink: EngineWarning[] | undefined): void {
+  const { n } = spec;
+  for (let i = 0; i < n; i++) labelled(effectLabel(i), sink, (w) => evaluateEffect(spec, st, i, w));
+  for (let i = 0; i < n; i++) effectAt(st, i).bleed = spec.fixedBleed[i] as number;
+  if (spec.preheatEffect >= 0) {
+    const e = effectAt(st, spec.preheatEffect);
+    e.bleed = e.bleed + spec.preheatDuty / (e.vaporEnthalpy - e.condensateEnthalpy);
+  }
+}
 
-  /** Assembles and solves the linear system for (S, V) with frozen properties. */
-  const linearSolve = (): void => {
-    A.fill(0);
-    b.fill(0);
-    for (let i = 0; i < n; i++) {
-      // Q_i + Lin_i·h_in − V_i·HV_i − Lout_i·hL_i = 0
-      qRow(i, rowBuf);
-      for (let j = 0; j < M; j++) A[i * M + j] = rowBuf[j] as number;
-      let rhs = -(rowBuf[M] as number);
-      A[i * M + i + 1] = (A[i * M + i + 1] as number) - (HV[i] as number);
-      if (parallel) {
-        A[i * M + i + 1] = (A[i * M + i + 1] as number) + phi * hFeed - (phi - 1) * (hL[i] as number);
-      } else {
-        // Lin_e = F − Σ_{m<k} V_order[m]; Lout_e = Lin_e − V_e
-        const k = order.indexOf(i);
-        const hin = k === 0 ? hFeed : (hL[order[k - 1] as number] as number);
-        const hout = hL[i] as number;
-        rhs -= F * (hin - hout);
-        for (let m = 0; m < k; m++) {
-          const e = order[m] as number;
-          A[i * M + e + 1] = (A[i * M + e + 1] as number) - hin + hout;
-        }
-        A[i * M + i + 1] = (A[i * M + i + 1] as number) + hout;
-      }
-      b[i] = rhs;
-    }
-    const r = n * M;
-    if (design) {
-      for (let j = 1; j < M; j++) A[r + j] = 1;
-      b[n] = E;
-    } else {
-      const avail = Ts - TN - sumBpr();
-      for (let i = 0; i < n; i++) {
-        qRow(i, rowBuf);
-        const w = 1 / (Uw[i] as number);
-        for (let j = 0; j < M; j++) A[r + j] = (A[r + j] as number) + w * (rowBuf[j] as number);
-        b[n] = (b[n] as number) - w * (rowBuf[M] as number);
-      }
-      b[n] = (b[n] as number) + avail;
-    }
-    solveLinearSystem(A, b, M);
-    zNew.set(b);
-  };
-
-  const noAvailable = (avail: number, iter: number): EngineNoSolutionError =>
-    new EngineNoSolutionError(
-      `No solution: the boiling-point rises (${sumBpr().toFixed(2)} K in total) use up the available temperature difference ${(Ts - TN).toFixed(2)} K between the steam and the last effect (${avail.toFixed(2)} K left for ${n} effect(s), at least ${(n * minDT).toFixed(2)} K needed)`,
-      { iterations: iter, reason: 'boiling-point-rise-exceeds-temperature-difference' },
+function evaluateEffect(spec: TrainSpec, st: TrainState, i: number, sink: EngineWarning[] | undefined): void {
+  const e = effectAt(st, i);
+  const pi = e.pressure;
+  const r = spec.liquor.boilingPointRise(e.massFraction, pi, sink);
+  if (!(r >= 0) || !Number.isFinite(r)) {
+    throw new EngineNoSolutionError(
+      `The liquor model gave an invalid boiling-point rise in effect ${i + 1}`,
+      {
+        reason: 'invalid-bpr',
+      },
     );
+  }
+  e.boilingPointRise = r;
+  const t = e.vaporTemperature + r;
+  e.boilingPoint = t;
+  e.vaporEnthalpy = leavingVapor(pi, t, e.vaporTemperature).enthalpy;
+  e.saturatedLiquidEnthalpy = saturatedLiquidEnthalpy(pi);
+  e.condensateEnthalpy =
+    spec.subcooling > 0 ? enthalpyAtPT(pi, e.vaporTemperature - spec.subcooling) : e.saturatedLiquidEnthalpy;
+  e.liquorEnthalpy = spec.liquor.enthalpy(e.massFraction, t, sink);
+}
 
-  // ---- initial guess ----
+/**
+ * Coefficients of Q_i as an affine function of the flows: Q_i = Σ_j row[j]·flows[j] + row[M].
+ */
+function dutyRow(spec: TrainSpec, st: TrainState, i: number, row: Float64Array): void {
+  const M = spec.n + 1;
+  row.fill(0);
+  if (i === 0) {
+    row[0] = spec.steam.heatPerKg;
+    return;
+  }
+  const j = i - 1; // vapour of effect j heats chest i
+  const heating = effectAt(st, j);
+  const lat = heating.vaporEnthalpy - heating.condensateEnthalpy;
+  row[j + 1] = lat;
+  row[M] = -heating.bleed * lat;
+  if (spec.condensateFlash && j >= 1) {
+    // flash vapour: (h_f,j−1 − h_f,j)·Σ_{k<j}(V_k − B_k)
+    const dh = effectAt(st, j - 1).saturatedLiquidEnthalpy - heating.saturatedLiquidEnthalpy;
+    for (let k = 0; k < j; k++) {
+      row[k + 1] = (row[k + 1] as number) + dh;
+      row[M] = (row[M] as number) - dh * effectAt(st, k).bleed;
+    }
+  }
+}
+
+/** Q_i for the given flows, W. */
+function dutyOf(spec: TrainSpec, st: TrainState, flows: Float64Array, i: number): number {
+  const M = spec.n + 1;
+  const row = st.row;
+  dutyRow(spec, st, i, row);
+  let s = row[M] as number;
+  for (let j = 0; j < M; j++) s += (row[j] as number) * (flows[j] as number);
+  return s;
+}
+
+function sumBoilingPointRises(st: TrainState): number {
+  let s = 0;
+  for (const e of st.effects) s += e.boilingPointRise;
+  return s;
+}
+
+/** Enthalpy of the liquor entering effect i (fresh feed, or the previous effect's outlet), J/kg. */
+function liquorInEnthalpy(spec: TrainSpec, st: TrainState, i: number): number {
+  const k = spec.position[i] as number;
+  return spec.parallel || k === 0
+    ? spec.feedEnthalpy
+    : effectAt(st, spec.order[k - 1] as number).liquorEnthalpy;
+}
+
+/** Assembles and solves the linear system for (S, V) with frozen properties → proposedFlows. */
+function solveFlows(spec: TrainSpec, st: TrainState): void {
+  const { n, order, feedFlow: F } = spec;
+  const M = n + 1;
+  const { matrix: A, rhs: b, row } = st;
+  A.fill(0);
+  b.fill(0);
+  for (let i = 0; i < n; i++) {
+    // Q_i + Lin_i·h_in − V_i·HV_i − Lout_i·hL_i = 0
+    const e = effectAt(st, i);
+    dutyRow(spec, st, i, row);
+    for (let j = 0; j < M; j++) A[i * M + j] = row[j] as number;
+    let rhs = -(row[M] as number);
+    A[i * M + i + 1] = (A[i * M + i + 1] as number) - e.vaporEnthalpy;
+    if (spec.parallel) {
+      const phi = st.feedPerVapor;
+      A[i * M + i + 1] =
+        (A[i * M + i + 1] as number) + phi * spec.feedEnthalpy - (phi - 1) * e.liquorEnthalpy;
+    } else {
+      // Lin_e = F − Σ_{m<k} V_order[m]; Lout_e = Lin_e − V_e
+      const k = spec.position[i] as number;
+      const hin = liquorInEnthalpy(spec, st, i);
+      const hout = e.liquorEnthalpy;
+      rhs -= F * (hin - hout);
+      for (let m = 0; m < k; m++) {
+        const up = order[m] as number;
+        A[i * M + up + 1] = (A[i * M + up + 1] as number) - hin + hout;
+      }
+      A[i * M + i + 1] = (A[i * M + i + 1] as number) + hout;
+    }
+    b[i] = rhs;
+  }
+  const r = n * M;
+  if (spec.design) {
+    for (let j = 1; j < M; j++) A[r + j] = 1;
+    b[n] = spec.evaporationTarget;
+  } else {
+    // the area equations summed: Σ Q_i/(U_i·A_i) = T_s − T_N − ΣBPR_i
+    const avail = spec.steamTemperature - spec.lastTemperature - sumBoilingPointRises(st);
+    for (let i = 0; i < n; i++) {
+      dutyRow(spec, st, i, row);
+      const w = 1 / (spec.heatWeights[i] as number);
+      for (let j = 0; j < M; j++) A[r + j] = (A[r + j] as number) + w * (row[j] as number);
+      b[n] = (b[n] as number) - w * (row[M] as number);
+    }
+    b[n] = (b[n] as number) + avail;
+  }
+  solveLinearSystem(A, b, M);
+  st.proposedFlows.set(b);
+}
+
+function noAvailable(spec: TrainSpec, st: TrainState, avail: number, iter: number): EngineNoSolutionError {
+  const { n, steamTemperature: Ts, lastTemperature: TN } = spec;
+  return new EngineNoSolutionError(
+    `No solution: the boiling-point rises (${sumBoilingPointRises(st).toFixed(2)} K in total) use up the available temperature difference ${(Ts - TN).toFixed(2)} K between the steam and the last effect (${avail.toFixed(2)} K left for ${n} effect(s), at least ${(n * spec.minimumTemperatureDifference).toFixed(2)} K needed)`,
+    { iterations: iter, reason: 'boiling-point-rise-exceeds-temperature-difference' },
+  );
+}
+
+// ---------------------------------------------------------------------------------------------
+// Iterate: initial guess, then linear solve → step control → new drops → Anderson mixing
+// ---------------------------------------------------------------------------------------------
+
+/** Equal evaporation and equal drops (first without BPR for the pressures, then with it). */
+function initialGuess(spec: TrainSpec, st: TrainState): void {
+  const { n, design, parallel, feedFraction: xF, steamTemperature: Ts, lastTemperature: TN } = spec;
+  const z = st.flows;
   if (design) {
-    for (let i = 0; i < n; i++) z[i + 1] = E / n;
-    if (parallel) phi = 1 / (1 - xF / xP);
+    for (let i = 0; i < n; i++) z[i + 1] = spec.evaporationTarget / n;
+    if (parallel) st.feedPerVapor = 1 / (1 - xF / st.productFraction);
   } else {
     for (let i = 0; i < n; i++) z[i + 1] = 0;
     if (parallel) {
-      xP = Math.min(2 * xF, 0.5 * (xF + xMax));
-      phi = 1 / (1 - xF / xP);
+      st.productFraction = Math.min(2 * xF, 0.5 * (xF + spec.maxFraction));
+      st.feedPerVapor = 1 / (1 - xF / st.productFraction);
     }
   }
-  flowsFrom(z);
-  if (parallel) for (let i = 0; i < n; i++) x[i] = design ? xP : xF;
-  else if (!concentrationsFrom(x))
+  flowsFrom(spec, st, z);
+  const x = new Float64Array(n);
+  if (parallel) for (let i = 0; i < n; i++) x[i] = design ? st.productFraction : xF;
+  else if (!concentrationsFrom(spec, st, x))
     throw new EngineInputError('productMassFraction', 'the product is outside the liquor model');
-  // equal drops, first without BPR for the pressures, then with the BPR at those pressures
-  for (let i = 0; i < n - 1; i++) Tsat[i] = Ts - ((Ts - TN) * (i + 1)) / n;
-  setPressures();
+  for (let i = 0; i < n; i++) effectAt(st, i).massFraction = x[i] as number;
+  for (let i = 0; i < n - 1; i++) effectAt(st, i).vaporTemperature = Ts - ((Ts - TN) * (i + 1)) / n;
+  setPressures(spec, st);
   for (let pass = 0; pass < 2; pass++) {
-    for (let i = 0; i < n; i++)
-      bpr[i] = labelled(effectLabel(i), undefined, () =>
-        liquor.boilingPointRise(x[i] as number, p[i] as number, undefined),
-      );
-    const avail = Ts - TN - sumBpr();
-    if (!(avail > n * minDT) || !(avail > 0)) throw noAvailable(avail, 0);
-    let t = Ts;
-    for (let i = 0; i < n - 1; i++) {
-      t -= avail / n + (bpr[i] as number);
-      Tsat[i] = t;
-    }
-    setPressures();
-  }
-
-  // ---- iteration with Anderson acceleration on u = [T_1..T_{N−1}, x_1..x_N] ----
-  const nu = n - 1 + n;
-  const depth = Math.min(4, nu);
-  const u = new Float64Array(nu);
-  const gu = new Float64Array(nu);
-  const uHist: Float64Array[] = [];
-  const fHist: Float64Array[] = [];
-  const pack = (dst: Float64Array, tsat: Float64Array, xx: Float64Array): void => {
-    for (let i = 0; i < n - 1; i++) dst[i] = tsat[i] as number;
-    for (let i = 0; i < n; i++) dst[n - 1 + i] = (xx[i] as number) * X_SCALE;
-  };
-  const xNew = new Float64Array(n);
-  const TsatNew = new Float64Array(n);
-  let iterations = 0;
-  let converged = false;
-  let lastChange = Number.POSITIVE_INFINITY;
-  for (let iter = 1; iter <= maxIter; iter++) {
-    iterations = iter;
-    evaluateProperties(undefined);
-    linearSolve();
-    // step control on V: halve until flows and concentrations are physical
-    let alpha = 1;
-    const zTry = new Float64Array(M);
-    let ok = false;
-    for (let h = 0; h < 30; h++) {
-      for (let j = 0; j < M; j++)
-        zTry[j] = (z[j] as number) + alpha * ((zNew[j] as number) - (z[j] as number));
-      if (parallel && !design) {
-        let sv = 0;
-        for (let i = 0; i < n; i++) sv += zTry[i + 1] as number;
-        if (sv > 0 && sv < F) {
-          const xp = (F * xF) / (F - sv);
-          if (xp <= xMax) {
-            const phiSave = phi;
-            phi = 1 / (1 - xF / xp);
-            if (flowsFrom(zTry) && zTry[0]! > 0) {
-              xP = xp;
-              ok = true;
-              break;
-            }
-            phi = phiSave;
-          }
-        }
-      } else if (flowsFrom(zTry) && (zTry[0] as number) > 0 && concentrationsFrom(xNew)) {
-        ok = true;
-        break;
-      }
-      alpha *= 0.5;
-    }
-    if (!ok) {
-      throw new EngineNoSolutionError(
-        design
-          ? 'No physical solution: the balances need a negative flow (a bleed larger than the vapour an effect makes, or an effect whose heat cannot even bring the liquor it receives to its boiling point, e.g. a cold feed with little evaporation per effect)'
-          : 'No physical solution: the given areas would evaporate more than the feed can give (or need a negative flow)',
-        { iterations: iter, reason: 'negative-flow' },
-      );
-    }
-    if (parallel) for (let i = 0; i < n; i++) xNew[i] = xP;
-    z.set(zTry);
-    // duties and new temperature drops (BPR at the new concentrations, current pressures)
-    let wsum = 0;
     for (let i = 0; i < n; i++) {
-      const q = evalQ(z, i);
-      Q[i] = q;
-      if (!(q > 0)) {
-        if (iter > 5) {
-          throw new EngineNoSolutionError(
-            `No physical solution: effect ${i + 1} would receive no heat (its heating vapour is all bled or condensed elsewhere)`,
-            { iterations: iter, reason: 'negative-flow' },
-          );
-        }
-      }
-      dT[i] = Math.max(q, 1e-6) / (Uw[i] as number);
-      wsum += dT[i] as number;
+      const e = effectAt(st, i);
+      e.boilingPointRise = boilingPointRiseAt(spec, st, i, e.massFraction);
     }
-    for (let i = 0; i < n; i++)
-      bpr[i] = labelled(effectLabel(i), undefined, () =>
-        liquor.boilingPointRise(xNew[i] as number, p[i] as number, undefined),
-      );
-    const avail = Ts - TN - sumBpr();
-    if (!(avail > 0)) throw noAvailable(avail, iter);
+    const avail = Ts - TN - sumBoilingPointRises(st);
+    if (!(avail > n * spec.minimumTemperatureDifference) || !(avail > 0))
+      throw noAvailable(spec, st, avail, 0);
     let t = Ts;
     for (let i = 0; i < n - 1; i++) {
-      t -= ((dT[i] as number) / wsum) * avail + (bpr[i] as number);
-      TsatNew[i] = t;
+      const e = effectAt(st, i);
+      t -= avail / n + e.boilingPointRise;
+      e.vaporTemperature = t;
     }
-    // Anderson mixing
-    pack(u, Tsat, x);
-    pack(gu, TsatNew, xNew);
-    const f = new Float64Array(nu);
-    let change = 0;
-    for (let k = 0; k < nu; k++) {
-      f[k] = (gu[k] as number) - (u[k] as number);
-      change = Math.max(change, Math.abs(f[k] as number));
-    }
-    lastChange = change;
-    if (change < 1e-10) {
-      converged = true;
-      Tsat.set(TsatNew.subarray(0, n - 1));
-      x.set(xNew);
+    setPressures(spec, st);
+  }
+}
+
+/**
+ * Moves the flows towards the linear solve's answer, halving the step until every flow and
+ * concentration is physical; writes the new concentrations into `next`.
+ */
+function stepFlows(spec: TrainSpec, st: TrainState, iter: number, next: Float64Array): void {
+  const { n, design, parallel, feedFlow: F, feedFraction: xF } = spec;
+  const M = n + 1;
+  const z = st.flows;
+  const zNew = st.proposedFlows;
+  let alpha = 1;
+  const zTry = new Float64Array(M);
+  let ok = false;
+  for (let h = 0; h < 30; h++) {
+    for (let j = 0; j < M; j++) zTry[j] = (z[j] as number) + alpha * ((zNew[j] as number) - (z[j] as number));
+    if (parallel && !design) {
+      // rating with parallel feed: the product concentration follows from the evaporation
+      let sv = 0;
+      for (let i = 0; i < n; i++) sv += zTry[i + 1] as number;
+      if (sv > 0 && sv < F) {
+        const xp = (F * xF) / (F - sv);
+        if (xp <= spec.maxFraction) {
+          const phiSave = st.feedPerVapor;
+          st.feedPerVapor = 1 / (1 - xF / xp);
+          if (flowsFrom(spec, st, zTry) && zTry[0]! > 0) {
+            st.productFraction = xp;
+            ok = true;
+            break;
+          }
+          st.feedPerVapor = phiSave;
+        }
+      }
+    } else if (flowsFrom(spec, st, zTry) && (zTry[0] as number) > 0 && concentrationsFrom(spec, st, next)) {
+      ok = true;
       break;
     }
-    uHist.push(Float64Array.from(u));
-    fHist.push(f);
-    if (uHist.length > depth + 1) {
-      uHist.shift();
-      fHist.shift();
-    }
-    const next = andersonStep(uHist, fHist, nu);
-    // keep the ordering T_s > T_1 > … > T_N and concentrations physical; otherwise plain step
-    let valid = true;
-    let prev = Ts;
-    for (let i = 0; i < n - 1; i++) {
-      const ti = next[i] as number;
-      if (!(ti < prev - (bpr[i] as number) * 0.5) || !(ti > TN)) valid = false;
-      prev = ti;
-    }
-    for (let i = 0; i < n; i++) {
-      const xi = (next[n - 1 + i] as number) / X_SCALE;
-      if (!(xi > 0 && xi <= xMax)) valid = false;
-    }
-    const src = valid ? next : gu;
-    for (let i = 0; i < n - 1; i++) Tsat[i] = src[i] as number;
-    for (let i = 0; i < n; i++) x[i] = (src[n - 1 + i] as number) / X_SCALE;
-    if (!valid) {
-      uHist.length = 0;
-      fHist.length = 0;
-    }
-    setPressures();
+    alpha *= 0.5;
   }
-  if (!converged) {
+  if (!ok) {
     throw new EngineNoSolutionError(
-      `The multiple-effect iteration did not converge in ${iterations} iterations (last change ${lastChange.toExponential(2)})`,
-      { iterations, residual: lastChange, reason: 'not-converged' },
+      design
+        ? 'No physical solution: the balances need a negative flow (a bleed larger than the vapour an effect makes, or an effect whose heat cannot even bring the liquor it receives to its boiling point, e.g. a cold feed with little evaporation per effect)'
+        : 'No physical solution: the given areas would evaporate more than the feed can give (or need a negative flow)',
+      { iterations: iter, reason: 'negative-flow' },
     );
   }
+  if (parallel) for (let i = 0; i < n; i++) next[i] = st.productFraction;
+  z.set(zTry);
+}
 
-  // ---- final evaluation at the converged point (with warnings) ----
-  setPressures();
-  flowsFrom(z);
-  evaluateProperties(warnings);
+/**
+ * The new temperature drops from the duties (design ΔT_i ∝ Q_i/U_i, rating ΔT_i = Q_i/(U_i·A_i)),
+ * scaled to the available ΔT with the BPR at the new concentrations: writes T_1…T_{N−1} into
+ * `next.vaporTemperature`.
+ */
+function proposeTemperatures(spec: TrainSpec, st: TrainState, iter: number, next: Proposal): void {
+  const { n, steamTemperature: Ts, lastTemperature: TN } = spec;
+  let wsum = 0;
   for (let i = 0; i < n; i++) {
-    Q[i] = evalQ(z, i);
-    Tcond[i] = i === 0 ? Ts : (Tsat[i - 1] as number);
-    dT[i] = (Tcond[i] as number) - (Tb[i] as number);
+    const e = effectAt(st, i);
+    const q = dutyOf(spec, st, st.flows, i);
+    e.duty = q;
+    if (!(q > 0)) {
+      if (iter > 5) {
+        throw new EngineNoSolutionError(
+          `No physical solution: effect ${i + 1} would receive no heat (its heating vapour is all bled or condensed elsewhere)`,
+          { iterations: iter, reason: 'negative-flow' },
+        );
+      }
+    }
+    e.temperatureDifference = Math.max(q, 1e-6) / (spec.heatWeights[i] as number);
+    wsum += e.temperatureDifference;
   }
-  const areaOut = new Float64Array(n);
   for (let i = 0; i < n; i++) {
-    const d = dT[i] as number;
+    effectAt(st, i).boilingPointRise = boilingPointRiseAt(spec, st, i, next.massFraction[i] as number);
+  }
+  const avail = Ts - TN - sumBoilingPointRises(st);
+  if (!(avail > 0)) throw noAvailable(spec, st, avail, iter);
+  let t = Ts;
+  for (let i = 0; i < n - 1; i++) {
+    const e = effectAt(st, i);
+    t -= (e.temperatureDifference / wsum) * avail + e.boilingPointRise;
+    next.vaporTemperature[i] = t;
+  }
+}
+
+/**
+ * One Anderson-mixed update of the temperatures and concentrations from the current iterate u
+ * and the map's proposal g(u). Returns the largest change |g(u) − u| (K, or 0.01 in x); when it is
+ * below the tolerance the proposal is accepted as the converged point.
+ */
+function mixProposal(spec: TrainSpec, st: TrainState, hist: AndersonHistory, next: Proposal): number {
+  const { n, steamTemperature: Ts, lastTemperature: TN } = spec;
+  const { u, g: gu } = hist;
+  const nu = u.length;
+  for (let i = 0; i < n; i++) {
+    const e = effectAt(st, i);
+    if (i < n - 1) u[i] = e.vaporTemperature;
+    u[n - 1 + i] = e.massFraction * X_SCALE;
+  }
+  for (let i = 0; i < n - 1; i++) gu[i] = next.vaporTemperature[i] as number;
+  for (let i = 0; i < n; i++) gu[n - 1 + i] = (next.massFraction[i] as number) * X_SCALE;
+  const f = new Float64Array(nu);
+  let change = 0;
+  for (let k = 0; k < nu; k++) {
+    f[k] = (gu[k] as number) - (u[k] as number);
+    change = Math.max(change, Math.abs(f[k] as number));
+  }
+  if (change < 1e-10) {
+    for (let i = 0; i < n; i++) {
+      const e = effectAt(st, i);
+      if (i < n - 1) e.vaporTemperature = next.vaporTemperature[i] as number;
+      e.massFraction = next.massFraction[i] as number;
+    }
+    return change;
+  }
+  hist.uHist.push(Float64Array.from(u));
+  hist.fHist.push(f);
+  if (hist.uHist.length > hist.depth + 1) {
+    hist.uHist.shift();
+    hist.fHist.shift();
+  }
+  const mixed = andersonStep(hist.uHist, hist.fHist, nu);
+  // keep the ordering T_s > T_1 > … > T_N and concentrations physical; otherwise plain step
+  let valid = true;
+  let prev = Ts;
+  for (let i = 0; i < n - 1; i++) {
+    const ti = mixed[i] as number;
+    if (!(ti < prev - effectAt(st, i).boilingPointRise * 0.5) || !(ti > TN)) valid = false;
+    prev = ti;
+  }
+  for (let i = 0; i < n; i++) {
+    const xi = (mixed[n - 1 + i] as number) / X_SCALE;
+    if (!(xi > 0 && xi <= spec.maxFraction)) valid = false;
+  }
+  const src = valid ? mixed : gu;
+  for (let i = 0; i < n; i++) {
+    const e = effectAt(st, i);
+    if (i < n - 1) e.vaporTemperature = src[i] as number;
+    e.massFraction = (src[n - 1 + i] as number) / X_SCALE;
+  }
+  if (!valid) {
+    hist.uHist.length = 0;
+    hist.fHist.length = 0;
+  }
+  setPressures(spec, st);
+  return change;
+}
+
+/** Iterates to the converged point; returns the number of iterations. */
+function iterateTrain(spec: TrainSpec, st: TrainState): number {
+  const { n } = spec;
+  const nu = n - 1 + n;
+  const hist: AndersonHistory = {
+    depth: Math.min(4, nu),
+    u: new Float64Array(nu),
+    g: new Float64Array(nu),
+    uHist: [],
+    fHist: [],
+  };
+  const next: Proposal = { vaporTemperature: new Float64Array(n), massFraction: new Float64Array(n) };
+  let iterations = 0;
+  let lastChange = Number.POSITIVE_INFINITY;
+  for (let iter = 1; iter <= spec.maxIterations; iter++) {
+    iterations = iter;
+    evaluateProperties(spec, st, undefined);
+    solveFlows(spec, st);
+    stepFlows(spec, st, iter, next.massFraction);
+    proposeTemperatures(spec, st, iter, next);
+    lastChange = mixProposal(spec, st, hist, next);
+    if (lastChange < 1e-10) return iterations;
+  }
+  throw new EngineNoSolutionError(
+    `The multiple-effect iteration did not converge in ${iterations} iterations (last change ${lastChange.toExponential(2)})`,
+    { iterations, residual: lastChange, reason: 'not-converged' },
+  );
+}
+
+// ---------------------------------------------------------------------------------------------
+// Assemble: the converged point with fresh properties, its checks, balances and the result
+// ---------------------------------------------------------------------------------------------
+
+/**
+ * Re-evaluates the converged point (with warnings), sets the final duties and ΔT and returns the
+ * areas; refuses a ΔT below the minimum, a preheat the bleed vapour cannot give, and a bleed
+ * larger than the vapour.
+ */
+function finalEvaluation(spec: TrainSpec, st: TrainState, iterations: number): Float64Array {
+  const { n, steamTemperature: Ts, minimumTemperatureDifference: minDT } = spec;
+  const z = st.flows;
+  setPressures(spec, st);
+  flowsFrom(spec, st, z);
+  evaluateProperties(spec, st, spec.warnings);
+  for (let i = 0; i < n; i++) {
+    const e = effectAt(st, i);
+    e.duty = dutyOf(spec, st, z, i);
+    const condensing = i === 0 ? Ts : effectAt(st, i - 1).vaporTemperature;
+    e.temperatureDifference = condensing - e.boilingPoint;
+  }
+  const areas = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    const e = effectAt(st, i);
+    const d = e.temperatureDifference;
     if (!(d > 0) || d < minDT) {
       throw new EngineNoSolutionError(
         `No practical solution: effect ${i + 1} would work with ΔT = ${d.toFixed(3)} K, below the minimum ${minDT} K (too many effects or too little temperature difference for this liquor)`,
         { iterations, reason: 'temperature-difference-below-minimum' },
       );
     }
-    areaOut[i] = (Q[i] as number) / ((U[i] as number) * d);
+    areas[i] = e.duty / ((spec.U[i] as number) * d);
   }
-  if (preheatEffect >= 0 && TfeedIn >= (Tsat[preheatEffect] as number)) {
+  const pre = spec.preheatEffect;
+  if (pre >= 0 && spec.feedInTemperature >= effectAt(st, pre).vaporTemperature) {
     throw new EngineNoSolutionError(
-      `Vapour from effect ${preheatEffect + 1} condenses at ${(Tsat[preheatEffect] as number).toFixed(2)} K and cannot preheat the feed to ${TfeedIn.toFixed(2)} K`,
+      `Vapour from effect ${pre + 1} condenses at ${effectAt(st, pre).vaporTemperature.toFixed(2)} K and cannot preheat the feed to ${spec.feedInTemperature.toFixed(2)} K`,
       { iterations, reason: 'preheat-above-bleed-vapour' },
     );
   }
   for (let i = 0; i < n; i++) {
     const v = z[i + 1] as number;
-    if (v - (bleed[i] as number) < -1e-12 * F) {
+    const bleed = effectAt(st, i).bleed;
+    if (v - bleed < -1e-12 * spec.feedFlow) {
       throw new EngineNoSolutionError(
-        `No physical solution: the vapour bled from effect ${i + 1} (${(bleed[i] as number).toFixed(4)} kg/s) exceeds the vapour it makes (${v.toFixed(4)} kg/s)`,
+        `No physical solution: the vapour bled from effect ${i + 1} (${bleed.toFixed(4)} kg/s) exceeds the vapour it makes (${v.toFixed(4)} kg/s)`,
         { iterations, reason: 'bleed-exceeds-vapour' },
       );
     }
   }
+  return areas;
+}
 
-  // residuals of the full equations with fresh properties
-  const effBal: number[] = [];
+/** Residuals of the full equations (energy balances scaled by the steam duty, area equations). */
+function equationResiduals(
+  spec: TrainSpec,
+  st: TrainState,
+  areas: Float64Array,
+): { residual: number; effects: number[] } {
+  const { n } = spec;
+  const z = st.flows;
+  const effects: number[] = [];
   let residual = 0;
-  const qScale = (z[0] as number) * steam.heatPerKg;
+  const qScale = (z[0] as number) * spec.steam.heatPerKg;
   for (let i = 0; i < n; i++) {
-    const k = order.indexOf(i);
-    const hin = parallel || k === 0 ? hFeed : (hL[order[k - 1] as number] as number);
-    const inflow = [Q[i] as number, (Lin[i] as number) * hin];
-    const outflow = [(z[i + 1] as number) * (HV[i] as number), (Lout[i] as number) * (hL[i] as number)];
-    effBal.push(balanceResidual(inflow, outflow));
+    const e = effectAt(st, i);
+    const hin = liquorInEnthalpy(spec, st, i);
+    const inflow = [e.duty, e.liquorIn * hin];
+    const outflow = [(z[i + 1] as number) * e.vaporEnthalpy, e.liquorOut * e.liquorEnthalpy];
+    effects.push(balanceResidual(inflow, outflow));
     const r = Math.abs(inflow[0]! + inflow[1]! - outflow[0]! - outflow[1]!) / qScale;
     residual = Math.max(residual, r);
   }
   let aMean = 0;
-  for (let i = 0; i < n; i++) aMean += (areaOut[i] as number) / n;
+  for (let i = 0; i < n; i++) aMean += (areas[i] as number) / n;
   for (let i = 0; i < n; i++) {
-    const target = design ? aMean : (areas?.[i] as number);
-    residual = Math.max(residual, Math.abs((areaOut[i] as number) - target) / target);
+    const target = spec.design ? aMean : (spec.areas?.[i] as number);
+    residual = Math.max(residual, Math.abs((areas[i] as number) - target) / target);
   }
+  return { residual, effects };
+}
 
-  // flash vapour per effect (reported) and overall energy balance
-  const flashV = new Float64Array(n);
-  let condensateOut = 0; // energy leaving with vapour-chest condensate
+/** Flash vapour per effect (reported) and the energy leaving with the vapour-chest condensate. */
+function condensateCascade(spec: TrainSpec, st: TrainState): { flashVapor: Float64Array; energyOut: number } {
+  const { n, condensateFlash: flash } = spec;
+  const z = st.flows;
+  const flashVapor = new Float64Array(n);
+  let energyOut = 0;
   let cascade = 0;
   for (let j = 0; j < n - 1; j++) {
-    const vc = (z[j + 1] as number) - (bleed[j] as number);
+    const e = effectAt(st, j);
+    const vc = (z[j + 1] as number) - e.bleed;
     if (flash && j >= 1 && j < n - 1) {
-      const hgj = saturatedVaporEnthalpy(p[j] as number);
-      flashV[j] = (cascade * ((hf[j - 1] as number) - (hf[j] as number))) / (hgj - (hf[j] as number));
+      const hgj = saturatedVaporEnthalpy(e.pressure);
+      const hfPrev = effectAt(st, j - 1).saturatedLiquidEnthalpy;
+      flashVapor[j] = (cascade * (hfPrev - e.saturatedLiquidEnthalpy)) / (hgj - e.saturatedLiquidEnthalpy);
     }
     cascade += vc;
   }
   if (n >= 2) {
-    if (flash) condensateOut = cascade * (hf[n - 2] as number);
+    if (flash) energyOut = cascade * effectAt(st, n - 2).saturatedLiquidEnthalpy;
     else
-      for (let j = 0; j < n - 1; j++)
-        condensateOut += ((z[j + 1] as number) - (bleed[j] as number)) * (hc[j] as number);
+      for (let j = 0; j < n - 1; j++) {
+        const e = effectAt(st, j);
+        energyOut += ((z[j + 1] as number) - e.bleed) * e.condensateEnthalpy;
+      }
   }
-  let productFlow = 0;
-  let productEnthalpyFlow = 0;
+  return { flashVapor, energyOut };
+}
+
+/** The product: the last effect's outlet, or (parallel) the mixture of every outlet. */
+function productStream(
+  spec: TrainSpec,
+  st: TrainState,
+): { product: MultipleEffectResult['product']; enthalpyFlow: number } {
+  const { n, parallel, order, liquor } = spec;
+  let massFlow = 0;
+  let enthalpyFlow = 0;
   if (parallel) {
-    for (let i = 0; i < n; i++) {
-      productFlow += Lout[i] as number;
-      productEnthalpyFlow += (Lout[i] as number) * (hL[i] as number);
+    for (const e of st.effects) {
+      massFlow += e.liquorOut;
+      enthalpyFlow += e.liquorOut * e.liquorEnthalpy;
     }
   } else {
-    const last = order[n - 1] as number;
-    productFlow = Lout[last] as number;
-    productEnthalpyFlow = productFlow * (hL[last] as number);
+    const last = effectAt(st, order[n - 1] as number);
+    massFlow = last.liquorOut;
+    enthalpyFlow = massFlow * last.liquorEnthalpy;
   }
-  const productX = (F * xF) / productFlow;
-  const productH = productEnthalpyFlow / productFlow;
-  let productT: number;
+  const massFraction = (spec.feedFlow * spec.feedFraction) / massFlow;
+  const enthalpy = enthalpyFlow / massFlow;
+  let temperature: number;
   if (parallel && n > 1) {
     let lo = Number.POSITIVE_INFINITY;
     let hi = Number.NEGATIVE_INFINITY;
-    for (let i = 0; i < n; i++) {
-      lo = Math.min(lo, Tb[i] as number);
-      hi = Math.max(hi, Tb[i] as number);
+    for (const e of st.effects) {
+      lo = Math.min(lo, e.boilingPoint);
+      hi = Math.max(hi, e.boilingPoint);
     }
-    productT =
+    temperature =
       hi - lo < 1e-9
         ? lo
-        : brentSolve((t) => liquor.enthalpy(productX, t, undefined) - productH, lo, hi, { tol: 1e-9 }).root;
+        : brentSolve((t) => liquor.enthalpy(massFraction, t, undefined) - enthalpy, lo, hi, { tol: 1e-9 })
+            .root;
   } else {
-    productT = Tb[parallel ? 0 : (order[n - 1] as number)] as number;
+    temperature = effectAt(st, parallel ? 0 : (order[n - 1] as number)).boilingPoint;
   }
+  return { product: { massFlow, massFraction, temperature, enthalpy }, enthalpyFlow };
+}
+
+/** Mass, solute and energy balances of the whole train (relative residuals). */
+function trainBalances(
+  spec: TrainSpec,
+  st: TrainState,
+  product: MultipleEffectResult['product'],
+  productEnthalpyFlow: number,
+  condensateEnergy: number,
+  effectResiduals: number[],
+): { balances: MultipleEffectResult['balances']; evaporation: number } {
+  const { n, feedFlow: F, feedFraction: xF, steam } = spec;
+  const z = st.flows;
   let vaporOutEnergy = 0;
   let evaporation = 0;
   for (let i = 0; i < n; i++) {
+    const e = effectAt(st, i);
     evaporation += z[i + 1] as number;
-    const toCondenserOrUsers = i === n - 1 ? (z[i + 1] as number) : (bleed[i] as number);
-    vaporOutEnergy += toCondenserOrUsers * (HV[i] as number);
+    const toCondenserOrUsers = i === n - 1 ? (z[i + 1] as number) : e.bleed;
+    vaporOutEnergy += toCondenserOrUsers * e.vaporEnthalpy;
   }
   const S = z[0] as number;
-  const energyIn = [S * steam.enthalpyIn, F * hFeed];
-  const energyOut = [S * steam.enthalpyOut, condensateOut, vaporOutEnergy, productEnthalpyFlow];
-  const balances = {
-    mass: balanceResidual([F], [productFlow, evaporation]),
-    solute: balanceResidual([F * xF], [productFlow * productX]),
-    energy: balanceResidual(energyIn, energyOut),
-    effects: effBal,
+  const energyIn = [S * steam.enthalpyIn, F * spec.feedEnthalpy];
+  const energyOut = [S * steam.enthalpyOut, condensateEnergy, vaporOutEnergy, productEnthalpyFlow];
+  return {
+    evaporation,
+    balances: {
+      mass: balanceResidual([F], [product.massFlow, evaporation]),
+      solute: balanceResidual([F * xF], [product.massFlow * product.massFraction]),
+      energy: balanceResidual(energyIn, energyOut),
+      effects: effectResiduals,
+    },
   };
+}
 
-  // warnings
-  const feedTargets = parallel ? range(n) : [order[0] as number];
-  for (const e of feedTargets) warnFeedFlash(TfeedIn, Tb[e] as number, warnings, 'feed.temperature');
-  for (let i = 0; i < n; i++) {
-    warnSmallTemperatureDifference(dT[i] as number, warnings, `effects[${i}].temperatureDifference`);
-    warnLargeTemperatureDifference(dT[i] as number, warnings, `effects[${i}].temperatureDifference`);
+/** Warnings of the converged train: feed flash, ΔT too small or large, steam superheat, solubility. */
+function warnTrain(spec: TrainSpec, st: TrainState, product: MultipleEffectResult['product']): void {
+  const { n, warnings } = spec;
+  const feedTargets = spec.parallel ? range(n) : [spec.order[0] as number];
+  for (const i of feedTargets) {
+    warnFeedFlash(spec.feedInTemperature, effectAt(st, i).boilingPoint, warnings, 'feed.temperature');
   }
-  warnLargeSteamSuperheat(steam.superheat, warnings);
-  warnSolubility(liquor, productX, productT, warnings, 'product.massFraction');
-
-  const effects: EffectResult[] = [];
   for (let i = 0; i < n; i++) {
-    const k = order.indexOf(i);
-    const inT = parallel || k === 0 ? TfeedIn : (Tb[order[k - 1] as number] as number);
-    effects.push({
+    const dT = effectAt(st, i).temperatureDifference;
+    warnSmallTemperatureDifference(dT, warnings, `effects[${i}].temperatureDifference`);
+    warnLargeTemperatureDifference(dT, warnings, `effects[${i}].temperatureDifference`);
+  }
+  warnLargeSteamSuperheat(spec.steam.superheat, warnings);
+  warnSolubility(spec.liquor, product.massFraction, product.temperature, warnings, 'product.massFraction');
+}
+
+/** The per-effect results. */
+function effectResults(
+  spec: TrainSpec,
+  st: TrainState,
+  areas: Float64Array,
+  flashVapor: Float64Array,
+): EffectResult[] {
+  const z = st.flows;
+  return st.effects.map((e, i): EffectResult => {
+    const k = spec.position[i] as number;
+    const inT =
+      spec.parallel || k === 0
+        ? spec.feedInTemperature
+        : effectAt(st, spec.order[k - 1] as number).boilingPoint;
+    const heating = i === 0 ? undefined : effectAt(st, i - 1);
+    return {
       number: i + 1,
-      pressure: p[i] as number,
-      vaporTemperature: Tsat[i] as number,
-      boilingPoint: Tb[i] as number,
-      boilingPointRise: bpr[i] as number,
-      temperatureDifference: dT[i] as number,
-      overallHeatTransferCoefficient: U[i] as number,
-      liquorInFlow: Lin[i] as number,
+      pressure: e.pressure,
+      vaporTemperature: e.vaporTemperature,
+      boilingPoint: e.boilingPoint,
+      boilingPointRise: e.boilingPointRise,
+      temperatureDifference: e.temperatureDifference,
+      overallHeatTransferCoefficient: spec.U[i] as number,
+      liquorInFlow: e.liquorIn,
       liquorInTemperature: inT,
-      liquorOutFlow: Lout[i] as number,
-      massFraction: x[i] as number,
+      liquorOutFlow: e.liquorOut,
+      massFraction: e.massFraction,
       vaporFlow: z[i + 1] as number,
-      vaporSuperheat: bpr[i] as number,
-      vaporEnthalpy: HV[i] as number,
-      vaporBleed: bleed[i] as number,
-      flashVapor: flashV[i] as number,
-      duty: Q[i] as number,
-      area: areaOut[i] as number,
-      heatingMedium:
-        i === 0
-          ? { source: 'steam', pressure: steam.pressure, condensingTemperature: Ts }
-          : { source: i, pressure: p[i - 1] as number, condensingTemperature: Tsat[i - 1] as number },
-    });
-  }
-  let totalArea = 0;
-  for (let i = 0; i < n; i++) totalArea += areaOut[i] as number;
+      vaporSuperheat: e.boilingPointRise,
+      vaporEnthalpy: e.vaporEnthalpy,
+      vaporBleed: e.bleed,
+      flashVapor: flashVapor[i] as number,
+      duty: e.duty,
+      area: areas[i] as number,
+      heatingMedium: heating
+        ? { source: i, pressure: heating.pressure, condensingTemperature: heating.vaporTemperature }
+        : { source: 'steam', pressure: spec.steam.pressure, condensingTemperature: spec.steamTemperature },
+    };
+  });
+}
 
+/** The result at the converged point. */
+function assembleResult(spec: TrainSpec, st: TrainState, iterations: number): MultipleEffectResult {
+  const { n, steam, liquor } = spec;
+  const areas = finalEvaluation(spec, st, iterations);
+  const { residual, effects: effectResiduals } = equationResiduals(spec, st, areas);
+  const { flashVapor, energyOut: condensateEnergy } = condensateCascade(spec, st);
+  const { product, enthalpyFlow } = productStream(spec, st);
+  const { balances, evaporation } = trainBalances(
+    spec,
+    st,
+    product,
+    enthalpyFlow,
+    condensateEnergy,
+    effectResiduals,
+  );
+  warnTrain(spec, st, product);
+  const effects = effectResults(spec, st, areas, flashVapor);
+  let totalArea = 0;
+  for (let i = 0; i < n; i++) totalArea += areas[i] as number;
+  const S = st.flows[0] as number;
   const result: MultipleEffectResult = {
-    mode: input.mode,
-    feedArrangement: arrangementName,
-    liquorOrder: order.map((e) => e + 1),
+    mode: spec.input.mode,
+    feedArrangement: spec.arrangementName,
+    liquorOrder: spec.order.map((e) => e + 1),
     effects,
     steam: {
       massFlow: S,
       pressure: steam.pressure,
-      temperature: Ts,
+      temperature: spec.steamTemperature,
       latentHeat: steam.latentHeat,
       heatPerKg: steam.heatPerKg,
     },
@@ -1032,30 +1397,56 @@ export function solveMultipleEffect(input: MultipleEffectInput): MultipleEffectR
     area: totalArea / n,
     evaporation,
     steamEconomy: evaporation / S,
-    product: { massFlow: productFlow, massFraction: productX, temperature: productT, enthalpy: productH },
+    product,
     iterations,
     residual,
     balances,
-    warnings,
+    warnings: spec.warnings,
     cautions: standardCautions({
       liquor,
       steamPressures: [steam.pressure],
-      bodyPressures: Array.from(p),
+      bodyPressures: st.effects.map((e) => e.pressure),
     }),
     sources: [...collectSources(liquor), ...METHOD_SOURCES],
   };
-  if (input.feedPreheat) {
+  if (spec.input.feedPreheat) {
+    const pre = spec.preheatEffect;
+    const bleedEffect = pre >= 0 ? effectAt(st, pre) : undefined;
     result.feedPreheat = {
-      duty: preheatDuty,
-      source: preheatEffect >= 0 ? preheatEffect + 1 : 'external',
-      bleed:
-        preheatEffect >= 0
-          ? preheatDuty / ((HV[preheatEffect] as number) - (hc[preheatEffect] as number))
-          : 0,
-      temperature: TfeedIn,
+      duty: spec.preheatDuty,
+      source: pre >= 0 ? pre + 1 : 'external',
+      bleed: bleedEffect
+        ? spec.preheatDuty / (bleedEffect.vaporEnthalpy - bleedEffect.condensateEnthalpy)
+        : 0,
+      temperature: spec.feedInTemperature,
     };
   }
   return result;
+}
+
+// ---------------------------------------------------------------------------------------------
+// The solver
+// ---------------------------------------------------------------------------------------------
+
+/**
+ * Solves a multiple-effect train: mode 'equal-area' (design for equal areas) or 'given-areas'
+ * (rating). See the module comment for the model, the feed arrangements, the options and the
+ * solver. Three steps: {@link prepareTrain} (validation, feed, preheat), {@link iterateTrain}
+ * (from {@link initialGuess} to the converged temperatures and concentrations) and
+ * {@link assembleResult} (checks, balances, warnings).
+ *
+ * @throws EngineRangeError / EngineInputError for invalid inputs, naming the field
+ * @throws EngineNoSolutionError when no physical solution exists (e.g. the boiling-point rises
+ *   use up the available temperature difference, an effect's ΔT falls below the minimum, a bleed
+ *   takes more vapour than an effect makes, the areas would evaporate all the feed) or when the
+ *   iteration does not converge; never returns NaN.
+ */
+export function solveMultipleEffect(input: MultipleEffectInput): MultipleEffectResult {
+  const spec = prepareTrain(input);
+  const state = newTrainState(spec);
+  initialGuess(spec, state);
+  const iterations = iterateTrain(spec, state);
+  return assembleResult(spec, state, iterations);
 }
 
 /** Design for equal areas: {@link solveMultipleEffect} with mode 'equal-area'. */

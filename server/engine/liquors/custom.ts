@@ -47,13 +47,14 @@ import { EngineInputError } from '../errors.js';
 import { addWarning, type Citation, type EngineWarning, type WarningSink } from '../types.js';
 import {
   IF97,
+  if97CitationFor,
   saturatedLiquidAtTemperature,
   saturationPressure,
   saturationTemperature,
 } from '../steam/if97.js';
 import { fitLine, interpolateLinear, interpolateSlope, lerp, segmentIndex } from '../numeric/interpolate.js';
 import { polyMinimum, polyval } from '../numeric/polynomial.js';
-import type { Interval, LiquorModel, ValidityBox } from './model.js';
+import { defineLiquorModel, type Interval, type LiquorModel, type ValidityBox } from './model.js';
 import { checkAgainst } from './validity.js';
 
 // ---------------------------------------------------------------------------------------------
@@ -170,11 +171,7 @@ const DUHRING: Citation = {
   reference:
     'U. Dühring, "Neue Grundgesetze zur rationellen Physik und Chemie", Leipzig, 1878 (Dühring\'s rule)',
 };
-const IF97_CITATION: Citation = {
-  key: 'iapws-if97',
-  reference:
-    'IAPWS R7-97(2012), Revised Release on the IAPWS Industrial Formulation 1997 for the Thermodynamic Properties of Water and Steam (boiling point of water)',
-};
+const IF97_CITATION: Citation = if97CitationFor('boiling point of water');
 
 // ---------------------------------------------------------------------------------------------
 // Validation
@@ -763,7 +760,7 @@ export function createCustomLiquor(definition: CustomLiquorDefinition): CustomLi
     return noThermal();
   };
 
-  const model: CustomLiquorModel = {
+  const model = defineLiquorModel<CustomLiquorModel>({
     id,
     name: c.name,
     kind: 'custom',
@@ -774,9 +771,8 @@ export function createCustomLiquor(definition: CustomLiquorDefinition): CustomLi
     cautions: [],
     definitionWarnings: c.definitionWarnings,
     boilingPoint,
-    boilingPointRise: (x, p, w) => boilingPoint(x, p, w) - saturationTemperature(p),
     enthalpy,
-  };
+  });
   if (c.cp || c.rows) model.heatCapacity = heatCapacity;
   return model;
 }

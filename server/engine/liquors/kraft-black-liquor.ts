@@ -16,9 +16,9 @@
  *
  * Density and a solubility (burkeite / sodium-salt crystallisation) limit are not provided.
  */
-import { saturationPressure, saturationTemperature, IF97 } from '../steam/if97.js';
+import { saturationPressure, saturationTemperature, IF97, if97CitationFor } from '../steam/if97.js';
 import { KELVIN_OFFSET, type Citation, type WarningSink } from '../types.js';
-import type { Interval, LiquorModel, ValidityBox } from './model.js';
+import { defineLiquorModel, type Interval, type LiquorModel, type ValidityBox } from './model.js';
 import { checkAgainst } from './validity.js';
 import { EngineRangeError } from '../errors.js';
 
@@ -35,17 +35,17 @@ function requireSolids(solidsMassFraction: number): void {
 }
 
 /**
- * Boiling-point rise of kraft black liquor at atmospheric pressure (Frederick 1997):
+ * Boiling-point rise of kraft black liquor at atmospheric pressure (Frederick 1997).
  *
- *   ΔT_atm = 6.173·S − 7.48·S^1.5 + 32.747·S²  (K)
+ *   ΔT_atm = 6.173·S − 7.48·S^1.5 + 32.747·S²   [K]
  *
- * @param solidsMassFraction S, kg dry solids per kg liquor, 0–1
- * @returns ΔT_atm, K (at 101.325 kPa, water boiling at 373.16 K in the source's notation)
- *
- * Validity: given for S up to about 0.5 (from memory); used here with a warning up to 0.85.
+ * Validity: given for S up to about 0.5 (from memory); the model uses it with a warning up to 0.85.
  * Source: W.J. Frederick, "Black liquor properties", ch. 3 in T.N. Adams (ed.), Kraft Recovery
  * Boilers, TAPPI Press 1997 (coefficients from memory).
- * Example: S = 0.5 gives 8.63 K.
+ *
+ * @param solidsMassFraction S, kg dry solids per kg liquor (0–1)
+ * @returns ΔT_atm, K (at 101.325 kPa, water boiling at 373.16 K in the source's notation)
+ * @example frederickAtmosphericBoilingPointRise(0.5) // ≈ 8.63 K
  */
 export function frederickAtmosphericBoilingPointRise(solidsMassFraction: number): number {
   requireSolids(solidsMassFraction);
@@ -54,17 +54,17 @@ export function frederickAtmosphericBoilingPointRise(solidsMassFraction: number)
 }
 
 /**
- * Pressure (boiling-temperature) correction of the black-liquor BPR (Frederick 1997):
+ * Pressure (boiling-temperature) correction of the black-liquor BPR (Frederick 1997).
  *
- *   ΔT(p) = ΔT_atm · [1 + 0.6·(T_b,water − 373.16)/373.16]
- *
- * @param waterBoilingTemperature T_b,water = T_sat(p) of pure water at the liquor's pressure, K
- * @returns the dimensionless factor in square brackets
+ *   ΔT(p) = ΔT_atm·[1 + 0.6·(T_b,water − 373.16)/373.16]
  *
  * Validity: the source's fitted range is not in our notes; the model trusts it for water boiling
  * temperatures of 50–150 °C (the usual multiple-effect train) and warns outside that.
  * Source: as {@link frederickAtmosphericBoilingPointRise} (from memory).
- * Example: T_b,water = 333.15 K (60 °C) gives 0.9357.
+ *
+ * @param waterBoilingTemperature T_b,water = T_sat(p) of pure water at the liquor's pressure, K (> 0)
+ * @returns the dimensionless factor in square brackets
+ * @example frederickBoilingPointRisePressureFactor(333.15) // ≈ 0.9357 (water boiling at 60 °C)
  */
 export function frederickBoilingPointRisePressureFactor(waterBoilingTemperature: number): number {
   if (!Number.isFinite(waterBoilingTemperature) || waterBoilingTemperature <= 0) {
@@ -78,22 +78,23 @@ export function frederickBoilingPointRisePressureFactor(waterBoilingTemperature:
 }
 
 /**
- * Isobaric specific heat capacity of kraft black liquor, ideal-mixture part plus an excess term
- * (as given in Frederick 1997, from memory):
+ * Isobaric specific heat capacity of kraft black liquor: ideal-mixture part plus an excess term
+ * (Frederick 1997).
  *
- *   c_p = 4.216·(1 − S) + (1.675 + 3.31·t/1000)·S + (4.87 − 20·t/1000)·(1 − S)·S³  (kJ/(kg·K))
+ *   c_p = 4.216·(1 − S) + (1.675 + 3.31·t/1000)·S + (4.87 − 20·t/1000)·(1 − S)·S³   [kJ/(kg·K)]
  *
  * 4.216 kJ/(kg·K) stands for water, 1.675 + 3.31·t/1000 for the dry solids; the last term is the
  * excess heat capacity of the non-ideal solution (cf. Zaman, Tavares and Fricke, J. Chem. Eng.
  * Data 41 (1996) 266–271, who measured black-liquor heat capacities at 313–393 K and described
  * them by such an excess term).
  *
- * @param solidsMassFraction S, kg dry solids per kg liquor, 0–1
+ * Validity: black-liquor data roughly 40–150 °C, S up to about 0.8 (from memory).
+ * Source: as {@link frederickAtmosphericBoilingPointRise} (equation from memory).
+ *
+ * @param solidsMassFraction S, kg dry solids per kg liquor (0–1)
  * @param temperatureCelsius t, °C
  * @returns c_p, kJ/(kg·K)
- *
- * Validity: black-liquor data roughly 40–150 °C, S up to about 0.8 (from memory).
- * Example: S = 0.5, t = 80 °C gives 3.28 kJ/(kg·K).
+ * @example blackLiquorHeatCapacityKJPerKgK(0.5, 80) // ≈ 3.28 kJ/(kg·K)
  */
 export function blackLiquorHeatCapacityKJPerKgK(
   solidsMassFraction: number,
@@ -110,18 +111,21 @@ export const BLACK_LIQUOR_ENTHALPY_DATUM_CELSIUS = 0.01;
 
 /**
  * Specific enthalpy of kraft black liquor on the steam-table datum: the exact integral of
- * {@link blackLiquorHeatCapacityKJPerKgK} from 0.01 °C (h = 0 there, as liquid water in IF97):
+ * {@link blackLiquorHeatCapacityKJPerKgK} from 0.01 °C (h = 0 there, as liquid water in IF97).
  *
- *   h = ∫_{0.01 °C}^{t} c_p(S, t′) dt′  (kJ/kg)
+ *   h = ∫_{0.01 °C}^{t} c_p(S, t′) dt′   [kJ/kg]
  *
  * The heat of dilution at the datum is neglected (as for the custom liquors), so h of pure water
  * (S = 0) is 4.216·(t − 0.01), within 2.5 kJ/kg of IF97 up to 100 °C.
  *
- * @param solidsMassFraction S, kg dry solids per kg liquor, 0–1
+ * Validity: as {@link blackLiquorHeatCapacityKJPerKgK}.
+ * Source: as {@link blackLiquorHeatCapacityKJPerKgK}, integrated here.
+ *
+ * @param solidsMassFraction S, kg dry solids per kg liquor (0–1)
  * @param temperatureCelsius t, °C
  * @returns h, kJ/kg
- *
- * Validity and source: as {@link blackLiquorHeatCapacityKJPerKgK}.
+ * @example blackLiquorEnthalpyKJPerKg(0.5, 80) // ≈ 261.25 kJ/kg
+ * @example blackLiquorEnthalpyKJPerKg(0, 80) // → 337.23784 kJ/kg (= 4.216 × 79.99; IF97 h_f(80 °C) is 334.95 kJ/kg)
  */
 export function blackLiquorEnthalpyKJPerKg(solidsMassFraction: number, temperatureCelsius: number): number {
   requireSolids(solidsMassFraction);
@@ -189,11 +193,7 @@ const sources: Citation[] = [
     reference:
       'A.A. Zaman, T.W. McNally, A.L. Fricke, "Vapor pressure and boiling point elevation of slash pine black liquors: predictive models with statistical approach", Industrial & Engineering Chemistry Research 37 (1998) 275–283 (data range and slope change near 65 % solids)',
   },
-  {
-    key: 'iapws-if97',
-    reference:
-      'IAPWS R7-97(2012), Revised Release on the IAPWS Industrial Formulation 1997 for the Thermodynamic Properties of Water and Steam (pure-water saturation temperature)',
-  },
+  if97CitationFor('pure-water saturation temperature'),
 ];
 
 /** Water boiling temperature at p (IF97) and the liquor's rise over it, both K. */
@@ -237,7 +237,7 @@ function checkEnthalpyInputs(massFraction: number, temperature: number, warnings
  * Kraft black liquor (Frederick 1997). boilingPoint = T_sat,IF97(p) + BPR(S, p); the BPR is zero
  * for S = 0 and never negative. enthalpy = ∫ c_p dT from 0.01 °C, kJ → J.
  */
-export const kraftBlackLiquor: LiquorModel = {
+export const kraftBlackLiquor: LiquorModel = defineLiquorModel({
   id: MODEL_ID,
   name: 'Kraft black liquor',
   kind: 'built-in',
@@ -268,6 +268,7 @@ export const kraftBlackLiquor: LiquorModel = {
     return waterBoilingTemperature + rise;
   },
 
+  // Frederick's correlation gives the rise itself: returned as computed, not as boilingPoint − T_sat.
   boilingPointRise(massFraction: number, pressure: number, warnings?: WarningSink): number {
     return riseOverWater(massFraction, pressure, warnings).rise;
   },
@@ -281,4 +282,4 @@ export const kraftBlackLiquor: LiquorModel = {
     const t = checkEnthalpyInputs(massFraction, temperature, warnings);
     return blackLiquorHeatCapacityKJPerKgK(massFraction, t) * KJ;
   },
-};
+});

@@ -9,6 +9,7 @@
  * physically) it pushes a "model-extrapolated" warning into the sink; beyond `limits` it throws
  * an EngineRangeError naming the input and the range. It never clamps silently.
  */
+import { saturationTemperature } from '../steam/if97.js';
 import type { Citation, EngineCaution, WarningSink } from '../types.js';
 
 export interface Interval {
@@ -59,6 +60,29 @@ export interface LiquorModel {
    * limit), when the source gives one; used to warn that a product is near it.
    */
   solubilityLimit?(temperature: number): number;
+}
+
+/**
+ * A model as written: `boilingPointRise` may be left out when it is the default,
+ * boilingPoint(x, p) − T_sat,IF97(p).
+ */
+export type LiquorModelDefinition<M extends LiquorModel = LiquorModel> = Omit<M, 'boilingPointRise'> &
+  Partial<Pick<LiquorModel, 'boilingPointRise'>>;
+
+/**
+ * Builds a liquor model from its definition, supplying the default boiling-point rise
+ * BPR(x, p) = boilingPoint(x, p) − T_sat(p) (IF97 saturation temperature of pure water at p) when
+ * the definition gives none. A model whose source gives the rise directly (not as a boiling point
+ * less T_sat) keeps its own `boilingPointRise`.
+ */
+export function defineLiquorModel<M extends LiquorModel = LiquorModel>(
+  definition: LiquorModelDefinition<M>,
+): M {
+  const boilingPointRise =
+    definition.boilingPointRise ??
+    ((massFraction: number, pressure: number, warnings?: WarningSink): number =>
+      definition.boilingPoint(massFraction, pressure, warnings) - saturationTemperature(pressure));
+  return { ...definition, boilingPointRise } as unknown as M;
 }
 
 /** Public description of a model (what the API lists). */

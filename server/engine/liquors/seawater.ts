@@ -16,16 +16,21 @@
  * Checked against IAPWS-08 (python3-iapws) in tests/engine/liquors/seawater.test.ts.
  */
 import { EngineNoSolutionError, EngineRangeError } from '../errors.js';
-import { saturatedLiquidAtTemperature, saturationPressure, saturationTemperature } from '../steam/if97.js';
+import {
+  if97CitationFor,
+  saturatedLiquidAtTemperature,
+  saturationPressure,
+  saturationTemperature,
+} from '../steam/if97.js';
 import { addWarning, KELVIN_OFFSET, type Citation, type EngineCaution, type WarningSink } from '../types.js';
-import type { Interval, LiquorModel, ValidityBox } from './model.js';
+import { defineLiquorModel, type Interval, type LiquorModel, type ValidityBox } from './model.js';
 import { checkAgainst } from './validity.js';
 
 const MODEL_ID = 'seawater';
 
 /**
  * Boiling-point rise of seawater (Sharqawy et al. 2010, their BPR correlation, fitted to the
- * boiling-point data of Bromley et al., J. Chem. Eng. Data 1974; that data source from memory):
+ * boiling-point data of Bromley et al., J. Chem. Eng. Data 1974; that data source from memory).
  *
  *   BPR = A·S² + B·S   [K],  S in g/kg, t in °C
  *   A = (−4.584e−4·t² + 2.823e−1·t + 17.95)·1e−6
@@ -33,12 +38,16 @@ const MODEL_ID = 'seawater';
  *
  * t is the temperature of the boiling seawater itself (the paper's convention), not the
  * saturation temperature of pure water; {@link seawaterBoilingTemperature} solves that fixed point.
- * Valid 0–200 °C and 0–120 g/kg; stated accuracy ±0.018 K.
+ *
+ * Validity: 0–200 °C and 0–120 g/kg; stated accuracy ±0.018 K.
+ * Source: M.H. Sharqawy, J.H. Lienhard V, S.M. Zubair, "Thermophysical properties of seawater: a
+ * review of existing correlations and data", Desalination and Water Treatment 16 (2010) 354–380.
  *
  * @param massFraction absolute salinity, kg/kg (0–0.12)
  * @param temperature seawater temperature, K (273.15–473.15)
  * @returns boiling-point rise, K
- * @example sharqawyBoilingPointRise(0.035, 333.15) // ≈ 0.40 K at 60 °C
+ * @example sharqawyBoilingPointRise(0.035, 373.15) // ≈ 0.52 K
+ * @example sharqawyBoilingPointRise(0.035, 333.6168) // ≈ 0.402 K (IAPWS-08 through python3-iapws, tests/fixtures/seawater/iapws08-points.json: 0.408 K at 20 kPa, where it boils at 333.6168 K)
  */
 export function sharqawyBoilingPointRise(massFraction: number, temperature: number): number {
   const s = 1000 * massFraction;
@@ -56,20 +65,23 @@ const ENTHALPY_A = [
 
 /**
  * Specific enthalpy of seawater minus that of pure water at the same temperature
- * (Sharqawy et al. 2010, eq. 43, a fit to values computed from IAPWS-08 at 0.1 MPa):
+ * (Sharqawy et al. 2010, eq. 43, a fit to values computed from IAPWS-08 at 0.1 MPa).
  *
  *   h_sw − h_w = −S·(a1 + a2·S + a3·S² + a4·S³ + a5·t + a6·t² + a7·t³ + a8·S·t + a9·S²·t + a10·S·t²)
  *
  * S in kg/kg, t in °C, result in J/kg, with a1…a10 = −2.34825e4, 3.15183e5, 2.80269e6, −1.44606e7,
  * 7.82607e3, −4.41733e1, 2.13940e−1, −1.99108e4, 2.77846e4, 9.72801e1. The paper pairs it with its
  * own pure-water fit h_w(t); Ebullio uses IF97 for h_w instead (see the `seawater` model).
- * Valid 10–120 °C, 0–0.12 kg/kg; stated accuracy ±1.5 % of h_sw. Beyond 120 °C the cubic no longer
- * agrees with the heat-capacity correlation (its slope at 150–180 °C is about three times the
- * salt's cp increment), so the model refuses it there.
  *
- * @param massFraction absolute salinity, kg/kg
- * @param temperature K
+ * Validity: 10–120 °C, 0–0.12 kg/kg; stated accuracy ±1.5 % of h_sw. Beyond 120 °C the cubic no
+ * longer agrees with the heat-capacity correlation (its slope at 150–180 °C is about three times the
+ * salt's c_p increment), so the model refuses it there.
+ * Source: Sharqawy, Lienhard and Zubair (2010), eq. 43 (see {@link sharqawyBoilingPointRise}).
+ *
+ * @param massFraction absolute salinity, kg/kg (0–0.12)
+ * @param temperature K (283.15–393.15)
  * @returns h_sw − h_w, J/kg (negative: dissolved salt lowers the enthalpy)
+ * @example sharqawyEnthalpyDifference(0.035, 333.15) // ≈ -11186 J/kg (IAPWS-08 through python3-iapws, tests/fixtures/seawater/iapws08-points.json: −11151 J/kg)
  */
 export function sharqawyEnthalpyDifference(massFraction: number, temperature: number): number {
   const s = massFraction;
@@ -93,7 +105,7 @@ export function sharqawyEnthalpyDifference(massFraction: number, temperature: nu
 /**
  * Isobaric specific heat capacity of seawater at 0.1 MPa (Sharqawy et al. 2010, their
  * recommended c_p correlation, due to Jamieson, Tudhope, Morris and Cartwright, Desalination 7
- * (1969) 23–30; journal details from memory):
+ * (1969) 23–30; journal details from memory).
  *
  *   c_p = 1000·(A + B·T68 + C·T68² + D·T68³)   [J/(kg·K)],  T68 in K (IPTS-68), S in g/kg
  *   A = 5.328 − 9.76e−2·S + 4.04e−4·S²
@@ -101,12 +113,15 @@ export function sharqawyEnthalpyDifference(massFraction: number, temperature: nu
  *   C = 9.6e−6 − 1.927e−6·S + 8.23e−9·S²
  *   D = 2.5e−9 + 1.666e−9·S − 7.125e−12·S²
  *
- * with T68 = 1.00024·T90 (the review's conversion). Valid 0–180 °C, 0–180 g/kg; stated accuracy
- * ±0.28 %.
+ * with T68 = 1.00024·T90 (the review's conversion).
  *
- * @param massFraction absolute salinity, kg/kg
- * @param temperature K (ITS-90)
+ * Validity: 0–180 °C, 0–180 g/kg; stated accuracy ±0.28 %.
+ * Source: Sharqawy, Lienhard and Zubair (2010) (see {@link sharqawyBoilingPointRise}).
+ *
+ * @param massFraction absolute salinity, kg/kg (0–0.18)
+ * @param temperature K, ITS-90 (273.15–453.15)
  * @returns c_p, J/(kg·K)
+ * @example jamiesonHeatCapacity(0.035, 298.15) // ≈ 4000.8 J/(kg·K) (IAPWS-08 through python3-iapws, tests/fixtures/seawater/iapws08-points.json: 3999.8 J/(kg·K))
  */
 export function jamiesonHeatCapacity(massFraction: number, temperature: number): number {
   const s = 1000 * massFraction;
@@ -121,17 +136,19 @@ export function jamiesonHeatCapacity(massFraction: number, temperature: number):
 /**
  * Density of seawater minus that of pure water at the same temperature (Sharqawy et al. 2010,
  * their density correlation, fitted to the data of Isdale and Morris, Desalination 10 (1972) 329,
- * and of Millero and Poisson, Deep-Sea Research 28A (1981) 625):
+ * and of Millero and Poisson, Deep-Sea Research 28A (1981) 625).
  *
  *   ρ_sw − ρ_w = b1·S + b2·S·t + b3·S·t² + b4·S·t³ + b5·S²·t²   [kg/m³],  S in kg/kg, t in °C
  *   b1…b5 = 8.0200240891e2, −2.0005183488, 1.6771024982e−2, −3.0600536746e−5, −1.6132224742e−5
  *
- * Valid 0–180 °C, 0–0.16 kg/kg at 0.1 MPa; stated accuracy ±0.1 % (for the full ρ_sw with the
+ * Validity: 0–180 °C, 0–0.16 kg/kg at 0.1 MPa; stated accuracy ±0.1 % (for the full ρ_sw with the
  * paper's own ρ_w fit; Ebullio adds this increment to IF97's ρ_w).
+ * Source: Sharqawy, Lienhard and Zubair (2010) (see {@link sharqawyBoilingPointRise}).
  *
- * @param massFraction absolute salinity, kg/kg
- * @param temperature K
+ * @param massFraction absolute salinity, kg/kg (0–0.16)
+ * @param temperature K (273.15–453.15)
  * @returns ρ_sw − ρ_w, kg/m³
+ * @example sharqawyDensityDifference(0.035, 298.15) // ≈ 26.67 kg/m³ (IAPWS-08 through python3-iapws, tests/fixtures/seawater/iapws08-points.json: 26.17 kg/m³, i.e. 0.05 % of ρ_sw)
  */
 export function sharqawyDensityDifference(massFraction: number, temperature: number): number {
   const s = massFraction;
@@ -144,14 +161,20 @@ export function sharqawyDensityDifference(massFraction: number, temperature: num
 
 /**
  * Boiling temperature of seawater at pressure p: the root of
+ *
  *   T = T_sat,IF97(p) + BPR_Sharqawy(S, T),
+ *
  * i.e. the rise evaluated at the seawater's own temperature, as the correlation was fitted.
  * dBPR/dT is below 0.025 (0–200 °C, S ≤ 160 g/kg), so plain fixed-point iteration contracts by
  * that factor per step; it converges to 1e−9 K in a few steps. No range checks here.
  *
- * @param massFraction absolute salinity, kg/kg
+ * Validity: as {@link sharqawyBoilingPointRise}, at pressures whose water boiling point is 0–200 °C.
+ * Source: Sharqawy, Lienhard and Zubair (2010), with T_sat from IAPWS-IF97 (../steam/if97.ts).
+ *
+ * @param massFraction absolute salinity, kg/kg (0–0.12)
  * @param pressure Pa (IF97 saturation range)
  * @returns boiling temperature, K
+ * @example seawaterBoilingTemperature(0.035, 20000) // ≈ 333.610 K (IAPWS-08 through python3-iapws, tests/fixtures/seawater/iapws08-points.json: 333.617 K)
  */
 export function seawaterBoilingTemperature(massFraction: number, pressure: number): number {
   const tWater = saturationTemperature(pressure);
@@ -214,11 +237,7 @@ const sources: Citation[] = [
     reference:
       'M. H. Sharqawy, J. H. Lienhard V, S. M. Zubair, "Thermophysical properties of seawater: a review of existing correlations and data", Desalination and Water Treatment 16 (2010) 354-380',
   },
-  {
-    key: 'iapws-if97',
-    reference:
-      'IAPWS R7-97(2012), Revised Release on the IAPWS Industrial Formulation 1997 for the Thermodynamic Properties of Water and Steam (pure-water parts)',
-  },
+  if97CitationFor('pure-water parts'),
 ];
 
 const cautions: EngineCaution[] = [
@@ -262,7 +281,7 @@ function boilingPoint(massFraction: number, pressure: number, warnings?: Warning
   return seawaterBoilingTemperature(massFraction, pressure);
 }
 
-export const seawater: LiquorModel = {
+export const seawater: LiquorModel = defineLiquorModel({
   id: MODEL_ID,
   name: 'Seawater and desalination brine',
   kind: 'built-in',
@@ -273,10 +292,6 @@ export const seawater: LiquorModel = {
   cautions,
 
   boilingPoint,
-
-  boilingPointRise(massFraction: number, pressure: number, warnings?: WarningSink): number {
-    return boilingPoint(massFraction, pressure, warnings) - saturationTemperature(pressure);
-  },
 
   /** h = h_f,IF97(T) + (h_sw − h_w)_Sharqawy(S, T); IF97 saturated liquid at T, J/kg. */
   enthalpy(massFraction: number, temperature: number, warnings?: WarningSink): number {
@@ -306,4 +321,4 @@ export const seawater: LiquorModel = {
     const water = saturatedLiquidAtTemperature(temperature).density;
     return water + sharqawyDensityDifference(massFraction, temperature);
   },
-};
+});

@@ -14,9 +14,9 @@
  * published NaOH-hydrate solubility correlation at hand. Both optional methods are left out.
  */
 import { EngineRangeError } from '../errors.js';
-import { saturationTemperature, IF97 } from '../steam/if97.js';
+import { saturationTemperature, IF97, if97CitationFor } from '../steam/if97.js';
 import { addWarning, KELVIN_OFFSET, type Citation, type WarningSink } from '../types.js';
-import type { Interval, LiquorModel, ValidityBox } from './model.js';
+import { defineLiquorModel, type Interval, type LiquorModel, type ValidityBox } from './model.js';
 import { polyval } from '../numeric/polynomial.js';
 import { checkAgainst } from './validity.js';
 
@@ -71,19 +71,22 @@ function vaporPressureParameters(waterMassFraction: number): { a1: number; a2: n
 }
 
 /**
- * Vapour pressure of an aqueous NaOH solution (Olsson, Jernqvist and Aly 1997, eq. for p):
+ * Vapour pressure of an aqueous NaOH solution (Olsson, Jernqvist and Aly 1997).
  *
- *   ln(p / kPa) = (a1 + a2·t) / (t − a3),  a1 = Σ_{i=0}^{8} k_i (ln ξ)^i,
- *   a2 = Σ_{i=0}^{10} l_i (ln ξ)^i,  a3 = Σ_{i=0}^{10} m_i (ln ξ)^i
+ *   ln(p/kPa) = (a1 + a2·t)/(t − a3),  a1 = Σ_{i=0}^{8} k_i·(ln ξ)^i,
+ *   a2 = Σ_{i=0}^{10} l_i·(ln ξ)^i,  a3 = Σ_{i=0}^{10} m_i·(ln ξ)^i
+ *
+ * Validity (paper): 0–20 °C ξ ≥ 0.582; 20–60 °C ξ ≥ 0.500; 60–70 °C ξ ≥ 0.353;
+ * 70–150 °C ξ ≥ 0.300; 150–200 °C ξ ≥ 0.200 (see {@link olssonVaporPressureMinWaterFraction}).
+ * Source: J. Olsson, A. Jernqvist, G. Aly, "Thermophysical properties of aqueous NaOH–H2O
+ * solutions at high concentrations", Int. J. Thermophysics 18(3) (1997); coefficients as in
+ * /work/shared/domain.md.
  *
  * @param waterMassFraction ξ, kg water per kg solution (ξ = 1 − x_NaOH), 0 < ξ ≤ 1
  * @param temperatureCelsius t, °C; must lie above the equation's pole t = a3(ξ)
  * @returns p, kPa
- *
- * Validity (paper): 0–20 °C ξ ≥ 0.582; 20–60 °C ξ ≥ 0.500; 60–70 °C ξ ≥ 0.353;
- * 70–150 °C ξ ≥ 0.300; 150–200 °C ξ ≥ 0.200 (see {@link olssonVaporPressureMinWaterFraction}).
- * Source: Int. J. Thermophysics 18(3) 1997; coefficients from /work/shared/domain.md.
- * Example: ξ = 0.5, t = 146.4 °C gives about 101.3 kPa (50 % NaOH boils near 146 °C at 1 atm).
+ * @example olssonVaporPressureKPa(0.5, 146.4) // ≈ 101.4 kPa (50 % NaOH boils near 146 °C at 1 atm)
+ * @example olssonVaporPressureKPa(1, 100) // ≈ 101.57 kPa (IF97 p_sat(100 °C): 101.42 kPa)
  */
 export function olssonVaporPressureKPa(waterMassFraction: number, temperatureCelsius: number): number {
   requireWaterFraction(waterMassFraction);
@@ -103,18 +106,21 @@ export function olssonVaporPressureKPa(waterMassFraction: number, temperatureCel
  * Boiling temperature of an aqueous NaOH solution at pressure p: Olsson's vapour-pressure
  * equation solved for t. With y = ln(p/kPa) the equation y·(t − a3) = a1 + a2·t is linear in t:
  *
- *   t = (a1 + a3·y) / (y − a2)
+ *   t = (a1 + a3·y)/(y − a2)
  *
  * Along t > a3 (the physical branch) ln p rises monotonically from −∞ to a2, so there is exactly
  * one root when y < a2 and none otherwise (then an EngineRangeError is thrown).
  *
- * @param waterMassFraction ξ, kg water per kg solution, 0 < ξ ≤ 1
- * @param pressureKPa p, kPa, > 0
- * @returns t, °C
+ * Validity: as {@link olssonVaporPressureKPa}.
+ * Source: J. Olsson, A. Jernqvist, G. Aly, "Thermophysical properties of aqueous NaOH–H2O
+ * solutions at high concentrations", Int. J. Thermophysics 18(3) (1997); coefficients as in
+ * /work/shared/domain.md.
  *
- * Validity: as {@link olssonVaporPressureKPa}. Source: Olsson, Jernqvist and Aly,
- * Int. J. Thermophysics 18(3) 1997.
- * Example: ξ = 1 (pure water), 101.325 kPa gives 99.93 °C (IF97: 99.97 °C).
+ * @param waterMassFraction ξ, kg water per kg solution, 0 < ξ ≤ 1
+ * @param pressureKPa p, kPa (> 0)
+ * @returns t, °C
+ * @example olssonBoilingTemperatureCelsius(1, 101.325) // ≈ 99.93 °C (IF97 T_sat: 99.974 °C)
+ * @example olssonBoilingTemperatureCelsius(0.5, 101.325) // ≈ 146.38 °C
  */
 export function olssonBoilingTemperatureCelsius(waterMassFraction: number, pressureKPa: number): number {
   requireWaterFraction(waterMassFraction);
@@ -139,23 +145,26 @@ export function olssonBoilingTemperatureCelsius(waterMassFraction: number, press
 }
 
 /**
- * Specific enthalpy of an aqueous NaOH solution (Olsson, Jernqvist and Aly 1997):
+ * Specific enthalpy of an aqueous NaOH solution (Olsson, Jernqvist and Aly 1997).
  *
- *   h = c1 + c2·t + c3·t² + c4·t³  (kJ/kg)
- *   c1 = (k0 + k2ξ + k4ξ² + k6ξ³) / (1 + k1ξ + k3ξ² + k5ξ³ + k7ξ⁴)
- *   c2 = Σ_{i=0}^{8} l_i ξ^i,  c3 = Σ_{i=0}^{7} m_i ξ^i,  c4 = Σ_{i=0}^{7} n_i ξ^i
+ *   h = c1 + c2·t + c3·t² + c4·t³   [kJ/kg]
+ *   c1 = (k0 + k2ξ + k4ξ² + k6ξ³)/(1 + k1ξ + k3ξ² + k5ξ³ + k7ξ⁴)
+ *   c2 = Σ_{i=0}^{8} l_i·ξ^i,  c3 = Σ_{i=0}^{7} m_i·ξ^i,  c4 = Σ_{i=0}^{7} n_i·ξ^i
  *
- * Datum as the steam tables (liquid water at the triple point); at ξ = 1 and 25 °C the fit gives
- * 104.66 kJ/kg against IF97's 104.84 kJ/kg.
+ * Datum as the steam tables (liquid water at the triple point).
+ *
+ * Validity (paper, ξ lower bound by t): 0–4 °C 0.78; 4–10 0.68; 10–15 0.58; 15–26 0.54;
+ * 26–37 0.44; 37–48 0.40; 48–60 0.34; 60–71 0.30; 71–82 0.28; 82–93 0.24; 93–204 0.22
+ * (see {@link olssonEnthalpyMinWaterFraction}).
+ * Source: J. Olsson, A. Jernqvist, G. Aly, "Thermophysical properties of aqueous NaOH–H2O
+ * solutions at high concentrations", Int. J. Thermophysics 18(3) (1997); coefficients as in
+ * /work/shared/domain.md.
  *
  * @param waterMassFraction ξ, kg water per kg solution, 0 < ξ ≤ 1
  * @param temperatureCelsius t, °C
  * @returns h, kJ/kg
- *
- * Validity (paper, ξ lower bound by t): 0–4 °C 0.78; 4–10 0.68; 10–15 0.58; 15–26 0.54;
- * 26–37 0.44; 37–48 0.40; 48–60 0.34; 60–71 0.30; 71–82 0.28; 82–93 0.24; 93–204 0.22
- * (see {@link olssonEnthalpyMinWaterFraction}). Source: Int. J. Thermophysics 18(3) 1997.
- * Example: ξ = 0.5, t = 89.5 °C gives about 508 kJ/kg.
+ * @example olssonEnthalpyKJPerKg(1, 25) // ≈ 104.66 kJ/kg (IF97 h_f(25 °C): 104.84 kJ/kg)
+ * @example olssonEnthalpyKJPerKg(0.5, 89.5) // ≈ 507.6 kJ/kg
  */
 export function olssonEnthalpyKJPerKg(waterMassFraction: number, temperatureCelsius: number): number {
   requireWaterFraction(waterMassFraction);
@@ -169,17 +178,22 @@ export function olssonEnthalpyKJPerKg(waterMassFraction: number, temperatureCels
 
 /**
  * Isobaric specific heat capacity of an aqueous NaOH solution: the temperature derivative of
- * Olsson's own enthalpy fit (this is their model, not a separate correlation):
+ * Olsson's own enthalpy fit (this is their model, not a separate correlation).
  *
- *   c_p = ∂h/∂t = c2 + 2·c3·t + 3·c4·t²  (kJ/(kg·K))
+ *   c_p = ∂h/∂t = c2 + 2·c3·t + 3·c4·t²   [kJ/(kg·K)]
+ *
+ * Being a derivative of a fit, it is less accurate than h itself; for pure water it runs about 2 %
+ * high at 25 °C and 4 % at 150 °C.
+ *
+ * Validity: as {@link olssonEnthalpyKJPerKg}.
+ * Source: J. Olsson, A. Jernqvist, G. Aly, "Thermophysical properties of aqueous NaOH–H2O
+ * solutions at high concentrations", Int. J. Thermophysics 18(3) (1997); coefficients as in
+ * /work/shared/domain.md.
  *
  * @param waterMassFraction ξ, kg water per kg solution, 0 < ξ ≤ 1
  * @param temperatureCelsius t, °C
  * @returns c_p, kJ/(kg·K)
- *
- * Validity and source: as {@link olssonEnthalpyKJPerKg}. Being a derivative of a fit, it is less
- * accurate than h itself; for pure water it runs about 2 % high at 25 °C and 4 % at 150 °C.
- * Example: ξ = 0.5, t = 50 °C gives about 3.22 kJ/(kg·K).
+ * @example olssonHeatCapacityKJPerKgK(0.5, 50) // ≈ 3.22 kJ/(kg·K)
  */
 export function olssonHeatCapacityKJPerKgK(waterMassFraction: number, temperatureCelsius: number): number {
   requireWaterFraction(waterMassFraction);
@@ -220,9 +234,21 @@ function staircaseMinimum(steps: readonly (readonly [number, number])[], t: numb
 }
 
 /**
- * Lowest water mass fraction ξ at which Olsson et al. (1997) had vapour-pressure data at t (°C).
- * Outside these steps the vapour-pressure equation is extrapolated. Above 200 °C the last step
- * (ξ ≥ 0.200) is returned; the temperature itself is then outside the data.
+ * Lowest water mass fraction ξ at which Olsson et al. (1997) had vapour-pressure data at t. Outside
+ * these steps the vapour-pressure equation is extrapolated. On a step boundary the looser (lower)
+ * bound applies; above 200 °C the last step (ξ ≥ 0.200) is returned, the temperature itself then
+ * being outside the data.
+ *
+ *   ξ_min(t) = 0.582 (0–20 °C), 0.500 (20–60), 0.353 (60–70), 0.300 (70–150), 0.200 (150–200)
+ *
+ * Validity: any t (the staircase is the validity statement itself).
+ * Source: J. Olsson, A. Jernqvist, G. Aly, "Thermophysical properties of aqueous NaOH–H2O
+ * solutions at high concentrations", Int. J. Thermophysics 18(3) (1997); coefficients as in
+ * /work/shared/domain.md.
+ *
+ * @param temperatureCelsius t, °C
+ * @returns ξ_min, kg water per kg solution
+ * @example olssonVaporPressureMinWaterFraction(65) // → 0.353 (the paper's 60–70 °C step)
  */
 export function olssonVaporPressureMinWaterFraction(temperatureCelsius: number): number {
   const t = temperatureCelsius;
@@ -235,8 +261,20 @@ export function olssonVaporPressureMinWaterFraction(temperatureCelsius: number):
 }
 
 /**
- * Lowest water mass fraction ξ at which Olsson et al. (1997) had enthalpy data at t (°C).
- * Above 204 °C the last step (ξ ≥ 0.22) is returned.
+ * Lowest water mass fraction ξ at which Olsson et al. (1997) had enthalpy data at t. On a step
+ * boundary the looser (lower) bound applies; above 204 °C the last step (ξ ≥ 0.22) is returned.
+ *
+ *   ξ_min(t) = 0.78 (0–4 °C), 0.68 (4–10), 0.58 (10–15), 0.54 (15–26), 0.44 (26–37), 0.40 (37–48),
+ *              0.34 (48–60), 0.30 (60–71), 0.28 (71–82), 0.24 (82–93), 0.22 (93–204)
+ *
+ * Validity: any t (the staircase is the validity statement itself).
+ * Source: J. Olsson, A. Jernqvist, G. Aly, "Thermophysical properties of aqueous NaOH–H2O
+ * solutions at high concentrations", Int. J. Thermophysics 18(3) (1997); coefficients as in
+ * /work/shared/domain.md.
+ *
+ * @param temperatureCelsius t, °C
+ * @returns ξ_min, kg water per kg solution
+ * @example olssonEnthalpyMinWaterFraction(50) // → 0.34 (the paper's 48–60 °C step)
  */
 export function olssonEnthalpyMinWaterFraction(temperatureCelsius: number): number {
   const t = temperatureCelsius;
@@ -298,11 +336,7 @@ const sources: Citation[] = [
     reference:
       'M. Olsson, Å. Jernqvist, G. Aly, "Thermophysical properties of aqueous NaOH–H2O solutions at high concentrations", International Journal of Thermophysics 18(3) (1997)',
   },
-  {
-    key: 'iapws-if97',
-    reference:
-      'IAPWS R7-97(2012), Revised Release on the IAPWS Industrial Formulation 1997 for the Thermodynamic Properties of Water and Steam (pure-water saturation temperature for the boiling-point rise)',
-  },
+  if97CitationFor('pure-water saturation temperature for the boiling-point rise'),
 ];
 
 function checkMassFraction(x: number, warnings: WarningSink): void {
@@ -378,11 +412,13 @@ function checkEnthalpyInputs(massFraction: number, temperature: number, warnings
  *   equation solved for t (no iteration) at the solution's and at pure water's composition, so
  *   the rise comes from one correlation and the fit's pure-water error (−0.04 K at 101.325 kPa,
  *   −0.14 K at 5 kPa against IF97) cancels; the rise is 0 at x = 0 and never negative.
- * - boilingPoint(x, p) = T_sat,IF97(p) + boilingPointRise(x, p): the liquor boiling point the
- *   rest of the engine uses with IF97 vapour properties (T − T_sat is the vapour's superheat).
+ * - boilingPoint(x, p) = T_sat,IF97(p) + that rise: the liquor boiling point the rest of the
+ *   engine uses with IF97 vapour properties (T − T_sat is the vapour's superheat). The model's
+ *   boilingPointRise is the default of {@link defineLiquorModel}, boilingPoint − T_sat, which
+ *   returns the rise taken within Olsson's correlation.
  * - enthalpy, heatCapacity: Olsson's enthalpy polynomial and its t-derivative, kJ → J.
  */
-export const sodiumHydroxide: LiquorModel = {
+export const sodiumHydroxide: LiquorModel = defineLiquorModel({
   id: MODEL_ID,
   name: 'Sodium hydroxide solution (caustic soda)',
   kind: 'built-in',
@@ -410,10 +446,6 @@ export const sodiumHydroxide: LiquorModel = {
 
   boilingPoint,
 
-  boilingPointRise(massFraction: number, pressure: number, warnings?: WarningSink): number {
-    return boilingPoint(massFraction, pressure, warnings) - saturationTemperature(pressure);
-  },
-
   enthalpy(massFraction: number, temperature: number, warnings?: WarningSink): number {
     const t = checkEnthalpyInputs(massFraction, temperature, warnings);
     return olssonEnthalpyKJPerKg(1 - massFraction, t) * KJ;
@@ -423,4 +455,4 @@ export const sodiumHydroxide: LiquorModel = {
     const t = checkEnthalpyInputs(massFraction, temperature, warnings);
     return olssonHeatCapacityKJPerKgK(1 - massFraction, t) * KJ;
   },
-};
+});

@@ -8,9 +8,14 @@
  * {@link LiquorModel} `sucrose`, which applies the validity rule.
  */
 import { EngineNoSolutionError, EngineRangeError } from '../errors.js';
-import { saturatedLiquidAtTemperature, saturationPressure, saturationTemperature } from '../steam/if97.js';
+import {
+  if97CitationFor,
+  saturatedLiquidAtTemperature,
+  saturationPressure,
+  saturationTemperature,
+} from '../steam/if97.js';
 import { addWarning, KELVIN_OFFSET, type Citation, type EngineCaution, type WarningSink } from '../types.js';
-import type { Interval, LiquorModel, ValidityBox } from './model.js';
+import { defineLiquorModel, type Interval, type LiquorModel, type ValidityBox } from './model.js';
 import { checkAgainst } from './validity.js';
 import { brent } from '../numeric/roots.js';
 
@@ -23,7 +28,18 @@ export const WATER_MOLAR_MASS = 0.018015;
 /** Molar gas constant, J/(mol·K) (CODATA 2018, exact). */
 const GAS_CONSTANT = 8.314462618;
 
-/** Mole fraction of sucrose in a solution of mass fraction x. */
+/**
+ * Mole fraction of sucrose in a solution of mass fraction x.
+ *
+ *   x_s = (x/M_s)/(x/M_s + (1 − x)/M_w),  M_s = 342.30 g/mol, M_w = 18.015 g/mol
+ *
+ * Validity: 0 ≤ x < 1.
+ * Source: definition; molar masses as Starzak and Peacock (1997) use them.
+ *
+ * @param massFraction x, kg sucrose per kg solution
+ * @returns x_s, mol sucrose per mol solution
+ * @example sucroseMoleFraction(0.2550) // ≈ 0.017695 (about 1 mol/kg, for which x_s = 1/(1 + 1000/18.015) = 0.017696)
+ */
 export function sucroseMoleFraction(massFraction: number): number {
   const ns = massFraction / SUCROSE_MOLAR_MASS;
   const nw = (1 - massFraction) / WATER_MOLAR_MASS;
@@ -31,19 +47,22 @@ export function sucroseMoleFraction(massFraction: number): number {
 }
 
 /**
- * Activity coefficient of water in aqueous sucrose (Starzak and Peacock, "Water activity
- * coefficient in aqueous solutions of sucrose — a comprehensive data analysis",
- * Zuckerindustrie 122 (1997) 380–387; page numbers from memory):
+ * Activity coefficient of water in aqueous sucrose (Starzak and Peacock 1997).
  *
- *   ln γ_w = (Q / (R·T))·(1 + a·x_s + b·x_s²)·x_s²
+ *   ln γ_w = (Q/(R·T))·(1 + a·x_s + b·x_s²)·x_s²
  *
- * x_s = mole fraction of sucrose (M = 342.30 g/mol, water 18.015 g/mol), T in K,
- * Q = −17638 J/mol, a = −1.0038, b = −0.24653. Fitted to a century of vapour-pressure, boiling-point,
- * osmotic and freezing-point data; validity (from memory) about 0–90 % sucrose by mass, 0–120 °C.
+ * x_s = mole fraction of sucrose ({@link sucroseMoleFraction}), Q = −17638 J/mol, a = −1.0038,
+ * b = −0.24653. Fitted to a century of vapour-pressure, boiling-point, osmotic and freezing-point
+ * data.
  *
- * @param massFraction mass fraction of sucrose, kg/kg
- * @param temperature K
+ * Validity: about 0–90 % sucrose by mass, 0–120 °C (from memory).
+ * Source: Z. Starzak, S.D. Peacock, "Water activity coefficient in aqueous solutions of sucrose —
+ * a comprehensive data analysis", Zuckerindustrie 122 (1997) 380–387 (page numbers from memory).
+ *
+ * @param massFraction x, kg sucrose per kg solution
+ * @param temperature T, K
  * @returns γ_w (dimensionless, < 1)
+ * @example starzakPeacockWaterActivityCoefficient(0.2550, 298.15) // ≈ 0.99781
  */
 export function starzakPeacockWaterActivityCoefficient(massFraction: number, temperature: number): number {
   const xs = sucroseMoleFraction(massFraction);
@@ -54,13 +73,18 @@ export function starzakPeacockWaterActivityCoefficient(massFraction: number, tem
 }
 
 /**
- * Water activity a_w = γ_w·(1 − x_s) of aqueous sucrose (Starzak and Peacock 1997, see
- * {@link starzakPeacockWaterActivityCoefficient}).
+ * Water activity of aqueous sucrose (Starzak and Peacock 1997).
  *
- * @param massFraction mass fraction of sucrose, kg/kg
- * @param temperature K
+ *   a_w = γ_w·(1 − x_s)   (γ_w from {@link starzakPeacockWaterActivityCoefficient})
+ *
+ * Validity: as {@link starzakPeacockWaterActivityCoefficient}.
+ * Source: Z. Starzak, S.D. Peacock, "Water activity coefficient in aqueous solutions of sucrose —
+ * a comprehensive data analysis", Zuckerindustrie 122 (1997) 380–387 (page numbers from memory).
+ *
+ * @param massFraction x, kg sucrose per kg solution
+ * @param temperature T, K
  * @returns a_w (dimensionless, 0–1)
- * @example starzakPeacockWaterActivity(0.2550, 298.15) // 1 mol/kg: ≈ 0.980
+ * @example starzakPeacockWaterActivity(0.2550, 298.15) // 1 mol/kg: ≈ 0.980 (Robinson and Stokes, Electrolyte Solutions, 2nd ed. 1959, appendix table: 0.9806)
  */
 export function starzakPeacockWaterActivity(massFraction: number, temperature: number): number {
   return (
@@ -84,10 +108,16 @@ export function starzakPeacockWaterActivity(massFraction: number, temperature: n
  * reduced their boiling-point data the same way is not known here; the method is kept as the
  * domain note prescribes it.
  *
- * @param massFraction mass fraction of sucrose, kg/kg
- * @param pressure Pa
+ * Validity: as {@link starzakPeacockWaterActivityCoefficient}, at pressures in the IF97 saturation
+ * range.
+ * Source: Z. Starzak, S.D. Peacock, "Water activity coefficient in aqueous solutions of sucrose —
+ * a comprehensive data analysis", Zuckerindustrie 122 (1997) 380–387 (page numbers from memory). IF97 p_sat from ../steam/if97.ts.
+ *
+ * @param massFraction x, kg sucrose per kg solution
+ * @param pressure p, Pa
  * @param maxTemperature upper end of the search, K (default 600 K)
  * @returns boiling temperature, K
+ * @example sucroseBoilingTemperature(0.6, 101325) // ≈ 376.062 K (a rise of 2.94 K over IF97's 373.124 K)
  */
 export function sucroseBoilingTemperature(
   massFraction: number,
@@ -119,18 +149,22 @@ export function sucroseBoilingTemperature(
 const PURITY = 100;
 
 /**
- * Specific heat capacity of sugar solutions (Lyle, "Technology for Sugar Refinery Workers",
- * Chapman & Hall, 3rd ed. 1957, as quoted in sugar-technology handbooks; equation from memory):
+ * Specific heat capacity of sugar solutions (Lyle 1957).
  *
  *   c_p = 4.1868 − 0.0297·B + 4.6e−5·P·B + 7.5e−5·B·t   [kJ/(kg·K)]
  *
  * B = dry substance, °Bx (100·x); P = purity, % (100 for pure sucrose); t in °C. Linear in t, so
- * enthalpy integrates analytically. Validity (from memory): about 0–80 °Bx, 0–100 °C, accuracy of
- * the order of 1–2 %.
+ * enthalpy integrates analytically.
  *
- * @param massFraction mass fraction of sucrose, kg/kg
- * @param temperature K
+ * Validity: about 0–80 °Bx, 0–100 °C, accuracy of the order of 1–2 % (from memory).
+ * Source: O. Lyle, Technology for Sugar Refinery Workers, 3rd ed., Chapman & Hall (1957), as quoted
+ * in sugar-technology handbooks (equation from memory).
+ *
+ * @param massFraction x, kg sucrose per kg solution
+ * @param temperature T, K
  * @returns c_p, J/(kg·K)
+ * @example lyleHeatCapacity(0, 330) // → 4186.8 J/(kg·K) (pure water: 1 cal_IT/(g·K))
+ * @example lyleHeatCapacity(0.6, 353.15) // ≈ 3040.8 J/(kg·K)
  */
 export function lyleHeatCapacity(massFraction: number, temperature: number): number {
   const bx = 100 * massFraction;
@@ -143,7 +177,8 @@ const DATUM_TEMPERATURE = 273.16;
 
 /**
  * Enthalpy of aqueous sucrose minus that of pure water at the same temperature, from Lyle's c_p
- * integrated from the steam-table datum (liquid at 273.16 K, where both are taken as zero):
+ * ({@link lyleHeatCapacity}) integrated from the steam-table datum (liquid at 273.16 K, where both
+ * are taken as zero).
  *
  *   Δh = ∫ [c_p(x, t) − c_p(0, t)] dt  from 0.01 °C to t
  *      = 1000·B·[(−0.0297 + 4.6e−5·P)·(t − 0.01) + 7.5e−5·(t² − 0.01²)/2]   [J/kg]
@@ -153,9 +188,13 @@ const DATUM_TEMPERATURE = 273.16;
  * Gibbs energy, implies an excess enthalpy of a few kJ/kg at 60–70 °Bx (our estimate), about 1 %
  * of the sensible enthalpy at evaporator temperatures.
  *
- * @param massFraction mass fraction of sucrose, kg/kg
- * @param temperature K
+ * Validity: as {@link lyleHeatCapacity}.
+ * Source: Lyle (1957) (see {@link lyleHeatCapacity}), integrated here.
+ *
+ * @param massFraction x, kg sucrose per kg solution
+ * @param temperature T, K
  * @returns h − h_w, J/kg
+ * @example lyleEnthalpyDifference(0.6, 353.15) // ≈ -106065 J/kg
  */
 export function lyleEnthalpyDifference(massFraction: number, temperature: number): number {
   const bx = 100 * massFraction;
@@ -165,17 +204,19 @@ export function lyleEnthalpyDifference(massFraction: number, temperature: number
 }
 
 /**
- * Solubility of pure sucrose in water (Vavrinecz, "Neue Tabelle über die Löslichkeit reiner
- * Saccharose in Wasser", Zeitschrift für die Zuckerindustrie 12 (1962) 481–487; the solubility
- * equation in general use in sugar technology; coefficients from memory):
+ * Solubility of pure sucrose in water (Vavrinecz 1962, the solubility equation in general use in
+ * sugar technology).
  *
- *   w = 64.447 + 0.08222·t + 1.6169e−3·t² − 1.558e−6·t³ − 4.63e−8·t⁴   [g sucrose / 100 g solution]
+ *   w = 64.447 + 0.08222·t + 1.6169e−3·t² − 1.558e−6·t³ − 4.63e−8·t⁴   [g sucrose/100 g solution]
  *
- * t in °C, valid 0–100 °C. Above about 130 °C the quartic turns over, so the model refuses it there.
+ * Validity: 0–100 °C (t in °C). Above about 130 °C the quartic turns over, so the model refuses it
+ * there.
+ * Source: G. Vavrinecz, "Neue Tabelle über die Löslichkeit reiner Saccharose in Wasser",
+ * Zeitschrift für die Zuckerindustrie 12 (1962) 481–487 (coefficients from memory).
  *
- * @param temperature K
+ * @param temperature T, K
  * @returns mass fraction of sucrose in the saturated solution, kg/kg
- * @example vavrineczSolubility(293.15) // ≈ 0.667
+ * @example vavrineczSolubility(293.15) // ≈ 0.667 (Mohos, Confectionery and Chocolate Engineering, 2010, Table A2.3: 67.09 % at 20 °C)
  */
 export function vavrineczSolubility(temperature: number): number {
   const t = temperature - KELVIN_OFFSET;
@@ -233,11 +274,7 @@ const sources: Citation[] = [
     reference:
       'G. Vavrinecz, "Neue Tabelle über die Löslichkeit reiner Saccharose in Wasser", Zeitschrift für die Zuckerindustrie 12 (1962) 481-487',
   },
-  {
-    key: 'iapws-if97',
-    reference:
-      'IAPWS R7-97(2012), Revised Release on the IAPWS Industrial Formulation 1997 for the Thermodynamic Properties of Water and Steam (water vapour pressure and pure-water parts)',
-  },
+  if97CitationFor('water vapour pressure and pure-water parts'),
 ];
 
 const cautions: EngineCaution[] = [
@@ -292,7 +329,7 @@ function boilingPoint(massFraction: number, pressure: number, warnings?: Warning
   return t;
 }
 
-export const sucrose: LiquorModel = {
+export const sucrose: LiquorModel = defineLiquorModel({
   id: MODEL_ID,
   name: 'Sucrose solution (sugar juice and syrup)',
   kind: 'built-in',
@@ -303,10 +340,6 @@ export const sucrose: LiquorModel = {
   cautions,
 
   boilingPoint,
-
-  boilingPointRise(massFraction: number, pressure: number, warnings?: WarningSink): number {
-    return boilingPoint(massFraction, pressure, warnings) - saturationTemperature(pressure);
-  },
 
   /** h = h_f,IF97(T) + Δh_Lyle(x, T): IF97 saturated liquid at T plus the sucrose increment, J/kg. */
   enthalpy(massFraction: number, temperature: number, warnings?: WarningSink): number {
@@ -339,4 +372,4 @@ export const sucrose: LiquorModel = {
     checkAgainst(MODEL_ID, 'temperature', temperature, 'K', SOLUBILITY_VALIDITY, SOLUBILITY_LIMITS, warnings);
     return vavrineczSolubility(temperature);
   },
-};
+});

@@ -1,7 +1,7 @@
 /**
  * Ebullio's one adapter to IAPWS-IF97: IAPWS R7-97(2012), "Revised Release on the IAPWS
  * Industrial Formulation 1997 for the Thermodynamic Properties of Water and Steam" (IAPWS,
- * Lucerne, 2007, revised 2012); W. Wagner et al., "The IAPWS Industrial Formulation 1997 for the
+ * Lucerne, 2007, revised 2012; cited in results as {@link IF97_CITATION}); W. Wagner et al., "The IAPWS Industrial Formulation 1997 for the
  * Thermodynamic Properties of Water and Steam", J. Eng. Gas Turbines Power 122 (2000) 150–182.
  *
  * The equations themselves come from the npm package `@neutrium/thermo.eos.iapws97` 2.0.2
@@ -34,6 +34,7 @@
  */
 import { createRequire } from 'node:module';
 import { EngineNoSolutionError, EngineRangeError } from '../errors.js';
+import type { Citation } from '../types.js';
 
 const require = createRequire(import.meta.url);
 
@@ -133,6 +134,28 @@ const {
 
 /** p_s(647.095 K) by eq. 30, Pa: the highest pressure with saturated states (≈ 22.0637 MPa). */
 const MAX_SATURATION_STATE_PRESSURE = PT.r4_T_Psat(647.095) * 1e6;
+
+/** Title of the IAPWS release this module implements. */
+const IF97_RELEASE =
+  'IAPWS R7-97(2012), Revised Release on the IAPWS Industrial Formulation 1997 for the Thermodynamic Properties of Water and Steam';
+
+/**
+ * The citation of IAPWS-IF97, defined once: every result that uses water or steam properties
+ * (evaporators, liquor models, the steam routes) cites it through this constant or
+ * {@link if97CitationFor}.
+ */
+export const IF97_CITATION: Citation = {
+  key: 'iapws-if97',
+  reference: `${IF97_RELEASE}, International Association for the Properties of Water and Steam (2012)`,
+};
+
+/**
+ * {@link IF97_CITATION} with what a liquor model takes from it, e.g.
+ * `if97CitationFor('pure-water parts')` (same key, so results list IF97 once).
+ */
+export function if97CitationFor(use: string): Citation {
+  return { key: IF97_CITATION.key, reference: `${IF97_RELEASE} (${use})` };
+}
 
 /** IF97 constants (R7-97(2012), sections 2–4 and 6). */
 export const IF97 = {
@@ -313,8 +336,15 @@ function singlePhase(region: Region, pressure: number, temperature: number, dens
 }
 
 /**
- * Saturation temperature T_s(p), IF97 eq. 31 (the backward form of the saturation-pressure
- * equation), R7-97(2012) section 8.2. p in Pa, result in K. Valid 611.213 Pa to 22.064 MPa.
+ * Saturation temperature T_s(p): IF97 eq. 31, the backward form of the saturation-pressure
+ * equation (R7-97(2012) section 8.2).
+ *
+ * Validity: 611.213 Pa to 22.064 MPa.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ *
+ * @param pressure p, Pa
+ * @returns T_s, K
+ * @example saturationTemperature(1e5) // → 372.755919 K (R7-97(2012) Table 36)
  */
 export function saturationTemperature(pressure: number): number {
   checkRange('pressure', pressure, 'Pa', IF97.minPressure, IF97.criticalPressure);
@@ -322,15 +352,33 @@ export function saturationTemperature(pressure: number): number {
 }
 
 /**
- * Saturation pressure p_s(T), IF97 eq. 30, R7-97(2012) section 8.1. T in K, result in Pa.
- * Valid 273.15 K to 647.096 K.
+ * Saturation pressure p_s(T): IF97 eq. 30 (R7-97(2012) section 8.1).
+ *
+ * Validity: 273.15 K to 647.096 K.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ *
+ * @param temperature T, K
+ * @returns p_s, Pa
+ * @example saturationPressure(500) // → 2638897.76 Pa (R7-97(2012) Table 35: 2.63889776 MPa)
  */
 export function saturationPressure(temperature: number): number {
   checkRange('temperature', temperature, 'K', IF97.minTemperature, IF97.criticalTemperature);
   return PT.r4_T_Psat(temperature) * MPA;
 }
 
-/** Region of a (p, T) state by the IF97 boundaries (R7-97(2012) figure 1 and eq. 5). */
+/**
+ * Region of a single-phase (p, T) state by the IF97 boundaries: 1 (liquid), 2 (vapour), 3 (near
+ * critical) or 5 (high temperature); the B23 boundary (eq. 5) separates regions 2 and 3.
+ *
+ * Validity: 273.15–1073.15 K at 0 < p ≤ 100 MPa, 1073.15–2273.15 K at 0 < p ≤ 50 MPa.
+ * Source: IAPWS R7-97(2012) figure 1 and eq. 5 ({@link IF97_CITATION}).
+ *
+ * @param pressure p, Pa
+ * @param temperature T, K
+ * @returns the region number
+ * @example regionAtPT(3e6, 300) // → 1 (R7-97(2012) Table 5 point)
+ * @example regionAtPT(3500, 700) // → 2 (R7-97(2012) Table 15 point)
+ */
 export function regionAtPT(pressure: number, temperature: number): Exclude<Region, 4> {
   checkRange('temperature', temperature, 'K', IF97.minTemperature, IF97.maxTemperatureRegion5);
   if (temperature > IF97.maxTemperature) {
@@ -409,10 +457,18 @@ function rawAtPT(pressure: number, temperature: number): { raw: RawState; region
 }
 
 /**
- * Single-phase state at (p, T), Pa and K: IF97 basic equations of regions 1, 2, 3 (density
- * iterated, see {@link region3Density}) and 5. On the saturation line region 1 (liquid) is
- * returned. Valid 273.15–1073.15 K at 0 < p ≤ 100 MPa, 1073.15–2273.15 K at 0 < p ≤ 50 MPa.
- * The returned pressure is the input pressure (in region 3, p(ρ, T) matches it to 1e-11).
+ * Single-phase state at (p, T): IF97 basic equations of regions 1, 2, 3 (density iterated, see
+ * {@link region3Density}) and 5. On the saturation line region 1 (liquid) is returned. The
+ * returned pressure is the input pressure (in region 3, p(ρ, T) matches it to 1e-11).
+ *
+ * Validity: 273.15–1073.15 K at 0 < p ≤ 100 MPa, 1073.15–2273.15 K at 0 < p ≤ 50 MPa.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ *
+ * @param pressure p, Pa
+ * @param temperature T, K
+ * @param options transport properties on or off (default on)
+ * @returns the state, SI
+ * @example stateAtPT(3e6, 300).enthalpy // → 115331.273 J/kg (R7-97(2012) Table 5: 0.115331273e3 kJ/kg)
  */
 export function stateAtPT(pressure: number, temperature: number, options: StateOptions = {}): WaterState {
   const { raw, region } = rawAtPT(pressure, temperature);
@@ -422,9 +478,17 @@ export function stateAtPT(pressure: number, temperature: number, options: StateO
 }
 
 /**
- * Region 3 state at (ρ, T), IF97 eq. 28 (the Helmholtz free energy of region 3), the form in
- * which R7-97(2012) Table 33 is printed. ρ in kg/m³, T in K. Valid where the state lies in
- * region 3: 623.15 K ≤ T ≤ 863.15 K and p(ρ, T) ≥ the B23 boundary pressure, p ≤ 100 MPa.
+ * Region 3 state at (ρ, T): IF97 eq. 28 (the Helmholtz free energy of region 3), the form in which
+ * R7-97(2012) Table 33 is printed.
+ *
+ * Validity: where the state lies in region 3: 623.15 K ≤ T ≤ 863.15 K and p(ρ, T) at or above the
+ * B23 boundary pressure, p ≤ 100 MPa.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ *
+ * @param density ρ, kg/m³
+ * @param temperature T, K
+ * @returns the state, SI
+ * @example region3StateAtDensity(500, 650).pressure // → 25583701.8 Pa (R7-97(2012) Table 33: 0.255837018e2 MPa)
  */
 export function region3StateAtDensity(
   density: number,
@@ -481,13 +545,34 @@ function saturatedStates(pressure: number, temperature: number, transport: boole
   return { pressure, temperature, latentHeat: vapor.enthalpy - liquid.enthalpy, liquid, vapor };
 }
 
-/** Saturated liquid and vapour at pressure p, Pa (611.213 Pa to p_s(647.095 K) ≈ 22.0637 MPa). */
+/**
+ * Saturated liquid and vapour at pressure p (regions 1 and 2 up to 623.15 K, region 3 above).
+ *
+ * Validity: 611.213 Pa to p_s(647.095 K) ≈ 22.0637 MPa.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ *
+ * @param pressure p, Pa
+ * @param options transport properties on or off (default on)
+ * @returns T_s, the latent heat h_g − h_f and both saturated states, SI
+ * @example saturationAtPressure(1e6).temperature // → 453.035632 K (R7-97(2012) Table 36)
+ * @example saturationAtPressure(2e7).latentHeat // ≈ 584286.6 J/kg (python3-iapws, tests/fixtures/steam/if97-points.json: 584286.59 J/kg)
+ */
 export function saturationAtPressure(pressure: number, options: StateOptions = {}): SaturationProperties {
   checkRange('pressure', pressure, 'Pa', IF97.minPressure, MAX_SATURATION_STATE_PRESSURE);
   return saturatedStates(pressure, PT.r4_P_Tsat(pressure / MPA), options.transport ?? true);
 }
 
-/** Saturated liquid and vapour at temperature T, K (273.15 K to 647.095 K). */
+/**
+ * Saturated liquid and vapour at temperature T.
+ *
+ * Validity: 273.15 K to 647.095 K.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ *
+ * @param temperature T, K
+ * @param options transport properties on or off (default on)
+ * @returns p_s, the latent heat h_g − h_f and both saturated states, SI
+ * @example saturationAtTemperature(300).pressure // → 3536.58941 Pa (R7-97(2012) Table 35: 0.353658941e-2 MPa)
+ */
 export function saturationAtTemperature(
   temperature: number,
   options: StateOptions = {},
@@ -497,9 +582,16 @@ export function saturationAtTemperature(
 }
 
 /**
- * Saturated liquid at temperature T, K (273.15 K to 647.095 K), without transport properties and
- * without the vapour state: the lean path for liquor models that take their water part from
- * saturated liquid at the solution temperature (h, c_p, ρ), called inside solver iterations.
+ * Saturated liquid at temperature T, without transport properties and without the vapour state:
+ * the lean path for liquor models that take their water part from saturated liquid at the solution
+ * temperature (h, c_p, ρ), called inside solver iterations.
+ *
+ * Validity: 273.15 K to 647.095 K.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ *
+ * @param temperature T, K
+ * @returns the saturated-liquid state, SI
+ * @example saturatedLiquidAtTemperature(373.15).enthalpy // ≈ 419099.15 J/kg (python3-iapws, tests/fixtures/steam/if97-points.json: 419099.15 J/kg)
  */
 export function saturatedLiquidAtTemperature(temperature: number): WaterState {
   checkRange('temperature', temperature, 'K', IF97.minTemperature, IF97.maxSaturationStateTemperature);
@@ -515,8 +607,15 @@ export function saturatedLiquidAtTemperature(temperature: number): WaterState {
 }
 
 /**
- * Saturated enthalpies h_f and h_g at pressure p (611.213 Pa to 22.0637 MPa), J/kg, with T_s:
- * the lean path for solvers (no transport properties, no state objects).
+ * Saturated enthalpies h_f and h_g at pressure p, with T_s: the lean path for solvers (no transport
+ * properties, no state objects).
+ *
+ * Validity: 611.213 Pa to 22.0637 MPa.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ *
+ * @param pressure p, Pa
+ * @returns p, T_s, h_f and h_g, SI
+ * @example saturationEnthalpies(1e7).temperature // → 584.149488 K (R7-97(2012) Table 36)
  */
 export function saturationEnthalpies(pressure: number): SaturationEnthalpies {
   checkRange('pressure', pressure, 'Pa', IF97.minPressure, MAX_SATURATION_STATE_PRESSURE);
@@ -525,7 +624,16 @@ export function saturationEnthalpies(pressure: number): SaturationEnthalpies {
   return { pressure, temperature, liquid: liquid.h * KJ, vapor: vapor.h * KJ };
 }
 
-/** Enthalpy of saturated liquid at pressure p, J/kg (lean path; 611.213 Pa to 22.0637 MPa). */
+/**
+ * Enthalpy h_f of saturated liquid at pressure p (lean path).
+ *
+ * Validity: 611.213 Pa to 22.0637 MPa.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ *
+ * @param pressure p, Pa
+ * @returns h_f, J/kg
+ * @example saturatedLiquidEnthalpy(1000) // ≈ 29298.25 J/kg (python3-iapws, tests/fixtures/steam/if97-points.json: 29298.25 J/kg)
+ */
 export function saturatedLiquidEnthalpy(pressure: number): number {
   checkRange('pressure', pressure, 'Pa', IF97.minPressure, MAX_SATURATION_STATE_PRESSURE);
   const pMPa = pressure / MPA;
@@ -534,7 +642,16 @@ export function saturatedLiquidEnthalpy(pressure: number): number {
   return rawSaturated(pressure, t).liquid.h * KJ;
 }
 
-/** Enthalpy of saturated vapour at pressure p, J/kg (lean path; 611.213 Pa to 22.0637 MPa). */
+/**
+ * Enthalpy h_g of saturated vapour at pressure p (lean path).
+ *
+ * Validity: 611.213 Pa to 22.0637 MPa.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ *
+ * @param pressure p, Pa
+ * @returns h_g, J/kg
+ * @example saturatedVaporEnthalpy(1000) // ≈ 2513682.04 J/kg (python3-iapws, tests/fixtures/steam/if97-points.json: 2513682.04 J/kg)
+ */
 export function saturatedVaporEnthalpy(pressure: number): number {
   checkRange('pressure', pressure, 'Pa', IF97.minPressure, MAX_SATURATION_STATE_PRESSURE);
   const pMPa = pressure / MPA;
@@ -543,7 +660,17 @@ export function saturatedVaporEnthalpy(pressure: number): number {
   return rawSaturated(pressure, t).vapor.h * KJ;
 }
 
-/** Enthalpy at (p, T), J/kg, single phase (lean path for solvers; same range as {@link stateAtPT}). */
+/**
+ * Enthalpy at (p, T), single phase (lean path for solvers).
+ *
+ * Validity: as {@link stateAtPT}.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ *
+ * @param pressure p, Pa
+ * @param temperature T, K
+ * @returns h, J/kg
+ * @example enthalpyAtPT(3500, 300) // → 2549911.45 J/kg (R7-97(2012) Table 15: 0.254991145e4 kJ/kg)
+ */
 export function enthalpyAtPT(pressure: number, temperature: number): number {
   const h = rawAtPT(pressure, temperature).raw.h * KJ;
   if (!Number.isFinite(h)) {
@@ -555,9 +682,17 @@ export function enthalpyAtPT(pressure: number, temperature: number): number {
 }
 
 /**
- * Raw backward temperature of region 1, T(p, h), IF97 eq. 11 (R7-97(2012) section 5.2.1),
- * exactly as the package evaluates it, without refinement. p in Pa, h in J/kg, result in K.
- * Exposed to verify the package against R7-97(2012) Table 7; solvers use {@link stateAtPH}.
+ * Raw backward temperature of region 1, T(p, h), IF97 eq. 11 (R7-97(2012) section 5.2.1), exactly
+ * as the package evaluates it, without refinement. Exposed to verify the package against
+ * R7-97(2012) Table 7; solvers use {@link stateAtPH}.
+ *
+ * Validity: region 1 (liquid, 273.15–623.15 K, p ≤ 100 MPa).
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ *
+ * @param pressure p, Pa
+ * @param enthalpy h, J/kg
+ * @returns T, K
+ * @example backwardTemperatureRegion1(3e6, 500e3) // → 391.798509 K (R7-97(2012) Table 7)
  */
 export function backwardTemperatureRegion1(pressure: number, enthalpy: number): number {
   checkPressure(pressure, IF97.maxPressure);
@@ -567,8 +702,16 @@ export function backwardTemperatureRegion1(pressure: number, enthalpy: number): 
 
 /**
  * Raw backward temperature of region 2, T(p, h), IF97 eqs. 22–24 with the 2b/2c boundary eq. 20
- * (R7-97(2012) section 6.3.1), as the package evaluates it, without refinement. p in Pa, h in
- * J/kg, result in K. Exposed to verify the package against R7-97(2012) Table 24.
+ * (R7-97(2012) section 6.3.1), as the package evaluates it, without refinement. Exposed to verify
+ * the package against R7-97(2012) Table 24.
+ *
+ * Validity: region 2 (vapour, up to 1073.15 K, p ≤ 100 MPa).
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ *
+ * @param pressure p, Pa
+ * @param enthalpy h, J/kg
+ * @returns T, K
+ * @example backwardTemperatureRegion2(1e3, 3000e3) // → 534.433241 K (R7-97(2012) Table 24)
  */
 export function backwardTemperatureRegion2(pressure: number, enthalpy: number): number {
   checkPressure(pressure, IF97.maxPressure);
@@ -582,12 +725,20 @@ function maxTemperatureAt(pressure: number): number {
 }
 
 /**
- * State at (p, h), Pa and J/kg. Inside the two-phase dome (p ≤ 22.064 MPa, h_f ≤ h ≤ h_g) the
- * state is the lever-rule mixture of the saturated states, with quality x = (h − h_f)/(h_g − h_f)
- * (R7-97(2012) section 8; region 3 saturated states included). Elsewhere the package's backward
- * equation (regions 1 and 2) gives a first T, refined by Newton steps on the forward equation so
- * that the returned state reproduces h to 1e-9 relative. Valid for T from 273.15 K to 1073.15 K
- * (to 2273.15 K at p ≤ 50 MPa), 0 < p ≤ 100 MPa.
+ * State at (p, h). Inside the two-phase dome (p ≤ 22.064 MPa, h_f ≤ h ≤ h_g) the state is the
+ * lever-rule mixture of the saturated states, with quality x = (h − h_f)/(h_g − h_f) (R7-97(2012)
+ * section 8; region 3 saturated states included). Elsewhere the package's backward equation
+ * (regions 1 and 2) gives a first T, refined by Newton steps on the forward equation so that the
+ * returned state reproduces h to 1e-9 relative.
+ *
+ * Validity: T from 273.15 K to 1073.15 K (to 2273.15 K at p ≤ 50 MPa), 0 < p ≤ 100 MPa.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ *
+ * @param pressure p, Pa
+ * @param enthalpy h, J/kg
+ * @param options transport properties on or off (default on)
+ * @returns the state, SI
+ * @example stateAtPH(3e6, 500e3).temperature // ≈ 391.792 K (R7-97(2012) Table 7's backward value 391.798509 K lies within its permitted 25 mK)
  */
 export function stateAtPH(pressure: number, enthalpy: number, options: StateOptions = {}): WaterState {
   checkPressure(pressure, IF97.maxPressure);
@@ -713,11 +864,19 @@ function refineTemperature(
 }
 
 /**
- * Dynamic viscosity μ(T, ρ), Pa·s: IAPWS R12-08 eq. 10 with μ2 = 1 (the form R12-08 section 3.2
- * recommends for industrial use), as the package evaluates it: μ = μ0(T̄)·μ1(T̄, ρ̄)·1 µPa·s with
- * T̄ = T/647.096 K, ρ̄ = ρ/322 kg/m³. T in K (273.15–1173.15 K), ρ in kg/m³ (0–1250 kg/m³).
+ * Dynamic viscosity μ(T, ρ): IAPWS R12-08 eq. 10 with μ2 = 1 (the form R12-08 section 3.2
+ * recommends for industrial use), as the package evaluates it.
+ *
+ *   μ = μ0(T̄)·μ1(T̄, ρ̄)·1 µPa·s,  T̄ = T/647.096 K,  ρ̄ = ρ/322 kg/m³
+ *
+ * Validity: T 273.15–1173.15 K, ρ 0–1250 kg/m³.
  * Source: IAPWS R12-08, "Release on the IAPWS Formulation 2008 for the Viscosity of Ordinary Water
  * Substance" (Berlin, 2008); M. L. Huber et al., J. Phys. Chem. Ref. Data 38 (2009) 101–125.
+ *
+ * @param temperature T, K
+ * @param density ρ, kg/m³
+ * @returns μ, Pa·s
+ * @example viscosityAtDensity(298.15, 998) // → 8.897351e-4 Pa·s (R12-08 Table 4: 889.735100 µPa·s)
  */
 export function viscosityAtDensity(temperature: number, density: number): number {
   checkRange('temperature', temperature, 'K', IF97.minTemperature, IF97.maxTransportTemperature);
@@ -726,12 +885,20 @@ export function viscosityAtDensity(temperature: number, density: number): number
 }
 
 /**
- * Thermal conductivity λ(T, ρ), W/(m·K): IAPWS R15-11 eq. 10 WITHOUT the critical enhancement
- * (λ = λ0(T̄)·λ1(T̄, ρ̄)·1 mW/(m·K), λ2 = 0), as the package evaluates it. T in K
- * (273.15–1173.15 K), ρ in kg/m³ (0–1250 kg/m³). Near the critical point λ2 is not negligible,
- * so values there are low. Source: IAPWS R15-11, "Release on the IAPWS Formulation 2011 for the
- * Thermal Conductivity of Ordinary Water Substance" (Plzeň, 2011); M. L. Huber et al., J. Phys.
- * Chem. Ref. Data 41 (2012) 033102.
+ * Thermal conductivity λ(T, ρ): IAPWS R15-11 eq. 10 WITHOUT the critical enhancement, as the package
+ * evaluates it. Near the critical point λ2 is not negligible, so values there are low.
+ *
+ *   λ = λ0(T̄)·λ1(T̄, ρ̄)·1 mW/(m·K),  λ2 = 0
+ *
+ * Validity: T 273.15–1173.15 K, ρ 0–1250 kg/m³ (low near the critical point, see above).
+ * Source: IAPWS R15-11, "Release on the IAPWS Formulation 2011 for the Thermal Conductivity of
+ * Ordinary Water Substance" (Plzeň, 2011); M. L. Huber et al., J. Phys. Chem. Ref. Data 41 (2012)
+ * 033102.
+ *
+ * @param temperature T, K
+ * @param density ρ, kg/m³
+ * @returns λ, W/(m·K)
+ * @example thermalConductivityAtDensity(298.15, 998) // → 0.607712868 W/(m·K) (R15-11 Table 4: 607.712868 mW/(m·K))
  */
 export function thermalConductivityAtDensity(temperature: number, density: number): number {
   checkRange('temperature', temperature, 'K', IF97.minTemperature, IF97.maxTransportTemperature);
