@@ -37,7 +37,7 @@ import { startMailCapture, type MailCapture } from './integrations/mail-capture.
 import { loadPaymentsConfig, PaymentsConfigError } from './integrations/payments/config.js';
 import { startFakePaymentProvider, type FakePaymentProvider } from './integrations/payments/fake-provider.js';
 import { bootstrap } from './seed/bootstrap.js';
-import { seedDemoConsoleUsers } from './accounts/demo-users.js';
+import { DEMO_CONSOLE_PASSWORD, seedDemoConsoleUsers } from './accounts/demo-users.js';
 import { DEMO_ACCOUNT_NAME } from './seed/demo.js';
 
 /** After the grace period, how long requests still in flight may take before they are cut. */
@@ -143,8 +143,12 @@ async function main(): Promise<void> {
   if (config.nodeEnv !== 'production' && flag('DEMO_CONSOLE_USERS', false)) {
     const demoAccount = sqlite.prepare('SELECT id FROM accounts WHERE name = ?').get(DEMO_ACCOUNT_NAME) as
       { id: number } | undefined;
-    for (const email of await seedDemoConsoleUsers(db, clock(), demoAccount ? [demoAccount.id] : []))
+    const created = await seedDemoConsoleUsers(db, clock(), demoAccount ? [demoAccount.id] : []);
+    for (const email of created)
       console.log(`[start-up] demo console user ${email} created (DEMO_CONSOLE_USERS=1)`);
+    // Shown with the users it was just given to, like the other first-start secrets.
+    if (created.length > 0)
+      console.log(`[start-up] demo console users' shared password (shown once): ${DEMO_CONSOLE_PASSWORD}`);
   }
   console.log(
     `[start-up] server secret from ${config.secretSource === 'env' ? 'EBULLIO_SECRET' : config.secretSource}`,

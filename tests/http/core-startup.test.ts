@@ -173,4 +173,38 @@ describe('first start with no bootstrap variables', () => {
     second.child.kill('SIGTERM');
     expect((await second.exited).code).toBe(0);
   }, 40_000);
+
+  it('prints the demo console users and their shared password once when DEMO_CONSOLE_USERS=1, and the password signs in', async () => {
+    const dbFile = path.join(tempDir(), 'demo-users.db');
+    const env = {
+      PORT: '0',
+      DB_FILE: dbFile,
+      NODE_ENV: 'development',
+      DEMO_CONSOLE_USERS: '1',
+      BOOTSTRAP_API_KEY: '',
+      BOOTSTRAP_ADMIN_EMAIL: '',
+      BOOTSTRAP_ADMIN_PASSWORD: '',
+      MAIL_CAPTURE: '0',
+      FAKE_PAYMENTS: '0',
+    };
+    const first = startServerProcess(env);
+    await first.port;
+    const users = [...first.output().matchAll(/demo console user (\S+) created/g)].map((m) => m[1]!);
+    const password = /demo console users' shared password \(shown once\): (\S+)/.exec(first.output());
+    expect(users).toHaveLength(2);
+    expect(password).not.toBeNull();
+    first.child.kill('SIGTERM');
+    expect((await first.exited).code).toBe(0);
+
+    // The printed password is the one stored for both users.
+    const { db, sqlite } = openDatabase(dbFile);
+    for (const email of users) expect(await verifyUserPassword(db, email, password![1]!)).toBeDefined();
+    sqlite.close();
+
+    const second = startServerProcess(env);
+    await second.port;
+    expect(second.output()).not.toMatch(/shown once/);
+    second.child.kill('SIGTERM');
+    expect((await second.exited).code).toBe(0);
+  }, 40_000);
 });
