@@ -22,7 +22,8 @@ import { singleCsvUpload } from '../upload.js';
 import { problem, problemTypeUri, ProblemError } from '../problem.js';
 import { findNonFinite, toProblem, validate } from '../validation.js';
 import { multipleEffectUnits, runMultipleEffect, runSingleEffect } from './evaporators.js';
-import { resolveLiquor, runBoilingPoint, runEnthalpy } from './liquors.js';
+import { resolveLiquor } from '../../liquors/index.js';
+import { runBoilingPoint, runEnthalpy } from './liquors.js';
 import { runSaturation, runSteamState } from './steam.js';
 import type { V1RouteModule } from './module.js';
 

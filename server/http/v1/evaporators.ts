@@ -35,7 +35,7 @@ import {
   warningsOut,
   type FieldMap,
 } from '../validation.js';
-import { resolveLiquor } from './liquors.js';
+import { resolveLiquor } from '../../liquors/index.js';
 import { IF97_MODEL } from './steam.js';
 import type { V1RouteModule } from './module.js';
 
