@@ -38,7 +38,8 @@ import {
   storedLiquorExists,
   summarise,
 } from '../liquors/index.js';
-import { r, validate } from '../http/validation.js';
+import { r } from '../http/output.js';
+import { validate } from '../http/validate.js';
 import { formatOutput } from '../units/index.js';
 import { singleCsvUpload } from '../http/upload.js';
 import { requireAccount } from './accounts.js';

@@ -21,7 +21,7 @@ import { ROLES } from '../../shared/access.js';
 import type { Role } from '../../shared/console/common.js';
 import type { AppDeps } from '../deps.js';
 import { problem } from '../http/problem.js';
-import { zodProblem } from '../http/validation.js';
+import { zodProblem } from '../http/validate.js';
 
 export type { Role } from '../../shared/console/common.js';
 /** Every console role (shared/access.ts): for routes that any signed-in role may use. */

@@ -8,7 +8,7 @@ import {
   type CustomLiquorDefinition as EngineDefinition,
 } from '../engine/liquors/custom.js';
 import { KELVIN_OFFSET } from '../engine/types.js';
-import { calculate, type FieldMap } from '../http/validation.js';
+import { calculate, type FieldMap } from '../http/engine-errors.js';
 
 const KJ = 1000;
 

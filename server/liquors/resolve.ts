@@ -9,7 +9,7 @@ import type { LiquorModel } from '../engine/liquors/model.js';
 import { findBuiltInLiquor } from '../engine/liquors/registry.js';
 import type { EngineWarning } from '../engine/types.js';
 import { problem } from '../http/problem.js';
-import type { ModelRef } from '../http/validation.js';
+import type { ModelRef } from '../http/output.js';
 import { buildCustomLiquor } from './definition.js';
 import { findStoredLiquor } from './repository.js';
 

@@ -1,7 +1,7 @@
 /** The public description of a liquor model in display units (the /v1 catalogue and the console). */
 import type { LiquorSummary } from '../../shared/contracts/index.js';
 import { describeLiquor, type LiquorModel, type ValidityBox } from '../engine/liquors/model.js';
-import { display, r } from '../http/validation.js';
+import { display, r } from '../http/output.js';
 
 function boxOut(box: ValidityBox): LiquorSummary['validity'] {
   return {

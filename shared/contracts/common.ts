@@ -221,7 +221,16 @@ export function quantity(spec: QuantitySpec, description: string, example: numbe
       'x-unit': unit.symbol,
       'x-quantity-kind': spec.kind,
     });
+  quantitySpecs.set(schema, spec);
   return schema;
+}
+
+/** The spec of each schema made by {@link quantity}: what the server converts to SI, and how. */
+const quantitySpecs = new WeakMap<object, QuantitySpec>();
+
+/** The spec (kind and range) of a quantity schema, or undefined for any other schema. */
+export function quantitySpecOf(schema: object): QuantitySpec | undefined {
+  return quantitySpecs.get(schema);
 }
 
 export type QuantityInput = number | string;
