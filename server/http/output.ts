@@ -3,7 +3,12 @@
  * `provenance` of a calculation.
  */
 import { defaultUnits, type QuantityKind } from '../../shared/contracts/index.js';
-import { siToDisplay } from './quantities.js';
+import { toDefaultUnit } from '../units/index.js';
+
+/** SI value → display (default) unit of its kind (server/units holds the unit table). */
+export function siToDisplay(valueSI: number, kind: QuantityKind): number {
+  return toDefaultUnit(valueSI, kind);
+}
 
 export function displayNumber(valueSI: number, kind: QuantityKind | undefined): number {
   if (!kind || !Number.isFinite(valueSI)) return valueSI;

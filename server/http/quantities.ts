@@ -14,45 +14,14 @@ import {
   type QuantityKind,
   type QuantitySpec,
 } from '../../shared/contracts/index.js';
-import {
-  fromDefaultUnit,
-  parseQuantity,
-  toDefaultUnit,
-  type QuantityKind as UnitsKind,
-} from '../units/index.js';
+import { fromDefaultUnit, parseQuantity } from '../units/index.js';
 import { toProblem } from './engine-errors.js';
-import { roundForDisplay } from './output.js';
+import { roundForDisplay, siToDisplay } from './output.js';
 import { problem } from './problem.js';
-
-/** Our quantity kinds → the kinds of server/units. */
-const UNITS_KIND: Record<QuantityKind, UnitsKind> = {
-  temperature: 'temperature',
-  temperatureDifference: 'temperatureDifference',
-  pressure: 'pressure',
-  massFlow: 'massFlow',
-  specificEnthalpy: 'specificEnthalpy',
-  specificHeatCapacity: 'heatCapacity',
-  specificEntropy: 'heatCapacity',
-  power: 'power',
-  area: 'area',
-  heatTransferCoefficient: 'heatTransferCoefficient',
-  massFraction: 'massFraction',
-  length: 'length',
-  fraction: 'massFraction',
-};
-
-function parseWithUnit(text: string, kind: QuantityKind, field: string): number {
-  return parseQuantity(text, UNITS_KIND[kind], field);
-}
-
-/** SI value → display (default) unit of its kind (server/units holds the unit table). */
-export function siToDisplay(valueSI: number, kind: QuantityKind): number {
-  return toDefaultUnit(valueSI, UNITS_KIND[kind]);
-}
 
 /** Display (default) unit of its kind → SI. */
 export function displayToSI(value: number, kind: QuantityKind): number {
-  return fromDefaultUnit(value, UNITS_KIND[kind]);
+  return fromDefaultUnit(value, kind);
 }
 
 /**
@@ -65,7 +34,7 @@ export function readQuantity(input: QuantityInput, spec: QuantitySpec, field: st
   let si: number;
   try {
     // a bare number in a string is read in the default unit by server/units itself
-    si = parseWithUnit(input, spec.kind, field);
+    si = parseQuantity(input, spec.kind, field);
   } catch (err) {
     throw toProblem(err);
   }
@@ -85,15 +54,6 @@ export function readQuantity(input: QuantityInput, spec: QuantitySpec, field: st
     });
   }
   return si;
-}
-
-/** Optional quantity → SI or undefined. */
-export function readOptional(
-  input: QuantityInput | undefined,
-  spec: QuantitySpec,
-  field: string,
-): number | undefined {
-  return input === undefined ? undefined : readQuantity(input, spec, field);
 }
 
 /**
