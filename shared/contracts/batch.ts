@@ -1,4 +1,4 @@
-/** Contract of POST /v1/batch: many cases of one operation in one request. */
+/** Contract of the batch operation: many cases of one operation in one request. */
 import { z } from 'zod';
 import { batchOperationNames, type BatchOperationName } from '../operations.js';
 import { ProblemSchema } from './common.js';
