@@ -117,8 +117,10 @@ describe('one declaration per /v1 operation', () => {
       'multiple-effect',
     ]);
     for (const name of batchOperations) {
-      const decl = v1Operations.find((d) => 'batchName' in d.operation && d.operation.batchName === name);
-      expect(decl?.batch, name).toBeDefined();
+      const decl = v1Operations.filter((d) => 'batchName' in d.operation && d.operation.batchName === name);
+      // one declaration per name, and one that computes (not one that answers the HTTP request itself)
+      expect(decl, name).toHaveLength(1);
+      expect(decl[0]?.run, name).toBeDefined();
     }
   });
 
@@ -137,5 +139,27 @@ describe('one declaration per /v1 operation', () => {
       operation: string;
     }[];
     expect(rows.map((r) => r.operation)).toEqual(v1Operations.map((d) => d.operation.id));
+  });
+
+  it('runs a case of each batch operation as that operation would, and names a failing case’s fields under cases[i]', async () => {
+    const h = makeHarness({ quota: 1_000_000 });
+    for (const decl of v1Operations) {
+      if (!('batchName' in decl.operation)) continue;
+      const example = decl.request?.body
+        ? (decl.request.example?.value ?? decl.request.body.meta()?.example)
+        : { pressure: 101.325 };
+      const res = await request(h.app)
+        .post('/v1/batch')
+        .set('Authorization', `Bearer ${h.token}`)
+        .send({ operation: decl.operation.batchName, liquor: 'sodium-hydroxide', cases: [example, {}] });
+      expect(res.status, decl.operation.id).toBe(200);
+      expect(res.body.results[0].status, `${decl.operation.id} ${JSON.stringify(res.body.results[0])}`).toBe(
+        'ok',
+      );
+      expect(res.body.results[1].status, decl.operation.id).toBe('error');
+      const field: string = res.body.results[1].problem.errors[0].field;
+      expect(field.startsWith('cases[1].'), `${decl.operation.id}: ${field}`).toBe(true);
+      expect(res.body.results[1].problem.detail, decl.operation.id).toContain(field);
+    }
   });
 });

@@ -104,8 +104,9 @@ export interface OperationDeclaration<
   /** For an operation that answers itself (content negotiation, uploads): replaces `run`. */
   handle?: (req: Request, res: Response, ctx: OperationContext) => void | Promise<void>;
   /**
-   * How a batch case becomes this operation's request (operations with a catalogue batchName):
-   * `load` finds what the path would name from the case (and the batch's shared fields).
+   * An operation whose catalogue entry has a `batchName` runs in a batch, each case as the body
+   * (or query) of its own request. Here it may say how: `load` finds what the path would name
+   * from the case (and the batch's shared fields), and `units` prices a case.
    */
   batch?: {
     load?: (c: Record<string, unknown>, shared: { liquor?: unknown }, ctx: OperationContext) => L;
@@ -175,7 +176,8 @@ export function runOperation(
 ): unknown {
   const decl = op.decl;
   const load = caseLoad ? undefined : decl.load;
-  const params: unknown = op.params ? validate(op.params.schema, raw.params) : undefined;
+  // A batch case has no path: it brings what `load` would have found from the path's params.
+  const params: unknown = op.params && !caseLoad ? validate(op.params.schema, raw.params) : undefined;
   let loaded: unknown = caseLoad?.value;
   if (load && !decl.loadAfterBody) loaded = load({ params, query: undefined, body: undefined }, ctx);
   const query: unknown = op.query ? validate(op.query.schema, raw.query) : undefined;
@@ -183,7 +185,7 @@ export function runOperation(
   if (load && decl.loadAfterBody) loaded = load({ params, query, body }, ctx);
   return decl.run!(
     {
-      params: op.params ? toSI(op.params.plan, params) : undefined,
+      params: op.params && !caseLoad ? toSI(op.params.plan, params) : undefined,
       query: op.query ? toSI(op.query.plan, query) : undefined,
       body: op.body ? toSI(op.body.plan, body) : undefined,
       loaded,

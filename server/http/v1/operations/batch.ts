@@ -135,10 +135,10 @@ function runCase(
   shared: { liquor?: unknown },
   ctx: OperationContext,
 ): unknown {
-  const batch = op.decl.batch!;
+  const batch = op.decl.batch;
   let input = c;
   let caseLoad: { value: unknown } | undefined;
-  if (batch.load) {
+  if (batch?.load) {
     caseLoad = { value: batch.load(c, shared, ctx) };
     input = { ...c };
     for (const key of batch.consumes ?? []) delete input[key];
@@ -154,7 +154,7 @@ export function batchOperation(operations: readonly AnyOperation[]) {
   const byName = new Map<string, CompiledOperation>();
   for (const decl of operations) {
     const name = (decl.operation as { batchName?: string }).batchName;
-    if (name !== undefined && decl.batch) byName.set(name, compileOperation(decl));
+    if (name !== undefined) byName.set(name, compileOperation(decl));
   }
   return declareOperation({
     operation: operationCatalogue.batch,

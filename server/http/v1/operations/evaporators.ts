@@ -194,7 +194,6 @@ export const singleEffect = declareOperation({
       provenance: provenance(ctx.engineVersion, [IF97_MODEL, ...liquor.models]),
     };
   },
-  batch: {},
 });
 
 /** Units beyond the base of a multiple-effect request: `unitsPerEffect` × effects (1 to 10). */

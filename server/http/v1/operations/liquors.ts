@@ -4,7 +4,6 @@
  * (server/liquors); a batch case names its liquor in `liquor` or takes the batch's.
  */
 import {
-  BatchRequestSchema,
   BoilingPointRequestSchema,
   BoilingPointResponseSchema,
   EnthalpyRequestSchema,
@@ -12,6 +11,7 @@ import {
   LiquorIdParamsSchema,
   LiquorListQuerySchema,
   LiquorListSchema,
+  LiquorRefSchema,
   LiquorSummarySchema,
   type BoilingPointResponse,
   type EnthalpyResponse,
@@ -36,8 +36,6 @@ import { validate } from '../../validate.js';
 import { declareOperation, type OperationContext } from '../operation.js';
 import { IF97_MODEL } from './steam.js';
 
-const liquorRefSchema = BatchRequestSchema.shape.liquor.unwrap();
-
 /** The liquor of a batch case: its own `liquor`, else the batch's (paths relative to the case). */
 function caseLiquor(
   c: Record<string, unknown>,
@@ -50,7 +48,7 @@ function caseLiquor(
       errors: [{ field: 'liquor', message: 'is required' }],
     });
   }
-  const valid: LiquorRef = validate(liquorRefSchema, ref, 'liquor');
+  const valid: LiquorRef = validate(LiquorRefSchema, ref, 'liquor');
   return resolveLiquor(valid, ctx.db, ctx.accountId, 'liquor');
 }
 

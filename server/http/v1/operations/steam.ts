@@ -90,7 +90,6 @@ export const steamSaturation = declareOperation({
       provenance: provenance(ctx.engineVersion, [IF97_MODEL]),
     };
   },
-  batch: {},
 });
 
 export const steamState = declareOperation({
@@ -111,5 +110,4 @@ export const steamState = declareOperation({
     );
     return { ...stateOut(state), provenance: provenance(ctx.engineVersion, [IF97_MODEL]) };
   },
-  batch: {},
 });
