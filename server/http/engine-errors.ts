@@ -183,9 +183,15 @@ export function rebaseProblem(p: ProblemError, base: string): ProblemError {
   });
 }
 
-/** Warnings of a result re-based like {@link rebaseProblem} (a batch case's result). */
-export function rebaseWarnings(result: unknown, base: string): void {
+/**
+ * Warnings of a batch case's result re-based like {@link rebaseProblem}: those about a field of
+ * the request (its first segment one of `requestKeys`); a warning about a result quantity
+ * (`temperatureDifference`) names no request field and keeps its name.
+ */
+export function rebaseWarnings(result: unknown, base: string, requestKeys: ReadonlySet<string>): void {
   const warnings = (result as { warnings?: unknown } | null)?.warnings;
   if (!Array.isArray(warnings)) return;
-  for (const w of warnings as WarningDto[]) if (w.field !== undefined) w.field = base + w.field;
+  for (const w of warnings as WarningDto[]) {
+    if (w.field !== undefined && requestKeys.has(/^[^.[]*/.exec(w.field)![0])) w.field = base + w.field;
+  }
 }

@@ -159,7 +159,38 @@ describe('one declaration per /v1 operation', () => {
       expect(res.body.results[1].status, decl.operation.id).toBe('error');
       const field: string = res.body.results[1].problem.errors[0].field;
       expect(field.startsWith('cases[1].'), `${decl.operation.id}: ${field}`).toBe(true);
+      expect(field, decl.operation.id).not.toContain('..');
       expect(res.body.results[1].problem.detail, decl.operation.id).toContain(field);
     }
+  });
+
+  it('names a batch warning about a request field under cases[i], and one about a result quantity as it is', async () => {
+    const h = makeHarness({ quota: 1_000_000 });
+    const boiling = await request(h.app)
+      .post('/v1/batch')
+      .set('Authorization', `Bearer ${h.token}`)
+      .send({
+        operation: 'liquor-boiling-point',
+        liquor: 'sodium-hydroxide',
+        cases: [
+          { massFraction: 0.3, pressure: 20 },
+          { massFraction: 0.75, pressure: 20 },
+        ],
+      });
+    // 75 % NaOH lies beyond the model's vapour-pressure data (it warns model-extrapolated).
+    expect(boiling.body.results[1].result.warnings[0]).toMatchObject({
+      code: 'model-extrapolated',
+      field: 'cases[1].massFraction',
+    });
+    const single = v1Operations.find((d) => d.operation.id === 'evaporators.single-effect')!;
+    const evaporator = await request(h.app)
+      .post('/v1/batch')
+      .set('Authorization', `Bearer ${h.token}`)
+      .send({ operation: 'single-effect', cases: [single.request!.example!.value] });
+    // The documented concentrator runs a ΔT above 60 K: a warning about a result, not a request field.
+    expect(evaporator.body.results[0].result.warnings[0]).toMatchObject({
+      code: 'large-temperature-difference',
+      field: 'temperatureDifference',
+    });
   });
 });

@@ -151,10 +151,13 @@ const readUpload = singleCsvUpload();
 
 /** The batch operation over the declarations that name a batch name. */
 export function batchOperation(operations: readonly AnyOperation[]) {
-  const byName = new Map<string, CompiledOperation>();
+  const byName = new Map<string, { op: CompiledOperation; requestKeys: ReadonlySet<string> }>();
   for (const decl of operations) {
     const name = (decl.operation as { batchName?: string }).batchName;
-    if (name !== undefined) byName.set(name, compileOperation(decl));
+    if (name === undefined) continue;
+    const op = compileOperation(decl);
+    const part = (op.body ?? op.query)?.schema as { shape?: Record<string, unknown> } | undefined;
+    byName.set(name, { op, requestKeys: new Set(Object.keys(part?.shape ?? {})) });
   }
   return declareOperation({
     operation: operationCatalogue.batch,
@@ -215,7 +218,7 @@ export function batchOperation(operations: readonly AnyOperation[]) {
         );
       }
       const batch = validate(BatchRequestSchema, raw);
-      const op = byName.get(batch.operation)!;
+      const { op, requestKeys } = byName.get(batch.operation)!;
       const caseUnits = op.decl.batch?.units;
       const units = batch.cases.reduce(
         (sum, c) => sum + (caseUnits ? caseUnits(c) : op.decl.operation.units),
@@ -228,7 +231,7 @@ export function batchOperation(operations: readonly AnyOperation[]) {
         const base = `cases[${index}].`;
         try {
           const result = runCase(op, c, shared, ctx);
-          rebaseWarnings(result, base);
+          rebaseWarnings(result, base, requestKeys);
           const bad = findNonFinite(result);
           if (bad) throw problem('no-solution', `The calculation produced a non-finite number (${bad}).`);
           return { index, status: 'ok', result: result as Record<string, unknown> };
