@@ -9,6 +9,6 @@
 export const ROLES = ['admin', 'billing', 'developer'] as const;
 export type Role = (typeof ROLES)[number];
 
-/** The scopes an API key can hold; each metered operation needs one (server/accounts/operations.ts). */
+/** The scopes an API key can hold; each metered operation needs one (shared/operations.ts). */
 export const KEY_SCOPES = ['steam', 'liquors', 'evaporators', 'batch', 'usage'] as const;
 export type KeyScope = (typeof KEY_SCOPES)[number];

@@ -9,7 +9,6 @@
  * answers with a "model-extrapolated" warning is kept and flagged `extrapolated`. No NaN is sent.
  */
 import type { RequestHandler } from 'express';
-import { and, eq } from 'drizzle-orm';
 import { StoredLiquorCreateSchema } from '../../shared/contracts/liquors.js';
 import { AccountIdParamsSchema } from '../../shared/console/accounts.js';
 import {
@@ -23,7 +22,6 @@ import {
   type ConsoleLiquor,
   type ConsoleLiquorCharts,
 } from '../../shared/console/liquors.js';
-import { accounts, storedLiquors } from '../db/schema.js';
 import { slugify } from '../engine/liquors/custom.js';
 import type { LiquorModel } from '../engine/liquors/model.js';
 import { builtInLiquors, findBuiltInLiquor } from '../engine/liquors/registry.js';
@@ -31,9 +29,17 @@ import { saturationPressure } from '../engine/steam/if97.js';
 import { KELVIN_OFFSET, type EngineWarning } from '../engine/types.js';
 import type { AppDeps } from '../deps.js';
 import { problem } from '../http/problem.js';
-import { buildCustomLiquor, summarise } from '../http/v1/liquors.js';
-import { duhringFromCsv, findStoredLiquor } from '../http/v1/stored-liquors.js';
-import { r, validate } from '../http/validation.js';
+import {
+  buildCustomLiquor,
+  duhringFromCsv,
+  findStoredLiquor,
+  insertStoredLiquor,
+  listStoredLiquorsWithAccounts,
+  storedLiquorExists,
+  summarise,
+} from '../liquors/index.js';
+import { r } from '../http/output.js';
+import { validate } from '../http/validate.js';
 import { formatOutput } from '../units/index.js';
 import { singleCsvUpload } from '../http/upload.js';
 import { requireAccount } from './accounts.js';
@@ -160,17 +166,9 @@ function libraryItem(
 }
 
 function storedItems(deps: AppDeps, accountId: number | undefined): ConsoleLiquor[] {
-  const rows = deps.db
-    .select({ liquor: storedLiquors, accountName: accounts.name })
-    .from(storedLiquors)
-    .innerJoin(accounts, eq(accounts.id, storedLiquors.accountId))
-    .where(accountId === undefined ? undefined : eq(storedLiquors.accountId, accountId))
-    .orderBy(storedLiquors.accountId, storedLiquors.liquorId)
-    .all();
-  return rows.map(({ liquor, accountName }) => {
-    const record = findStoredLiquor(deps.db, liquor.accountId, liquor.liquorId)!;
+  return listStoredLiquorsWithAccounts(deps.db, accountId).map(({ record, accountId, accountName }) => {
     const model = buildCustomLiquor(record.definition, 'definition', record.id);
-    return libraryItem(model, 'stored', record.id, { id: liquor.accountId, name: accountName });
+    return libraryItem(model, 'stored', record.id, { id: accountId, name: accountName });
   });
 }
 
@@ -289,14 +287,7 @@ export const liquorRoutes: ConsoleRouteModule = {
             errors: [{ field: 'id', message: 'is required when the name has no letters or digits' }],
           });
         }
-        if (
-          findBuiltInLiquor(id) ||
-          deps.db
-            .select({ id: storedLiquors.id })
-            .from(storedLiquors)
-            .where(and(eq(storedLiquors.accountId, account.id), eq(storedLiquors.liquorId, id)))
-            .get()
-        ) {
+        if (findBuiltInLiquor(id) || storedLiquorExists(deps.db, account.id, id)) {
           throw problem(
             'conflict',
             `A liquor with the id "${id}" exists already for this account; choose another id.`,
@@ -306,16 +297,7 @@ export const liquorRoutes: ConsoleRouteModule = {
           );
         }
         const model = buildCustomLiquor(input.definition, 'definition', id);
-        deps.db
-          .insert(storedLiquors)
-          .values({
-            accountId: account.id,
-            liquorId: id,
-            name: input.definition.name,
-            definition: input.definition,
-            createdAt: deps.clock(),
-          })
-          .run();
+        insertStoredLiquor(deps.db, account.id, id, input.definition, deps.clock());
         recordAudit(deps, req, res, {
           action: 'liquor.upload',
           targetType: 'stored-liquor',

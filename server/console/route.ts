@@ -22,7 +22,7 @@ import { ROLES } from '../../shared/access.js';
 import type { Role } from '../../shared/console/common.js';
 import type { AppDeps } from '../deps.js';
 import { problem } from '../http/problem.js';
-import { zodProblem } from '../http/validation.js';
+import { zodProblem } from '../http/validate.js';
 import { problemOfServiceError } from './service-errors.js';
 
 export type { Role } from '../../shared/console/common.js';

@@ -12,7 +12,7 @@ import { bodyErrorTranslator } from './middleware/body.js';
 import { requestId } from './middleware/request-id.js';
 import { problem, problemCatalogue, ProblemError, sendProblem, type ProblemSlug } from './problem.js';
 import { createV1Router } from './v1/index.js';
-import { engineProblem } from './validation.js';
+import { engineProblem } from './engine-errors.js';
 
 function escapeHtml(text: string): string {
   return text.replace(/[&<>"']/g, (c) => `&#${c.charCodeAt(0)};`);

@@ -11,7 +11,9 @@ import { addMember, createAccount, insertUser } from '../accounts/accounts.js';
 import { hashPassword } from '../accounts/passwords.js';
 import { createKey } from '../accounts/keys.js';
 import { recordRequest } from '../accounts/metering.js';
-import { operations, scopes, type OperationId } from '../accounts/operations.js';
+import { operationCatalogue, scopes, type OperationId } from '../accounts/operations.js';
+import { pathOf } from '../http/v1/operation.js';
+import { operationDeclaration } from '../http/v1/operations/index.js';
 
 /** The account BOOTSTRAP_API_KEY is registered on. */
 export const DEMO_ACCOUNT_NAME = 'Saltmarsh Chlor-Alkali Works, Process Engineering';
@@ -71,8 +73,8 @@ function seedUsage(
           latencyMs: Math.round(2 + 20 * random()),
           requestId: crypto.randomUUID(),
           engineVersion,
-          method: operations[m.operation].method,
-          path: operations[m.operation].path.replace('{liquorId}', 'naoh-olsson-1997'),
+          method: operationDeclaration(m.operation)!.method.toUpperCase(),
+          path: pathOf(operationDeclaration(m.operation)!, { liquorId: 'naoh-olsson-1997' }),
           requestBody: null,
           responseBody: null,
         });
@@ -150,10 +152,10 @@ export async function seedDemo(
       caustic.id,
       causticKey.id,
       [
-        { operation: 'liquors.boiling-point', perDay: 40, units: 1 },
-        { operation: 'steam.saturation', perDay: 25, units: 1 },
-        { operation: 'evaporators.multiple-effect', perDay: 8, units: 20 },
-        { operation: 'liquors.list', perDay: 3, units: 0 },
+        { operation: operationCatalogue.liquorBoilingPoint.id, perDay: 40, units: 1 },
+        { operation: operationCatalogue.steamSaturation.id, perDay: 25, units: 1 },
+        { operation: operationCatalogue.multipleEffect.id, perDay: 8, units: 20 },
+        { operation: operationCatalogue.liquorList.id, perDay: 3, units: 0 },
       ],
       now,
       6,
@@ -164,8 +166,8 @@ export async function seedDemo(
       dairy.id,
       dairyKey.id,
       [
-        { operation: 'evaporators.single-effect', perDay: 12, units: 5 },
-        { operation: 'steam.state', perDay: 15, units: 1 },
+        { operation: operationCatalogue.singleEffect.id, perDay: 12, units: 5 },
+        { operation: operationCatalogue.steamState.id, perDay: 15, units: 1 },
       ],
       now,
       4,

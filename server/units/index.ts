@@ -24,6 +24,11 @@
  * as a temperature difference it is 10 K.
  */
 import { createRequire } from 'node:module';
+import {
+  defaultUnits as defaultUnitTable,
+  quantityKinds,
+  type QuantityKind,
+} from '../../shared/quantities.js';
 
 const require = createRequire(import.meta.url);
 
@@ -36,7 +41,14 @@ interface Quantity {
 type QtyFactory = (value: number, unit: string) => Quantity;
 const Qty = require('js-quantities') as QtyFactory;
 
-export type QuantityKind =
+export { quantityKinds, type QuantityKind } from '../../shared/quantities.js';
+
+/**
+ * The unit families of this module. The API's quantity kinds (shared/quantities.ts) are its one
+ * vocabulary; some kinds share a family and so its units, names and physical bounds: specific
+ * heat capacity and specific entropy (kJ/(kg·K)), mass fraction and a plain fraction (kg/kg, %).
+ */
+type UnitFamily =
   | 'pressure'
   | 'temperature'
   | 'temperatureDifference'
@@ -50,39 +62,30 @@ export type QuantityKind =
   | 'massFraction'
   | 'density';
 
-export const quantityKinds: readonly QuantityKind[] = [
-  'pressure',
-  'temperature',
-  'temperatureDifference',
-  'massFlow',
-  'specificEnthalpy',
-  'heatCapacity',
-  'heatTransferCoefficient',
-  'area',
-  'length',
-  'power',
-  'massFraction',
-  'density',
-];
-
-/** Ebullio's default unit of each kind: what a bare number means, and what results are given in. */
-export const defaultUnits: Readonly<Record<QuantityKind, string>> = {
-  pressure: 'kPa',
-  temperature: '°C',
-  temperatureDifference: 'K',
-  massFlow: 'kg/s',
-  specificEnthalpy: 'kJ/kg',
-  heatCapacity: 'kJ/(kg·K)',
-  heatTransferCoefficient: 'W/(m²·K)',
-  area: 'm²',
-  length: 'm',
-  power: 'kW',
-  massFraction: 'kg/kg',
-  density: 'kg/m³',
+const FAMILY: Readonly<Record<QuantityKind, UnitFamily>> = {
+  pressure: 'pressure',
+  temperature: 'temperature',
+  temperatureDifference: 'temperatureDifference',
+  massFlow: 'massFlow',
+  specificEnthalpy: 'specificEnthalpy',
+  specificHeatCapacity: 'heatCapacity',
+  specificEntropy: 'heatCapacity',
+  heatTransferCoefficient: 'heatTransferCoefficient',
+  area: 'area',
+  length: 'length',
+  power: 'power',
+  massFraction: 'massFraction',
+  fraction: 'massFraction',
+  density: 'density',
 };
 
-/** The SI unit the engine works in, per kind. */
-export const siUnits: Readonly<Record<QuantityKind, string>> = {
+/** Ebullio's default unit of each kind (shared/quantities.ts): what a bare number means, and what results are given in. */
+export const defaultUnits: Readonly<Record<QuantityKind, string>> = Object.fromEntries(
+  quantityKinds.map((kind) => [kind, defaultUnitTable[kind].spelling]),
+) as Record<QuantityKind, string>;
+
+/** The SI unit the engine works in, per family. */
+const SI_UNITS: Readonly<Record<UnitFamily, string>> = {
   pressure: 'Pa',
   temperature: 'K',
   temperatureDifference: 'K',
@@ -97,8 +100,13 @@ export const siUnits: Readonly<Record<QuantityKind, string>> = {
   density: 'kg/m³',
 };
 
+/** The SI unit the engine works in, per kind. */
+export const siUnits: Readonly<Record<QuantityKind, string>> = Object.fromEntries(
+  quantityKinds.map((kind) => [kind, SI_UNITS[FAMILY[kind]]]),
+) as Record<QuantityKind, string>;
+
 /** js-quantities expression of each kind's SI unit. */
-const QTY_SI: Record<QuantityKind, string | undefined> = {
+const QTY_SI: Record<UnitFamily, string | undefined> = {
   pressure: 'Pa',
   temperature: 'tempK',
   temperatureDifference: 'degK',
@@ -138,7 +146,7 @@ interface UnitSpec {
   offset?: number;
 }
 
-const UNIT_TABLE: Record<QuantityKind, UnitSpec[]> = {
+const UNIT_TABLE: Record<UnitFamily, UnitSpec[]> = {
   pressure: [
     { unit: 'Pa', qty: 'Pa' },
     { unit: 'kPa', aliases: ['kPa(a)', 'kPaa', 'kPa abs'], qty: 'kPa' },
@@ -264,9 +272,9 @@ function affineFromQty(expr: string, si: string): { factor: number; offset: numb
   return { factor: (far - zero) / span, offset: zero };
 }
 
-const LOOKUP = new Map<QuantityKind, Map<string, Affine>>();
-const ACCEPTED = new Map<QuantityKind, string[]>();
-for (const kind of quantityKinds) {
+const FAMILY_LOOKUP = new Map<UnitFamily, Map<string, Affine>>();
+const FAMILY_ACCEPTED = new Map<UnitFamily, string[]>();
+for (const kind of Object.keys(UNIT_TABLE) as UnitFamily[]) {
   const map = new Map<string, Affine>();
   for (const spec of UNIT_TABLE[kind]) {
     const si = QTY_SI[kind];
@@ -277,12 +285,19 @@ for (const kind of quantityKinds) {
     const entry = { unit: spec.unit, factor: affine.factor, offset: affine.offset + (spec.offset ?? 0) };
     for (const s of [spec.unit, ...(spec.aliases ?? [])]) map.set(key(s), entry);
   }
-  LOOKUP.set(kind, map);
-  ACCEPTED.set(
+  FAMILY_LOOKUP.set(kind, map);
+  FAMILY_ACCEPTED.set(
     kind,
     UNIT_TABLE[kind].map((s) => s.unit),
   );
 }
+/** Each kind's spellings → affine maps to SI (its family's), and its accepted canonical spellings. */
+const LOOKUP = new Map<QuantityKind, Map<string, Affine>>(
+  quantityKinds.map((kind) => [kind, FAMILY_LOOKUP.get(FAMILY[kind])!]),
+);
+const ACCEPTED = new Map<QuantityKind, string[]>(
+  quantityKinds.map((kind) => [kind, FAMILY_ACCEPTED.get(FAMILY[kind])!]),
+);
 
 /** Canonical spellings accepted for a kind (aliases such as "degC" for "°C" are accepted too). */
 export function acceptedUnits(kind: QuantityKind): string[] {
@@ -307,14 +322,14 @@ export class UnitError extends Error {
 const NUMBER_AND_UNIT = /^([+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?)(.*)$/;
 
 /** Lower physical bounds in SI that no unit choice can make sense of. */
-const PHYSICAL_MIN: Partial<Record<QuantityKind, { min: number; max?: number; what: string }>> = {
+const PHYSICAL_MIN: Partial<Record<UnitFamily, { min: number; max?: number; what: string }>> = {
   pressure: { min: 0, what: 'an absolute pressure cannot be negative' },
   temperature: { min: 0, what: 'an absolute temperature cannot be below 0 K' },
   massFraction: { min: 0, max: 1, what: 'a mass fraction lies between 0 and 1 (0 % to 100 %)' },
 };
 
 function kindLabel(kind: QuantityKind): string {
-  return kind.replace(/([A-Z])/g, ' $1').toLowerCase();
+  return FAMILY[kind].replace(/([A-Z])/g, ' $1').toLowerCase();
 }
 
 function convert(value: number, unit: Affine): number {
@@ -384,7 +399,9 @@ export function parseQuantity(input: number | string, kind: QuantityKind, field:
     } else {
       const found = lookup.get(key(spelled));
       if (!found) {
-        const other = quantityKinds.find((k) => k !== kind && LOOKUP.get(k)?.has(key(spelled)));
+        const other = quantityKinds.find(
+          (k) => FAMILY[k] !== FAMILY[kind] && LOOKUP.get(k)?.has(key(spelled)),
+        );
         throw unitErrorFor(
           field,
           input,
@@ -406,7 +423,7 @@ export function parseQuantity(input: number | string, kind: QuantityKind, field:
   }
 
   const si = convert(value, unit);
-  const bound = PHYSICAL_MIN[kind];
+  const bound = PHYSICAL_MIN[FAMILY[kind]];
   if (bound && (si < bound.min || (bound.max !== undefined && si > bound.max))) {
     throw unitErrorFor(field, input, kind, `${field}: ${String(input)} is not physical: ${bound.what}`);
   }

@@ -1,18 +1,15 @@
-/** Contract of POST /v1/batch: many cases of one operation in one request. */
+/** Contract of the batch operation: many cases of one operation in one request. */
 import { z } from 'zod';
+import { batchOperationNames, type BatchOperationName } from '../operations.js';
 import { ProblemSchema } from './common.js';
 import { LiquorRefSchema } from './liquors.js';
 
-/** Operations a batch can run; each case has the body (or query) of that operation's own route. */
-export const batchOperations = [
-  'steam-saturation',
-  'steam-state',
-  'liquor-boiling-point',
-  'liquor-enthalpy',
-  'single-effect',
-  'multiple-effect',
-] as const;
-export type BatchOperation = (typeof batchOperations)[number];
+/**
+ * Operations a batch can run, by their short batch names (shared/operations.ts); each case has
+ * the body (or query) of that operation's own route.
+ */
+export const batchOperations = batchOperationNames;
+export type BatchOperation = BatchOperationName;
 
 /** Most cases in one batch request; more is refused with 413. */
 export const MAX_BATCH_ROWS = 1000;

@@ -9,52 +9,8 @@
  */
 import { z } from 'zod';
 
-/** The physical quantities the API accepts and returns. */
-export const quantityKinds = [
-  'temperature',
-  'temperatureDifference',
-  'pressure',
-  'massFlow',
-  'specificEnthalpy',
-  'specificHeatCapacity',
-  'specificEntropy',
-  'power',
-  'area',
-  'heatTransferCoefficient',
-  'massFraction',
-  'length',
-  'fraction',
-] as const;
-export type QuantityKind = (typeof quantityKinds)[number];
-
-/** Default (display) unit of each kind: inputs given as plain numbers are read in it, outputs are given in it. */
-export const defaultUnits: Record<QuantityKind, { symbol: string; label: string; examples: string[] }> = {
-  temperature: { symbol: 'degC', label: '°C', examples: ['38 degC', '311.15 K', '100 degF'] },
-  temperatureDifference: {
-    symbol: 'K',
-    label: 'K (temperature difference)',
-    examples: ['5 K', '9 delta_degF'],
-  },
-  pressure: {
-    symbol: 'kPa',
-    label: 'kPa absolute',
-    examples: ['1.4 bar', '2 barg', '20 psig', '0.3 MPa'],
-  },
-  massFlow: { symbol: 'kg/s', label: 'kg/s', examples: ['4.5 t/h', '12000 kg/h', '9000 lb/h'] },
-  specificEnthalpy: { symbol: 'kJ/kg', label: 'kJ/kg', examples: ['420 kJ/kg', '2.1e5 J/kg'] },
-  specificHeatCapacity: { symbol: 'kJ/(kg*K)', label: 'kJ/(kg·K)', examples: ['3.9 kJ/(kg*K)'] },
-  specificEntropy: { symbol: 'kJ/(kg*K)', label: 'kJ/(kg·K)', examples: ['1.3 kJ/(kg*K)'] },
-  power: { symbol: 'kW', label: 'kW', examples: ['2.5 MW', '800 kW'] },
-  area: { symbol: 'm2', label: 'm²', examples: ['120 m2', '1300 ft2'] },
-  heatTransferCoefficient: {
-    symbol: 'W/(m2*K)',
-    label: 'W/(m²·K)',
-    examples: ['1.8 kW/(m2*K)', '1500 W/(m2*K)'],
-  },
-  massFraction: { symbol: '1', label: 'mass fraction 0–1', examples: ['65 %', '60 Bx'] },
-  length: { symbol: 'm', label: 'm', examples: ['1.5 m', '60 in'] },
-  fraction: { symbol: '1', label: 'fraction 0–1', examples: ['2 %'] },
-};
+export { defaultUnits, quantityKinds, type QuantityKind } from '../quantities.js';
+import { defaultUnits, type QuantityKind } from '../quantities.js';
 
 /** Range of a quantity in its default unit. */
 export interface QuantityRange {
@@ -101,6 +57,9 @@ export const physicalRanges: Record<QuantityKind, Required<Pick<QuantityRange, '
   // A liquid column or tube: up to 1 km bounds any vessel (evaporator heads are 0–30 m).
   length: { min: 0, max: 1000 },
   fraction: { min: 0, max: 1 },
+  // Water ≈ 1000, the densest liquors a few thousand; 30 000 kg/m³ is above any substance at
+  // ordinary pressure (osmium ≈ 22 600, common practice).
+  density: { min: 0, max: 30_000 },
 };
 
 /** A kind's physical range, tightened by a field's own bounds where it has them. */
@@ -221,7 +180,16 @@ export function quantity(spec: QuantitySpec, description: string, example: numbe
       'x-unit': unit.symbol,
       'x-quantity-kind': spec.kind,
     });
+  quantitySpecs.set(schema, spec);
   return schema;
+}
+
+/** The spec of each schema made by {@link quantity}: what the server converts to SI, and how. */
+const quantitySpecs = new WeakMap<object, QuantitySpec>();
+
+/** The spec (kind and range) of a quantity schema, or undefined for any other schema. */
+export function quantitySpecOf(schema: object): QuantitySpec | undefined {
+  return quantitySpecs.get(schema);
 }
 
 export type QuantityInput = number | string;

@@ -20,8 +20,9 @@ import fs from 'node:fs';
 import type { AddressInfo } from 'node:net';
 import express from 'express';
 import { openDatabase, runMigrations } from '../../server/db/client.js';
-import { runSingleEffect } from '../../server/http/v1/evaporators.js';
-import { sendCalculation } from '../../server/http/validation.js';
+import { sendCalculation } from '../../server/http/send.js';
+import { compileOperation, runOperation } from '../../server/http/v1/operation.js';
+import { singleEffect } from '../../server/http/v1/operations/evaporators.js';
 
 const file = process.env.BARE_BODY_FILE;
 if (!file) {
@@ -36,11 +37,13 @@ app.use(express.json({ limit: 1024 * 1024 }));
 app.set('etag', false); // as the real app (server/http/app.ts)
 if (process.env.BARE_MODE === 'calculation') {
   // A built-in liquor needs no stored rows; the in-memory database only satisfies the signature.
-  const { db } = openDatabase(':memory:');
+  const { db, sqlite } = openDatabase(':memory:');
   runMigrations(db);
   const engineVersion = (responseBody as { provenance: { engineVersion: string } }).provenance.engineVersion;
+  const op = compileOperation(singleEffect);
+  const ctx = { accountId: 0, db, sqlite, engineVersion, clock: () => new Date() };
   app.post('/bare', (req, res) => {
-    sendCalculation(res, runSingleEffect(req.body, db, 0, engineVersion));
+    sendCalculation(res, runOperation(op, { body: req.body }, ctx));
   });
 } else {
   app.post('/bare', (_req, res) => {

@@ -10,7 +10,7 @@ import * as components from 'vuetify/components';
 import { ApiProblem } from '../../console/src/api/client.js';
 import LiquorUploadCard from '../../console/src/components/liquors/LiquorUploadCard.vue';
 import { uploadForm, uploadLineErrors } from '../../console/src/stores/liquors.js';
-import { duhringFromCsv } from '../../server/http/v1/stored-liquors.js';
+import { duhringFromCsv } from '../../server/liquors/index.js';
 import { ProblemError } from '../../server/http/problem.js';
 
 // Lines 3 and 5 are bad; counting lines from 1 with the header on line 1 (RFC 4180 §2: one record per line).

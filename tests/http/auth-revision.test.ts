@@ -85,7 +85,7 @@ describe('remembered keys follow the database at once', () => {
     expect((await h.usage()).body.quota.limit).toBe(1000);
     h.other.prepare('UPDATE accounts SET monthly_unit_quota = 0 WHERE id = ?').run(h.accountId);
     expect((await h.usage()).body.quota.limit).toBe(0);
-    // A lookup costs 1 unit (server/accounts/operations.ts): refused before any calculation.
+    // A lookup costs 1 unit (shared/operations.ts): refused before any calculation.
     const res = await request(h.app)
       .get('/v1/steam/saturation?pressure=101.325')
       .set('Authorization', `Bearer ${h.token}`);

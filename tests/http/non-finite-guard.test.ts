@@ -1,8 +1,8 @@
-// The guard every calculation answer and batch row passes (server/http/validation.ts): JSON
+// The guard every calculation answer and batch row passes (server/http/send.ts): JSON
 // turns NaN and ±Infinity into null without a word (ECMA-262 §25.5.2.2, SerializeJSONProperty),
 // so a result holding one is refused, naming where the number sits.
 import { describe, expect, it } from 'vitest';
-import { findNonFinite } from '../../server/http/validation.js';
+import { findNonFinite } from '../../server/http/send.js';
 
 describe('findNonFinite', () => {
   it('finds nothing in a clean result', () => {

@@ -4,8 +4,10 @@
 // their schemas and add up. So Swagger UI's "Try it out" never starts from a refused request.
 import request from 'supertest';
 import { describe, expect, it } from 'vitest';
-import { operations, type OperationSpec } from '../../server/accounts/operations.js';
-import { buildOpenApiDocument, responseExamples } from '../../server/http/openapi.js';
+import { operationInfo } from '../../server/accounts/operations.js';
+import { buildOpenApiDocument } from '../../server/http/openapi.js';
+import { usageExample } from '../../server/http/v1/operations/usage.js';
+import { v1Operations } from '../../server/http/v1/operations/index.js';
 import { StoredLiquorListSchema, UsageResponseSchema } from '../../shared/contracts/index.js';
 import { makeHarness } from './helpers.js';
 
@@ -22,6 +24,13 @@ interface Operation {
     content: Record<string, { example?: unknown; examples?: Record<string, { value: unknown }> }>;
   };
 }
+
+// The worked answers of the operations that take no input, by operationId (from their declarations).
+const responseExamples = Object.fromEntries(
+  v1Operations
+    .filter((d) => d.response.example !== undefined)
+    .map((d) => [d.openApiName, d.response.example]),
+);
 
 const doc = buildOpenApiDocument() as unknown as { paths: Record<string, Record<string, Operation>> };
 const documented = Object.entries(doc.paths).flatMap(([path, item]) =>
@@ -76,7 +85,8 @@ describe('the worked examples of the OpenAPI document', () => {
   });
 
   it('documents a usage answer whose figures add up with the catalogue’s unit costs', () => {
-    const u = responseExamples.getUsage;
+    expect(responseExamples.getUsage).toBe(usageExample);
+    const u = usageExample;
     const sum = (rows: readonly { requests: number; units: number; errors: number }[]) =>
       rows.reduce(
         (t, r) => ({
@@ -96,11 +106,11 @@ describe('the worked examples of the OpenAPI document', () => {
     expect(u.quota.remaining).toBe(u.quota.limit - u.quota.used);
     // Units are charged for requests answered below 400 only.
     for (const row of u.byOperation) {
-      const op: OperationSpec = operations[row.operation as keyof typeof operations];
+      const op = operationInfo(row.operation)!;
       const billed = row.requests - row.errors;
       if (row.operation === 'evaporators.multiple-effect') {
         // 5 + unitsPerEffect × effects: the example account runs three-effect trains.
-        expect(row.units).toBe(billed * (op.units + (op.unitsPerEffect ?? 0) * 3));
+        expect(row.units).toBe(billed * (op.units + ('unitsPerEffect' in op ? op.unitsPerEffect : 0) * 3));
       } else {
         expect(row.units).toBe(billed * op.units);
       }

@@ -1,10 +1,10 @@
-// Output rounding (server/http/validation.ts `r`): 12 significant digits, computed arithmetically
+// Output rounding (server/http/output.ts `r`): 12 significant digits, computed arithmetically
 // for the usual magnitudes. Reference: Number.prototype.toPrecision (ECMA-262 §21.1.3.5), which
 // rounds the exact decimal expansion; the two may differ only by one unit in the 12th digit of a
 // value that lies within an ulp of a rounding tie.
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { r } from '../../server/http/validation.js';
+import { r } from '../../server/http/output.js';
 
 const reference = (v: number) => Number(v.toPrecision(12));
 

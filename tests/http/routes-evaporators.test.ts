@@ -93,7 +93,7 @@ describe('POST /v1/evaporators/multiple-effect', () => {
     // Solute balance F·x_F = L·x_L (exact): 2·0.1/0.3 kg/s of product.
     expect(res.body.product.massFlow).toBeCloseTo((2 * 0.1) / 0.3, 6);
     const row = usageRows(h.sqlite).slice(before).at(-1);
-    // Operation catalogue (server/accounts/operations.ts): 5 units + 5 per effect.
+    // Operation catalogue (shared/operations.ts): 5 units + 5 per effect.
     expect(row?.units).toBe(20);
   });
 

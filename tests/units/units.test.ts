@@ -104,10 +104,10 @@ describe('parseQuantity: flows, energies, coefficients, geometry, power, density
     expect(parseQuantity('500 J/kg', 'specificEnthalpy', 'h')).toBe(500);
   });
   it('converts heat capacity (default kJ/(kg·K); 1 Btu/(lb·°F) = 4186.8 J/(kg·K) exactly)', () => {
-    expect(parseQuantity(4.19, 'heatCapacity', 'cp')).toBeCloseTo(4190, 9);
-    expect(parseQuantity('3.955 kJ/(kg·K)', 'heatCapacity', 'cp')).toBeCloseTo(3955, 9);
-    expect(parseQuantity('4.19 kJ/kg/K', 'heatCapacity', 'cp')).toBeCloseTo(4190, 9);
-    expect(parseQuantity('1 Btu/(lb·°F)', 'heatCapacity', 'cp')).toBeCloseTo(4186.8, 9); // NIST SP 811
+    expect(parseQuantity(4.19, 'specificHeatCapacity', 'cp')).toBeCloseTo(4190, 9);
+    expect(parseQuantity('3.955 kJ/(kg·K)', 'specificHeatCapacity', 'cp')).toBeCloseTo(3955, 9);
+    expect(parseQuantity('4.19 kJ/kg/K', 'specificHeatCapacity', 'cp')).toBeCloseTo(4190, 9);
+    expect(parseQuantity('1 Btu/(lb·°F)', 'specificHeatCapacity', 'cp')).toBeCloseTo(4186.8, 9); // NIST SP 811
   });
   it('converts heat-transfer coefficients', () => {
     expect(parseQuantity(1704, 'heatTransferCoefficient', 'U')).toBe(1704); // default W/(m²·K)
@@ -201,7 +201,7 @@ describe('formatOutput and defaultUnits', () => {
     expect(formatOutput(ATM, 'pressure')).toBeCloseTo(101.325, 12); // kPa absolute
     expect(formatOutput(1.25, 'massFlow')).toBe(1.25); // kg/s
     expect(formatOutput(2.257e6, 'specificEnthalpy')).toBeCloseTo(2257, 9); // kJ/kg
-    expect(formatOutput(4190, 'heatCapacity')).toBeCloseTo(4.19, 12); // kJ/(kg·K)
+    expect(formatOutput(4190, 'specificHeatCapacity')).toBeCloseTo(4.19, 12); // kJ/(kg·K)
     expect(formatOutput(250_000, 'power')).toBeCloseTo(250, 12); // kW
     expect(formatOutput(12, 'area')).toBe(12); // m²
     expect(formatOutput(1704, 'heatTransferCoefficient')).toBe(1704); // W/(m²·K)
@@ -226,7 +226,7 @@ describe('formatOutput and defaultUnits', () => {
       pressure: 'kPa',
       temperature: '°C',
       power: 'kW',
-      heatCapacity: 'kJ/(kg·K)',
+      specificHeatCapacity: 'kJ/(kg·K)',
     });
   });
 });

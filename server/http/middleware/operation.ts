@@ -1,17 +1,13 @@
 /**
  * Per-operation guard for /v1 routes: scope check, operation recording and quota-checked charging.
- *
- *   router.post('/evaporators/multiple-effect', requireOperation('evaporators.multiple-effect'), (req, res) => {
- *     const input = parse(req.body);
- *     chargeUnits(res, operations['evaporators.multiple-effect'].unitsPerEffect * input.effects.length);
- *     res.json(run(input));
- *   });
+ * The declared operations (server/http/v1/operation.ts) are guarded with {@link guardOperation};
+ * a variable cost is added with {@link chargeUnits} once the request can be read.
  *
  * Both refuse with 429 'quota-exceeded' before any calculation when the account's monthly quota
  * would be exceeded. Units are billed only when the response succeeds (status < 400).
  */
 import type { RequestHandler, Response } from 'express';
-import { operations, type OperationId } from '../../accounts/operations.js';
+import { operationInfo, type OperationId, type OperationInfo } from '../../../shared/operations.js';
 import { nextMonthStartUtc } from '../../accounts/usage.js';
 import { problem } from '../problem.js';
 import './locals.js';
@@ -50,7 +46,12 @@ function secondsUntilReset(res: Response): number {
  * operation for metering, then charges its base units (429 'quota-exceeded' if over quota).
  */
 export function requireOperation(id: OperationId): RequestHandler {
-  const spec = operations[id];
+  return guardOperation(operationInfo(id)!);
+}
+
+/** {@link requireOperation} for a catalogue entry (shared/operations.ts). */
+export function guardOperation(spec: OperationInfo): RequestHandler {
+  const id = spec.id;
   return (_req, res, next) => {
     const auth = res.locals.auth;
     const meter = res.locals.meter;

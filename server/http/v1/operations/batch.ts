@@ -1,47 +1,38 @@
 /**
- * POST /v1/batch: many cases of one operation, as JSON ({ operation, liquor?, cases: [...] }),
- * as text/csv (operation and liquor in the query string), or as a CSV file in multipart/form-data.
- * A failing case gets its own problem and does not fail the batch. Units charged = the sum of
- * the cases' own costs (the operation catalogue), charged before any case runs (429 if the quota
- * cannot cover them). `Accept: text/csv` returns one line per case with dotted column names.
+ * Many cases of one operation in one request: JSON ({ operation, liquor?, cases: [...] }),
+ * text/csv (operation and liquor in the query string), or a CSV file in multipart/form-data.
+ * `operation` is a declaration's batch name (shared/operations.ts); each case runs as that
+ * operation's own request, and its problem's paths are re-based onto `cases[i].`. A failing
+ * case gets its own problem and does not fail the batch. Units charged = the sum of the cases'
+ * own costs, charged before any case runs (429 if the quota cannot cover them).
+ * `Accept: text/csv` returns one line per case with dotted column names.
  */
 import { parse as parseCsv } from 'csv-parse/sync';
 import {
   BatchRequestSchema,
+  BatchResponseSchema,
+  BatchUploadSchema,
   MAX_BATCH_ROWS,
-  type BatchOperation,
   type BatchResponse,
-  type LiquorRef,
-} from '../../../shared/contracts/index.js';
-import { operations, type OperationId } from '../../accounts/operations.js';
-import type { AppDeps } from '../../deps.js';
-import { chargeUnits, requireOperation } from '../middleware/operation.js';
-import { toCsv } from '../csv.js';
-import { FORBIDDEN_KEYS } from '../middleware/body.js';
-import { singleCsvUpload } from '../upload.js';
-import { problem, problemTypeUri, ProblemError } from '../problem.js';
-import { findNonFinite, toProblem, validate } from '../validation.js';
-import { multipleEffectUnits, runMultipleEffect, runSingleEffect } from './evaporators.js';
-import { resolveLiquor, runBoilingPoint, runEnthalpy } from './liquors.js';
-import { runSaturation, runSteamState } from './steam.js';
-import type { V1RouteModule } from './module.js';
-
-const OPERATION_OF: Record<BatchOperation, OperationId> = {
-  'steam-saturation': 'steam.saturation',
-  'steam-state': 'steam.state',
-  'liquor-boiling-point': 'liquors.boiling-point',
-  'liquor-enthalpy': 'liquors.enthalpy',
-  'single-effect': 'evaporators.single-effect',
-  'multiple-effect': 'evaporators.multiple-effect',
-};
-
-function caseUnits(operation: BatchOperation, c: Record<string, unknown>): number {
-  if (operation === 'multiple-effect') {
-    const n = c.effects;
-    return multipleEffectUnits(typeof n === 'number' && Number.isInteger(n) && n >= 1 && n <= 10 ? n : 1);
-  }
-  return operations[OPERATION_OF[operation]].units;
-}
+} from '../../../../shared/contracts/index.js';
+import { operationCatalogue } from '../../../../shared/operations.js';
+import { z } from 'zod';
+import { toCsv } from '../../csv.js';
+import { rebaseProblem, rebaseWarnings, toProblem } from '../../engine-errors.js';
+import { FORBIDDEN_KEYS } from '../../middleware/body.js';
+import { chargeUnits } from '../../middleware/operation.js';
+import { problem, problemTypeUri, ProblemError } from '../../problem.js';
+import { findNonFinite } from '../../send.js';
+import { singleCsvUpload } from '../../upload.js';
+import { validate } from '../../validate.js';
+import {
+  compileOperation,
+  declareOperation,
+  runOperation,
+  type AnyOperation,
+  type CompiledOperation,
+  type OperationContext,
+} from '../operation.js';
 
 /** Largest array index a CSV column may name: no array of a case has more than 50 entries. */
 const MAX_COLUMN_INDEX = 999;
@@ -137,52 +128,64 @@ function flatten(value: unknown, prefix: string, out: Record<string, unknown>): 
   } else out[prefix] = value;
 }
 
+/** One case as its operation's own request (paths relative to the case). */
 function runCase(
-  operation: BatchOperation,
+  op: CompiledOperation,
   c: Record<string, unknown>,
-  batchLiquor: LiquorRef | undefined,
-  deps: AppDeps,
-  accountId: number,
-  prefix: string,
+  shared: { liquor?: unknown },
+  ctx: OperationContext,
 ): unknown {
-  const v = deps.engineVersion;
-  switch (operation) {
-    case 'steam-saturation':
-      return runSaturation(c, v, prefix);
-    case 'steam-state':
-      return runSteamState(c, v, prefix);
-    case 'liquor-boiling-point':
-    case 'liquor-enthalpy': {
-      const { liquor: own, ...rest } = c;
-      const ref = (own ?? batchLiquor) as LiquorRef | undefined;
-      if (ref === undefined) {
-        throw problem('validation-failed', 'No liquor: give `liquor` for the batch or for the case.', {
-          errors: [{ field: `${prefix}liquor`, message: 'is required' }],
-        });
-      }
-      const liquor = resolveLiquor(
-        validate(BatchRequestSchema.shape.liquor.unwrap(), ref, `${prefix}liquor`),
-        deps.db,
-        accountId,
-        `${prefix}liquor`,
-      );
-      return operation === 'liquor-boiling-point'
-        ? runBoilingPoint(liquor, rest, v, prefix)
-        : runEnthalpy(liquor, rest, v, prefix);
-    }
-    case 'single-effect':
-      return runSingleEffect(c, deps.db, accountId, v, prefix);
-    case 'multiple-effect':
-      return runMultipleEffect(c, deps.db, accountId, v, prefix);
+  const batch = op.decl.batch;
+  let input = c;
+  let caseLoad: { value: unknown } | undefined;
+  if (batch?.load) {
+    caseLoad = { value: batch.load(c, shared, ctx) };
+    input = { ...c };
+    for (const key of batch.consumes ?? []) delete input[key];
   }
+  return runOperation(op, op.body ? { body: input } : { query: input }, ctx, caseLoad);
 }
 
 // Text fields can hold an inline liquor definition, so they keep multer's 1 MB default.
 const readUpload = singleCsvUpload();
 
-export const batchRoutes: V1RouteModule = {
-  register(router, deps) {
-    router.post('/batch', requireOperation('batch'), async (req, res) => {
+/** The batch operation over the declarations that name a batch name. */
+export function batchOperation(operations: readonly AnyOperation[]) {
+  const byName = new Map<string, { op: CompiledOperation; requestKeys: ReadonlySet<string> }>();
+  for (const decl of operations) {
+    const name = (decl.operation as { batchName?: string }).batchName;
+    if (name === undefined) continue;
+    const op = compileOperation(decl);
+    const part = (op.body ?? op.query)?.schema as { shape?: Record<string, unknown> } | undefined;
+    byName.set(name, { op, requestKeys: new Set(Object.keys(part?.shape ?? {})) });
+  }
+  return declareOperation({
+    operation: operationCatalogue.batch,
+    method: 'post',
+    path: '/v1/batch',
+    openApiName: 'postBatch',
+    tag: 'Batch',
+    summary: `Many cases of one operation (JSON array or CSV upload, at most ${MAX_BATCH_ROWS} cases)`,
+    description:
+      'A failing case does not fail the batch: it gets its own problem. Units charged are the sum of the cases’ costs. ' +
+      'Send `Accept: text/csv` to receive the results as CSV (one line per case, dotted column names, `status` and `error` columns).',
+    request: {
+      body: BatchRequestSchema,
+      upload: BatchUploadSchema,
+      example: {
+        name: 'caustic-sweep',
+        summary: 'Boiling points along an invented caustic concentration sweep',
+      },
+    },
+    response: {
+      description: 'One result or problem per case',
+      schema: BatchResponseSchema,
+      alternatives: { 'text/csv': { schema: z.string().meta({ description: 'One line per case' }) } },
+    },
+    problems: {
+      413: `More than ${MAX_BATCH_ROWS} cases, or the upload is too large (type payload-too-large)`,
+    },
+    handle: async (req, res, ctx) => {
       let raw: unknown;
       if (req.is('multipart/form-data')) {
         await readUpload(req, res);
@@ -215,21 +218,27 @@ export const batchRoutes: V1RouteModule = {
         );
       }
       const batch = validate(BatchRequestSchema, raw);
-      const accountId = res.locals.auth!.accountId;
-      const units = batch.cases.reduce((sum, c) => sum + caseUnits(batch.operation, c), 0);
+      const { op, requestKeys } = byName.get(batch.operation)!;
+      const caseUnits = op.decl.batch?.units;
+      const units = batch.cases.reduce(
+        (sum, c) => sum + (caseUnits ? caseUnits(c) : op.decl.operation.units),
+        0,
+      );
       chargeUnits(res, units);
+      const shared = { liquor: batch.liquor };
 
       const results: BatchResponse['results'] = batch.cases.map((c, index) => {
-        const prefix = `cases[${index}].`;
+        const base = `cases[${index}].`;
         try {
-          const result = runCase(batch.operation, c, batch.liquor, deps, accountId, prefix);
+          const result = runCase(op, c, shared, ctx);
+          rebaseWarnings(result, base, requestKeys);
           const bad = findNonFinite(result);
           if (bad) throw problem('no-solution', `The calculation produced a non-finite number (${bad}).`);
           return { index, status: 'ok', result: result as Record<string, unknown> };
         } catch (err) {
           let p: ProblemError;
           try {
-            p = toProblem(err);
+            p = rebaseProblem(toProblem(err), base);
           } catch {
             p = problem('no-solution', 'This case could not be calculated.');
           }
@@ -269,6 +278,6 @@ export const batchRoutes: V1RouteModule = {
         return;
       }
       res.json(response);
-    });
-  },
-};
+    },
+  });
+}

@@ -1,0 +1,197 @@
+/**
+ * The one place that maps failures to problems with request field paths:
+ *
+ * - EngineRangeError → 422 'out-of-range' with the engine's field mapped back to the request
+ *   path (each operation declares which request field fed which engine input, a FieldMap), the
+ *   value and range in display units;
+ * - EngineInputError → 422 'validation-failed' naming the field; EngineNoSolutionError → 422
+ *   'no-solution';
+ * - UnitError (a string quantity in a unit we do not know, or of the wrong dimension) → 422
+ *   'validation-failed' naming the field and the accepted units;
+ * - engine warnings → API warnings with request field names and ranges in display units.
+ *
+ * Paths are relative to the request part the operation reads; a batch re-bases them onto its
+ * case (`cases[3].`) with {@link rebaseProblem} and {@link rebaseWarnings}.
+ */
+import { defaultUnits, type QuantityKind, type WarningDto } from '../../shared/contracts/index.js';
+import { EngineInputError, EngineNoSolutionError, EngineRangeError } from '../engine/errors.js';
+import type { EngineWarning } from '../engine/types.js';
+import { UnitError } from '../units/index.js';
+import { displayNumber, displayRange } from './output.js';
+import { problem, ProblemError } from './problem.js';
+import { echo } from './validate.js';
+
+/** Engine field → request field, plus the quantity kind to show its value and range in. */
+export interface FieldMapping {
+  path: string;
+  kind?: QuantityKind;
+}
+export type FieldMap = Record<string, string | FieldMapping>;
+
+const SI_KIND_BY_UNIT: Record<string, QuantityKind> = {
+  Pa: 'pressure',
+  K: 'temperature',
+  'J/kg': 'specificEnthalpy',
+  'J/(kg·K)': 'specificHeatCapacity',
+  'J/(kg*K)': 'specificHeatCapacity',
+  W: 'power',
+  'kg/s': 'massFlow',
+  'm²': 'area',
+  m2: 'area',
+  'W/(m²·K)': 'heatTransferCoefficient',
+  'W/(m2*K)': 'heatTransferCoefficient',
+  m: 'length',
+  'kg/kg': 'massFraction',
+};
+
+function mapField(map: FieldMap, engineField: string, siUnit: string): FieldMapping {
+  const direct = map[engineField];
+  const guessKind = (): QuantityKind | undefined => {
+    const kind = SI_KIND_BY_UNIT[siUnit];
+    // Temperature differences (superheat, BPR, ΔT) are in K in both SI and display units.
+    if (kind === 'temperature' && /superheat|subcool|difference|rise|delta/i.test(engineField)) {
+      return 'temperatureDifference';
+    }
+    return kind;
+  };
+  if (typeof direct === 'string') return { path: direct, kind: guessKind() };
+  if (direct) return { path: direct.path, kind: direct.kind ?? guessKind() };
+  // Longest mapped prefix: "feed" → "feed", so "feed.massFraction" keeps its tail.
+  const prefixes = Object.keys(map)
+    .filter((k) => engineField.startsWith(`${k}.`) || engineField.startsWith(`${k}[`))
+    .sort((a, b) => b.length - a.length);
+  const prefix = prefixes[0];
+  if (prefix !== undefined) {
+    const m = map[prefix]!;
+    const p = typeof m === 'string' ? m : m.path;
+    return { path: p + engineField.slice(prefix.length), kind: guessKind() };
+  }
+  return { path: engineField, kind: guessKind() };
+}
+
+/** The problem for an engine error (or undefined if `err` is not one). */
+export function engineProblem(err: unknown, map: FieldMap = {}): ProblemError | undefined {
+  if (err instanceof EngineRangeError) {
+    const { path, kind } = mapField(map, err.field, err.validRange.unit);
+    const range = displayRange(err.validRange, kind);
+    const value = displayNumber(err.value, kind);
+    const unit = kind ? defaultUnits[kind].symbol : err.validRange.unit;
+    // The context ("effect 2") leads, so a value from inside a train says where it arose.
+    const where = err.context ? `${err.context}: ` : '';
+    const message = `${where}${path} = ${Number.isFinite(value) ? value : String(value)} ${unit} is outside the valid range ${range.min} to ${range.max} ${unit}`;
+    // A labelled error (from inside a train) is fully said by the display-unit message; the
+    // engine's own text would repeat it in SI units.
+    return problem('out-of-range', err.context ? message : `${message}. ${err.message}`, {
+      errors: [{ field: path, message, value: echo(value), validRange: range }],
+    });
+  }
+  if (err instanceof EngineInputError) {
+    const { path } = mapField(map, err.field, '');
+    return problem('validation-failed', err.message, { errors: [{ field: path, message: err.message }] });
+  }
+  if (err instanceof EngineNoSolutionError) {
+    return problem('no-solution', err.message);
+  }
+  return undefined;
+}
+
+/** Converts any known error to a ProblemError; rethrows the unknown (→ 500 from the app). */
+export function toProblem(err: unknown, map: FieldMap = {}): ProblemError {
+  if (err instanceof ProblemError) return err;
+  const engine = engineProblem(err, map);
+  if (engine) return engine;
+  if (err instanceof UnitError) {
+    const accepted = `accepted units: ${err.acceptedUnits.join(', ')}`;
+    return problem('validation-failed', err.message, {
+      errors: [
+        {
+          field: err.field,
+          message: err.message.includes('accepted units') ? err.message : `${err.message} (${accepted})`,
+          value: echo(err.input),
+        },
+      ],
+    });
+  }
+  throw err;
+}
+
+/** Runs an engine calculation, turning its typed errors into problems with request field names. */
+export function calculate<T>(map: FieldMap, run: () => T): T {
+  try {
+    return run();
+  } catch (err) {
+    throw toProblem(err, map);
+  }
+}
+
+/** Engine warnings → API warnings: request field names, ranges in display units. */
+export function warningsOut(warnings: readonly EngineWarning[], map: FieldMap = {}): WarningDto[] {
+  return warnings.map((w) => {
+    const mapped = w.field === undefined ? undefined : mapField(map, w.field, w.validRange?.unit ?? '');
+    const out: WarningDto = { code: w.code, message: w.message };
+    if (mapped) out.field = mapped.path;
+    if (w.validRange) {
+      const r = displayRange(w.validRange, mapped?.kind ?? SI_KIND_BY_UNIT[w.validRange.unit]);
+      out.validRange = { min: finiteOrNull(r.min), max: finiteOrNull(r.max), unit: r.unit };
+    }
+    return out;
+  });
+}
+
+function finiteOrNull(v: number): number | null {
+  return Number.isFinite(v) ? v : null;
+}
+
+/** `text` with the path `from` replaced by `to` where a message names it ("f: …", "f = …"). */
+function renamePath(text: string, from: string, to: string): string {
+  if (text.startsWith(`${from}: `)) return to + text.slice(from.length);
+  const at = text.indexOf(`${from} = `);
+  if (at === -1 || (at > 0 && text[at - 1] !== ' ')) return text;
+  return text.slice(0, at) + to + text.slice(at + from.length);
+}
+
+/** A field path moved under `base` ("cases[3]."); the request part itself is `base` alone. */
+function rebasePath(field: string, base: string): string {
+  return field === '(body)' ? base : base + field;
+}
+
+/**
+ * The problem of a request part, re-based onto where that part sits in a larger request: a batch
+ * runs each case as the operation's own request and moves the problem's paths under `cases[3].`
+ * (in `errors[].field` and where the detail or a message names the path).
+ */
+export function rebaseProblem(p: ProblemError, base: string): ProblemError {
+  if (!p.errors || p.errors.length === 0) return p;
+  let detail = p.detail;
+  let detailRenamed = false;
+  const errors = p.errors.map((e) => {
+    const field = rebasePath(e.field, base);
+    if (detail !== undefined && !detailRenamed) {
+      const renamed = renamePath(detail, e.field, field);
+      detailRenamed = renamed !== detail;
+      detail = renamed;
+    }
+    return { ...e, field, message: renamePath(e.message, e.field, field) };
+  });
+  return new ProblemError({
+    status: p.status,
+    type: p.type,
+    title: p.title,
+    detail,
+    errors,
+    headers: p.headers,
+  });
+}
+
+/**
+ * Warnings of a batch case's result re-based like {@link rebaseProblem}: those about a field of
+ * the request (its first segment one of `requestKeys`); a warning about a result quantity
+ * (`temperatureDifference`) names no request field and keeps its name.
+ */
+export function rebaseWarnings(result: unknown, base: string, requestKeys: ReadonlySet<string>): void {
+  const warnings = (result as { warnings?: unknown } | null)?.warnings;
+  if (!Array.isArray(warnings)) return;
+  for (const w of warnings as WarningDto[]) {
+    if (w.field !== undefined && requestKeys.has(/^[^.[]*/.exec(w.field)![0])) w.field = base + w.field;
+  }
+}

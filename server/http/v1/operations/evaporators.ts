@@ -1,0 +1,295 @@
+/**
+ * Evaporators: a single effect (design, or rating when body.area is given) and a multiple-effect
+ * train (equal-area design, or rating with given areas). The contracts convert every quantity to
+ * SI before `run`; engine fields are named like the request's (feed.massFraction,
+ * steam.pressure, body.area, effects[2]…), so the field maps are mostly the identity.
+ */
+import {
+  MultipleEffectRequestSchema,
+  MultipleEffectResponseSchema,
+  SingleEffectRequestSchema,
+  SingleEffectResponseSchema,
+  type MultipleEffectResponse,
+  type SingleEffectResponse,
+} from '../../../../shared/contracts/index.js';
+import { operationCatalogue } from '../../../../shared/operations.js';
+import type { SteamSupplySpec } from '../../../engine/evaporators/common.js';
+import { designMultipleEffect, rateMultipleEffect } from '../../../engine/evaporators/multiple-effect.js';
+import {
+  designSingleEffect,
+  rateSingleEffect,
+  type StreamState,
+} from '../../../engine/evaporators/single-effect.js';
+import { resolveLiquor } from '../../../liquors/index.js';
+import { calculate, warningsOut, type FieldMap } from '../../engine-errors.js';
+import { display, provenance, r } from '../../output.js';
+import { problem } from '../../problem.js';
+import { declareOperation, type OperationContext } from '../operation.js';
+import { IF97_MODEL } from './steam.js';
+
+function stream(s: StreamState) {
+  return {
+    massFlow: r(s.massFlow),
+    massFraction: r(s.massFraction),
+    temperature: display(s.temperature, 'temperature'),
+    enthalpy: display(s.enthalpy, 'specificEnthalpy'),
+  };
+}
+
+const SINGLE_EFFECT_FIELDS: FieldMap = {
+  saturationTemperature: { path: 'steam.temperature', kind: 'temperature' },
+  'steam.saturationTemperature': { path: 'steam.temperature', kind: 'temperature' },
+  pressure: 'body.pressure',
+  productMassFraction: 'product.massFraction',
+  massFraction: 'product.massFraction',
+};
+
+// The engine names the last effect's pressure itself, and labels what a liquor model refuses
+// inside effect i as effects[i].pressure / .boilingTemperature / .massFraction; a bare
+// "pressure" is not the last effect's.
+const MULTIPLE_EFFECT_FIELDS: FieldMap = {
+  ...SINGLE_EFFECT_FIELDS,
+  pressure: 'pressure',
+  massFraction: 'product.massFraction',
+};
+
+/** The heating steam in SI → the engine's supply spec (the request's `temperature` is the saturation temperature). */
+function steamSpec(s: {
+  pressure?: number;
+  temperature?: number;
+  superheat?: number;
+  condensateSubcooling?: number;
+}): SteamSupplySpec {
+  return {
+    ...(s.pressure !== undefined ? { pressure: s.pressure } : {}),
+    ...(s.temperature !== undefined ? { saturationTemperature: s.temperature } : {}),
+    ...(s.superheat !== undefined ? { superheat: s.superheat } : {}),
+    ...(s.condensateSubcooling !== undefined ? { condensateSubcooling: s.condensateSubcooling } : {}),
+  };
+}
+
+/** The liquor of an evaporator request (inline, built-in or stored), found once the body is valid. */
+function bodyLiquor(parts: { body: { liquor: Parameters<typeof resolveLiquor>[0] } }, ctx: OperationContext) {
+  return resolveLiquor(parts.body.liquor, ctx.db, ctx.accountId, 'liquor');
+}
+
+export const singleEffect = declareOperation({
+  operation: operationCatalogue.singleEffect,
+  method: 'post',
+  path: '/v1/evaporators/single-effect',
+  openApiName: 'postSingleEffect',
+  tag: 'Evaporators',
+  summary: 'Single-effect evaporator: design (area from product) or rating (product from area)',
+  description:
+    'Mass and energy balances with the boiling-point rise included in ΔT = T_steam − T_boiling. ' +
+    'Example: an invented caustic concentrator at Harrow Vale works taking 4.5 t/h of 10 % NaOH to 30 %.',
+  request: {
+    body: SingleEffectRequestSchema,
+    example: {
+      summary: 'Harrow Vale caustic concentrator (invented)',
+      value: {
+        liquor: 'sodium-hydroxide',
+        feed: { massFlow: '4.5 t/h', massFraction: 0.1, temperature: 40 },
+        product: { massFraction: 0.3 },
+        steam: { pressure: '3 barg' },
+        body: { pressure: 20, overallHeatTransferCoefficient: 1800 },
+      },
+    },
+  },
+  response: { description: 'The evaporator', schema: SingleEffectResponseSchema },
+  loadAfterBody: true,
+  load: bodyLiquor,
+  run: ({ body: b, loaded: liquor }, ctx): SingleEffectResponse => {
+    const result = calculate(SINGLE_EFFECT_FIELDS, () => {
+      // The contract requires feed.massFlow in design and allows its absence only in rating with
+      // product.massFraction, where the engine finds it; so it is never read and then dropped.
+      const { massFlow: feedFlow, enthalpy: feedEnthalpy } = b.feed;
+      const feed = {
+        ...(feedFlow !== undefined ? { massFlow: feedFlow } : {}),
+        massFraction: b.feed.massFraction,
+        temperature: b.feed.temperature,
+        ...(feedEnthalpy !== undefined ? { enthalpy: feedEnthalpy } : {}),
+      };
+      const { massFraction: productFraction, massFlow: productFlow, enthalpy: productEnthalpy } = b.product;
+      const { liquidHeight, area } = b.body;
+      const bodySpec = {
+        pressure: b.body.pressure,
+        overallHeatTransferCoefficient: b.body.overallHeatTransferCoefficient,
+        ...(liquidHeight !== undefined ? { liquidHeight } : {}),
+      };
+      const common = {
+        liquor: liquor.model,
+        steam: steamSpec(b.steam),
+        ...(b.heatLossFraction !== undefined ? { heatLossFraction: b.heatLossFraction } : {}),
+      };
+      if (area === undefined) {
+        if (feedFlow === undefined) {
+          // unreachable past the contract; kept so the engine never sees a missing flow
+          throw problem('validation-failed', 'feed.massFlow is required in design mode', {
+            errors: [{ field: 'feed.massFlow', message: 'is required in design mode (no body.area)' }],
+          });
+        }
+        return designSingleEffect({
+          ...common,
+          feed: { ...feed, massFlow: feedFlow },
+          body: bodySpec,
+          product: {
+            ...(productFraction !== undefined ? { massFraction: productFraction } : {}),
+            ...(productFlow !== undefined ? { massFlow: productFlow } : {}),
+            ...(productEnthalpy !== undefined ? { enthalpy: productEnthalpy } : {}),
+          },
+        });
+      }
+      if (productFlow !== undefined) {
+        throw problem(
+          'validation-failed',
+          'Rating (body.area given) finds the product; give product.massFraction or nothing',
+          { errors: [{ field: 'product.massFlow', message: 'is not used in rating mode; omit it' }] },
+        );
+      }
+      return rateSingleEffect({
+        ...common,
+        body: { ...bodySpec, area },
+        ...(productFraction !== undefined
+          ? {
+              feed: {
+                massFraction: feed.massFraction,
+                temperature: feed.temperature,
+                ...(feedEnthalpy !== undefined ? { enthalpy: feedEnthalpy } : {}),
+              },
+              product: {
+                massFraction: productFraction,
+                ...(productEnthalpy !== undefined ? { enthalpy: productEnthalpy } : {}),
+              },
+            }
+          : { feed }),
+      });
+    });
+    return {
+      mode: result.mode,
+      feed: stream(result.feed),
+      product: stream(result.product),
+      vapor: {
+        massFlow: r(result.vapor.massFlow),
+        pressure: display(result.vapor.pressure, 'pressure'),
+        temperature: display(result.vapor.temperature, 'temperature'),
+        enthalpy: display(result.vapor.enthalpy, 'specificEnthalpy'),
+      },
+      steam: {
+        massFlow: r(result.steam.massFlow),
+        pressure: display(result.steam.pressure, 'pressure'),
+        temperature: display(result.steam.temperature, 'temperature'),
+        latentHeat: display(result.steam.enthalpyIn - result.steam.enthalpyOut, 'specificEnthalpy'),
+      },
+      boilingPointRise: r(result.boilingPointRise),
+      duty: display(result.duty, 'power'),
+      temperatureDifference: r(result.temperatureDifference),
+      area: r(result.area),
+      steamEconomy: r(result.steamEconomy),
+      specificSteamConsumption: r(result.specificSteamConsumption),
+      waterBoilingPoint: display(result.waterBoilingPoint, 'temperature'),
+      heatLoss: display(result.heatLoss, 'power'),
+      warnings: warningsOut([...liquor.definitionWarnings, ...result.warnings], SINGLE_EFFECT_FIELDS),
+      cautions: result.cautions,
+      provenance: provenance(ctx.engineVersion, [IF97_MODEL, ...liquor.models]),
+    };
+  },
+});
+
+/** Units beyond the base of a multiple-effect request: `unitsPerEffect` × effects (1 to 10). */
+function perEffectUnits(body: unknown): number | undefined {
+  const effects = (body as { effects?: unknown } | undefined)?.effects;
+  return Number.isInteger(effects) && (effects as number) > 0 && (effects as number) <= 10
+    ? operationCatalogue.multipleEffect.unitsPerEffect * (effects as number)
+    : undefined;
+}
+
+/** Units of a multiple-effect batch case: base + per effect, a case with no readable count as one effect. */
+export function multipleEffectCaseUnits(c: Record<string, unknown>): number {
+  return operationCatalogue.multipleEffect.units + (perEffectUnits(c) ?? perEffectUnits({ effects: 1 })!);
+}
+
+export const multipleEffect = declareOperation({
+  operation: operationCatalogue.multipleEffect,
+  method: 'post',
+  path: '/v1/evaporators/multiple-effect',
+  openApiName: 'postMultipleEffect',
+  tag: 'Evaporators',
+  summary: 'Multiple-effect train (forward, backward, parallel or mixed feed), equal-area design or rating',
+  request: {
+    body: MultipleEffectRequestSchema,
+    example: {
+      summary: 'Four-effect juice evaporator at the invented Corrin Flats sugar factory',
+      value: {
+        liquor: 'sucrose',
+        effects: 4,
+        feedArrangement: 'forward',
+        feed: { massFlow: '40 t/h', massFraction: '15 Bx', temperature: 95 },
+        product: { massFraction: '65 Bx' },
+        steam: { pressure: '2 barg' },
+        lastEffectPressure: 20,
+        overallHeatTransferCoefficients: [2800, 2300, 1800, 1100],
+      },
+    },
+  },
+  response: { description: 'The train', schema: MultipleEffectResponseSchema },
+  extraUnits: perEffectUnits,
+  loadAfterBody: true,
+  load: bodyLiquor,
+  run: ({ body: b, loaded: liquor }, ctx): MultipleEffectResponse => {
+    const result = calculate(MULTIPLE_EFFECT_FIELDS, () => {
+      const F = b.feed.massFlow;
+      const xF = b.feed.massFraction;
+      const feed = { massFlow: F, massFraction: xF, temperature: b.feed.temperature };
+      let productMassFraction = b.product.massFraction;
+      const productFlow = b.product.massFlow;
+      if (productFlow !== undefined) productMassFraction = (F * xF) / productFlow; // solute balance F·x_F = L·x_L
+      const input = {
+        liquor: liquor.model,
+        feed,
+        steam: steamSpec(b.steam),
+        lastEffectPressure: b.lastEffectPressure,
+        overallHeatTransferCoefficients: b.overallHeatTransferCoefficients,
+        feedArrangement: b.feedArrangement,
+        ...(b.vaporBleeds ? { vaporBleeds: b.vaporBleeds } : {}),
+        ...(productMassFraction !== undefined ? { productMassFraction } : {}),
+        ...(b.feedPreheat ? { feedPreheat: b.feedPreheat } : {}),
+        ...(b.condensateFlash !== undefined ? { condensateFlash: b.condensateFlash } : {}),
+      };
+      if (b.areas) return rateMultipleEffect({ ...input, areas: b.areas });
+      return designMultipleEffect(input);
+    });
+    return {
+      effects: result.effects.map((e) => ({
+        pressure: display(e.pressure, 'pressure'),
+        vaporTemperature: display(e.vaporTemperature, 'temperature'),
+        boilingPoint: display(e.boilingPoint, 'temperature'),
+        boilingPointRise: r(e.boilingPointRise),
+        temperatureDifference: r(e.temperatureDifference),
+        liquorFlow: r(e.liquorOutFlow),
+        massFraction: r(e.massFraction),
+        vaporFlow: r(e.vaporFlow),
+        duty: display(e.duty, 'power'),
+        area: r(e.area),
+        vaporBleed: r(e.vaporBleed),
+      })),
+      steam: {
+        massFlow: r(result.steam.massFlow),
+        pressure: display(result.steam.pressure, 'pressure'),
+        temperature: display(result.steam.temperature, 'temperature'),
+        latentHeat: display(result.steam.heatPerKg, 'specificEnthalpy'),
+      },
+      product: stream(result.product),
+      totalArea: r(result.totalArea),
+      evaporation: r(result.evaporation),
+      steamEconomy: r(result.steamEconomy),
+      iterations: result.iterations,
+      residual: result.residual,
+      feedPreheatDuty: display(result.feedPreheat?.duty ?? 0, 'power'),
+      warnings: warningsOut([...liquor.definitionWarnings, ...result.warnings], MULTIPLE_EFFECT_FIELDS),
+      cautions: result.cautions,
+      provenance: provenance(ctx.engineVersion, [IF97_MODEL, ...liquor.models]),
+    };
+  },
+  batch: { units: multipleEffectCaseUnits },
+});

@@ -1,0 +1,39 @@
+/**
+ * Every /v1 operation, declared once (server/http/v1/operation.ts). The router, the OpenAPI
+ * document and the batch dispatcher are built from this list; its order is the order of the
+ * OpenAPI document's paths. Add a new operation's declaration here.
+ */
+import type { AnyOperation } from '../operation.js';
+import { batchOperation } from './batch.js';
+import { multipleEffect, singleEffect } from './evaporators.js';
+import { liquorBoilingPoint, liquorEnthalpy, liquorGet, liquorList } from './liquors.js';
+import { steamSaturation, steamState } from './steam.js';
+import { storedLiquorCreate, storedLiquorDelete, storedLiquorList } from './stored-liquors.js';
+import { usageRead } from './usage.js';
+
+const calculations: AnyOperation[] = [
+  steamSaturation,
+  steamState,
+  liquorList,
+  storedLiquorCreate,
+  storedLiquorList,
+  liquorGet,
+  storedLiquorDelete,
+  liquorBoilingPoint,
+  liquorEnthalpy,
+  singleEffect,
+  multipleEffect,
+];
+
+export const v1Operations: readonly AnyOperation[] = [
+  ...calculations,
+  batchOperation(calculations),
+  usageRead,
+];
+
+const byId = new Map<string, AnyOperation>(v1Operations.map((d) => [d.operation.id, d]));
+
+/** The declaration of a dotted operation id (undefined for an unknown id). */
+export function operationDeclaration(id: string): AnyOperation | undefined {
+  return byId.get(id);
+}

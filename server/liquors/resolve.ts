@@ -1,0 +1,65 @@
+/**
+ * The one place that turns a request's `liquor` (a built-in id, an id stored by the account, or
+ * an inline definition in display units) into an engine LiquorModel, with a bounded cache of
+ * compiled stored liquors. The /v1 operations and the console use it alike.
+ */
+import type { LiquorRef } from '../../shared/contracts/index.js';
+import type { Db } from '../db/client.js';
+import type { LiquorModel } from '../engine/liquors/model.js';
+import { findBuiltInLiquor } from '../engine/liquors/registry.js';
+import type { EngineWarning } from '../engine/types.js';
+import { problem } from '../http/problem.js';
+import type { ModelRef } from '../http/output.js';
+import { buildCustomLiquor } from './definition.js';
+import { findStoredLiquor } from './repository.js';
+
+export interface ResolvedLiquor {
+  model: LiquorModel;
+  /** For provenance. */
+  models: ModelRef[];
+  /** Warnings about the definition itself (custom liquors). */
+  definitionWarnings: EngineWarning[];
+}
+
+function modelRefs(model: LiquorModel): ModelRef[] {
+  return [{ id: model.id, source: model.sources.map((s) => s.reference).join('; ') }];
+}
+
+/** Compiled stored liquors, oldest first (a Map keeps insertion order), bounded. */
+const compiledStored = new Map<number, ResolvedLiquor>();
+const COMPILED_STORED_MAX = 256;
+
+/**
+ * The liquor a request names: a built-in id, an id stored by this account, or an inline
+ * definition. 404 'not-found' for an unknown id (the field is named in `errors`).
+ */
+export function resolveLiquor(ref: LiquorRef, db: Db, accountId: number, field: string): ResolvedLiquor {
+  if (typeof ref === 'string') {
+    const builtIn = findBuiltInLiquor(ref);
+    if (builtIn) return { model: builtIn, models: modelRefs(builtIn), definitionWarnings: [] };
+    const stored = findStoredLiquor(db, accountId, ref);
+    if (!stored) {
+      throw problem(
+        'not-found',
+        `There is no built-in liquor and no liquor stored by this account with the id "${ref}".`,
+        {
+          errors: [{ field, message: 'unknown liquor id', value: ref }],
+        },
+      );
+    }
+    // Stored rows are immutable (created or deleted, never edited) and row ids are never reused,
+    // so a row compiles once; the lookup above still runs first, so a deleted or re-created
+    // liquor is never served stale.
+    const cached = compiledStored.get(stored.rowId);
+    if (cached) return cached;
+    const model = buildCustomLiquor(stored.definition, field, ref);
+    const resolved = { model, models: modelRefs(model), definitionWarnings: model.definitionWarnings };
+    if (compiledStored.size >= COMPILED_STORED_MAX) {
+      compiledStored.delete(compiledStored.keys().next().value as number);
+    }
+    compiledStored.set(stored.rowId, resolved);
+    return resolved;
+  }
+  const model = buildCustomLiquor(ref, field);
+  return { model, models: modelRefs(model), definitionWarnings: model.definitionWarnings };
+}
