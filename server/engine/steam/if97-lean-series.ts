@@ -15,7 +15,7 @@ export interface PowerSeries {
   /** Iᵢ and Jᵢ as numbers (for derivative factors). */
   readonly I: Float64Array;
   readonly J: Float64Array;
-  /** Iᵢ − iMin and Jᵢ − jMin: the index of x^Iᵢ and y^Jᵢ in the power scratch arrays. */
+  /** Iᵢ − iMin + 3 and Jᵢ − jMin + 3: the index of x^Iᵢ and y^Jᵢ in the power scratch arrays. */
   readonly xIndex: Int32Array;
   readonly yIndex: Int32Array;
   /** Exponent ranges, widened to include 0. */
@@ -51,39 +51,70 @@ export function powerSeries(rows: readonly number[], iScale = 1): PowerSeries {
   const iMax = Math.max(0, ...scaledI);
   const jMin = Math.min(0, ...J);
   const jMax = Math.max(0, ...J);
-  if (iMax - iMin >= SCRATCH || jMax - jMin >= SCRATCH) throw new Error('exponent range too wide');
+  if (iMax - iMin + 2 * POWER_OFFSET >= SCRATCH || jMax - jMin + 2 * POWER_OFFSET >= SCRATCH) {
+    throw new Error('exponent range too wide');
+  }
   const xIndex = new Int32Array(count);
   const yIndex = new Int32Array(count);
   for (let k = 0; k < count; k++) {
-    xIndex[k] = (scaledI[k] as number) - iMin;
-    yIndex[k] = (J[k] as number) - jMin;
+    xIndex[k] = (scaledI[k] as number) - iMin + POWER_OFFSET;
+    yIndex[k] = (J[k] as number) - jMin + POWER_OFFSET;
   }
   return { count, n, I, J, xIndex, yIndex, iMin, iMax, jMin, jMax };
 }
 
-const SCRATCH = 96;
+const SCRATCH = 128;
+/**
+ * x^k lies at buf[k − min + POWER_OFFSET] after {@link fillPowers}: the offset leaves room for the
+ * entries its four chains write before min.
+ */
+export const POWER_OFFSET = 3;
 /** Powers of x and y for the current evaluation (module scratch: evaluation is synchronous). */
 export const xPowers = new Float64Array(SCRATCH);
 export const yPowers = new Float64Array(SCRATCH);
 
 /**
  * Writes x^k into buf[k − min] for min ≤ k ≤ max (min ≤ 0 ≤ max): positive powers by repeated
- * multiplication by x, negative ones by repeated multiplication by 1/x.
+ * multiplication, negative ones by repeated multiplication of 1/x. Four interleaved chains
+ * (x^k = x^(k−4)·x⁴) keep the multiplications independent of each other, so the processor can
+ * overlap them; each power carries at most k/4 + 2 roundings. May write up to three entries past
+ * max and before min (the scratch arrays leave room for that).
  */
 export function fillPowers(buf: Float64Array, x: number, min: number, max: number): void {
-  const zero = -min;
-  buf[zero] = 1;
-  let v = 1;
-  for (let k = 1; k <= max; k++) {
-    v *= x;
-    buf[zero + k] = v;
+  const zero = -min + 3;
+  const x2 = x * x;
+  const x4 = x2 * x2;
+  let a = 1;
+  let b = x;
+  let c = x2;
+  let d = x2 * x;
+  for (let k = zero; k <= zero + max; k += 4) {
+    buf[k] = a;
+    buf[k + 1] = b;
+    buf[k + 2] = c;
+    buf[k + 3] = d;
+    a *= x4;
+    b *= x4;
+    c *= x4;
+    d *= x4;
   }
   if (min < 0) {
-    const inv = 1 / x;
-    v = 1;
-    for (let k = 1; k <= zero; k++) {
-      v *= inv;
-      buf[zero - k] = v;
+    const i1 = 1 / x;
+    const i2 = i1 * i1;
+    const i4 = i2 * i2;
+    b = i1;
+    c = i2;
+    d = i2 * i1;
+    a = i4;
+    for (let k = zero - 1; k >= zero + min; k -= 4) {
+      buf[k] = b;
+      buf[k - 1] = c;
+      buf[k - 2] = d;
+      buf[k - 3] = a;
+      b *= i4;
+      c *= i4;
+      d *= i4;
+      a *= i4;
     }
   }
 }

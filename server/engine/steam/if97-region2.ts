@@ -100,9 +100,10 @@ for (let k = 0; k < IDEAL_COUNT; k++) {
   J0[k] = TABLE_10[2 * k] as number;
   N0[k] = TABLE_10[2 * k + 1] as number;
 }
-/** τ^J° for J° = −5 … 3, at index J° + 5. */
-const idealPowers = new Float64Array(9);
-const IDEAL_OFFSET = 5;
+/** τ^J° for J° = −5 … 3, at index J° + IDEAL_OFFSET (with room for fillPowers' chains). */
+const idealPowers = new Float64Array(16);
+const IDEAL_MIN = -5;
+const IDEAL_OFFSET = -IDEAL_MIN + series.POWER_OFFSET;
 
 const T11 = powerSeries(TABLE_11);
 const count = T11.count;
@@ -131,7 +132,7 @@ for (let k = 0; k < count; k++) {
  */
 const idealSums = new Float64Array(3);
 function idealPart(tau: number): void {
-  fillPowers(idealPowers, tau, -IDEAL_OFFSET, 3);
+  fillPowers(idealPowers, tau, IDEAL_MIN, 3);
   let g = 0;
   let tg = 0;
   let ttg = 0;
@@ -160,7 +161,7 @@ export function region2Enthalpy(p: number, T: number): number {
   const tau = T_STAR / T;
   const y = tau - 0.5;
   // Ideal-gas part: τ·γ°_τ = Σ n°·J°·τ^J°, with the powers built by multiplication.
-  fillPowers(idealPowers, tau, -IDEAL_OFFSET, 3);
+  fillPowers(idealPowers, tau, IDEAL_MIN, 3);
   let tg0 = 0;
   for (let k = 0; k < IDEAL_COUNT; k++) {
     const J = J0[k] as number;
