@@ -1361,11 +1361,24 @@ function effectResults(
   });
 }
 
+/** Equation residual above which an apparently converged point is refused (converged ones are < 1e-9). */
+const STALLED_RESIDUAL = 1e-6;
+
 /** The result at the converged point. */
 function assembleResult(spec: TrainSpec, st: TrainState, iterations: number): MultipleEffectResult {
   const { n, steam, liquor } = spec;
   const areas = finalEvaluation(spec, st, iterations);
   const { residual, effects: effectResiduals } = equationResiduals(spec, st, areas);
+  // The flow step is damped until every flow is physical. Where the true solution needs a
+  // negative flow, that damping can leave the iteration standing still against the boundary: it
+  // looks converged (no change) while the equations are not met. Refuse that point rather than
+  // return it.
+  if (!(residual <= STALLED_RESIDUAL)) {
+    throw new EngineNoSolutionError(
+      'No physical solution: the iteration stalled where the balances need a negative flow (a bleed larger than the vapour an effect makes, or an effect whose heat cannot even bring the liquor it receives to its boiling point)',
+      { iterations, residual, reason: 'negative-flow' },
+    );
+  }
   const { flashVapor, energyOut: condensateEnergy } = condensateCascade(spec, st);
   const { product, enthalpyFlow } = productStream(spec, st);
   const { balances, evaporation } = trainBalances(

@@ -4,13 +4,24 @@
  * Lucerne, 2007, revised 2012; cited in results as {@link IF97_CITATION}); W. Wagner et al., "The IAPWS Industrial Formulation 1997 for the
  * Thermodynamic Properties of Water and Steam", J. Eng. Gas Turbines Power 122 (2000) 150–182.
  *
- * The equations themselves come from the npm package `@neutrium/thermo.eos.iapws97` 2.0.2
- * (exact version pinned in package.json); no other engine file imports that package and this
- * module writes no IF97 equation of its own. It converts the package's units (MPa, kJ) to SI,
- * finds the region itself (the package's own mode search only handles (p, T)), iterates the
- * region-3 density on the forward equation, solves the region-3 saturated densities, handles the
- * two-phase dome for (p, h) states, refines the package's backward T(p, h) with the forward
- * equation, and turns out-of-range input into an {@link EngineRangeError} naming the input.
+ * Two implementations sit behind this one adapter, and it picks the path:
+ * - Ebullio's lean core (steam/if97-lean.ts and the files it lists) for regions 1, 2 and 4, the
+ *   B23 boundary and the backward equations T(p, h) and T(p, s) of regions 1 and 2: plain
+ *   arithmetic over the release's coefficient tables, no allocation per call, so that solver loops
+ *   do not wait on steam properties;
+ * - the npm package `@neutrium/thermo.eos.iapws97` 2.0.2 (exact version pinned in package.json)
+ *   for region 3, region 5 and the transport properties; no other engine file imports it. The
+ *   tests also keep it as the oracle of the lean core where both evaluate the same equation.
+ * This module converts the package's units (MPa, kJ) to SI, finds the region itself (the
+ * package's own mode search only handles (p, T)), iterates the region-3 density on the forward
+ * equation, solves the region-3 saturated densities, handles the two-phase dome for (p, h) and
+ * (p, s) states, refines the backward temperatures with the forward equation, and turns
+ * out-of-range input into an {@link EngineRangeError} naming the input.
+ *
+ * The package carries three coefficients that differ from the release in a digit (Table 34's n₉,
+ * Table 20's n₃₂, Table 25's n₁₂; see steam/if97-region4.ts and steam/if97-backward.ts); the lean
+ * core uses the release's values, so saturation pressures and temperatures here follow the release
+ * (and python3-iapws) rather than the package, by up to ≈ 1e-8 relative near the critical point.
  *
  * Validity (R7-97(2012) section 4): 273.15 K ≤ T ≤ 1073.15 K at 0 < p ≤ 100 MPa (regions 1–4) and
  * 1073.15 K < T ≤ 2273.15 K at 0 < p ≤ 50 MPa (region 5). Saturation: 273.15 K to 647.096 K,
@@ -35,6 +46,24 @@
 import { createRequire } from 'node:module';
 import { EngineNoSolutionError, EngineRangeError } from '../errors.js';
 import type { Citation } from '../types.js';
+import * as lean from './if97-lean.js';
+import type { LeanProperties } from './if97-lean.js';
+
+// Module-local aliases of the lean core: hot paths then call constants of this module rather than
+// imported bindings (which some loaders compile to property getters).
+const {
+  b23Pressure,
+  region1Enthalpy,
+  region1EnthalpyAtPS,
+  region1Properties,
+  region1TemperaturePH,
+  region2Enthalpy,
+  region2EnthalpyAtPS,
+  region2Properties,
+  region2TemperaturePH,
+  saturationPressureLean,
+  saturationTemperatureLean,
+} = lean;
 
 const require = createRequire(import.meta.url);
 
@@ -60,10 +89,6 @@ interface PackagePT {
   b23_T_P(T: number): number;
   b23_P_T(pMPa: number): number;
 }
-interface PackagePH {
-  r1_PH_T(pMPa: number, h: number): number;
-  r2(pMPa: number, h: number): RawState;
-}
 interface PackageBase {
   viscosity(T: number, rho: number): number;
   thermal_conductivity(T: number, rho: number): number;
@@ -77,7 +102,6 @@ interface PackageThermo {
 
 interface PrivatePackage {
   PT: PackagePT;
-  PH: PackagePH;
   /** R12-08 viscosity, μPa·s, of (T in K, ρ in kg/m³): the package's function. */
   viscosity: (T: number, rho: number) => number;
   /** R15-11 thermal conductivity without λ2, mW/(m·K), of (T in K, ρ in kg/m³). */
@@ -86,21 +110,19 @@ interface PrivatePackage {
 
 /**
  * Loads a private copy of the package (see the module comment): the require cache entries of
- * the four modules involved are set aside, the modules are loaded afresh, patched, and the
+ * the three modules involved are set aside, the modules are loaded afresh, patched, and the
  * original cache entries are put back, so any other `require` of the package still gets the
  * ordinary, unpatched instance.
  */
 function loadPrivatePackage(): PrivatePackage {
   const ptPath = require.resolve('@neutrium/thermo.eos.iapws97/dist/PT');
-  const phPath = require.resolve('@neutrium/thermo.eos.iapws97/dist/PH');
   const basePath = require.resolve('@neutrium/thermo.eos.iapws97/dist/base');
   const thermoPath = createRequire(ptPath).resolve('@neutrium/thermo');
-  const paths = [ptPath, phPath, basePath, thermoPath];
+  const paths = [ptPath, basePath, thermoPath];
   const saved = paths.map((p) => require.cache[p]);
   for (const p of paths) delete require.cache[p];
   try {
     const PT = require(ptPath) as PackagePT;
-    const PH = require(phPath) as PackagePH;
     const base = require(basePath) as PackageBase;
     const thermo = require(thermoPath) as PackageThermo;
     const viscosity = base.viscosity;
@@ -115,7 +137,7 @@ function loadPrivatePackage(): PrivatePackage {
     thermo.State = function RawResult(r: RawState): RawState {
       return r;
     };
-    return { PT, PH, viscosity, thermalConductivity };
+    return { PT, viscosity, thermalConductivity };
   } finally {
     paths.forEach((p, i) => {
       const entry = saved[i];
@@ -125,15 +147,10 @@ function loadPrivatePackage(): PrivatePackage {
   }
 }
 
-const {
-  PT,
-  PH,
-  viscosity: packageViscosity,
-  thermalConductivity: packageConductivity,
-} = loadPrivatePackage();
+const { PT, viscosity: packageViscosity, thermalConductivity: packageConductivity } = loadPrivatePackage();
 
 /** p_s(647.095 K) by eq. 30, Pa: the highest pressure with saturated states (≈ 22.0637 MPa). */
-const MAX_SATURATION_STATE_PRESSURE = PT.r4_T_Psat(647.095) * 1e6;
+const MAX_SATURATION_STATE_PRESSURE = saturationPressureLean(647.095);
 
 /** Title of the IAPWS release this module implements. */
 const IF97_RELEASE =
@@ -285,16 +302,57 @@ function checkPressure(pressure: number, max: number): void {
   }
 }
 
+/** Forward properties of one state in SI, from the lean core or converted from the package. */
+interface Props extends LeanProperties {
+  /** Pa */
+  p: number;
+  /** K */
+  t: number;
+}
+
+/** Full forward properties of region 1 or 2 at (p, T) from the lean core. */
+function leanProps(region: 1 | 2, pressure: number, temperature: number): Props {
+  const out: Props = {
+    p: pressure,
+    t: temperature,
+    v: NaN,
+    u: NaN,
+    s: NaN,
+    h: NaN,
+    cp: NaN,
+    cv: NaN,
+    w: NaN,
+  };
+  if (region === 1) region1Properties(pressure, temperature, out);
+  else region2Properties(pressure, temperature, out);
+  return out;
+}
+
+/** A package result (Pa, kJ-based energies) in SI. */
+function fromPackage(raw: RawState): Props {
+  return {
+    p: raw.p, // the package already reports Pa
+    t: raw.t,
+    v: raw.v,
+    u: raw.u * KJ,
+    s: raw.s * KJ,
+    h: raw.h * KJ,
+    cp: raw.cp * KJ,
+    cv: raw.cv * KJ,
+    w: raw.w,
+  };
+}
+
 function finiteOrUndefined(value: number, scale: number): number | undefined {
   const v = value * scale;
   return Number.isFinite(v) ? v : undefined;
 }
 
 /**
- * Converts a raw package result to SI. The thermodynamic core (p, v, u, s, h) must be finite or
- * the state is refused; cp, cv and w become undefined if the package produced a non-number.
+ * Builds the state from SI properties. The thermodynamic core (p, v, u, s, h) must be finite or
+ * the state is refused; cp, cv and w become undefined if the equations produced a non-number.
  */
-function toState(raw: RawState, region: Region, phase: Phase, transport: boolean): WaterState {
+function toState(raw: Props, region: Region, phase: Phase, transport: boolean): WaterState {
   const core = [raw.p, raw.t, raw.v, raw.u, raw.s, raw.h];
   if (!core.every((x) => typeof x === 'number' && Number.isFinite(x)) || !(raw.v > 0)) {
     throw new EngineNoSolutionError(`IF97 region ${region} gave no finite state at T = ${raw.t} K`, {
@@ -304,16 +362,16 @@ function toState(raw: RawState, region: Region, phase: Phase, transport: boolean
   const state: WaterState = {
     region,
     phase,
-    pressure: raw.p, // the package already reports Pa
+    pressure: raw.p,
     temperature: raw.t,
-    enthalpy: raw.h * KJ,
-    entropy: raw.s * KJ,
-    internalEnergy: raw.u * KJ,
+    enthalpy: raw.h,
+    entropy: raw.s,
+    internalEnergy: raw.u,
     specificVolume: raw.v,
     density: 1 / raw.v,
   };
-  const cp = finiteOrUndefined(raw.cp, KJ);
-  const cv = finiteOrUndefined(raw.cv, KJ);
+  const cp = finiteOrUndefined(raw.cp, 1);
+  const cv = finiteOrUndefined(raw.cv, 1);
   const w = finiteOrUndefined(raw.w, 1);
   if (cp !== undefined) state.heatCapacity = cp;
   if (cv !== undefined) state.isochoricHeatCapacity = cv;
@@ -340,7 +398,7 @@ function singlePhase(region: Region, pressure: number, temperature: number, dens
  * equation (R7-97(2012) section 8.2).
  *
  * Validity: 611.213 Pa to 22.064 MPa.
- * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), lean core (steam/if97-region4.ts).
  *
  * @param pressure p, Pa
  * @returns T_s, K
@@ -348,14 +406,14 @@ function singlePhase(region: Region, pressure: number, temperature: number, dens
  */
 export function saturationTemperature(pressure: number): number {
   checkRange('pressure', pressure, 'Pa', IF97.minPressure, IF97.criticalPressure);
-  return PT.r4_P_Tsat(pressure / MPA);
+  return saturationTemperatureLean(pressure);
 }
 
 /**
  * Saturation pressure p_s(T): IF97 eq. 30 (R7-97(2012) section 8.1).
  *
  * Validity: 273.15 K to 647.096 K.
- * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), lean core (steam/if97-region4.ts).
  *
  * @param temperature T, K
  * @returns p_s, Pa
@@ -363,7 +421,7 @@ export function saturationTemperature(pressure: number): number {
  */
 export function saturationPressure(temperature: number): number {
   checkRange('temperature', temperature, 'K', IF97.minTemperature, IF97.criticalTemperature);
-  return PT.r4_T_Psat(temperature) * MPA;
+  return saturationPressureLean(temperature);
 }
 
 /**
@@ -386,11 +444,10 @@ export function regionAtPT(pressure: number, temperature: number): Exclude<Regio
     return 5;
   }
   checkPressure(pressure, IF97.maxPressure);
-  const pMPa = pressure / MPA;
   if (temperature <= IF97.region13Temperature) {
-    return pMPa >= PT.r4_T_Psat(temperature) ? 1 : 2;
+    return pressure >= saturationPressureLean(temperature) ? 1 : 2;
   }
-  return pMPa > PT.b23_T_P(temperature) ? 3 : 2;
+  return pressure > b23Pressure(temperature) ? 3 : 2;
 }
 
 /**
@@ -437,23 +494,29 @@ function region3Density(pressure: number, temperature: number, side: -1 | 0 | 1)
   });
 }
 
-/** Raw package state of a single-phase (p, T) point, region chosen by the IF97 boundaries. */
-function rawAtPT(pressure: number, temperature: number): { raw: RawState; region: Exclude<Region, 4> } {
+/**
+ * SI properties of a single-phase (p, T) point, region chosen by the IF97 boundaries: the lean core
+ * in regions 1 and 2, the package in regions 3 and 5.
+ */
+function rawAtPT(pressure: number, temperature: number): { raw: Props; region: Exclude<Region, 4> } {
   const region = regionAtPT(pressure, temperature);
-  const pMPa = pressure / MPA;
   switch (region) {
     case 1:
-      return { raw: PT.r1(pMPa, temperature), region };
     case 2:
-      return { raw: PT.r2(pMPa, temperature), region };
-    case 3: {
-      const raw = PT.r3(pMPa, temperature, region3Density(pressure, temperature, 0));
-      raw.p = pressure; // the forward pressure agrees to 1e-11 relative; report the input itself
-      return { raw, region };
-    }
+      return { raw: leanProps(region, pressure, temperature), region };
+    case 3:
     case 5:
-      return { raw: PT.r5(pMPa, temperature), region };
+      return { raw: packageAtPT(region, pressure, temperature), region };
   }
+}
+
+/** Region 3 (density iterated) or region 5 properties from the package, SI. */
+function packageAtPT(region: 3 | 5, pressure: number, temperature: number): Props {
+  const pMPa = pressure / MPA;
+  if (region === 5) return fromPackage(PT.r5(pMPa, temperature));
+  const raw = fromPackage(PT.r3(pMPa, temperature, region3Density(pressure, temperature, 0)));
+  raw.p = pressure; // the forward pressure agrees to 1e-11 relative; report the input itself
+  return raw;
 }
 
 /**
@@ -462,7 +525,8 @@ function rawAtPT(pressure: number, temperature: number): { raw: RawState; region
  * returned pressure is the input pressure (in region 3, p(ρ, T) matches it to 1e-11).
  *
  * Validity: 273.15–1073.15 K at 0 < p ≤ 100 MPa, 1073.15–2273.15 K at 0 < p ≤ 50 MPa.
- * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}): the lean core in regions 1 and 2,
+ * `@neutrium/thermo.eos.iapws97` in regions 3 and 5 and for the transport properties.
  *
  * @param pressure p, Pa
  * @param temperature T, K
@@ -497,9 +561,9 @@ export function region3StateAtDensity(
 ): WaterState {
   checkRange('temperature', temperature, 'K', IF97.region13Temperature, 863.15);
   checkRange('density', density, 'kg/m³', 1, 1000);
-  const raw = PT.r3(1, temperature, density); // the pressure argument is unused when ρ is given
+  const raw = fromPackage(PT.r3(1, temperature, density)); // the pressure argument is unused when ρ is given
   const state = toState(raw, 3, 'liquid', options.transport ?? true);
-  const pB23 = PT.b23_T_P(temperature) * MPA;
+  const pB23 = b23Pressure(temperature);
   if (state.pressure < pB23 || state.pressure > IF97.maxPressure) {
     throw new EngineRangeError(
       'density',
@@ -513,15 +577,15 @@ export function region3StateAtDensity(
 }
 
 /**
- * Saturated liquid and vapour raw states at (p_s, T_s). Up to 623.15 K: regions 1 and 2 at
- * (p_s, T_s), as R7-97(2012) section 8 prescribes. Above, both lie in region 3: the densities
- * ρ' > ρc > ρ'' solve p(ρ, T_s) = p_s from eq. 28 on each branch (the method R7-97(2012)
+ * Saturated liquid and vapour properties at (p_s, T_s), SI. Up to 623.15 K: regions 1 and 2 at
+ * (p_s, T_s), as R7-97(2012) section 8 prescribes (lean core). Above, both lie in region 3: the
+ * densities ρ' > ρc > ρ'' solve p(ρ, T_s) = p_s from eq. 28 on each branch (the method R7-97(2012)
  * section 8 names for region 3), up to 647.095 K (see IF97.maxSaturationStateTemperature).
  */
-function rawSaturated(pressure: number, temperature: number): { liquid: RawState; vapor: RawState } {
+function rawSaturated(pressure: number, temperature: number): { liquid: Props; vapor: Props } {
   const pMPa = pressure / MPA;
   if (temperature <= IF97.region13Temperature) {
-    return { liquid: PT.r1(pMPa, temperature), vapor: PT.r2(pMPa, temperature) };
+    return { liquid: leanProps(1, pressure, temperature), vapor: leanProps(2, pressure, temperature) };
   }
   const rhoL = region3Density(pressure, temperature, -1);
   const rhoV = region3Density(pressure, temperature, 1);
@@ -530,7 +594,10 @@ function rawSaturated(pressure: number, temperature: number): { liquid: RawState
       reason: 'region-3-saturation',
     });
   }
-  return { liquid: PT.r3(pMPa, temperature, rhoL), vapor: PT.r3(pMPa, temperature, rhoV) };
+  return {
+    liquid: fromPackage(PT.r3(pMPa, temperature, rhoL)),
+    vapor: fromPackage(PT.r3(pMPa, temperature, rhoV)),
+  };
 }
 
 function saturatedStates(pressure: number, temperature: number, transport: boolean): SaturationProperties {
@@ -549,7 +616,8 @@ function saturatedStates(pressure: number, temperature: number, transport: boole
  * Saturated liquid and vapour at pressure p (regions 1 and 2 up to 623.15 K, region 3 above).
  *
  * Validity: 611.213 Pa to p_s(647.095 K) ≈ 22.0637 MPa.
- * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}): lean core up to 623.15 K, `@neutrium/thermo.eos.iapws97`
+ * for region 3 and the transport properties.
  *
  * @param pressure p, Pa
  * @param options transport properties on or off (default on)
@@ -559,14 +627,15 @@ function saturatedStates(pressure: number, temperature: number, transport: boole
  */
 export function saturationAtPressure(pressure: number, options: StateOptions = {}): SaturationProperties {
   checkRange('pressure', pressure, 'Pa', IF97.minPressure, MAX_SATURATION_STATE_PRESSURE);
-  return saturatedStates(pressure, PT.r4_P_Tsat(pressure / MPA), options.transport ?? true);
+  return saturatedStates(pressure, saturationTemperatureLean(pressure), options.transport ?? true);
 }
 
 /**
  * Saturated liquid and vapour at temperature T.
  *
  * Validity: 273.15 K to 647.095 K.
- * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}): lean core up to 623.15 K, `@neutrium/thermo.eos.iapws97`
+ * for region 3 and the transport properties.
  *
  * @param temperature T, K
  * @param options transport properties on or off (default on)
@@ -578,7 +647,7 @@ export function saturationAtTemperature(
   options: StateOptions = {},
 ): SaturationProperties {
   checkRange('temperature', temperature, 'K', IF97.minTemperature, IF97.maxSaturationStateTemperature);
-  return saturatedStates(PT.r4_T_Psat(temperature) * MPA, temperature, options.transport ?? true);
+  return saturatedStates(saturationPressureLean(temperature), temperature, options.transport ?? true);
 }
 
 /**
@@ -587,7 +656,8 @@ export function saturationAtTemperature(
  * temperature (h, c_p, ρ), called inside solver iterations.
  *
  * Validity: 273.15 K to 647.095 K.
- * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}): lean core up to 623.15 K, `@neutrium/thermo.eos.iapws97`
+ * for region 3.
  *
  * @param temperature T, K
  * @returns the saturated-liquid state, SI
@@ -595,10 +665,10 @@ export function saturationAtTemperature(
  */
 export function saturatedLiquidAtTemperature(temperature: number): WaterState {
   checkRange('temperature', temperature, 'K', IF97.minTemperature, IF97.maxSaturationStateTemperature);
-  const pressure = PT.r4_T_Psat(temperature) * MPA;
+  const pressure = saturationPressureLean(temperature);
   const raw =
     temperature <= IF97.region13Temperature
-      ? PT.r1(pressure / MPA, temperature)
+      ? leanProps(1, pressure, temperature)
       : rawSaturated(pressure, temperature).liquid;
   const liquid = toState(raw, 4, 'liquid', false);
   liquid.pressure = pressure;
@@ -611,7 +681,8 @@ export function saturatedLiquidAtTemperature(temperature: number): WaterState {
  * properties, no state objects).
  *
  * Validity: 611.213 Pa to 22.0637 MPa.
- * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}): lean core up to 623.15 K, `@neutrium/thermo.eos.iapws97`
+ * for region 3.
  *
  * @param pressure p, Pa
  * @returns p, T_s, h_f and h_g, SI
@@ -619,16 +690,25 @@ export function saturatedLiquidAtTemperature(temperature: number): WaterState {
  */
 export function saturationEnthalpies(pressure: number): SaturationEnthalpies {
   checkRange('pressure', pressure, 'Pa', IF97.minPressure, MAX_SATURATION_STATE_PRESSURE);
-  const temperature = PT.r4_P_Tsat(pressure / MPA);
+  const temperature = saturationTemperatureLean(pressure);
+  if (temperature <= IF97.region13Temperature) {
+    return {
+      pressure,
+      temperature,
+      liquid: region1Enthalpy(pressure, temperature),
+      vapor: region2Enthalpy(pressure, temperature),
+    };
+  }
   const { liquid, vapor } = rawSaturated(pressure, temperature);
-  return { pressure, temperature, liquid: liquid.h * KJ, vapor: vapor.h * KJ };
+  return { pressure, temperature, liquid: liquid.h, vapor: vapor.h };
 }
 
 /**
  * Enthalpy h_f of saturated liquid at pressure p (lean path).
  *
  * Validity: 611.213 Pa to 22.0637 MPa.
- * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}): lean core up to 623.15 K, `@neutrium/thermo.eos.iapws97`
+ * for region 3.
  *
  * @param pressure p, Pa
  * @returns h_f, J/kg
@@ -636,17 +716,17 @@ export function saturationEnthalpies(pressure: number): SaturationEnthalpies {
  */
 export function saturatedLiquidEnthalpy(pressure: number): number {
   checkRange('pressure', pressure, 'Pa', IF97.minPressure, MAX_SATURATION_STATE_PRESSURE);
-  const pMPa = pressure / MPA;
-  const t = PT.r4_P_Tsat(pMPa);
-  if (t <= IF97.region13Temperature) return PT.r1(pMPa, t).h * KJ;
-  return rawSaturated(pressure, t).liquid.h * KJ;
+  const t = saturationTemperatureLean(pressure);
+  if (t <= IF97.region13Temperature) return region1Enthalpy(pressure, t);
+  return rawSaturated(pressure, t).liquid.h;
 }
 
 /**
  * Enthalpy h_g of saturated vapour at pressure p (lean path).
  *
  * Validity: 611.213 Pa to 22.0637 MPa.
- * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}): lean core up to 623.15 K, `@neutrium/thermo.eos.iapws97`
+ * for region 3.
  *
  * @param pressure p, Pa
  * @returns h_g, J/kg
@@ -654,17 +734,17 @@ export function saturatedLiquidEnthalpy(pressure: number): number {
  */
 export function saturatedVaporEnthalpy(pressure: number): number {
   checkRange('pressure', pressure, 'Pa', IF97.minPressure, MAX_SATURATION_STATE_PRESSURE);
-  const pMPa = pressure / MPA;
-  const t = PT.r4_P_Tsat(pMPa);
-  if (t <= IF97.region13Temperature) return PT.r2(pMPa, t).h * KJ;
-  return rawSaturated(pressure, t).vapor.h * KJ;
+  const t = saturationTemperatureLean(pressure);
+  if (t <= IF97.region13Temperature) return region2Enthalpy(pressure, t);
+  return rawSaturated(pressure, t).vapor.h;
 }
 
 /**
  * Enthalpy at (p, T), single phase (lean path for solvers).
  *
  * Validity: as {@link stateAtPT}.
- * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}): lean core in regions 1 and 2,
+ * `@neutrium/thermo.eos.iapws97` in regions 3 and 5.
  *
  * @param pressure p, Pa
  * @param temperature T, K
@@ -672,7 +752,13 @@ export function saturatedVaporEnthalpy(pressure: number): number {
  * @example enthalpyAtPT(3500, 300) // → 2549911.45 J/kg (R7-97(2012) Table 15: 0.254991145e4 kJ/kg)
  */
 export function enthalpyAtPT(pressure: number, temperature: number): number {
-  const h = rawAtPT(pressure, temperature).raw.h * KJ;
+  const region = regionAtPT(pressure, temperature);
+  const h =
+    region === 1
+      ? region1Enthalpy(pressure, temperature)
+      : region === 2
+        ? region2Enthalpy(pressure, temperature)
+        : packageAtPT(region, pressure, temperature).h;
   if (!Number.isFinite(h)) {
     throw new EngineNoSolutionError(`IF97 gave no finite enthalpy at ${pressure} Pa, ${temperature} K`, {
       reason: 'non-finite-state',
@@ -682,12 +768,12 @@ export function enthalpyAtPT(pressure: number, temperature: number): number {
 }
 
 /**
- * Raw backward temperature of region 1, T(p, h), IF97 eq. 11 (R7-97(2012) section 5.2.1), exactly
- * as the package evaluates it, without refinement. Exposed to verify the package against
- * R7-97(2012) Table 7; solvers use {@link stateAtPH}.
+ * Raw backward temperature of region 1, T(p, h), IF97 eq. 11 (R7-97(2012) section 5.2.1), without
+ * refinement. Exposed to verify the backward equation against R7-97(2012) Table 7; solvers use
+ * {@link stateAtPH}.
  *
  * Validity: region 1 (liquid, 273.15–623.15 K, p ≤ 100 MPa).
- * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), lean core (steam/if97-backward.ts).
  *
  * @param pressure p, Pa
  * @param enthalpy h, J/kg
@@ -697,16 +783,16 @@ export function enthalpyAtPT(pressure: number, temperature: number): number {
 export function backwardTemperatureRegion1(pressure: number, enthalpy: number): number {
   checkPressure(pressure, IF97.maxPressure);
   checkRange('enthalpy', enthalpy, 'J/kg', -1e3, 1.7e6);
-  return PH.r1_PH_T(pressure / MPA, enthalpy / KJ);
+  return region1TemperaturePH(pressure, enthalpy);
 }
 
 /**
  * Raw backward temperature of region 2, T(p, h), IF97 eqs. 22–24 with the 2b/2c boundary eq. 20
- * (R7-97(2012) section 6.3.1), as the package evaluates it, without refinement. Exposed to verify
- * the package against R7-97(2012) Table 24.
+ * (R7-97(2012) section 6.3.1), without refinement. Exposed to verify the backward equations against
+ * R7-97(2012) Table 24.
  *
  * Validity: region 2 (vapour, up to 1073.15 K, p ≤ 100 MPa).
- * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), lean core (steam/if97-backward.ts).
  *
  * @param pressure p, Pa
  * @param enthalpy h, J/kg
@@ -716,7 +802,7 @@ export function backwardTemperatureRegion1(pressure: number, enthalpy: number): 
 export function backwardTemperatureRegion2(pressure: number, enthalpy: number): number {
   checkPressure(pressure, IF97.maxPressure);
   checkRange('enthalpy', enthalpy, 'J/kg', 2.0e6, 4.5e6);
-  return PH.r2(pressure / MPA, enthalpy / KJ).t;
+  return region2TemperaturePH(pressure, enthalpy);
 }
 
 /** Highest temperature of the formulation at pressure p, K. */
@@ -727,12 +813,13 @@ function maxTemperatureAt(pressure: number): number {
 /**
  * State at (p, h). Inside the two-phase dome (p ≤ 22.064 MPa, h_f ≤ h ≤ h_g) the state is the
  * lever-rule mixture of the saturated states, with quality x = (h − h_f)/(h_g − h_f) (R7-97(2012)
- * section 8; region 3 saturated states included). Elsewhere the package's backward equation
- * (regions 1 and 2) gives a first T, refined by Newton steps on the forward equation so that the
+ * section 8; region 3 saturated states included). Elsewhere the backward equation of region 1 or
+ * 2 (lean core) gives a first T, refined by Newton steps on the forward equation so that the
  * returned state reproduces h to 1e-9 relative.
  *
  * Validity: T from 273.15 K to 1073.15 K (to 2273.15 K at p ≤ 50 MPa), 0 < p ≤ 100 MPa.
- * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), through `@neutrium/thermo.eos.iapws97`.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}): lean core in regions 1, 2 and 4 (up to
+ * 623.15 K), `@neutrium/thermo.eos.iapws97` in regions 3 and 5 and for the transport properties.
  *
  * @param pressure p, Pa
  * @param enthalpy h, J/kg
@@ -766,10 +853,10 @@ export function stateAtPH(pressure: number, enthalpy: number, options: StateOpti
     );
   }
   if (pressure >= IF97.minPressure && pressure < IF97.criticalPressure) {
-    const tSat = PT.r4_P_Tsat(pressure / MPA);
+    const tSat = saturationTemperatureLean(pressure);
     const { liquid: rl, vapor: rv } = rawSaturated(pressure, tSat);
-    const hf = rl.h * KJ;
-    const hg = rv.h * KJ;
+    const hf = rl.h;
+    const hg = rv.h;
     if (enthalpy >= hf && enthalpy <= hg) {
       return twoPhase(pressure, tSat, rl, rv, (enthalpy - hf) / (hg - hf), enthalpy);
     }
@@ -790,8 +877,8 @@ export function stateAtPH(pressure: number, enthalpy: number, options: StateOpti
 function twoPhase(
   pressure: number,
   temperature: number,
-  rl: RawState,
-  rv: RawState,
+  rl: Props,
+  rv: Props,
   x: number,
   h: number,
 ): WaterState {
@@ -802,8 +889,8 @@ function twoPhase(
     pressure,
     temperature,
     enthalpy: h,
-    entropy: (rl.s + x * (rv.s - rl.s)) * KJ,
-    internalEnergy: (rl.u + x * (rv.u - rl.u)) * KJ,
+    entropy: rl.s + x * (rv.s - rl.s),
+    internalEnergy: rl.u + x * (rv.u - rl.u),
     specificVolume: v,
     density: 1 / v,
     quality: x,
@@ -817,9 +904,7 @@ function initialTemperature(
   lo: number,
   hi: number,
 ): number {
-  const pMPa = pressure / MPA;
-  const hkJ = enthalpy / KJ;
-  const t = liquidSide ? PH.r1_PH_T(pMPa, hkJ) : PH.r2(pMPa, hkJ).t;
+  const t = liquidSide ? region1TemperaturePH(pressure, enthalpy) : region2TemperaturePH(pressure, enthalpy);
   if (Number.isFinite(t) && t > lo && t < hi) return t;
   return 0.5 * (lo + hi);
 }
@@ -840,7 +925,7 @@ function refineTemperature(
   let previous = Infinity;
   for (let i = 0; i < 100; i++) {
     const { raw, region } = rawAtPT(pressure, t);
-    const f = raw.h * KJ - enthalpy;
+    const f = raw.h - enthalpy;
     // Converged, or the bracket has shrunk to round-off (h is then as close as doubles allow).
     if (Math.abs(f) <= tol || hi - lo <= 1e-12 * t) {
       const state = toState(raw, region, 'liquid', transport);
@@ -849,7 +934,7 @@ function refineTemperature(
     }
     if (f > 0) hi = t;
     else lo = t;
-    const cp = raw.cp * KJ;
+    const cp = raw.cp;
     // Newton while it at least halves the residual; otherwise bisect (near the critical point
     // h(T) is S-shaped and plain Newton can cycle inside the bracket).
     let next = cp > 0 && Number.isFinite(cp) && Math.abs(f) < 0.5 * previous ? t - f / cp : NaN;
@@ -861,6 +946,50 @@ function refineTemperature(
     iterations: 100,
     reason: 'ph-refinement',
   });
+}
+
+/**
+ * Specific enthalpy at (p, s): the end state of an isentropic compression or expansion (vapour
+ * recompression, for instance). IAPWS R7-97(2012) has no h(p, s) equation for regions 1 and 2, so
+ * T comes from its backward equation T(p, s) (eq. 13 in region 1, eqs. 25–27 in region 2), refined
+ * by Newton steps on the forward equation until s(p, T) reproduces s, and h is the forward
+ * equation's at that T. Inside the dome (s_f ≤ s ≤ s_g at T_s(p)) h is the lever-rule mixture,
+ * x = (s − s_f)/(s_g − s_f) (R7-97(2012) section 8).
+ *
+ * Validity: 611.213 Pa ≤ p ≤ 16.529 MPa (where the saturated states lie in regions 1 and 2),
+ * s from s(p, 273.15 K) to s(p, 1073.15 K).
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}), lean core (steam/if97-backward.ts).
+ *
+ * @param pressure p, Pa
+ * @param entropy s, J/(kg·K)
+ * @returns h, J/kg
+ * @example enthalpyAtPS(1e5, 7500) // ≈ 2729438.06 J/kg (python3-iapws IAPWS97(P=0.1, s=7.5): 2729.43806 kJ/kg)
+ */
+export function enthalpyAtPS(pressure: number, entropy: number): number {
+  checkRange('pressure', pressure, 'Pa', IF97.minPressure, IF97.region13SaturationPressure);
+  const sMin = leanProps(1, pressure, IF97.minTemperature).s;
+  const sMax = leanProps(2, pressure, IF97.maxTemperature).s;
+  if (!Number.isFinite(entropy) || entropy < sMin || entropy > sMax) {
+    throw new EngineRangeError(
+      'entropy',
+      entropy,
+      { min: sMin, max: sMax, unit: 'J/(kg·K)' },
+      `entropy = ${entropy} J/(kg·K) is outside ${sMin.toFixed(3)} to ${sMax.toFixed(3)} J/(kg·K) at ${pressure} Pa (273.15 K to ${IF97.maxTemperature} K)`,
+    );
+  }
+  const tSat = saturationTemperatureLean(pressure);
+  const liquid = leanProps(1, pressure, tSat);
+  const vapor = leanProps(2, pressure, tSat);
+  let h: number;
+  if (entropy < liquid.s) h = region1EnthalpyAtPS(pressure, entropy);
+  else if (entropy > vapor.s) h = region2EnthalpyAtPS(pressure, entropy);
+  else h = liquid.h + ((entropy - liquid.s) / (vapor.s - liquid.s)) * (vapor.h - liquid.h);
+  if (!Number.isFinite(h)) {
+    throw new EngineNoSolutionError(`h(p, s) did not converge at ${pressure} Pa, ${entropy} J/(kg·K)`, {
+      reason: 'ps-refinement',
+    });
+  }
+  return h;
 }
 
 /**
