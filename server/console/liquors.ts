@@ -4,7 +4,8 @@
  * enthalpy–concentration curves computed by the engine), POST /accounts/:id/liquors (a Dühring
  * table uploaded as CSV, multipart/form-data, errors by line number; the v1 CSV parser).
  *
- * Chart points come from the liquor model itself on a grid across its validity box. A point the
+ * Chart points come from the liquor model itself on a grid across its validity box (mass fraction:
+ * on to its hard limit). A point the
  * model refuses (beyond its hard limits) is left out and counted in `omittedPoints`; a point it
  * answers with a "model-extrapolated" warning is kept and flagged `extrapolated`. No NaN is sent.
  */
@@ -67,6 +68,19 @@ export function niceGrid(min: number, max: number, intervals: number): number[] 
   return out.map((v) => Math.round(v * 1e6) / 1e6);
 }
 
+/**
+ * The mass fractions to chart: across the validity box and on to the hard limit, so the part a
+ * model answers with a "model-extrapolated" warning is drawn too (dashed by the console) instead
+ * of the chart stopping where the data end; the validity edge is always one of the values.
+ */
+export function massFractionGrid(model: LiquorModel, intervals: number): number[] {
+  const valid = model.validity.massFraction;
+  const max = Math.max(valid.max, model.limits.massFraction.max);
+  const grid = niceGrid(valid.min, max, intervals);
+  if (!grid.some((x) => Math.abs(x - valid.max) < 1e-9)) grid.push(valid.max);
+  return grid.sort((a, b) => a - b);
+}
+
 const degC = (kelvin: number) => r(formatOutput(kelvin, 'temperature'));
 
 /** Runs one model evaluation: the value (or undefined when refused) and whether it extrapolated. */
@@ -89,7 +103,7 @@ export function liquorChartData(model: LiquorModel): Omit<ConsoleLiquorCharts, '
   const twMin = Math.max(box.temperature.min, IF97_T_MIN) - KELVIN_OFFSET;
   const twMax = Math.min(box.temperature.max, IF97_T_MAX) - KELVIN_OFFSET;
   const waterTemps = niceGrid(twMin, twMax, 12);
-  const lines = niceGrid(box.massFraction.min, box.massFraction.max, DUHRING_INTERVALS).map((x) => {
+  const lines = massFractionGrid(model, DUHRING_INTERVALS).map((x) => {
     const points: ConsoleLiquorCharts['duhring']['lines'][number]['points'] = [];
     for (const twC of waterTemps) {
       const p = saturationPressure(twC + KELVIN_OFFSET);
@@ -113,7 +127,7 @@ export function liquorChartData(model: LiquorModel): Omit<ConsoleLiquorCharts, '
     box.temperature.max - KELVIN_OFFSET,
     ENTHALPY_INTERVALS,
   );
-  const fractions = niceGrid(box.massFraction.min, box.massFraction.max, ENTHALPY_POINT_INTERVALS);
+  const fractions = massFractionGrid(model, ENTHALPY_POINT_INTERVALS);
   const curves = temps.map((tC) => {
     const points: ConsoleLiquorCharts['enthalpy']['curves'][number]['points'] = [];
     for (const x of fractions) {

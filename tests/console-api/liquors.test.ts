@@ -153,6 +153,24 @@ describe('GET /console-api/liquors/:id/charts for the built-in models', () => {
     for (const p of rich.points) expect(p.solutionBoilingPoint).toBeLessThanOrEqual(250);
   });
 
+  it('charts the black liquor on to its 85 % limit, flagging every point beyond 50 % dry solids as extrapolated', async () => {
+    const c = await charts('kraft-black-liquor');
+    const fractions = c.duhring.lines.map((l: Line) => l.massFraction);
+    // Model documentation (server/engine/liquors/kraft-black-liquor.ts): BPR silent to 50 % dry
+    // solids, "model-extrapolated" from 50 % to 85 %, refused beyond; the pressure correction is
+    // trusted for water boiling at 50–150 °C and the liquor itself at 40–150 °C (extrapolated
+    // outside those at any solids).
+    expect(Math.max(...fractions)).toBe(0.85);
+    expect(fractions).toContain(0.5);
+    for (const line of c.duhring.lines)
+      for (const p of line.points) {
+        const where = `x=${line.massFraction} tw=${p.waterBoilingPoint}`;
+        if (line.massFraction > 0.5) expect(p.extrapolated, where).toBe(true);
+        else if (p.waterBoilingPoint >= 50 && p.solutionBoilingPoint <= 150)
+          expect(p.extrapolated, where).toBe(false);
+      }
+  });
+
   it('answers 404 for an unknown liquor', async () => {
     await h.admin.agent.get('/console-api/liquors/no-such-liquor/charts').expect(404);
     await h.admin.agent.get(`/console-api/liquors/no-such-liquor/charts?accountId=${h.alphaId}`).expect(404);
