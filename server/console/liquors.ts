@@ -25,7 +25,7 @@ import {
   type ConsoleLiquorCharts,
 } from '../../shared/console/liquors.js';
 import { accounts, storedLiquors } from '../db/schema.js';
-import { slugify } from '../engine/liquors/custom.js';
+import { slugify, TEMPERATURE_MARGIN } from '../engine/liquors/custom.js';
 import type { LiquorModel } from '../engine/liquors/model.js';
 import { builtInLiquors, findBuiltInLiquor } from '../engine/liquors/registry.js';
 import { saturationPressure } from '../engine/steam/if97.js';
@@ -173,6 +173,46 @@ function libraryItem(
   };
 }
 
+/**
+ * A stored Dühring table described by its own readings: the temperatures it spans in °C (the
+ * model's generic liquid range, 0–350 °C, says nothing about the table) and a note in °C.
+ * Limits: the table's span widened by the model's margin of extrapolation.
+ */
+export function describeStoredTable(item: ConsoleLiquor, definition: unknown): ConsoleLiquor {
+  const duhring = (definition as { boilingPoint?: { duhring?: unknown } } | null)?.boilingPoint?.duhring;
+  if (!Array.isArray(duhring)) return item;
+  const water: number[] = [];
+  const solution: number[] = [];
+  for (const line of duhring as {
+    points?: { waterBoilingPoint?: unknown; solutionBoilingPoint?: unknown }[];
+  }[]) {
+    for (const p of line.points ?? []) {
+      if (typeof p.waterBoilingPoint === 'number') water.push(p.waterBoilingPoint);
+      if (typeof p.solutionBoilingPoint === 'number') solution.push(p.solutionBoilingPoint);
+    }
+  }
+  if (water.length === 0 || solution.length === 0) return item;
+  const all = [...water, ...solution];
+  const span = { min: Math.min(...all), max: Math.max(...all) };
+  const c = (v: number) => String(r(v));
+  const note = `Dühring table: ${duhring.length} concentration(s), water boiling points ${c(Math.min(...water))}–${c(Math.max(...water))} °C, solution boiling points ${c(Math.min(...solution))}–${c(Math.max(...solution))} °C. At a given x the pressure range checked is the one shared by the two lines around it, with a ${TEMPERATURE_MARGIN} K margin of extrapolation.`;
+  return {
+    ...item,
+    validity: {
+      ...item.validity,
+      temperature: span,
+      notes: [note, ...(item.validity.notes ?? []).filter((n) => !n.startsWith('Dühring table:'))],
+    },
+    limits: {
+      ...item.limits,
+      temperature: {
+        min: Math.max(item.limits.temperature.min, span.min - TEMPERATURE_MARGIN),
+        max: Math.min(item.limits.temperature.max, span.max + TEMPERATURE_MARGIN),
+      },
+    },
+  };
+}
+
 function storedItems(deps: AppDeps, accountId: number | undefined): ConsoleLiquor[] {
   const rows = deps.db
     .select({ liquor: storedLiquors, accountName: accounts.name })
@@ -184,7 +224,10 @@ function storedItems(deps: AppDeps, accountId: number | undefined): ConsoleLiquo
   return rows.map(({ liquor, accountName }) => {
     const record = findStoredLiquor(deps.db, liquor.accountId, liquor.liquorId)!;
     const model = buildCustomLiquor(record.definition, 'definition', record.id);
-    return libraryItem(model, 'stored', record.id, { id: liquor.accountId, name: accountName });
+    return describeStoredTable(
+      libraryItem(model, 'stored', record.id, { id: liquor.accountId, name: accountName }),
+      record.definition,
+    );
   });
 }
 
@@ -260,7 +303,7 @@ export const liquorRoutes: ConsoleRouteModule = {
           if (!stored)
             throw problem('not-found', `Account ${account.id} has no stored liquor "${params.id}".`);
           model = buildCustomLiquor(stored.definition, 'definition', stored.id);
-          item = libraryItem(model, 'stored', stored.id, account);
+          item = describeStoredTable(libraryItem(model, 'stored', stored.id, account), stored.definition);
         }
         return { liquor: item, ...liquorChartData(model), cautions: model.cautions };
       },
@@ -272,7 +315,7 @@ export const liquorRoutes: ConsoleRouteModule = {
       roles: ['admin'],
       summary: 'Store a liquor for an account from a Dühring table (CSV upload, multipart/form-data)',
       description:
-        'Fields: file (CSV with header massFraction,waterBoilingPoint,solutionBoilingPoint in °C), name, id (optional), heatCapacity (optional coefficients, kJ/(kg·K)). Row errors name "file:line N".',
+        'Fields: file (CSV with header massFraction,waterBoilingPoint,solutionBoilingPoint in °C), name, id (optional), heatCapacity (required: comma-separated c_p(x) coefficients, kJ/(kg·K)). Row errors name "file:line N".',
       tag: 'liquors',
       request: { params: AccountIdParamsSchema, bodyContentType: 'multipart/form-data' },
       middleware: [multipartUpload],
@@ -287,14 +330,15 @@ export const liquorRoutes: ConsoleRouteModule = {
           });
         }
         const boilingPoint = duhringFromCsv(req.file.buffer.toString('utf8'));
-        const heat =
-          fields.heatCapacity === undefined ? undefined : heatCapacityCoefficients(fields.heatCapacity);
+        // Required, as on /v1/stored-liquors/upload: without c_p the liquor cannot be used in an
+        // evaporator balance.
+        const heat = heatCapacityCoefficients(fields.heatCapacity);
         const input = validate(StoredLiquorCreateSchema, {
           ...(fields.id !== undefined ? { id: fields.id } : {}),
           definition: {
             name: fields.name,
             boilingPoint,
-            ...(heat ? { heatCapacity: { polynomial: heat } } : {}),
+            heatCapacity: { polynomial: heat },
           },
         });
         const id = input.id ?? slugify(input.definition.name);
@@ -337,7 +381,7 @@ export const liquorRoutes: ConsoleRouteModule = {
           detail: { accountId: account.id, liquorId: id, lines: boilingPoint.duhring.length },
         });
         res.location(`/console-api/liquors/${id}/charts?accountId=${account.id}`);
-        return libraryItem(model, 'stored', id, account);
+        return describeStoredTable(libraryItem(model, 'stored', id, account), input.definition);
       },
     });
   },
