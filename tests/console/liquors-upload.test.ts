@@ -102,8 +102,8 @@ describe('Dühring upload form', () => {
     expect(inputs()).toHaveLength(2);
     await name!.setValue('Spent wash (invented)');
     await heat!.setValue('4.18,-2.4');
-    await wrapper.setProps({ uploading: true });
-    await wrapper.setProps({ uploading: false });
+    await wrapper.setProps({ uploading: true } as never);
+    await wrapper.setProps({ uploading: false } as never);
     const values = inputs().map((i) => (i.element as HTMLInputElement).value);
     expect(values).not.toContain('Spent wash (invented)');
     expect(values).not.toContain('4.18,-2.4');
@@ -113,8 +113,8 @@ describe('Dühring upload form', () => {
     const wrapper = mountCard();
     const [name] = wrapper.findAll('.v-text-field:not(.v-select) input');
     await name!.setValue('Spent wash (invented)');
-    await wrapper.setProps({ uploading: true });
-    await wrapper.setProps({ uploading: false, problem: serverProblem() });
+    await wrapper.setProps({ uploading: true } as never);
+    await wrapper.setProps({ uploading: false, problem: serverProblem() } as never);
     expect((name!.element as HTMLInputElement).value).toBe('Spent wash (invented)');
   });
 });
