@@ -123,6 +123,26 @@ describe('statement detail', () => {
     // A finalized statement cannot be finalized again.
     expect(wrapper.find('[data-test="finalize"]').exists()).toBe(false);
   });
+
+  it('has a close button that asks its dialog to close', async () => {
+    const wrapper = mount(StatementDetailCard, {
+      props: { statement, csvUrl: '/x.csv', canFinalize: false, monthOver: true },
+      global: { plugins: [vuetify] },
+    });
+    await wrapper.get('[data-test="close-statement"]').trigger('click');
+    expect(wrapper.emitted('close')).toHaveLength(1);
+  });
+
+  it('writes unit counts with the locale’s thousands separator', () => {
+    const wrapper = mount(StatementDetailCard, {
+      props: { statement, csvUrl: '/x.csv', canFinalize: false, monthOver: true },
+      global: { plugins: [vuetify] },
+    });
+    const text = wrapper.text();
+    // The count formatter of the console (Intl.NumberFormat with grouping), applied to 23 456.
+    expect(text).toContain(new Intl.NumberFormat().format(23456));
+    expect(text).not.toContain('23456');
+  });
 });
 
 describe('billing store', () => {
