@@ -53,4 +53,15 @@ describe('openApiRouter', () => {
     expect(page.status).toBe(200);
     expect(page.text).not.toMatch(/https?:\/\/(cdn|unpkg)/);
   });
+
+  it('links the API reference page back to the console, with nothing loaded from elsewhere', async () => {
+    const express = (await import('express')).default;
+    const request = (await import('supertest')).default;
+    const { openApiRouter } = await import('../../server/http/openapi.js');
+    const page = await request(express().use(openApiRouter())).get('/docs/');
+    expect(page.text).toContain("back.href = '/console/'");
+    expect(page.text).toContain('Back to the Ebullio console');
+    // Only relative script and style addresses (the Swagger UI assets served beside the page).
+    expect(page.text).not.toMatch(/(src|href)="(https?:)?\/\//);
+  });
 });
