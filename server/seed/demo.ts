@@ -106,9 +106,9 @@ export async function seedDemo(
   const operatorPassword = crypto.randomBytes(12).toString('base64url');
   // Hashed before the (synchronous) transaction: hashing runs in a worker thread.
   const operatorHash = await hashPassword(operatorPassword);
-  // The demo accounts and keys date from before their first metered day (the usage below goes
-  // back six days), so billing sees them in the months that usage falls in.
-  const since = new Date(Date.UTC(now.getUTCFullYear(), now.getUTCMonth(), now.getUTCDate() - 7));
+  // The demo accounts and keys date from the start of last month (UTC): before their first metered
+  // day (the usage below goes back six days), and early enough that last month can be billed.
+  const since = new Date(Date.UTC(now.getUTCFullYear(), now.getUTCMonth() - 1, 1));
   return sqlite.transaction(() => {
     const operator = insertUser(db, {
       email: DEMO_OPERATOR_EMAIL,
