@@ -455,7 +455,8 @@ export function openApiDocument(): ReturnType<typeof buildOpenApiDocument> {
   return cached;
 }
 
-/** A bar above the API reference with the way back to the console (inline, nothing fetched). */
+/** A bar above the API reference with the way back to the console (served here, nothing from elsewhere). */
+const DOCS_BAR_PATH = '/docs-assets/back-to-console.js';
 const DOCS_BAR_JS = `(function () {
   var bar = document.createElement('nav');
   bar.className = 'ebullio-docs-bar';
@@ -479,13 +480,16 @@ export function openApiRouter(): Router {
   router.get('/openapi.json', (_req, res) => {
     res.json(openApiDocument());
   });
+  router.get(DOCS_BAR_PATH, (_req, res) => {
+    res.type('application/javascript').send(DOCS_BAR_JS);
+  });
   router.use(
     '/docs',
     swaggerUi.serve,
     swaggerUi.setup(undefined, {
       customSiteTitle: 'Ebullio API',
       customCss: DOCS_BAR_CSS,
-      customJsStr: DOCS_BAR_JS,
+      customJs: DOCS_BAR_PATH,
       swaggerOptions: { url: '/openapi.json', persistAuthorization: true },
     }),
   );

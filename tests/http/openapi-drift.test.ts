@@ -58,10 +58,16 @@ describe('openApiRouter', () => {
     const express = (await import('express')).default;
     const request = (await import('supertest')).default;
     const { openApiRouter } = await import('../../server/http/openapi.js');
-    const page = await request(express().use(openApiRouter())).get('/docs/');
-    expect(page.text).toContain("back.href = '/console/'");
-    expect(page.text).toContain('Back to the Ebullio console');
+    const app = express().use(openApiRouter());
+    const page = await request(app).get('/docs/');
+    const src = /<script src=['"](\/docs-assets\/[^'"]+\.js)['"]>/.exec(page.text)?.[1];
+    expect(src).toBeDefined();
+    const script = await request(app).get(src!);
+    expect(script.status).toBe(200);
+    expect(script.headers['content-type']).toMatch(/javascript/);
+    expect(script.text).toContain("back.href = '/console/'");
+    expect(script.text).toContain('Back to the Ebullio console');
     // Only relative script and style addresses (the Swagger UI assets served beside the page).
-    expect(page.text).not.toMatch(/(src|href)="(https?:)?\/\//);
+    expect(page.text).not.toMatch(/(src|href)=['"](https?:)?\/\//);
   });
 });
