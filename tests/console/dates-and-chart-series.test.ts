@@ -7,6 +7,7 @@ import {
   usageDaySeries,
 } from '../../console/src/composables/chart-data.js';
 import { formatDay, formatInstant, formatMonth } from '../../console/src/composables/dates.js';
+import { isoDay, isoMonth } from '../../console/src/forms/rules.js';
 
 describe('one date style across the console', () => {
   it('writes days as 2026-12-03 and months as 2026-12, whatever the locale', () => {
@@ -19,6 +20,15 @@ describe('one date style across the console', () => {
   it('writes instants as UTC date and time with the zone named', () => {
     expect(formatInstant('2026-12-03T04:05:09.120Z')).toBe('2026-12-03 04:05 UTC');
     expect(formatInstant('2026-12-03T04:05:09.120Z', { seconds: true })).toBe('2026-12-03 04:05:09 UTC');
+  });
+
+  it('takes typed days and months only in the same style, and only real dates', () => {
+    expect(isoDay('2026-12-03')).toBe(true);
+    expect(isoDay('12/03/2026')).toMatch(/YYYY-MM-DD/);
+    // Gregorian calendar: 2026 is not a leap year, so there is no 29 February (from memory).
+    expect(isoDay('2026-02-29')).toMatch(/YYYY-MM-DD/);
+    expect(isoMonth('2026-12')).toBe(true);
+    expect(isoMonth('2026-13')).toMatch(/YYYY-MM/);
   });
 
   it('shows an unreadable value as it came rather than "Invalid Date"', () => {

@@ -97,6 +97,16 @@ describe('first use of the console', () => {
     expect(await page.locator('main').innerText()).not.toMatch(FOREIGN_DATE);
   }, 60_000);
 
+  it('writes the usage days and the billing month in the console’s one date style', async () => {
+    const { page } = flow.browser;
+    await openFromDrawer(page, 'Usage');
+    for (const label of ['First day', 'Last day'])
+      expect(await page.getByLabel(label).inputValue()).toMatch(/^\d{4}-\d{2}-\d{2}$/);
+    expect(await page.locator('main').innerText()).not.toMatch(FOREIGN_DATE);
+    await openFromDrawer(page, 'Billing');
+    expect(await page.getByLabel('Month (UTC)').inputValue()).toMatch(/^\d{4}-\d{2}$/);
+  }, 60_000);
+
   it('lists liquor cautions compactly and lets long names wrap instead of cutting them', async () => {
     const { page } = flow.browser;
     await openFromDrawer(page, 'Liquor library');
