@@ -28,6 +28,9 @@ export interface RequestLogRow {
   at: Date;
   accountId: number | null;
   keyId: number | null;
+  /** The account's and key's names now (a renamed key shows its new name). */
+  accountName: string | null;
+  keyName: string | null;
   method: string;
   path: string;
   operation: string | null;
@@ -54,7 +57,9 @@ const FROM = `FROM request_log rl
 
 const COLUMNS = `rl.id AS id, rl.request_id AS requestId, rl.at AS at, rl.account_id AS accountId,
   rl.key_id AS keyId, rl.method AS method, rl.path AS path, ue.operation AS operation,
-  rl.status AS status, rl.latency_ms AS latencyMs, ue.units AS units`;
+  rl.status AS status, rl.latency_ms AS latencyMs, ue.units AS units,
+  (SELECT a.name FROM accounts a WHERE a.id = rl.account_id) AS accountName,
+  (SELECT k.name FROM api_keys k WHERE k.id = rl.key_id) AS keyName`;
 
 type RawRow = Omit<RequestLogRow, 'at'> & { at: number };
 

@@ -20,7 +20,7 @@ import type { AppDeps } from '../deps.js';
 import { problem, ProblemError } from '../http/problem.js';
 import { paymentsFor } from '../integrations/payments/client.js';
 import { sendMail } from '../mail/send.js';
-import { formatMoney, isMonthComplete } from './statement.js';
+import { formatCount, formatMoney, isMonthComplete } from './statement.js';
 import { refreshDraft, statementDetail } from './statements.js';
 
 const running = new Set<number>();
@@ -44,7 +44,7 @@ function statementReadyText(detail: StatementDetail): string {
   return [
     `Your Ebullio statement for ${detail.month} (${detail.accountName}) is ready.`,
     '',
-    `Units used: ${detail.units} (included in the plan: ${detail.includedUnits}).`,
+    `Units used: ${formatCount(detail.units)} (included in the plan: ${formatCount(detail.includedUnits)}).`,
     ...(lines.length > 0 ? ['', ...lines] : []),
     '',
     `Total: ${formatMoney(detail.amountMinor, detail.currency)}.`,

@@ -50,6 +50,15 @@ export function overageBlocks(overageUnits: number): number {
 }
 
 /** The figures and line items of one month for `units` metered on a plan. */
+/**
+ * A count in statement and invoice text, with a thousands separator: 50000 → "50,000". One
+ * fixed style (en), because the same text goes to the payment provider's invoice.
+ */
+const countFormat = new Intl.NumberFormat('en-US', { maximumFractionDigits: 0 });
+export function formatCount(n: number): string {
+  return countFormat.format(n);
+}
+
 export function computeStatement(units: number, plan: PlanPrices): StatementFigures {
   requireCount('units', units);
   requireCount('includedUnits', plan.includedUnits);
@@ -64,7 +73,7 @@ export function computeStatement(units: number, plan: PlanPrices): StatementFigu
   if (plan.monthlyFeeMinor > 0) {
     lineItems.push({
       code: 'monthly-fee',
-      description: `${plan.displayName} plan, monthly fee (includes ${plan.includedUnits} units)`,
+      description: `${plan.displayName} plan, monthly fee (includes ${formatCount(plan.includedUnits)} units)`,
       quantity: 1,
       unitAmountMinor: plan.monthlyFeeMinor,
       amountMinor: plan.monthlyFeeMinor,
@@ -73,7 +82,7 @@ export function computeStatement(units: number, plan: PlanPrices): StatementFigu
   if (blocks > 0) {
     lineItems.push({
       code: 'overage',
-      description: `${overageUnits} units beyond the included ${plan.includedUnits}, billed per started block of ${UNITS_PER_BLOCK}`,
+      description: `${formatCount(overageUnits)} units beyond the included ${formatCount(plan.includedUnits)}, billed per started block of ${formatCount(UNITS_PER_BLOCK)}`,
       quantity: blocks,
       unitAmountMinor: plan.pricePer1000UnitsMinor,
       amountMinor: overageMinor,

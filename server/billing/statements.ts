@@ -12,6 +12,7 @@ import { getPlan, listPlans, type PlanRow } from './plans.js';
 import { toCsv } from '../http/csv.js';
 import {
   computeStatement,
+  formatCount,
   isMonthComplete,
   monthDayRange,
   overageBlocks,
@@ -75,7 +76,16 @@ function statementValues(units: number, plan: PlanRow) {
   };
 }
 
-/** Creates or refreshes the statements of `month` for every account. */
+/** The first instant after `month` ("YYYY-MM"), UTC. */
+function monthEnd(month: string): number {
+  const [y, m] = month.split('-').map(Number) as [number, number];
+  return Date.UTC(y, m, 1);
+}
+
+/**
+ * Creates or refreshes the statements of `month` for every account that existed in it: an
+ * account created after the month ended has nothing to be billed for then, so it gets no draft.
+ */
 export function generateStatements(
   db: Db,
   sqlite: Sqlite,
@@ -93,8 +103,10 @@ export function generateStatements(
     skipped: [],
     items: [],
   };
+  const end = monthEnd(month);
   db.transaction((tx) => {
     for (const account of tx.select().from(accounts).orderBy(accounts.id).all()) {
+      if (account.createdAt.getTime() >= end) continue;
       const existing = tx
         .select()
         .from(statements)
@@ -229,7 +241,7 @@ export function statementDetail(db: Db, id: number): StatementDetail | undefined
         ? [
             {
               code: 'monthly-fee',
-              description: `Plan "${row.planName}" for ${row.month} (${row.units} units, ${row.overageUnits} beyond the included ${row.includedUnits}); the plan's current prices differ`,
+              description: `Plan "${row.planName}" for ${row.month} (${formatCount(row.units)} units, ${formatCount(row.overageUnits)} beyond the included ${formatCount(row.includedUnits)}); the plan's current prices differ`,
               quantity: 1,
               unitAmountMinor: row.amountMinor,
               amountMinor: row.amountMinor,

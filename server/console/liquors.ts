@@ -4,7 +4,8 @@
  * enthalpy–concentration curves computed by the engine), POST /accounts/:id/liquors (a Dühring
  * table uploaded as CSV, multipart/form-data, errors by line number; the v1 CSV parser).
  *
- * Chart points come from the liquor model itself on a grid across its validity box. A point the
+ * Chart points come from the liquor model itself on a grid across its validity box (mass fraction:
+ * on to its hard limit). A point the
  * model refuses (beyond its hard limits) is left out and counted in `omittedPoints`; a point it
  * answers with a "model-extrapolated" warning is kept and flagged `extrapolated`. No NaN is sent.
  */
@@ -22,7 +23,7 @@ import {
   type ConsoleLiquor,
   type ConsoleLiquorCharts,
 } from '../../shared/console/liquors.js';
-import { slugify } from '../engine/liquors/custom.js';
+import { slugify, TEMPERATURE_MARGIN } from '../engine/liquors/custom.js';
 import type { LiquorModel } from '../engine/liquors/model.js';
 import { builtInLiquors, findBuiltInLiquor } from '../engine/liquors/registry.js';
 import { saturationPressure } from '../engine/steam/if97.js';
@@ -73,6 +74,19 @@ export function niceGrid(min: number, max: number, intervals: number): number[] 
   return out.map((v) => Math.round(v * 1e6) / 1e6);
 }
 
+/**
+ * The mass fractions to chart: across the validity box and on to the hard limit, so the part a
+ * model answers with a "model-extrapolated" warning is drawn too (dashed by the console) instead
+ * of the chart stopping where the data end; the validity edge is always one of the values.
+ */
+export function massFractionGrid(model: LiquorModel, intervals: number): number[] {
+  const valid = model.validity.massFraction;
+  const max = Math.max(valid.max, model.limits.massFraction.max);
+  const grid = niceGrid(valid.min, max, intervals);
+  if (!grid.some((x) => Math.abs(x - valid.max) < 1e-9)) grid.push(valid.max);
+  return grid.sort((a, b) => a - b);
+}
+
 const degC = (kelvin: number) => r(formatOutput(kelvin, 'temperature'));
 
 /** Runs one model evaluation: the value (or undefined when refused) and whether it extrapolated. */
@@ -95,7 +109,7 @@ export function liquorChartData(model: LiquorModel): Omit<ConsoleLiquorCharts, '
   const twMin = Math.max(box.temperature.min, IF97_T_MIN) - KELVIN_OFFSET;
   const twMax = Math.min(box.temperature.max, IF97_T_MAX) - KELVIN_OFFSET;
   const waterTemps = niceGrid(twMin, twMax, 12);
-  const lines = niceGrid(box.massFraction.min, box.massFraction.max, DUHRING_INTERVALS).map((x) => {
+  const lines = massFractionGrid(model, DUHRING_INTERVALS).map((x) => {
     const points: ConsoleLiquorCharts['duhring']['lines'][number]['points'] = [];
     for (const twC of waterTemps) {
       const p = saturationPressure(twC + KELVIN_OFFSET);
@@ -119,7 +133,7 @@ export function liquorChartData(model: LiquorModel): Omit<ConsoleLiquorCharts, '
     box.temperature.max - KELVIN_OFFSET,
     ENTHALPY_INTERVALS,
   );
-  const fractions = niceGrid(box.massFraction.min, box.massFraction.max, ENTHALPY_POINT_INTERVALS);
+  const fractions = massFractionGrid(model, ENTHALPY_POINT_INTERVALS);
   const curves = temps.map((tC) => {
     const points: ConsoleLiquorCharts['enthalpy']['curves'][number]['points'] = [];
     for (const x of fractions) {
@@ -165,10 +179,53 @@ function libraryItem(
   };
 }
 
+/**
+ * A stored Dühring table described by its own readings: the temperatures it spans in °C (the
+ * model's generic liquid range, 0–350 °C, says nothing about the table) and a note in °C.
+ * Limits: the table's span widened by the model's margin of extrapolation.
+ */
+export function describeStoredTable(item: ConsoleLiquor, definition: unknown): ConsoleLiquor {
+  const duhring = (definition as { boilingPoint?: { duhring?: unknown } } | null)?.boilingPoint?.duhring;
+  if (!Array.isArray(duhring)) return item;
+  const water: number[] = [];
+  const solution: number[] = [];
+  for (const line of duhring as {
+    points?: { waterBoilingPoint?: unknown; solutionBoilingPoint?: unknown }[];
+  }[]) {
+    for (const p of line.points ?? []) {
+      if (typeof p.waterBoilingPoint === 'number') water.push(p.waterBoilingPoint);
+      if (typeof p.solutionBoilingPoint === 'number') solution.push(p.solutionBoilingPoint);
+    }
+  }
+  if (water.length === 0 || solution.length === 0) return item;
+  const all = [...water, ...solution];
+  const span = { min: Math.min(...all), max: Math.max(...all) };
+  const c = (v: number) => String(r(v));
+  const note = `Dühring table: ${duhring.length} concentration(s), water boiling points ${c(Math.min(...water))}–${c(Math.max(...water))} °C, solution boiling points ${c(Math.min(...solution))}–${c(Math.max(...solution))} °C. At a given x the pressure range checked is the one shared by the two lines around it, with a ${TEMPERATURE_MARGIN} K margin of extrapolation.`;
+  return {
+    ...item,
+    validity: {
+      ...item.validity,
+      temperature: span,
+      notes: [note, ...(item.validity.notes ?? []).filter((n) => !n.startsWith('Dühring table:'))],
+    },
+    limits: {
+      ...item.limits,
+      temperature: {
+        min: Math.max(item.limits.temperature.min, span.min - TEMPERATURE_MARGIN),
+        max: Math.min(item.limits.temperature.max, span.max + TEMPERATURE_MARGIN),
+      },
+    },
+  };
+}
+
 function storedItems(deps: AppDeps, accountId: number | undefined): ConsoleLiquor[] {
   return listStoredLiquorsWithAccounts(deps.db, accountId).map(({ record, accountId, accountName }) => {
     const model = buildCustomLiquor(record.definition, 'definition', record.id);
-    return libraryItem(model, 'stored', record.id, { id: accountId, name: accountName });
+    return describeStoredTable(
+      libraryItem(model, 'stored', record.id, { id: accountId, name: accountName }),
+      record.definition,
+    );
   });
 }
 
@@ -244,7 +301,7 @@ export const liquorRoutes: ConsoleRouteModule = {
           if (!stored)
             throw problem('not-found', `Account ${account.id} has no stored liquor "${params.id}".`);
           model = buildCustomLiquor(stored.definition, 'definition', stored.id);
-          item = libraryItem(model, 'stored', stored.id, account);
+          item = describeStoredTable(libraryItem(model, 'stored', stored.id, account), stored.definition);
         }
         return { liquor: item, ...liquorChartData(model), cautions: model.cautions };
       },
@@ -256,7 +313,7 @@ export const liquorRoutes: ConsoleRouteModule = {
       roles: ['admin'],
       summary: 'Store a liquor for an account from a Dühring table (CSV upload, multipart/form-data)',
       description:
-        'Fields: file (CSV with header massFraction,waterBoilingPoint,solutionBoilingPoint in °C), name, id (optional), heatCapacity (optional coefficients, kJ/(kg·K)). Row errors name "file:line N".',
+        'Fields: file (CSV with header massFraction,waterBoilingPoint,solutionBoilingPoint in °C), name, id (optional), heatCapacity (required: comma-separated c_p(x) coefficients, kJ/(kg·K)). Row errors name "file:line N".',
       tag: 'liquors',
       request: { params: AccountIdParamsSchema, bodyContentType: 'multipart/form-data' },
       middleware: [multipartUpload],
@@ -271,14 +328,15 @@ export const liquorRoutes: ConsoleRouteModule = {
           });
         }
         const boilingPoint = duhringFromCsv(req.file.buffer.toString('utf8'));
-        const heat =
-          fields.heatCapacity === undefined ? undefined : heatCapacityCoefficients(fields.heatCapacity);
+        // Required, as on /v1/stored-liquors/upload: without c_p the liquor cannot be used in an
+        // evaporator balance.
+        const heat = heatCapacityCoefficients(fields.heatCapacity);
         const input = validate(StoredLiquorCreateSchema, {
           ...(fields.id !== undefined ? { id: fields.id } : {}),
           definition: {
             name: fields.name,
             boilingPoint,
-            ...(heat ? { heatCapacity: { polynomial: heat } } : {}),
+            heatCapacity: { polynomial: heat },
           },
         });
         const id = input.id ?? slugify(input.definition.name);
@@ -305,7 +363,7 @@ export const liquorRoutes: ConsoleRouteModule = {
           detail: { accountId: account.id, liquorId: id, lines: boilingPoint.duhring.length },
         });
         res.location(`/console-api/liquors/${id}/charts?accountId=${account.id}`);
-        return libraryItem(model, 'stored', id, account);
+        return describeStoredTable(libraryItem(model, 'stored', id, account), input.definition);
       },
     });
   },

@@ -190,6 +190,22 @@ export function openApiDocument(): ReturnType<typeof buildOpenApiDocument> {
   return cached;
 }
 
+/** A bar above the API reference with the way back to the console (served here, nothing from elsewhere). */
+const DOCS_BAR_PATH = '/docs-assets/back-to-console.js';
+const DOCS_BAR_JS = `(function () {
+  var bar = document.createElement('nav');
+  bar.className = 'ebullio-docs-bar';
+  bar.setAttribute('aria-label', 'Ebullio');
+  var back = document.createElement('a');
+  back.href = '/console/';
+  back.textContent = '\u2190 Back to the Ebullio console';
+  bar.appendChild(back);
+  document.body.insertBefore(bar, document.body.firstChild);
+})();`;
+const DOCS_BAR_CSS = `.ebullio-docs-bar { padding: 10px 20px; background: #1f3a4d; font: 14px/1.4 sans-serif; }
+.ebullio-docs-bar a { color: #fff; text-decoration: none; }
+.ebullio-docs-bar a:hover, .ebullio-docs-bar a:focus { text-decoration: underline; }`;
+
 /**
  * Serves GET /openapi.json and Swagger UI at /docs (public, not metered). Mount at the app root:
  * `app.use(openApiRouter())`.
@@ -199,11 +215,16 @@ export function openApiRouter(): Router {
   router.get('/openapi.json', (_req, res) => {
     res.json(openApiDocument());
   });
+  router.get(DOCS_BAR_PATH, (_req, res) => {
+    res.type('application/javascript').send(DOCS_BAR_JS);
+  });
   router.use(
     '/docs',
     swaggerUi.serve,
     swaggerUi.setup(undefined, {
       customSiteTitle: 'Ebullio API',
+      customCss: DOCS_BAR_CSS,
+      customJs: DOCS_BAR_PATH,
       swaggerOptions: { url: '/openapi.json', persistAuthorization: true },
     }),
   );

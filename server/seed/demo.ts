@@ -108,6 +108,9 @@ export async function seedDemo(
   const operatorPassword = crypto.randomBytes(12).toString('base64url');
   // Hashed before the (synchronous) transaction: hashing runs in a worker thread.
   const operatorHash = await hashPassword(operatorPassword);
+  // The demo accounts and keys date from the start of last month (UTC): before their first metered
+  // day (the usage below goes back six days), and early enough that last month can be billed.
+  const since = new Date(Date.UTC(now.getUTCFullYear(), now.getUTCMonth() - 1, 1));
   return sqlite.transaction(() => {
     const operator = insertUser(db, {
       email: DEMO_OPERATOR_EMAIL,
@@ -120,7 +123,7 @@ export async function seedDemo(
       plan: 'professional',
       monthlyUnitQuota: 50_000,
       billingEmail: 'accounts@saltmarsh-alkali.invalid',
-      now,
+      now: since,
     });
     const dairy = createAccount(db, {
       name: SECOND_DEMO_ACCOUNT_NAME,
@@ -128,7 +131,7 @@ export async function seedDemo(
       monthlyUnitQuota: 5_000,
       billingEmail: 'finance@heatherfold-dairy.invalid',
       retainRequestBodies: true,
-      now,
+      now: since,
     });
     addMember(db, operator.id, caustic.id);
     addMember(db, operator.id, dairy.id);
@@ -137,7 +140,7 @@ export async function seedDemo(
       name: 'Caustic evaporator studies',
       scopes: [...scopes],
       rateLimitPerMinute: 120,
-      now,
+      now: since,
     });
     const causticKey = causticCreated.key;
     const dairyKey = createKey(db, serverSecret, {
@@ -145,7 +148,7 @@ export async function seedDemo(
       name: 'Falling-film line 2',
       scopes: ['steam', 'liquors', 'evaporators', 'usage'],
       rateLimitPerMinute: 60,
-      now,
+      now: since,
     }).key;
     seedUsage(
       sqlite,

@@ -81,8 +81,8 @@ export const LiquorUploadFieldsSchema = z.object({
     .optional(),
   heatCapacity: z
     .string()
+    .min(1)
     .max(400)
-    .optional()
-    .meta({ description: 'Comma-separated polynomial coefficients of cp(x), kJ/(kg·K)' }),
+    .meta({ description: 'Comma-separated polynomial coefficients of cp(x), kJ/(kg·K) (required)' }),
 });
 export type LiquorUploadFields = z.infer<typeof LiquorUploadFieldsSchema>;

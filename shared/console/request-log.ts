@@ -42,6 +42,8 @@ export const RequestLogItemSchema = z
     at: InstantSchema,
     accountId: z.int().nullable(),
     keyId: z.int().nullable(),
+    accountName: z.string().nullable().meta({ description: 'The account’s name (null without an account)' }),
+    keyName: z.string().nullable().meta({ description: 'The API key’s name (null without a key)' }),
     method: z.string(),
     path: z.string(),
     operation: z.string().nullable().meta({ description: 'Metered operation, when the request reached one' }),

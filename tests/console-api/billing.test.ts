@@ -131,7 +131,7 @@ describe('statements', () => {
     const ghost = createAccount(h.deps.db, {
       name: 'Invented Ghost Plan Ltd',
       plan: 'no-such-plan',
-      now: h.clock.now,
+      now: new Date('2031-02-01T00:00:00Z'),
     });
     const res = await h.admin.agent
       .post('/console-api/statements/generate')
@@ -142,6 +142,39 @@ describe('statements', () => {
     expect(res.body.skipped).toEqual([expect.objectContaining({ accountId: ghost.id })]);
     // Beta now 10 001 units: 1 over → 1 block × 150 = 150 (hand-computed, Starter €1.50/1000).
     expect(statementOf(res.body.items, h.betaId)).toMatchObject({ overageBlocks: 1, amountMinor: 150 });
+  });
+
+  it('gives no draft for a month that ended before the account was created', async () => {
+    const late = createAccount(h.deps.db, {
+      name: 'Invented Newcomer Evaporation',
+      plan: 'starter',
+      // One second after March 2031 ended (UTC).
+      now: new Date('2031-04-01T00:00:01Z'),
+    });
+    const res = await h.billing.agent
+      .post('/console-api/statements/generate')
+      .set('X-CSRF-Token', h.billing.csrf)
+      .send({ month: '2031-03' })
+      .expect(200);
+    expect((res.body.items as StatementBody[]).map((i) => i.accountId)).not.toContain(late.id);
+    expect(res.body.created).toBe(0);
+    const list = await h.billing.agent
+      .get(`/console-api/statements?month=2031-03&accountId=${late.id}`)
+      .expect(200);
+    expect(list.body.items).toEqual([]);
+  });
+
+  it('writes counts in statement lines with a thousands separator', async () => {
+    const res = await h.billing.agent
+      .get(`/console-api/statements?month=2031-03&accountId=${h.alphaId}`)
+      .expect(200);
+    const id = (res.body.items as StatementBody[])[0]!.id;
+    const detail = await h.billing.agent.get(`/console-api/statements/${id}`).expect(200);
+    const text = (detail.body.lineItems as { description: string }[]).map((l) => l.description).join(' | ');
+    // Alpha's plan includes 50 000 units; its 11 001 over are billed per block of 1 000.
+    expect(text).toContain('includes 50,000 units');
+    expect(text).toContain('11,001 units beyond the included 50,000');
+    expect(text).not.toMatch(/\d{5}/);
   });
 
   it('lists statements by month and account and shows line items that sum to the amount', async () => {
@@ -183,7 +216,8 @@ describe('statements', () => {
     const evil = createAccount(h.deps.db, {
       name: '=HYPERLINK("x")',
       plan: 'professional',
-      now: h.clock.now,
+      // An account of March 2031 (a later one gets no March statement).
+      now: new Date('2031-03-01T00:00:00Z'),
     });
     await h.billing.agent
       .post('/console-api/statements/generate')
@@ -331,7 +365,8 @@ describe('finalize through the payment provider', () => {
     const zero = createAccount(h.deps.db, {
       name: 'Invented Quiet Works',
       plan: 'starter',
-      now: h.clock.now,
+      // An account of March 2031 (a later one gets no March statement).
+      now: new Date('2031-03-01T00:00:00Z'),
     });
     const gen = await h.admin.agent
       .post('/console-api/statements/generate')

@@ -153,18 +153,72 @@ describe('GET /console-api/liquors/:id/charts for the built-in models', () => {
     for (const p of rich.points) expect(p.solutionBoilingPoint).toBeLessThanOrEqual(250);
   });
 
+  it('charts the black liquor on to its 85 % limit, flagging every point beyond 50 % dry solids as extrapolated', async () => {
+    const c = await charts('kraft-black-liquor');
+    const fractions = c.duhring.lines.map((l: Line) => l.massFraction);
+    // Model documentation (server/engine/liquors/kraft-black-liquor.ts): BPR silent to 50 % dry
+    // solids, "model-extrapolated" from 50 % to 85 %, refused beyond; the pressure correction is
+    // trusted for water boiling at 50–150 °C and the liquor itself at 40–150 °C (extrapolated
+    // outside those at any solids).
+    expect(Math.max(...fractions)).toBe(0.85);
+    expect(fractions).toContain(0.5);
+    for (const line of c.duhring.lines)
+      for (const p of line.points) {
+        const where = `x=${line.massFraction} tw=${p.waterBoilingPoint}`;
+        if (line.massFraction > 0.5) expect(p.extrapolated, where).toBe(true);
+        else if (p.waterBoilingPoint >= 50 && p.solutionBoilingPoint <= 150)
+          expect(p.extrapolated, where).toBe(false);
+      }
+  });
+
   it('answers 404 for an unknown liquor', async () => {
     await h.admin.agent.get('/console-api/liquors/no-such-liquor/charts').expect(404);
     await h.admin.agent.get(`/console-api/liquors/no-such-liquor/charts?accountId=${h.alphaId}`).expect(404);
   });
 });
 
+/** c_p(x) = 4.18 − 2.4·x kJ/(kg·K): the example of the upload contract (shared/contracts/liquors.ts). */
+const HEAT_CAPACITY = '4.18,-2.4';
+
 describe('POST /console-api/accounts/:id/liquors (CSV Dühring upload)', () => {
+  it('refuses an upload without a heat capacity with a 422 naming heatCapacity', async () => {
+    const res = await h.admin.agent
+      .post(`/console-api/accounts/${h.alphaId}/liquors`)
+      .set('X-CSRF-Token', h.admin.csrf)
+      .field('name', 'No heat capacity')
+      .attach('file', Buffer.from(fixtureCsv()), { filename: 'duhring.csv', contentType: 'text/csv' })
+      .expect(422);
+    expect((res.body.errors as { field: string }[]).map((e) => e.field)).toContain('heatCapacity');
+  });
+
+  it('describes a stored 40–100 °C table by its own temperature range in °C, not the 0–350 °C liquid range', async () => {
+    // Invented readings: two concentrations, water boiling at 40 and 100 °C.
+    const csv =
+      'massFraction,waterBoilingPoint,solutionBoilingPoint\n0.1,40,42\n0.1,100,103\n0.3,40,48\n0.3,100,110\n';
+    const res = await h.admin.agent
+      .post(`/console-api/accounts/${h.betaId}/liquors`)
+      .set('X-CSRF-Token', h.admin.csrf)
+      .field('name', 'Forty to hundred')
+      .field('heatCapacity', HEAT_CAPACITY)
+      .attach('file', Buffer.from(csv), { filename: 't.csv', contentType: 'text/csv' })
+      .expect(201);
+    expect(res.body.validity.temperature).toEqual({ min: 40, max: 110 });
+    const notes = (res.body.validity.notes as string[]).join(' ');
+    expect(notes).toContain('water boiling points 40–100 °C');
+    expect(notes).not.toMatch(/\d K overall|313\.15|373\.15/);
+    const list = await h.admin.agent.get(`/console-api/liquors?accountId=${h.betaId}`).expect(200);
+    const item = (list.body.items as { id: string; validity: { temperature: unknown } }[]).find(
+      (l) => l.id === 'forty-to-hundred',
+    );
+    expect(item?.validity.temperature).toEqual({ min: 40, max: 110 });
+  });
+
   it('stores the table for the account, lists it and charts it through the table readings', async () => {
     const res = await h.admin.agent
       .post(`/console-api/accounts/${h.alphaId}/liquors`)
       .set('X-CSRF-Token', h.admin.csrf)
       .field('name', 'Plant caustic (Olsson table)')
+      .field('heatCapacity', HEAT_CAPACITY)
       .attach('file', Buffer.from(fixtureCsv()), { filename: 'duhring.csv', contentType: 'text/csv' })
       .expect(201);
     expect(res.body).toMatchObject({
@@ -211,6 +265,7 @@ describe('POST /console-api/accounts/:id/liquors (CSV Dühring upload)', () => {
       .post(`/console-api/accounts/${h.alphaId}/liquors`)
       .set('X-CSRF-Token', h.admin.csrf)
       .field('name', 'Broken table')
+      .field('heatCapacity', HEAT_CAPACITY)
       .attach('file', Buffer.from(csv), { filename: 'broken.csv', contentType: 'text/csv' })
       .expect(422);
     expect((res.body.errors as { field: string }[]).map((e) => e.field)).toEqual([
@@ -225,6 +280,7 @@ describe('POST /console-api/accounts/:id/liquors (CSV Dühring upload)', () => {
         .post(`/console-api/accounts/${account}/liquors`)
         .set('X-CSRF-Token', who.csrf)
         .field('name', 'Plant caustic (Olsson table)')
+        .field('heatCapacity', HEAT_CAPACITY)
         .attach('file', Buffer.from(fixtureCsv()), { filename: 'duhring.csv', contentType: 'text/csv' });
     expect((await send()).status).toBe(409);
     expect((await send(h.billing)).status).toBe(403);

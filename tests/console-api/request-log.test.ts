@@ -174,6 +174,17 @@ describe('GET /console-api/request-log/:id', () => {
     });
   });
 
+  it('names the account and the key of an entry, in the detail and in the list', async () => {
+    const listed = items(
+      (await h.developer.agent.get('/console-api/request-log?requestId=seed-1').expect(200)).body,
+    )[0]! as Item & { accountName: string; keyName: string };
+    const res = await h.developer.agent.get(`/console-api/request-log/${listed.id}`).expect(200);
+    // The names given in data-harness.ts and in beforeAll above.
+    const accountName = 'Invented Alpha Works';
+    expect(res.body).toMatchObject({ keyId: alphaKey, keyName: 'a', accountName });
+    expect(listed).toMatchObject({ keyName: 'a', accountName });
+  });
+
   it('refuses a developer another account’s entry (403) and answers 404 for an unknown id', async () => {
     const beta = items(
       (await h.admin.agent.get('/console-api/request-log?requestId=seed-8').expect(200)).body,

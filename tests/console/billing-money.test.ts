@@ -9,7 +9,8 @@ import { createVuetify } from 'vuetify';
 import * as components from 'vuetify/components';
 import type { StatementDetail } from '../../shared/console/billing.js';
 import { createApiClient } from '../../console/src/api/client.js';
-import { formatMinor, formatMonth, minorDigits } from '../../console/src/composables/money.js';
+import { formatMonth } from '../../console/src/composables/dates.js';
+import { formatMinor, minorDigits } from '../../console/src/composables/money.js';
 import StatementDetailCard from '../../console/src/components/billing/StatementDetailCard.vue';
 import {
   monthIsOver,
@@ -43,9 +44,10 @@ describe('minor-unit amounts', () => {
     expect(spaces(formatMinor(1234, 'bhd', 'en-US'))).toBe('BHD 1.234');
   });
 
-  it('names months in UTC, so the first of a month never slips into the one before', () => {
-    // Source: Gregorian calendar month names (common practice) (from memory)
-    expect(formatMonth('2031-03', 'en-US')).toBe('March 2031');
+  it('writes months as YYYY-MM in UTC, so the first of a month never slips into the one before', () => {
+    // Source: ISO 8601 calendar month YYYY-MM (from memory)
+    expect(formatMonth('2031-03')).toBe('2031-03');
+    expect(formatMonth('2031-03-01T00:00:00Z')).toBe('2031-03');
     // Source: calendar arithmetic — the month before January 2032 is December 2031 (from memory)
     expect(previousUtcMonth(new Date('2032-01-15T00:00:00Z'))).toBe('2031-12');
   });
@@ -120,6 +122,26 @@ describe('statement detail', () => {
     expect(wrapper.get('[data-test="invoice-id"]').text()).toBe('in_fake_123');
     // A finalized statement cannot be finalized again.
     expect(wrapper.find('[data-test="finalize"]').exists()).toBe(false);
+  });
+
+  it('has a close button that asks its dialog to close', async () => {
+    const wrapper = mount(StatementDetailCard, {
+      props: { statement, csvUrl: '/x.csv', canFinalize: false, monthOver: true },
+      global: { plugins: [vuetify] },
+    });
+    await wrapper.get('[data-test="close-statement"]').trigger('click');
+    expect(wrapper.emitted('close')).toHaveLength(1);
+  });
+
+  it('writes unit counts with the locale’s thousands separator', () => {
+    const wrapper = mount(StatementDetailCard, {
+      props: { statement, csvUrl: '/x.csv', canFinalize: false, monthOver: true },
+      global: { plugins: [vuetify] },
+    });
+    const text = wrapper.text();
+    // The count formatter of the console (Intl.NumberFormat with grouping), applied to 23 456.
+    expect(text).toContain(new Intl.NumberFormat().format(23456));
+    expect(text).not.toContain('23456');
   });
 });
 

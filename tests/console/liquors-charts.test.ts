@@ -6,6 +6,7 @@
  */
 import { mount } from '@vue/test-utils';
 import { describe, expect, it, vi } from 'vitest';
+import { createVuetify } from 'vuetify';
 import type { ConsoleLiquorCharts } from '../../shared/console/liquors.js';
 import boiling from '../fixtures/custom-liquor/seawater-boiling-points.json' with { type: 'json' };
 import enthalpyFixture from '../fixtures/custom-liquor/seawater-enthalpy.json' with { type: 'json' };
@@ -117,7 +118,8 @@ describe('Dühring chart data', () => {
 
   it('hands vue-chartjs one dataset per concentration plus the reference', async () => {
     const DuhringChart = (await import('../../console/src/components/charts/DuhringChart.vue')).default;
-    mount(DuhringChart, { props: { duhring } });
+    // The chart places its legend by the screen width (Vuetify's display).
+    mount(DuhringChart, { props: { duhring }, global: { plugins: [createVuetify()] } });
     // Source: IAPWS-08 fixture (concentrations), plus one reference line
     expect(seen.data?.datasets.length).toBe(concentrations.length + 1);
     expect(seen.data?.datasets.at(-1)?.label).toBe('water (no rise)');

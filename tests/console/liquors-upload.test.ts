@@ -75,3 +75,46 @@ describe('Dühring upload errors', () => {
     expect(form.has('id')).toBe(false);
   });
 });
+
+describe('Dühring upload form', () => {
+  const mountCard = () =>
+    mount(LiquorUploadCard, {
+      props: {
+        accounts: [{ title: 'Brine Works', value: 2 }],
+        uploading: false,
+        problem: null,
+        lineErrors: [],
+      },
+      global: { plugins: [createVuetify({ components })] },
+    });
+
+  it('calls the heat capacity required, as the upload contract does, never optional', () => {
+    const text = mountCard().text();
+    expect(text).toContain('Heat capacity');
+    expect(text).toContain('Required');
+    expect(text).not.toMatch(/optional/i);
+  });
+
+  it('clears its fields once an upload has finished without a problem', async () => {
+    const wrapper = mountCard();
+    const inputs = () => wrapper.findAll('.v-text-field:not(.v-select) input');
+    const [name, heat] = inputs();
+    expect(inputs()).toHaveLength(2);
+    await name!.setValue('Spent wash (invented)');
+    await heat!.setValue('4.18,-2.4');
+    await wrapper.setProps({ uploading: true } as never);
+    await wrapper.setProps({ uploading: false } as never);
+    const values = inputs().map((i) => (i.element as HTMLInputElement).value);
+    expect(values).not.toContain('Spent wash (invented)');
+    expect(values).not.toContain('4.18,-2.4');
+  });
+
+  it('keeps its fields when the upload was refused, so they can be corrected', async () => {
+    const wrapper = mountCard();
+    const [name] = wrapper.findAll('.v-text-field:not(.v-select) input');
+    await name!.setValue('Spent wash (invented)');
+    await wrapper.setProps({ uploading: true } as never);
+    await wrapper.setProps({ uploading: false, problem: serverProblem() } as never);
+    expect((name!.element as HTMLInputElement).value).toBe('Spent wash (invented)');
+  });
+});

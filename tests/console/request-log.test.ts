@@ -99,6 +99,8 @@ describe('request detail', () => {
     at: '2031-03-14T10:00:00.120Z',
     accountId: 2,
     keyId: 5,
+    accountName: 'Brine Works',
+    keyName: 'nightly brine check',
     method: 'POST',
     path: '/v1/liquors/sodium-hydroxide/boiling-point',
     operation: 'liquors.boiling-point',
@@ -118,7 +120,7 @@ describe('request detail', () => {
 
   it('pretty-prints a JSON body and shows markup in bodies as text, not as elements', () => {
     const wrapper = mount(RequestLogDetailPanel, {
-      props: { detail, accountName: 'Brine Works' },
+      props: { detail },
       global: { plugins: [vuetify] },
     });
     const req = wrapper.get('[data-test="request-body"]');
@@ -132,11 +134,19 @@ describe('request detail', () => {
     expect(res.text()).toBe('not json <b>bold</b>');
   });
 
+  it('names the account and the key instead of their numbers', () => {
+    const wrapper = mount(RequestLogDetailPanel, { props: { detail }, global: { plugins: [vuetify] } });
+    const text = wrapper.text();
+    expect(text).toContain('Brine Works');
+    expect(text).toContain('nightly brine check');
+    expect(text).not.toContain('Key 5');
+    expect(text).not.toContain('Account 2');
+  });
+
   it('says so when the account keeps no bodies', () => {
     const wrapper = mount(RequestLogDetailPanel, {
       props: {
         detail: { ...detail, bodiesRetained: false, requestBody: null, responseBody: null },
-        accountName: 'x',
       },
       global: { plugins: [vuetify] },
     });

@@ -10,7 +10,10 @@ import { fakeFetch, json } from './fake-fetch.js';
 const ada = { id: 7, email: 'ada@kettleworks.test', name: 'Ada', role: 'developer', accountIds: [2, 5] };
 const unauthorized = { type: '/problems/unauthorized', title: 'Unauthorized', status: 401 };
 
-beforeEach(() => setActivePinia(createPinia()));
+beforeEach(() => {
+  setActivePinia(createPinia());
+  localStorage.clear();
+});
 
 describe('session store', () => {
   it('signs in and takes the role and accounts from the answer', async () => {
@@ -90,5 +93,49 @@ describe('session store', () => {
     await session.signOut();
     expect(session.user).toBeNull();
     expect(f.calls.at(-1)?.headers['x-csrf-token']).toBe('tok');
+  });
+
+  it('does not call a first visit an ended session, though /auth/me and the refresh answer 401', async () => {
+    const f = fakeFetch({
+      'GET /console-api/auth/me': () => json(401, unauthorized),
+      'POST /console-api/auth/refresh': () => json(401, unauthorized),
+    });
+    const session = useSessionStore();
+    useSessionClient(
+      createApiClient({ fetch: f.fetch, readCookie: () => 'tok', onSessionExpired: () => session.expire() }),
+    );
+    expect(await session.load()).toBeNull();
+    expect(session.ended).toBe(false);
+  });
+
+  it('calls it an ended session when this browser was signed in before and the refresh is refused', async () => {
+    const signedIn = fakeFetch({ 'POST /console-api/auth/sign-in': () => json(200, { user: ada }) });
+    useSessionClient(createApiClient({ fetch: signedIn.fetch, readCookie: () => 'tok' }));
+    await useSessionStore().signIn('ada@kettleworks.test', 'correct horse battery');
+    // A new page load in the same browser, after the session's cookies have lapsed.
+    setActivePinia(createPinia());
+    const f = fakeFetch({
+      'GET /console-api/auth/me': () => json(401, unauthorized),
+      'POST /console-api/auth/refresh': () => json(401, unauthorized),
+    });
+    const session = useSessionStore();
+    useSessionClient(
+      createApiClient({ fetch: f.fetch, readCookie: () => 'tok', onSessionExpired: () => session.expire() }),
+    );
+    expect(await session.load()).toBeNull();
+    expect(session.ended).toBe(true);
+  });
+
+  it('forgets the earlier session on sign-out, so the next visit is not told its session ended', async () => {
+    const f = fakeFetch({
+      'POST /console-api/auth/sign-in': () => json(200, { user: ada }),
+      'POST /console-api/auth/sign-out': () => new Response(null, { status: 204 }),
+    });
+    useSessionClient(createApiClient({ fetch: f.fetch, readCookie: () => 'tok' }));
+    const session = useSessionStore();
+    await session.signIn('ada@kettleworks.test', 'correct horse battery');
+    await session.signOut();
+    expect(session.expire()).toBe(false);
+    expect(session.ended).toBe(false);
   });
 });

@@ -53,4 +53,21 @@ describe('openApiRouter', () => {
     expect(page.status).toBe(200);
     expect(page.text).not.toMatch(/https?:\/\/(cdn|unpkg)/);
   });
+
+  it('links the API reference page back to the console, with nothing loaded from elsewhere', async () => {
+    const express = (await import('express')).default;
+    const request = (await import('supertest')).default;
+    const { openApiRouter } = await import('../../server/http/openapi.js');
+    const app = express().use(openApiRouter());
+    const page = await request(app).get('/docs/');
+    const src = /<script src=['"](\/docs-assets\/[^'"]+\.js)['"]>/.exec(page.text)?.[1];
+    expect(src).toBeDefined();
+    const script = await request(app).get(src!);
+    expect(script.status).toBe(200);
+    expect(script.headers['content-type']).toMatch(/javascript/);
+    expect(script.text).toContain("back.href = '/console/'");
+    expect(script.text).toContain('Back to the Ebullio console');
+    // Only relative script and style addresses (the Swagger UI assets served beside the page).
+    expect(page.text).not.toMatch(/(src|href)=['"](https?:)?\/\//);
+  });
 });

@@ -20,7 +20,15 @@ export function useAccountChoices(client: ApiClient = api) {
 
   async function loadAccounts(user: ConsoleUser | null): Promise<void> {
     if (user?.role === 'developer') {
-      accounts.value = user.accountIds.map((id) => ({ title: `Account ${id}`, value: id }));
+      // A developer may not list accounts; their keys carry their accounts' names.
+      const names = new Map<number, string>();
+      try {
+        const body = await client.get<ConsoleKeyList>('/keys');
+        for (const k of body.items) names.set(k.accountId, k.accountName);
+      } catch {
+        // fall back to numbers
+      }
+      accounts.value = user.accountIds.map((id) => ({ title: names.get(id) ?? `Account ${id}`, value: id }));
       return;
     }
     try {

@@ -122,3 +122,38 @@ export function usageDaySeries(rows: readonly UsageRow[], from: string, to: stri
     errors: labels.map((d) => byDay.get(d)?.errors ?? 0),
   };
 }
+
+/** One series of a bar-and-line chart over days, with the axis it is drawn against. */
+export interface DaySeriesDataset {
+  type: 'bar' | 'line';
+  label: string;
+  data: number[];
+  /** 'units' or 'requests': units and request counts never share an axis. */
+  yAxisID: 'units' | 'requests';
+}
+
+/**
+ * The usage chart's series: units as bars on the units axis; all requests and the failed ones
+ * as lines on the requests axis, so 44 failures never stand beside 140 units as if comparable.
+ */
+export function usageChartSeries(series: UsageSeries): DaySeriesDataset[] {
+  return [
+    { type: 'bar', label: 'Units', data: series.units, yAxisID: 'units' },
+    { type: 'line', label: 'Requests', data: series.requests, yAxisID: 'requests' },
+    { type: 'line', label: 'Failed requests', data: series.errors, yAxisID: 'requests' },
+  ];
+}
+
+/**
+ * The overview's series: requests and failed requests as bars on the requests axis, units as a
+ * line of straight segments on the units axis (a spline would overshoot between the daily points).
+ */
+export function overviewChartSeries(
+  days: readonly { requests: number; units: number; errors: number }[],
+): (DaySeriesDataset & { tension?: number })[] {
+  return [
+    { type: 'bar', label: 'Requests', data: days.map((d) => d.requests), yAxisID: 'requests' },
+    { type: 'bar', label: 'Failed requests', data: days.map((d) => d.errors), yAxisID: 'requests' },
+    { type: 'line', label: 'Units', data: days.map((d) => d.units), yAxisID: 'units', tension: 0 },
+  ];
+}

@@ -27,11 +27,3 @@ export function formatMinor(amountMinor: number, currency: string, locale?: stri
     minorToMajor(amountMinor, code),
   );
 }
-
-/** "2025-03" → "March 2025" in the given locale (UTC, so the month never shifts). */
-export function formatMonth(month: string, locale?: string): string {
-  const m = /^(\d{4})-(\d{2})$/.exec(month);
-  if (!m) return month;
-  const date = new Date(Date.UTC(Number(m[1]), Number(m[2]) - 1, 1));
-  return new Intl.DateTimeFormat(locale, { year: 'numeric', month: 'long', timeZone: 'UTC' }).format(date);
-}

@@ -24,3 +24,16 @@ export const integerBetween =
     const n = Number(v);
     return (Number.isInteger(n) && n >= min && n <= max) || `Enter a whole number from ${min} to ${max}`;
   };
+
+/** A calendar day written as the console writes days: 2026-12-03 (a real date). */
+export const ISO_DAY = /^(\d{4})-(0[1-9]|1[0-2])-(0[1-9]|[12]\d|3[01])$/;
+export const isoDay: Rule = (v) => {
+  const m = ISO_DAY.exec(String(v ?? ''));
+  const real = m && new Date(`${m[0]}T00:00:00Z`).toISOString().slice(0, 10) === m[0];
+  return real || 'Enter a day as YYYY-MM-DD, e.g. 2026-12-03';
+};
+
+/** A month written as the console writes months: 2026-12. */
+export const ISO_MONTH = /^\d{4}-(0[1-9]|1[0-2])$/;
+export const isoMonth: Rule = (v) =>
+  ISO_MONTH.test(String(v ?? '')) || 'Enter a month as YYYY-MM, e.g. 2026-12';

@@ -70,6 +70,10 @@ export function createEbullioVuetify() {
       VSelect: { variant: 'outlined', density: 'comfortable' },
       VAutocomplete: { variant: 'outlined', density: 'comfortable' },
       VTextarea: { variant: 'outlined', density: 'comfortable' },
+      // On a phone a table row becomes a card of label–value lines instead of a strip scrolled
+      // sideways (Vuetify's mobile rows, below the sm breakpoint: 600 px).
+      VDataTable: { mobileBreakpoint: 'sm' },
+      VDataTableServer: { mobileBreakpoint: 'sm' },
     },
   });
 }

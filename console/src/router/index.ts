@@ -33,7 +33,9 @@ export function createConsoleRouter(history: RouterHistory = createWebHistory(CO
     }
     const user = await session.load();
     if (!user) {
-      return { name: 'sign-in', query: to.fullPath !== '/' ? { next: to.fullPath } : {} };
+      const query: Record<string, string> = to.fullPath !== '/' ? { next: to.fullPath } : {};
+      if (session.ended) query.expired = '1';
+      return { name: 'sign-in', query };
     }
     if (to.name !== 'not-found' && !session.can(to.meta.roles)) {
       return { name: 'no-access', query: { page: String(to.meta.title ?? to.path) } };
@@ -47,11 +49,13 @@ export function createConsoleRouter(history: RouterHistory = createWebHistory(CO
     }
   });
 
-  // A session that ends mid-use (refresh refused) sends the user back to sign in.
+  // A session that ends mid-use (refresh refused) sends the user back to sign in. Before the first
+  // navigation has finished (no page matched yet) the guard does that itself, keeping the target;
+  // on a public page (the sign-in form itself) nothing moves, so typed fields stay.
   api.setSessionExpiredHandler(() => {
-    useSessionStore().expire();
+    const ended = useSessionStore().expire();
     const current = router.currentRoute.value;
-    if (!current.meta.public) {
+    if (ended && current.matched.length > 0 && !current.meta.public) {
       void router.replace({ name: 'sign-in', query: { next: current.fullPath, expired: '1' } });
     }
   });

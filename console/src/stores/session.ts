@@ -14,8 +14,32 @@ export function useSessionClient(next: ApiClient): void {
   client = next;
 }
 
+/**
+ * Remembers in this browser that someone was signed in, so that a refused refresh can be told
+ * apart from a first visit: only the former is "your session ended". It holds no secret (the
+ * session is in HTTP-only cookies); it is cleared on sign-out and once the end has been said.
+ */
+export const HAD_SESSION_KEY = 'ebullio.console.hadSession';
+
+function storage(): Storage | undefined {
+  try {
+    return typeof localStorage === 'undefined' ? undefined : localStorage;
+  } catch {
+    return undefined; // storage blocked by the browser's settings
+  }
+}
+
+function rememberSession(present: boolean): void {
+  const store = storage();
+  if (!store) return;
+  if (present) store.setItem(HAD_SESSION_KEY, '1');
+  else store.removeItem(HAD_SESSION_KEY);
+}
+
 export const useSessionStore = defineStore('session', () => {
   const user = ref<ConsoleUser | null>(null);
+  /** True when a session this browser had could not be renewed (not on a first visit). */
+  const ended = ref(false);
   const loading = ref(false);
   const error = ref<ApiProblem | null>(null);
   /** True once GET /auth/me has answered (signed in or not). */
@@ -36,6 +60,7 @@ export const useSessionStore = defineStore('session', () => {
     try {
       user.value = unwrapUser(await client.get<unknown>('/auth/me'));
       error.value = null;
+      if (user.value) rememberSession(true);
     } catch (err) {
       user.value = null;
       if (!(err instanceof ApiProblem && err.status === 401)) error.value = asProblem(err);
@@ -53,6 +78,8 @@ export const useSessionStore = defineStore('session', () => {
       const body = await client.post<unknown>('/auth/sign-in', { email, password });
       user.value = unwrapUser(body) ?? unwrapUser(await client.get<unknown>('/auth/me'));
       loaded.value = true;
+      ended.value = false;
+      rememberSession(user.value !== null);
       return user.value !== null;
     } catch (err) {
       user.value = null;
@@ -73,6 +100,7 @@ export const useSessionStore = defineStore('session', () => {
       user.value = null;
       loaded.value = true;
       loading.value = false;
+      rememberSession(false);
     }
   }
 
@@ -87,11 +115,33 @@ export const useSessionStore = defineStore('session', () => {
     return user.value !== null;
   }
 
-  /** Called by the client when a 401 could not be cured: forget the user. */
-  function expire(): void {
+  /**
+   * Called by the client when a 401 could not be cured: forget the user. The session "ended" only
+   * when there was one (signed in on this page, or remembered from an earlier visit); a first
+   * visitor's 401 is just "not signed in". Returns whether a session ended.
+   */
+  function expire(): boolean {
+    const had = user.value !== null || storage()?.getItem(HAD_SESSION_KEY) === '1';
     user.value = null;
     loaded.value = true;
+    rememberSession(false);
+    if (had) ended.value = true;
+    return had;
   }
 
-  return { user, role, loading, error, loaded, signedIn, can, load, signIn, signOut, refresh, expire };
+  return {
+    user,
+    role,
+    loading,
+    error,
+    loaded,
+    ended,
+    signedIn,
+    can,
+    load,
+    signIn,
+    signOut,
+    refresh,
+    expire,
+  };
 });
