@@ -7,6 +7,21 @@ import { EngineRangeError } from '../errors.js';
 import { addWarning, type WarningSink } from '../types.js';
 import type { Interval } from './model.js';
 
+/**
+ * Relative slack at a bound. A value that reaches the engine through a round trip (a water boiling
+ * point of exactly 50 °C turned into p_sat and back into T_sat by IAPWS-IF97 equations 30 and 31)
+ * can land 1e-13 K on the wrong side of a bound it sits on; a few parts in 10^12 are round-off,
+ * not a step outside the model.
+ */
+const EDGE_SLACK = 1e-12;
+
+function below(value: number, bound: number): boolean {
+  return value < bound - EDGE_SLACK * Math.abs(bound);
+}
+function above(value: number, bound: number): boolean {
+  return value > bound + EDGE_SLACK * Math.abs(bound);
+}
+
 export function checkAgainst(
   modelId: string,
   field: string,
@@ -16,7 +31,7 @@ export function checkAgainst(
   limits: Interval,
   warnings: WarningSink,
 ): void {
-  if (!Number.isFinite(value) || value < limits.min || value > limits.max) {
+  if (!Number.isFinite(value) || below(value, limits.min) || above(value, limits.max)) {
     throw new EngineRangeError(
       field,
       value,
@@ -24,7 +39,7 @@ export function checkAgainst(
       `${field} = ${value} ${unit} is outside the range of the ${modelId} model (${limits.min} to ${limits.max} ${unit})`,
     );
   }
-  if (value < validity.min || value > validity.max) {
+  if (below(value, validity.min) || above(value, validity.max)) {
     addWarning(warnings, {
       code: 'model-extrapolated',
       field,
