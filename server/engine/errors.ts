@@ -21,6 +21,11 @@ export class EngineRangeError extends Error {
     message?: string,
     /** Where in a larger calculation the value arose, unit-free (e.g. "effect 2"), for messages. */
     readonly context?: string,
+    /**
+     * Why the range applies, free of numbers and units ("the solution would boil above the
+     * model's temperature limit; lower the pressure"): a caller says the numbers in its units.
+     */
+    readonly reason?: string,
   ) {
     super(
       message ??

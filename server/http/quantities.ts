@@ -16,7 +16,7 @@ import {
 } from '../../shared/contracts/index.js';
 import { fromDefaultUnit, parseQuantity, type ParseContext } from '../units/index.js';
 import { toProblem } from './engine-errors.js';
-import { roundForDisplay, siToDisplay } from './output.js';
+import { messageNumber, roundForDisplay, siToDisplay } from './output.js';
 import { problem } from './problem.js';
 
 /** Display (default) unit of its kind → SI. */
@@ -46,7 +46,12 @@ export function readQuantity(
   const display = siToDisplay(si, spec.kind);
   if (!inRange(spec, display)) {
     const unit = defaultUnits[spec.kind].symbol;
-    const message = outOfRangeMessage(spec, roundForDisplay(display));
+    // Rounded for reading, with the digits it takes not to look equal to the bound it crossed.
+    const shown =
+      [4, 6, 8, 12]
+        .map((d) => messageNumber(display, spec.kind, d))
+        .find((v) => v !== spec.min && v !== spec.max) ?? roundForDisplay(display);
+    const message = outOfRangeMessage(spec, shown);
     throw problem('validation-failed', `${field}: "${input}" = ${message}`, {
       errors: [
         {

@@ -332,6 +332,7 @@ function labelled<T>(
         err.validRange,
         `${where.text}: ${err.message}`,
         where.text,
+        err.reason,
       );
     }
     if (err instanceof EngineInputError) {
@@ -344,6 +345,7 @@ function labelled<T>(
       ...w,
       ...(w.field !== undefined ? { field: where.field(w.field) } : {}),
       message: `${where.text}: ${w.message}`,
+      context: w.context ?? where.text,
     });
   }
   return out;

@@ -322,6 +322,8 @@ function boilingPoint(massFraction: number, pressure: number, warnings?: Warning
       pressure,
       { min: PRESSURE_LIMITS.min, max: PRESSURE_LIMITS.max, unit: 'Pa' },
       `sucrose at ${massFraction} kg/kg boils at ${t.toFixed(2)} K at ${pressure} Pa, above the model's ${TEMPERATURE_LIMITS.max} K limit; lower the pressure`,
+      undefined,
+      "at this pressure the solution would boil above the sucrose model's temperature limit; lower the pressure",
     );
   }
   checkTemperature(t, TEMPERATURE_VALIDITY, warnings);
