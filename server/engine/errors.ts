@@ -3,6 +3,8 @@
  * (422 with the field, the value and the valid range); the engine itself knows nothing of HTTP.
  */
 
+import type { EngineQuantity } from './types.js';
+
 /** A closed or half-open interval in SI units (the unit is named for the message). */
 export interface ValidRange {
   min: number;
@@ -50,7 +52,14 @@ export class EngineNoSolutionError extends Error {
   override readonly name = 'EngineNoSolutionError';
   constructor(
     message: string,
-    readonly detail: { iterations?: number; residual?: number; reason: string } = { reason: 'no-solution' },
+    readonly detail: {
+      iterations?: number;
+      residual?: number;
+      reason: string;
+      /** The message as data (as a warning's): `{name}` stands for `values.name`, an SI value. */
+      template?: string;
+      values?: Record<string, EngineQuantity>;
+    } = { reason: 'no-solution' },
   ) {
     super(message);
   }

@@ -13,13 +13,9 @@
  * Paths are relative to the request part the operation reads; a batch re-bases them onto its
  * case (`cases[3].`) with {@link rebaseProblem} and {@link rebaseWarnings}.
  */
-import {
-  physicalRanges,
-  type QuantityKind,
-  type WarningDto,
-} from '../../shared/contracts/index.js';
+import { physicalRanges, type QuantityKind, type WarningDto } from '../../shared/contracts/index.js';
 import { EngineInputError, EngineNoSolutionError, EngineRangeError } from '../engine/errors.js';
-import type { EngineWarning } from '../engine/types.js';
+import type { EngineQuantity, EngineWarning } from '../engine/types.js';
 import { UnitError } from '../units/index.js';
 import { displayNumber, displayRange, sayQuantity, sayValueAndRange } from './output.js';
 import { problem, ProblemError } from './problem.js';
@@ -93,7 +89,10 @@ export function engineProblem(err: unknown, map: FieldMap = {}): ProblemError | 
     return problem('validation-failed', err.message, { errors: [{ field: path, message: err.message }] });
   }
   if (err instanceof EngineNoSolutionError) {
-    return problem('no-solution', err.message);
+    const { template, values } = err.detail;
+    const message =
+      template !== undefined && values !== undefined ? sayTemplate(template, values, undefined) : err.message;
+    return problem('no-solution', message);
   }
   return undefined;
 }
@@ -166,14 +165,22 @@ export function warningsOut(warnings: readonly EngineWarning[], map: FieldMap = 
  * A warning without data keeps the engine's message.
  */
 function sayWarning(w: EngineWarning, path: string | undefined): string {
-  const values = w.values;
-  if (w.template === undefined || values === undefined) return w.message;
-  const text = w.template.replace(/\{(\w+)\}/g, (whole, name: string) => {
-    if (name === 'field') return path ?? w.field ?? whole;
+  if (w.template === undefined || w.values === undefined) return w.message;
+  const text = sayTemplate(w.template, w.values, path ?? w.field);
+  return w.context ? `${w.context}: ${text}` : text;
+}
+
+/** A template with each `{name}` said in display units and `{field}` the request path. */
+function sayTemplate(
+  template: string,
+  values: Record<string, EngineQuantity>,
+  path: string | undefined,
+): string {
+  return template.replace(/\{(\w+)\}/g, (whole, name: string) => {
+    if (name === 'field') return path ?? whole;
     const q = values[name];
     return q ? sayQuantity(q.value, q.kind) : whole;
   });
-  return w.context ? `${w.context}: ${text}` : text;
 }
 
 function finiteOrNull(v: number): number | null {

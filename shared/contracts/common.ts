@@ -137,12 +137,13 @@ export function inRange(spec: QuantityRange, value: number): boolean {
 
 /** "1.2e+29 kg/s lies outside the accepted range above 0 to 10 000 kg/s" (value in the default unit). */
 export function outOfRangeMessage(spec: QuantitySpec, value: number): string {
-  const text = `${value} ${defaultUnits[spec.kind].label} lies outside the accepted range ${describeRange(spec)}`;
   // A plain 60 for a fraction is almost always a percent.
   if ((spec.kind === 'massFraction' || spec.kind === 'fraction') && value > 1 && value <= 100) {
-    return `${text}; did you mean "${value} %" (${Number((value / 100).toPrecision(12))})?`;
+    const percent = Number((value / 100).toPrecision(12));
+    const fits = inRange(spec, percent) ? `did you mean "${value} %" (${percent})? ` : '';
+    return `${value} is not a ${defaultUnits[spec.kind].label}: ${fits}Accepted range ${describeRange(spec)}`;
   }
-  return text;
+  return `${value} ${defaultUnits[spec.kind].label} lies outside the accepted range ${describeRange(spec)}`;
 }
 
 /**

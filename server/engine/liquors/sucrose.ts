@@ -307,6 +307,13 @@ function checkSaturation(massFraction: number, temperature: number, warnings: Wa
       code: 'above-solubility',
       field: 'massFraction',
       message: `massFraction = ${massFraction} kg/kg is above the solubility of pure sucrose at ${temperature.toFixed(2)} K (${limit.toFixed(4)} kg/kg): the solution is supersaturated and may crystallise`,
+      template:
+        '{field} = {x} is above the solubility of pure sucrose at {t} ({limit}): the solution is supersaturated and may crystallise',
+      values: {
+        x: { value: massFraction, kind: 'massFraction' },
+        t: { value: temperature, kind: 'temperature' },
+        limit: { value: limit, kind: 'massFraction' },
+      },
       validRange: { min: 0, max: limit, unit: 'kg/kg' },
     });
   }
