@@ -140,8 +140,8 @@ export function outOfRangeMessage(spec: QuantitySpec, value: number): string {
   // A plain 60 for a fraction is almost always a percent.
   if ((spec.kind === 'massFraction' || spec.kind === 'fraction') && value > 1 && value <= 100) {
     const percent = Number((value / 100).toPrecision(12));
-    const fits = inRange(spec, percent) ? `did you mean "${value} %" (${percent})? ` : '';
-    return `${value} is not a ${defaultUnits[spec.kind].label}: ${fits}Accepted range ${describeRange(spec)}`;
+    const fits = inRange(spec, percent) ? `; did you mean "${value} %" (${percent})?` : '';
+    return `${value} lies outside the accepted range ${describeRange(spec)}${fits}`;
   }
   return `${value} ${defaultUnits[spec.kind].label} lies outside the accepted range ${describeRange(spec)}`;
 }
