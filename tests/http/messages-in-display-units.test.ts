@@ -201,6 +201,31 @@ describe('units that fit one liquor, and fractions typed as percents', () => {
   });
 });
 
+describe('batch cases get the same units rules', () => {
+  it('reads each case against its own atmosphere and its liquor, and names the case of a refusal', async () => {
+    const res = await post('/v1/batch', {
+      operation: 'liquor-boiling-point',
+      liquor: 'sodium-hydroxide',
+      cases: [
+        { massFraction: 0.3, pressure: '0.5 barg', atmosphericPressure: '950 mbar' },
+        { massFraction: '30 Bx', pressure: 145 },
+        { massFraction: 0.3, pressure: 145 },
+      ],
+    });
+    expect(res.status).toBe(200);
+    const [gauge, brix, absolute] = res.body.results as {
+      status: string;
+      result?: { boilingPoint: number };
+      problem?: { errors: { field: string }[] };
+    }[];
+    expect(gauge!.status).toBe('ok');
+    expect(gauge!.result!.boilingPoint).toBe(absolute!.result!.boilingPoint);
+    expect(brix!.status).toBe('error');
+    expect(JSON.stringify(brix)).toContain('cases[1].massFraction');
+    expect(JSON.stringify(brix)).toContain('does not fit this liquor');
+  });
+});
+
 describe('the API description states the unit grammar once', () => {
   it('puts the grammar in info.description and points every quantity at it', async () => {
     const res = await request(h.app).get('/openapi.json');
