@@ -7,8 +7,12 @@
  * Conversions come from the js-quantities package (1.8.0): each accepted spelling maps, through a
  * small alias table, to a js-quantities unit, and the affine map value → SI (factor and offset) is
  * taken from js-quantities once, when this module loads. Ebullio's own additions on top:
- * - Gauge pressures (barg, kPag, psig): gauge + 101.325 kPa (one standard atmosphere) — the
- *   common-practice reading of "gauge" when the local barometric pressure is not given.
+ * - Compound units ("W/m2-K", "BTU/(h ft2 F)", "kg/min") by the one grammar of grammar.ts,
+ *   normalised to an expression js-quantities reads.
+ * - Gauge pressures (barg, kPag, psig) add the atmosphere, vacuum readings (inHg vac, mmHg vac)
+ *   are taken from it: the request's `atmosphericPressure`, else 101.325 kPa (one standard
+ *   atmosphere) — the common-practice reading when the local barometric pressure is not given.
+ *   A bare "inHg" is refused as ambiguous.
  * - Mass-fraction spellings (%, wt%, g/kg, ppm, Bx), which js-quantities treats as plain numbers.
  *   "Bx"/"°Bx" (degrees Brix) is taken as mass percent of dissolved solids, i.e. mass percent of
  *   sucrose for a pure sucrose solution (ICUMSA's definition of Brix as sucrose mass percent);
