@@ -3,6 +3,8 @@
  * (422 with the field, the value and the valid range); the engine itself knows nothing of HTTP.
  */
 
+import type { EngineQuantity } from './types.js';
+
 /** A closed or half-open interval in SI units (the unit is named for the message). */
 export interface ValidRange {
   min: number;
@@ -21,6 +23,11 @@ export class EngineRangeError extends Error {
     message?: string,
     /** Where in a larger calculation the value arose, unit-free (e.g. "effect 2"), for messages. */
     readonly context?: string,
+    /**
+     * Why the range applies, free of numbers and units ("the solution would boil above the
+     * model's temperature limit; lower the pressure"): a caller says the numbers in its units.
+     */
+    readonly reason?: string,
   ) {
     super(
       message ??
@@ -45,7 +52,14 @@ export class EngineNoSolutionError extends Error {
   override readonly name = 'EngineNoSolutionError';
   constructor(
     message: string,
-    readonly detail: { iterations?: number; residual?: number; reason: string } = { reason: 'no-solution' },
+    readonly detail: {
+      iterations?: number;
+      residual?: number;
+      reason: string;
+      /** The message as data (as a warning's): `{name}` stands for `values.name`, an SI value. */
+      template?: string;
+      values?: Record<string, EngineQuantity>;
+    } = { reason: 'no-solution' },
   ) {
     super(message);
   }

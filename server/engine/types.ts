@@ -21,7 +21,71 @@ export interface EngineWarning {
   field?: string;
   /** The published range that was exceeded, in SI units. */
   validRange?: { min: number; max: number; unit: string };
+  /**
+   * The message as data, for a caller to say in its own units: `{name}` stands for `values.name`
+   * (an SI value of a kind), `{field}` for the field's name as the caller knows it. `message`
+   * says the same in SI.
+   */
+  template?: string;
+  values?: Record<string, EngineQuantity>;
+  /** Where in a larger calculation the warning arose, unit-free ("effect 2"). */
+  context?: string;
 }
+
+/** The kinds of quantity an engine message may carry (SI values; the same names as the API's kinds). */
+export type EngineQuantityKind =
+  | 'temperature'
+  | 'temperatureDifference'
+  | 'pressure'
+  | 'massFraction'
+  | 'massFlow'
+  | 'specificEnthalpy'
+  | 'specificHeatCapacity'
+  | 'power'
+  | 'area'
+  | 'heatTransferCoefficient'
+  | 'length'
+  | 'density';
+
+/** An SI value with its kind, for a message the caller formats. */
+export interface EngineQuantity {
+  value: number;
+  kind: EngineQuantityKind;
+}
+
+/**
+ * The `template` and `values` of a warning whose numbers are all of one kind (nothing when the
+ * kind is unknown: the caller then says the SI message).
+ */
+export function templated(
+  template: string,
+  kind: EngineQuantityKind | undefined,
+  values: Record<string, number>,
+): Pick<EngineWarning, 'template' | 'values'> {
+  if (!kind) return {};
+  return {
+    template,
+    values: Object.fromEntries(Object.entries(values).map(([k, value]) => [k, { value, kind }])),
+  };
+}
+
+/** The kind of an SI unit the engine names in ranges ("Pa" → pressure), if it is one. */
+export function kindOfSiUnit(unit: string): EngineQuantityKind | undefined {
+  return SI_UNIT_KINDS[unit];
+}
+const SI_UNIT_KINDS: Record<string, EngineQuantityKind> = {
+  Pa: 'pressure',
+  K: 'temperature',
+  'kg/kg': 'massFraction',
+  'kg/s': 'massFlow',
+  'J/kg': 'specificEnthalpy',
+  'J/(kg·K)': 'specificHeatCapacity',
+  W: 'power',
+  'm²': 'area',
+  'W/(m²·K)': 'heatTransferCoefficient',
+  m: 'length',
+  'kg/m³': 'density',
+};
 
 /** A safety caution shown with results that could hurt someone if misused. */
 export interface EngineCaution {

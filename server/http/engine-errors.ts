@@ -13,11 +13,11 @@
  * Paths are relative to the request part the operation reads; a batch re-bases them onto its
  * case (`cases[3].`) with {@link rebaseProblem} and {@link rebaseWarnings}.
  */
-import { defaultUnits, type QuantityKind, type WarningDto } from '../../shared/contracts/index.js';
+import { physicalRanges, type QuantityKind, type WarningDto } from '../../shared/contracts/index.js';
 import { EngineInputError, EngineNoSolutionError, EngineRangeError } from '../engine/errors.js';
-import type { EngineWarning } from '../engine/types.js';
+import type { EngineQuantity, EngineWarning } from '../engine/types.js';
 import { UnitError } from '../units/index.js';
-import { displayNumber, displayRange } from './output.js';
+import { displayNumber, displayRange, sayQuantity, sayValueAndRange } from './output.js';
 import { problem, ProblemError } from './problem.js';
 import { echo } from './validate.js';
 
@@ -75,13 +75,12 @@ export function engineProblem(err: unknown, map: FieldMap = {}): ProblemError | 
     const { path, kind } = mapField(map, err.field, err.validRange.unit);
     const range = displayRange(err.validRange, kind);
     const value = displayNumber(err.value, kind);
-    const unit = kind ? defaultUnits[kind].symbol : err.validRange.unit;
-    // The context ("effect 2") leads, so a value from inside a train says where it arose.
+    // The context ("effect 2") leads, so a value from inside a train says where it arose. The
+    // message is said from the error's data in display units, never from the engine's SI text.
     const where = err.context ? `${err.context}: ` : '';
-    const message = `${where}${path} = ${Number.isFinite(value) ? value : String(value)} ${unit} is outside the valid range ${range.min} to ${range.max} ${unit}`;
-    // A labelled error (from inside a train) is fully said by the display-unit message; the
-    // engine's own text would repeat it in SI units.
-    return problem('out-of-range', err.context ? message : `${message}. ${err.message}`, {
+    const why = err.reason ? `: ${err.reason}` : '';
+    const message = `${where}${path} = ${sayRangeError(err, kind)}${why}`;
+    return problem('out-of-range', message, {
       errors: [{ field: path, message, value: echo(value), validRange: range }],
     });
   }
@@ -90,9 +89,26 @@ export function engineProblem(err: unknown, map: FieldMap = {}): ProblemError | 
     return problem('validation-failed', err.message, { errors: [{ field: path, message: err.message }] });
   }
   if (err instanceof EngineNoSolutionError) {
-    return problem('no-solution', err.message);
+    const { template, values } = err.detail;
+    const message =
+      template !== undefined && values !== undefined ? sayTemplate(template, values, undefined) : err.message;
+    return problem('no-solution', message);
   }
   return undefined;
+}
+
+/** "206.4 kPa is outside the valid range 0.6117 to 100 000 kPa" in display units (raw when the unit is no kind). */
+function sayRangeError(err: EngineRangeError, kind: QuantityKind | undefined): string {
+  const { min, max, unit } = err.validRange;
+  if (!kind) {
+    const v = Number.isFinite(err.value) ? err.value : String(err.value);
+    return `${v} ${unit} is outside the valid range ${min} to ${max} ${unit}`;
+  }
+  const said = sayValueAndRange(err.value, { min, max }, kind);
+  if (!Number.isFinite(err.value)) return `${said.value} is not a finite number`;
+  if (!Number.isFinite(max)) return `${said.value} is outside the valid range: at least ${said.min}`;
+  if (!Number.isFinite(min)) return `${said.value} is outside the valid range: at most ${said.max}`;
+  return `${said.value} is outside the valid range ${said.min} to ${said.max}`;
 }
 
 /** Converts any known error to a ProblemError; rethrows the unknown (→ 500 from the app). */
@@ -128,13 +144,42 @@ export function calculate<T>(map: FieldMap, run: () => T): T {
 export function warningsOut(warnings: readonly EngineWarning[], map: FieldMap = {}): WarningDto[] {
   return warnings.map((w) => {
     const mapped = w.field === undefined ? undefined : mapField(map, w.field, w.validRange?.unit ?? '');
-    const out: WarningDto = { code: w.code, message: w.message };
+    const out: WarningDto = { code: w.code, message: sayWarning(w, mapped?.path) };
     if (mapped) out.field = mapped.path;
     if (w.validRange) {
-      const r = displayRange(w.validRange, mapped?.kind ?? SI_KIND_BY_UNIT[w.validRange.unit]);
-      out.validRange = { min: finiteOrNull(r.min), max: finiteOrNull(r.max), unit: r.unit };
+      const kind = mapped?.kind ?? SI_KIND_BY_UNIT[w.validRange.unit];
+      const r = displayRange(w.validRange, kind);
+      // A range is stated within what the quantity can physically be (not "from −273.15 °C").
+      const phys = kind ? physicalRanges[kind] : undefined;
+      const min = phys ? Math.max(r.min, phys.min) : r.min;
+      const max = phys ? Math.min(r.max, phys.max) : r.max;
+      out.validRange = { min: finiteOrNull(min), max: finiteOrNull(max), unit: r.unit };
     }
     return out;
+  });
+}
+
+/**
+ * A warning's message in display units, from its data: the template with each value said in the
+ * display unit of its kind and `{field}` the request path, led by where in a train it arose.
+ * A warning without data keeps the engine's message.
+ */
+function sayWarning(w: EngineWarning, path: string | undefined): string {
+  if (w.template === undefined || w.values === undefined) return w.message;
+  const text = sayTemplate(w.template, w.values, path ?? w.field);
+  return w.context ? `${w.context}: ${text}` : text;
+}
+
+/** A template with each `{name}` said in display units and `{field}` the request path. */
+function sayTemplate(
+  template: string,
+  values: Record<string, EngineQuantity>,
+  path: string | undefined,
+): string {
+  return template.replace(/\{(\w+)\}/g, (whole, name: string) => {
+    if (name === 'field') return path ?? whole;
+    const q = values[name];
+    return q ? sayQuantity(q.value, q.kind) : whole;
   });
 }
 

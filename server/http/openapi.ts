@@ -10,7 +10,7 @@ import { OpenAPIRegistry, OpenApiGeneratorV31, extendZodWithOpenApi } from '@ast
 import { Router } from 'express';
 import swaggerUi from 'swagger-ui-express';
 import { z } from 'zod';
-import { ProblemSchema } from '../../shared/contracts/index.js';
+import { ProblemSchema, UNIT_GRAMMAR } from '../../shared/contracts/index.js';
 import type { AnyOperation } from './v1/operation.js';
 import { v1Operations } from './v1/operations/index.js';
 
@@ -164,9 +164,10 @@ export function buildOpenApiDocument(): ReturnType<OpenApiGeneratorV31['generate
       description:
         'Evaporation calculations as a metered REST API: steam tables (IAPWS-IF97), liquor boiling points and enthalpies ' +
         'from published correlations, single- and multiple-effect evaporators, and batches.\n\n' +
-        'Inputs: every quantity is a number in the default unit (°C, kPa absolute, kg/s, kJ/kg, kW, m², W/(m²·K), mass fraction 0–1) ' +
-        'or a string with a unit ("1.4 bar", "38 degC", "4.5 t/h", "2 barg", "65 %", "60 Bx"). Outputs are plain numbers in the ' +
-        'default units; each field states its unit (`x-unit`). Every result carries `provenance` (engine version and models used).\n\n' +
+        'Outputs are plain numbers in the default units; each field states its unit (`x-unit`). ' +
+        'Every result carries `provenance` (engine version and models used).\n\n' +
+        UNIT_GRAMMAR +
+        '\n\n' +
         'Errors are RFC 9457 problem details (`application/problem+json`). Rate-limit state is sent in the `RateLimit` and ' +
         '`RateLimit-Policy` headers (IETF draft-ietf-httpapi-ratelimit-headers-07).\n\n' +
         'Results are preliminary engineering estimates; pressure and vacuum equipment must be designed under local codes by a licensed engineer.',

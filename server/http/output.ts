@@ -73,3 +73,48 @@ export function provenance(engineVersion: string, models: readonly ModelRef[]) {
   const unique = models.filter((m) => (seen.has(m.id) ? false : (seen.add(m.id), true)));
   return { engineVersion, models: unique };
 }
+
+/**
+ * A number for a message, in the display unit of its kind: temperatures to 0.01 (°C or K),
+ * everything else to `digits` significant digits (4 unless a bound needs more to differ).
+ */
+export function messageNumber(valueDisplay: number, kind: QuantityKind | undefined, digits = 4): number {
+  if (!Number.isFinite(valueDisplay)) return valueDisplay;
+  if (kind === 'temperature' || kind === 'temperatureDifference') {
+    const scale = 10 ** Math.max(2, digits - 2);
+    return Math.round(valueDisplay * scale) / scale;
+  }
+  return Number(valueDisplay.toPrecision(Math.min(Math.max(digits, 1), 15)));
+}
+
+/** The unit of a kind as a message writes it after a number ("" for a fraction: x = 0.45). */
+function messageUnit(kind: QuantityKind): string {
+  if (kind === 'massFraction' || kind === 'fraction') return '';
+  if (kind === 'temperatureDifference') return ' K';
+  return ` ${defaultUnits[kind].label.replace(' absolute', '')}`;
+}
+
+/** "128.35 °C", "206.4 kPa", "0.45": an SI value as a message says it, in display units. */
+export function sayQuantity(valueSI: number, kind: QuantityKind, digits = 4): string {
+  return `${String(messageNumber(siToDisplay(valueSI, kind), kind, digits))}${messageUnit(kind)}`;
+}
+
+/**
+ * A value and its range as a message says them: rounded for reading, with more digits where
+ * rounding would make the value look equal to the bound it crossed.
+ */
+export function sayValueAndRange(
+  valueSI: number,
+  range: { min: number; max: number },
+  kind: QuantityKind,
+): { value: string; min: string; max: string } {
+  let digits = 4;
+  for (;;) {
+    const say = (v: number) => (Number.isFinite(v) ? sayQuantity(v, kind, digits) : String(v));
+    const out = { value: say(valueSI), min: say(range.min), max: say(range.max) };
+    const clash =
+      (out.value === out.min && valueSI !== range.min) || (out.value === out.max && valueSI !== range.max);
+    if (!clash || digits >= 12) return out;
+    digits += 2;
+  }
+}

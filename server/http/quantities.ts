@@ -14,9 +14,9 @@ import {
   type QuantityKind,
   type QuantitySpec,
 } from '../../shared/contracts/index.js';
-import { fromDefaultUnit, parseQuantity } from '../units/index.js';
+import { fromDefaultUnit, parseQuantity, type ParseContext } from '../units/index.js';
 import { toProblem } from './engine-errors.js';
-import { roundForDisplay, siToDisplay } from './output.js';
+import { messageNumber, roundForDisplay, siToDisplay } from './output.js';
 import { problem } from './problem.js';
 
 /** Display (default) unit of its kind → SI. */
@@ -29,19 +29,29 @@ export function displayToSI(value: number, kind: QuantityKind): number {
  * the contract); strings carry a unit and are converted by server/units, then range-checked
  * against the same contract range (422 'validation-failed' with the range in display units).
  */
-export function readQuantity(input: QuantityInput, spec: QuantitySpec, field: string): number {
+export function readQuantity(
+  input: QuantityInput,
+  spec: QuantitySpec,
+  field: string,
+  context?: ParseContext,
+): number {
   if (typeof input === 'number') return displayToSI(input, spec.kind);
   let si: number;
   try {
     // a bare number in a string is read in the default unit by server/units itself
-    si = parseQuantity(input, spec.kind, field);
+    si = parseQuantity(input, spec.kind, field, context);
   } catch (err) {
     throw toProblem(err);
   }
   const display = siToDisplay(si, spec.kind);
   if (!inRange(spec, display)) {
     const unit = defaultUnits[spec.kind].symbol;
-    const message = outOfRangeMessage(spec, roundForDisplay(display));
+    // Rounded for reading, with the digits it takes not to look equal to the bound it crossed.
+    const shown =
+      [4, 6, 8, 12]
+        .map((d) => messageNumber(display, spec.kind, d))
+        .find((v) => v !== spec.min && v !== spec.max) ?? roundForDisplay(display);
+    const message = outOfRangeMessage(spec, shown);
     throw problem('validation-failed', `${field}: "${input}" = ${message}`, {
       errors: [
         {
@@ -128,6 +138,12 @@ export type SI<T> = [NonNullable<T>] extends [QuantityInput]
 /** The indices of the arrays being walked, innermost last (paths are built only for strings). */
 const indexStack: number[] = [];
 
+/**
+ * The request's atmosphere and liquor while {@link toSI} walks it (synchronous, so one at a time):
+ * gauge and vacuum readings of every field refer to the request's `atmosphericPressure`.
+ */
+let current: ParseContext | undefined;
+
 function concretePath(template: string): string {
   if (indexStack.length === 0) return template;
   let i = 0;
@@ -137,7 +153,7 @@ function concretePath(template: string): string {
 function convert(node: SiNode, value: unknown): unknown {
   if ('spec' in node) {
     if (typeof value === 'number') return displayToSI(value, node.spec.kind);
-    return readQuantity(value as QuantityInput, node.spec, concretePath(node.path));
+    return readQuantity(value as QuantityInput, node.spec, concretePath(node.path), current);
   }
   if (value === null || typeof value !== 'object') return value;
   if ('items' in node) {
@@ -166,6 +182,28 @@ function convert(node: SiNode, value: unknown): unknown {
  * from the kind's default unit, strings through server/units and then checked against the
  * field's range (422 'validation-failed' naming the field, the range in display units).
  */
-export function toSI<T>(plan: SiPlan, parsed: T): SI<T> {
-  return (plan ? convert(plan, parsed) : parsed) as SI<T>;
+export function toSI<T>(plan: SiPlan, parsed: T, context: { liquor?: string } = {}): SI<T> {
+  if (!plan) return parsed as SI<T>;
+  current = { ...context };
+  try {
+    // The atmosphere first (itself absolute), so that every gauge reading can refer to it.
+    const fields = 'fields' in plan ? plan.fields : undefined;
+    const atmosphere = fields?.find(([, n]) => 'spec' in n && n.spec.atmosphere);
+    const record = parsed as Record<string, unknown> | null;
+    if (atmosphere && record && typeof record === 'object' && record[atmosphere[0]] !== undefined) {
+      const node = atmosphere[1] as { spec: QuantitySpec; path: string };
+      const value = record[atmosphere[0]] as QuantityInput;
+      const si =
+        typeof value === 'number'
+          ? displayToSI(value, node.spec.kind)
+          : readQuantity(value, node.spec, node.path, { absoluteOnly: true });
+      record[atmosphere[0]] = si;
+      current.atmosphere = si;
+      const rest = { fields: fields!.filter((f) => f !== atmosphere) };
+      return convert(rest, parsed) as SI<T>;
+    }
+    return convert(plan, parsed) as SI<T>;
+  } finally {
+    current = undefined;
+  }
 }

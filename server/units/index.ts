@@ -7,8 +7,12 @@
  * Conversions come from the js-quantities package (1.8.0): each accepted spelling maps, through a
  * small alias table, to a js-quantities unit, and the affine map value → SI (factor and offset) is
  * taken from js-quantities once, when this module loads. Ebullio's own additions on top:
- * - Gauge pressures (barg, kPag, psig): gauge + 101.325 kPa (one standard atmosphere) — the
- *   common-practice reading of "gauge" when the local barometric pressure is not given.
+ * - Compound units ("W/m2-K", "BTU/(h ft2 F)", "kg/min") by the one grammar of grammar.ts,
+ *   normalised to an expression js-quantities reads.
+ * - Gauge pressures (barg, kPag, psig) add the atmosphere, vacuum readings (inHg vac, mmHg vac)
+ *   are taken from it: the request's `atmosphericPressure`, else 101.325 kPa (one standard
+ *   atmosphere) — the common-practice reading when the local barometric pressure is not given.
+ *   A bare "inHg" is refused as ambiguous.
  * - Mass-fraction spellings (%, wt%, g/kg, ppm, Bx), which js-quantities treats as plain numbers.
  *   "Bx"/"°Bx" (degrees Brix) is taken as mass percent of dissolved solids, i.e. mass percent of
  *   sucrose for a pure sucrose solution (ICUMSA's definition of Brix as sucrose mass percent);
@@ -29,6 +33,7 @@ import {
   quantityKinds,
   type QuantityKind,
 } from '../../shared/quantities.js';
+import { readCompound } from './grammar.js';
 
 const require = createRequire(import.meta.url);
 
@@ -129,7 +134,9 @@ const POUND = 0.45359237;
 const FOOT = 0.3048;
 const HOUR = 3600;
 const RANKINE = 5 / 9;
-const ATM = 101_325;
+const INHG = MMHG * 25.4;
+/** The atmosphere gauge and vacuum readings refer to unless a request states its own. */
+export const STANDARD_ATMOSPHERE = 101_325;
 
 /**
  * One accepted unit: its canonical spelling (shown in messages and documentation), other
@@ -142,8 +149,13 @@ interface UnitSpec {
   qty?: string;
   /** SI = value × factor + offset, when not taken from js-quantities. */
   factor?: number;
-  /** Added after conversion, in SI (gauge pressures). */
-  offset?: number;
+  /**
+   * A gauge pressure (1: the atmosphere is added) or a vacuum below the atmosphere (-1: the value
+   * is taken from it). The atmosphere is the request's `atmosphericPressure`, else 101.325 kPa.
+   */
+  gauge?: 1 | -1;
+  /** A unit that measures only these liquors (°Bx: sucrose), refused for the others. */
+  onlyFor?: { liquors: readonly string[]; what: string };
 }
 
 const UNIT_TABLE: Record<UnitFamily, UnitSpec[]> = {
@@ -155,10 +167,15 @@ const UNIT_TABLE: Record<UnitFamily, UnitSpec[]> = {
     { unit: 'mbar', aliases: ['mbar(a)', 'mbara'], qty: 'mbar' },
     { unit: 'psi', aliases: ['psia', 'psi(a)'], factor: PSI },
     { unit: 'atm', qty: 'atm' },
-    { unit: 'mmHg', aliases: ['mm Hg', 'torr', 'Torr'], factor: MMHG },
-    { unit: 'barg', aliases: ['bar(g)', 'bar g'], qty: 'bar', offset: ATM },
-    { unit: 'kPag', aliases: ['kPa(g)', 'kPa g'], qty: 'kPa', offset: ATM },
-    { unit: 'psig', aliases: ['psi(g)', 'psi g'], factor: PSI, offset: ATM },
+    { unit: 'mmHg', aliases: ['mm Hg', 'torr', 'Torr', 'mmHg(a)', 'mmHga', 'mmHg abs'], factor: MMHG },
+    { unit: 'inHg(a)', aliases: ['inHga', 'inHg abs', 'in Hg(a)', 'in Hg abs'], factor: INHG },
+    { unit: 'barg', aliases: ['bar(g)', 'bar g'], qty: 'bar', gauge: 1 },
+    { unit: 'mbarg', aliases: ['mbar(g)', 'mbar g'], qty: 'mbar', gauge: 1 },
+    { unit: 'kPag', aliases: ['kPa(g)', 'kPa g'], qty: 'kPa', gauge: 1 },
+    { unit: 'psig', aliases: ['psi(g)', 'psi g'], factor: PSI, gauge: 1 },
+    // Vacuum gauges read down from the atmosphere (common practice in plants).
+    { unit: 'inHg vac', aliases: ['inHg(v)', 'inHgv', 'inHg vacuum', 'in Hg vac'], factor: INHG, gauge: -1 },
+    { unit: 'mmHg vac', aliases: ['mmHg(v)', 'mmHgv', 'mmHg vacuum', 'mm Hg vac'], factor: MMHG, gauge: -1 },
   ],
   temperature: [
     { unit: '°C', aliases: ['degC', 'C', 'ºC', '℃'], qty: 'tempC' },
@@ -241,9 +258,19 @@ const UNIT_TABLE: Record<UnitFamily, UnitSpec[]> = {
   ],
   massFraction: [
     { unit: 'kg/kg', aliases: ['fraction', 'mass fraction'], factor: 1 },
-    { unit: '%', aliases: ['wt%', 'wt %', 'mass%', 'mass %', '% w/w', '%w/w'], factor: 0.01 },
-    { unit: '°Bx', aliases: ['Bx', 'ºBx', 'brix', 'Brix', '°Brix'], factor: 0.01 },
-    { unit: 'g/kg', factor: 1e-3 },
+    {
+      unit: '%',
+      aliases: ['wt%', 'wt %', 'wt.%', 'wt. %', 'mass%', 'mass %', '% w/w', '%w/w'],
+      factor: 0.01,
+    },
+    {
+      unit: '°Bx',
+      aliases: ['Bx', 'ºBx', 'brix', 'Brix', '°Brix'],
+      factor: 0.01,
+      onlyFor: { liquors: ['sucrose'], what: 'degrees Brix measure sucrose (sugar) solutions' },
+    },
+    // Salinity in parts per thousand is g/kg (common practice; not js-quantities' "ppt", 1e-12).
+    { unit: 'g/kg', aliases: ['ppt', '‰'], factor: 1e-3 },
     { unit: 'ppm', aliases: ['ppmw', 'mg/kg'], factor: 1e-6 },
   ],
   density: [
@@ -257,6 +284,8 @@ interface Affine {
   unit: string;
   factor: number;
   offset: number;
+  gauge?: 1 | -1;
+  onlyFor?: UnitSpec['onlyFor'];
 }
 
 /** Spellings are matched after removing spaces (so "kg / s" and "kg/s" are the same). */
@@ -273,19 +302,32 @@ function affineFromQty(expr: string, si: string): { factor: number; offset: numb
 }
 
 const FAMILY_LOOKUP = new Map<UnitFamily, Map<string, Affine>>();
+/** Each family's spellings by lower case, where no two units of the family share it. */
+const FAMILY_FOLDED = new Map<UnitFamily, Map<string, Affine | null>>();
 const FAMILY_ACCEPTED = new Map<UnitFamily, string[]>();
 for (const kind of Object.keys(UNIT_TABLE) as UnitFamily[]) {
   const map = new Map<string, Affine>();
+  const folded = new Map<string, Affine | null>();
   for (const spec of UNIT_TABLE[kind]) {
     const si = QTY_SI[kind];
     let affine: { factor: number; offset: number };
     if (spec.factor !== undefined) affine = { factor: spec.factor, offset: 0 };
     else if (spec.qty !== undefined && si !== undefined) affine = affineFromQty(spec.qty, si);
     else throw new Error(`units table: ${kind} ${spec.unit} has neither factor nor js-quantities unit`);
-    const entry = { unit: spec.unit, factor: affine.factor, offset: affine.offset + (spec.offset ?? 0) };
-    for (const s of [spec.unit, ...(spec.aliases ?? [])]) map.set(key(s), entry);
+    const entry: Affine = { unit: spec.unit, factor: affine.factor, offset: affine.offset };
+    if (spec.gauge) entry.gauge = spec.gauge;
+    if (spec.onlyFor) entry.onlyFor = spec.onlyFor;
+    for (const s of [spec.unit, ...(spec.aliases ?? [])]) {
+      map.set(key(s), entry);
+      // "MW"/"mW", "mbar"/"Mbar": a leading m or M is a prefix and keeps its case.
+      if (/^[mM][^aeiou]/.test(s)) continue;
+      const k = key(s).toLowerCase();
+      const seen = folded.get(k);
+      folded.set(k, seen === undefined || seen === entry ? entry : null);
+    }
   }
   FAMILY_LOOKUP.set(kind, map);
+  FAMILY_FOLDED.set(kind, folded);
   FAMILY_ACCEPTED.set(
     kind,
     UNIT_TABLE[kind].map((s) => s.unit),
@@ -298,6 +340,66 @@ const LOOKUP = new Map<QuantityKind, Map<string, Affine>>(
 const ACCEPTED = new Map<QuantityKind, string[]>(
   quantityKinds.map((kind) => [kind, FAMILY_ACCEPTED.get(FAMILY[kind])!]),
 );
+
+/** Spellings refused with a hint, because plants use them for more than one thing. */
+const AMBIGUOUS: Partial<Record<UnitFamily, { test: RegExp; hint: string }[]>> = {
+  pressure: [
+    {
+      test: /^(in\s*hg|"\s*hg|inches\s*hg|inch\s*hg)$/i,
+      hint: 'a bare "inHg" is ambiguous (in plants it usually reads a vacuum): write "inHg(a)" for an absolute pressure or "inHg vac" for a vacuum below the atmosphere',
+    },
+  ],
+  massFlow: [
+    {
+      test: /(^|[^a-z])tons?([^a-z]|$)/i,
+      hint: '"ton" is ambiguous: write "t/h" (or "tonne/h") for metric tonnes, or "short ton/h" for US short tons',
+    },
+  ],
+};
+
+/** js-quantities' SI value of one unit (for the exact-factor correction of the grammar). */
+function baseScalar(qty: string): number {
+  return (Qty(1, qty) as unknown as { baseScalar: number }).baseScalar;
+}
+
+/** Compound spellings read by the grammar, per family; bounded, as the text comes from clients. */
+const COMPOUND_CACHE = new Map<string, Affine | null>();
+const COMPOUND_CACHE_SIZE = 2048;
+
+/** A compound unit ("kW/(m^2 K)") of a family by the one grammar (server/units/grammar.ts). */
+function compoundOf(family: UnitFamily, spelled: string): Affine | undefined {
+  const si = QTY_SI[family];
+  if (si === undefined || family === 'temperature') return undefined;
+  const cacheKey = `${family}\u0000${spelled}`;
+  const cached = COMPOUND_CACHE.get(cacheKey);
+  if (cached !== undefined) return cached ?? undefined;
+  let found: Affine | null = null;
+  const compound = readCompound(spelled, baseScalar);
+  if (compound) {
+    try {
+      const affine = affineFromQty(compound.expr, si);
+      // Compounds are never offset scales: their temperatures are differences.
+      if (affine.offset === 0 && Number.isFinite(affine.factor) && affine.factor > 0) {
+        found = { unit: spelled, factor: affine.factor * compound.correction, offset: 0 };
+      }
+    } catch {
+      found = null; // another dimension, or not a js-quantities unit
+    }
+  }
+  if (COMPOUND_CACHE.size >= COMPOUND_CACHE_SIZE) COMPOUND_CACHE.clear();
+  COMPOUND_CACHE.set(cacheKey, found);
+  return found ?? undefined;
+}
+
+/** A unit of a family: its table spelling, the same ignoring case where unambiguous, or a compound. */
+function unitOf(family: UnitFamily, spelled: string): Affine | undefined {
+  const k = key(spelled);
+  return (
+    FAMILY_LOOKUP.get(family)!.get(k) ??
+    FAMILY_FOLDED.get(family)!.get(k.toLowerCase()) ??
+    compoundOf(family, spelled)
+  );
+}
 
 /** Canonical spellings accepted for a kind (aliases such as "degC" for "°C" are accepted too). */
 export function acceptedUnits(kind: QuantityKind): string[] {
@@ -332,8 +434,10 @@ function kindLabel(kind: QuantityKind): string {
   return FAMILY[kind].replace(/([A-Z])/g, ' $1').toLowerCase();
 }
 
-function convert(value: number, unit: Affine): number {
-  return value * unit.factor + unit.offset;
+function convert(value: number, unit: Affine, atmosphere = STANDARD_ATMOSPHERE): number {
+  const si = value * unit.factor + unit.offset;
+  if (unit.gauge === undefined) return si;
+  return unit.gauge === 1 ? atmosphere + si : atmosphere - si;
 }
 
 /** Each kind's default unit as its affine map to SI, looked up once (the API converts every field). */
@@ -341,25 +445,44 @@ const DEFAULT_UNIT = new Map<QuantityKind, Affine>(
   quantityKinds.map((kind) => [kind, LOOKUP.get(kind)?.get(key(defaultUnits[kind])) as Affine]),
 );
 
+/** What a request tells the parser beyond the text: its atmosphere and its liquor. */
+export interface ParseContext {
+  /** The atmosphere gauge and vacuum readings refer to, Pa (default 101 325 Pa). */
+  atmosphere?: number;
+  /** The request's liquor id ("custom" for an inline one), for units that fit one liquor only. */
+  liquor?: string;
+  /** This field is itself the atmosphere: gauge and vacuum readings make no sense in it. */
+  absoluteOnly?: boolean;
+}
+
 /**
  * Parses a dimensional input to SI. A number is in the kind's default unit ({@link defaultUnits});
- * a string is a number followed by an optional unit ("1.4 bar", "1.4bar", "-3 °C", "2 barg").
+ * a string is a number followed by an optional unit ("1.4 bar", "1.4bar", "-3 °C", "2 barg",
+ * "1200 W/m2-K": the grammar of server/units/grammar.ts).
  * Throws {@link UnitError} (with field, input, kind and the accepted units) for an empty string,
- * NaN, Infinity, an unknown unit, a unit of another kind, or a value no unit can make physical
- * (negative absolute pressure or temperature, a mass fraction outside 0–1).
+ * NaN, Infinity, an unknown or ambiguous unit, a unit of another kind, a unit that does not fit
+ * the request's liquor, or a value no unit can make physical (negative absolute pressure or
+ * temperature, a mass fraction outside 0–1).
  *
  * @param input a number in the default unit, or "value unit"
  * @param kind what the input measures
  * @param field path of the input in the request, used in the error
+ * @param context the request's atmosphere (for gauge and vacuum readings) and liquor
  * @returns the value in SI (Pa, K, kg/s, J/kg, J/(kg·K), W/(m²·K), m², m, W, kg/kg, kg/m³)
  */
-export function parseQuantity(input: number | string, kind: QuantityKind, field: string): number {
+export function parseQuantity(
+  input: number | string,
+  kind: QuantityKind,
+  field: string,
+  context?: ParseContext,
+): number {
   // The success path builds no message and copies no unit list: every quantity of every request
   // comes through here, and that work showed in profiles of the calculation routes.
-  const lookup = LOOKUP.get(kind) as Map<string, Affine>;
+  const family = FAMILY[kind];
 
   let value: number;
   let unit: Affine;
+  let bare = false;
   if (typeof input === 'number') {
     if (!Number.isFinite(input)) {
       throw unitErrorFor(
@@ -371,6 +494,7 @@ export function parseQuantity(input: number | string, kind: QuantityKind, field:
     }
     value = input;
     unit = DEFAULT_UNIT.get(kind) as Affine;
+    bare = true;
   } else if (typeof input === 'string') {
     const text = input.trim();
     if (text.length === 0) {
@@ -396,21 +520,10 @@ export function parseQuantity(input: number | string, kind: QuantityKind, field:
     const spelled = (match[2] ?? '').trim();
     if (spelled.length === 0) {
       unit = DEFAULT_UNIT.get(kind) as Affine;
+      bare = true;
     } else {
-      const found = lookup.get(key(spelled));
-      if (!found) {
-        const other = quantityKinds.find(
-          (k) => FAMILY[k] !== FAMILY[kind] && LOOKUP.get(k)?.has(key(spelled)),
-        );
-        throw unitErrorFor(
-          field,
-          input,
-          kind,
-          other
-            ? `${field}: "${spelled}" is a ${kindLabel(other)} unit, not a ${kindLabel(kind)} unit (${listed(kind)})`
-            : `${field}: unknown unit "${spelled}" for a ${kindLabel(kind)} (${listed(kind)})`,
-        );
-      }
+      const found = unitOf(family, spelled);
+      if (!found) throw unknownUnit(field, input, kind, spelled);
       unit = found;
     }
   } else {
@@ -422,12 +535,56 @@ export function parseQuantity(input: number | string, kind: QuantityKind, field:
     );
   }
 
-  const si = convert(value, unit);
-  const bound = PHYSICAL_MIN[FAMILY[kind]];
+  if (unit.onlyFor && context?.liquor !== undefined && !unit.onlyFor.liquors.includes(context.liquor)) {
+    throw unitErrorFor(
+      field,
+      input,
+      kind,
+      `${field}: "${unit.unit}" does not fit this liquor (${context.liquor}): ${unit.onlyFor.what} (${unit.onlyFor.liquors.join(', ')}); give a mass fraction 0–1 or a mass percent such as "50 %"`,
+    );
+  }
+  if (unit.gauge !== undefined && context?.absoluteOnly) {
+    throw unitErrorFor(
+      field,
+      input,
+      kind,
+      `${field}: the atmosphere itself is an absolute pressure; "${unit.unit}" reads against it (give e.g. "99.2 kPa" or "992 mbar")`,
+    );
+  }
+  const si = convert(value, unit, context?.atmosphere);
+  const bound = PHYSICAL_MIN[family];
   if (bound && (si < bound.min || (bound.max !== undefined && si > bound.max))) {
-    throw unitErrorFor(field, input, kind, `${field}: ${String(input)} is not physical: ${bound.what}`);
+    const hint =
+      family === 'massFraction' && bare && value > 1 && value <= 100
+        ? `; did you mean ${value} % (${Number((value / 100).toPrecision(12))})?`
+        : '';
+    const atm =
+      unit.gauge !== undefined
+        ? ` (read against an atmosphere of ${Number(((context?.atmosphere ?? STANDARD_ATMOSPHERE) / 1000).toPrecision(6))} kPa)`
+        : '';
+    throw unitErrorFor(
+      field,
+      input,
+      kind,
+      `${field}: ${String(input)} is not physical: ${bound.what}${atm}${hint}`,
+    );
   }
   return si;
+}
+
+function unknownUnit(field: string, input: unknown, kind: QuantityKind, spelled: string): UnitError {
+  const family = FAMILY[kind];
+  const ambiguous = AMBIGUOUS[family]?.find((a) => a.test.test(spelled));
+  if (ambiguous) return unitErrorFor(field, input, kind, `${field}: ${ambiguous.hint}`);
+  const other = quantityKinds.find((k) => FAMILY[k] !== family && unitOf(FAMILY[k], spelled) !== undefined);
+  return unitErrorFor(
+    field,
+    input,
+    kind,
+    other
+      ? `${field}: "${spelled}" is a ${kindLabel(other)} unit, not a ${kindLabel(kind)} unit (${listed(kind)})`
+      : `${field}: unknown unit "${spelled}" for a ${kindLabel(kind)} (${listed(kind)}; compound units follow the grammar in the API description, e.g. "W/(m2 K)", "BTU/h-ft2-F")`,
+  );
 }
 
 function unitErrorFor(field: string, input: unknown, kind: QuantityKind, message: string): UnitError {
@@ -460,9 +617,11 @@ export function toDefaultUnit(valueSI: number, kind: QuantityKind): number {
  * {@link defaultUnits}: °C, kPa absolute, kg/s, kJ/kg, kJ/(kg·K), kW, m², W/(m²·K), mass fraction).
  */
 export function formatOutput(valueSI: number, kind: QuantityKind, unit: string = defaultUnits[kind]): number {
-  const found = LOOKUP.get(kind)?.get(key(unit));
+  const found = unitOf(FAMILY[kind], unit);
   if (!found) {
     throw new UnitError('unit', unit, kind, acceptedUnits(kind), `unknown ${kindLabel(kind)} unit "${unit}"`);
   }
+  if (found.gauge === 1) return (valueSI - STANDARD_ATMOSPHERE - found.offset) / found.factor;
+  if (found.gauge === -1) return (STANDARD_ATMOSPHERE - valueSI) / found.factor;
   return (valueSI - found.offset) / found.factor;
 }

@@ -22,6 +22,8 @@ export interface QuantityRange {
 
 export interface QuantitySpec extends QuantityRange {
   kind: QuantityKind;
+  /** The request's atmosphere: gauge and vacuum readings of its other fields refer to it. */
+  atmosphere?: true;
 }
 
 /**
@@ -91,6 +93,9 @@ export const specs = {
   area: within('area', { min: 0, minExclusive: true }),
   liquidHeight: within('length', { max: 30 }),
   heatLossFraction: within('fraction', { max: 0.5 }),
+  // The summit of Everest is ≈ 34 kPa, a deep mine ≈ 110 kPa (common practice): a local
+  // barometric pressure outside 30–110 kPa is a typing slip.
+  atmosphericPressure: { ...within('pressure', { min: 30, max: 110 }), atmosphere: true as const },
 } satisfies Record<string, QuantitySpec>;
 
 /**
@@ -132,8 +137,39 @@ export function inRange(spec: QuantityRange, value: number): boolean {
 
 /** "1.2e+29 kg/s lies outside the accepted range above 0 to 10 000 kg/s" (value in the default unit). */
 export function outOfRangeMessage(spec: QuantitySpec, value: number): string {
+  // A plain 60 for a fraction is almost always a percent.
+  if ((spec.kind === 'massFraction' || spec.kind === 'fraction') && value > 1 && value <= 100) {
+    const percent = Number((value / 100).toPrecision(12));
+    const fits = inRange(spec, percent) ? `; did you mean "${value} %" (${percent})?` : '';
+    return `${value} lies outside the accepted range ${describeRange(spec)}${fits}`;
+  }
   return `${value} ${defaultUnits[spec.kind].label} lies outside the accepted range ${describeRange(spec)}`;
 }
+
+/**
+ * The one grammar of units, stated once in the API's description (each quantity field points at
+ * it). server/units implements it (server/units/grammar.ts).
+ */
+export const UNIT_GRAMMAR = [
+  '## Quantities and units',
+  '',
+  'Every quantity input is a number in the default unit of its kind (°C, kPa absolute, kg/s, kJ/kg, kJ/(kg·K), kW, m², W/(m²·K), mass fraction 0–1, m, kg/m³) or a string "number unit". Results are in the default units; so are the values and ranges in warnings and problems.',
+  '',
+  'Compound units follow one grammar:',
+  '- products: a space, `.`, `*`, `·` or `-` (`kJ/kg-K`, `W/(m2.K)`);',
+  '- exponents: `^2`, a trailing digit or a superscript (`m^2`, `m2`, `m²`);',
+  '- division: `/` or `per`; everything after the first `/` is the denominator, so `W/m2-K`, `W/m^2 K`, `W/(m2*K)` and `W/m2/K` all mean W/(m²·K);',
+  '- unit names ignore case where that is unambiguous (`BTU/(h ft2 F)`, `btu/hr-ft2-F`); one-letter units and a leading m/M prefix keep their case (`MW` is not `mW`);',
+  '- inside a compound, K, °C (C, degC) and °F (F, degF) are temperature differences.',
+  '',
+  'Examples: `1.2 kW/(m^2 K)`, `1200 W/m2-K`, `250 BTU/(h ft2 F)`, `4.5 t/h`, `12 kg/min`, `300 t/d`, `20 klb/h`, `9000 lb/h`, `420 kJ/kg`, `3.9 kJ/kg-K`, `2.5 MW`, `1300 ft2`.',
+  '',
+  'Special spellings:',
+  '- pressures are absolute unless marked: `bar`, `bara`, `bar(a)`, `kPa(a)`, `psia`, `mbar`, `mmHg`, `inHg(a)`; gauge: `barg`, `bar(g)`, `kPag`, `psig`, `mbarg`; vacuum below the atmosphere: `inHg vac`, `mmHg vac`. A bare `inHg` is refused as ambiguous (in plants it usually reads a vacuum). Gauge and vacuum readings refer to 101.325 kPa unless the request states its own `atmosphericPressure` (at the top level of any request that takes a pressure; itself an absolute pressure);',
+  '- `t`, `T` and `tonne` are metric tonnes; a US short ton only when spelled out (`short ton/h`); a bare `ton` is refused;',
+  '- temperatures: `°C`, `degC`, `C`, `K`, `°F`, `degF`, `F`;',
+  '- mass fractions: `0.45`, `45 %`, `45 wt%`, `45 wt.%`, `35 g/kg` or `35 ppt` (salinity, parts per thousand), `ppm`; `°Bx`/`Bx` (degrees Brix) only for the sucrose liquor. A plain number above 1 is refused with a hint (`60` → did you mean `60 %`?).',
+].join('\n');
 
 /** Longest unit string accepted ("1.4 bar", "38 degC"): anything longer is not a quantity. */
 export const MAX_QUANTITY_STRING = 64;
@@ -174,8 +210,8 @@ export function quantity(spec: QuantitySpec, description: string, example: numbe
     .meta({
       description:
         `${description}. A number in ${unit.label}, or a string with a unit ` +
-        `(e.g. ${unit.examples.map((e) => `"${e}"`).join(', ')}). Accepted range: ${describeRange(spec)}; ` +
-        `a string with a unit is checked against it after conversion to ${unit.label}.`,
+        `(e.g. ${unit.examples.map((e) => `"${e}"`).join(', ')}; grammar: see "Quantities and units" in the API description). ` +
+        `Accepted range: ${describeRange(spec)}, checked after conversion.`,
       ...(example === undefined ? {} : { example }),
       'x-unit': unit.symbol,
       'x-quantity-kind': spec.kind,
@@ -193,6 +229,18 @@ export function quantitySpecOf(schema: object): QuantitySpec | undefined {
 }
 
 export type QuantityInput = number | string;
+
+/**
+ * The request's own atmosphere, at the top level of every request that takes a pressure: gauge
+ * and vacuum readings of that request (barg, psig, inHg vac) refer to it instead of 101.325 kPa.
+ */
+export function atmosphericPressureField() {
+  return quantity(
+    specs.atmosphericPressure,
+    'The local atmospheric (barometric) pressure that gauge and vacuum readings of this request refer to (default 101.325 kPa, one standard atmosphere)',
+    undefined,
+  ).optional();
+}
 
 /** An output number in the default unit of its kind (or an explicit unit). */
 export function out(kind: QuantityKind | { symbol: string; label: string }, description: string) {

@@ -1,6 +1,7 @@
 /** Contracts of the evaporator routes: single effect (design or rating) and multiple-effect trains. */
 import { z } from 'zod';
 import {
+  atmosphericPressureField,
   CautionSchema,
   heatingWarningThresholds,
   out,
@@ -134,6 +135,7 @@ export const SingleEffectRequestSchema = z
     steam: SteamSpecSchema,
     body: BodySpecSchema,
     heatLossFraction: heatLossFraction.optional(),
+    atmosphericPressure: atmosphericPressureField(),
   })
   .strict()
   .superRefine((r, ctx) => {
@@ -262,6 +264,7 @@ export const MultipleEffectRequestSchema = z
     product: ProductSpecSchema.default({}),
     steam: SteamSpecSchema,
     lastEffectPressure: quantity(specs.pressure, 'Pressure in the last effect (condenser side)', 15),
+    atmosphericPressure: atmosphericPressureField(),
     overallHeatTransferCoefficients: z
       .array(quantity(specs.heatTransferCoefficient, 'U of one effect', 2000))
       .min(1)

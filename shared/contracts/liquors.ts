@@ -1,6 +1,15 @@
 /** Contracts of the liquor routes: the model catalogue, boiling point, enthalpy and stored liquors. */
 import { z } from 'zod';
-import { CautionSchema, IdSchema, out, ProvenanceSchema, quantity, specs, WarningSchema } from './common.js';
+import {
+  atmosphericPressureField,
+  CautionSchema,
+  IdSchema,
+  out,
+  ProvenanceSchema,
+  quantity,
+  specs,
+  WarningSchema,
+} from './common.js';
 
 const Interval = z.object({ min: z.number(), max: z.number() });
 
@@ -216,6 +225,7 @@ export const BoilingPointRequestSchema = z
   .object({
     massFraction: quantity(specs.massFraction, 'Mass fraction of solute', 0.3),
     pressure: quantity(specs.pressure, 'Pressure over the liquor', '150 mbar'),
+    atmosphericPressure: atmosphericPressureField(),
   })
   .strict()
   .meta({ id: 'BoilingPointRequest', example: { massFraction: 0.3, pressure: 15 } });

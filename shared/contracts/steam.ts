@@ -1,10 +1,11 @@
 /** Contracts of the steam-table routes (IAPWS-IF97). */
 import { z } from 'zod';
-import { out, ProvenanceSchema, quantity, specs } from './common.js';
+import { atmosphericPressureField, out, ProvenanceSchema, quantity, specs } from './common.js';
 
 export const SaturationQuerySchema = z
   .object({
     pressure: quantity(specs.pressure, 'Saturation pressure', '1.4 bar').optional(),
+    atmosphericPressure: atmosphericPressureField(),
     // No pre-filled example: the documented request gives the pressure only (exactly one of the two).
     temperature: quantity(
       specs.temperature,
@@ -52,6 +53,7 @@ export type SaturationResponse = z.infer<typeof SaturationResponseSchema>;
 export const SteamStateRequestSchema = z
   .object({
     pressure: quantity(specs.pressure, 'Pressure', 1000),
+    atmosphericPressure: atmosphericPressureField(),
     temperature: quantity(specs.temperature, 'Temperature (give this or enthalpy)', 250).optional(),
     enthalpy: quantity(specs.enthalpy, 'Specific enthalpy (give this or temperature)', 2800).optional(),
   })

@@ -27,6 +27,8 @@ import {
 } from '../steam/if97.js';
 import {
   addWarning,
+  templated,
+  type EngineQuantity,
   STANDARD_ATMOSPHERE,
   STANDARD_GRAVITY,
   type Citation,
@@ -317,6 +319,8 @@ export function liquidColumnPressure(
       code: 'density-assumed-water',
       field,
       message: `The ${liquor.id} model gives no density; the liquid head uses liquid water at ${t.toFixed(2)} K (${density.toFixed(1)} kg/m³), which understates the head of a denser liquor`,
+      template: `The ${liquor.id} model gives no density; the liquid head uses liquid water at {t} ({density}), which understates the head of a denser liquor`,
+      values: { t: { value: t, kind: 'temperature' }, density: { value: density, kind: 'density' } },
     });
   }
   return { pressure: midDepthPressure(surfacePressure, density, liquidHeight), density, densitySource };
@@ -337,6 +341,11 @@ export function warnSmallTemperatureDifference(
       code: 'small-temperature-difference',
       field,
       message: `The temperature difference across the heating surface is only ${temperatureDifference.toFixed(2)} K (below ${SMALL_TEMPERATURE_DIFFERENCE} K): the area is very sensitive to the boiling point and U`,
+      ...templated(
+        'The temperature difference across the heating surface is only {dt} (below {limit}): the area is very sensitive to the boiling point and U',
+        'temperatureDifference',
+        { dt: temperatureDifference, limit: SMALL_TEMPERATURE_DIFFERENCE },
+      ),
       validRange: { min: SMALL_TEMPERATURE_DIFFERENCE, max: Number.POSITIVE_INFINITY, unit: 'K' },
     });
   }
@@ -353,6 +362,11 @@ export function warnLargeSteamSuperheat(
       code: 'large-steam-superheat',
       field,
       message: `The heating steam is superheated by ${superheat.toFixed(2)} K (above ${LARGE_STEAM_SUPERHEAT} K): part of the chest only cools gas, so the overall coefficient U given is likely too high; desuperheat the steam first`,
+      ...templated(
+        'The heating steam is superheated by {superheat} (above {limit}): part of the chest only cools gas, so the overall coefficient U given is likely too high; desuperheat the steam first',
+        'temperatureDifference',
+        { superheat, limit: LARGE_STEAM_SUPERHEAT },
+      ),
       validRange: { min: 0, max: LARGE_STEAM_SUPERHEAT, unit: 'K' },
     });
   }
@@ -369,6 +383,11 @@ export function warnLargeTemperatureDifference(
       code: 'large-temperature-difference',
       field,
       message: `The temperature difference across the heating surface is ${temperatureDifference.toFixed(2)} K (above ${LARGE_TEMPERATURE_DIFFERENCE} K): the liquor may film-boil and foul, and U falls`,
+      ...templated(
+        'The temperature difference across the heating surface is {dt} (above {limit}): the liquor may film-boil and foul, and U falls',
+        'temperatureDifference',
+        { dt: temperatureDifference, limit: LARGE_TEMPERATURE_DIFFERENCE },
+      ),
       validRange: { min: 0, max: LARGE_TEMPERATURE_DIFFERENCE, unit: 'K' },
     });
   }
@@ -389,7 +408,14 @@ export function warnFeedFlash(
       code: 'feed-flash',
       field,
       message: `The feed at ${feedTemperature.toFixed(2)} K is above its boiling point ${feedBoilingPoint.toFixed(2)} K at the body pressure: part of it flashes on entry`,
+      // Below the boiling point the feed does not flash: no lower bound of its own (the caller
+      // states the physical one of its temperatures).
       validRange: { min: 0, max: feedBoilingPoint, unit: 'K' },
+      ...templated(
+        'The feed at {feed} is above its boiling point {boilingPoint} at the body pressure: part of it flashes on entry',
+        'temperature',
+        { feed: feedTemperature, boilingPoint: feedBoilingPoint },
+      ),
     });
   }
 }
@@ -419,6 +445,13 @@ export function warnSolubility(
       code: 'solubility-not-checked',
       field,
       message: `The ${liquor.id} solubility correlation does not reach ${temperature.toFixed(2)} K (${err.validRange.min} to ${err.validRange.max} K): the product at x = ${massFraction.toFixed(4)} was not checked against a solubility limit`,
+      template: `The ${liquor.id} solubility correlation does not reach {t} ({min} to {max}): the product at x = {x} was not checked against a solubility limit`,
+      values: {
+        t: { value: temperature, kind: 'temperature' },
+        min: { value: err.validRange.min, kind: 'temperature' },
+        max: { value: err.validRange.max, kind: 'temperature' },
+        x: { value: massFraction, kind: 'massFraction' },
+      },
     });
     return;
   }
@@ -429,6 +462,8 @@ export function warnSolubility(
       code: 'above-solubility-limit',
       field,
       message: `The product at x = ${massFraction.toFixed(4)} is above the ${liquor.id} solubility limit ${limit.toFixed(4)} at ${temperature.toFixed(2)} K: a solid phase would form`,
+      template: `The product at x = {x} is above the ${liquor.id} solubility limit {limit} at {t}: a solid phase would form`,
+      values: solubilityValues(massFraction, limit, temperature),
       validRange: range,
     });
   } else if (massFraction >= (1 - SOLUBILITY_MARGIN) * limit) {
@@ -436,9 +471,19 @@ export function warnSolubility(
       code: 'near-solubility-limit',
       field,
       message: `The product at x = ${massFraction.toFixed(4)} is within ${SOLUBILITY_MARGIN * 100} % of the ${liquor.id} solubility limit ${limit.toFixed(4)} at ${temperature.toFixed(2)} K: risk of crystallisation and scaling`,
+      template: `The product at x = {x} is within ${SOLUBILITY_MARGIN * 100} % of the ${liquor.id} solubility limit {limit} at {t}: risk of crystallisation and scaling`,
+      values: solubilityValues(massFraction, limit, temperature),
       validRange: range,
     });
   }
+}
+
+function solubilityValues(x: number, limit: number, t: number): Record<string, EngineQuantity> {
+  return {
+    x: { value: x, kind: 'massFraction' },
+    limit: { value: limit, kind: 'massFraction' },
+    t: { value: t, kind: 'temperature' },
+  };
 }
 
 // ---------------------------------------------------------------------------------------------

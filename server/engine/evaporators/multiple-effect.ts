@@ -332,6 +332,7 @@ function labelled<T>(
         err.validRange,
         `${where.text}: ${err.message}`,
         where.text,
+        err.reason,
       );
     }
     if (err instanceof EngineInputError) {
@@ -344,6 +345,7 @@ function labelled<T>(
       ...w,
       ...(w.field !== undefined ? { field: where.field(w.field) } : {}),
       message: `${where.text}: ${w.message}`,
+      context: w.context ?? where.text,
     });
   }
   return out;
@@ -1159,7 +1161,15 @@ function finalEvaluation(spec: TrainSpec, st: TrainState, iterations: number): F
   if (pre >= 0 && spec.feedInTemperature >= effectAt(st, pre).vaporTemperature) {
     throw new EngineNoSolutionError(
       `Vapour from effect ${pre + 1} condenses at ${effectAt(st, pre).vaporTemperature.toFixed(2)} K and cannot preheat the feed to ${spec.feedInTemperature.toFixed(2)} K`,
-      { iterations, reason: 'preheat-above-bleed-vapour' },
+      {
+        iterations,
+        reason: 'preheat-above-bleed-vapour',
+        template: `Vapour from effect ${pre + 1} condenses at {tv} and cannot preheat the feed to {tf}`,
+        values: {
+          tv: { value: effectAt(st, pre).vaporTemperature, kind: 'temperature' },
+          tf: { value: spec.feedInTemperature, kind: 'temperature' },
+        },
+      },
     );
   }
   for (let i = 0; i < n; i++) {

@@ -297,7 +297,19 @@ function noSteamHotEnough(pr: Prepared, c: CoreState): EngineNoSolutionError {
   const ts = pr.steam.condensingTemperature;
   return new EngineNoSolutionError(
     `The steam is not hot enough to boil this liquor at this pressure: it condenses at ${ts.toFixed(2)} K but the liquor (x = ${c.xL.toFixed(4)}) boils at ${c.Tmean.toFixed(2)} K at ${c.pMean.toFixed(0)} Pa (ΔT = ${c.dT.toFixed(2)} K). Raise the steam pressure or lower the body pressure.`,
-    { reason: 'non-positive-temperature-difference', residual: c.dT },
+    {
+      reason: 'non-positive-temperature-difference',
+      residual: c.dT,
+      template:
+        'The steam is not hot enough to boil this liquor at this pressure: it condenses at {ts} but the liquor (x = {x}) boils at {tb} at {p} (ΔT = {dt}). Raise the steam pressure or lower the body pressure.',
+      values: {
+        ts: { value: ts, kind: 'temperature' },
+        x: { value: c.xL, kind: 'massFraction' },
+        tb: { value: c.Tmean, kind: 'temperature' },
+        p: { value: c.pMean, kind: 'pressure' },
+        dt: { value: c.dT, kind: 'temperatureDifference' },
+      },
+    },
   );
 }
 

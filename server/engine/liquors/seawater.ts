@@ -22,7 +22,14 @@ import {
   saturationPressure,
   saturationTemperature,
 } from '../steam/if97.js';
-import { addWarning, KELVIN_OFFSET, type Citation, type EngineCaution, type WarningSink } from '../types.js';
+import {
+  addWarning,
+  KELVIN_OFFSET,
+  templated,
+  type Citation,
+  type EngineCaution,
+  type WarningSink,
+} from '../types.js';
 import { defineLiquorModel, type Interval, type LiquorModel, type ValidityBox } from './model.js';
 import { checkAgainst } from './validity.js';
 
@@ -255,6 +262,11 @@ function checkMassFraction(value: number, range: Interval, warnings: WarningSink
       code: 'scaling-risk',
       field: 'massFraction',
       message: `massFraction = ${value} kg/kg exceeds ${SEAWATER_SCALING_MASS_FRACTION} kg/kg, where calcium sulphate scaling usually limits seawater evaporators`,
+      ...templated(
+        '{field} = {x} exceeds {limit}, where calcium sulphate scaling usually limits seawater evaporators',
+        'massFraction',
+        { x: value, limit: SEAWATER_SCALING_MASS_FRACTION },
+      ),
       validRange: { min: 0, max: SEAWATER_SCALING_MASS_FRACTION, unit: 'kg/kg' },
     });
   }

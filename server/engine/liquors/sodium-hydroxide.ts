@@ -381,6 +381,8 @@ function boilingPoint(massFraction: number, pressure: number, warnings?: Warning
       pressure,
       { min: range.min, max: range.max, unit: 'Pa' },
       `pressure = ${pressure} Pa is outside the range of the ${MODEL_ID} model at massFraction = ${massFraction} (${range.min.toPrecision(5)} to ${range.max.toPrecision(5)} Pa, boiling points 0–250 °C)`,
+      undefined,
+      `the ${MODEL_ID} model covers boiling points of 0 to 250 °C at this mass fraction`,
     );
   }
   checkAgainst(MODEL_ID, 'pressure', pressure, 'Pa', P_VALID, P_LIMITS, warnings);

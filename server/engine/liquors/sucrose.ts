@@ -307,6 +307,13 @@ function checkSaturation(massFraction: number, temperature: number, warnings: Wa
       code: 'above-solubility',
       field: 'massFraction',
       message: `massFraction = ${massFraction} kg/kg is above the solubility of pure sucrose at ${temperature.toFixed(2)} K (${limit.toFixed(4)} kg/kg): the solution is supersaturated and may crystallise`,
+      template:
+        '{field} = {x} is above the solubility of pure sucrose at {t} ({limit}): the solution is supersaturated and may crystallise',
+      values: {
+        x: { value: massFraction, kind: 'massFraction' },
+        t: { value: temperature, kind: 'temperature' },
+        limit: { value: limit, kind: 'massFraction' },
+      },
       validRange: { min: 0, max: limit, unit: 'kg/kg' },
     });
   }
@@ -322,6 +329,8 @@ function boilingPoint(massFraction: number, pressure: number, warnings?: Warning
       pressure,
       { min: PRESSURE_LIMITS.min, max: PRESSURE_LIMITS.max, unit: 'Pa' },
       `sucrose at ${massFraction} kg/kg boils at ${t.toFixed(2)} K at ${pressure} Pa, above the model's ${TEMPERATURE_LIMITS.max} K limit; lower the pressure`,
+      undefined,
+      "at this pressure the solution would boil above the sucrose model's temperature limit; lower the pressure",
     );
   }
   checkTemperature(t, TEMPERATURE_VALIDITY, warnings);

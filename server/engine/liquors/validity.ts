@@ -4,7 +4,7 @@
  * an EngineRangeError beyond `limits` (or for a non-finite value).
  */
 import { EngineRangeError } from '../errors.js';
-import { addWarning, type WarningSink } from '../types.js';
+import { addWarning, kindOfSiUnit, templated, type WarningSink } from '../types.js';
 import type { Interval } from './model.js';
 
 /**
@@ -37,6 +37,8 @@ export function checkAgainst(
       value,
       { min: limits.min, max: limits.max, unit },
       `${field} = ${value} ${unit} is outside the range of the ${modelId} model (${limits.min} to ${limits.max} ${unit})`,
+      undefined,
+      `the limits of the ${modelId} model`,
     );
   }
   if (below(value, validity.min) || above(value, validity.max)) {
@@ -45,6 +47,11 @@ export function checkAgainst(
       field,
       message: `${field} = ${value} ${unit} lies outside the ${modelId} model's data range (${validity.min} to ${validity.max} ${unit}); the result is extrapolated`,
       validRange: { min: validity.min, max: validity.max, unit },
+      ...templated(
+        `{field} = {value} lies outside the ${modelId} model's data range ({min} to {max}); the result is extrapolated`,
+        kindOfSiUnit(unit),
+        { value, min: validity.min, max: validity.max },
+      ),
     });
   }
 }

@@ -183,15 +183,28 @@ export function runOperation(
   const query: unknown = op.query ? validate(op.query.schema, raw.query) : undefined;
   const body: unknown = op.body ? validate(op.body.schema, raw.body) : undefined;
   if (load && decl.loadAfterBody) loaded = load({ params, query, body }, ctx);
+  const context = { liquor: liquorOf(loaded, body) };
   return decl.run!(
     {
-      params: op.params && !caseLoad ? toSI(op.params.plan, params) : undefined,
-      query: op.query ? toSI(op.query.plan, query) : undefined,
-      body: op.body ? toSI(op.body.plan, body) : undefined,
+      params: op.params && !caseLoad ? toSI(op.params.plan, params, context) : undefined,
+      query: op.query ? toSI(op.query.plan, query, context) : undefined,
+      body: op.body ? toSI(op.body.plan, body, context) : undefined,
       loaded,
     },
     ctx,
   );
+}
+
+/**
+ * The liquor a request is about, for units that fit one liquor only (°Bx): the model `load`
+ * found, else the body's liquor id ("custom" for an inline definition).
+ */
+function liquorOf(loaded: unknown, body: unknown): string | undefined {
+  const id = (loaded as { model?: { id?: unknown } } | null | undefined)?.model?.id;
+  if (typeof id === 'string') return id;
+  const ref = (body as { liquor?: unknown } | null | undefined)?.liquor;
+  if (typeof ref === 'string') return ref;
+  return ref !== null && typeof ref === 'object' ? 'custom' : undefined;
 }
 
 function contextOf(res: Response, deps: AppDeps): OperationContext {
