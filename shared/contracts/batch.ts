@@ -66,7 +66,10 @@ export const BatchResponseSchema = z
     count: z.int(),
     succeeded: z.int(),
     failed: z.int(),
-    unitsCharged: z.int().meta({ description: 'Sum of the costs of the cases run' }),
+    unitsCharged: z.int().meta({
+      description:
+        'Sum of the costs of the cases that succeeded; a refused case (status error) costs nothing. The quota must cover every case before the batch runs',
+    }),
     results: z.array(BatchResultRowSchema),
   })
   .meta({ id: 'BatchResponse' });

@@ -3,8 +3,10 @@
  * text/csv (operation and liquor in the query string), or a CSV file in multipart/form-data.
  * `operation` is a declaration's batch name (shared/operations.ts); each case runs as that
  * operation's own request, and its problem's paths are re-based onto `cases[i].`. A failing
- * case gets its own problem and does not fail the batch. Units charged = the sum of the cases'
- * own costs, charged before any case runs (429 if the quota cannot cover them).
+ * case gets its own problem and does not fail the batch. A refused case costs nothing, as the same
+ * request refused on its own route would: every case's cost is reserved before any case runs (429
+ * if the quota cannot cover them all, so a batch never overshoots the quota), and the cost of the
+ * cases that fail is released afterwards, so units charged = the sum of the succeeding cases' costs.
  * `Accept: text/csv` returns one line per case with dotted column names.
  */
 import { parse as parseCsv } from 'csv-parse/sync';
@@ -20,7 +22,7 @@ import { z } from 'zod';
 import { toCsv } from '../../csv.js';
 import { rebaseProblem, rebaseWarnings, toProblem } from '../../engine-errors.js';
 import { FORBIDDEN_KEYS } from '../../middleware/body.js';
-import { chargeUnits } from '../../middleware/operation.js';
+import { chargeUnits, releaseUnits } from '../../middleware/operation.js';
 import { problem, problemTypeUri, ProblemError } from '../../problem.js';
 import { findNonFinite } from '../../send.js';
 import { singleCsvUpload } from '../../upload.js';
@@ -167,7 +169,9 @@ export function batchOperation(operations: readonly AnyOperation[]) {
     tag: 'Batch',
     summary: `Many cases of one operation (JSON array or CSV upload, at most ${MAX_BATCH_ROWS} cases)`,
     description:
-      'A failing case does not fail the batch: it gets its own problem. Units charged are the sum of the cases’ costs. ' +
+      'A failing case does not fail the batch: it gets its own problem. A refused case costs nothing, as it would on its own route: ' +
+      'units charged are the sum of the costs of the cases that succeeded. The quota must cover every case before any runs (429 otherwise), ' +
+      'so a batch never overshoots the quota; the units of the cases that fail are then given back. ' +
       'Send `Accept: text/csv` to receive the results as CSV (one line per case, dotted column names, `status` and `error` columns).',
     request: {
       body: BatchRequestSchema,
@@ -220,11 +224,10 @@ export function batchOperation(operations: readonly AnyOperation[]) {
       const batch = validate(BatchRequestSchema, raw);
       const { op, requestKeys } = byName.get(batch.operation)!;
       const caseUnits = op.decl.batch?.units;
-      const units = batch.cases.reduce(
-        (sum, c) => sum + (caseUnits ? caseUnits(c) : op.decl.operation.units),
-        0,
-      );
-      chargeUnits(res, units);
+      const costs = batch.cases.map((c) => (caseUnits ? caseUnits(c) : op.decl.operation.units));
+      const reserved = costs.reduce((sum, u) => sum + u, 0);
+      // Reserve every case's cost first: the quota check must cover the whole batch.
+      chargeUnits(res, reserved);
       const shared = { liquor: batch.liquor };
 
       const results: BatchResponse['results'] = batch.cases.map((c, index) => {
@@ -256,6 +259,10 @@ export function batchOperation(operations: readonly AnyOperation[]) {
         }
       });
       const failed = results.filter((r) => r.status === 'error').length;
+      // A refused case costs nothing: give back what the failed cases reserved.
+      const refunded = results.reduce((sum, r, i) => sum + (r.status === 'error' ? costs[i]! : 0), 0);
+      releaseUnits(res, refunded);
+      const units = reserved - refunded;
       const response: BatchResponse = {
         operation: batch.operation,
         count: results.length,
