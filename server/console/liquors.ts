@@ -32,6 +32,7 @@ import { problem } from '../http/problem.js';
 import {
   buildCustomLiquor,
   duhringFromCsv,
+  inCsvTerms,
   findStoredLiquor,
   insertStoredLiquor,
   listStoredLiquorsWithAccounts,
@@ -256,7 +257,7 @@ export const liquorRoutes: ConsoleRouteModule = {
       roles: ['admin'],
       summary: 'Store a liquor for an account from a Dühring table (CSV upload, multipart/form-data)',
       description:
-        'Fields: file (CSV with header massFraction,waterBoilingPoint,solutionBoilingPoint in °C), name, id (optional), heatCapacity (optional coefficients, kJ/(kg·K)). Row errors name "file:line N".',
+        'Fields: file (CSV with header massFraction,waterBoilingPoint,solutionBoilingPoint: numbers in mass fraction and °C, or with a unit such as "10 %" or "40 degC"), name, id (optional), heatCapacity (required coefficients, kJ/(kg·K)). Errors name "line N, column C" (the header is line 1).',
       tag: 'liquors',
       request: { params: AccountIdParamsSchema, bodyContentType: 'multipart/form-data' },
       middleware: [multipartUpload],
@@ -270,17 +271,30 @@ export const liquorRoutes: ConsoleRouteModule = {
             errors: [{ field: 'file', message: 'is required' }],
           });
         }
-        const boilingPoint = duhringFromCsv(req.file.buffer.toString('utf8'));
-        const heat =
-          fields.heatCapacity === undefined ? undefined : heatCapacityCoefficients(fields.heatCapacity);
-        const input = validate(StoredLiquorCreateSchema, {
-          ...(fields.id !== undefined ? { id: fields.id } : {}),
-          definition: {
-            name: fields.name,
-            boilingPoint,
-            ...(heat ? { heatCapacity: { polynomial: heat } } : {}),
-          },
-        });
+        // A stored liquor serves the evaporators too, so its heat capacity is required (as on /v1).
+        if (fields.heatCapacity === undefined) {
+          throw problem('validation-failed', 'heatCapacity is required for a stored liquor.', {
+            errors: [
+              {
+                field: 'heatCapacity',
+                message: 'is required: evaporator calculations need the liquor’s heat capacity',
+              },
+            ],
+          });
+        }
+        const heat = heatCapacityCoefficients(fields.heatCapacity);
+        const upload = duhringFromCsv(req.file.buffer.toString('utf8'));
+        const boilingPoint = upload.boilingPoint;
+        let input;
+        try {
+          input = validate(StoredLiquorCreateSchema, {
+            ...(fields.id !== undefined ? { id: fields.id } : {}),
+            definition: { name: fields.name, boilingPoint, heatCapacity: { polynomial: heat } },
+          });
+        } catch (err) {
+          // A refusal names the CSV line and column, not a JSON path.
+          throw inCsvTerms(err, upload);
+        }
         const id = input.id ?? slugify(input.definition.name);
         if (!/^[a-z0-9]+(?:-[a-z0-9]+)*$/.test(id)) {
           throw problem('validation-failed', 'The name gives no usable id; give an id.', {
@@ -296,7 +310,12 @@ export const liquorRoutes: ConsoleRouteModule = {
             },
           );
         }
-        const model = buildCustomLiquor(input.definition, 'definition', id);
+        let model;
+        try {
+          model = buildCustomLiquor(input.definition, 'definition', id);
+        } catch (err) {
+          throw inCsvTerms(err, upload);
+        }
         insertStoredLiquor(deps.db, account.id, id, input.definition, deps.clock());
         recordAudit(deps, req, res, {
           action: 'liquor.upload',

@@ -193,7 +193,7 @@ describe('liquor routes', () => {
     expect(naoh.validity.temperature.max).toBeCloseTo(204, 0);
   });
 
-  it('stores a Dühring table from CSV, uses it, and reports a bad row by line number', async () => {
+  it('stores a Dühring table from CSV, uses it, and reports a bad cell by line and column', async () => {
     const csv =
       'massFraction,waterBoilingPoint,solutionBoilingPoint\n0.2,50,51.2\n0.2,100,101.5\n0.45,50,54.1\n0.45,100,105.0\n';
     const ok = await request(h.app)
@@ -216,13 +216,14 @@ describe('liquor routes', () => {
       .post('/v1/stored-liquors')
       .set(auth())
       .field('name', 'Broken table')
+      .field('heatCapacity', '4.18,-2.4')
       .attach(
         'file',
         Buffer.from('massFraction,waterBoilingPoint,solutionBoilingPoint\n0.2,50,51\n0.2,abc,101\n'),
         't.csv',
       );
     expect(bad.status).toBe(422);
-    expect(bad.body.errors[0].field).toBe('file:line 3');
+    expect(bad.body.errors[0].field).toBe('line 3, column waterBoilingPoint');
     const del = await request(h.app).delete(`/v1/stored-liquors/${ok.body.id}`).set(auth());
     expect(del.status).toBe(204);
   });
