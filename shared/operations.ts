@@ -82,6 +82,12 @@ export const operationCatalogue = {
     scope: 'liquors',
     units: 0,
   },
+  storedLiquorUpdate: {
+    id: 'liquors.stored.update',
+    label: 'Store a new version of a stored liquor definition',
+    scope: 'liquors',
+    units: 1,
+  },
   storedLiquorDelete: {
     id: 'liquors.stored.delete',
     label: 'Delete a stored liquor definition',

@@ -218,7 +218,9 @@ export interface AuthenticatedKey {
 
 export type AuthResult =
   | { ok: true; key: AuthenticatedKey }
-  | { ok: false; reason: 'malformed' | 'unknown' | 'revoked' | 'expired' | 'rotated' };
+  | { ok: false; reason: 'malformed' | 'unknown' }
+  /** A key that exists but may no longer be used: its account is known (for the request log). */
+  | { ok: false; reason: 'revoked' | 'expired' | 'rotated'; key: AuthenticatedKey };
 
 interface KeyLookupRow {
   id: number;
@@ -404,12 +406,13 @@ export function authenticateToken(
     known.set(computed, found);
   }
   const at = now.getTime();
-  if (found.revokedAt !== null && found.revokedAt <= at) return { ok: false, reason: 'revoked' };
+  if (found.revokedAt !== null && found.revokedAt <= at)
+    return { ok: false, reason: 'revoked', key: found.key };
   if (found.expiresAt !== null && found.expiresAt <= at) {
     const successor = sqlite
       .prepare('SELECT 1 FROM api_keys WHERE rotated_from_id = ? LIMIT 1')
       .get(found.key.id);
-    return { ok: false, reason: successor ? 'rotated' : 'expired' };
+    return { ok: false, reason: successor ? 'rotated' : 'expired', key: found.key };
   }
   return { ok: true, key: found.key };
 }

@@ -41,6 +41,11 @@ export interface RequestRecord {
   path: string;
   requestBody: string | null;
   responseBody: string | null;
+  /**
+   * Only a request-log row, no usage event, roll-up or key use: a request refused with 401 for a
+   * known but unusable key (revoked, expired, rotated), shown to its account, never metered.
+   */
+  logOnly?: boolean;
 }
 
 /** last_used_at is written at most once a minute per key, to keep the hot path cheap. */
@@ -99,6 +104,22 @@ function prepareCommit(sqlite: Sqlite): CommitRecords {
     for (const r of records) {
       const at = r.at.getTime();
       const isError = r.status >= 400 ? 1 : 0;
+      if (r.logOnly) {
+        insertLog.run(
+          r.requestId,
+          at,
+          r.accountId,
+          r.keyId,
+          r.method,
+          r.path,
+          r.status,
+          r.latencyMs,
+          r.requestBody,
+          r.responseBody,
+          r.engineVersion,
+        );
+        continue;
+      }
       insertEvent.run(
         at,
         r.accountId,

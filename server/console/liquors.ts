@@ -33,6 +33,7 @@ import { problem } from '../http/problem.js';
 import {
   buildCustomLiquor,
   duhringFromCsv,
+  inCsvTerms,
   findStoredLiquor,
   insertStoredLiquor,
   listStoredLiquorsWithAccounts,
@@ -313,7 +314,7 @@ export const liquorRoutes: ConsoleRouteModule = {
       roles: ['admin'],
       summary: 'Store a liquor for an account from a Dühring table (CSV upload, multipart/form-data)',
       description:
-        'Fields: file (CSV with header massFraction,waterBoilingPoint,solutionBoilingPoint in °C), name, id (optional), heatCapacity (required: comma-separated c_p(x) coefficients, kJ/(kg·K)). Row errors name "file:line N".',
+        'Fields: file (CSV with header massFraction,waterBoilingPoint,solutionBoilingPoint: numbers in mass fraction and °C, or with a unit such as "10 %" or "40 degC"), name, id (optional), heatCapacity (required coefficients, kJ/(kg·K)). Errors name "line N, column C" (the header is line 1).',
       tag: 'liquors',
       request: { params: AccountIdParamsSchema, bodyContentType: 'multipart/form-data' },
       middleware: [multipartUpload],
@@ -327,18 +328,30 @@ export const liquorRoutes: ConsoleRouteModule = {
             errors: [{ field: 'file', message: 'is required' }],
           });
         }
-        const boilingPoint = duhringFromCsv(req.file.buffer.toString('utf8'));
-        // Required, as on /v1/stored-liquors/upload: without c_p the liquor cannot be used in an
-        // evaporator balance.
+        // A stored liquor serves the evaporators too, so its heat capacity is required (as on /v1).
+        if (fields.heatCapacity === undefined) {
+          throw problem('validation-failed', 'heatCapacity is required for a stored liquor.', {
+            errors: [
+              {
+                field: 'heatCapacity',
+                message: 'is required: evaporator calculations need the liquor’s heat capacity',
+              },
+            ],
+          });
+        }
         const heat = heatCapacityCoefficients(fields.heatCapacity);
-        const input = validate(StoredLiquorCreateSchema, {
-          ...(fields.id !== undefined ? { id: fields.id } : {}),
-          definition: {
-            name: fields.name,
-            boilingPoint,
-            heatCapacity: { polynomial: heat },
-          },
-        });
+        const upload = duhringFromCsv(req.file.buffer.toString('utf8'));
+        const boilingPoint = upload.boilingPoint;
+        let input;
+        try {
+          input = validate(StoredLiquorCreateSchema, {
+            ...(fields.id !== undefined ? { id: fields.id } : {}),
+            definition: { name: fields.name, boilingPoint, heatCapacity: { polynomial: heat } },
+          });
+        } catch (err) {
+          // A refusal names the CSV line and column, not a JSON path.
+          throw inCsvTerms(err, upload);
+        }
         const id = input.id ?? slugify(input.definition.name);
         if (!/^[a-z0-9]+(?:-[a-z0-9]+)*$/.test(id)) {
           throw problem('validation-failed', 'The name gives no usable id; give an id.', {
@@ -354,7 +367,12 @@ export const liquorRoutes: ConsoleRouteModule = {
             },
           );
         }
-        const model = buildCustomLiquor(input.definition, 'definition', id);
+        let model;
+        try {
+          model = buildCustomLiquor(input.definition, 'definition', id);
+        } catch (err) {
+          throw inCsvTerms(err, upload);
+        }
         insertStoredLiquor(deps.db, account.id, id, input.definition, deps.clock());
         recordAudit(deps, req, res, {
           action: 'liquor.upload',

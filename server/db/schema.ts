@@ -146,13 +146,19 @@ export const storedLiquors = sqliteTable(
     accountId: integer('account_id')
       .notNull()
       .references(() => accounts.id, { onDelete: 'cascade' }),
-    /** kebab-case slug, unique per account. */
+    /** kebab-case slug; with `version`, unique per account. */
     liquorId: text('liquor_id').notNull(),
+    /**
+     * 1 when stored, +1 with each update (PUT): an update adds a row and keeps the old ones, so a
+     * logged result that names its liquor's id and version can be traced to the definition used.
+     */
+    version: integer('version').notNull().default(1),
     name: text('name').notNull(),
     definition: text('definition', { mode: 'json' }).$type<unknown>().notNull(),
+    /** When this version was stored. */
     createdAt: createdAt(),
   },
-  (t) => [uniqueIndex('stored_liquors_account_slug_idx').on(t.accountId, t.liquorId)],
+  (t) => [uniqueIndex('stored_liquors_account_slug_version_idx').on(t.accountId, t.liquorId, t.version)],
 );
 
 // ---------------------------------------------------------------------------------------------

@@ -65,6 +65,8 @@ export function display(valueSI: number, kind: QuantityKind): number {
 export interface ModelRef {
   id: string;
   source: string;
+  /** For a stored liquor: the version of its definition that was used. */
+  version?: number;
 }
 
 /** `provenance` of a calculation response: engine version and every model used (deduplicated). */

@@ -4,11 +4,12 @@
  * Used by the /v1 operations and the console API alike; it knows nothing of routes.
  */
 export { buildCustomLiquor, toEngineDefinition } from './definition.js';
-export { coefficientsField, duhringFromCsv } from './csv.js';
+export { coefficientsField, duhringFromCsv, inCsvTerms, type DuhringUpload } from './csv.js';
 export {
   deleteStoredLiquor,
   findStoredLiquor,
   insertStoredLiquor,
+  insertStoredLiquorVersion,
   listStoredLiquors,
   listStoredLiquorsWithAccounts,
   storedLiquorExists,

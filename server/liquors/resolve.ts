@@ -25,8 +25,11 @@ function modelRefs(model: LiquorModel): ModelRef[] {
   return [{ id: model.id, source: model.sources.map((s) => s.reference).join('; ') }];
 }
 
-/** Compiled stored liquors, oldest first (a Map keeps insertion order), bounded. */
-const compiledStored = new Map<number, ResolvedLiquor>();
+/**
+ * Compiled stored liquors of each database by account, id and version, oldest first (a Map keeps
+ * insertion order), bounded. An update stores a new version, so its key is new and it is compiled at once.
+ */
+const compiledByDb = new WeakMap<Db, Map<string, ResolvedLiquor>>();
 const COMPILED_STORED_MAX = 256;
 
 /**
@@ -47,17 +50,22 @@ export function resolveLiquor(ref: LiquorRef, db: Db, accountId: number, field: 
         },
       );
     }
-    // Stored rows are immutable (created or deleted, never edited) and row ids are never reused,
-    // so a row compiles once; the lookup above still runs first, so a deleted or re-created
-    // liquor is never served stale.
-    const cached = compiledStored.get(stored.rowId);
+    // A stored version is immutable (an update adds a version, never edits one) and the lookup
+    // above finds the latest version first, so an update is served at once. The row id is part
+    // of the key too: a liquor deleted and stored again starts at version 1 with a new row.
+    const key = `${accountId}/${ref}/${stored.version}/${stored.rowId}`;
+    let compiledStored = compiledByDb.get(db);
+    if (!compiledStored) compiledByDb.set(db, (compiledStored = new Map()));
+    const cached = compiledStored.get(key);
     if (cached) return cached;
     const model = buildCustomLiquor(stored.definition, field, ref);
-    const resolved = { model, models: modelRefs(model), definitionWarnings: model.definitionWarnings };
+    // Provenance names the stored liquor's version, so a logged result traces to its definition.
+    const models = modelRefs(model).map((m) => ({ ...m, version: stored.version }));
+    const resolved = { model, models, definitionWarnings: model.definitionWarnings };
     if (compiledStored.size >= COMPILED_STORED_MAX) {
-      compiledStored.delete(compiledStored.keys().next().value as number);
+      compiledStored.delete(compiledStored.keys().next().value as string);
     }
-    compiledStored.set(stored.rowId, resolved);
+    compiledStored.set(key, resolved);
     return resolved;
   }
   const model = buildCustomLiquor(ref, field);

@@ -45,10 +45,11 @@ export type BatchRequest = z.infer<typeof BatchRequestSchema>;
 
 export const BatchResultRowSchema = z
   .object({
-    index: z
-      .int()
-      .min(0)
-      .meta({ description: 'Position of the case in the request (0-based); CSV rows are line − 2' }),
+    index: z.int().min(0).meta({ description: 'Position of the case in the request (0-based)' }),
+    line: z.int().min(2).optional().meta({
+      description:
+        'For cases sent as CSV: the line of the file the case came from (the header is line 1, so the first case is line 2). Problems about CSV cases name `line N, column <field>`',
+    }),
     status: z.enum(['ok', 'error']),
     result: z
       .record(z.string(), z.unknown())
@@ -66,7 +67,10 @@ export const BatchResponseSchema = z
     count: z.int(),
     succeeded: z.int(),
     failed: z.int(),
-    unitsCharged: z.int().meta({ description: 'Sum of the costs of the cases run' }),
+    unitsCharged: z.int().meta({
+      description:
+        'Sum of the costs of the cases that succeeded; a refused case (status error) costs nothing. The quota must cover every case before the batch runs',
+    }),
     results: z.array(BatchResultRowSchema),
   })
   .meta({ id: 'BatchResponse' });

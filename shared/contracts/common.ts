@@ -289,6 +289,9 @@ export const ProvenanceSchema = z
         z.object({
           id: z.string().meta({ example: 'iapws-if97' }),
           source: z.string().meta({ description: 'Published source of the model' }),
+          version: z.int().min(1).optional().meta({
+            description: 'For a stored liquor (id custom:<liquorId>): the version of its definition used',
+          }),
         }),
       )
       .meta({ description: 'Every property model used (IF97 and each liquor model)' }),

@@ -269,6 +269,25 @@ export const EnthalpyResponseSchema = z
   .meta({ id: 'EnthalpyResponse' });
 export type EnthalpyResponse = z.infer<typeof EnthalpyResponseSchema>;
 
+/**
+ * A stored liquor serves every calculation, the evaporators included, so it must say how its
+ * enthalpy is found: a heat-capacity polynomial or an enthalpy table (an inline definition used
+ * only for boiling points may omit both).
+ */
+function requireThermalData(input: { definition: CustomLiquorDefinition }, ctx: z.RefinementCtx): void {
+  if (!input.definition.heatCapacity && !input.definition.enthalpy) {
+    ctx.addIssue({
+      code: 'custom',
+      path: ['definition', 'heatCapacity'],
+      message:
+        'is required for a stored liquor (or give definition.enthalpy): evaporator calculations need its enthalpy',
+    });
+  }
+}
+
+const STORED_NEEDS =
+  'A stored liquor must give definition.heatCapacity or definition.enthalpy besides its boiling point, as evaporator calculations need its enthalpy (422 otherwise).';
+
 export const StoredLiquorCreateSchema = z
   .object({
     id: IdSchema.optional().meta({
@@ -277,8 +296,10 @@ export const StoredLiquorCreateSchema = z
     definition: CustomLiquorDefinitionSchema,
   })
   .strict()
+  .superRefine(requireThermalData)
   .meta({
     id: 'StoredLiquorCreate',
+    description: STORED_NEEDS,
     example: {
       id: 'north-mill-spent-wash',
       definition: {
@@ -307,13 +328,52 @@ export const StoredLiquorCreateSchema = z
   });
 export type StoredLiquorCreate = z.infer<typeof StoredLiquorCreateSchema>;
 
+export const StoredLiquorUpdateSchema = z
+  .object({ definition: CustomLiquorDefinitionSchema })
+  .strict()
+  .superRefine(requireThermalData)
+  .meta({
+    id: 'StoredLiquorUpdate',
+    description: `The new definition of a stored liquor; it is stored as the next version. ${STORED_NEEDS}`,
+    example: {
+      definition: {
+        name: 'North Mill spent wash (invented), resampled',
+        boilingPoint: {
+          duhring: [
+            {
+              massFraction: 0.2,
+              points: [
+                { waterBoilingPoint: 50, solutionBoilingPoint: 51.4 },
+                { waterBoilingPoint: 100, solutionBoilingPoint: 101.8 },
+              ],
+            },
+            {
+              massFraction: 0.45,
+              points: [
+                { waterBoilingPoint: 50, solutionBoilingPoint: 54.6 },
+                { waterBoilingPoint: 100, solutionBoilingPoint: 105.6 },
+              ],
+            },
+          ],
+        },
+        heatCapacity: { polynomial: [4.18, -2.5] },
+      },
+    },
+  });
+export type StoredLiquorUpdate = z.infer<typeof StoredLiquorUpdateSchema>;
+
 export const StoredLiquorSchema = z
   .object({
     id: z.string(),
     name: z.string(),
     kind: z.literal('stored'),
+    version: z.int().min(1).meta({
+      description:
+        'Version of the definition: 1 when stored, +1 with each update (PUT). Results that use the liquor name it in provenance',
+      example: 1,
+    }),
     definition: CustomLiquorDefinitionSchema,
-    createdAt: z.string().meta({ description: 'ISO 8601 time stamp' }),
+    createdAt: z.string().meta({ description: 'When this version was stored (ISO 8601)' }),
   })
   .meta({ id: 'StoredLiquor' });
 export type StoredLiquor = z.infer<typeof StoredLiquorSchema>;
@@ -335,10 +395,18 @@ export const StoredLiquorUploadSchema = z
     file: z.string().meta({
       format: 'binary',
       description:
-        'CSV with a header row massFraction,waterBoilingPoint,solutionBoilingPoint (°C); at most 1000 rows and 256 kB',
+        'CSV with a header row massFraction,waterBoilingPoint,solutionBoilingPoint; cells are numbers in mass fraction and °C, or carry a unit ("10 %", "40 degC"); at most 1000 rows and 256 kB. Errors name `line N, column C` (the header is line 1)',
     }),
   })
   .meta({ id: 'StoredLiquorUpload' });
+
+/** The form fields of an upload (the file is read apart), checked as the document states them. */
+export const StoredLiquorUploadFieldsSchema = StoredLiquorUploadSchema.omit({ file: true }).strict();
+
+/** An update by upload: the same form without an id (the path names the liquor). */
+export const StoredLiquorUpdateUploadSchema = StoredLiquorUploadSchema.omit({ id: true }).meta({
+  id: 'StoredLiquorUpdateUpload',
+});
 
 /** Highest number of rows in an uploaded Dühring table. */
 export const MAX_DUHRING_ROWS = 1000;

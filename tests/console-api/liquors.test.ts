@@ -259,7 +259,7 @@ describe('POST /console-api/accounts/:id/liquors (CSV Dühring upload)', () => {
     }
   });
 
-  it('names every bad CSV row by its line number', async () => {
+  it('names every bad CSV cell by its line and column', async () => {
     const csv = 'massFraction,waterBoilingPoint,solutionBoilingPoint\n0.1,45.8,47.7\n0.1,abc,70\n1.2,45,50\n';
     const res = await h.admin.agent
       .post(`/console-api/accounts/${h.alphaId}/liquors`)
@@ -269,8 +269,8 @@ describe('POST /console-api/accounts/:id/liquors (CSV Dühring upload)', () => {
       .attach('file', Buffer.from(csv), { filename: 'broken.csv', contentType: 'text/csv' })
       .expect(422);
     expect((res.body.errors as { field: string }[]).map((e) => e.field)).toEqual([
-      'file:line 3',
-      'file:line 4',
+      'line 3, column waterBoilingPoint',
+      'line 4, column massFraction',
     ]);
   });
 

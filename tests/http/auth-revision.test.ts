@@ -128,7 +128,7 @@ describe('remembered keys follow the database at once', () => {
     const h = fileHarness();
     expect(h.authenticate().ok).toBe(true); // remembered, revision checked for this turn
     revokeKey(h.db, h.keyId, h.now); // the TEMP twin of the trigger clears the memory at once
-    expect(h.authenticate()).toEqual({ ok: false, reason: 'revoked' });
+    expect(h.authenticate()).toMatchObject({ ok: false, reason: 'revoked' });
     h.other.close();
   });
 
@@ -137,7 +137,7 @@ describe('remembered keys follow the database at once', () => {
     expect(h.authenticate().ok).toBe(true);
     h.other.prepare('UPDATE api_keys SET revoked_at = ? WHERE id = ?').run(h.now.getTime() - 1, h.keyId);
     await new Promise((resolve) => setImmediate(resolve));
-    expect(h.authenticate()).toEqual({ ok: false, reason: 'revoked' });
+    expect(h.authenticate()).toMatchObject({ ok: false, reason: 'revoked' });
     h.other.close();
   });
 });

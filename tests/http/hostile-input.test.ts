@@ -67,7 +67,7 @@ describe('batch CSV columns that name prototypes', () => {
       expect(res.status).toBe(422);
       expect(res.headers['content-type']).toMatch(/^application\/problem\+json/);
       expect(res.body.type).toBe('/problems/validation-failed');
-      expect(res.body.errors).toEqual([expect.objectContaining({ field: column })]);
+      expect(res.body.errors).toEqual([expect.objectContaining({ field: `line 1, column ${column}` })]);
       noPollution();
       await otherAccountIsServed(h, other);
     },
@@ -81,7 +81,9 @@ describe('batch CSV columns that name prototypes', () => {
       .field('operation', 'steam-state')
       .attach('file', Buffer.from('pressure,temperature,__proto__.polluted\n100 kPa,20,1\n'), 'cases.csv');
     expect(res.status).toBe(422);
-    expect(res.body.errors).toEqual([expect.objectContaining({ field: '__proto__.polluted' })]);
+    expect(res.body.errors).toEqual([
+      expect.objectContaining({ field: 'line 1, column __proto__.polluted' }),
+    ]);
     noPollution();
   });
 
@@ -107,14 +109,14 @@ describe('batch CSV columns that name prototypes', () => {
       .set('Content-Type', 'text/csv')
       .send(`overallHeatTransferCoefficients[0],${column}\n2000,5\n`);
     expect(res.status).toBe(422);
-    expect(res.body.errors).toEqual([expect.objectContaining({ field: column })]);
+    expect(res.body.errors).toEqual([expect.objectContaining({ field: `line 1, column ${column}` })]);
   });
 
   it('answers 422, not 500, when one column goes inside the number another column set', async () => {
     const h = makeHarness();
     const res = await csvPost(h, 'pressure,pressure.unit,temperature\n100 kPa,kPa,20\n');
     expect(res.status).toBe(422);
-    expect(res.body.errors).toEqual([expect.objectContaining({ field: 'pressure.unit' })]);
+    expect(res.body.errors).toEqual([expect.objectContaining({ field: 'line 1, column pressure.unit' })]);
   });
 });
 

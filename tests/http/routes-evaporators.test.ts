@@ -193,7 +193,7 @@ describe('liquor routes', () => {
     expect(naoh.validity.temperature.max).toBeCloseTo(204, 0);
   });
 
-  it('stores a Dühring table from CSV, uses it, and reports a bad row by line number', async () => {
+  it('stores a Dühring table from CSV, uses it, and reports a bad cell by line and column', async () => {
     const csv =
       'massFraction,waterBoilingPoint,solutionBoilingPoint\n0.2,50,51.2\n0.2,100,101.5\n0.45,50,54.1\n0.45,100,105.0\n';
     const ok = await request(h.app)
@@ -216,20 +216,21 @@ describe('liquor routes', () => {
       .post('/v1/stored-liquors')
       .set(auth())
       .field('name', 'Broken table')
+      .field('heatCapacity', '4.18,-2.4')
       .attach(
         'file',
         Buffer.from('massFraction,waterBoilingPoint,solutionBoilingPoint\n0.2,50,51\n0.2,abc,101\n'),
         't.csv',
       );
     expect(bad.status).toBe(422);
-    expect(bad.body.errors[0].field).toBe('file:line 3');
+    expect(bad.body.errors[0].field).toBe('line 3, column waterBoilingPoint');
     const del = await request(h.app).delete(`/v1/stored-liquors/${ok.body.id}`).set(auth());
     expect(del.status).toBe(204);
   });
 });
 
 describe('POST /v1/batch', () => {
-  it('runs each case, gives a failing case its own problem and charges the sum of the cases', async () => {
+  it('runs each case, gives a failing case its own problem and charges only the cases that succeed', async () => {
     const res = await request(h.app)
       .post('/v1/batch')
       .set(auth())
@@ -238,7 +239,7 @@ describe('POST /v1/batch', () => {
         cases: [{ pressure: 101.325 }, { pressure: 'lots' }, { temperature: '500 K' }],
       });
     expect(res.status).toBe(200);
-    expect(res.body).toMatchObject({ count: 3, succeeded: 2, failed: 1, unitsCharged: 3 });
+    expect(res.body).toMatchObject({ count: 3, succeeded: 2, failed: 1, unitsCharged: 2 });
     // IAPWS-IF97: 99.974 °C at 101.325 kPa (common practice "99.97 °C").
     expect(res.body.results[0].result.temperature).toBeCloseTo(99.974, 2);
     expect(res.body.results[1].problem.errors[0].field).toBe('cases[1].pressure');

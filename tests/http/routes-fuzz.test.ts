@@ -67,7 +67,7 @@ function hasNonFiniteOrNull(v: unknown, key = '', parent = ''): boolean {
   return false;
 }
 
-async function check(method: 'get' | 'post', path: string, payload: unknown): Promise<void> {
+async function check(method: 'get' | 'post' | 'put', path: string, payload: unknown): Promise<void> {
   const req = request(origin)[method](path).set('Authorization', `Bearer ${h.token}`);
   const res =
     method === 'get' ? await req.query(payload as Record<string, string>) : await req.send(payload as object);
@@ -240,6 +240,31 @@ describe('fuzzed requests never give a 5xx or a non-finite number', { timeout: 6
     await fc.assert(
       fc.asyncProperty(fc.jsonValue({ maxDepth: 3 }), (body) =>
         check('post', path, typeof body === 'object' && body !== null ? body : [body]),
+      ),
+      { numRuns: RUNS },
+    );
+  });
+
+  it('adversarial shapes on PUT /v1/stored-liquors/{liquorId}', async () => {
+    // A liquor to update, so the bodies reach validation rather than the 404.
+    await request(origin)
+      .post('/v1/stored-liquors')
+      .set('Authorization', `Bearer ${h.token}`)
+      .send({
+        id: 'fuzz-target',
+        definition: {
+          name: 'Fuzz target (invented)',
+          boilingPointRise: { polynomial: [0, 2] },
+          heatCapacity: { polynomial: [4.18] },
+        },
+      });
+    await fc.assert(
+      fc.asyncProperty(fc.jsonValue({ maxDepth: 3 }), (body) =>
+        check(
+          'put',
+          '/v1/stored-liquors/fuzz-target',
+          typeof body === 'object' && body !== null ? body : [body],
+        ),
       ),
       { numRuns: RUNS },
     );

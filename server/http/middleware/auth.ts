@@ -9,11 +9,12 @@
  * address gets 429 'rate-limited' with Retry-After until the window ends, before its key is even
  * looked up. Only failures count, so a client using a valid key never moves towards the limit.
  */
-import type { RequestHandler } from 'express';
+import type { Request, RequestHandler, Response } from 'express';
 import { ipKeyGenerator } from 'express-rate-limit';
-import { authenticateToken } from '../../accounts/keys.js';
+import { authenticateToken, type AuthenticatedKey } from '../../accounts/keys.js';
 import type { AppDeps } from '../../deps.js';
 import { problem } from '../problem.js';
+import type { AuthContext } from './locals.js';
 import './locals.js';
 
 const DETAILS = {
@@ -72,7 +73,29 @@ export function presentedToken(header: string | undefined): string | undefined {
   return m?.[1];
 }
 
-export function authenticate(deps: AppDeps): RequestHandler {
+/** The context of a key, for metering and the request log. */
+function contextOf(key: AuthenticatedKey): AuthContext {
+  return {
+    accountId: key.accountId,
+    keyId: key.id,
+    publicId: key.publicId,
+    scopes: key.scopes,
+    rateLimitPerMinute: key.rateLimitPerMinute,
+    monthlyUnitQuota: key.account.monthlyUnitQuota,
+    retainRequestBodies: key.account.retainRequestBodies,
+  };
+}
+
+export interface AuthenticateOptions {
+  /**
+   * Called for a request refused with 401 whose key is known (revoked, expired, rotated), before
+   * the refusal is thrown: the /v1 router logs it for the key's account (unmetered), so a
+   * developer debugging the 401 finds it in the console's request log.
+   */
+  onRefusedKnownKey?: (req: Request, res: Response, auth: AuthContext) => void;
+}
+
+export function authenticate(deps: AppDeps, options: AuthenticateOptions = {}): RequestHandler {
   const failures = new KeyFailureCounter();
   return (req, res, next) => {
     const header = req.get('authorization');
@@ -90,17 +113,13 @@ export function authenticate(deps: AppDeps): RequestHandler {
     const result = authenticateToken(deps.sqlite, deps.config.secret, token, now);
     if (!result.ok) {
       failures.fail(address, now.getTime());
+      // A known key's refusal is logged for its account. An unknown (or missing, malformed) key
+      // names no account: there is no tenant to show the row to, and logging it anywhere would
+      // let anyone fill the log with guesses, so it is not logged.
+      if ('key' in result) options.onRefusedKnownKey?.(req, res, contextOf(result.key));
       throw unauthorized(result.reason);
     }
-    res.locals.auth = {
-      accountId: result.key.accountId,
-      keyId: result.key.id,
-      publicId: result.key.publicId,
-      scopes: result.key.scopes,
-      rateLimitPerMinute: result.key.rateLimitPerMinute,
-      monthlyUnitQuota: result.key.account.monthlyUnitQuota,
-      retainRequestBodies: result.key.account.retainRequestBodies,
-    };
+    res.locals.auth = contextOf(result.key);
     next();
   };
 }

@@ -93,6 +93,8 @@ class MeteredRequest implements MeterState {
     private readonly req: Request,
     private readonly res: Response,
     private readonly auth: AuthContext,
+    /** A refused key's request: logged for its account, never metered (see `logRefusal`). */
+    private readonly logOnly = false,
   ) {
     this.quota = auth.monthlyUnitQuota;
     let siblings = ctx.inFlight.get(auth.accountId);
@@ -146,6 +148,7 @@ class MeteredRequest implements MeterState {
       path: pathOf(req.originalUrl),
       requestBody: retain ? logBody(req.body, limit, this.redaction()) : null,
       responseBody: retain ? logBody(responseChunk, limit, this.redaction()) : null,
+      ...(this.logOnly ? { logOnly: true, units: 0 } : {}),
     };
   }
 
@@ -232,18 +235,37 @@ class MeteredRequest implements MeterState {
   }
 }
 
-export function metering(deps: AppDeps): RequestHandler {
+/** The metering middleware, and the hook that logs a refused key's request (see {@link metering}). */
+export type MeteringMiddleware = RequestHandler & {
+  /**
+   * Logs the request of a known key refused with 401 (revoked, expired, rotated) under the key's
+   * account: a request-log row with its status, no usage event and 0 units. Call it before the
+   * refusal is thrown; the row is committed, like any other, before the 401 leaves.
+   */
+  logRefusal(req: Request, res: Response, auth: AuthContext): void;
+};
+
+function install(meter: MeteredRequest, res: Response): void {
+  res.end = function meteredEnd(this: Response, ...args: unknown[]): Response {
+    meter.end(args);
+    return this;
+  } as Response['end'];
+  res.on('close', () => meter.closed());
+}
+
+export function metering(deps: AppDeps): MeteringMiddleware {
   const ctx: MeteringContext = { deps, writer: meteringWriter(deps.sqlite), inFlight: new Map() };
-  return (req, res, next) => {
+  const middleware: RequestHandler = (req, res, next) => {
     const auth = res.locals.auth;
     if (!auth) throw new Error('metering must run after authentication');
     const meter = new MeteredRequest(ctx, req, res, auth);
     res.locals.meter = meter;
-    res.end = function meteredEnd(this: Response, ...args: unknown[]): Response {
-      meter.end(args);
-      return this;
-    } as Response['end'];
-    res.on('close', () => meter.closed());
+    install(meter, res);
     next();
   };
+  return Object.assign(middleware, {
+    logRefusal(req: Request, res: Response, auth: AuthContext): void {
+      install(new MeteredRequest(ctx, req, res, auth, true), res);
+    },
+  });
 }

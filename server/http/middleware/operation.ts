@@ -35,6 +35,19 @@ export function chargeUnits(res: Response, units: number): void {
   meter.usedByOthersAtCharge = used;
 }
 
+/**
+ * Gives back units charged with {@link chargeUnits} for work that was refused after all (a batch
+ * charges every case up front so that it cannot overshoot the quota, then bills only the cases
+ * that succeeded).
+ */
+export function releaseUnits(res: Response, units: number): void {
+  const meter = res.locals.meter;
+  if (!meter) throw new Error('releaseUnits called outside an authenticated /v1 request');
+  if (!Number.isInteger(units) || units < 0 || units > meter.units)
+    throw new Error(`releaseUnits: units must be a non-negative integer no larger than the charge`);
+  meter.units -= units;
+}
+
 function secondsUntilReset(res: Response): number {
   const clock = res.app.get('clock') as (() => Date) | undefined;
   const now = clock ? clock() : new Date();

@@ -25,8 +25,10 @@ export const v1RouteModules: V1RouteModule[] = [];
 
 export function createV1Router(deps: AppDeps): express.Router {
   const router = express.Router();
-  router.use(authenticate(deps));
-  router.use(metering(deps));
+  const meter = metering(deps);
+  // A 401 for a known key is logged (unmetered) under its account; see middleware/auth.ts.
+  router.use(authenticate(deps, { onRefusedKnownKey: meter.logRefusal }));
+  router.use(meter);
   router.use(perKeyRateLimit());
   router.use(bodyReader(deps.config.bodyLimitBytes));
   router.use(reauthenticate(deps));

@@ -56,7 +56,7 @@ export interface OperationDeclaration<
 > {
   /** The catalogue entry (shared/operations.ts): dotted id, scope, units, batch name. */
   operation: CatalogueEntry;
-  method: 'get' | 'post' | 'delete';
+  method: 'get' | 'post' | 'put' | 'delete';
   /** Full OpenAPI-style path (`/v1/liquors/{liquorId}`); the router mounts it under /v1. */
   path: string;
   /** The OpenAPI operationId (kept as published; see DEVELOPERS.md). */

@@ -3,11 +3,12 @@
  * text/csv (operation and liquor in the query string), or a CSV file in multipart/form-data.
  * `operation` is a declaration's batch name (shared/operations.ts); each case runs as that
  * operation's own request, and its problem's paths are re-based onto `cases[i].`. A failing
- * case gets its own problem and does not fail the batch. Units charged = the sum of the cases'
- * own costs, charged before any case runs (429 if the quota cannot cover them).
+ * case gets its own problem and does not fail the batch. A refused case costs nothing, as the same
+ * request refused on its own route would: every case's cost is reserved before any case runs (429
+ * if the quota cannot cover them all, so a batch never overshoots the quota), and the cost of the
+ * cases that fail is released afterwards, so units charged = the sum of the succeeding cases' costs.
  * `Accept: text/csv` returns one line per case with dotted column names.
  */
-import { parse as parseCsv } from 'csv-parse/sync';
 import {
   BatchRequestSchema,
   BatchResponseSchema,
@@ -18,9 +19,10 @@ import {
 import { operationCatalogue } from '../../../../shared/operations.js';
 import { z } from 'zod';
 import { toCsv } from '../../csv.js';
+import { csvPlace, readCsv } from '../../csv-input.js';
 import { rebaseProblem, rebaseWarnings, toProblem } from '../../engine-errors.js';
 import { FORBIDDEN_KEYS } from '../../middleware/body.js';
-import { chargeUnits } from '../../middleware/operation.js';
+import { chargeUnits, releaseUnits } from '../../middleware/operation.js';
 import { problem, problemTypeUri, ProblemError } from '../../problem.js';
 import { findNonFinite } from '../../send.js';
 import { singleCsvUpload } from '../../upload.js';
@@ -37,9 +39,10 @@ import {
 /** Largest array index a CSV column may name: no array of a case has more than 50 entries. */
 const MAX_COLUMN_INDEX = 999;
 
+/** A header cell that names no usable field: the header is line 1. */
 function columnProblem(column: string, message: string): ProblemError {
   return problem('validation-failed', `CSV column "${column}" ${message}.`, {
-    errors: [{ field: column, message }],
+    errors: [{ field: csvPlace(1, column), message }],
   });
 }
 
@@ -94,30 +97,34 @@ function cell(text: string): unknown {
   return t;
 }
 
-/** Cases from CSV: a header of dotted field names, one case per line. */
-export function casesFromCsv(text: string): Record<string, unknown>[] {
-  let rows: string[][];
-  try {
-    rows = parseCsv(text, { skip_empty_lines: true, bom: true, relax_column_count: true }) as string[][];
-  } catch (err) {
-    throw problem('validation-failed', `The CSV could not be read: ${(err as Error).message}`, {
-      errors: [{ field: 'file', message: (err as Error).message }],
-    });
-  }
-  const header = rows[0]?.map((h) => h.trim());
-  if (!header || header.length === 0) {
-    throw problem('validation-failed', 'The CSV is empty.', {
-      errors: [{ field: 'file', message: 'no header row' }],
-    });
-  }
-  return rows.slice(1).map((row) => {
+/** Cases from CSV: a header of dotted field names, one case per line (read by server/http/csv-input.ts). */
+export function casesFromCsv(text: string): { cases: Record<string, unknown>[]; lines: number[] } {
+  const { header, rows } = readCsv(text);
+  const cases = rows.map(({ cells }) => {
     const c: Record<string, unknown> = {};
     header.forEach((name, i) => {
-      const v = cell(row[i] ?? '');
+      const v = cell(cells[i] ?? '');
       if (v !== undefined && name !== '') setPath(c, name, v);
     });
     return c;
   });
+  return { cases, lines: rows.map((r) => r.line) };
+}
+
+/**
+ * The problem of a case as one message for the CSV `error` column: each field once with its
+ * message (the detail only when no field is named), never the title, detail and fields together.
+ */
+function errorCell(p: {
+  title: string;
+  detail?: string;
+  errors?: { field: string; message: string }[];
+}): string {
+  const errors = p.errors ?? [];
+  if (errors.length === 0) return p.detail ?? p.title;
+  return errors
+    .map((e) => (e.message.startsWith(e.field) ? e.message : `${e.field}: ${e.message}`))
+    .join('; ');
 }
 
 /** Flattens a result into dotted columns for CSV output. */
@@ -126,6 +133,48 @@ function flatten(value: unknown, prefix: string, out: Record<string, unknown>): 
   else if (value !== null && typeof value === 'object') {
     for (const [k, v] of Object.entries(value)) flatten(v, prefix ? `${prefix}.${k}` : k, out);
   } else out[prefix] = value;
+}
+
+/**
+ * A problem about a whole CSV case (its field was the case itself, "line 3, column "), named by
+ * its line alone.
+ */
+function wholeRowPaths(p: ProblemError, line: number): ProblemError {
+  const bare = `${csvPlace(line, '')}, column `;
+  if (!p.errors?.some((e) => e.field === bare)) return p;
+  return new ProblemError({
+    status: p.status,
+    type: p.type,
+    title: p.title,
+    detail: p.detail,
+    errors: p.errors.map((e) => (e.field === bare ? { ...e, field: csvPlace(line) } : e)),
+    headers: p.headers,
+  });
+}
+
+/**
+ * The batch request of CSV cases: a refusal of a case's shape names the case's line rather than
+ * `cases[i]` (the cases' own fields are checked when each runs, named by line and column).
+ */
+function validateCsvBatch(raw: unknown, lines: readonly number[]) {
+  try {
+    return validate(BatchRequestSchema, raw);
+  } catch (err) {
+    if (!(err instanceof ProblemError) || !err.errors) throw err;
+    const named = err.errors.map((e) => {
+      const m = /^cases\[(\d+)\](?:\.(.*))?$/.exec(e.field);
+      const line = m ? lines[Number(m[1])] : undefined;
+      return line === undefined ? e : { ...e, field: csvPlace(line, m?.[2]) };
+    });
+    throw new ProblemError({
+      status: err.status,
+      type: err.type,
+      title: err.title,
+      detail: err.detail,
+      errors: named,
+      headers: err.headers,
+    });
+  }
 }
 
 /** One case as its operation's own request (paths relative to the case). */
@@ -167,7 +216,9 @@ export function batchOperation(operations: readonly AnyOperation[]) {
     tag: 'Batch',
     summary: `Many cases of one operation (JSON array or CSV upload, at most ${MAX_BATCH_ROWS} cases)`,
     description:
-      'A failing case does not fail the batch: it gets its own problem. Units charged are the sum of the cases’ costs. ' +
+      'A failing case does not fail the batch: it gets its own problem. A refused case costs nothing, as it would on its own route: ' +
+      'units charged are the sum of the costs of the cases that succeeded. The quota must cover every case before any runs (429 otherwise), ' +
+      'so a batch never overshoots the quota; the units of the cases that fail are then given back. ' +
       'Send `Accept: text/csv` to receive the results as CSV (one line per case, dotted column names, `status` and `error` columns).',
     request: {
       body: BatchRequestSchema,
@@ -187,6 +238,8 @@ export function batchOperation(operations: readonly AnyOperation[]) {
     },
     handle: async (req, res, ctx) => {
       let raw: unknown;
+      // The CSV line of each case when the cases came as CSV: problems and output name it.
+      let lines: number[] | undefined;
       if (req.is('multipart/form-data')) {
         await readUpload(req, res);
         const body = (req.body ?? {}) as Record<string, unknown>;
@@ -195,17 +248,21 @@ export function batchOperation(operations: readonly AnyOperation[]) {
             errors: [{ field: 'file', message: 'is required' }],
           });
         }
+        const read = casesFromCsv(req.file.buffer.toString('utf8'));
+        lines = read.lines;
         raw = {
           operation: body.operation,
           ...(body.liquor ? { liquor: body.liquor } : {}),
-          cases: casesFromCsv(req.file.buffer.toString('utf8')),
+          cases: read.cases,
         };
       } else if (typeof req.body === 'string') {
         const q = req.query as Record<string, unknown>;
+        const read = casesFromCsv(req.body);
+        lines = read.lines;
         raw = {
           operation: q.operation,
           ...(q.liquor ? { liquor: q.liquor } : {}),
-          cases: casesFromCsv(req.body),
+          cases: read.cases,
         };
       } else {
         raw = req.body;
@@ -217,33 +274,41 @@ export function batchOperation(operations: readonly AnyOperation[]) {
           `The batch has ${cases.length} cases; at most ${MAX_BATCH_ROWS} are accepted per request.`,
         );
       }
-      const batch = validate(BatchRequestSchema, raw);
+      const batch = lines ? validateCsvBatch(raw, lines) : validate(BatchRequestSchema, raw);
       const { op, requestKeys } = byName.get(batch.operation)!;
       const caseUnits = op.decl.batch?.units;
-      const units = batch.cases.reduce(
-        (sum, c) => sum + (caseUnits ? caseUnits(c) : op.decl.operation.units),
-        0,
-      );
-      chargeUnits(res, units);
+      const costs = batch.cases.map((c) => (caseUnits ? caseUnits(c) : op.decl.operation.units));
+      const reserved = costs.reduce((sum, u) => sum + u, 0);
+      // Reserve every case's cost first: the quota check must cover the whole batch.
+      chargeUnits(res, reserved);
       const shared = { liquor: batch.liquor };
 
       const results: BatchResponse['results'] = batch.cases.map((c, index) => {
-        const base = `cases[${index}].`;
+        const line = lines?.[index];
+        // A CSV case's fields are named by line and column, as the user sees them in the file.
+        const base = line === undefined ? `cases[${index}].` : `${csvPlace(line, '')}, column `;
         try {
           const result = runCase(op, c, shared, ctx);
           rebaseWarnings(result, base, requestKeys);
           const bad = findNonFinite(result);
           if (bad) throw problem('no-solution', `The calculation produced a non-finite number (${bad}).`);
-          return { index, status: 'ok', result: result as Record<string, unknown> };
+          return {
+            index,
+            ...(line !== undefined ? { line } : {}),
+            status: 'ok',
+            result: result as Record<string, unknown>,
+          };
         } catch (err) {
           let p: ProblemError;
           try {
             p = rebaseProblem(toProblem(err), base);
+            if (line !== undefined) p = wholeRowPaths(p, line);
           } catch {
             p = problem('no-solution', 'This case could not be calculated.');
           }
           return {
             index,
+            ...(line !== undefined ? { line } : {}),
             status: 'error',
             problem: {
               type: problemTypeUri(p.type),
@@ -256,6 +321,10 @@ export function batchOperation(operations: readonly AnyOperation[]) {
         }
       });
       const failed = results.filter((r) => r.status === 'error').length;
+      // A refused case costs nothing: give back what the failed cases reserved.
+      const refunded = results.reduce((sum, r, i) => sum + (r.status === 'error' ? costs[i]! : 0), 0);
+      releaseUnits(res, refunded);
+      const units = reserved - refunded;
       const response: BatchResponse = {
         operation: batch.operation,
         count: results.length,
@@ -266,11 +335,11 @@ export function batchOperation(operations: readonly AnyOperation[]) {
       };
       if (req.accepts(['application/json', 'text/csv']) === 'text/csv') {
         const rows = results.map((r) => {
-          const flat: Record<string, unknown> = { index: r.index, status: r.status };
+          // CSV cases are numbered by their input line (header = line 1), JSON cases by index.
+          const flat: Record<string, unknown> =
+            r.line !== undefined ? { line: r.line, status: r.status } : { index: r.index, status: r.status };
           if (r.result) flatten(r.result, '', flat);
-          if (r.problem)
-            flat.error =
-              `${r.problem.title}: ${r.problem.detail ?? ''} ${(r.problem.errors ?? []).map((e) => `${e.field} ${e.message}`).join('; ')}`.trim();
+          if (r.problem) flat.error = errorCell(r.problem);
           return flat;
         });
         const columns = [...new Set(rows.flatMap((r) => Object.keys(r)))];

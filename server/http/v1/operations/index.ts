@@ -8,7 +8,12 @@ import { batchOperation } from './batch.js';
 import { multipleEffect, singleEffect } from './evaporators.js';
 import { liquorBoilingPoint, liquorEnthalpy, liquorGet, liquorList } from './liquors.js';
 import { steamSaturation, steamState } from './steam.js';
-import { storedLiquorCreate, storedLiquorDelete, storedLiquorList } from './stored-liquors.js';
+import {
+  storedLiquorCreate,
+  storedLiquorDelete,
+  storedLiquorList,
+  storedLiquorUpdate,
+} from './stored-liquors.js';
 import { usageRead } from './usage.js';
 
 const calculations: AnyOperation[] = [
@@ -18,6 +23,7 @@ const calculations: AnyOperation[] = [
   storedLiquorCreate,
   storedLiquorList,
   liquorGet,
+  storedLiquorUpdate,
   storedLiquorDelete,
   liquorBoilingPoint,
   liquorEnthalpy,
