@@ -286,7 +286,7 @@ describe('finalize through the payment provider', () => {
     const captured = h.deps.sqlite
       .prepare("SELECT subject, text_body AS text FROM captured_mail WHERE subject LIKE 'Ebullio statement%'")
       .get() as { subject: string; text: string };
-    expect(captured.subject).toBe('Ebullio statement 2031-03: €61.00');
+    expect(captured.subject).toBe('Ebullio statement 2031-03 issued: €61.00');
     expect(captured.text).toContain(statement.providerInvoiceId);
     expect(h.deps.db.select().from(auditLog).all()).toContainEqual(
       expect.objectContaining({

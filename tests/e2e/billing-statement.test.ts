@@ -58,15 +58,15 @@ describe('billing: statement generated, finalized, paid through the provider web
   it('shows the statement paid after a reload, once the signed webhook has arrived', async () => {
     const { page } = flow.browser;
     let text = '';
-    for (let attempt = 0; attempt < 20 && !text.includes('Paid'); attempt++) {
+    for (let attempt = 0; attempt < 20 && !text.includes('Settled'); attempt++) {
       await page.reload();
       await page.getByRole('heading', { level: 1, name: 'Billing' }).waitFor();
       await showMonth();
       text =
         (await page.locator('.v-data-table tbody tr', { hasText: DEMO_ACCOUNT }).first().textContent()) ?? '';
-      if (!text.includes('Paid')) await page.waitForTimeout(500);
+      if (!text.includes('Settled')) await page.waitForTimeout(500);
     }
-    expect(text).toContain('Paid');
+    expect(text).toContain('Settled'); // the console's word for a paid statement
     expect(text).toContain(invoiceId);
     await screenshot(page, 'billing');
   }, 60_000);
