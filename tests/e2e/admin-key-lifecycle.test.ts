@@ -110,7 +110,10 @@ describe('admin: account, key, API call, request log, revocation', () => {
     expect(text).toContain('/v1/evaporators/single-effect');
     expect(text).toContain('200');
     await rows.first().click();
-    await page.locator('.v-navigation-drawer--active', { hasText: requestId }).waitFor();
+    // The inspector opens under the table, full width, and names the request it shows.
+    const inspector = page.locator('[data-test="request-inspector"]', { hasText: requestId });
+    await inspector.waitFor();
+    await inspector.locator('[data-test="facts"]').waitFor();
     await screenshot(page, 'request-log');
   }, 60_000);
 
