@@ -237,7 +237,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   if (bootstrapApiKey !== undefined && !BOOTSTRAP_KEY_PATTERN.test(bootstrapApiKey)) {
     throw new ConfigError(
       `BOOTSTRAP_API_KEY must be 32 to 256 characters of A-Z a-z 0-9 _ . - (got ${bootstrapApiKey.length} characters); ` +
-        "generate one with: node -e \"console.log('ebl_live_'+require('crypto').randomBytes(24).toString('base64url'))\"",
+        "generate one with: node -e \"console.log('ebk1.'+require('crypto').randomBytes(24).toString('base64url'))\"",
     );
   }
   const bootstrapAdminEmail = env.BOOTSTRAP_ADMIN_EMAIL === '' ? undefined : env.BOOTSTRAP_ADMIN_EMAIL;

@@ -18,8 +18,9 @@
  * | DEMO_CONSOLE_USERS | 0 | "1": create the demo billing and developer users of server/accounts/demo-users.ts (documented shared password: never on a reachable host) |
  * | FAKE_PAYMENTS_AUTOPAY | 0 | "1": the fake pays every invoice right after it is finalized and sends the signed invoice.paid webhook |
  *
- * The fake provider listens on the port of PAYMENTS_API_BASE (default 12111, see
- * server/integrations/payments/config.ts) and delivers its webhooks to this server's
+ * The fake provider listens on the port of PAYMENTS_API_BASE (by default port 0: any free port, see
+ * server/integrations/payments/config.ts); the payments client is pointed at the port it was given,
+ * as SMTP_URL is at the mail capture's, and the fake delivers its webhooks to this server's
  * /webhooks/payments.
  */
 import fs from 'node:fs';
@@ -34,7 +35,8 @@ import { createApp } from './app.js';
 import type { AppDeps, Lifecycle } from './deps.js';
 import { createHttpServer, startDraining } from './http/server.js';
 import { startMailCapture, type MailCapture } from './integrations/mail-capture.js';
-import { loadPaymentsConfig, PaymentsConfigError } from './integrations/payments/config.js';
+import { configurePayments } from './integrations/payments/client.js';
+import { loadPaymentsConfig, PaymentsConfigError, withBoundPort } from './integrations/payments/config.js';
 import { startFakePaymentProvider, type FakePaymentProvider } from './integrations/payments/fake-provider.js';
 import { bootstrap } from './seed/bootstrap.js';
 import { DEMO_CONSOLE_PASSWORD, seedDemoConsoleUsers } from './accounts/demo-users.js';
@@ -76,6 +78,7 @@ async function startDevMail(
 /** Local fake of the payment provider: outside production, when PAYMENTS_API_BASE is loopback http. */
 async function startDevPayments(
   config: Config,
+  deps: AppDeps,
   serverPort: number,
 ): Promise<FakePaymentProvider | undefined> {
   if (config.nodeEnv === 'production') return undefined;
@@ -92,6 +95,8 @@ async function startDevPayments(
     apiKey: payments.apiKey,
     autoPayAfterFinalize: flag('FAKE_PAYMENTS_AUTOPAY', false),
   });
+  // The app's payments client calls the port the fake was given (PAYMENTS_API_BASE may say 0).
+  configurePayments(deps, withBoundPort(payments, fake.port));
   console.log(`[start-up] development fake payment provider on ${fake.url} (webhooks to /webhooks/payments)`);
   return fake;
 }
@@ -209,7 +214,7 @@ async function main(): Promise<void> {
   server.listen(config.port, () => {
     server.off('error', onListenError);
     const { port } = server.address() as AddressInfo;
-    startDevPayments(config, port)
+    startDevPayments(config, deps, port)
       .then((fake) => {
         payments = fake;
       })

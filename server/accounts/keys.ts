@@ -1,8 +1,12 @@
 /**
  * API keys.
  *
- * Format of generated keys: `ebl_live_<publicId>_<secret>`, publicId = 12 base62 characters
- * (shown in the console and logs), secret = 32 base62 characters (≈ 190 random bits). Only
+ * Format of generated keys: `ebk1.<publicId>.<secret>`: `ebk` marks an Ebullio key and `1` is the
+ * format's version (a later format takes the next number), publicId = 12 base62 characters (shown
+ * in the console and logs), secret = 32 base62 characters (≈ 190.5 random bits). Every character
+ * is safe in a header, a URL path and a shell word. Keys issued before this format,
+ * `ebl_live_<publicId>_<secret>`, keep working: authentication hashes the whole token, so only
+ * the parsing below (display prefix, secret part, redaction) knows both formats. Only
  * HMAC-SHA256(server secret, whole key) is stored; the key is returned once, at creation.
  *
  * Lookup is by the keyed hash (unique index), then the stored and computed hashes are compared
@@ -25,36 +29,50 @@ import { isScope, type Scope } from './operations.js';
 
 /** Accepted shape of a presented bearer token (anything else is "malformed"). */
 export const TOKEN_PATTERN = /^[A-Za-z0-9_.-]{32,256}$/;
-const GENERATED_KEY_PATTERN = /^ebl_(live|test)_([A-Za-z0-9]{12})_([A-Za-z0-9]{32})$/;
+/** The current issued format: version marker, public id, secret. */
+const ISSUED_KEY_PATTERN = /^(ebk\d+)\.([A-Za-z0-9]{12})\.([A-Za-z0-9]{32})$/;
+/** The first issued format, still accepted: `ebl_<kind>_<publicId>_<secret>`. */
+const LEGACY_KEY_PATTERN = /^(ebl_(?:live|test))_([A-Za-z0-9]{12})_([A-Za-z0-9]{32})$/;
+
+/** [format marker, public id, secret] of a key of either issued format. */
+function parseIssued(token: string): [string, string, string] | undefined {
+  const m = ISSUED_KEY_PATTERN.exec(token) ?? LEGACY_KEY_PATTERN.exec(token);
+  return m ? [m[1]!, m[2]!, m[3]!] : undefined;
+}
 
 /**
  * Every key-shaped token, wherever it appears in text: the one pattern redaction uses (the request
  * log: path, problem instance, bodies, property names). Extend it here when a key format is added.
  * It covers:
- * - issued keys, `ebl_<kind>_<publicId>_<secret>`, of any kind and length;
+ * - issued keys, `ebk<version>.<publicId>.<secret>`, of any version and length;
+ * - keys of the first issued format, `ebl_<kind>_<publicId>_<secret>`, of any kind and length;
  * - every other token {@link TOKEN_PATTERN} accepts: a registered (bootstrap) key may be any run
  *   of 32 or more of its characters, and an issued key's bare secret is 32 of them.
  * The second branch also catches long identifiers (UUIDs, hashes): a log loses an identifier
  * rather than keep a key.
  */
-export const KEY_SHAPED_PATTERN = /ebl_[a-z]+_[A-Za-z0-9]+_[A-Za-z0-9]+|[A-Za-z0-9_.-]{32,}/g;
-/** The issued-format branch of {@link KEY_SHAPED_PATTERN} alone (not global: for `test`). */
-export const ISSUED_KEY_SHAPED = new RegExp(KEY_SHAPED_PATTERN.source.split('|')[0]!);
+export const KEY_SHAPED_PATTERN =
+  /ebk\d+\.[A-Za-z0-9]+\.[A-Za-z0-9]+|ebl_[a-z]+_[A-Za-z0-9]+_[A-Za-z0-9]+|[A-Za-z0-9_.-]{32,}/g;
+/** The issued-format branches of {@link KEY_SHAPED_PATTERN} alone (not global: for `test`). */
+export const ISSUED_KEY_SHAPED = new RegExp(KEY_SHAPED_PATTERN.source.split('|').slice(0, 2).join('|'));
 
 /** The secret part of an issued key (the characters after its public id), if it is one. */
 export function secretPartOf(token: string): string | undefined {
-  return GENERATED_KEY_PATTERN.exec(token)?.[3];
+  return parseIssued(token)?.[2];
 }
 
 /**
  * What the console shows for a key: never a secret character. An issued key (or a registered key
- * of the issued format) shows its first 16 characters, `ebl_<kind>_` and the start of its public
- * id; a registered key of another format shows only its public id (`boot…`, made up at
+ * of an issued format) shows its format marker and whole public id, `ebk1.<publicId>` (a key of
+ * the first format keeps the 16 characters it always showed, `ebl_<kind>_` and the start of its
+ * public id); a registered key of another format shows only its public id (`boot…`, made up at
  * registration), since every character of such a key is secret.
  */
 export function displayPrefix(token: string, publicId: string): string {
-  const issued = GENERATED_KEY_PATTERN.exec(token);
-  return issued ? `ebl_${issued[1]}_${issued[2]}`.slice(0, 16) : publicId;
+  const issued = parseIssued(token);
+  if (!issued) return publicId;
+  const [marker, id] = issued;
+  return marker.startsWith('ebl_') ? `${marker}_${id}`.slice(0, 16) : `${marker}.${id}`;
 }
 const BASE62 = 'ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789';
 
@@ -106,10 +124,10 @@ export function createKey(
     if (!TOKEN_PATTERN.test(input.token))
       throw new Error('a registered key must be 32–256 chars of [A-Za-z0-9_.-]');
     token = input.token;
-    publicId = GENERATED_KEY_PATTERN.exec(token)?.[2] ?? `boot${randomBase62(8)}`;
+    publicId = parseIssued(token)?.[1] ?? `boot${randomBase62(8)}`;
   } else {
     publicId = randomBase62(12);
-    token = `ebl_live_${publicId}_${randomBase62(32)}`;
+    token = `ebk1.${publicId}.${randomBase62(32)}`;
   }
   const rate = input.rateLimitPerMinute ?? 60;
   if (!Number.isInteger(rate) || rate < 1 || rate > 100_000)

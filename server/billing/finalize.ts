@@ -36,19 +36,27 @@ function providerFailure(err: unknown): ProblemError {
   );
 }
 
+/** A stored status as people read it (the console shows the same words). */
+const STATE_WORDS: Record<StatementDetail['status'], string> = {
+  draft: 'a draft',
+  finalized: 'already issued',
+  paid: 'already settled',
+  void: 'withdrawn',
+};
+
 function statementReadyText(detail: StatementDetail): string {
   const lines = detail.lineItems.map(
     (l) =>
       `  ${l.description}: ${l.quantity} × ${formatMoney(l.unitAmountMinor, detail.currency)} = ${formatMoney(l.amountMinor, detail.currency)}`,
   );
   return [
-    `Your Ebullio statement for ${detail.month} (${detail.accountName}) is ready.`,
+    `Your Ebullio statement for ${detail.month} (${detail.accountName}) has been issued.`,
     '',
     `Units used: ${formatCount(detail.units)} (included in the plan: ${formatCount(detail.includedUnits)}).`,
     ...(lines.length > 0 ? ['', ...lines] : []),
     '',
     `Total: ${formatMoney(detail.amountMinor, detail.currency)}.`,
-    `Invoice reference: ${detail.providerInvoiceId ?? '—'}; payment is due within ${DAYS_UNTIL_DUE} days.`,
+    `Payment reference: ${detail.providerInvoiceId ?? '—'}; please settle it within ${DAYS_UNTIL_DUE} days.`,
     '',
     'Calendar months are counted in UTC.',
   ].join('\n');
@@ -59,7 +67,7 @@ export async function finalizeStatement(
   statementId: number,
 ): Promise<FinalizeStatementResponse> {
   if (running.has(statementId)) {
-    throw problem('conflict', `Statement ${statementId} is being finalized by another request.`);
+    throw problem('conflict', `Statement ${statementId} is being issued by another request.`);
   }
   running.add(statementId);
   try {
@@ -73,13 +81,16 @@ async function finalizeOnce(deps: AppDeps, statementId: number): Promise<Finaliz
   const before = statementDetail(deps.db, statementId);
   if (!before) throw problem('not-found', `There is no statement ${statementId}.`);
   if (before.status !== 'draft') {
-    throw problem('conflict', `Statement ${statementId} is ${before.status}; only a draft can be finalized.`);
+    throw problem(
+      'conflict',
+      `Statement ${statementId} is ${STATE_WORDS[before.status]}; only a draft can be issued.`,
+    );
   }
   const now = deps.clock();
   if (!isMonthComplete(before.month, now)) {
     throw problem(
       'conflict',
-      `The month ${before.month} is not over yet (UTC); a statement can be finalized from the first day of the next month.`,
+      `The month ${before.month} is not over yet (UTC); a statement can be issued from the first day of the next month.`,
     );
   }
   const payments = paymentsFor(deps);
@@ -175,7 +186,7 @@ async function finalizeOnce(deps: AppDeps, statementId: number): Promise<Finaliz
     .where(and(eq(statements.id, statementId), eq(statements.status, 'draft')))
     .returning()
     .get();
-  if (!updated) throw problem('conflict', `Statement ${statementId} changed while it was being finalized.`);
+  if (!updated) throw problem('conflict', `Statement ${statementId} changed while it was being issued.`);
   const final = statementDetail(deps.db, statementId);
   if (!final) throw problem('not-found', `There is no statement ${statementId}.`);
 
@@ -184,7 +195,7 @@ async function finalizeOnce(deps: AppDeps, statementId: number): Promise<Finaliz
     const result = await sendMail(deps, {
       kind: 'statement-ready',
       to: account.billingEmail,
-      subject: `Ebullio statement ${final.month}: ${formatMoney(final.amountMinor, final.currency)}`,
+      subject: `Ebullio statement ${final.month} issued: ${formatMoney(final.amountMinor, final.currency)}`,
       text: statementReadyText(final),
     });
     if (result.status === 'sent') mailedTo = account.billingEmail;

@@ -73,7 +73,7 @@ export const apiKeys = sqliteTable(
     createdAt: createdAt(),
     lastUsedAt: integer('last_used_at', { mode: 'timestamp_ms' }),
     rotatedFromId: integer('rotated_from_id'),
-    /** The first characters of the key, safe to show in a console ("ebl_live_AbC…"). */
+    /** The first characters of the key, safe to show in a console ("ebk1.AbC…"). */
     prefix: text('prefix').notNull(),
   },
   (t) => [index('api_keys_account_idx').on(t.accountId)],

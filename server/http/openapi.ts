@@ -142,7 +142,7 @@ export function buildRegistry(): OpenAPIRegistry {
   registry.registerComponent('securitySchemes', 'bearerAuth', {
     type: 'http',
     scheme: 'bearer',
-    description: 'An API key created in the console: `Authorization: Bearer ebl_live_…`',
+    description: 'An API key created in the console: `Authorization: Bearer ebk1.…`',
   });
   const security = [{ bearerAuth: [] }];
 

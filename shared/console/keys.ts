@@ -29,7 +29,7 @@ export const KeySchema = z
     name: z.string(),
     prefix: z.string().meta({
       description:
-        'Non-secret identifier of the key: for an issued key its first characters (ebl_<kind>_ and the start of its public id); for a registered key of another format, its public id',
+        'Non-secret identifier of the key: for an issued key its format marker and public id (ebk1.<publicId>; a key of the first format, ebl_<kind>_ and the start of its public id); for a registered key of another format, its public id',
     }),
     scopes: z.array(KeyScopeSchema),
     rateLimitPerMinute: z.int(),

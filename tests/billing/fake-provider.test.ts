@@ -66,7 +66,7 @@ describe('fake payment provider through the SDK', () => {
   it('creates a customer, a draft invoice with items, and finalizes it to an open invoice', async () => {
     const { fake, sdk } = await setup();
     const customer = await sdk.customers.create({ email: 'billing@works.invalid', name: 'Invented Works' });
-    expect(customer.id).toMatch(/^cus_/); // provider id prefixes (Stripe API reference, from memory)
+    expect(customer.id).toMatch(/^cust-/); // the local fake's own id shapes (fake-provider.ts randomId)
     const again = await sdk.customers.retrieve(customer.id);
     expect(again).toMatchObject({ id: customer.id, email: 'billing@works.invalid' });
     const invoice = await sdk.invoices.create({
@@ -76,7 +76,7 @@ describe('fake payment provider through the SDK', () => {
       days_until_due: 30,
       metadata: { statementId: '7' },
     });
-    expect(invoice.id).toMatch(/^in_/);
+    expect(invoice.id).toMatch(/^inv-/);
     expect(invoice.status).toBe('draft');
     await sdk.invoiceItems.create({
       customer: customer.id,

@@ -264,7 +264,7 @@ describe('finalize through the payment provider', () => {
       .expect(200);
     const statement = res.body.statement as StatementBody;
     expect(statement).toMatchObject({ status: 'finalized', amountMinor: 6_100 });
-    expect(statement.providerInvoiceId).toMatch(/^in_/);
+    expect(statement.providerInvoiceId).toMatch(/^inv-/);
     expect(res.body.mailedTo).toBe('accounts@alpha.invalid');
     // What the provider holds, read back through its own API (the fake's state).
     const invoice = h.fake.state.invoices.get(statement.providerInvoiceId ?? '');
@@ -277,7 +277,7 @@ describe('finalize through the payment provider', () => {
     const customerId = h.deps.sqlite
       .prepare('SELECT payment_customer_id AS c FROM accounts WHERE id = ?')
       .get(h.alphaId) as { c: string };
-    expect(customerId.c).toMatch(/^cus_/);
+    expect(customerId.c).toMatch(/^cust-/);
     expect(h.fake.state.customers.get(customerId.c)?.email).toBe('accounts@alpha.invalid');
     // Mail and audit.
     expect(mailRows(h)).toContainEqual(
@@ -286,7 +286,7 @@ describe('finalize through the payment provider', () => {
     const captured = h.deps.sqlite
       .prepare("SELECT subject, text_body AS text FROM captured_mail WHERE subject LIKE 'Ebullio statement%'")
       .get() as { subject: string; text: string };
-    expect(captured.subject).toBe('Ebullio statement 2031-03: €61.00');
+    expect(captured.subject).toBe('Ebullio statement 2031-03 issued: €61.00');
     expect(captured.text).toContain(statement.providerInvoiceId);
     expect(h.deps.db.select().from(auditLog).all()).toContainEqual(
       expect.objectContaining({

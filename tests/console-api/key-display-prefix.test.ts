@@ -1,7 +1,7 @@
 // What the console shows of a key (prefix and public id) is never a secret character. A registered
 // (bootstrap) key may be any 32–256 characters of [A-Za-z0-9_.-] (server/config.ts), so every one
-// of its characters is secret; an issued key `ebl_<kind>_<publicId>_<secret>` shows only the
-// start of its public part. Rows stored before this rule are fixed by migration 0005.
+// of its characters is secret; an issued key `ebk1.<publicId>.<secret>` shows only its
+// format marker and public id (a key of the first format, `ebl_<kind>_…`, the start of its public id). Rows stored before this rule are fixed by migration 0005.
 import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -56,16 +56,32 @@ describe('key prefix shown by the console', () => {
     expect(JSON.stringify(list.body)).not.toContain(BOOT_KEY.slice(0, 8));
   });
 
-  it('shows an issued key by ebl_<kind>_ and the start of its public id, never its secret', () => {
+  it('shows an issued key by ebk1. and its public id, never its secret', () => {
     const { key, token } = createKey(h.deps.db, h.deps.config.secret, {
       accountId: h.alphaId,
       name: 'issued',
       scopes: ['steam'],
       now: h.clock.now,
     });
-    expect(key.prefix).toBe(`ebl_live_${key.publicId}`.slice(0, 16));
-    expect(token.startsWith(key.prefix)).toBe(true);
+    expect(key.prefix).toBe(`ebk1.${key.publicId}`);
+    expect(token.startsWith(`${key.prefix}.`)).toBe(true);
     expect(sharedRuns(key.prefix, secretPartOf(token)!)).toEqual([]);
+  });
+
+  it('shows a registered key of the first issued format by ebl_<kind>_ and the start of its public id', () => {
+    // Invented key of the format issued before ebk1 (not real); such keys keep working.
+    const legacy = `ebl_live_LegacyPub001_${'k7'.repeat(16)}`;
+    const { key } = createKey(h.deps.db, h.deps.config.secret, {
+      accountId: h.alphaId,
+      name: 'first format',
+      scopes: ['steam'],
+      now: h.clock.now,
+      token: legacy,
+    });
+    expect(key.publicId).toBe('LegacyPub001');
+    expect(key.prefix).toBe('ebl_live_LegacyP');
+    expect(secretPartOf(legacy)).toBe('k7'.repeat(16));
+    expect(sharedRuns(key.prefix, 'k7'.repeat(16))).toEqual([]);
   });
 });
 
@@ -75,11 +91,13 @@ describe('migration 0005_key_display_prefix', () => {
     runMigrations(db);
     const now = new Date('2031-03-14T10:00:00Z');
     const accountId = createAccount(db, { name: 'Invented Works', monthlyUnitQuota: 10, now }).id;
+    // Keys issued when this migration landed had the first format (invented key, not real).
     const issued = createKey(db, Buffer.from('x'.repeat(32)), {
       accountId,
       name: 'issued',
       scopes: ['steam'],
       now,
+      token: `ebl_live_${'M'.repeat(12)}_${'n'.repeat(32)}`,
     });
     const boot = createKey(db, Buffer.from('x'.repeat(32)), {
       accountId,

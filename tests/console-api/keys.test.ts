@@ -31,8 +31,8 @@ describe('POST /console-api/keys', () => {
       .send(body(h.alphaId))
       .expect(201);
     const secret = res.body.secret as string;
-    // Key format documented in server/accounts/keys.ts: ebl_live_<12 base62>_<32 base62>.
-    expect(secret).toMatch(/^ebl_live_[A-Za-z0-9]{12}_[A-Za-z0-9]{32}$/);
+    // Key format documented in server/accounts/keys.ts: ebk1.<12 base62>.<32 base62>.
+    expect(secret).toMatch(/^ebk1\.[A-Za-z0-9]{12}\.[A-Za-z0-9]{32}$/);
     expect(res.body.key).toMatchObject({
       accountId: h.alphaId,
       state: 'active',

@@ -124,6 +124,31 @@ describe('statement detail', () => {
     expect(wrapper.find('[data-test="finalize"]').exists()).toBe(false);
   });
 
+  it('shows stored states in the console’s words: an invoiced statement reads Issued, never finalized', () => {
+    const wrapper = mount(StatementDetailCard, {
+      props: { statement, csvUrl: '/x.csv', canFinalize: true, monthOver: true },
+      global: { plugins: [vuetify] },
+    });
+    const text = wrapper.text();
+    expect(text).toContain('Issued');
+    expect(text).toContain('Payment reference');
+    expect(text.toLowerCase()).not.toContain('finaliz');
+  });
+
+  it('offers a draft the action “Issue statement”', () => {
+    const wrapper = mount(StatementDetailCard, {
+      props: {
+        statement: { ...statement, status: 'draft', providerInvoiceId: null, finalizedAt: null },
+        csvUrl: '/x.csv',
+        canFinalize: true,
+        monthOver: true,
+      },
+      global: { plugins: [vuetify] },
+    });
+    expect(wrapper.get('[data-test="finalize"]').text()).toBe('Issue statement');
+    expect(wrapper.text()).toContain('Draft');
+  });
+
   it('has a close button that asks its dialog to close', async () => {
     const wrapper = mount(StatementDetailCard, {
       props: { statement, csvUrl: '/x.csv', canFinalize: false, monthOver: true },

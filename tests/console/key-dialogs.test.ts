@@ -18,7 +18,7 @@ const apiKey = {
   accountId: 2,
   accountName: 'Kettle Works',
   name: 'plant historian',
-  prefix: 'ebl_live_Qm9',
+  prefix: 'ebk1.Qm9',
   scopes: ['steam'],
   rateLimitPerMinute: 60,
   createdAt: '2031-03-01T10:00:00.000Z',
@@ -71,7 +71,7 @@ describe('key dialogs', () => {
     const wrapper = mountDialog(KeyRevokeDialog, apiKey);
     await flushPromises();
     expect(document.body.textContent).toContain('plant historian');
-    expect(document.body.textContent).toContain('ebl_live_Qm9…');
+    expect(document.body.textContent).toContain('ebk1.Qm9…');
     button('Revoke').click();
     button('Keep it').click();
     expect(wrapper.emitted('confirm')).toHaveLength(1);

@@ -12,7 +12,7 @@ import { useSessionStore } from '../../console/src/stores/session.js';
 import { fakeFetch, json } from './fake-fetch.js';
 import type { ConsoleKey } from '../../shared/console/keys.js';
 
-const SECRET = 'ebl_live_RXZhcG9yYXRvclN0b3JlVGVzdDAwMQ';
+const SECRET = 'ebk1.RXZhcG9yYXRvclN0b3JlVGVzdDAwMQ';
 
 function key(id: number, over: Partial<ConsoleKey> = {}): ConsoleKey {
   return {
@@ -21,7 +21,7 @@ function key(id: number, over: Partial<ConsoleKey> = {}): ConsoleKey {
     accountId: 2,
     accountName: 'Kettle Works',
     name: `key ${id}`,
-    prefix: 'ebl_live_RXZ',
+    prefix: 'ebk1.RXZ',
     scopes: ['steam'],
     rateLimitPerMinute: 60,
     createdAt: '2031-03-01T10:00:00.000Z',

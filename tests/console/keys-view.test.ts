@@ -13,7 +13,7 @@ import KeysView from '../../console/src/views/KeysView.vue';
 import { useSessionStore } from '../../console/src/stores/session.js';
 import { fakeFetch, json } from './fake-fetch.js';
 
-const SECRET = 'ebl_live_Qm9pbGluZ1BvaW50RWxldmF0aW9uMDAx';
+const SECRET = 'ebk1.Qm9pbGluZ1BvaW50RWxldmF0aW9uMDAx';
 
 function key(id: number, over: Record<string, unknown> = {}) {
   return {
@@ -22,7 +22,7 @@ function key(id: number, over: Record<string, unknown> = {}) {
     accountId: 2,
     accountName: 'Kettle Works',
     name: `key ${id}`,
-    prefix: 'ebl_live_Qm9',
+    prefix: 'ebk1.Qm9',
     scopes: ['steam'],
     rateLimitPerMinute: 60,
     createdAt: '2031-03-01T10:00:00.000Z',

@@ -143,6 +143,33 @@ describe('request detail', () => {
     expect(text).not.toContain('Account 2');
   });
 
+  it('puts request and response side by side from the md breakpoint and stacks them below it', () => {
+    const wrapper = mount(RequestLogDetailPanel, { props: { detail }, global: { plugins: [vuetify] } });
+    for (const body of ['request-body', 'response-body']) {
+      const column = wrapper.get(`[data-test="${body}"]`).element.closest('.v-col');
+      // Vuetify grid: cols=12 is a full row on a phone, md=6 half a row from 960 px (vuetifyjs.com, grid)
+      expect([...(column?.classList ?? [])]).toEqual(
+        expect.arrayContaining(['v-col--cols-12', 'v-col--cols-md-6']),
+      );
+    }
+  });
+
+  it('lists the request’s facts as labelled pairs: account, key, operation, units, times, engine', () => {
+    const wrapper = mount(RequestLogDetailPanel, { props: { detail }, global: { plugins: [vuetify] } });
+    const labels = wrapper.findAll('[data-test="facts"] dt').map((d) => d.text());
+    expect(labels).toEqual([
+      'Account',
+      'Key',
+      'Operation',
+      'Units',
+      'Received',
+      'Completed',
+      'Latency',
+      'Engine',
+    ]);
+    expect(wrapper.get('[data-test="detail-request-id"]').text()).toBe(detail.requestId);
+  });
+
   it('says so when the account keeps no bodies', () => {
     const wrapper = mount(RequestLogDetailPanel, {
       props: {

@@ -110,8 +110,18 @@ describe('admin: account, key, API call, request log, revocation', () => {
     expect(text).toContain('/v1/evaporators/single-effect');
     expect(text).toContain('200');
     await rows.first().click();
-    await page.locator('.v-navigation-drawer--active', { hasText: requestId }).waitFor();
+    // The inspector opens under the table, full width, and names the request it shows.
+    const inspector = page.locator('[data-test="request-inspector"]', { hasText: requestId });
+    await inspector.waitFor();
+    await inspector.locator('[data-test="facts"]').waitFor();
     await screenshot(page, 'request-log');
+    // The same inspector on a phone: facts and bodies stack under the table.
+    await page.setViewportSize({ width: 390, height: 844 });
+    await inspector.scrollIntoViewIfNeeded();
+    await screenshot(page, 'request-log-phone');
+    await page.setViewportSize({ width: 1440, height: 900 });
+    await screenshot(page, 'request-log-desktop');
+    await page.setViewportSize({ width: 1366, height: 860 });
   }, 60_000);
 
   it('revokes the key in the console, after which the API answers 401', async () => {

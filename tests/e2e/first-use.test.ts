@@ -72,9 +72,9 @@ describe('first use of the console', () => {
     const row = page.locator('.v-data-table tbody tr', { hasText: DEMO_ACCOUNT }).first();
     await row.waitFor();
     await row.click();
-    const drawer = page.locator('.v-navigation-drawer--active', { hasText: 'Engine' });
-    await drawer.waitFor();
-    const text = await drawer.innerText();
+    const inspector = page.locator('[data-test="request-inspector"]', { hasText: 'Engine' });
+    await inspector.waitFor();
+    const text = await inspector.innerText();
     expect(text).toContain(DEMO_KEY);
     expect(text).toContain(DEMO_ACCOUNT);
     expect(text).not.toMatch(/\bKey \d+\b/);
@@ -201,9 +201,9 @@ describe('first use of the console', () => {
     const row = page.locator('.v-data-table tbody tr', { hasText: DEMO_ACCOUNT }).first();
     await row.waitFor();
     await row.click();
-    const drawer = page.locator('.v-navigation-drawer--active', { hasText: 'Engine' });
-    await drawer.waitFor();
-    const text = await drawer.innerText();
+    const inspector = page.locator('[data-test="request-inspector"]', { hasText: 'Engine' });
+    await inspector.waitFor();
+    const text = await inspector.innerText();
     expect(text).toContain(DEMO_ACCOUNT);
     expect(text).not.toMatch(/\bAccount \d+\b/);
   }, 60_000);

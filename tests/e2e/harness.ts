@@ -97,7 +97,7 @@ export async function waitFor200(url: string, timeoutMs: number, isDead: () => s
 export async function startServer(extraEnv: Record<string, string> = {}): Promise<RunningServer> {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'ebullio-e2e-'));
   const dbFile = path.join(dir, 'e2e.db');
-  const [port, smtpPort, paymentsPort] = (await freePorts(3)) as [number, number, number];
+  const [port, smtpPort] = (await freePorts(2)) as [number, number];
   // BOOTSTRAP_API_KEY: 32–256 chars of [A-Za-z0-9_.-] (server/config.ts).
   const apiKey = `ebl_live_E2eBootstrap_${crypto.randomBytes(18).toString('base64url')}`;
   const env: Record<string, string> = {
@@ -109,12 +109,13 @@ export async function startServer(extraEnv: Record<string, string> = {}): Promis
     BOOTSTRAP_ADMIN_EMAIL: ADMIN_EMAIL,
     BOOTSTRAP_ADMIN_PASSWORD: ADMIN_PASSWORD,
     // Development stand-ins started by server/main.ts: the SMTP capture server and the fake payment
-    // provider (which pays each finalized invoice and sends the signed webhook), on ports picked
-    // here so parallel test files do not collide.
+    // provider (which pays each finalized invoice and sends the signed webhook). The capture's port
+    // is picked here; the fake takes any free port (port 0, the default) and main.ts points the
+    // payments client at it, so the billing tests also check that wiring.
     MAIL_CAPTURE: '1',
     MAIL_CAPTURE_PORT: String(smtpPort),
     SMTP_URL: '',
-    PAYMENTS_API_BASE: `http://127.0.0.1:${paymentsPort}`,
+    PAYMENTS_API_BASE: 'http://127.0.0.1:0',
     FAKE_PAYMENTS: '1',
     FAKE_PAYMENTS_AUTOPAY: '1',
     // server/accounts/demo-users.ts: a billing user and a developer on the demo account.
@@ -148,6 +149,9 @@ export async function startServer(extraEnv: Record<string, string> = {}): Promis
     if (Date.now() > deadline) throw new Error(`server did not log its URL:\n${output}`);
     await new Promise((r) => setTimeout(r, 50));
   }
+  const fakeAt = /development fake payment provider on http:\/\/127\.0\.0\.1:(\d+)/.exec(output);
+  if (!fakeAt?.[1]) throw new Error(`the fake payment provider did not start:\n${output}`);
+  const paymentsPort = Number(fakeAt[1]);
   return {
     origin,
     port,

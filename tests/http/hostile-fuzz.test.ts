@@ -641,7 +641,7 @@ const keyShaped = fc.record({
 });
 
 function secretPart(token: string): string {
-  return /_([A-Za-z0-9]{32})$/.exec(token)?.[1] ?? token;
+  return /[._]([A-Za-z0-9]{32})$/.exec(token)?.[1] ?? token;
 }
 function keyShapedStrings(): string[] {
   return [
@@ -652,7 +652,9 @@ function keyShapedStrings(): string[] {
     boot.token,
     `Bearer ${h.token}`,
     `prefix ${second.token} suffix`,
-    `ebl_test_${'A'.repeat(12)}_${'b'.repeat(32)}`,
+    `ebl_test_${'A'.repeat(12)}_${'b'.repeat(32)}`, // the first issued format, still accepted
+    `ebk1.${'C'.repeat(12)}.${'d'.repeat(32)}`,
+    `ebk2.${'E'.repeat(12)}.${'f'.repeat(40)}`, // a later version of the format
   ];
 }
 /** Every secret that must never be stored: whole keys and their secret parts. */

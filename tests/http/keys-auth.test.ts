@@ -27,10 +27,10 @@ describe('401 unauthorized', () => {
 
   it('says "unknown", not "wrong secret", when a real public id comes with a wrong secret', async () => {
     const h = makeHarness();
-    const [, , publicId] = h.token.split('_');
+    const [, publicId] = h.token.split('.');
     const res = await request(h.app)
       .get('/v1/usage')
-      .set('Authorization', `Bearer ebl_live_${publicId}_${'Z'.repeat(32)}`);
+      .set('Authorization', `Bearer ebk1.${publicId}.${'Z'.repeat(32)}`);
     expect(res.status).toBe(401);
     expect(res.body.detail).toMatch(/not recognised/);
   });
@@ -59,7 +59,22 @@ describe('key lifecycle', () => {
     expect(Object.values(row)).not.toContain(h.token);
     expect(row.key_hash).toBe(hashKey(h.config.secret, h.token));
     // The generated format carries ≥ 128 random bits: 32 base62 characters ≈ 190 bits (common practice).
-    expect(h.token).toMatch(/^ebl_live_[A-Za-z0-9]{12}_[A-Za-z0-9]{32}$/);
+    expect(h.token).toMatch(/^ebk1\.[A-Za-z0-9]{12}\.[A-Za-z0-9]{32}$/);
+  });
+
+  it('keeps accepting a key of the first issued format (ebl_live_…) stored before ebk1', async () => {
+    const h = makeHarness();
+    // Invented key of the earlier format (not real): stored, as every key is, as a hash of the whole.
+    const legacy = `ebl_live_FirstFormat1_${'Q'.repeat(32)}`;
+    createKey(h.db, h.config.secret, {
+      accountId: h.accountId,
+      name: 'first format',
+      scopes: ['usage'],
+      now: h.clock.now,
+      token: legacy,
+    });
+    const res = await request(h.app).get('/v1/usage').set('Authorization', `Bearer ${legacy}`);
+    expect(res.status).toBe(200);
   });
 
   it('refuses a revoked key on the very next request', async () => {

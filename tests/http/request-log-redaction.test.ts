@@ -159,6 +159,39 @@ describe('the key-shape pattern', () => {
     }
   });
 
+  it('matches both issued formats whole, the current ebk1. and the first ebl_<kind>_, inside text', () => {
+    // Invented keys (not real): the current format, a later version, and the first format.
+    const keys = [
+      `ebk1.${'P'.repeat(12)}.${'s'.repeat(32)}`,
+      `ebk2.${'P'.repeat(12)}.${'s'.repeat(40)}`,
+      `ebl_live_${'P'.repeat(12)}_${'s'.repeat(32)}`,
+      `ebl_test_${'P'.repeat(12)}_${'s'.repeat(32)}`,
+    ];
+    for (const key of keys) {
+      expect(`see ${key}, then`.replace(KEY_SHAPED_PATTERN, 'X')).toBe('see X, then');
+    }
+    expect(secretPartOf(keys[0]!)).toBe('s'.repeat(32));
+    expect(secretPartOf(keys[2]!)).toBe('s'.repeat(32));
+  });
+
+  it('keeps no key of the first issued format that its holder sends in the path and body', async () => {
+    const h = makeHarness({ retain: true });
+    const legacy = `ebl_live_FirstFormat1_${'Rq7'.repeat(10)}Zx`; // invented, not real
+    createKey(h.db, h.config.secret, {
+      accountId: h.accountId,
+      name: 'first format',
+      scopes: ['steam', 'liquors'],
+      now: h.clock.now,
+      token: legacy,
+    });
+    await request(h.app).get(`/v1/liquors/${legacy}`).set('Authorization', `Bearer ${legacy}`);
+    await request(h.app)
+      .post('/v1/steam/state')
+      .set('Authorization', `Bearer ${legacy}`)
+      .send({ pressure: `${secretPartOf(legacy)!} kPa`, temperature: 20, [legacy]: 1 });
+    expectNoSecret(h, secretPartOf(legacy)!);
+  });
+
   it('logs a body it cannot serialise as a note instead of throwing', () => {
     const cyclic: Record<string, unknown> = { pressure: '1 bar' };
     cyclic.self = { again: cyclic };

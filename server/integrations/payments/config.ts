@@ -3,9 +3,13 @@
  *
  * | variable | default (development, test) | meaning |
  * |---|---|---|
- * | PAYMENTS_API_KEY | sk_test_ebullio_local_fake | secret API key sent as `Authorization: Bearer …` |
- * | PAYMENTS_API_BASE | http://127.0.0.1:12111 (the local fake) | base URL of the provider's HTTP API; empty string = the provider's own hosted API |
- * | PAYMENTS_WEBHOOK_SECRET | whsec_ebullio_local_fake | secret the provider signs webhook events with |
+ * | PAYMENTS_API_KEY | ebpay_dev_key_local | secret API key sent as `Authorization: Bearer …` |
+ * | PAYMENTS_API_BASE | http://127.0.0.1:0 (the local fake, on any free port) | base URL of the provider's HTTP API; empty string = the provider's own hosted API |
+ * | PAYMENTS_WEBHOOK_SECRET | ebpay_dev_signing_local | secret the provider signs webhook events with |
+ *
+ * Port 0 in a loopback PAYMENTS_API_BASE means "any free port": main.ts starts the local fake there
+ * and points the payments client at the port it was given (see {@link withBoundPort}), so two
+ * servers on one machine never contend for a fixed port. A base naming a port keeps it.
  *
  * With NODE_ENV=production there are no defaults: without PAYMENTS_API_KEY and
  * PAYMENTS_WEBHOOK_SECRET, finalizing statements and the webhook are disabled (a 503 problem says so).
@@ -19,9 +23,10 @@ export interface PaymentsConfig {
   webhookSecret: string;
 }
 
-export const FAKE_PROVIDER_DEFAULT_PORT = 12111;
-export const DEV_API_KEY = 'sk_test_ebullio_local_fake';
-export const DEV_WEBHOOK_SECRET = 'whsec_ebullio_local_fake';
+/** 0: the local fake takes any free port, unless PAYMENTS_API_BASE names one. */
+export const FAKE_PROVIDER_DEFAULT_PORT = 0;
+export const DEV_API_KEY = 'ebpay_dev_key_local';
+export const DEV_WEBHOOK_SECRET = 'ebpay_dev_signing_local';
 
 export class PaymentsConfigError extends Error {
   override readonly name = 'PaymentsConfigError';
@@ -52,6 +57,14 @@ export function loadPaymentsConfig(env: NodeJS.ProcessEnv = process.env): Paymen
     }
   }
   return { enabled: apiKey !== '' && webhookSecret !== '', apiKey, apiBase, webhookSecret };
+}
+
+/** The same configuration with its API base on `port`: where the local fake was actually bound. */
+export function withBoundPort(config: PaymentsConfig, port: number): PaymentsConfig {
+  if (!config.apiBase) return config;
+  const apiBase = new URL(config.apiBase.href);
+  apiBase.port = String(port);
+  return { ...config, apiBase };
 }
 
 /** The SDK's host/port/protocol options for a base URL (undefined → the SDK's defaults). */

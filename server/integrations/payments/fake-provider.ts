@@ -19,7 +19,7 @@
  *
  * State lives in memory and is exposed on the returned handle for tests.
  *
- *   npx tsx -e "import('./server/integrations/payments/fake-provider.ts').then(m => m.startFakePaymentProvider({ port: 12111, webhookUrl: 'http://127.0.0.1:8080/webhooks/payments', webhookSecret: 'whsec_ebullio_local_fake', apiKey: 'sk_test_ebullio_local_fake' }))"
+ *   npx tsx -e "import('./server/integrations/payments/fake-provider.ts').then(m => m.startFakePaymentProvider({ port: 0, webhookUrl: 'http://127.0.0.1:8080/webhooks/payments', webhookSecret: 'ebpay_dev_signing_local', apiKey: 'ebpay_dev_key_local' }).then(f => console.log(f.url)))"
  */
 import crypto from 'node:crypto';
 import type { AddressInfo } from 'node:net';
@@ -137,7 +137,7 @@ class FakeApiError extends Error {
 }
 
 function randomId(prefix: string): string {
-  return `${prefix}_${crypto.randomBytes(12).toString('base64url').replace(/[-_]/g, 'x')}`;
+  return `${prefix}-${crypto.randomBytes(12).toString('base64url').replace(/[-_]/g, 'x')}`;
 }
 
 function str(body: Record<string, unknown>, name: string): string | undefined {
@@ -209,7 +209,7 @@ export async function startFakePaymentProvider(options: FakeProviderOptions): Pr
 
   async function deliver(type: string, object: unknown): Promise<FakeDelivery> {
     const event = {
-      id: randomId('evt'),
+      id: randomId('ev'),
       object: 'event',
       api_version: Stripe.API_VERSION,
       created: now(),
@@ -328,7 +328,7 @@ export async function startFakePaymentProvider(options: FakeProviderOptions): Pr
   v1.post('/customers', (req, res) => {
     const body = req.body as Record<string, unknown>;
     const customer: FakeCustomer = {
-      id: randomId('cus'),
+      id: randomId('cust'),
       object: 'customer',
       email: str(body, 'email') ?? null,
       name: str(body, 'name') ?? null,
@@ -365,7 +365,7 @@ export async function startFakePaymentProvider(options: FakeProviderOptions): Pr
         'Missing required param: days_until_due (needed with send_invoice).',
         'days_until_due',
       );
-    const id = randomId('in');
+    const id = randomId('inv');
     const invoice: FakeInvoice = {
       id,
       object: 'invoice',
@@ -436,7 +436,7 @@ export async function startFakePaymentProvider(options: FakeProviderOptions): Pr
         );
     }
     const item: FakeInvoiceItem = {
-      id: randomId('ii'),
+      id: randomId('line'),
       object: 'invoiceitem',
       customer: customerId,
       invoice: invoiceId ?? null,
