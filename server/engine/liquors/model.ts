@@ -30,6 +30,9 @@ export interface ValidityBox {
 
 export type LiquorKind = 'built-in' | 'custom';
 
+/** The transport properties a model may give (each optional). */
+export type TransportProperty = 'viscosity' | 'thermalConductivity' | 'surfaceTension';
+
 export interface LiquorModel {
   /** kebab-case, stable (e.g. "sodium-hydroxide"). */
   id: string;
@@ -55,6 +58,19 @@ export interface LiquorModel {
   heatCapacity?(massFraction: number, temperature: number, warnings?: WarningSink): number;
   /** Density, kg/m³. */
   density?(massFraction: number, temperature: number, warnings?: WarningSink): number;
+  /**
+   * Transport properties for film coefficients (heat-transfer estimate), where a published source
+   * gives them. Each checks its own source's box (`transportValidity`) with the one warn-or-refuse
+   * rule of validity.ts, so an extrapolated property is a warning, never a silent value.
+   */
+  /** Dynamic viscosity, Pa·s. */
+  viscosity?(massFraction: number, temperature: number, warnings?: WarningSink): number;
+  /** Thermal conductivity, W/(m·K). */
+  thermalConductivity?(massFraction: number, temperature: number, warnings?: WarningSink): number;
+  /** Surface tension against its vapour, N/m (film stability). */
+  surfaceTension?(massFraction: number, temperature: number, warnings?: WarningSink): number;
+  /** The box of each transport property's source, where it differs from `validity`. */
+  transportValidity?: Partial<Record<TransportProperty | 'density', ValidityBox>>;
   /**
    * Highest mass fraction before a solid phase appears at T (solubility or crystallisation
    * limit), when the source gives one; used to warn that a product is near it.
