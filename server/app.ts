@@ -12,6 +12,8 @@ import { consoleStaticModule } from './console/static.js';
 import type { AppDeps, AppModule } from './deps.js';
 import { createHttpApp } from './http/app.js';
 import { openApiModule } from './http/openapi.js';
+import { engineSettings } from './config.js';
+import { createEnginePool } from './workers/engine-pool.js';
 
 export type { AppDeps, AppModule } from './deps.js';
 
@@ -30,5 +32,15 @@ export const appModules: readonly AppModule[] = [
  */
 export function createApp(deps: AppDeps): express.Express {
   deps.onQuotaThresholdCrossed ??= (accountId) => scheduleQuotaCheck(deps, accountId);
+  // Threads start at the first heavy task: an app that never runs one starts none.
+  deps.enginePool ??= createEnginePool(engineSettings(deps.config));
   return createHttpApp(deps, appModules);
+}
+
+/**
+ * Ends what the app owns besides the database, after the HTTP drain (main.ts's shutdown, tests):
+ * the calculation pool's threads. A request still waiting for the pool then fails with 500.
+ */
+export async function closeApp(deps: AppDeps): Promise<void> {
+  await deps.enginePool?.destroy();
 }

@@ -6,6 +6,7 @@
 import type express from 'express';
 import type { Config } from './config.js';
 import type { Db, Sqlite } from './db/client.js';
+import type { EnginePool } from './workers/engine-pool.js';
 
 export interface AppDeps {
   db: Db;
@@ -23,9 +24,19 @@ export interface AppDeps {
   onQuotaThresholdCrossed?: (accountId: number) => void;
   /** Set to draining on SIGTERM (main.ts): /readyz then answers 503. Absent in most tests. */
   lifecycle?: Lifecycle;
+  /**
+   * The worker threads of heavy calculations (server/workers/engine-pool.ts). `createApp` makes
+   * one from the config when absent (threads started at the first heavy task); main.ts gives one
+   * whose threads start at once. Destroyed by `closeApp` after the HTTP drain.
+   */
+  enginePool?: EnginePool;
 }
 
-/** Shared between main.ts, the app (/readyz) and the HTTP server: set once on SIGTERM. */
+/**
+ * Shared between main.ts, the app (/readyz) and the HTTP server: `draining` is set once on
+ * SIGTERM; after the HTTP drain main.ts calls `closeApp` (server/app.ts), which destroys what the
+ * app owns beyond the database (the calculation pool), and then closes the database.
+ */
 export interface Lifecycle {
   draining: boolean;
 }

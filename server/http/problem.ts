@@ -159,6 +159,18 @@ export const problemCatalogue = {
     description:
       'The server is too busy to take this request now (for example, too many password checks are queued). Nothing was changed; retry after the Retry-After header.',
   },
+  'calculation-timeout': {
+    status: 503,
+    title: 'Calculation timed out',
+    description:
+      'The calculation ran past the time limit of the calculation pool and was stopped. Nothing was charged. Retrying the same input will likely take as long; check it, or split the batch.',
+  },
+  'calculation-failed': {
+    status: 500,
+    title: 'Calculation failed',
+    description:
+      'The worker thread that ran the calculation failed and was replaced. Nothing was charged; retrying is safe. Quote the request id when reporting it.',
+  },
   internal: {
     status: 500,
     title: 'Internal error',

@@ -3,14 +3,16 @@
  * an inline definition in display units) into an engine LiquorModel, with a bounded cache of
  * compiled stored liquors. The /v1 operations and the console use it alike.
  */
+import { randomUUID } from 'node:crypto';
 import type { LiquorRef } from '../../shared/contracts/index.js';
 import type { Db } from '../db/client.js';
+import type { LiquorDescription } from '../engine/liquors/description.js';
 import type { LiquorModel } from '../engine/liquors/model.js';
 import { findBuiltInLiquor } from '../engine/liquors/registry.js';
 import type { EngineWarning } from '../engine/types.js';
 import { problem } from '../http/problem.js';
 import type { ModelRef } from '../http/output.js';
-import { buildCustomLiquor } from './definition.js';
+import { buildCustomLiquor, toEngineDefinition } from './definition.js';
 import { findStoredLiquor } from './repository.js';
 
 export interface ResolvedLiquor {
@@ -19,6 +21,8 @@ export interface ResolvedLiquor {
   models: ModelRef[];
   /** Warnings about the definition itself (custom liquors). */
   definitionWarnings: EngineWarning[];
+  /** The model as plain data, for a calculation in a worker thread, which rebuilds it. */
+  description: LiquorDescription;
 }
 
 function modelRefs(model: LiquorModel): ModelRef[] {
@@ -31,6 +35,7 @@ function modelRefs(model: LiquorModel): ModelRef[] {
  */
 const compiledByDb = new WeakMap<Db, Map<string, ResolvedLiquor>>();
 const COMPILED_STORED_MAX = 256;
+const dbTokens = new WeakMap<Db, string>();
 
 /**
  * The liquor a request names: a built-in id, an id stored by this account, or an inline
@@ -39,7 +44,14 @@ const COMPILED_STORED_MAX = 256;
 export function resolveLiquor(ref: LiquorRef, db: Db, accountId: number, field: string): ResolvedLiquor {
   if (typeof ref === 'string') {
     const builtIn = findBuiltInLiquor(ref);
-    if (builtIn) return { model: builtIn, models: modelRefs(builtIn), definitionWarnings: [] };
+    if (builtIn) {
+      return {
+        model: builtIn,
+        models: modelRefs(builtIn),
+        definitionWarnings: [],
+        description: { builtIn: builtIn.id },
+      };
+    }
     const stored = findStoredLiquor(db, accountId, ref);
     if (!stored) {
       throw problem(
@@ -55,13 +67,26 @@ export function resolveLiquor(ref: LiquorRef, db: Db, accountId: number, field: 
     // of the key too: a liquor deleted and stored again starts at version 1 with a new row.
     const key = `${accountId}/${ref}/${stored.version}/${stored.rowId}`;
     let compiledStored = compiledByDb.get(db);
-    if (!compiledStored) compiledByDb.set(db, (compiledStored = new Map()));
+    if (!compiledStored) {
+      compiledByDb.set(db, (compiledStored = new Map()));
+      dbTokens.set(db, randomUUID());
+    }
     const cached = compiledStored.get(key);
     if (cached) return cached;
     const model = buildCustomLiquor(stored.definition, field, ref);
     // Provenance names the stored liquor's version, so a logged result traces to its definition.
     const models = modelRefs(model).map((m) => ({ ...m, version: stored.version }));
-    const resolved = { model, models, definitionWarnings: model.definitionWarnings };
+    const resolved = {
+      model,
+      models,
+      definitionWarnings: model.definitionWarnings,
+      // A worker keeps the model under this key: the database's token keeps two databases in one
+      // process (tests) from sharing a key.
+      description: {
+        custom: toEngineDefinition(stored.definition, ref),
+        key: `stored:${dbTokens.get(db)}/${key}`,
+      },
+    };
     if (compiledStored.size >= COMPILED_STORED_MAX) {
       compiledStored.delete(compiledStored.keys().next().value as string);
     }
@@ -69,5 +94,10 @@ export function resolveLiquor(ref: LiquorRef, db: Db, accountId: number, field: 
     return resolved;
   }
   const model = buildCustomLiquor(ref, field);
-  return { model, models: modelRefs(model), definitionWarnings: model.definitionWarnings };
+  return {
+    model,
+    models: modelRefs(model),
+    definitionWarnings: model.definitionWarnings,
+    description: { custom: toEngineDefinition(ref) },
+  };
 }

@@ -20,7 +20,16 @@ import type { z } from 'zod';
 import type { CatalogueEntry } from '../../../shared/operations.js';
 import type { Db, Sqlite } from '../../db/client.js';
 import type { AppDeps } from '../../deps.js';
+import {
+  reviveError,
+  engineTasks,
+  type EngineTaskName,
+  type TaskOutcome,
+} from '../../workers/engine-tasks.js';
+import { EngineCallError, type EnginePool } from '../../workers/engine-pool.js';
+import { calculate, type FieldMap } from '../engine-errors.js';
 import { chargeUnits, guardOperation } from '../middleware/operation.js';
+import { problem, type ProblemError } from '../problem.js';
 import { siPlan, toSI, type SI, type SiPlan } from '../quantities.js';
 import { sendCalculation } from '../send.js';
 import { validate } from '../validate.js';
@@ -32,6 +41,8 @@ export interface OperationContext {
   sqlite: Sqlite;
   engineVersion: string;
   clock: () => Date;
+  /** The worker threads of heavy calculations (absent: everything inline). */
+  enginePool?: EnginePool;
 }
 
 type Out<S> = S extends z.ZodType ? z.output<S> : undefined;
@@ -99,6 +110,16 @@ export interface OperationDeclaration<
   loadAfterBody?: boolean;
   /** The calculation: input in SI → the response body. */
   run?: (input: OperationInput<P, Q, B, L>, ctx: OperationContext) => R;
+  /**
+   * A heavy calculation, in three steps so that the middle one may run in a worker thread
+   * (server/workers/): `input` (main thread) turns the request in SI into the task's plain
+   * input, with the liquor as a description; the task `task` (server/workers/engine-tasks.ts)
+   * runs the engine, in the pool or inline; `output` (main thread) formats the engine's plain
+   * result. Replaces `run`. A batch always sends its cases to the pool; a single call goes there
+   * when `offload` says so (past the crossover measured by tests/bench/pool.ts), else it runs
+   * inline, which is faster for light calls.
+   */
+  engine?: EnginePart<OperationInput<P, Q, B, L>, R>;
   /** How a `run` result is sent: 'calculation' (the non-finite guard) or Express's res.json. */
   send?: 'calculation' | 'json';
   /** For an operation that answers itself (content negotiation, uploads): replaces `run`. */
@@ -115,6 +136,19 @@ export interface OperationDeclaration<
     /** Units of one case (default: the catalogue's base units). */
     units?: (c: Record<string, unknown>) => number;
   };
+}
+
+export interface EnginePart<I, R> {
+  /** The engine task: the operation's id in server/workers/engine-tasks.ts. */
+  task: EngineTaskName;
+  /** The request in SI → the task's input: plain data only (may throw problems). */
+  input: (input: I, ctx: OperationContext) => unknown;
+  /** Engine field names → request paths, for the errors of `input` and of the task. */
+  fields: FieldMap;
+  /** Whether a single call goes to the pool (default: yes). */
+  offload?: (taskInput: never) => boolean;
+  /** The engine's result (plain data, the task's result type) → the response body. */
+  output: (result: never, input: I, ctx: OperationContext) => R;
 }
 
 /** Declares an operation (typed; nothing happens until the router and the document read it). */
@@ -163,17 +197,31 @@ export function compileOperation(decl: AnyOperation): CompiledOperation {
 }
 
 /**
- * Parses a request for `op` and runs it: params are validated, then (by default) `load` finds
- * what the path names, then query and body are validated (`load` runs here instead with
- * `loadAfterBody`), then every quantity is converted to SI, then `run`. A batch case brings what
- * `load` would find in `caseLoad`.
+ * A request parsed and converted, ready to answer: `done` holds the answer of a `run`
+ * operation; an `engine` operation holds its task, to run in the pool or inline, and `finish`,
+ * which formats the task's result (`get` returns it or throws the engine's error).
  */
-export function runOperation(
+export type Prepared =
+  | { done: unknown }
+  | {
+      task: EngineTaskName;
+      taskInput: unknown;
+      offload: boolean;
+      finish: (get: () => unknown) => unknown;
+    };
+
+/**
+ * Parses a request for `op` and prepares it: params are validated, then (by default) `load`
+ * finds what the path names, then query and body are validated (`load` runs here instead with
+ * `loadAfterBody`), then every quantity is converted to SI, then `run` (or the `engine` part's
+ * `input`). A batch case brings what `load` would find in `caseLoad`.
+ */
+export function prepareOperation(
   op: CompiledOperation,
   raw: { params?: unknown; query?: unknown; body?: unknown },
   ctx: OperationContext,
   caseLoad?: { value: unknown },
-): unknown {
+): Prepared {
   const decl = op.decl;
   const load = caseLoad ? undefined : decl.load;
   // A batch case has no path: it brings what `load` would have found from the path's params.
@@ -184,15 +232,69 @@ export function runOperation(
   const body: unknown = op.body ? validate(op.body.schema, raw.body) : undefined;
   if (load && decl.loadAfterBody) loaded = load({ params, query, body }, ctx);
   const context = { liquor: liquorOf(loaded, body) };
-  return decl.run!(
-    {
-      params: op.params && !caseLoad ? toSI(op.params.plan, params, context) : undefined,
-      query: op.query ? toSI(op.query.plan, query, context) : undefined,
-      body: op.body ? toSI(op.body.plan, body, context) : undefined,
-      loaded,
-    },
-    ctx,
-  );
+  const input = {
+    params: op.params && !caseLoad ? toSI(op.params.plan, params, context) : undefined,
+    query: op.query ? toSI(op.query.plan, query, context) : undefined,
+    body: op.body ? toSI(op.body.plan, body, context) : undefined,
+    loaded,
+  };
+  const engine = decl.engine;
+  if (!engine) return { done: decl.run!(input, ctx) };
+  const taskInput = calculate(engine.fields, () => engine.input(input, ctx));
+  return {
+    task: engine.task,
+    taskInput,
+    offload: (engine.offload as ((t: unknown) => boolean) | undefined)?.(taskInput) ?? true,
+    finish: (get) =>
+      (engine.output as (result: unknown, i: typeof input, c: OperationContext) => unknown)(
+        calculate(engine.fields, get),
+        input,
+        ctx,
+      ),
+  };
+}
+
+/** Runs an engine task here, its errors thrown as the engine threw them. */
+export function runTaskInline(task: EngineTaskName, taskInput: unknown): unknown {
+  return (engineTasks[task] as (input: unknown) => unknown)(taskInput);
+}
+
+/** A pooled task's outcome: its result, or its engine error rebuilt and thrown. */
+export function outcomeValue(outcome: TaskOutcome): unknown {
+  if (!outcome.ok) throw reviveError(outcome.error);
+  return outcome.value;
+}
+
+/** What the pool could not answer, as the request's problem (503 timeout, 500 failure), logged. */
+export function poolProblem(err: unknown, requestId: unknown): ProblemError {
+  if (!(err instanceof EngineCallError)) throw err;
+  console.error(`[engine-pool] request ${String(requestId)}: ${err.message}`);
+  return err.kind === 'timeout'
+    ? problem(
+        'calculation-timeout',
+        `${err.message} It was stopped and nothing was charged; quote request id ${String(requestId)} if it recurs.`,
+      )
+    : problem(
+        'calculation-failed',
+        `${err.message} Nothing was charged; quote request id ${String(requestId)} if it recurs.`,
+      );
+}
+
+/** Whether tasks go to worker threads (a pool with threads, not destroyed). */
+export function pooled(pool: EnginePool | undefined): pool is EnginePool {
+  return pool !== undefined && pool.workers > 0;
+}
+
+/** Parses and runs a request for `op` on this thread (the engine inline). */
+export function runOperation(
+  op: CompiledOperation,
+  raw: { params?: unknown; query?: unknown; body?: unknown },
+  ctx: OperationContext,
+  caseLoad?: { value: unknown },
+): unknown {
+  const prepared = prepareOperation(op, raw, ctx, caseLoad);
+  if ('done' in prepared) return prepared.done;
+  return prepared.finish(() => runTaskInline(prepared.task, prepared.taskInput));
 }
 
 /**
@@ -214,6 +316,7 @@ function contextOf(res: Response, deps: AppDeps): OperationContext {
     sqlite: deps.sqlite,
     engineVersion: deps.engineVersion,
     clock: deps.clock,
+    ...(deps.enginePool ? { enginePool: deps.enginePool } : {}),
   };
 }
 
@@ -224,12 +327,23 @@ export function mountOperation(router: Router, decl: AnyOperation, deps: AppDeps
   const extraUnits = decl.extraUnits;
   const handler: RequestHandler = decl.handle
     ? (req, res) => decl.handle!(req, res, contextOf(res, deps))
-    : (req, res) => {
+    : async (req, res) => {
         if (extraUnits) {
           const extra = extraUnits(req.body);
           if (extra) chargeUnits(res, extra);
         }
-        const result = runOperation(op, req, contextOf(res, deps));
+        const prepared = prepareOperation(op, req, contextOf(res, deps));
+        let result: unknown;
+        if ('done' in prepared) result = prepared.done;
+        else if (prepared.offload && pooled(deps.enginePool)) {
+          let outcome: TaskOutcome;
+          try {
+            outcome = await deps.enginePool.run(prepared.task, prepared.taskInput);
+          } catch (err) {
+            throw poolProblem(err, res.locals.requestId);
+          }
+          result = prepared.finish(() => outcomeValue(outcome));
+        } else result = prepared.finish(() => runTaskInline(prepared.task, prepared.taskInput));
         if (status === 204) res.status(204).end();
         else if (decl.send === 'json') res.status(status).json(result);
         else sendCalculation(res, result, status);

@@ -27,13 +27,19 @@ import { problem, problemTypeUri, ProblemError } from '../../problem.js';
 import { findNonFinite } from '../../send.js';
 import { singleCsvUpload } from '../../upload.js';
 import { validate } from '../../validate.js';
+import type { TaskOutcome } from '../../../workers/engine-tasks.js';
 import {
   compileOperation,
   declareOperation,
-  runOperation,
+  outcomeValue,
+  poolProblem,
+  pooled,
+  prepareOperation,
+  runTaskInline,
   type AnyOperation,
   type CompiledOperation,
   type OperationContext,
+  type Prepared,
 } from '../operation.js';
 
 /** Largest array index a CSV column may name: no array of a case has more than 50 entries. */
@@ -177,13 +183,13 @@ function validateCsvBatch(raw: unknown, lines: readonly number[]) {
   }
 }
 
-/** One case as its operation's own request (paths relative to the case). */
-function runCase(
+/** One case as its operation's own request (paths relative to the case), parsed and prepared. */
+function prepareCase(
   op: CompiledOperation,
   c: Record<string, unknown>,
   shared: { liquor?: unknown },
   ctx: OperationContext,
-): unknown {
+): Prepared {
   const batch = op.decl.batch;
   let input = c;
   let caseLoad: { value: unknown } | undefined;
@@ -192,8 +198,12 @@ function runCase(
     input = { ...c };
     for (const key of batch.consumes ?? []) delete input[key];
   }
-  return runOperation(op, op.body ? { body: input } : { query: input }, ctx, caseLoad);
+  return prepareOperation(op, op.body ? { body: input } : { query: input }, ctx, caseLoad);
 }
+
+/** Cases parsed (or formatted) between two turns of the event loop, so /healthz and light calls are answered in between. */
+const CASES_PER_TURN = 64;
+const nextTurn = () => new Promise<void>((resolve) => setImmediate(resolve));
 
 // Text fields can hold an inline liquor definition, so they keep multer's 1 MB default.
 const readUpload = singleCsvUpload();
@@ -283,12 +293,51 @@ export function batchOperation(operations: readonly AnyOperation[]) {
       chargeUnits(res, reserved);
       const shared = { liquor: batch.liquor };
 
-      const results: BatchResponse['results'] = batch.cases.map((c, index) => {
+      // 1. Parse every case here (validation, liquor, SI), a slice per turn of the event loop.
+      const prepared: ({ ok: true; value: Prepared } | { ok: false; error: unknown })[] = [];
+      for (const [index, c] of batch.cases.entries()) {
+        if (index > 0 && index % CASES_PER_TURN === 0) await nextTurn();
+        try {
+          prepared.push({ ok: true, value: prepareCase(op, c, shared, ctx) });
+        } catch (error) {
+          prepared.push({ ok: false, error });
+        }
+      }
+      // 2. The engine: every task of the batch in the pool's threads (inline without a pool).
+      const pool = ctx.enginePool;
+      const outcomes = new Map<number, TaskOutcome>();
+      const tasks = prepared.flatMap((p, index) =>
+        p.ok && !('done' in p.value) ? [{ index, p: p.value }] : [],
+      );
+      if (tasks.length > 0 && pooled(pool)) {
+        try {
+          const answers = await pool.runMany(
+            tasks[0]!.p.task,
+            tasks.map((t) => t.p.taskInput),
+          );
+          tasks.forEach((t, i) => outcomes.set(t.index, answers[i]!));
+        } catch (err) {
+          // Hung or crashed: no case is answered, so none is charged.
+          releaseUnits(res, reserved);
+          throw poolProblem(err, res.locals.requestId);
+        }
+      }
+      const settle = (index: number): unknown => {
+        const p = prepared[index]!;
+        if (!p.ok) throw p.error;
+        const v = p.value;
+        if ('done' in v) return v.done;
+        const outcome = outcomes.get(index);
+        return v.finish(outcome ? () => outcomeValue(outcome) : () => runTaskInline(v.task, v.taskInput));
+      };
+
+      // 3. Format each case here, a slice per turn.
+      const formatCase = (index: number): BatchResponse['results'][number] => {
         const line = lines?.[index];
         // A CSV case's fields are named by line and column, as the user sees them in the file.
         const base = line === undefined ? `cases[${index}].` : `${csvPlace(line, '')}, column `;
         try {
-          const result = runCase(op, c, shared, ctx);
+          const result = settle(index);
           rebaseWarnings(result, base, requestKeys);
           const bad = findNonFinite(result);
           if (bad) throw problem('no-solution', `The calculation produced a non-finite number (${bad}).`);
@@ -319,7 +368,12 @@ export function batchOperation(operations: readonly AnyOperation[]) {
             },
           };
         }
-      });
+      };
+      const results: BatchResponse['results'] = [];
+      for (const [index] of batch.cases.entries()) {
+        if (index > 0 && index % CASES_PER_TURN === 0) await nextTurn();
+        results.push(formatCase(index));
+      }
       const failed = results.filter((r) => r.status === 'error').length;
       // A refused case costs nothing: give back what the failed cases reserved.
       const refunded = results.reduce((sum, r, i) => sum + (r.status === 'error' ? costs[i]! : 0), 0);

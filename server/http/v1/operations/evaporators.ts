@@ -14,14 +14,11 @@ import {
 } from '../../../../shared/contracts/index.js';
 import { operationCatalogue } from '../../../../shared/operations.js';
 import type { SteamSupplySpec } from '../../../engine/evaporators/common.js';
-import { designMultipleEffect, rateMultipleEffect } from '../../../engine/evaporators/multiple-effect.js';
-import {
-  designSingleEffect,
-  rateSingleEffect,
-  type StreamState,
-} from '../../../engine/evaporators/single-effect.js';
+import type { MultipleEffectResult } from '../../../engine/evaporators/multiple-effect.js';
+import type { SingleEffectResult, StreamState } from '../../../engine/evaporators/single-effect.js';
+import type { MultipleEffectTask, SingleEffectTask } from '../../../workers/engine-tasks.js';
 import { resolveLiquor } from '../../../liquors/index.js';
-import { calculate, warningsOut, type FieldMap } from '../../engine-errors.js';
+import { warningsOut, type FieldMap } from '../../engine-errors.js';
 import { display, provenance, r } from '../../output.js';
 import { problem } from '../../problem.js';
 import { declareOperation, type OperationContext } from '../operation.js';
@@ -99,8 +96,12 @@ export const singleEffect = declareOperation({
   response: { description: 'The evaporator', schema: SingleEffectResponseSchema },
   loadAfterBody: true,
   load: bodyLiquor,
-  run: ({ body: b, loaded: liquor }, ctx): SingleEffectResponse => {
-    const result = calculate(SINGLE_EFFECT_FIELDS, () => {
+  engine: {
+    task: 'evaporators.single-effect',
+    fields: SINGLE_EFFECT_FIELDS,
+    // Light: one effect answers faster here than through a worker (tests/bench/pool.ts).
+    offload: () => false,
+    input: ({ body: b, loaded: liquor }): SingleEffectTask => {
       // The contract requires feed.massFlow in design and allows its absence only in rating with
       // product.massFraction, where the engine finds it; so it is never read and then dropped.
       const { massFlow: feedFlow, enthalpy: feedEnthalpy } = b.feed;
@@ -118,7 +119,7 @@ export const singleEffect = declareOperation({
         ...(liquidHeight !== undefined ? { liquidHeight } : {}),
       };
       const common = {
-        liquor: liquor.model,
+        liquor: liquor.description,
         steam: steamSpec(b.steam),
         ...(b.heatLossFraction !== undefined ? { heatLossFraction: b.heatLossFraction } : {}),
       };
@@ -129,16 +130,19 @@ export const singleEffect = declareOperation({
             errors: [{ field: 'feed.massFlow', message: 'is required in design mode (no body.area)' }],
           });
         }
-        return designSingleEffect({
-          ...common,
-          feed: { ...feed, massFlow: feedFlow },
-          body: bodySpec,
-          product: {
-            ...(productFraction !== undefined ? { massFraction: productFraction } : {}),
-            ...(productFlow !== undefined ? { massFlow: productFlow } : {}),
-            ...(productEnthalpy !== undefined ? { enthalpy: productEnthalpy } : {}),
+        return {
+          mode: 'design',
+          spec: {
+            ...common,
+            feed: { ...feed, massFlow: feedFlow },
+            body: bodySpec,
+            product: {
+              ...(productFraction !== undefined ? { massFraction: productFraction } : {}),
+              ...(productFlow !== undefined ? { massFlow: productFlow } : {}),
+              ...(productEnthalpy !== undefined ? { enthalpy: productEnthalpy } : {}),
+            },
           },
-        });
+        };
       }
       if (productFlow !== undefined) {
         throw problem(
@@ -147,54 +151,65 @@ export const singleEffect = declareOperation({
           { errors: [{ field: 'product.massFlow', message: 'is not used in rating mode; omit it' }] },
         );
       }
-      return rateSingleEffect({
-        ...common,
-        body: { ...bodySpec, area },
-        ...(productFraction !== undefined
-          ? {
-              feed: {
-                massFraction: feed.massFraction,
-                temperature: feed.temperature,
-                ...(feedEnthalpy !== undefined ? { enthalpy: feedEnthalpy } : {}),
-              },
-              product: {
-                massFraction: productFraction,
-                ...(productEnthalpy !== undefined ? { enthalpy: productEnthalpy } : {}),
-              },
-            }
-          : { feed }),
-      });
-    });
-    return {
-      mode: result.mode,
-      feed: stream(result.feed),
-      product: stream(result.product),
-      vapor: {
-        massFlow: r(result.vapor.massFlow),
-        pressure: display(result.vapor.pressure, 'pressure'),
-        temperature: display(result.vapor.temperature, 'temperature'),
-        enthalpy: display(result.vapor.enthalpy, 'specificEnthalpy'),
-      },
-      steam: {
-        massFlow: r(result.steam.massFlow),
-        pressure: display(result.steam.pressure, 'pressure'),
-        temperature: display(result.steam.temperature, 'temperature'),
-        latentHeat: display(result.steam.enthalpyIn - result.steam.enthalpyOut, 'specificEnthalpy'),
-      },
-      boilingPointRise: r(result.boilingPointRise),
-      duty: display(result.duty, 'power'),
-      temperatureDifference: r(result.temperatureDifference),
-      area: r(result.area),
-      steamEconomy: r(result.steamEconomy),
-      specificSteamConsumption: r(result.specificSteamConsumption),
-      waterBoilingPoint: display(result.waterBoilingPoint, 'temperature'),
-      heatLoss: display(result.heatLoss, 'power'),
-      warnings: warningsOut([...liquor.definitionWarnings, ...result.warnings], SINGLE_EFFECT_FIELDS),
-      cautions: result.cautions,
-      provenance: provenance(ctx.engineVersion, [IF97_MODEL, ...liquor.models]),
-    };
+      return {
+        mode: 'rating',
+        spec: {
+          ...common,
+          body: { ...bodySpec, area },
+          ...(productFraction !== undefined
+            ? {
+                feed: {
+                  massFraction: feed.massFraction,
+                  temperature: feed.temperature,
+                  ...(feedEnthalpy !== undefined ? { enthalpy: feedEnthalpy } : {}),
+                },
+                product: {
+                  massFraction: productFraction,
+                  ...(productEnthalpy !== undefined ? { enthalpy: productEnthalpy } : {}),
+                },
+              }
+            : { feed }),
+        },
+      };
+    },
+    output: (result: SingleEffectResult, { loaded: liquor }, ctx): SingleEffectResponse => {
+      return {
+        mode: result.mode,
+        feed: stream(result.feed),
+        product: stream(result.product),
+        vapor: {
+          massFlow: r(result.vapor.massFlow),
+          pressure: display(result.vapor.pressure, 'pressure'),
+          temperature: display(result.vapor.temperature, 'temperature'),
+          enthalpy: display(result.vapor.enthalpy, 'specificEnthalpy'),
+        },
+        steam: {
+          massFlow: r(result.steam.massFlow),
+          pressure: display(result.steam.pressure, 'pressure'),
+          temperature: display(result.steam.temperature, 'temperature'),
+          latentHeat: display(result.steam.enthalpyIn - result.steam.enthalpyOut, 'specificEnthalpy'),
+        },
+        boilingPointRise: r(result.boilingPointRise),
+        duty: display(result.duty, 'power'),
+        temperatureDifference: r(result.temperatureDifference),
+        area: r(result.area),
+        steamEconomy: r(result.steamEconomy),
+        specificSteamConsumption: r(result.specificSteamConsumption),
+        waterBoilingPoint: display(result.waterBoilingPoint, 'temperature'),
+        heatLoss: display(result.heatLoss, 'power'),
+        warnings: warningsOut([...liquor.definitionWarnings, ...result.warnings], SINGLE_EFFECT_FIELDS),
+        cautions: result.cautions,
+        provenance: provenance(ctx.engineVersion, [IF97_MODEL, ...liquor.models]),
+      };
+    },
   },
 });
+
+/**
+ * A single multiple-effect call with at least this many effects runs in the calculation pool;
+ * fewer run inline, where they answer sooner (the crossover measured by tests/bench/pool.ts).
+ */
+export const POOLED_EFFECTS = 4;
 
 /** Units beyond the base of a multiple-effect request: `unitsPerEffect` × effects (1 to 10). */
 function perEffectUnits(body: unknown): number | undefined {
@@ -236,8 +251,11 @@ export const multipleEffect = declareOperation({
   extraUnits: perEffectUnits,
   loadAfterBody: true,
   load: bodyLiquor,
-  run: ({ body: b, loaded: liquor }, ctx): MultipleEffectResponse => {
-    const result = calculate(MULTIPLE_EFFECT_FIELDS, () => {
+  engine: {
+    task: 'evaporators.multiple-effect',
+    fields: MULTIPLE_EFFECT_FIELDS,
+    offload: (t: MultipleEffectTask) => t.spec.overallHeatTransferCoefficients.length >= POOLED_EFFECTS,
+    input: ({ body: b, loaded: liquor }): MultipleEffectTask => {
       const F = b.feed.massFlow;
       const xF = b.feed.massFraction;
       const feed = { massFlow: F, massFraction: xF, temperature: b.feed.temperature };
@@ -245,7 +263,7 @@ export const multipleEffect = declareOperation({
       const productFlow = b.product.massFlow;
       if (productFlow !== undefined) productMassFraction = (F * xF) / productFlow; // solute balance F·x_F = L·x_L
       const input = {
-        liquor: liquor.model,
+        liquor: liquor.description,
         feed,
         steam: steamSpec(b.steam),
         lastEffectPressure: b.lastEffectPressure,
@@ -256,40 +274,42 @@ export const multipleEffect = declareOperation({
         ...(b.feedPreheat ? { feedPreheat: b.feedPreheat } : {}),
         ...(b.condensateFlash !== undefined ? { condensateFlash: b.condensateFlash } : {}),
       };
-      if (b.areas) return rateMultipleEffect({ ...input, areas: b.areas });
-      return designMultipleEffect(input);
-    });
-    return {
-      effects: result.effects.map((e) => ({
-        pressure: display(e.pressure, 'pressure'),
-        vaporTemperature: display(e.vaporTemperature, 'temperature'),
-        boilingPoint: display(e.boilingPoint, 'temperature'),
-        boilingPointRise: r(e.boilingPointRise),
-        temperatureDifference: r(e.temperatureDifference),
-        liquorFlow: r(e.liquorOutFlow),
-        massFraction: r(e.massFraction),
-        vaporFlow: r(e.vaporFlow),
-        duty: display(e.duty, 'power'),
-        area: r(e.area),
-        vaporBleed: r(e.vaporBleed),
-      })),
-      steam: {
-        massFlow: r(result.steam.massFlow),
-        pressure: display(result.steam.pressure, 'pressure'),
-        temperature: display(result.steam.temperature, 'temperature'),
-        latentHeat: display(result.steam.heatPerKg, 'specificEnthalpy'),
-      },
-      product: stream(result.product),
-      totalArea: r(result.totalArea),
-      evaporation: r(result.evaporation),
-      steamEconomy: r(result.steamEconomy),
-      iterations: result.iterations,
-      residual: result.residual,
-      feedPreheatDuty: display(result.feedPreheat?.duty ?? 0, 'power'),
-      warnings: warningsOut([...liquor.definitionWarnings, ...result.warnings], MULTIPLE_EFFECT_FIELDS),
-      cautions: result.cautions,
-      provenance: provenance(ctx.engineVersion, [IF97_MODEL, ...liquor.models]),
-    };
+      if (b.areas) return { mode: 'rating', spec: { ...input, areas: b.areas } };
+      return { mode: 'design', spec: input };
+    },
+    output: (result: MultipleEffectResult, { loaded: liquor }, ctx): MultipleEffectResponse => {
+      return {
+        effects: result.effects.map((e) => ({
+          pressure: display(e.pressure, 'pressure'),
+          vaporTemperature: display(e.vaporTemperature, 'temperature'),
+          boilingPoint: display(e.boilingPoint, 'temperature'),
+          boilingPointRise: r(e.boilingPointRise),
+          temperatureDifference: r(e.temperatureDifference),
+          liquorFlow: r(e.liquorOutFlow),
+          massFraction: r(e.massFraction),
+          vaporFlow: r(e.vaporFlow),
+          duty: display(e.duty, 'power'),
+          area: r(e.area),
+          vaporBleed: r(e.vaporBleed),
+        })),
+        steam: {
+          massFlow: r(result.steam.massFlow),
+          pressure: display(result.steam.pressure, 'pressure'),
+          temperature: display(result.steam.temperature, 'temperature'),
+          latentHeat: display(result.steam.heatPerKg, 'specificEnthalpy'),
+        },
+        product: stream(result.product),
+        totalArea: r(result.totalArea),
+        evaporation: r(result.evaporation),
+        steamEconomy: r(result.steamEconomy),
+        iterations: result.iterations,
+        residual: result.residual,
+        feedPreheatDuty: display(result.feedPreheat?.duty ?? 0, 'power'),
+        warnings: warningsOut([...liquor.definitionWarnings, ...result.warnings], MULTIPLE_EFFECT_FIELDS),
+        cautions: result.cautions,
+        provenance: provenance(ctx.engineVersion, [IF97_MODEL, ...liquor.models]),
+      };
+    },
   },
   batch: { units: multipleEffectCaseUnits },
 });

@@ -1,0 +1,130 @@
+/**
+ * The pool of engine worker threads (Piscina): heavy calculations (batches, long trains; later
+ * sweeps and studies) run here so that the main thread stays free for HTTP, metering and light
+ * calls. HTTP-free: tasks are plain data keyed by operation (./engine-tasks.ts), outcomes come
+ * back as plain data, and the caller formats them.
+ *
+ * - `workers` threads (ENGINE_WORKERS, default the machine's available parallelism); 0 runs every
+ *   task inline on the calling thread (tests may use it; no thread is started).
+ * - A call still unanswered `taskTimeoutMs` after it was handed to the pool (ENGINE_TASK_TIMEOUT_MS,
+ *   default 30 s) counts as hung: it is aborted (Piscina terminates its thread and starts another)
+ *   and rejects with {@link EngineCallError} 'timeout'. A thread that dies mid-task is replaced
+ *   too, and its call rejects with 'failed'.
+ * - `runMany` splits a batch into chunks, several per thread, so every thread has work and one
+ *   slow chunk does not leave the others idle.
+ * - `destroy()` ends the threads (after the HTTP drain, server/app.ts `closeApp`).
+ */
+import { Piscina } from 'piscina';
+import { runEngineTasks, type TaskOutcome } from './engine-tasks.js';
+import type { EngineWorkerTask } from './engine-worker.js';
+
+export interface EnginePoolOptions {
+  /** Worker threads; 0: inline on the calling thread. */
+  workers: number;
+  /** Limit of one call, from its hand-over to its answer, ms. */
+  taskTimeoutMs: number;
+  /** Start every thread now (a server), rather than at the first task (tests, short-lived apps). */
+  eager?: boolean;
+  /** Tests only: the worker's `test.hang` / `test.crash` tasks exist, and `divertNext` works. */
+  testHooks?: boolean;
+}
+
+/** A call the pool could not answer: it ran past its limit, or its thread died. */
+export class EngineCallError extends Error {
+  override readonly name = 'EngineCallError';
+  constructor(
+    readonly kind: 'timeout' | 'failed',
+    message: string,
+  ) {
+    super(message);
+  }
+}
+
+export interface EnginePool {
+  /** Threads (0: inline). */
+  readonly workers: number;
+  readonly taskTimeoutMs: number;
+  readonly destroyed: boolean;
+  /** One case of a task. */
+  run(name: string, input: unknown): Promise<TaskOutcome>;
+  /** Many cases of one task, spread over the threads; outcomes in input order. */
+  runMany(name: string, inputs: readonly unknown[]): Promise<TaskOutcome[]>;
+  /** Tests only (pool made with `testHooks`): the next call runs `test.hang` or `test.crash` instead. */
+  divertNext(kind: 'hang' | 'crash'): void;
+  destroy(): Promise<void>;
+}
+
+/** Chunks per thread in `runMany`: enough to balance uneven cases, few enough that each message carries real work. */
+const CHUNKS_PER_WORKER = 4;
+/** Idle threads beyond `minThreads` end after this, ms. */
+const IDLE_TIMEOUT_MS = 60_000;
+
+const WORKER_FILE = new URL('./engine-worker.mjs', import.meta.url).href;
+
+export function createEnginePool(options: EnginePoolOptions): EnginePool {
+  const { workers, taskTimeoutMs } = options;
+  if (!Number.isInteger(workers) || workers < 0) throw new RangeError('workers must be an integer ≥ 0');
+  let destroyed = false;
+  let diverted: 'hang' | 'crash' | undefined;
+  const piscina =
+    workers > 0
+      ? new Piscina<EngineWorkerTask, TaskOutcome[]>({
+          filename: WORKER_FILE,
+          maxThreads: workers,
+          minThreads: options.eager ? workers : 0,
+          idleTimeout: IDLE_TIMEOUT_MS,
+          workerData: { testHooks: options.testHooks === true },
+        })
+      : undefined;
+
+  async function call(name: string, inputs: unknown[]): Promise<TaskOutcome[]> {
+    if (destroyed) throw new EngineCallError('failed', 'The calculation pool has been shut down.');
+    if (diverted) {
+      name = `test.${diverted}`;
+      diverted = undefined;
+    }
+    if (!piscina) return runEngineTasks(name, inputs);
+    try {
+      return await piscina.run({ name, inputs }, { signal: AbortSignal.timeout(taskTimeoutMs) });
+    } catch (err) {
+      const e = err as Error;
+      if (e.name === 'AbortError' || e.name === 'TimeoutError') {
+        throw new EngineCallError('timeout', `The calculation did not finish within ${taskTimeoutMs} ms.`);
+      }
+      throw new EngineCallError('failed', `The calculation's worker thread failed: ${e.message}`);
+    }
+  }
+
+  return {
+    workers,
+    taskTimeoutMs,
+    get destroyed() {
+      return destroyed;
+    },
+    async run(name, input) {
+      const [outcome] = await call(name, [input]);
+      return outcome!;
+    },
+    async runMany(name, inputs) {
+      if (inputs.length === 0) return [];
+      const chunks = Math.min(inputs.length, Math.max(1, workers * CHUNKS_PER_WORKER));
+      const size = Math.ceil(inputs.length / chunks);
+      const parts: Promise<TaskOutcome[]>[] = [];
+      for (let i = 0; i < inputs.length; i += size) parts.push(call(name, inputs.slice(i, i + size)));
+      // Every chunk settles before the answer, so a failed batch leaves no chunk running for it.
+      const settled = await Promise.allSettled(parts);
+      const failed = settled.find((s) => s.status === 'rejected');
+      if (failed) throw failed.reason;
+      return settled.flatMap((s) => (s as PromiseFulfilledResult<TaskOutcome[]>).value);
+    },
+    divertNext(kind) {
+      if (!options.testHooks) throw new Error('divertNext needs a pool made with testHooks');
+      diverted = kind;
+    },
+    async destroy() {
+      if (destroyed) return;
+      destroyed = true;
+      await piscina?.destroy();
+    },
+  };
+}

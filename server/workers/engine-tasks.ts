@@ -1,0 +1,143 @@
+/**
+ * The engine's heavy calculations as tasks of plain data, keyed by operation id: what a worker
+ * thread (./engine-worker.ts) or the main thread (inline) runs for the HTTP layer. A task's input
+ * is the request already in SI with its liquor as a {@link LiquorDescription}; its result is the
+ * engine's own plain result object; an engine error comes back as {@link SerializedError} data
+ * and is rebuilt as the same typed error by {@link reviveError}, so the edge maps it to the same
+ * problem whichever thread ran it. HTTP-free: this module imports only the engine.
+ *
+ * A new heavy operation (a sweep, a study) adds its entry to {@link engineTasks} and declares
+ * `engine: { task: '<its id>', … }` on its /v1 declaration.
+ */
+import {
+  EngineInputError,
+  EngineNoSolutionError,
+  EngineRangeError,
+  type ValidRange,
+} from '../engine/errors.js';
+import type { SteamSupplySpec } from '../engine/evaporators/common.js';
+import {
+  designMultipleEffect,
+  rateMultipleEffect,
+  type MultipleEffectInput,
+  type MultipleEffectResult,
+} from '../engine/evaporators/multiple-effect.js';
+import {
+  designSingleEffect,
+  rateSingleEffect,
+  type SingleEffectDesignInput,
+  type SingleEffectRatingInput,
+  type SingleEffectResult,
+} from '../engine/evaporators/single-effect.js';
+import { liquorFromDescription, type LiquorDescription } from '../engine/liquors/description.js';
+
+export type { LiquorDescription } from '../engine/liquors/description.js';
+
+type WithoutLiquor<T> = Omit<T, 'liquor'> & { liquor: LiquorDescription };
+
+/** A single effect: design (no area) or rating (area given). */
+export type SingleEffectTask =
+  | { mode: 'design'; spec: WithoutLiquor<SingleEffectDesignInput> }
+  | { mode: 'rating'; spec: WithoutLiquor<SingleEffectRatingInput> };
+
+/** A multiple-effect train: equal-area design, or rating of given areas. */
+export interface MultipleEffectTask {
+  mode: 'design' | 'rating';
+  spec: WithoutLiquor<Omit<MultipleEffectInput, 'mode'>> & { steam: SteamSupplySpec };
+}
+
+/** Operation id → its input and result types. */
+export interface EngineTaskTypes {
+  'evaporators.single-effect': { input: SingleEffectTask; result: SingleEffectResult };
+  'evaporators.multiple-effect': { input: MultipleEffectTask; result: MultipleEffectResult };
+}
+
+export type EngineTaskName = keyof EngineTaskTypes;
+
+export const engineTasks: {
+  [K in EngineTaskName]: (input: EngineTaskTypes[K]['input']) => EngineTaskTypes[K]['result'];
+} = {
+  'evaporators.single-effect': (t) => {
+    const liquor = liquorFromDescription(t.spec.liquor);
+    return t.mode === 'design'
+      ? designSingleEffect({ ...t.spec, liquor })
+      : rateSingleEffect({ ...t.spec, liquor });
+  },
+  'evaporators.multiple-effect': (t) => {
+    const input = { ...t.spec, liquor: liquorFromDescription(t.spec.liquor) };
+    return t.mode === 'rating' ? rateMultipleEffect(input) : designMultipleEffect(input);
+  },
+};
+
+/** An engine error as data (the typed errors' fields; anything else by name and message). */
+export interface SerializedError {
+  name: string;
+  message: string;
+  field?: string;
+  value?: number;
+  validRange?: ValidRange;
+  context?: string;
+  reason?: string;
+  detail?: EngineNoSolutionError['detail'];
+}
+
+/** The outcome of one case of a task: the engine's result, or its error as data. */
+export type TaskOutcome<R = unknown> = { ok: true; value: R } | { ok: false; error: SerializedError };
+
+export function serializeError(err: unknown): SerializedError {
+  if (err instanceof EngineRangeError) {
+    return {
+      name: 'EngineRangeError',
+      message: err.message,
+      field: err.field,
+      value: err.value,
+      validRange: err.validRange,
+      ...(err.context !== undefined ? { context: err.context } : {}),
+      ...(err.reason !== undefined ? { reason: err.reason } : {}),
+    };
+  }
+  if (err instanceof EngineInputError)
+    return { name: 'EngineInputError', message: err.message, field: err.field };
+  if (err instanceof EngineNoSolutionError) {
+    return { name: 'EngineNoSolutionError', message: err.message, detail: err.detail };
+  }
+  const e = err instanceof Error ? err : new Error(String(err));
+  return { name: e.name, message: e.message };
+}
+
+/** The typed error that {@link serializeError} described. */
+export function reviveError(s: SerializedError): Error {
+  switch (s.name) {
+    case 'EngineRangeError':
+      return new EngineRangeError(
+        s.field ?? '',
+        s.value ?? NaN,
+        s.validRange!,
+        s.message,
+        s.context,
+        s.reason,
+      );
+    case 'EngineInputError':
+      return new EngineInputError(s.field ?? '', s.message);
+    case 'EngineNoSolutionError':
+      return new EngineNoSolutionError(s.message, s.detail);
+    default: {
+      const e = new Error(s.message);
+      e.name = s.name;
+      return e;
+    }
+  }
+}
+
+/** Runs every input of one task here, each to its own outcome (one failing case fails only itself). */
+export function runEngineTasks(name: string, inputs: readonly unknown[]): TaskOutcome[] {
+  if (!Object.hasOwn(engineTasks, name)) throw new Error(`unknown engine task "${name}"`);
+  const run = engineTasks[name as EngineTaskName] as (input: unknown) => unknown;
+  return inputs.map((input) => {
+    try {
+      return { ok: true, value: run(input) };
+    } catch (err) {
+      return { ok: false, error: serializeError(err) };
+    }
+  });
+}
