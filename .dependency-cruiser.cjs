@@ -50,6 +50,32 @@ module.exports = {
       to: { path: '^server/(http/v1|console)/' },
     },
     {
+      name: 'workers-import-only-the-engine',
+      severity: 'error',
+      comment:
+        'The calculation pool is an HTTP-free adapter: plain tasks in, plain outcomes out; it knows the engine, piscina and tsx only.',
+      from: { path: '^server/workers/' },
+      to: {
+        pathNot: [
+          '^server/workers/',
+          '^server/engine/',
+          '^node_modules/piscina/',
+          // the worker's bootstrap registers tsx in its thread
+          '^node_modules/tsx/',
+          '^tsx/esm/api$',
+          '^(os|worker_threads)$',
+          '^node:',
+        ],
+      },
+    },
+    {
+      name: 'engine-never-imports-the-workers',
+      severity: 'error',
+      comment: 'The engine is pure and knows nothing of threads; server/workers/ wraps it.',
+      from: { path: '^server/engine/' },
+      to: { path: '^server/workers/' },
+    },
+    {
       name: 'http-never-imports-the-console',
       severity: 'error',
       comment: 'server/app.ts composes the console API with the HTTP app; http/ does not know it.',

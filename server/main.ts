@@ -4,7 +4,7 @@
  * a draining shutdown on SIGTERM/SIGINT (see `shutdown` below: refuse new connections, answer
  * what arrives on open ones with `Connection: close` for SHUTDOWN_GRACE_MS, then close the idle
  * ones, let in-flight requests finish for up to SHUTDOWN_TIMEOUT_MS more, stop the development
- * services, close the database, exit 0).
+ * services and the calculation pool's threads, close the database, exit 0).
  *
  *   PORT=8080 DB_FILE=./data/ebullio.db BOOTSTRAP_API_KEY=… node --import tsx server/main.ts
  *
@@ -29,9 +29,9 @@ import net, { type AddressInfo } from 'node:net';
 import { pruneRequestLog } from './accounts/request-log.js';
 import { ensureDefaultPlans } from './billing/plans.js';
 import { checkQuotaNotices } from './billing/quota-notices.js';
-import { ConfigError, loadConfig, serverSettings, type Config } from './config.js';
+import { ConfigError, engineSettings, loadConfig, serverSettings, type Config } from './config.js';
 import { openDatabase, runMigrations } from './db/client.js';
-import { createApp } from './app.js';
+import { closeApp, createApp } from './app.js';
 import type { AppDeps, Lifecycle } from './deps.js';
 import { createHttpServer, startDraining } from './http/server.js';
 import { startMailCapture, type MailCapture } from './integrations/mail-capture.js';
@@ -40,6 +40,7 @@ import { loadPaymentsConfig, PaymentsConfigError, withBoundPort } from './integr
 import { startFakePaymentProvider, type FakePaymentProvider } from './integrations/payments/fake-provider.js';
 import { bootstrap } from './seed/bootstrap.js';
 import { DEMO_CONSOLE_PASSWORD, seedDemoConsoleUsers } from './accounts/demo-users.js';
+import { createEnginePool } from './workers/engine-pool.js';
 import { DEMO_ACCOUNT_NAME } from './seed/demo.js';
 
 /** After the grace period, how long requests still in flight may take before they are cut. */
@@ -180,7 +181,13 @@ async function main(): Promise<void> {
   let payments: FakePaymentProvider | undefined;
 
   const lifecycle: Lifecycle = { draining: false };
-  const deps: AppDeps = { db, sqlite, config, clock, engineVersion: version, lifecycle };
+  // The calculation pool's threads start now, so the first heavy request does not wait for them.
+  const engine = engineSettings(config);
+  const enginePool = createEnginePool({ ...engine, eager: true });
+  console.log(
+    `[start-up] calculation pool: ${engine.workers === 0 ? 'inline (ENGINE_WORKERS=0)' : `${engine.workers} worker thread(s)`}, ${engine.taskTimeoutMs} ms limit per task`,
+  );
+  const deps: AppDeps = { db, sqlite, config, clock, engineVersion: version, lifecycle, enginePool };
   // Quota e-mails (80 % and 100 %, once per account and month; server/billing/quota-notices.ts):
   // a sweep over every account catches usage that no request-time check saw (seeded or imported).
   let sweeping = false;
@@ -274,10 +281,11 @@ async function main(): Promise<void> {
       clearTimeout(grace);
       clearTimeout(force);
       clearInterval(reaper);
-      // Development services after the last request: a finalize in flight may still call the fake.
+      // Development services and the calculation pool after the last request: a finalize in
+      // flight may still call the fake, and a batch in flight may still need the pool.
       // Then one more turn of the event loop: the row of a request its client abandoned is still
       // queued for the metering group commit, which runs on the next turn.
-      void Promise.allSettled([payments?.close(), mail?.close()])
+      void Promise.allSettled([payments?.close(), mail?.close(), closeApp(deps)])
         .then(() => new Promise((resolve) => setImmediate(resolve)))
         .then(() => {
           sqlite.close();

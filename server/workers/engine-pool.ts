@@ -15,8 +15,7 @@
  * - `destroy()` ends the threads (after the HTTP drain, server/app.ts `closeApp`).
  */
 import { Piscina } from 'piscina';
-import { runEngineTasks, type TaskOutcome } from './engine-tasks.js';
-import type { EngineWorkerTask } from './engine-worker.js';
+import { runEngineTasks, type EngineWorkerTask, type TaskOutcome } from './engine-tasks.js';
 
 export interface EnginePoolOptions {
   /** Worker threads; 0: inline on the calling thread. */
@@ -74,6 +73,9 @@ export function createEnginePool(options: EnginePoolOptions): EnginePool {
           minThreads: options.eager ? workers : 0,
           idleTimeout: IDLE_TIMEOUT_MS,
           workerData: { testHooks: options.testHooks === true },
+          // No inherited flags (a parent's --eval or --input-type would break the thread): the
+          // bootstrap registers tsx itself, under `node --import tsx` and a test runner alike.
+          execArgv: [],
         })
       : undefined;
 

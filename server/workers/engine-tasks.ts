@@ -129,6 +129,12 @@ export function reviveError(s: SerializedError): Error {
   }
 }
 
+/** What the pool sends a worker thread: one task's name and some of its cases. */
+export interface EngineWorkerTask {
+  name: string;
+  inputs: unknown[];
+}
+
 /** Runs every input of one task here, each to its own outcome (one failing case fails only itself). */
 export function runEngineTasks(name: string, inputs: readonly unknown[]): TaskOutcome[] {
   if (!Object.hasOwn(engineTasks, name)) throw new Error(`unknown engine task "${name}"`);

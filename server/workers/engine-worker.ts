@@ -8,12 +8,7 @@
  * unknown tasks like any other name, so no request can reach them in production.
  */
 import { workerData } from 'node:worker_threads';
-import { runEngineTasks, type TaskOutcome } from './engine-tasks.js';
-
-export interface EngineWorkerTask {
-  name: string;
-  inputs: unknown[];
-}
+import { runEngineTasks, type EngineWorkerTask, type TaskOutcome } from './engine-tasks.js';
 
 const testHooks = (workerData as { testHooks?: unknown } | null)?.testHooks === true;
 

@@ -10,6 +10,7 @@ import { createApp, type AppDeps } from '../../server/app.js';
 import { chargeUnits, requireOperation } from '../../server/http/middleware/operation.js';
 import { v1RouteModules } from '../../server/http/v1/index.js';
 import type { V1RouteModule } from '../../server/http/v1/module.js';
+import type { EnginePool } from '../../server/workers/engine-pool.js';
 
 export const ALL_SCOPES: Scope[] = ['steam', 'liquors', 'evaporators', 'batch', 'usage'];
 
@@ -61,13 +62,22 @@ export function makeHarness(
     rateLimit?: number;
     retain?: boolean;
     config?: Partial<Config>;
+    /** The calculation pool (default: one made by createApp from the config). */
+    enginePool?: EnginePool;
   } = {},
 ): Harness {
   const { sqlite, db } = openDatabase(':memory:');
   runMigrations(db);
   const config = testConfig(opts.config);
   const clock = { now: new Date('2031-03-14T10:00:00Z') };
-  const deps: AppDeps = { db, sqlite, config, clock: () => clock.now, engineVersion: 'test-engine' };
+  const deps: AppDeps = {
+    db,
+    sqlite,
+    config,
+    clock: () => clock.now,
+    engineVersion: 'test-engine',
+    ...(opts.enginePool ? { enginePool: opts.enginePool } : {}),
+  };
   const account = createAccount(db, {
     name: 'Invented Test Works',
     monthlyUnitQuota: opts.quota ?? 1000,
