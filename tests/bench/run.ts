@@ -11,6 +11,7 @@ import { runApiBench } from './api.js';
 import { runBundleBench } from './bundle.js';
 import { runDrainBench } from './drain.js';
 import { runHashFloodBench } from './hash-flood.js';
+import { runPoolBench } from './pool.js';
 
 const sections: { title: string; run: () => Promise<void> }[] = [
   { title: 'IAPWS-IF97 steam properties', run: runSteamBench },
@@ -27,6 +28,10 @@ const sections: { title: string; run: () => Promise<void> }[] = [
     run: async () => {
       await runHashFloodBench();
     },
+  },
+  {
+    title: 'Calculation pool: crossover, latency under two large batches, throughput by threads',
+    run: () => runPoolBench(),
   },
   { title: 'Console initial load (gzipped JS + CSS)', run: runBundleBench },
   { title: 'SIGTERM drain under keep-alive load (real server process)', run: runDrainBench },
