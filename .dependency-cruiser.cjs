@@ -50,15 +50,17 @@ module.exports = {
       to: { path: '^server/(http/v1|console)/' },
     },
     {
-      name: 'workers-import-only-the-engine',
+      name: 'workers-import-only-the-engine-and-catalogue',
       severity: 'error',
       comment:
-        'The calculation pool is an HTTP-free adapter: plain tasks in, plain outcomes out; it knows the engine, piscina and tsx only.',
+        'The calculation pool is an HTTP-free adapter: plain tasks in, plain outcomes out; it knows the engine, the operation catalogue, piscina and tsx only.',
       from: { path: '^server/workers/' },
       to: {
         pathNot: [
           '^server/workers/',
           '^server/engine/',
+          // the operation ids that key the tasks (plain data)
+          '^shared/(operations|access)[.]ts$',
           '^node_modules/piscina/',
           // the worker's bootstrap registers tsx in its thread
           '^node_modules/tsx/',

@@ -30,6 +30,7 @@ import {
   type SingleEffectResult,
 } from '../engine/evaporators/single-effect.js';
 import { liquorFromDescription, type LiquorDescription } from '../engine/liquors/description.js';
+import { operationCatalogue } from '../../shared/operations.js';
 
 export type { LiquorDescription } from '../engine/liquors/description.js';
 
@@ -46,10 +47,14 @@ export interface MultipleEffectTask {
   spec: WithoutLiquor<Omit<MultipleEffectInput, 'mode'>> & { steam: SteamSupplySpec };
 }
 
+// Tasks are keyed by the catalogue's operation ids (shared/operations.ts spells them).
+const SINGLE_EFFECT = operationCatalogue.singleEffect.id;
+const MULTIPLE_EFFECT = operationCatalogue.multipleEffect.id;
+
 /** Operation id → its input and result types. */
 export interface EngineTaskTypes {
-  'evaporators.single-effect': { input: SingleEffectTask; result: SingleEffectResult };
-  'evaporators.multiple-effect': { input: MultipleEffectTask; result: MultipleEffectResult };
+  [SINGLE_EFFECT]: { input: SingleEffectTask; result: SingleEffectResult };
+  [MULTIPLE_EFFECT]: { input: MultipleEffectTask; result: MultipleEffectResult };
 }
 
 export type EngineTaskName = keyof EngineTaskTypes;
@@ -57,13 +62,13 @@ export type EngineTaskName = keyof EngineTaskTypes;
 export const engineTasks: {
   [K in EngineTaskName]: (input: EngineTaskTypes[K]['input']) => EngineTaskTypes[K]['result'];
 } = {
-  'evaporators.single-effect': (t) => {
+  [SINGLE_EFFECT]: (t) => {
     const liquor = liquorFromDescription(t.spec.liquor);
     return t.mode === 'design'
       ? designSingleEffect({ ...t.spec, liquor })
       : rateSingleEffect({ ...t.spec, liquor });
   },
-  'evaporators.multiple-effect': (t) => {
+  [MULTIPLE_EFFECT]: (t) => {
     const input = { ...t.spec, liquor: liquorFromDescription(t.spec.liquor) };
     return t.mode === 'rating' ? rateMultipleEffect(input) : designMultipleEffect(input);
   },

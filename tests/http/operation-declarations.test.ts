@@ -118,9 +118,11 @@ describe('one declaration per /v1 operation', () => {
     ]);
     for (const name of batchOperations) {
       const decl = v1Operations.filter((d) => 'batchName' in d.operation && d.operation.batchName === name);
-      // one declaration per name, and one that computes (not one that answers the HTTP request itself)
+      // one declaration per name, and one that computes (`run`, or an `engine` part that may run in
+      // the calculation pool), not one that answers the HTTP request itself
       expect(decl, name).toHaveLength(1);
-      expect(decl[0]?.run, name).toBeDefined();
+      expect(decl[0]?.run ?? decl[0]?.engine, name).toBeDefined();
+      expect(decl[0]?.handle, name).toBeUndefined();
     }
   });
 

@@ -97,7 +97,7 @@ export const singleEffect = declareOperation({
   loadAfterBody: true,
   load: bodyLiquor,
   engine: {
-    task: 'evaporators.single-effect',
+    task: operationCatalogue.singleEffect.id,
     fields: SINGLE_EFFECT_FIELDS,
     // Light: one effect (≈ 0.02 ms) answers far sooner here than through a worker (≈ 0.12 ms,
     // tests/bench/pool.ts); batches of single effects still go to the pool.
@@ -256,7 +256,7 @@ export const multipleEffect = declareOperation({
   loadAfterBody: true,
   load: bodyLiquor,
   engine: {
-    task: 'evaporators.multiple-effect',
+    task: operationCatalogue.multipleEffect.id,
     fields: MULTIPLE_EFFECT_FIELDS,
     offload: (t: MultipleEffectTask) => t.spec.overallHeatTransferCoefficients.length >= POOLED_EFFECTS,
     input: ({ body: b, loaded: liquor }): MultipleEffectTask => {
