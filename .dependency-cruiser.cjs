@@ -65,7 +65,7 @@ module.exports = {
           // the worker's bootstrap registers tsx in its thread
           '^node_modules/tsx/',
           '^tsx/esm/api$',
-          '^(os|worker_threads)$',
+          '^(fs|os|worker_threads)$',
           '^node:',
         ],
       },

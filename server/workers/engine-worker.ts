@@ -7,8 +7,30 @@
  * `test.crash` (the thread exits: the pool must replace it) exist. Without the flag they are
  * unknown tasks like any other name, so no request can reach them in production.
  */
+import fs from 'node:fs';
+import os from 'node:os';
 import { workerData } from 'node:worker_threads';
 import { runEngineTasks, type EngineWorkerTask, type TaskOutcome } from './engine-tasks.js';
+
+/**
+ * The thread's scheduling priority is lowered by this much (nice +10). With as many threads as
+ * cores, the main thread would otherwise wait for the kernel to give it a core back while the
+ * threads calculate, and /healthz and light calls would wait with it; at a lower priority the
+ * threads take only what the main thread leaves. (Linux: setpriority on a thread id renices that
+ * thread alone. Elsewhere, or if refused, the thread keeps its priority.)
+ */
+const NICE_INCREMENT = 10;
+
+function lowerThreadPriority(): void {
+  try {
+    const tid = Number(fs.readlinkSync('/proc/thread-self').split('/').pop());
+    if (Number.isInteger(tid) && tid > 0)
+      os.setPriority(tid, Math.min(19, os.getPriority(tid) + NICE_INCREMENT));
+  } catch {
+    // Not Linux, or not permitted: the thread runs at the process's priority.
+  }
+}
+lowerThreadPriority();
 
 const testHooks = (workerData as { testHooks?: unknown } | null)?.testHooks === true;
 
