@@ -25,6 +25,8 @@ export interface EnginePoolOptions {
   taskTimeoutMs: number;
   /** Start every thread now (a server), rather than at the first task (tests, short-lived apps). */
   eager?: boolean;
+  /** How much lower the threads' scheduling priority is than the main thread's (nice; default 10, 0 = the same). */
+  niceIncrement?: number;
   /** Tests only: the worker's `test.hang` / `test.crash` tasks exist, and `divertNext` works. */
   testHooks?: boolean;
 }
@@ -65,6 +67,9 @@ const MAX_CHUNK = 32;
 /** Idle threads beyond `minThreads` end after this, ms. */
 const IDLE_TIMEOUT_MS = 60_000;
 
+/** ENGINE_WORKER_NICE's default: see engine-worker.ts. */
+export const DEFAULT_NICE_INCREMENT = 10;
+
 const WORKER_FILE = new URL('./engine-worker.mjs', import.meta.url).href;
 
 export function createEnginePool(options: EnginePoolOptions): EnginePool {
@@ -79,7 +84,10 @@ export function createEnginePool(options: EnginePoolOptions): EnginePool {
           maxThreads: workers,
           minThreads: options.eager ? workers : 0,
           idleTimeout: IDLE_TIMEOUT_MS,
-          workerData: { testHooks: options.testHooks === true },
+          workerData: {
+            testHooks: options.testHooks === true,
+            niceIncrement: options.niceIncrement ?? DEFAULT_NICE_INCREMENT,
+          },
           // No inherited flags (a parent's --eval or --input-type would break the thread): the
           // bootstrap registers tsx itself, under `node --import tsx` and a test runner alike.
           execArgv: [],

@@ -12,27 +12,29 @@ import os from 'node:os';
 import { workerData } from 'node:worker_threads';
 import { runEngineTasks, type EngineWorkerTask, type TaskOutcome } from './engine-tasks.js';
 
-/**
- * The thread's scheduling priority is lowered by this much (nice +10). With as many threads as
- * cores, the main thread would otherwise wait for the kernel to give it a core back while the
- * threads calculate, and /healthz and light calls would wait with it; at a lower priority the
- * threads take only what the main thread leaves. (Linux: setpriority on a thread id renices that
- * thread alone. Elsewhere, or if refused, the thread keeps its priority.)
- */
-const NICE_INCREMENT = 10;
+const data = (workerData ?? {}) as { testHooks?: unknown; niceIncrement?: unknown };
 
-function lowerThreadPriority(): void {
+/**
+ * Lowers this thread's scheduling priority by `increment` (ENGINE_WORKER_NICE, default 10). With
+ * as many threads as cores, the main thread would otherwise wait for the kernel to give it a core
+ * back while the threads calculate, and /healthz and light calls would wait with it; at a lower
+ * priority the threads take what the main thread leaves. (Linux: setpriority on a thread id
+ * renices that thread alone. Elsewhere, or if refused, the thread keeps its priority.)
+ */
+function lowerThreadPriority(increment: number): void {
+  if (!(increment > 0)) return;
   try {
     const tid = Number(fs.readlinkSync('/proc/thread-self').split('/').pop());
-    if (Number.isInteger(tid) && tid > 0)
-      os.setPriority(tid, Math.min(19, os.getPriority(tid) + NICE_INCREMENT));
+    if (Number.isInteger(tid) && tid > 0) {
+      os.setPriority(tid, Math.min(19, os.getPriority(tid) + increment));
+    }
   } catch {
     // Not Linux, or not permitted: the thread runs at the process's priority.
   }
 }
-lowerThreadPriority();
+lowerThreadPriority(typeof data.niceIncrement === 'number' ? data.niceIncrement : 0);
 
-const testHooks = (workerData as { testHooks?: unknown } | null)?.testHooks === true;
+const testHooks = data.testHooks === true;
 
 export default function runTask(task: EngineWorkerTask): TaskOutcome[] {
   if (testHooks && task.name === 'test.hang') {
