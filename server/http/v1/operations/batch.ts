@@ -293,34 +293,52 @@ export function batchOperation(operations: readonly AnyOperation[]) {
       chargeUnits(res, reserved);
       const shared = { liquor: batch.liquor };
 
-      // 1. Parse every case here (validation, liquor, SI), a slice per turn of the event loop.
+      // 1. Parse every case here (validation, liquor, SI), a slice per turn of the event loop;
+      // 2. and hand each slice's engine tasks to the pool's threads at once, so they calculate
+      //    while the rest is parsed (inline without a pool: the tasks run as each case is formatted).
+      const pool = ctx.enginePool;
       const prepared: ({ ok: true; value: Prepared } | { ok: false; error: unknown })[] = [];
+      const outcomes = new Map<number, TaskOutcome>();
+      const inFlight: Promise<void>[] = [];
+      const failures: unknown[] = [];
+      let waiting: { index: number; task: Exclude<Prepared, { done: unknown }> }[] = [];
+      const dispatch = () => {
+        if (waiting.length === 0 || !pooled(pool)) return;
+        const sent = waiting;
+        waiting = [];
+        inFlight.push(
+          pool
+            .runMany(
+              sent[0]!.task.task,
+              sent.map((t) => t.task.taskInput),
+            )
+            .then(
+              (answers) => sent.forEach((t, i) => outcomes.set(t.index, answers[i]!)),
+              // Caught at once: a slice may fail while later ones are still being parsed.
+              (err: unknown) => void failures.push(err),
+            ),
+        );
+      };
       for (const [index, c] of batch.cases.entries()) {
-        if (index > 0 && index % CASES_PER_TURN === 0) await nextTurn();
+        if (index > 0 && index % CASES_PER_TURN === 0) {
+          dispatch();
+          await nextTurn();
+        }
         try {
-          prepared.push({ ok: true, value: prepareCase(op, c, shared, ctx) });
+          const value = prepareCase(op, c, shared, ctx);
+          prepared.push({ ok: true, value });
+          if (!('done' in value)) waiting.push({ index, task: value });
         } catch (error) {
           prepared.push({ ok: false, error });
         }
       }
-      // 2. The engine: every task of the batch in the pool's threads (inline without a pool).
-      const pool = ctx.enginePool;
-      const outcomes = new Map<number, TaskOutcome>();
-      const tasks = prepared.flatMap((p, index) =>
-        p.ok && !('done' in p.value) ? [{ index, p: p.value }] : [],
-      );
-      if (tasks.length > 0 && pooled(pool)) {
-        try {
-          const answers = await pool.runMany(
-            tasks[0]!.p.task,
-            tasks.map((t) => t.p.taskInput),
-          );
-          tasks.forEach((t, i) => outcomes.set(t.index, answers[i]!));
-        } catch (err) {
-          // Hung or crashed: no case is answered, so none is charged.
-          releaseUnits(res, reserved);
-          throw poolProblem(err, res.locals.requestId);
-        }
+      dispatch();
+      // Every slice settles before the answer, so a failed batch leaves no task running for it.
+      await Promise.all(inFlight);
+      if (failures.length > 0) {
+        // Hung or crashed: no case is answered, so none is charged.
+        releaseUnits(res, reserved);
+        throw poolProblem(failures[0], res.locals.requestId);
       }
       const settle = (index: number): unknown => {
         const p = prepared[index]!;
