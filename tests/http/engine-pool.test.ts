@@ -209,8 +209,16 @@ describe('the calculation pool', () => {
     expect(usage).toEqual([{ operation: 'batch', status: 503, units: 0 }]);
     const log = h.sqlite.prepare('SELECT path, status FROM request_log').all();
     expect(log).toEqual([{ path: '/v1/batch', status: 503 }]);
+    // What the client sees: the batch counted as an error, 0 units used.
     const usageRes = await request(h.app).get('/v1/usage').set(auth(h));
     expect(usageRes.status).toBe(200);
+    expect(usageRes.body.quota.used).toBe(0);
+    expect(usageRes.body.byOperation).toContainEqual({
+      operation: 'batch',
+      requests: 1,
+      units: 0,
+      errors: 1,
+    });
 
     // A single call past the crossover is stopped the same way.
     p.divertNext('hang');
@@ -246,6 +254,7 @@ describe('the calculation pool', () => {
       { status: 500, units: 0 },
     ]);
     expect(h.sqlite.prepare('SELECT status FROM request_log').all()).toEqual([{ status: 500 }]);
+    expect((await request(h.app).get('/v1/usage').set(auth(h))).body.quota.used).toBe(0);
     const next = await request(h.app).post('/v1/evaporators/multiple-effect').set(auth(h)).send(train(6));
     expect(next.status).toBe(200);
   });
