@@ -27,7 +27,7 @@
  * | MAIL_FROM | Ebullio <no-reply@ebullio.invalid> | sender of the service's mail |
  * | ENGINE_WORKERS | available parallelism | worker threads of the calculation pool (server/workers/engine-pool.ts); 0 runs every calculation on the main thread |
  * | ENGINE_WORKER_NICE | 10 | the pool's threads run this much lower in scheduling priority than the main thread (Linux; 0 = the same), so HTTP is served first |
- * | ENGINE_TASK_TIMEOUT_MS | 30000 | a pooled calculation unanswered after this is hung: its thread is replaced and the request gets 503 calculation-timeout |
+ * | ENGINE_TASK_TIMEOUT_MS | 30000 | a pooled calculation unanswered this long after a thread took it is hung: its thread is replaced and the request gets 503 calculation-timeout |
  */
 import crypto from 'node:crypto';
 import fs from 'node:fs';

@@ -6,10 +6,12 @@
  *
  * - `workers` threads (ENGINE_WORKERS, default the machine's available parallelism); 0 runs every
  *   task inline on the calling thread (tests may use it; no thread is started).
- * - A call still unanswered `taskTimeoutMs` after it was handed to the pool (ENGINE_TASK_TIMEOUT_MS,
- *   default 30 s) counts as hung: it is aborted (Piscina terminates its thread and starts another)
- *   and rejects with {@link EngineCallError} 'timeout'. A thread that dies mid-task is replaced
- *   too, and its call rejects with 'failed'.
+ * - A call still unanswered `taskTimeoutMs` after a thread took it (ENGINE_TASK_TIMEOUT_MS,
+ *   default 30 s) counts as hung: it is aborted (Piscina terminates its thread and starts
+ *   another) and rejects with {@link EngineCallError} 'timeout'. Calls wait their turn here, one
+ *   per thread, so time spent queueing behind other batches does not count (the start of a
+ *   replacement thread, about a second, does). A thread that dies mid-task is replaced too, and
+ *   its call rejects with 'failed'.
  * - `runMany` splits a batch into small chunks, several per thread, so every thread has work, one
  *   slow chunk does not leave the others idle, and reading one chunk's results is a short pause
  *   for the main thread.
@@ -21,7 +23,7 @@ import { runEngineTasks, type EngineWorkerTask, type TaskOutcome } from './engin
 export interface EnginePoolOptions {
   /** Worker threads; 0: inline on the calling thread. */
   workers: number;
-  /** Limit of one call, from its hand-over to its answer, ms. */
+  /** Limit of one call, from the moment a thread takes it to its answer, ms. */
   taskTimeoutMs: number;
   /** Start every thread now (a server), rather than at the first task (tests, short-lived apps). */
   eager?: boolean;
@@ -94,21 +96,44 @@ export function createEnginePool(options: EnginePoolOptions): EnginePool {
         })
       : undefined;
 
+  // One task per thread is handed to Piscina at a time; the rest wait here, in order. So the time
+  // limit starts when a thread takes the task, not while it queues behind other batches.
+  let running = 0;
+  const waiting: (() => void)[] = [];
+  const acquire = async (): Promise<void> => {
+    if (running < workers) {
+      running++;
+      return;
+    }
+    await new Promise<void>((resolve) => waiting.push(resolve));
+  };
+  // The slot passes straight to the next waiter, so no newcomer can slip in between.
+  const release = (): void => {
+    const next = waiting.shift();
+    if (next) next();
+    else running--;
+  };
+
   async function call(name: string, inputs: unknown[]): Promise<TaskOutcome[]> {
-    if (destroyed) throw new EngineCallError('failed', 'The calculation pool has been shut down.');
     if (diverted) {
       name = `test.${diverted}`;
       diverted = undefined;
     }
+    if (destroyed) throw new EngineCallError('failed', 'The calculation pool has been shut down.');
     if (!piscina) return runEngineTasks(name, inputs);
+    await acquire();
     try {
+      if (destroyed) throw new EngineCallError('failed', 'The calculation pool has been shut down.');
       return await piscina.run({ name, inputs }, { signal: AbortSignal.timeout(taskTimeoutMs) });
     } catch (err) {
+      if (err instanceof EngineCallError) throw err;
       const e = err as Error;
       if (e.name === 'AbortError' || e.name === 'TimeoutError') {
         throw new EngineCallError('timeout', `The calculation did not finish within ${taskTimeoutMs} ms.`);
       }
       throw new EngineCallError('failed', `The calculation's worker thread failed: ${e.message}`);
+    } finally {
+      release();
     }
   }
 
@@ -140,6 +165,8 @@ export function createEnginePool(options: EnginePoolOptions): EnginePool {
     async destroy() {
       if (destroyed) return;
       destroyed = true;
+      // Calls still waiting for a thread wake, find the pool shut and fail.
+      for (const wake of waiting.splice(0)) wake();
       await piscina?.destroy();
     },
   };

@@ -172,6 +172,33 @@ describe('the calculation pool', () => {
     expect(bits(there)).toBe(bits(here));
   });
 
+  it('starts the time limit when a thread takes a call, not while the call queues behind others', async () => {
+    const p = createEnginePool({ workers: 1, taskTimeoutMs: 1500, eager: true });
+    pools.push(p);
+    const task = {
+      mode: 'design' as const,
+      spec: {
+        liquor: { builtIn: 'sodium-hydroxide' },
+        feed: { massFlow: 10, massFraction: 0.1, temperature: 333.15 },
+        productMassFraction: 0.3,
+        steam: { pressure: 1e6 },
+        lastEffectPressure: 15e3,
+        overallHeatTransferCoefficients: [2800, 2600, 2400, 2200, 2000, 1800, 1600, 1500, 1400, 1300],
+        feedArrangement: 'backward' as const,
+      },
+    };
+    await p.run('evaporators.multiple-effect', task); // the thread is up
+    // Chunks of 32 ten-effect trains take milliseconds each; all of them together take longer
+    // than the limit, so the last chunks wait longer than 1.5 s for the one thread.
+    const started = performance.now();
+    const outcomes = await p.runMany(
+      'evaporators.multiple-effect',
+      Array.from({ length: 4000 }, () => task),
+    );
+    expect(performance.now() - started).toBeGreaterThan(1500);
+    expect(outcomes.every((o) => o.ok)).toBe(true);
+  });
+
   it('rebuilds an engine error from its data as the same typed error', () => {
     const err = new EngineRangeError(
       'massFraction',
