@@ -116,9 +116,16 @@ function plain(v: number): string {
     : String(v);
 }
 
-/** Human-readable range in default units, e.g. "0 to 1 mass fraction 0–1", "above 0 to 10 000 kg/s". */
+/** The unit words after a range: a fraction's label already states 0–1, so it is named, not repeated. */
+function rangeUnit(kind: QuantitySpec['kind']): string {
+  if (kind === 'massFraction') return '(mass fraction)';
+  if (kind === 'fraction') return '(fraction)';
+  return defaultUnits[kind].label;
+}
+
+/** Human-readable range in default units, e.g. "0 to 1 (mass fraction)", "above 0 to 10 000 kg/s". */
 export function describeRange(spec: QuantitySpec): string {
-  const unit = defaultUnits[spec.kind].label;
+  const unit = rangeUnit(spec.kind);
   if (spec.min !== undefined && spec.max !== undefined) {
     return `${spec.minExclusive ? 'above ' : ''}${plain(spec.min)} to ${plain(spec.max)} ${unit}`;
   }

@@ -140,42 +140,58 @@ const RangeDegC = z
   .strict()
   .refine((r) => r.min < r.max, { error: 'max must exceed min', path: ['max'] });
 
+/**
+ * `{"id": "sodium-hydroxide"}` is the likeliest first try at naming a liquor: say how it is named
+ * instead of listing a custom definition's missing fields.
+ */
+function referenceByObjectHint(issue: z.core.$ZodRawIssue): string | undefined {
+  if (issue.code !== 'unrecognized_keys') return undefined;
+  const keys = (issue as { keys?: string[] }).keys ?? [];
+  if (!keys.includes('id') && !keys.includes('stored')) return undefined;
+  return 'a built-in or stored liquor is named by its id as a plain string, e.g. "liquor": "sodium-hydroxide"; an object defines a custom liquor (name, boilingPoint or boilingPointRise, heatCapacity)';
+}
+
 export const CustomLiquorDefinitionSchema = z
-  .object({
-    name: z.string().trim().min(1).max(100),
-    compositionVariable: z.string().max(120).optional().meta({ example: 'dry-solids mass fraction' }),
-    boilingPoint: z
-      .object({ duhring: z.array(DuhringLineSchema).min(1).max(50) })
-      .strict()
-      .optional()
-      .meta({
+  .object(
+    {
+      name: z.string().trim().min(1).max(100),
+      compositionVariable: z.string().max(120).optional().meta({ example: 'dry-solids mass fraction' }),
+      boilingPoint: z
+        .object({ duhring: z.array(DuhringLineSchema).min(1).max(50) })
+        .strict()
+        .optional()
+        .meta({
+          description:
+            'Dühring table (give this or boilingPointRise): per concentration (increasing), readings of water and solution boiling ' +
+            'points at the same pressure. The solution boiling point is linear in that of water at each x (Dühring’s rule); ' +
+            'the lines are interpolated in x, and towards pure water below the lowest concentration',
+        }),
+      boilingPointRise: z.object({ polynomial: PolynomialSchema }).strict().optional().meta({
         description:
-          'Dühring table (give this or boilingPointRise): per concentration (increasing), readings of water and solution boiling ' +
-          'points at the same pressure. The solution boiling point is linear in that of water at each x (Dühring’s rule); ' +
-          'the lines are interpolated in x, and towards pure water below the lowest concentration',
+          'Boiling-point rise in K as a polynomial in x, independent of pressure (give this or boilingPoint)',
       }),
-    boilingPointRise: z.object({ polynomial: PolynomialSchema }).strict().optional().meta({
-      description:
-        'Boiling-point rise in K as a polynomial in x, independent of pressure (give this or boilingPoint)',
-    }),
-    heatCapacity: z.object({ polynomial: PolynomialSchema }).strict().optional().meta({
-      description:
-        'Heat capacity in kJ/(kg·K) as a polynomial in x; enthalpy h = c_p(x)·(T − 0.01 °C) on the steam-table datum, heat of dilution neglected',
-    }),
-    enthalpy: z
-      .object({ table: z.array(EnthalpyRowSchema).min(1).max(50) })
-      .strict()
-      .optional()
-      .meta({ description: 'Measured enthalpies per concentration, kJ/kg; replace the c_p-based enthalpy' }),
-    validity: z
-      .object({ massFraction: Range01, temperature: RangeDegC.optional() })
-      .strict()
-      .optional()
-      .meta({
+      heatCapacity: z.object({ polynomial: PolynomialSchema }).strict().optional().meta({
         description:
-          'Range of the data behind a polynomial definition (not for Dühring tables, whose range is the table)',
+          'Heat capacity in kJ/(kg·K) as a polynomial in x; enthalpy h = c_p(x)·(T − 0.01 °C) on the steam-table datum, heat of dilution neglected',
       }),
-  })
+      enthalpy: z
+        .object({ table: z.array(EnthalpyRowSchema).min(1).max(50) })
+        .strict()
+        .optional()
+        .meta({
+          description: 'Measured enthalpies per concentration, kJ/kg; replace the c_p-based enthalpy',
+        }),
+      validity: z
+        .object({ massFraction: Range01, temperature: RangeDegC.optional() })
+        .strict()
+        .optional()
+        .meta({
+          description:
+            'Range of the data behind a polynomial definition (not for Dühring tables, whose range is the table)',
+        }),
+    },
+    { error: referenceByObjectHint },
+  )
   .strict()
   .superRefine((d, ctx) => {
     const given = (d.boilingPoint ? 1 : 0) + (d.boilingPointRise ? 1 : 0);
