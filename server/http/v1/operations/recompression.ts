@@ -56,7 +56,7 @@ export const mechanicalVaporRecompressionOperation = declareOperation({
         liquor: 'seawater',
         feed: { massFlow: 20, massFraction: '42 g/kg', temperature: 58 },
         product: { massFraction: '70 g/kg' },
-        body: { pressure: 20, overallHeatTransferCoefficient: 2400, temperatureDifference: 4 },
+        body: { pressure: 20, overallHeatTransferCoefficient: 2400, temperatureDifference: 5 },
         compressor: { isentropicEfficiency: 0.75 },
       },
     },
