@@ -312,3 +312,31 @@ describe('refusals', () => {
     });
   });
 });
+
+describe('liquid head and the figures other modules read', () => {
+  const c = byName('one-stage-make-up');
+  it('takes ΔT from the mean boiling point under a liquid head, and the vapour from the surface', () => {
+    const i = inputOf(c);
+    const flat = designMechanicalVaporRecompression(i);
+    const r = designMechanicalVaporRecompression({ ...i, body: { ...i.body, liquidHeight: 2 } });
+    expect(r.body.meanBoilingTemperature).toBeGreaterThan(r.product.temperature);
+    expect(r.condensingTemperature - r.body.meanBoilingTemperature).toBeCloseTo(5, 9);
+    // the vapour leaves at the surface, so it (and the suction) is the same as without head
+    expect(r.vapor.temperature).toBeCloseTo(flat.vapor.temperature, 12);
+    // the chest must be hotter by the head's rise, so the compressor works harder
+    expect(r.compressor.dischargePressure).toBeGreaterThan(flat.compressor.dischargePressure);
+    expect(r.compressor.shaftPower).toBeGreaterThan(flat.compressor.shaftPower);
+    expect(r.balances.energy).toBeLessThan(1e-9);
+  });
+  it('carries its headline figures in SI for a scheme study to read', () => {
+    const r = designMechanicalVaporRecompression(inputOf(c));
+    expect(r.compressor.shaftPower).toBeCloseTo(c.shaftPower, 0); // W
+    expect(r.compressor.electricPower).toBeCloseTo(c.electricPower, 0); // W
+    expect(r.compressor.stages).toBe(1);
+    expect(r.vapor.massFlow).toBeCloseTo(c.evaporation, 12); // kg/s
+    expect(r.makeUpSteam.massFlow).toBeCloseTo(c.makeUpSteam, 6); // kg/s
+    expect(r.surplusVapor.massFlow).toBe(0);
+    expect(r.area).toBeCloseTo(r.duty / (2500 * 5), 9); // m² = Q / (U·ΔT)
+    expect(r.specificEnergy).toBeCloseTo(c.electricPower / c.evaporation, 3); // J/kg
+  });
+});
