@@ -184,6 +184,18 @@ describe(`POST ${PATH}`, () => {
     expect(res.body.errors[0].validRange).toMatchObject({ min: 30.5, unit: 'kPa' });
   });
 
+  it('refuses make-up steam below the discharge pressure, giving the range in kPa', async () => {
+    const res = await request(h.app)
+      .post(PATH)
+      .set(auth())
+      .send({ ...oneStageBody, makeUpSteam: { pressure: 35 } });
+    expect(res.status).toBe(422);
+    expect(res.body.errors[0].field).toBe('makeUpSteam.pressure');
+    expect(res.body.errors[0].validRange.unit).toBe('kPa');
+    // the minimum is the discharge pressure of the hand calculation
+    expect(rel(res.body.errors[0].validRange.min, oneStage.dischargePressure / 1e3)).toBeLessThan(1e-3);
+  });
+
   it('refuses stages that are not a whole number from 1 to 10', async () => {
     const res = await request(h.app)
       .post(PATH)

@@ -517,23 +517,34 @@ export function mechanicalVaporRecompression(
   const delivered = hIn;
   const qc = mFlow * (delivered - chest.liquid);
 
-  // Make-up steam or surplus vapour.
+  // Make-up steam or surplus vapour. A given make-up pressure is reported even when no make-up
+  // is needed; it must reach the chest (at least p₂) only when steam is actually drawn.
   let makeUpPressure = p2;
   let makeUpEnthalpy = chest.vapor;
+  const givenMakeUp = input.makeUpSteam?.pressure;
+  if (givenMakeUp !== undefined) {
+    requireInRange(
+      'makeUpSteam.pressure',
+      givenMakeUp,
+      IF97.minPressure,
+      IF97.region13SaturationPressure,
+      'Pa',
+    );
+    makeUpPressure = givenMakeUp;
+    makeUpEnthalpy = saturationEnthalpies(givenMakeUp).vapor;
+  }
   let makeUp = 0;
   let surplus = 0;
   if (qc < Q) {
-    if (input.makeUpSteam?.pressure !== undefined) {
-      // It must flow into the chest: at least the discharge pressure.
-      requireInRange(
+    if (givenMakeUp !== undefined && givenMakeUp < p2) {
+      throw new EngineRangeError(
         'makeUpSteam.pressure',
-        input.makeUpSteam.pressure,
-        p2,
-        IF97.region13SaturationPressure,
-        'Pa',
+        givenMakeUp,
+        { min: p2, max: IF97.region13SaturationPressure, unit: 'Pa' },
+        `makeUpSteam.pressure = ${givenMakeUp} Pa is below the chest (discharge) pressure ${p2} Pa: the make-up steam could not flow into the chest`,
+        undefined,
+        'make-up steam must be at least at the discharge pressure to flow into the chest',
       );
-      makeUpPressure = input.makeUpSteam.pressure;
-      makeUpEnthalpy = saturationEnthalpies(makeUpPressure).vapor;
     }
     makeUp = (Q - qc) / (makeUpEnthalpy - chest.liquid);
   } else {
