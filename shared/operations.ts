@@ -109,6 +109,13 @@ export const operationCatalogue = {
     unitsPerEffect: 5,
     batchName: 'multiple-effect',
   },
+  mechanicalVaporRecompression: {
+    id: 'evaporators.mechanical-vapor-recompression',
+    label: 'Design or rate a mechanical-vapour-recompression evaporator (compressor, make-up steam, area)',
+    scope: 'evaporators',
+    units: 5,
+    batchName: 'mechanical-vapor-recompression',
+  },
   batch: {
     id: 'batch',
     label: 'Run many calculations in one request (cost: the sum of the rows)',

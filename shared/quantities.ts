@@ -21,6 +21,7 @@ export const quantityKinds = [
   'length',
   'fraction',
   'density',
+  'specificEnergy',
 ] as const;
 export type QuantityKind = (typeof quantityKinds)[number];
 
@@ -91,4 +92,12 @@ export const defaultUnits: Record<QuantityKind, DefaultUnit> = {
   length: { symbol: 'm', label: 'm', spelling: 'm', examples: ['1.5 m', '60 in'] },
   fraction: { symbol: '1', label: 'fraction 0–1', spelling: 'kg/kg', examples: ['2 %'] },
   density: { symbol: 'kg/m3', label: 'kg/m³', spelling: 'kg/m³', examples: ['1050 kg/m3', '1.05 g/cm3'] },
+  // Energy per mass processed, as plants state a compressor's consumption: kWh per tonne of water
+  // evaporated (common practice).
+  specificEnergy: {
+    symbol: 'kWh/t',
+    label: 'kWh/t',
+    spelling: 'kWh/t',
+    examples: ['20 kWh/t', '0.02 kWh/kg'],
+  },
 };

@@ -65,7 +65,8 @@ type UnitFamily =
   | 'length'
   | 'power'
   | 'massFraction'
-  | 'density';
+  | 'density'
+  | 'specificEnergy';
 
 const FAMILY: Readonly<Record<QuantityKind, UnitFamily>> = {
   pressure: 'pressure',
@@ -82,6 +83,7 @@ const FAMILY: Readonly<Record<QuantityKind, UnitFamily>> = {
   massFraction: 'massFraction',
   fraction: 'massFraction',
   density: 'density',
+  specificEnergy: 'specificEnergy',
 };
 
 /** Ebullio's default unit of each kind (shared/quantities.ts): what a bare number means, and what results are given in. */
@@ -103,6 +105,7 @@ const SI_UNITS: Readonly<Record<UnitFamily, string>> = {
   power: 'W',
   massFraction: 'kg/kg',
   density: 'kg/m³',
+  specificEnergy: 'J/kg',
 };
 
 /** The SI unit the engine works in, per kind. */
@@ -124,6 +127,7 @@ const QTY_SI: Record<UnitFamily, string | undefined> = {
   power: 'W',
   massFraction: undefined,
   density: 'kg/m^3',
+  specificEnergy: 'J/kg',
 };
 
 /** Exact values used instead of js-quantities' rounded ones (NIST SP 811 Appendix B). */
@@ -277,6 +281,12 @@ const UNIT_TABLE: Record<UnitFamily, UnitSpec[]> = {
     { unit: 'kg/m³', aliases: ['kg/m3', 'kg/m^3'], qty: 'kg/m^3' },
     { unit: 'g/cm³', aliases: ['g/cm3', 'g/cm^3', 'g/mL', 'g/ml'], qty: 'g/cm^3' },
     { unit: 'lb/ft³', aliases: ['lb/ft3', 'lb/ft^3'], factor: POUND / FOOT ** 3 },
+  ],
+  // 1 kWh = 3.6 MJ and 1 t = 1000 kg (exact).
+  specificEnergy: [
+    { unit: 'kWh/t', aliases: ['kWh/tonne', 'kW·h/t'], factor: 3600 },
+    { unit: 'kWh/kg', factor: 3.6e6 },
+    { unit: 'MJ/t', aliases: ['MJ/tonne'], factor: 1000 },
   ],
 };
 

@@ -62,6 +62,9 @@ export const physicalRanges: Record<QuantityKind, Required<Pick<QuantityRange, '
   // Water ≈ 1000, the densest liquors a few thousand; 30 000 kg/m³ is above any substance at
   // ordinary pressure (osmium ≈ 22 600, common practice).
   density: { min: 0, max: 30_000 },
+  // Evaporating water by electric heating alone takes ≈ 700 kWh/t; 100 000 kWh/t bounds any
+  // machine's consumption per tonne.
+  specificEnergy: { min: 0, max: 100_000 },
 };
 
 /** A kind's physical range, tightened by a field's own bounds where it has them. */
@@ -160,7 +163,7 @@ export function outOfRangeMessage(spec: QuantitySpec, value: number): string {
 export const UNIT_GRAMMAR = [
   '## Quantities and units',
   '',
-  'Every quantity input is a number in the default unit of its kind (°C, kPa absolute, kg/s, kJ/kg, kJ/(kg·K), kW, m², W/(m²·K), mass fraction 0–1, m, kg/m³) or a string "number unit". Results are in the default units; so are the values and ranges in warnings and problems.',
+  'Every quantity input is a number in the default unit of its kind (°C, kPa absolute, kg/s, kJ/kg, kJ/(kg·K), kW, m², W/(m²·K), mass fraction 0–1, m, kg/m³, kWh/t) or a string "number unit". Results are in the default units; so are the values and ranges in warnings and problems.',
   '',
   'Compound units follow one grammar:',
   '- products: a space, `.`, `*`, `·` or `-` (`kJ/kg-K`, `W/(m2.K)`);',

@@ -15,6 +15,7 @@ import { readdirSync, readFileSync } from 'node:fs';
 import { join, relative } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
+import * as mechanicalVaporRecompression from '../../server/engine/evaporators/mechanical-vapor-recompression.js';
 import * as kraftBlackLiquor from '../../server/engine/liquors/kraft-black-liquor.js';
 import * as seawater from '../../server/engine/liquors/seawater.js';
 import * as sodiumHydroxide from '../../server/engine/liquors/sodium-hydroxide.js';
@@ -25,6 +26,7 @@ const ENGINE = fileURLToPath(new URL('../../server/engine/', import.meta.url));
 
 /** The modules whose every exported function is a correlation (or steam-property) function. */
 const CORRELATION_MODULES: Record<string, Record<string, unknown>> = {
+  'evaporators/mechanical-vapor-recompression.ts': mechanicalVaporRecompression,
   'liquors/kraft-black-liquor.ts': kraftBlackLiquor,
   'liquors/seawater.ts': seawater,
   'liquors/sodium-hydroxide.ts': sodiumHydroxide,
@@ -35,6 +37,13 @@ const CORRELATION_MODULES: Record<string, Record<string, unknown>> = {
 /** Exported functions that compute no property, so need no example. */
 const NOT_CORRELATIONS: Record<string, readonly string[]> = {
   'steam/if97.ts': ['if97CitationFor'], // builds a citation record
+  // whole-evaporator solvers and their balance check (tested against the fixture, not by an example)
+  'evaporators/mechanical-vapor-recompression.ts': [
+    'mechanicalVaporRecompression',
+    'designMechanicalVaporRecompression',
+    'rateMechanicalVaporRecompression',
+    'mechanicalVaporRecompressionBalances',
+  ],
 };
 
 interface Example {

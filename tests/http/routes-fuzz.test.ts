@@ -1,6 +1,6 @@
 // Fuzz: random and adversarial bodies per route → never a 5xx, and never NaN/Infinity (or the
 // null JSON makes of them) in a 2xx body. Property-based with fast-check: a thousand random bodies
-// per route and a thousand adversarial JSON shapes per POST route (about 14 000 requests).
+// per route and a thousand adversarial JSON shapes per POST route (about 17 000 requests).
 import http from 'node:http';
 import type { AddressInfo } from 'node:net';
 import fc from 'fast-check';
@@ -202,6 +202,92 @@ describe('fuzzed requests never give a 5xx or a non-finite number', { timeout: 6
     );
   });
 
+  it('POST /v1/evaporators/mechanical-vapor-recompression', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        liquor,
+        fc.record({ massFlow: quantity, massFraction: quantity, temperature: quantity }),
+        fc.record({ massFraction: quantity }, { requiredKeys: [] }),
+        fc.record(
+          {
+            pressure: quantity,
+            overallHeatTransferCoefficient: quantity,
+            temperatureDifference: quantity,
+            area: quantity,
+          },
+          { requiredKeys: ['pressure', 'overallHeatTransferCoefficient'] },
+        ),
+        fc.record(
+          {
+            isentropicEfficiency: quantity,
+            driveEfficiency: quantity,
+            dischargePressure: quantity,
+            stages: weirdNumber,
+            maxPressureRatioPerStage: weirdNumber,
+          },
+          { requiredKeys: [] },
+        ),
+        fc.record(
+          {
+            heatLossFraction: quantity,
+            suctionPressureDrop: quantity,
+            makeUpSteam: fc.record({ pressure: quantity }),
+          },
+          { requiredKeys: [] },
+        ),
+        (l, feed, product, body, compressor, extra) =>
+          check('post', '/v1/evaporators/mechanical-vapor-recompression', {
+            liquor: l,
+            feed,
+            product,
+            body,
+            compressor,
+            ...extra,
+          }),
+      ),
+      { numRuns: RUNS },
+    );
+  });
+
+  it('POST /v1/evaporators/mechanical-vapor-recompression with plausible numbers', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.constantFrom('sodium-hydroxide', 'sucrose', 'seawater', 'kraft-black-liquor'),
+        fc.double({ min: 0.01, max: 50, noNaN: true }),
+        fc.double({ min: 0, max: 0.6, noNaN: true }),
+        fc.double({ min: 0, max: 0.9, noNaN: true }),
+        fc.double({ min: 1, max: 300, noNaN: true }),
+        fc.double({ min: 1, max: 150, noNaN: true }),
+        fc.oneof(
+          fc.record({ temperatureDifference: fc.double({ min: 0.01, max: 80, noNaN: true }) }),
+          fc.record({ area: fc.double({ min: 1, max: 5000, noNaN: true }) }),
+          fc.record({ dischargePressure: fc.double({ min: 1, max: 2000, noNaN: true }) }),
+        ),
+        fc.option(fc.integer({ min: 1, max: 10 })),
+        fc.double({ min: 0.3, max: 1, noNaN: true }),
+        fc.option(fc.double({ min: 1, max: 3000, noNaN: true })),
+        (l, F, xF, xL, p, t, lift, stages, eta, makeUp) =>
+          check('post', '/v1/evaporators/mechanical-vapor-recompression', {
+            liquor: l,
+            feed: { massFlow: F, massFraction: xF, temperature: t },
+            product: { massFraction: xL },
+            body: {
+              pressure: p,
+              overallHeatTransferCoefficient: 2000,
+              ...('dischargePressure' in lift ? {} : lift),
+            },
+            compressor: {
+              isentropicEfficiency: eta,
+              ...('dischargePressure' in lift ? lift : {}),
+              ...(stages === null ? {} : { stages }),
+            },
+            ...(makeUp === null ? {} : { makeUpSteam: { pressure: makeUp } }),
+          }),
+      ),
+      { numRuns: RUNS },
+    );
+  });
+
   it('POST /v1/batch', async () => {
     await fc.assert(
       fc.asyncProperty(
@@ -211,6 +297,7 @@ describe('fuzzed requests never give a 5xx or a non-finite number', { timeout: 6
           'liquor-boiling-point',
           'liquor-enthalpy',
           'single-effect',
+          'mechanical-vapor-recompression',
           'bogus',
         ),
         fc.option(liquor),
@@ -234,6 +321,7 @@ describe('fuzzed requests never give a 5xx or a non-finite number', { timeout: 6
     '/v1/liquors/sodium-hydroxide/enthalpy',
     '/v1/evaporators/single-effect',
     '/v1/evaporators/multiple-effect',
+    '/v1/evaporators/mechanical-vapor-recompression',
     '/v1/batch',
     '/v1/stored-liquors',
   ])('adversarial shapes on POST %s', async (path) => {

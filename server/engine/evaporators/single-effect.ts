@@ -174,9 +174,13 @@ export interface SingleEffectResult {
 // Core (validated inputs, resolved steam)
 // ---------------------------------------------------------------------------------------------
 
-interface Prepared {
+/**
+ * The liquor side of an effect, validated: everything but the heating medium. Exported so that
+ * other arrangements heated by something else (a vapour compressor) share the same checks and
+ * balances.
+ */
+export interface LiquorSide {
   liquor: LiquorModel;
-  steam: SteamSupply;
   pressure: number;
   waterBoilingPoint: number;
   u: number;
@@ -186,6 +190,30 @@ interface Prepared {
   feedTemperature: number;
   feedEnthalpyOverride: number | undefined;
   productEnthalpyOverride: number | undefined;
+}
+
+interface Prepared extends LiquorSide {
+  steam: SteamSupply;
+}
+
+/** The liquor-side balance of an effect at product fraction x_L and feed F (see {@link liquorBalance}). */
+export interface LiquorBalance {
+  F: number;
+  L: number;
+  V: number;
+  xL: number;
+  hF: number;
+  hL: number;
+  /** Surface boiling point, K. */
+  T: number;
+  /** Mean boiling point (mid-depth with a liquid head), K. */
+  Tmean: number;
+  pMean: number;
+  /** Enthalpy of the vapour leaving at (p, T), J/kg. */
+  HV: number;
+  superheat: number;
+  /** Heat the liquor takes: V·H_V + L·h_L − F·h_F, W. */
+  need: number;
 }
 
 interface CoreState {
@@ -206,10 +234,17 @@ interface CoreState {
 }
 
 /**
- * Balances for product fraction x_L and feed F. May return S ≤ 0 (hot feed) or dT ≤ 0 (steam too
- * cold); the public functions decide what that means. `warnings` undefined inside iterations.
+ * Liquor-side balances for product fraction x_L and feed F: L and V from the mass and solute
+ * balances, the boiling points (surface and mean), the leaving vapour and the heat the liquor
+ * takes, V·H_V + L·h_L − F·h_F. `warnings` undefined inside iterations.
  */
-function core(pr: Prepared, F: number, xL: number, warnings: WarningSink, productFlow?: number): CoreState {
+export function liquorBalance(
+  pr: LiquorSide,
+  F: number,
+  xL: number,
+  warnings: WarningSink,
+  productFlow?: number,
+): LiquorBalance {
   const { liquor, pressure } = pr;
   // A pure-water feed (x_F = 0) leaves x_L = 0 whatever L is: the solute balance cannot give L,
   // so the caller passes it (from product.massFlow or F − V).
@@ -225,9 +260,6 @@ function core(pr: Prepared, F: number, xL: number, warnings: WarningSink, produc
   const vap = leavingVapor(pressure, T, pr.waterBoilingPoint);
   const hF = pr.feedEnthalpyOverride ?? liquor.enthalpy(pr.feedFraction, pr.feedTemperature, warnings);
   const hL = pr.productEnthalpyOverride ?? liquor.enthalpy(xL, T, warnings);
-  const need = V * vap.enthalpy + L * hL - F * hF;
-  const S = need / (pr.steam.heatPerKg * (1 - pr.f));
-  const Q = S * pr.steam.heatPerKg;
   return {
     F,
     L,
@@ -240,9 +272,33 @@ function core(pr: Prepared, F: number, xL: number, warnings: WarningSink, produc
     pMean,
     HV: vap.enthalpy,
     superheat: vap.superheat,
+    need: V * vap.enthalpy + L * hL - F * hF,
+  };
+}
+
+/**
+ * Balances for product fraction x_L and feed F. May return S ≤ 0 (hot feed) or dT ≤ 0 (steam too
+ * cold); the public functions decide what that means. `warnings` undefined inside iterations.
+ */
+function core(pr: Prepared, F: number, xL: number, warnings: WarningSink, productFlow?: number): CoreState {
+  const b = liquorBalance(pr, F, xL, warnings, productFlow);
+  const S = b.need / (pr.steam.heatPerKg * (1 - pr.f));
+  const Q = S * pr.steam.heatPerKg;
+  return {
+    F: b.F,
+    L: b.L,
+    V: b.V,
+    xL: b.xL,
+    hF: b.hF,
+    hL: b.hL,
+    T: b.T,
+    Tmean: b.Tmean,
+    pMean: b.pMean,
+    HV: b.HV,
+    superheat: b.superheat,
     S,
     Q,
-    dT: pr.steam.condensingTemperature - Tmean,
+    dT: pr.steam.condensingTemperature - b.Tmean,
   };
 }
 
@@ -256,6 +312,26 @@ function prepare(
   },
   productEnthalpy: number | undefined,
 ): Prepared {
+  const side = prepareLiquorSide(input, productEnthalpy);
+  return { ...side, steam: resolveSteamSupply(input.steam, 'steam') };
+}
+
+/**
+ * Validates the liquor side of an effect (liquor, feed, body pressure, U, liquid height, heat-loss
+ * fraction) and resolves T_sat(p).
+ *
+ * @throws EngineRangeError an input outside its range (field, value and range named)
+ * @throws EngineInputError when `liquor` is not a liquor model
+ */
+export function prepareLiquorSide(
+  input: {
+    liquor: LiquorModel;
+    feed: { massFraction: number; temperature: number; enthalpy?: number };
+    body: BodySpec;
+    heatLossFraction?: number;
+  },
+  productEnthalpy: number | undefined,
+): LiquorSide {
   const { liquor, feed, body } = input;
   if (!liquor || typeof liquor.boilingPoint !== 'function') {
     throw new EngineInputError('liquor', 'liquor must be a liquor model');
@@ -277,10 +353,8 @@ function prepare(
       `heatLossFraction = ${f} must be from 0 up to (not including) 1`,
     );
   }
-  const steam = resolveSteamSupply(input.steam, 'steam');
   return {
     liquor,
-    steam,
     pressure: body.pressure,
     waterBoilingPoint: saturationTemperature(body.pressure),
     u: body.overallHeatTransferCoefficient,
@@ -313,6 +387,19 @@ function noSteamHotEnough(pr: Prepared, c: CoreState): EngineNoSolutionError {
   );
 }
 
+/** The liquor side's warnings: a feed that flashes on entry, a product near its solubility limit. */
+export function liquorSideWarnings(
+  pr: LiquorSide,
+  c: { xL: number; T: number },
+  warnings: EngineWarning[],
+): void {
+  if (pr.feedTemperature > pr.waterBoilingPoint) {
+    // The BPR is ≥ 0, so a feed below T_sat(p) cannot flash: skip the model call then.
+    warnFeedFlash(pr.feedTemperature, pr.liquor.boilingPoint(pr.feedFraction, pr.pressure), warnings);
+  }
+  warnSolubility(pr.liquor, c.xL, c.T, warnings);
+}
+
 /** Builds the public result from a converged core state, with warnings, cautions and balances. */
 function assemble(
   pr: Prepared,
@@ -331,11 +418,7 @@ function assemble(
   warnSmallTemperatureDifference(c.dT, warnings);
   warnLargeTemperatureDifference(c.dT, warnings);
   warnLargeSteamSuperheat(pr.steam.superheat, warnings);
-  if (pr.feedTemperature > pr.waterBoilingPoint) {
-    // The BPR is ≥ 0, so a feed below T_sat(p) cannot flash: skip the model call then.
-    warnFeedFlash(pr.feedTemperature, pr.liquor.boilingPoint(pr.feedFraction, pr.pressure), warnings);
-  }
-  warnSolubility(pr.liquor, c.xL, c.T, warnings);
+  liquorSideWarnings(pr, c, warnings);
   const st = pr.steam;
   const result: SingleEffectResult = {
     mode,
@@ -424,7 +507,7 @@ export function singleEffectBalances(r: SingleEffectResult): {
  * For a pure-water feed (x_F = 0) the product flow L is returned too: the solute balance is then
  * silent about it, and V = F − L.
  */
-function productTarget(F: number, xF: number, product: ProductSpec): { xL: number; L?: number } {
+export function productTarget(F: number, xF: number, product: ProductSpec): { xL: number; L?: number } {
   const given = (['massFraction', 'massFlow', 'evaporation'] as const).filter(
     (k) => product[k] !== undefined,
   );
