@@ -109,6 +109,12 @@ export const operationCatalogue = {
     unitsPerEffect: 5,
     batchName: 'multiple-effect',
   },
+  evaporatorSchemeStudy: {
+    id: 'studies.evaporator-schemes',
+    label: 'Rank evaporator schemes by total annual cost (the sum of the units of the calculations it runs)',
+    scope: 'evaporators',
+    units: 0,
+  },
   batch: {
     id: 'batch',
     label: 'Run many calculations in one request (cost: the sum of the rows)',

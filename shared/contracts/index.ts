@@ -5,3 +5,4 @@ export * from './liquors.js';
 export * from './evaporators.js';
 export * from './batch.js';
 export * from './usage.js';
+export * from './studies.js';
