@@ -20,15 +20,33 @@ import { LiquorRefSchema } from './liquors.js';
 /** The largest money figure a price may be: far above any plant, a typing slip beyond. */
 export const MAX_MONEY = 1e12;
 
-const money = (description: string, example: number, max = MAX_MONEY) =>
-  z
+/**
+ * A unit-less number in [min, max] (money, hours, years, a rate or an exponent): the bounds go to
+ * OpenAPI as minimum/maximum, and a refusal states both of them with `unit` (as a quantity's does).
+ */
+function bounded(min: number, max: number, unit: string, description: string, example: number) {
+  return z
     .number()
-    .min(0)
-    .max(max)
-    .meta({
-      description: `${description}. Money in the account's own currency (a plain number, no unit; the study never converts currencies); 0 to ${max}`,
-      example,
-    });
+    .superRefine((value, ctx) => {
+      if (!(value >= min && value <= max)) {
+        ctx.addIssue({
+          code: 'custom',
+          message: `${value} lies outside the accepted range ${min} to ${max}${unit ? ` ${unit}` : ''}`,
+          params: { validRange: { min, max, unit } },
+        });
+      }
+    })
+    .meta({ description, example, minimum: min, maximum: max });
+}
+
+const money = (description: string, example: number, max = MAX_MONEY) =>
+  bounded(
+    0,
+    max,
+    '',
+    `${description}. Money in the account's own currency (a plain number, no unit; the study never converts currencies); 0 to ${max}`,
+    example,
+  );
 
 const efficiency: QuantitySpec = { kind: 'fraction', min: 0, max: 1, minExclusive: true };
 // MVR bodies run on a few kelvin: 3–15 K is usual (common practice); 50 K bounds any single-stage fan or compressor.
@@ -55,21 +73,26 @@ export const STUDY_PRICES = [
 
 export const ScaledCostSchema = z.object({
   reference: money('Installed cost of the reference unit', 250_000),
-  exponent: z.number().min(0).max(1.5).meta({
-    description:
-      'Power-law exponent m of cost = reference·(size/referenceSize)^m, unit-less, 0 to 1.5 (≈ 0.6 is the usual "six-tenths" rule, common practice)',
-    example: 0.6,
-  }),
+  exponent: bounded(
+    0,
+    1.5,
+    '',
+    'Power-law exponent m of cost = reference·(size/referenceSize)^m, unit-less, 0 to 1.5 (≈ 0.6 is the usual "six-tenths" rule, common practice)',
+    0.6,
+  ),
 });
 
 export const SchemePricesSchema = z
   .object({
     steamPrice: money('Price of purchased steam per tonne (live, motive or make-up steam)', 25, 1e6),
     electricityPrice: money('Price of electricity per kWh', 0.12, 1e4),
-    operatingHoursPerYear: z.number().min(0).max(8784).meta({
-      description: 'Operating hours per year, 0 to 8784 (a leap year), unit-less hours',
-      example: 8000,
-    }),
+    operatingHoursPerYear: bounded(
+      0,
+      8784,
+      'h',
+      'Operating hours per year, 0 to 8784 (a leap year), in hours',
+      8000,
+    ),
     bodyCost: ScaledCostSchema.extend({
       referenceArea: quantity(positiveArea, 'Heat-transfer area of the reference evaporator body', 100),
     })
@@ -86,14 +109,20 @@ export const SchemePricesSchema = z
         description:
           'Installed cost of one compressor with its drive at the reference shaft power, scaled by (shaft power/referenceShaftPower)^exponent',
       }),
-    interestRate: z.number().min(0).max(1).meta({
-      description: 'Interest (discount) rate per year as a fraction, unit-less, 0 to 1 (0.08 = 8 %)',
-      example: 0.08,
-    }),
-    lifeYears: z.number().min(1).max(100).meta({
-      description: 'Economic life in years over which the installed cost is recovered, 1 to 100',
-      example: 15,
-    }),
+    interestRate: bounded(
+      0,
+      1,
+      '',
+      'Interest (discount) rate per year as a fraction, unit-less, 0 to 1 (0.08 = 8 %)',
+      0.08,
+    ),
+    lifeYears: bounded(
+      1,
+      100,
+      'years',
+      'Economic life in years over which the installed cost is recovered, 1 to 100',
+      15,
+    ),
   })
   .strict()
   .meta({ id: 'SchemePrices', description: 'Prices and economic parameters, money in the account currency' });

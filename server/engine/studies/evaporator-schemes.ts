@@ -204,6 +204,13 @@ export function candidateCosts(figures: CandidateFigures, prices: SchemePrices):
     scaledCost(prices.compressorCost, figures.shaftPower, figures.compressors);
   const crf = capitalRecoveryFactor(prices.interestRate, prices.lifeYears);
   const capitalCharge = crf * installedCost;
+  if (!Number.isFinite(annualEnergyCost + capitalCharge)) {
+    // Only absurd scalings get here (a reference size of 1e-300 m² raised to 1.5): say so, never send ∞.
+    throw new EngineNoSolutionError(
+      'the costs exceed the largest number that can be stated: check the reference sizes and costs',
+      { reason: 'cost-overflow' },
+    );
+  }
   return {
     annualEnergyCost,
     installedCost,
