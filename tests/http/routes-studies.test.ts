@@ -314,6 +314,27 @@ describe('refusals', () => {
     expect(usageRows(h.sqlite).at(-1)).toMatchObject({ operation: 'studies.evaporator-schemes', units: 0 });
   });
 
+  it('states both bounds of a refused price in its message and range', async () => {
+    const res = await request(h.app)
+      .post(STUDY)
+      .set(auth())
+      .send(study({ prices: { ...prices, bodyCost: { ...prices.bodyCost, exponent: 2 } } }));
+    const e = (res.body.errors as { field: string; message: string; validRange: unknown }[])[0]!;
+    expect(e.message).toBe('2 lies outside the accepted range 0 to 1.5');
+    expect(e.validRange).toEqual({ min: 0, max: 1.5, unit: '' });
+  });
+
+  it('refuses a lowest pressure above the live steam, naming lowestPressure in kPa', async () => {
+    const res = await request(h.app)
+      .post(STUDY)
+      .set(auth())
+      .send(study({ lowestPressure: '12 bar' }));
+    expect(res.status).toBe(422);
+    const e = (res.body.errors as { field: string; validRange: { max: number; unit: string } }[])[0]!;
+    expect(e.field).toBe('lowestPressure');
+    expect(e.validRange).toMatchObject({ max: 1001.325, unit: 'kPa' });
+  });
+
   it('refuses costs that overflow (a vanishing reference size) rather than send a non-finite number', async () => {
     const res = await request(h.app)
       .post(STUDY)

@@ -30,7 +30,7 @@ import { display, provenance, r } from '../../output.js';
 import { problem } from '../../problem.js';
 import { declareOperation, type OperationContext } from '../operation.js';
 import { resolveLiquor } from '../../../liquors/index.js';
-import { MULTIPLE_EFFECT_FIELDS } from './evaporators.js';
+import { MULTIPLE_EFFECT_FIELDS, multipleEffect } from './evaporators.js';
 import { IF97_MODEL } from './steam.js';
 
 type StudyBody = SI<EvaporatorSchemeStudyRequest>;
@@ -217,7 +217,8 @@ export const evaporatorSchemeStudy = declareOperation({
   tag: 'Studies',
   summary: 'Rank evaporator schemes for one duty by total annual cost, with ±30 % price sensitivity',
   description:
-    'Trains of 1…maxEffects equal-area effects (each the design `POST /v1/evaporators/multiple-effect` would give for one U in every body), and mechanical or thermal vapour recompression when asked and available in this build, are costed: annual energy cost = (steam t/h × steamPrice + electric kW × electricityPrice) × operatingHoursPerYear; installed cost = Σ bodies reference·(area/referenceArea)^exponent + compressors reference·(shaft power/referenceShaftPower)^exponent; capital charge = CRF × installed cost with CRF = i(1+i)^y/((1+i)^y − 1) (1/y at i = 0); total annual cost = energy + capital charge. ' +
+    `Trains of 1…maxEffects equal-area effects (each the design \`POST ${multipleEffect.path}\` would give for one U in every body), and` +
+    ' mechanical or thermal vapour recompression when asked and available in this build, are costed: annual energy cost = (steam t/h × steamPrice + electric kW × electricityPrice) × operatingHoursPerYear; installed cost = Σ bodies reference·(area/referenceArea)^exponent + compressors reference·(shaft power/referenceShaftPower)^exponent; capital charge = CRF × installed cost with CRF = i(1+i)^y/((1+i)^y − 1) (1/y at i = 0); total annual cost = energy + capital charge. ' +
     'A candidate that cannot be calculated is listed as infeasible with the reason; if none can, the study is refused (422) as the single-effect call would be. ' +
     'Sensitivity: steamPrice, electricityPrice, bodyCost.reference and compressorCost.reference each at −30 % and +30 %, and which candidate is then cheapest. ' +
     'Cost in units: the sum of the single calculations its candidates stand for — a train of n effects as a multiple-effect call (5 + 5·n), an MVR candidate as an MVR call, a TVR candidate on n effects as a multiple-effect call; a scheme this build cannot calculate costs nothing. The whole sum is reserved from the raw body before any work (429 when the quota cannot cover it), and the units of infeasible candidates are given back, so `unitsCharged` is what the feasible candidates would have cost as single calls. ' +
