@@ -142,6 +142,7 @@ export interface SchemeStudyResult {
   sources: Citation[];
 }
 
+// Editions and chapters are cited from memory; the two formulas are the standard ones these texts state.
 const SOURCES: Citation[] = [
   {
     key: 'sullivan-engineering-economy',
