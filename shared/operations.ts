@@ -116,6 +116,12 @@ export const operationCatalogue = {
     units: 5,
     batchName: 'mechanical-vapor-recompression',
   },
+  evaporatorSchemeStudy: {
+    id: 'studies.evaporator-schemes',
+    label: 'Rank evaporator schemes by total annual cost (the sum of the units of the calculations it runs)',
+    scope: 'evaporators',
+    units: 0,
+  },
   batch: {
     id: 'batch',
     label: 'Run many calculations in one request (cost: the sum of the rows)',

@@ -6,3 +6,4 @@ export * from './evaporators.js';
 export * from './batch.js';
 export * from './usage.js';
 export * from './recompression.js';
+export * from './studies.js';

@@ -8,6 +8,7 @@ import { runSteamBench } from './steam.js';
 import { runSingleEffectBench } from './single-effect.js';
 import { runMultipleEffectBench } from './multiple-effect.js';
 import { runMechanicalVaporRecompressionBench } from './mechanical-vapor-recompression.js';
+import { runSchemeStudyBench } from './scheme-study.js';
 import { runApiBench } from './api.js';
 import { runBundleBench } from './bundle.js';
 import { runDrainBench } from './drain.js';
@@ -18,6 +19,7 @@ const sections: { title: string; run: () => Promise<void> }[] = [
   { title: 'Single-effect evaporator', run: runSingleEffectBench },
   { title: 'Multiple-effect evaporator', run: runMultipleEffectBench },
   { title: 'Mechanical-vapour-recompression evaporator', run: runMechanicalVaporRecompressionBench },
+  { title: 'Evaporator-scheme study', run: runSchemeStudyBench },
   {
     title: 'Metered API vs a bare Express route (autocannon, loopback)',
     run: async () => {

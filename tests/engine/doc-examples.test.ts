@@ -21,6 +21,7 @@ import * as seawater from '../../server/engine/liquors/seawater.js';
 import * as sodiumHydroxide from '../../server/engine/liquors/sodium-hydroxide.js';
 import * as sucrose from '../../server/engine/liquors/sucrose.js';
 import * as if97 from '../../server/engine/steam/if97.js';
+import * as evaporatorSchemes from '../../server/engine/studies/evaporator-schemes.js';
 
 const ENGINE = fileURLToPath(new URL('../../server/engine/', import.meta.url));
 
@@ -32,6 +33,7 @@ const CORRELATION_MODULES: Record<string, Record<string, unknown>> = {
   'liquors/sodium-hydroxide.ts': sodiumHydroxide,
   'liquors/sucrose.ts': sucrose,
   'steam/if97.ts': if97,
+  'studies/evaporator-schemes.ts': evaporatorSchemes,
 };
 
 /** Exported functions that compute no property, so need no example. */
@@ -44,6 +46,8 @@ const NOT_CORRELATIONS: Record<string, readonly string[]> = {
     'rateMechanicalVaporRecompression',
     'mechanicalVaporRecompressionBalances',
   ],
+  // take and return records (figures, prices, a study), not numbers; tested in tests/engine/studies/
+  'studies/evaporator-schemes.ts': ['candidateCosts', 'runSchemeStudy'],
 };
 
 interface Example {

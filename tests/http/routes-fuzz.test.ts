@@ -288,6 +288,56 @@ describe('fuzzed requests never give a 5xx or a non-finite number', { timeout: 6
     );
   });
 
+  it('POST /v1/studies/evaporator-schemes', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.constantFrom('sodium-hydroxide', 'sucrose', 'seawater', 'nope'),
+        fc.integer({ min: 0, max: 11 }),
+        fc.constantFrom('forward', 'backward', 'parallel', 'sideways'),
+        fc.double({ min: 0.1, max: 20, noNaN: true }),
+        fc.double({ min: 0.01, max: 0.3, noNaN: true }),
+        fc.double({ min: 0.2, max: 0.7, noNaN: true }),
+        fc.oneof(weirdNumber, fc.double({ min: 5, max: 100, noNaN: true })),
+        fc.record({
+          steamPrice: weirdNumber,
+          electricityPrice: weirdNumber,
+          operatingHoursPerYear: fc.oneof(weirdNumber, fc.integer({ min: 0, max: 9000 })),
+          bodyCost: fc.record({ reference: weirdNumber, referenceArea: quantity, exponent: weirdNumber }),
+          compressorCost: fc.record({
+            reference: weirdNumber,
+            referenceShaftPower: quantity,
+            exponent: weirdNumber,
+          }),
+          interestRate: weirdNumber,
+          lifeYears: weirdNumber,
+        }),
+        fc.option(
+          fc.record({
+            temperatureDifference: quantity,
+            isentropicEfficiency: quantity,
+            driveEfficiency: quantity,
+          }),
+        ),
+        fc.option(fc.record({ motivePressure: quantity })),
+        (l, n, arrangement, F, xF, xL, pLast, prices, mvr, tvr) =>
+          check('post', '/v1/studies/evaporator-schemes', {
+            liquor: l,
+            feed: { massFlow: F, massFraction: xF, temperature: 60 },
+            product: { massFraction: xL },
+            lowestPressure: pLast,
+            steam: { pressure: '3 barg' },
+            overallHeatTransferCoefficient: 2000,
+            feedArrangement: arrangement,
+            maxEffects: n,
+            prices,
+            ...(mvr === null ? {} : { mvr }),
+            ...(tvr === null ? {} : { tvr }),
+          }),
+      ),
+      { numRuns: RUNS },
+    );
+  });
+
   it('POST /v1/batch', async () => {
     await fc.assert(
       fc.asyncProperty(
@@ -322,6 +372,7 @@ describe('fuzzed requests never give a 5xx or a non-finite number', { timeout: 6
     '/v1/evaporators/single-effect',
     '/v1/evaporators/multiple-effect',
     '/v1/evaporators/mechanical-vapor-recompression',
+    '/v1/studies/evaporator-schemes',
     '/v1/batch',
     '/v1/stored-liquors',
   ])('adversarial shapes on POST %s', async (path) => {

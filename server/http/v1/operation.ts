@@ -20,7 +20,7 @@ import type { z } from 'zod';
 import type { CatalogueEntry } from '../../../shared/operations.js';
 import type { Db, Sqlite } from '../../db/client.js';
 import type { AppDeps } from '../../deps.js';
-import { chargeUnits, guardOperation } from '../middleware/operation.js';
+import { chargeUnits, guardOperation, releaseUnits } from '../middleware/operation.js';
 import { siPlan, toSI, type SI, type SiPlan } from '../quantities.js';
 import { sendCalculation } from '../send.js';
 import { validate } from '../validate.js';
@@ -32,6 +32,11 @@ export interface OperationContext {
   sqlite: Sqlite;
   engineVersion: string;
   clock: () => Date;
+  /**
+   * Gives back units of this request's charge for work that was refused after all (a study's
+   * infeasible candidates, as a batch's failed cases). Absent where nothing can be given back.
+   */
+  releaseUnits?: (units: number) => void;
 }
 
 type Out<S> = S extends z.ZodType ? z.output<S> : undefined;
@@ -45,7 +50,7 @@ export interface OperationInput<P, Q, B, L> {
   loaded: L;
 }
 
-export type OpenApiTag = 'Steam' | 'Liquors' | 'Evaporators' | 'Batch' | 'Usage';
+export type OpenApiTag = 'Steam' | 'Liquors' | 'Evaporators' | 'Studies' | 'Batch' | 'Usage';
 
 export interface OperationDeclaration<
   P extends z.ZodType | undefined = z.ZodType | undefined,
@@ -214,6 +219,7 @@ function contextOf(res: Response, deps: AppDeps): OperationContext {
     sqlite: deps.sqlite,
     engineVersion: deps.engineVersion,
     clock: deps.clock,
+    releaseUnits: (units) => releaseUnits(res, units),
   };
 }
 

@@ -47,7 +47,7 @@ const SINGLE_EFFECT_FIELDS: FieldMap = {
 // The engine names the last effect's pressure itself, and labels what a liquor model refuses
 // inside effect i as effects[i].pressure / .boilingTemperature / .massFraction; a bare
 // "pressure" is not the last effect's.
-const MULTIPLE_EFFECT_FIELDS: FieldMap = {
+export const MULTIPLE_EFFECT_FIELDS: FieldMap = {
   ...SINGLE_EFFECT_FIELDS,
   pressure: 'pressure',
   massFraction: 'product.massFraction',

@@ -15,6 +15,7 @@ import {
   storedLiquorList,
   storedLiquorUpdate,
 } from './stored-liquors.js';
+import { evaporatorSchemeStudy } from './studies.js';
 import { usageRead } from './usage.js';
 
 const calculations: AnyOperation[] = [
@@ -36,6 +37,7 @@ const calculations: AnyOperation[] = [
 export const v1Operations: readonly AnyOperation[] = [
   ...calculations,
   batchOperation(calculations),
+  evaporatorSchemeStudy,
   usageRead,
 ];
 
