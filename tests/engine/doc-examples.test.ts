@@ -15,6 +15,8 @@ import { readdirSync, readFileSync } from 'node:fs';
 import { join, relative } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
+import * as figuresOfMerit from '../../server/engine/evaporators/figures-of-merit.js';
+import * as thermocompressor from '../../server/engine/evaporators/thermocompressor.js';
 import * as kraftBlackLiquor from '../../server/engine/liquors/kraft-black-liquor.js';
 import * as seawater from '../../server/engine/liquors/seawater.js';
 import * as sodiumHydroxide from '../../server/engine/liquors/sodium-hydroxide.js';
@@ -25,6 +27,8 @@ const ENGINE = fileURLToPath(new URL('../../server/engine/', import.meta.url));
 
 /** The modules whose every exported function is a correlation (or steam-property) function. */
 const CORRELATION_MODULES: Record<string, Record<string, unknown>> = {
+  'evaporators/figures-of-merit.ts': figuresOfMerit,
+  'evaporators/thermocompressor.ts': thermocompressor,
   'liquors/kraft-black-liquor.ts': kraftBlackLiquor,
   'liquors/seawater.ts': seawater,
   'liquors/sodium-hydroxide.ts': sodiumHydroxide,
@@ -35,6 +39,8 @@ const CORRELATION_MODULES: Record<string, Record<string, unknown>> = {
 /** Exported functions that compute no property, so need no example. */
 const NOT_CORRELATIONS: Record<string, readonly string[]> = {
   'steam/if97.ts': ['if97CitationFor'], // builds a citation record
+  'evaporators/figures-of-merit.ts': ['figuresOfMerit'], // assembles the figures from a result
+  'evaporators/thermocompressor.ts': ['requireWorkingEjector', 'checkThermocompressor'], // checks
 };
 
 interface Example {
