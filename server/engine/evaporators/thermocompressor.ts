@@ -9,6 +9,7 @@
  * (correlation of El-Dessouky fitted to manufacturers' ejector curves).
  */
 import { EngineNoSolutionError, EngineRangeError } from '../errors.js';
+import { IF97 } from '../steam/if97.js';
 import { addWarning, KELVIN_OFFSET, type Citation, type WarningSink } from '../types.js';
 
 export const THERMOCOMPRESSOR_SOURCE: Citation = {
@@ -16,6 +17,9 @@ export const THERMOCOMPRESSOR_SOURCE: Citation = {
   reference:
     'H.T. El-Dessouky, H.M. Ettouney, Fundamentals of Salt Water Desalination, Elsevier (2002): steam-jet ejector entrainment correlation (Ra = 0.296·P_c^1.19/P_e^1.04·(P_m/P_e)^0.015·PCF/TCF) and the gain output ratio',
 };
+
+/** Highest pressure with a saturation state (IF97 regions 1/4/2), Pa: the ceiling of the refusal ranges. */
+const IF97_SATURATION_LIMIT = IF97.region13SaturationPressure;
 
 /** Validity of the correlation as printed (El-Dessouky and Ettouney 2002), SI. */
 export const EL_DESSOUKY_VALIDITY = {
@@ -145,7 +149,7 @@ export function requireWorkingEjector(p: EjectorPoint): void {
     throw new EngineRangeError(
       'steam.pressure',
       p.dischargePressure,
-      { min: p.suctionPressure, max: Number.POSITIVE_INFINITY, unit: 'Pa' },
+      { min: p.suctionPressure, max: IF97_SATURATION_LIMIT, unit: 'Pa' },
       `steam.pressure = ${p.dischargePressure} Pa: the thermocompressor's discharge (the chest of effect 1) must be above the suction pressure ${p.suctionPressure} Pa of the vapour it entrains`,
       undefined,
       "the thermocompressor's discharge (the chest of effect 1) must be above the pressure of the vapour it entrains",
@@ -155,7 +159,7 @@ export function requireWorkingEjector(p: EjectorPoint): void {
     throw new EngineRangeError(
       'thermocompressor.motivePressure',
       p.motivePressure,
-      { min: p.dischargePressure, max: Number.POSITIVE_INFINITY, unit: 'Pa' },
+      { min: p.dischargePressure, max: IF97_SATURATION_LIMIT, unit: 'Pa' },
       `thermocompressor.motivePressure = ${p.motivePressure} Pa must be above the discharge (steam) pressure ${p.dischargePressure} Pa`,
       undefined,
       'the motive steam must be above the discharge (chest) pressure to drive the ejector',
