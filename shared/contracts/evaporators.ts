@@ -84,12 +84,12 @@ export const FiguresOfMeritSchema = z
     ).nullable(),
     specificHeatTransferArea: out(
       { symbol: 'm2/(kg/s)', label: 'm² per kg/s of distillate' },
-      'Specific heat-transfer area sA = A_total / M_d',
-    ),
+      'Specific heat-transfer area sA = A_total / M_d; null without distillate',
+    ).nullable(),
     specificThermalEnergy: out(
       { symbol: 'kW*h/m3', label: 'kWh per m³ of distillate' },
-      'Specific thermal energy Q_in / V_d, V_d = M_d / (1000 kg/m³)',
-    ),
+      'Specific thermal energy Q_in / V_d, V_d = M_d / (1000 kg/m³); null without distillate',
+    ).nullable(),
     specificElectricEnergy: out(
       { symbol: 'kW*h/m3', label: 'kWh per m³ of distillate' },
       'Specific electric energy P_el / V_d (mechanical vapour recompression); null where no electric power is modelled',

@@ -24,7 +24,7 @@ export const PERFORMANCE_RATIO_HEAT = 2326e3;
 export const DISTILLATE_DENSITY = 1000;
 
 export interface FiguresOfMeritInput {
-  /** Distillate M_d, kg/s (> 0). */
+  /** Distillate M_d, kg/s (the figures per unit of distillate are null when it is 0). */
   distillateFlow: number;
   /** Heating (or motive) steam M_s, kg/s; 0 or absent when there is none (MVR without make-up). */
   heatingSteamFlow?: number;
@@ -41,11 +41,11 @@ export interface FiguresOfMerit {
   gainOutputRatio: number | null;
   /** M_d·2326 kJ/kg / Q_in, or null without heat input. */
   performanceRatio: number | null;
-  /** A/M_d, m²/(kg/s). */
-  specificHeatTransferArea: number;
-  /** Q_in/(M_d/ρ), J/m³ (0 without heat input). */
-  specificThermalEnergy: number;
-  /** P_el/(M_d/ρ), J/m³, or null when no power is given. */
+  /** A/M_d, m²/(kg/s); null without distillate. */
+  specificHeatTransferArea: number | null;
+  /** Q_in/(M_d/ρ), J/m³ (0 without heat input); null without distillate. */
+  specificThermalEnergy: number | null;
+  /** P_el/(M_d/ρ), J/m³, or null when no power is given (or no distillate). */
   specificElectricEnergy: number | null;
   /** Q_in = M_s·q_s, W. */
   heatInput: number;
@@ -100,13 +100,21 @@ export function figuresOfMerit(input: FiguresOfMeritInput, warnings?: WarningSin
         'No heating steam is supplied, so the gain output ratio and the performance ratio (distillate per unit of steam or heat) are undefined: null',
     });
   }
+  // per unit of distillate: undefined when nothing is distilled (never an infinity)
+  const perDistillate = md > 0;
   return {
     gainOutputRatio: ms > 0 ? gainOutputRatio(md, ms) : null,
     performanceRatio: heatInput > 0 ? performanceRatio(md, heatInput) : null,
-    specificHeatTransferArea: input.totalArea / md,
-    specificThermalEnergy: heatInput > 0 ? energyPerDistillateVolume(heatInput, md) : 0,
+    specificHeatTransferArea: perDistillate ? input.totalArea / md : null,
+    specificThermalEnergy: !perDistillate
+      ? null
+      : heatInput > 0
+        ? energyPerDistillateVolume(heatInput, md)
+        : 0,
     specificElectricEnergy:
-      input.electricPower !== undefined ? energyPerDistillateVolume(input.electricPower, md) : null,
+      perDistillate && input.electricPower !== undefined
+        ? energyPerDistillateVolume(input.electricPower, md)
+        : null,
     heatInput,
   };
 }

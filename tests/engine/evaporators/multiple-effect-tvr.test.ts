@@ -251,8 +251,8 @@ describe('Figures of merit, recomputed from the result streams (El-Dessouky and 
     const heat = r.steam.massFlow * r.steam.heatPerKg;
     expect(rel(f.gainOutputRatio!, r.evaporation / r.steam.massFlow)).toBeLessThan(1e-12);
     expect(rel(f.performanceRatio!, (r.evaporation * 2326e3) / heat)).toBeLessThan(1e-12);
-    expect(rel(f.specificHeatTransferArea, r.totalArea / r.evaporation)).toBeLessThan(1e-12);
-    expect(rel(f.specificThermalEnergy / 3.6e6, heat / 3.6e6 / (r.evaporation / 1000))).toBeLessThan(1e-12);
+    expect(rel(f.specificHeatTransferArea!, r.totalArea / r.evaporation)).toBeLessThan(1e-12);
+    expect(rel(f.specificThermalEnergy! / 3.6e6, heat / 3.6e6 / (r.evaporation / 1000))).toBeLessThan(1e-12);
     expect(f.specificElectricEnergy).toBeNull();
   });
 
@@ -277,7 +277,7 @@ describe('Figures of merit, recomputed from the result streams (El-Dessouky and 
     const heat = r.steam.massFlow * (r.steam.enthalpyIn - r.steam.enthalpyOut);
     expect(rel(r.figuresOfMerit.gainOutputRatio!, r.vapor.massFlow / r.steam.massFlow)).toBeLessThan(1e-12);
     expect(rel(r.figuresOfMerit.performanceRatio!, (r.vapor.massFlow * 2326e3) / heat)).toBeLessThan(1e-12);
-    expect(rel(r.figuresOfMerit.specificHeatTransferArea, r.area / r.vapor.massFlow)).toBeLessThan(1e-12);
+    expect(rel(r.figuresOfMerit.specificHeatTransferArea!, r.area / r.vapor.massFlow)).toBeLessThan(1e-12);
   });
 
   it('without heating steam (vapour recompression by a compressor): GOR and PR null with a warning', () => {
@@ -289,5 +289,12 @@ describe('Figures of merit, recomputed from the result streams (El-Dessouky and 
     // 72 kW over 2 kg/s = 0.002 m³/s: 36 MJ/m³ = 10 kWh/m³
     expect(f.specificElectricEnergy! / 3.6e6).toBeCloseTo(10, 12);
     expect(warnings.map((w) => w.code)).toEqual(['no-heating-steam']);
+  });
+
+  it('gives null, never an infinity, for the figures per unit of distillate when nothing is distilled', () => {
+    const f = figuresOfMerit({ distillateFlow: 0, heatingSteamFlow: 1, heatPerKgSteam: 2e6, totalArea: 10 });
+    expect(f.gainOutputRatio).toBe(0);
+    expect(f.specificHeatTransferArea).toBeNull();
+    expect(f.specificThermalEnergy).toBeNull();
   });
 });

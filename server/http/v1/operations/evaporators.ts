@@ -56,8 +56,10 @@ function figuresOut(fom: FiguresOfMerit, asked: boolean | undefined, liquorId: s
     figuresOfMerit: {
       gainOutputRatio: nullable(fom.gainOutputRatio),
       performanceRatio: nullable(fom.performanceRatio),
-      specificHeatTransferArea: r(fom.specificHeatTransferArea),
-      specificThermalEnergy: r(fom.specificThermalEnergy / J_PER_KWH),
+      specificHeatTransferArea: nullable(fom.specificHeatTransferArea),
+      specificThermalEnergy: nullable(
+        fom.specificThermalEnergy === null ? null : fom.specificThermalEnergy / J_PER_KWH,
+      ),
       specificElectricEnergy: nullable(
         fom.specificElectricEnergy === null ? null : fom.specificElectricEnergy / J_PER_KWH,
       ),
