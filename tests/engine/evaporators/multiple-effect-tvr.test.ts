@@ -6,7 +6,7 @@
  * Water Desalination, 2002); the figures of merit from their definitions in the same book.
  */
 import { describe, expect, it } from 'vitest';
-import { EngineInputError } from '../../../server/engine/errors.js';
+import { EngineInputError, EngineNoSolutionError } from '../../../server/engine/errors.js';
 import { figuresOfMerit } from '../../../server/engine/evaporators/figures-of-merit.js';
 import {
   solveMultipleEffect,
@@ -225,6 +225,23 @@ describe('Thermocompressor refusals', () => {
     expect(() => solve({ thermocompressor: tvr, steam: { pressure: 35e3, superheat: 10 } })).toThrow(
       EngineInputError,
     );
+  });
+
+  it('refuses, with a typed no-solution error, an ejector and a bleed that leave the next chest no vapour', () => {
+    let caught: unknown;
+    try {
+      solve({
+        overallHeatTransferCoefficients: [2400, 2300],
+        lastEffectPressure: 20e3,
+        feed: { massFlow: 20, massFraction: 0.042, temperature: 10 + C },
+        vaporBleeds: [{ effect: 1, massFlow: 4 }],
+        thermocompressor: { ...tvr, entrainedFromEffect: 1 },
+      });
+    } catch (e) {
+      caught = e;
+    }
+    expect(caught).toBeInstanceOf(EngineNoSolutionError);
+    expect((caught as EngineNoSolutionError).detail.reason).toBe('negative-flow');
   });
 
   it('warns outside the correlation: a 4 MPa motive steam', () => {
