@@ -5,8 +5,9 @@
  * ejector from El-Dessouky's printed correlation (El-Dessouky and Ettouney, Fundamentals of Salt
  * Water Desalination, 2002); the figures of merit from their definitions in the same book.
  */
+import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { EngineInputError, EngineNoSolutionError } from '../../../server/engine/errors.js';
+import { EngineInputError, EngineNoSolutionError, EngineRangeError } from '../../../server/engine/errors.js';
 import { figuresOfMerit } from '../../../server/engine/evaporators/figures-of-merit.js';
 import {
   solveMultipleEffect,
@@ -313,5 +314,68 @@ describe('Figures of merit, recomputed from the result streams (El-Dessouky and 
     expect(f.gainOutputRatio).toBe(0);
     expect(f.specificHeatTransferArea).toBeNull();
     expect(f.specificThermalEnergy).toBeNull();
+  });
+});
+
+describe('Random trains with a thermocompressor', () => {
+  const arrangement = fc.constantFrom<MultipleEffectInput['feedArrangement']>(
+    'forward',
+    'backward',
+    'parallel',
+  );
+  const train = fc.integer({ min: 1, max: 6 }).chain((n) =>
+    fc.record({
+      n: fc.constant(n),
+      from: fc.integer({ min: 1, max: n }),
+      u: fc.array(fc.double({ min: 1500, max: 3000, noNaN: true }), { minLength: n, maxLength: n }),
+      arrangement,
+      chestC: fc.double({ min: 60, max: 75, noNaN: true }),
+      lastKPa: fc.double({ min: 5, max: 12, noNaN: true }),
+      motiveKPa: fc.double({ min: 300, max: 3000, noNaN: true }),
+      flash: fc.boolean(),
+    }),
+  );
+
+  it('converge with every balance closed and rate back to the design, or refuse with a typed error', () => {
+    let solved = 0;
+    let refused = 0;
+    fc.assert(
+      fc.property(train, (t) => {
+        const input: MultipleEffectInput = {
+          ...distiller,
+          steam: { saturationTemperature: t.chestC + C },
+          lastEffectPressure: t.lastKPa * 1e3,
+          overallHeatTransferCoefficients: t.u,
+          feedArrangement: t.arrangement,
+          condensateFlash: t.flash,
+          thermocompressor: { motivePressure: t.motiveKPa * 1e3, entrainedFromEffect: t.from },
+        };
+        try {
+          const r = solveMultipleEffect(input);
+          expectClosed(r);
+          if (!t.flash) expect(energyResidual(r, input)).toBeLessThan(1e-9);
+          const rated = solveMultipleEffect({
+            ...input,
+            mode: 'given-areas',
+            productMassFraction: undefined,
+            areas: r.effects.map((e) => e.area),
+          });
+          expect(
+            rel(rated.thermocompressor!.motiveSteamFlow, r.thermocompressor!.motiveSteamFlow),
+          ).toBeLessThan(1e-6);
+          solved++;
+        } catch (e) {
+          refused++;
+          expect(
+            e instanceof EngineNoSolutionError ||
+              e instanceof EngineRangeError ||
+              e instanceof EngineInputError,
+          ).toBe(true);
+          if (e instanceof EngineNoSolutionError) expect(e.detail.reason).not.toBe('not-converged');
+        }
+      }),
+      { numRuns: 150, seed: 20261 },
+    );
+    expect(solved).toBeGreaterThan(2 * refused);
   });
 });
