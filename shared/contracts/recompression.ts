@@ -11,7 +11,13 @@ import {
   WarningSchema,
   type QuantitySpec,
 } from './common.js';
-import { FeedSchema, ProductSpecSchema, StreamResultSchema } from './evaporators.js';
+import {
+  FeedSchema,
+  FiguresOfMeritSchema,
+  figuresOfMeritFlag,
+  ProductSpecSchema,
+  StreamResultSchema,
+} from './evaporators.js';
 import { LiquorRefSchema } from './liquors.js';
 
 /**
@@ -155,6 +161,7 @@ export const MechanicalVaporRecompressionRequestSchema = z
       'Pressure lost between the vapour space and the compressor inlet (a difference: give it in kPa, bar or mbar, never as a gauge reading; default 0)',
       undefined,
     ).optional(),
+    figuresOfMerit: figuresOfMeritFlag,
     atmosphericPressure: atmosphericPressureField(),
   })
   .strict()
@@ -266,6 +273,10 @@ export const MechanicalVaporRecompressionResponseSchema = z
       })
       .meta({ id: 'RecompressionCondensateResult' }),
     heatLoss: out('power', 'Heat lost to the surroundings (heatLossFraction × duty)'),
+    figuresOfMerit: FiguresOfMeritSchema.optional().meta({
+      description:
+        'Desalination figures of merit (seawater, or figuresOfMerit: true). The heating steam is the make-up steam: without it the gain output ratio and performance ratio are null, with a warning; specificElectricEnergy is the compressor drive’s electric power per m³ of distillate',
+    }),
     balances: z
       .object({
         mass: z.number().meta({ description: 'Relative residual of the mass balance' }),

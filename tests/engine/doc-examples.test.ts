@@ -16,6 +16,8 @@ import { join, relative } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
 import * as mechanicalVaporRecompression from '../../server/engine/evaporators/mechanical-vapor-recompression.js';
+import * as figuresOfMerit from '../../server/engine/evaporators/figures-of-merit.js';
+import * as thermocompressor from '../../server/engine/evaporators/thermocompressor.js';
 import * as kraftBlackLiquor from '../../server/engine/liquors/kraft-black-liquor.js';
 import * as seawater from '../../server/engine/liquors/seawater.js';
 import * as sodiumHydroxide from '../../server/engine/liquors/sodium-hydroxide.js';
@@ -28,6 +30,8 @@ const ENGINE = fileURLToPath(new URL('../../server/engine/', import.meta.url));
 /** The modules whose every exported function is a correlation (or steam-property) function. */
 const CORRELATION_MODULES: Record<string, Record<string, unknown>> = {
   'evaporators/mechanical-vapor-recompression.ts': mechanicalVaporRecompression,
+  'evaporators/figures-of-merit.ts': figuresOfMerit,
+  'evaporators/thermocompressor.ts': thermocompressor,
   'liquors/kraft-black-liquor.ts': kraftBlackLiquor,
   'liquors/seawater.ts': seawater,
   'liquors/sodium-hydroxide.ts': sodiumHydroxide,
@@ -45,9 +49,12 @@ const NOT_CORRELATIONS: Record<string, readonly string[]> = {
     'designMechanicalVaporRecompression',
     'rateMechanicalVaporRecompression',
     'mechanicalVaporRecompressionBalances',
+    'mechanicalVaporRecompressionFiguresOfMerit', // assembles the figures from a result
   ],
   // take and return records (figures, prices, a study), not numbers; tested in tests/engine/studies/
   'studies/evaporator-schemes.ts': ['candidateCosts', 'runSchemeStudy'],
+  'evaporators/figures-of-merit.ts': ['figuresOfMerit'], // assembles the figures from a result
+  'evaporators/thermocompressor.ts': ['requireWorkingEjector', 'checkThermocompressor'], // checks
 };
 
 interface Example {

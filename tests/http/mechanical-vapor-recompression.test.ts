@@ -243,3 +243,50 @@ describe(`POST ${PATH}`, () => {
     expect(res.body.results[1].problem.errors[0].field).toBe('cases[1].compressor.isentropicEfficiency');
   });
 });
+
+describe(`${PATH}: desalination figures of merit`, () => {
+  // Definitions: El-Dessouky & Ettouney, Fundamentals of Salt Water Desalination (2002): GOR =
+  // distillate / heating steam; PR = distillate·2326 kJ/kg / heat input; specific electric energy
+  // = electric power per m³ of distillate at 1000 kg/m³. Recomputed here from the result's streams.
+  it('reports them when asked, with the make-up steam as the heating steam and the drive power per m³', async () => {
+    const res = await request(h.app)
+      .post(PATH)
+      .set(auth())
+      .send({ ...oneStageBody, figuresOfMerit: true });
+    expect(res.status).toBe(200);
+    const b = res.body;
+    expect(b.makeUpSteam.massFlow).toBeGreaterThan(0);
+    const f = b.figuresOfMerit;
+    expect(f.gainOutputRatio).toBeCloseTo(b.vapor.massFlow / b.makeUpSteam.massFlow, 6);
+    // kW / (m³/s) = kJ/m³; / 3600 → kWh/m³
+    const volumeFlow = b.vapor.massFlow / 1000;
+    expect(f.specificElectricEnergy).toBeCloseTo(b.compressor.electricPower / volumeFlow / 3600, 4);
+    expect(f.specificHeatTransferArea).toBeCloseTo(b.area / b.vapor.massFlow, 6);
+    expect(f.performanceRatio).toBeGreaterThan(0);
+  });
+
+  it('gives null ratios with a warning when no make-up steam is drawn, and reports them for seawater unasked', async () => {
+    const res = await request(h.app)
+      .post(PATH)
+      .set(auth())
+      .send({
+        liquor: 'seawater',
+        feed: { massFlow: 20, massFraction: '42 g/kg', temperature: 58 },
+        product: { massFraction: '70 g/kg' },
+        body: { pressure: 20, overallHeatTransferCoefficient: 2400, temperatureDifference: 5 },
+      });
+    expect(res.status).toBe(200);
+    const b = res.body;
+    expect(b.makeUpSteam.massFlow).toBe(0);
+    expect(b.figuresOfMerit.gainOutputRatio).toBeNull();
+    expect(b.figuresOfMerit.performanceRatio).toBeNull();
+    expect(b.figuresOfMerit.specificElectricEnergy).toBeGreaterThan(0);
+    expect(b.warnings.map((w: { code: string }) => w.code)).toContain('no-heating-steam');
+  });
+
+  it('leaves them out for other liquors unless asked', async () => {
+    const res = await request(h.app).post(PATH).set(auth()).send(oneStageBody);
+    expect(res.status).toBe(200);
+    expect(res.body.figuresOfMerit).toBeUndefined();
+  });
+});

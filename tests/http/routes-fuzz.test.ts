@@ -57,9 +57,26 @@ const liquor = fc.oneof(
   }),
 );
 
-/** NaN/±Infinity, or a null (what JSON makes of them) anywhere but an unbounded end of a validRange or an echoed input `value`. */
+/** Figures of merit documented as null where undefined (no heating steam, no electric power, no distillate). */
+const NULLABLE_FIGURES = [
+  'gainOutputRatio',
+  'performanceRatio',
+  'specificHeatTransferArea',
+  'specificThermalEnergy',
+  'specificElectricEnergy',
+];
+
+/**
+ * NaN/±Infinity, or a null (what JSON makes of them) anywhere but an unbounded end of a validRange,
+ * an echoed input `value` or a figure of merit documented as nullable.
+ */
 function hasNonFiniteOrNull(v: unknown, key = '', parent = ''): boolean {
-  if (v === null) return !((parent === 'validRange' && (key === 'min' || key === 'max')) || key === 'value');
+  if (v === null)
+    return !(
+      (parent === 'validRange' && (key === 'min' || key === 'max')) ||
+      key === 'value' ||
+      (parent === 'figuresOfMerit' && NULLABLE_FIGURES.includes(key))
+    );
   if (typeof v === 'number') return !Number.isFinite(v);
   if (Array.isArray(v)) return v.some((x) => hasNonFiniteOrNull(x, '', key));
   if (typeof v === 'object')
@@ -159,13 +176,15 @@ describe('fuzzed requests never give a 5xx or a non-finite number', { timeout: 6
         fc.double({ min: 50, max: 2000, noNaN: true }),
         fc.double({ min: 1, max: 150, noNaN: true }),
         fc.option(fc.double({ min: 1, max: 500, noNaN: true })),
-        (l, F, xF, xL, p, ps, t, area) =>
+        fc.option(fc.boolean()),
+        (l, F, xF, xL, p, ps, t, area, fom) =>
           check('post', '/v1/evaporators/single-effect', {
             liquor: l,
             feed: { massFlow: F, massFraction: xF, temperature: t },
             product: area === null ? { massFraction: xL } : {},
             steam: { pressure: ps },
             body: { pressure: p, overallHeatTransferCoefficient: 1500, ...(area === null ? {} : { area }) },
+            ...(fom === null ? {} : { figuresOfMerit: fom }),
           }),
       ),
       { numRuns: RUNS },
@@ -332,6 +351,40 @@ describe('fuzzed requests never give a 5xx or a non-finite number', { timeout: 6
             prices,
             ...(mvr === null ? {} : { mvr }),
             ...(tvr === null ? {} : { tvr }),
+          }),
+      ),
+      { numRuns: RUNS },
+    );
+  });
+
+  it('POST /v1/evaporators/multiple-effect with a thermocompressor, flash and figures of merit', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.constantFrom('sodium-hydroxide', 'sucrose', 'seawater'),
+        fc.integer({ min: 1, max: 5 }),
+        fc.oneof(quantity, fc.double({ min: 1, max: 5000, noNaN: true })),
+        fc.option(fc.oneof(quantity, fc.double({ min: 0, max: 300, noNaN: true }))),
+        fc.option(fc.oneof(fc.integer({ min: -1, max: 7 }), quantity)),
+        fc.oneof(quantity, fc.double({ min: 20, max: 400, noNaN: true })),
+        fc.double({ min: 2, max: 60, noNaN: true }),
+        fc.option(fc.oneof(fc.boolean(), quantity)),
+        fc.option(fc.oneof(fc.boolean(), quantity)),
+        (l, n, pm, superheat, from, chest, pLast, flash, fom) =>
+          check('post', '/v1/evaporators/multiple-effect', {
+            liquor: l,
+            effects: n,
+            feed: { massFlow: 10, massFraction: l === 'seawater' ? 0.04 : 0.1, temperature: 40 },
+            product: { massFraction: l === 'seawater' ? 0.07 : 0.2 },
+            steam: { pressure: chest },
+            lastEffectPressure: pLast,
+            overallHeatTransferCoefficients: Array.from({ length: n }, () => 2000),
+            thermocompressor: {
+              motivePressure: pm,
+              ...(superheat === null ? {} : { motiveSuperheat: superheat }),
+              ...(from === null ? {} : { entrainedFromEffect: from }),
+            },
+            ...(flash === null ? {} : { condensateFlash: flash }),
+            ...(fom === null ? {} : { figuresOfMerit: fom }),
           }),
       ),
       { numRuns: RUNS },

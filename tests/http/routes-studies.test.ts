@@ -217,6 +217,31 @@ describe('POST /v1/studies/evaporator-schemes', () => {
     expect(res.body.cautions.map((c: { code: string }) => c.code)).toContain('rotating-machinery');
   });
 
+  it('gives each TVR row the motive steam and area of the separate multiple-effect call with a thermocompressor', async () => {
+    const tvr = { motivePressure: '25 barg' };
+    const res = await request(h.app)
+      .post(STUDY)
+      .set(auth())
+      .send(study({ maxEffects: 3, tvr }));
+    expect(res.status).toBe(200);
+    const rows = (res.body.candidates as Row[]).filter((r) => r.scheme === 'thermal-vapor-recompression');
+    expect(rows.map((r) => r.effects)).toEqual([1, 2, 3]);
+    for (const row of rows) {
+      const one = await request(h.app)
+        .post(SINGLE)
+        .set(auth())
+        .send({ ...single(row.effects), thermocompressor: tvr });
+      expect(one.status).toBe(200);
+      expect(row.feasible).toBe(true);
+      expect(row.steamMassFlow).toBe(one.body.thermocompressor.motiveSteamFlow);
+      expect(row.totalArea).toBeCloseTo(one.body.totalArea, 9);
+      expect(row.steamEconomy).toBeCloseTo(one.body.steamEconomy, 6);
+    }
+    // Recompressing the last effect's vapour saves steam against the plain train of as many effects.
+    const plain = (res.body.candidates as Row[]).filter((r) => r.scheme === 'multiple-effect');
+    for (let i = 0; i < 3; i++) expect(rows[i]!.steamMassFlow!).toBeLessThan(plain[i]!.steamMassFlow!);
+  });
+
   it('carries the economic-screening caution and the engine cautions', async () => {
     const res = await request(h.app)
       .post(STUDY)

@@ -43,7 +43,15 @@ import {
   enthalpyAtPS,
   stateAtPH,
 } from '../steam/if97.js';
-import { addWarning, templated, type Citation, type EngineCaution, type EngineWarning } from '../types.js';
+import {
+  addWarning,
+  templated,
+  type Citation,
+  type EngineCaution,
+  type EngineWarning,
+  type WarningSink,
+} from '../types.js';
+import { figuresOfMerit, type FiguresOfMerit } from './figures-of-merit.js';
 import {
   balanceResidual,
   collectSources,
@@ -738,4 +746,29 @@ export function mechanicalVaporRecompressionBalances(r: MechanicalVaporRecompres
       ],
     ),
   };
+}
+
+/**
+ * The desalination figures of merit of an MVR result: distillate M_d = the vapour evaporated,
+ * heating steam = the make-up steam (heat released down to the chest condensate), electric power =
+ * the compressor drive's. Without make-up steam GOR and PR are null and a warning says why.
+ *
+ * @param result an MVR result (SI)
+ * @param warnings sink for the no-heating-steam warning
+ * @returns the figures of merit, SI (J/m³ for the energies)
+ */
+export function mechanicalVaporRecompressionFiguresOfMerit(
+  result: MechanicalVaporRecompressionResult,
+  warnings?: WarningSink,
+): FiguresOfMerit {
+  return figuresOfMerit(
+    {
+      distillateFlow: result.vapor.massFlow,
+      heatingSteamFlow: result.makeUpSteam.massFlow,
+      heatPerKgSteam: result.makeUpSteam.enthalpy - result.condensate.enthalpy,
+      electricPower: result.compressor.electricPower,
+      totalArea: result.area,
+    },
+    warnings,
+  );
 }

@@ -48,6 +48,7 @@ import {
   type SteamSupply,
   type SteamSupplySpec,
 } from './common.js';
+import { figuresOfMerit, type FiguresOfMerit } from './figures-of-merit.js';
 
 // ---------------------------------------------------------------------------------------------
 // Inputs and result
@@ -163,6 +164,11 @@ export interface SingleEffectResult {
   steamEconomy: number;
   /** S / V */
   specificSteamConsumption: number;
+  /**
+   * Desalination figures of merit (./figures-of-merit.ts): distillate = the vapour, heating
+   * steam = the steam, its heat per kg h_in − h_out.
+   */
+  figuresOfMerit: FiguresOfMerit;
   /** Relative residuals recomputed from the result's streams. */
   balances: { mass: number; solute: number; energy: number };
   warnings: EngineWarning[];
@@ -457,6 +463,12 @@ function assemble(
     area,
     steamEconomy: c.V / c.S,
     specificSteamConsumption: c.S / c.V,
+    figuresOfMerit: figuresOfMerit({
+      distillateFlow: c.V,
+      heatingSteamFlow: c.S,
+      heatPerKgSteam: st.enthalpyIn - st.enthalpyOut,
+      totalArea: area,
+    }),
     balances: { mass: 0, solute: 0, energy: 0 },
     warnings,
     cautions: standardCautions({

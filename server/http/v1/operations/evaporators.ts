@@ -14,7 +14,13 @@ import {
 } from '../../../../shared/contracts/index.js';
 import { operationCatalogue } from '../../../../shared/operations.js';
 import type { SteamSupplySpec } from '../../../engine/evaporators/common.js';
-import { designMultipleEffect, rateMultipleEffect } from '../../../engine/evaporators/multiple-effect.js';
+import type { FiguresOfMerit } from '../../../engine/evaporators/figures-of-merit.js';
+import {
+  designMultipleEffect,
+  rateMultipleEffect,
+  type MultipleEffectResult,
+  type ThermocompressorSpec,
+} from '../../../engine/evaporators/multiple-effect.js';
 import {
   designSingleEffect,
   rateSingleEffect,
@@ -33,6 +39,31 @@ function stream(s: StreamState) {
     massFraction: r(s.massFraction),
     temperature: display(s.temperature, 'temperature'),
     enthalpy: display(s.enthalpy, 'specificEnthalpy'),
+  };
+}
+
+/** J/m³ → kWh/m³ (the figures of merit's energy per volume of distillate). */
+const J_PER_KWH = 3.6e6;
+
+/**
+ * The figures of merit when asked for, or by default for the seawater liquor (desalination);
+ * nothing otherwise, so other results keep their shape.
+ */
+export function figuresOut(fom: FiguresOfMerit, asked: boolean | undefined, liquorId: string) {
+  if (!(asked ?? liquorId === 'seawater')) return {};
+  const nullable = (v: number | null) => (v === null ? null : r(v));
+  return {
+    figuresOfMerit: {
+      gainOutputRatio: nullable(fom.gainOutputRatio),
+      performanceRatio: nullable(fom.performanceRatio),
+      specificHeatTransferArea: nullable(fom.specificHeatTransferArea),
+      specificThermalEnergy: nullable(
+        fom.specificThermalEnergy === null ? null : fom.specificThermalEnergy / J_PER_KWH,
+      ),
+      specificElectricEnergy: nullable(
+        fom.specificElectricEnergy === null ? null : fom.specificElectricEnergy / J_PER_KWH,
+      ),
+    },
   };
 }
 
@@ -189,12 +220,41 @@ export const singleEffect = declareOperation({
       specificSteamConsumption: r(result.specificSteamConsumption),
       waterBoilingPoint: display(result.waterBoilingPoint, 'temperature'),
       heatLoss: display(result.heatLoss, 'power'),
+      ...figuresOut(result.figuresOfMerit, b.figuresOfMerit, liquor.model.id),
       warnings: warningsOut([...liquor.definitionWarnings, ...result.warnings], SINGLE_EFFECT_FIELDS),
       cautions: result.cautions,
       provenance: provenance(ctx.engineVersion, [IF97_MODEL, ...liquor.models]),
     };
   },
 });
+
+/** The request's thermocompressor in SI → the engine's spec (absent optional fields left out). */
+function thermocompressorSpec(t: {
+  motivePressure: number;
+  motiveSuperheat?: number;
+  entrainedFromEffect?: number;
+}): ThermocompressorSpec {
+  return {
+    motivePressure: t.motivePressure,
+    ...(t.motiveSuperheat !== undefined ? { motiveSuperheat: t.motiveSuperheat } : {}),
+    ...(t.entrainedFromEffect !== undefined ? { entrainedFromEffect: t.entrainedFromEffect } : {}),
+  };
+}
+
+function thermocompressorOut(t: NonNullable<MultipleEffectResult['thermocompressor']>) {
+  return {
+    motiveSteamFlow: r(t.motiveSteamFlow),
+    entrainedVaporFlow: r(t.entrainedVaporFlow),
+    entrainmentRatio: r(t.entrainmentRatio),
+    motivePerEntrained: r(t.motivePerEntrained),
+    compressionRatio: r(t.compressionRatio),
+    expansionRatio: r(t.expansionRatio),
+    entrainedFromEffect: t.entrainedFromEffect,
+    suctionPressure: display(t.suctionPressure, 'pressure'),
+    dischargeEnthalpy: display(t.dischargeEnthalpy, 'specificEnthalpy'),
+    dischargeTemperature: display(t.dischargeTemperature, 'temperature'),
+  };
+}
 
 /** Units beyond the base of a multiple-effect request: `unitsPerEffect` × effects (1 to 10). */
 function perEffectUnits(body: unknown): number | undefined {
@@ -255,6 +315,7 @@ export const multipleEffect = declareOperation({
         ...(productMassFraction !== undefined ? { productMassFraction } : {}),
         ...(b.feedPreheat ? { feedPreheat: b.feedPreheat } : {}),
         ...(b.condensateFlash !== undefined ? { condensateFlash: b.condensateFlash } : {}),
+        ...(b.thermocompressor ? { thermocompressor: thermocompressorSpec(b.thermocompressor) } : {}),
       };
       if (b.areas) return rateMultipleEffect({ ...input, areas: b.areas });
       return designMultipleEffect(input);
@@ -272,6 +333,7 @@ export const multipleEffect = declareOperation({
         duty: display(e.duty, 'power'),
         area: r(e.area),
         vaporBleed: r(e.vaporBleed),
+        flashVapor: r(e.flashVapor),
       })),
       steam: {
         massFlow: r(result.steam.massFlow),
@@ -286,6 +348,8 @@ export const multipleEffect = declareOperation({
       iterations: result.iterations,
       residual: result.residual,
       feedPreheatDuty: display(result.feedPreheat?.duty ?? 0, 'power'),
+      ...(result.thermocompressor ? { thermocompressor: thermocompressorOut(result.thermocompressor) } : {}),
+      ...figuresOut(result.figuresOfMerit, b.figuresOfMerit, liquor.model.id),
       warnings: warningsOut([...liquor.definitionWarnings, ...result.warnings], MULTIPLE_EFFECT_FIELDS),
       cautions: result.cautions,
       provenance: provenance(ctx.engineVersion, [IF97_MODEL, ...liquor.models]),

@@ -10,12 +10,17 @@ import {
   type MechanicalVaporRecompressionResponse,
 } from '../../../../shared/contracts/index.js';
 import { operationCatalogue } from '../../../../shared/operations.js';
-import { mechanicalVaporRecompression } from '../../../engine/evaporators/mechanical-vapor-recompression.js';
+import {
+  mechanicalVaporRecompression,
+  mechanicalVaporRecompressionFiguresOfMerit,
+} from '../../../engine/evaporators/mechanical-vapor-recompression.js';
+import type { EngineWarning } from '../../../engine/types.js';
 import type { StreamState } from '../../../engine/evaporators/single-effect.js';
 import { resolveLiquor } from '../../../liquors/index.js';
 import { calculate, warningsOut, type FieldMap } from '../../engine-errors.js';
 import { display, provenance, r } from '../../output.js';
 import { declareOperation } from '../operation.js';
+import { figuresOut } from './evaporators.js';
 import { IF97_MODEL } from './steam.js';
 
 const FIELDS: FieldMap = {
@@ -108,6 +113,16 @@ export const mechanicalVaporRecompressionOperation = declareOperation({
       });
     });
     const k = result.compressor;
+    // The figures, and their no-make-up-steam warning, only where they are reported.
+    const figureWarnings: EngineWarning[] = [];
+    const figures =
+      (b.figuresOfMerit ?? liquor.model.id === 'seawater')
+        ? figuresOut(
+            mechanicalVaporRecompressionFiguresOfMerit(result, figureWarnings),
+            true,
+            liquor.model.id,
+          )
+        : {};
     return {
       mode: result.mode,
       compressor: {
@@ -146,7 +161,8 @@ export const mechanicalVaporRecompressionOperation = declareOperation({
       },
       heatLoss: display(result.heatLoss, 'power'),
       balances: result.balances,
-      warnings: warningsOut([...liquor.definitionWarnings, ...result.warnings], FIELDS),
+      ...figures,
+      warnings: warningsOut([...liquor.definitionWarnings, ...result.warnings, ...figureWarnings], FIELDS),
       cautions: result.cautions,
       provenance: provenance(ctx.engineVersion, [IF97_MODEL, ...liquor.models]),
     };

@@ -4,7 +4,8 @@
  * costed and ranked by the pure study (server/engine/studies/evaporator-schemes.ts).
  *
  * Which schemes this build can calculate is said once, in {@link schemeWiring}: a multiple-effect
- * train through `designMultipleEffect`, MVR through `designMechanicalVaporRecompression`; a scheme
+ * train through `designMultipleEffect`, MVR through `designMechanicalVaporRecompression`, TVR through `designMultipleEffect` with a
+ * thermocompressor; a scheme
  * whose slot is empty is listed as "not available in this build" (and costs nothing).
  */
 import {
@@ -81,34 +82,46 @@ function trainUnits(effects: number): number {
   return operationCatalogue.multipleEffect.units + operationCatalogue.multipleEffect.unitsPerEffect * effects;
 }
 
-/** The train of n equal-area effects the single `POST /v1/evaporators/multiple-effect` call would design. */
-function trainEvaluator(duty: Duty, gathered: Gathered) {
-  return (effects: number): CandidateFigures => {
-    const result = designMultipleEffect({
-      liquor: duty.liquor,
-      feed: duty.feed,
-      productMassFraction: duty.productMassFraction,
-      steam: { pressure: duty.steamPressure },
-      lastEffectPressure: duty.lowestPressure,
-      overallHeatTransferCoefficients: Array.from(
-        { length: effects },
-        () => duty.overallHeatTransferCoefficient,
-      ),
-      feedArrangement: duty.feedArrangement,
-    });
-    gather(gathered, result.cautions);
-    return {
-      steamMassFlow: result.steam.massFlow,
-      // Pumps and the vacuum system are not costed (the same for every scheme to first order).
-      electricPower: 0,
-      shaftPower: 0,
-      totalArea: result.totalArea,
-      bodies: effects,
-      compressors: 0,
-      evaporation: result.evaporation,
-      warnings: result.warnings,
-    };
+/**
+ * The train of n equal-area effects the single `POST /v1/evaporators/multiple-effect` call would
+ * design; with `thermocompressor`, the same call with a steam-jet thermocompressor whose discharge
+ * is the live-steam pressure and whose suction is the last effect's vapour (the TVR candidate).
+ */
+function trainFigures(duty: Duty, gathered: Gathered, effects: number, tvr: boolean): CandidateFigures {
+  const result = designMultipleEffect({
+    liquor: duty.liquor,
+    feed: duty.feed,
+    productMassFraction: duty.productMassFraction,
+    steam: { pressure: duty.steamPressure },
+    lastEffectPressure: duty.lowestPressure,
+    overallHeatTransferCoefficients: Array.from(
+      { length: effects },
+      () => duty.overallHeatTransferCoefficient,
+    ),
+    feedArrangement: duty.feedArrangement,
+    ...(tvr ? { thermocompressor: { motivePressure: duty.body.tvr!.motivePressure } } : {}),
+  });
+  gather(gathered, result.cautions);
+  return {
+    // The purchased steam: the live steam, or the thermocompressor's motive steam.
+    steamMassFlow: result.thermocompressor?.motiveSteamFlow ?? result.steam.massFlow,
+    // Pumps and the vacuum system are not costed (the same for every scheme to first order).
+    electricPower: 0,
+    shaftPower: 0,
+    totalArea: result.totalArea,
+    bodies: effects,
+    compressors: 0,
+    evaporation: result.evaporation,
+    warnings: result.warnings,
   };
+}
+
+function trainEvaluator(duty: Duty, gathered: Gathered) {
+  return (effects: number): CandidateFigures => trainFigures(duty, gathered, effects, false);
+}
+
+function tvrEvaluator(duty: Duty, gathered: Gathered) {
+  return (effects: number): CandidateFigures => trainFigures(duty, gathered, effects, true);
 }
 
 /**
@@ -154,7 +167,7 @@ const schemeWiring: {
 } = {
   train: { evaluator: trainEvaluator, units: trainUnits },
   mvr: { evaluator: mvrEvaluator, units: () => operationCatalogue.mechanicalVaporRecompression.units },
-  tvr: { evaluator: undefined, units: trainUnits },
+  tvr: { evaluator: tvrEvaluator, units: trainUnits },
 };
 
 /** The units of the candidates a raw body asks for (undefined when it cannot be read yet). */
