@@ -4,8 +4,8 @@
  * 15 kPa, U = 2000 W/(m²·K) in every body). Measured twice: the pure study with the train
  * evaluator (eight equal-area designs, costing, ±30 % sensitivity), and the whole request through
  * the metered route in-process (validation, units, liquor, the study, formatting, metering).
- * Target: median ≤ 50 ms for a study with MVR and TVR candidates on a 2-core machine; this build
- * has no MVR or TVR model, so the figure here is for the trains alone.
+ * Target: median ≤ 50 ms for a study with MVR and TVR candidates on a 2-core machine: the route
+ * figure has them (8 trains, 1 MVR, 8 TVR trains); the engine figure is the 8 trains alone.
  * Run alone with `npx tsx tests/bench/scheme-study.ts`.
  */
 import { pathToFileURL } from 'node:url';
@@ -63,6 +63,8 @@ const body = {
   overallHeatTransferCoefficient: 2000,
   feedArrangement: 'backward',
   maxEffects: MAX_EFFECTS,
+  mvr: { temperatureDifference: 8, isentropicEfficiency: 0.75, driveEfficiency: 0.95 },
+  tvr: { motivePressure: '25 barg' },
   prices: {
     steamPrice: 30,
     electricityPrice: 0.12,
@@ -93,7 +95,7 @@ export async function runSchemeStudyBench(): Promise<void> {
   const med = median(times);
   console.log(
     `scheme study, trains of 1–${MAX_EFFECTS} effects (engine, NaOH, backward feed): median ${med.toFixed(2)} ms per study, ` +
-      `${times.length} runs (target ≤ 50 ms with MVR and TVR; MVR/TVR not in this build)`,
+      `${times.length} runs (trains only)`,
   );
 
   const h = makeHarness({ quota: 100_000_000, rateLimit: 100_000 });
@@ -113,7 +115,8 @@ export async function runSchemeStudyBench(): Promise<void> {
     http.push(performance.now() - a);
   }
   console.log(
-    `scheme study through the metered route in-process (supertest): median ${median(http).toFixed(2)} ms per request, ${http.length} requests`,
+    `scheme study with MVR and TVR (8 trains, 1 MVR, 8 TVR trains) through the metered route in-process (supertest): ` +
+      `median ${median(http).toFixed(2)} ms per request, ${http.length} requests (target ≤ 50 ms)`,
   );
 }
 
