@@ -192,6 +192,20 @@ export const CustomLiquorDefinitionSchema = z
       .strict()
       .optional()
       .meta({ description: 'Measured enthalpies per concentration, kJ/kg; replace the c_p-based enthalpy' }),
+    density: z.object({ polynomial: PolynomialSchema }).strict().optional().meta({
+      description: 'Density in kg/m³ as a polynomial in x (optional; without it the liquor gives no density)',
+    }),
+    viscosity: z.object({ polynomial: PolynomialSchema }).strict().optional().meta({
+      description:
+        'Viscosity relative to pure water at the same temperature, μ/μ_water, as a polynomial in x (c0 = 1 for a liquor that tends to water); μ_water from IAPWS 2008. Optional: without it the liquor gives no viscosity',
+    }),
+    thermalConductivity: z.object({ polynomial: PolynomialSchema }).strict().optional().meta({
+      description:
+        'Thermal conductivity in W/(m·K) as a polynomial in x, independent of temperature (optional)',
+    }),
+    surfaceTension: z.object({ polynomial: PolynomialSchema }).strict().optional().meta({
+      description: 'Surface tension in mN/m as a polynomial in x, independent of temperature (optional)',
+    }),
     validity: z
       .object({ massFraction: Range01, temperature: RangeDegC.optional() })
       .strict()

@@ -47,4 +47,47 @@ describe('liquor catalogue: transport properties', () => {
     expect(box?.temperature.max).toBeCloseTo(70, 6);
     expect(box?.massFraction.max).toBe(0.56);
   });
+
+  it('stores a liquor with transport polynomials (surface tension in mN/m) and lists them as provided', async () => {
+    const created = await request(h.app)
+      .post('/v1/stored-liquors')
+      .set(auth())
+      .send({
+        id: 'demo-transport-liquor',
+        definition: {
+          name: 'Demo liquor with transport data (invented)',
+          boilingPointRise: { polynomial: [0, 5] },
+          heatCapacity: { polynomial: [4.18, -2.5] },
+          validity: { massFraction: { min: 0, max: 0.5 } },
+          viscosity: { polynomial: [1, 2, 30] },
+          surfaceTension: { polynomial: [60, 10] },
+        },
+      });
+    expect(created.status).toBe(201);
+    const res = await request(h.app).get('/v1/liquors/demo-transport-liquor').set(auth());
+    expect(res.status).toBe(200);
+    expect(res.body.properties).toMatchObject({
+      viscosity: true,
+      surfaceTension: true,
+      thermalConductivity: false,
+      density: false,
+    });
+  });
+
+  it('refuses a transport polynomial that turns negative, naming the field', async () => {
+    const res = await request(h.app)
+      .post('/v1/stored-liquors')
+      .set(auth())
+      .send({
+        definition: {
+          name: 'Broken conductivity (invented)',
+          boilingPointRise: { polynomial: [0, 5] },
+          heatCapacity: { polynomial: [4.18, -2.5] },
+          validity: { massFraction: { min: 0, max: 0.5 } },
+          thermalConductivity: { polynomial: [0.6, -2] },
+        },
+      });
+    expect(res.status).toBe(422);
+    expect(res.body.errors[0].field).toBe('definition.thermalConductivity.polynomial');
+  });
 });
