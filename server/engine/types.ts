@@ -30,6 +30,11 @@ export interface EngineWarning {
   values?: Record<string, EngineQuantity>;
   /** Where in a larger calculation the warning arose, unit-free ("effect 2"). */
   context?: string;
+  /**
+   * The liquor property whose source's data range was left ("viscosity", "thermal conductivity"),
+   * when a model's properties come from sources with different ranges.
+   */
+  property?: string;
 }
 
 /** The kinds of quantity an engine message may carry (SI values; the same names as the API's kinds). */
@@ -103,7 +108,10 @@ export type WarningSink = EngineWarning[] | undefined;
 /** Adds a warning unless one with the same code and field is already present. */
 export function addWarning(sink: WarningSink, warning: EngineWarning): void {
   if (!sink) return;
-  if (sink.some((w) => w.code === warning.code && w.field === warning.field)) return;
+  if (
+    sink.some((w) => w.code === warning.code && w.field === warning.field && w.property === warning.property)
+  )
+    return;
   sink.push(warning);
 }
 

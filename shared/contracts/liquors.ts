@@ -42,7 +42,32 @@ export const LiquorSummarySchema = z
       description: 'Hard limits: out-of-range beyond, a warning between validity and limits',
     }),
     sources: z.array(CitationSchema),
-    properties: z.object({ heatCapacity: z.boolean(), density: z.boolean(), solubilityLimit: z.boolean() }),
+    properties: z
+      .object({
+        heatCapacity: z.boolean(),
+        density: z.boolean(),
+        solubilityLimit: z.boolean(),
+        viscosity: z
+          .boolean()
+          .meta({ description: 'Dynamic viscosity (shown in mPa·s where results give it)' }),
+        thermalConductivity: z.boolean().meta({ description: 'Thermal conductivity, W/(m·K)' }),
+        surfaceTension: z.boolean().meta({ description: 'Surface tension against its vapour, mN/m' }),
+      })
+      .meta({
+        description:
+          'Which optional properties the model provides. A heat-transfer estimate that needs a missing one says so.',
+      }),
+    transportValidity: z
+      .object({
+        density: ValidityBoxSchema.optional(),
+        viscosity: ValidityBoxSchema.optional(),
+        thermalConductivity: ValidityBoxSchema.optional(),
+        surfaceTension: ValidityBoxSchema.optional(),
+      })
+      .meta({
+        description:
+          'Data range of the source of each property whose source differs from the model’s main one: silent inside, a model-extrapolated warning naming the property outside, refused beyond the limits',
+      }),
     cautions: z.array(CautionSchema),
   })
   .meta({ id: 'Liquor' });
@@ -181,6 +206,21 @@ export const CustomLiquorDefinitionSchema = z
         .meta({
           description: 'Measured enthalpies per concentration, kJ/kg; replace the c_p-based enthalpy',
         }),
+      density: z.object({ polynomial: PolynomialSchema }).strict().optional().meta({
+        description:
+          'Density in kg/m³ as a polynomial in x (optional; without it the liquor gives no density)',
+      }),
+      viscosity: z.object({ polynomial: PolynomialSchema }).strict().optional().meta({
+        description:
+          'Viscosity relative to pure water at the same temperature, μ/μ_water, as a polynomial in x (c0 = 1 for a liquor that tends to water); μ_water from IAPWS 2008. Optional: without it the liquor gives no viscosity',
+      }),
+      thermalConductivity: z.object({ polynomial: PolynomialSchema }).strict().optional().meta({
+        description:
+          'Thermal conductivity in W/(m·K) as a polynomial in x, independent of temperature (optional)',
+      }),
+      surfaceTension: z.object({ polynomial: PolynomialSchema }).strict().optional().meta({
+        description: 'Surface tension in mN/m as a polynomial in x, independent of temperature (optional)',
+      }),
       validity: z
         .object({ massFraction: Range01, temperature: RangeDegC.optional() })
         .strict()
