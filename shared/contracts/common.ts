@@ -62,6 +62,18 @@ export const physicalRanges: Record<QuantityKind, Required<Pick<QuantityRange, '
   // Water ≈ 1000, the densest liquors a few thousand; 30 000 kg/m³ is above any substance at
   // ordinary pressure (osmium ≈ 22 600, common practice).
   density: { min: 0, max: 30_000 },
+  // Liquor in evaporator tubes moves at 0.3–3 m/s (common practice); 50 m/s bounds any liquid flow.
+  velocity: { min: 0, max: 50 },
+  // Falling films are fed at ≈ 0.05–3 kg/(m·s) (common practice); 100 is far beyond any film.
+  wettingRate: { min: 0, max: 100 },
+  // TEMA's typical values are 1e-5 to 1e-3 m²·K/W; 0.1 (U below 10 W/(m²·K)) is no evaporator.
+  foulingResistance: { min: 0, max: 0.1 },
+  // Plastics ≈ 0.2, copper ≈ 400, diamond ≈ 2000 W/(m·K) (common practice): 0.01 to 5000.
+  thermalConductivity: { min: 0, max: 5000 },
+  // Water ≈ 0.3–1.8 mPa·s, molasses and black liquor up to ≈ 10⁵ mPa·s (common practice).
+  viscosity: { min: 0, max: 1e6 },
+  // Evaporator heating surfaces carry 5–100 kW/m² (common practice); 10 000 kW/m² is beyond boiling crisis.
+  heatFlux: { min: 0, max: 10_000 },
 };
 
 /** A kind's physical range, tightened by a field's own bounds where it has them. */
