@@ -15,6 +15,7 @@ import { readdirSync, readFileSync } from 'node:fs';
 import { join, relative } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
+import * as heatTransfer from '../../server/engine/heat-transfer/correlations.js';
 import * as kraftBlackLiquor from '../../server/engine/liquors/kraft-black-liquor.js';
 import * as seawater from '../../server/engine/liquors/seawater.js';
 import * as sodiumHydroxide from '../../server/engine/liquors/sodium-hydroxide.js';
@@ -25,6 +26,7 @@ const ENGINE = fileURLToPath(new URL('../../server/engine/', import.meta.url));
 
 /** The modules whose every exported function is a correlation (or steam-property) function. */
 const CORRELATION_MODULES: Record<string, Record<string, unknown>> = {
+  'heat-transfer/correlations.ts': heatTransfer,
   'liquors/kraft-black-liquor.ts': kraftBlackLiquor,
   'liquors/seawater.ts': seawater,
   'liquors/sodium-hydroxide.ts': sodiumHydroxide,
