@@ -431,7 +431,7 @@ export function estimateOverallCoefficient(input: OverallCoefficientInput): Over
     boilingModel = 'chun-seban-1971';
     sources.push({ key: 'chun-seban-1971', reference: CHUN_SEBAN_SOURCE });
     assumptions.push(
-      `falling film inside the tubes; film Reynolds number at the mean liquor flow Γ_mean = Γ_in·(1 − f/2) with f = ${f} the evaporated fraction`,
+      `falling film inside the tubes; film Reynolds number at the mean liquor flow Γ_mean = Γ_in·(1 − f/2) with f = ${Number(f.toPrecision(6))} the evaporated fraction`,
     );
     if (gammaOut < MIN_WETTING_RATE) {
       addWarning(warnings, {
@@ -496,7 +496,7 @@ export function estimateOverallCoefficient(input: OverallCoefficientInput): Over
       sources.push({ key: 'mostinski-1963', reference: MOSTINSKI_SOURCE });
       sources.push({ key: 'kutateladze-1961', reference: KUTATELADZE_SOURCE });
       assumptions.push(
-        `natural circulation: the circulation velocity ${velocity} m/s is an assumption given with the request, not computed from the thermosiphon balance`,
+        `natural circulation: the circulation velocity ${Number(velocity.toPrecision(6))} m/s is an assumption given with the request, not computed from the thermosiphon balance`,
         "natural circulation: h_i = (h_c² + h_nb²)^(1/2) (Kutateladze's asymptotic addition) of the liquid-only Dittus–Boelter coefficient at that velocity and Mostinski's nucleate-boiling coefficient with the critical pressure of water (the liquor taken as water for nucleation); the non-boiling zone at the tube bottom and the hydrostatic head are not modelled",
       );
       const text =

@@ -6,6 +6,7 @@
 import type { AnyOperation } from '../operation.js';
 import { batchOperation } from './batch.js';
 import { multipleEffect, singleEffect } from './evaporators.js';
+import { overallCoefficient } from './heat-transfer.js';
 import { liquorBoilingPoint, liquorEnthalpy, liquorGet, liquorList } from './liquors.js';
 import { steamSaturation, steamState } from './steam.js';
 import {
@@ -29,6 +30,7 @@ const calculations: AnyOperation[] = [
   liquorEnthalpy,
   singleEffect,
   multipleEffect,
+  overallCoefficient,
 ];
 
 export const v1Operations: readonly AnyOperation[] = [
