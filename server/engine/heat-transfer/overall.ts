@@ -23,7 +23,7 @@
  * Designed to be called per effect: (liquor, x, T_boil, p_body, T_steam, tube, flow) in SI, with
  * the answer U plus its breakdown.
  */
-import { EngineInputError, EngineRangeError } from '../errors.js';
+import { EngineInputError, EngineNoSolutionError, EngineRangeError } from '../errors.js';
 import type { LiquorModel } from '../liquors/model.js';
 import { brentSolve } from '../numeric/roots.js';
 import {
@@ -505,6 +505,13 @@ export function estimateOverallCoefficient(input: OverallCoefficientInput): Over
     }
   }
 
+  if (!(hConvective > 0) || !Number.isFinite(hConvective)) {
+    // Only absurd property values get here (a density or viscosity at the edge of the doubles).
+    throw new EngineInputError(
+      'liquorProperties',
+      'The liquor properties give no finite liquor-side film coefficient; check the viscosity, density, conductivity and heat capacity',
+    );
+  }
   const pBody = input.bodyPressure;
   if (nucleate && (!Number.isFinite(pBody) || pBody <= 0 || pBody >= pCritical)) {
     throw new EngineRangeError('bodyPressure', pBody, { min: 0, max: pCritical, unit: 'Pa' });
@@ -597,6 +604,11 @@ export function estimateOverallCoefficient(input: OverallCoefficientInput): Over
     });
   }
 
+  if (![U, ho, hi, total, q].every((v) => Number.isFinite(v) && v > 0)) {
+    throw new EngineNoSolutionError('The resistances give no finite overall coefficient for these inputs', {
+      reason: 'non-finite',
+    });
+  }
   const share = (r: number): number => r / total;
   return {
     evaporatorType: type,
