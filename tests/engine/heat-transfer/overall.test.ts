@@ -145,6 +145,30 @@ describe('overall coefficient: warnings', () => {
     expect(codes(short.warnings)).not.toContain('condensate-film-wavy');
   });
 
+  it('warns when the condensate film turns turbulent (Re_δ > 1800)', () => {
+    const r = estimateOverallCoefficient({
+      ...fallingFilm,
+      evaporatorType: 'forced-circulation',
+      flow: { tubeVelocity: 3 },
+      boilingTemperature: 373.15,
+      bodyPressure: saturationPressure(373.15),
+      steamTemperature: 413.15,
+      fouling: { inside: 0, outside: 0 },
+      tube: { ...fallingFilm.tube, length: 16, material: 'copper-nickel-90-10' },
+    });
+    expect(r.condensingSide.reynolds).toBeGreaterThan(1800);
+    expect(r.condensingSide.regime).toBe('turbulent');
+    expect(codes(r.warnings)).toContain('condensate-film-turbulent');
+  });
+
+  it('warns when a falling film lies outside the Reynolds range of Chun & Seban’s data', () => {
+    const r = estimateOverallCoefficient({ ...fallingFilm, flow: { wettingRate: 0.02 } });
+    expect(r.boilingSide.reynolds).toBeLessThan(320);
+    expect(codes(r.warnings)).toEqual(
+      expect.arrayContaining(['correlation-extrapolated', 'wetting-rate-below-minimum']),
+    );
+  });
+
   it('warns that natural circulation is approximate and states the assumed velocity', () => {
     const r = estimateOverallCoefficient({
       ...fallingFilm,
