@@ -124,6 +124,30 @@ describe('POST /v1/heat-transfer/overall-coefficient', () => {
     expect(res.body.errors[0].validRange.min).toBeGreaterThan(60);
   });
 
+  it('refuses a boiling temperature the liquor model cannot reach, with its range in °C', async () => {
+    const { bodyPressure: _unused, ...rest } = brine;
+    const res = await request(h.app)
+      .post(PATH)
+      .set(auth())
+      .send({ ...rest, boilingTemperature: 300, steam: { temperature: 320 } });
+    expect(res.status).toBe(422);
+    expect(res.body.errors[0]).toMatchObject({ field: 'boilingTemperature', value: 300 });
+    expect(res.body.errors[0].validRange.unit).toBe('degC');
+    expect(res.body.errors[0].validRange.max).toBeLessThan(300);
+  });
+
+  it('finds the body pressure from a given boiling temperature', async () => {
+    const { bodyPressure: _unused, ...rest } = brine;
+    const res = await request(h.app)
+      .post(PATH)
+      .set(auth())
+      .send({ ...rest, boilingTemperature: 70 });
+    expect(res.status).toBe(200);
+    expect(res.body.liquorState.boilingTemperature).toBeCloseTo(70, 9);
+    // Seawater boils above pure water: below p_sat(70 °C) = 31.20 kPa (IAPWS-IF97).
+    expect(res.body.liquorState.bodyPressure).toBeLessThan(31.2);
+  });
+
   it('asks for exactly one liquor state and the flow of the evaporator type', async () => {
     const both = await request(h.app)
       .post(PATH)

@@ -731,12 +731,43 @@ export function liquorBoilingState(
   const g = (lnP: number): number => liquor.boilingPoint(massFraction, Math.exp(lnP), undefined) - T;
   const hi = Math.log(saturationPressure(T) * (1 + 1e-9));
   let lo = hi;
-  for (const rise of [5, 20, 60, 150]) {
-    lo = Math.log(saturationPressure(Math.max(IF97.minTemperature, T - rise)));
-    if (g(lo) < 0) break;
+  let p: number;
+  try {
+    for (const rise of [5, 20, 60, 150]) {
+      lo = Math.log(saturationPressure(Math.max(IF97.minTemperature, T - rise)));
+      if (g(lo) < 0) break;
+    }
+    p = Math.exp(brentSolve(g, lo, hi, { tol: 1e-13 }).root);
+    liquor.boilingPoint(massFraction, p, warnings);
+  } catch (error) {
+    // The model refused a pressure the search tried: say it of the temperature the caller gave,
+    // with the range in which this liquor boils at this mass fraction.
+    if (!(error instanceof EngineRangeError) || error.field === 'massFraction') throw error;
+    throw new EngineRangeError(
+      'boilingTemperature',
+      T,
+      boilingRange(liquor, massFraction),
+      undefined,
+      undefined,
+      `the ${liquor.id} model gives boiling points only within this range at this mass fraction`,
+    );
   }
-  const solved = brentSolve(g, lo, hi, { tol: 1e-13 });
-  const p = Math.exp(solved.root);
-  liquor.boilingPoint(massFraction, p, warnings);
   return { boilingTemperature: T, bodyPressure: p };
+}
+
+/** Where a liquor boils at x: its boiling points at the ends of its pressure limits (else its temperature limits), K. */
+function boilingRange(liquor: LiquorModel, massFraction: number): { min: number; max: number; unit: string } {
+  const at = (p: number | undefined, fallback: number): number => {
+    if (p === undefined) return fallback;
+    try {
+      return liquor.boilingPoint(massFraction, p, undefined);
+    } catch {
+      return fallback;
+    }
+  };
+  return {
+    min: at(liquor.limits.pressure?.min, liquor.limits.temperature.min),
+    max: at(liquor.limits.pressure?.max, liquor.limits.temperature.max),
+    unit: 'K',
+  };
 }

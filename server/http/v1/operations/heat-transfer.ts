@@ -63,6 +63,7 @@ export const overallCoefficient = declareOperation({
       pressure: { path: stateField, kind: b.bodyPressure !== undefined ? 'pressure' : 'temperature' },
       temperature: { path: stateField, kind: 'temperature' },
       boilingTemperature: { path: stateField, kind: 'temperature' },
+      waterBoilingTemperature: { path: stateField, kind: 'temperature' },
       bodyPressure: 'bodyPressure',
       steamTemperature: { path: steamField, kind: 'temperature' },
       massFraction: 'massFraction',
