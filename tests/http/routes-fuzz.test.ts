@@ -262,12 +262,13 @@ describe('fuzzed requests never give a 5xx or a non-finite number', { timeout: 6
         fc.double({ min: 0.1, max: 25, noNaN: true }),
         fc.double({ min: 1e-3, max: 5, noNaN: true }),
         fc.double({ min: 0, max: 0.95, noNaN: true }),
-        (type, l, x, p, ts, d, t, len, v, f) =>
+        fc.option(fc.double({ min: 1, max: 250, noNaN: true })),
+        (type, l, x, p, ts, d, t, len, v, f, tb) =>
           check('post', '/v1/heat-transfer/overall-coefficient', {
             evaporatorType: type,
             liquor: l,
             massFraction: x,
-            bodyPressure: p,
+            ...(tb === null ? { bodyPressure: p } : { boilingTemperature: tb }),
             steam: { temperature: ts },
             tube: { outsideDiameter: d, wallThickness: t, length: len, wallConductivity: 16 },
             flow:

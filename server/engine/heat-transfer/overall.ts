@@ -20,6 +20,15 @@
  * at the mean of the inlet and outlet liquor flows, Γ_mean = Γ_in·(1 − f/2), where f is the
  * fraction of the inlet flow evaporated in the tube (default 0).
  *
+ * Natural circulation (calandria tubes) is an approximation, warned as such: the liquid-only
+ * Dittus–Boelter coefficient at an ASSUMED circulation velocity and Mostinski's nucleate-boiling
+ * coefficient (reduced-pressure form; water's critical pressure) are added asymptotically,
+ * h = (h_c² + h_nb²)^(1/2) (Kutateladze 1961). Why: in such tubes the liquor is first heated by
+ * convection and then boils, and both mechanisms matter; Mostinski needs no liquor property beyond
+ * the pressure (the liquor models give none for nucleation), and the asymptotic sum goes to each
+ * mechanism alone where the other is small. The thermosiphon balance that would fix the velocity,
+ * the length of the non-boiling zone and the hydrostatic head are not modelled.
+ *
  * Designed to be called per effect: (liquor, x, T_boil, p_body, T_steam, tube, flow) in SI, with
  * the answer U plus its breakdown.
  */
@@ -273,6 +282,8 @@ function positive(field: string, value: number | undefined, unit: string, max = 
 }
 
 const CONDENSATE_MAX_TEMPERATURE = IF97.region13Temperature;
+/** The water critical pressure used for the reduced pressure of nucleate boiling, Pa. */
+export const NUCLEATION_CRITICAL_PRESSURE = IF97.criticalPressure;
 /** The film temperature of the condensate properties is converged to this, K. */
 const FILM_TEMPERATURE_TOLERANCE = 0.01;
 
@@ -395,7 +406,8 @@ export function estimateOverallCoefficient(input: OverallCoefficientInput): Over
   let wetting: BoilingSideResult['wettingRate'];
   let transitionReynolds: number | undefined;
   let nucleate = false;
-  let pCritical = IF97.criticalPressure;
+  // Mostinski's reduced pressure uses water's critical pressure: the liquor is taken as water for nucleation.
+  const pCritical = NUCLEATION_CRITICAL_PRESSURE;
 
   if (type === 'falling-film') {
     const perimeter = Math.PI * Di;
@@ -491,7 +503,6 @@ export function estimateOverallCoefficient(input: OverallCoefficientInput): Over
     } else {
       boilingModel = 'kutateladze-mostinski';
       nucleate = true;
-      pCritical = IF97.criticalPressure;
       regime = 'nucleate-boiling';
       sources.push({ key: 'mostinski-1963', reference: MOSTINSKI_SOURCE });
       sources.push({ key: 'kutateladze-1961', reference: KUTATELADZE_SOURCE });
@@ -697,9 +708,6 @@ export function estimateOverallCoefficient(input: OverallCoefficientInput): Over
 function round3(v: number): number {
   return Number(v.toPrecision(3));
 }
-
-/** The water critical pressure used for the reduced pressure of nucleate boiling, Pa. */
-export const NUCLEATION_CRITICAL_PRESSURE = IF97.criticalPressure;
 
 /**
  * The boiling state of a liquor in the tubes from either the body pressure or the boiling
