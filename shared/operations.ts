@@ -122,6 +122,13 @@ export const operationCatalogue = {
     scope: 'evaporators',
     units: 0,
   },
+  overallCoefficient: {
+    id: 'heat-transfer.overall-coefficient',
+    label: 'Estimate the overall heat-transfer coefficient U of an evaporator tube from film coefficients',
+    scope: 'evaporators',
+    units: 2,
+    batchName: 'overall-coefficient',
+  },
   batch: {
     id: 'batch',
     label: 'Run many calculations in one request (cost: the sum of the rows)',

@@ -50,7 +50,13 @@ export type EngineQuantityKind =
   | 'area'
   | 'heatTransferCoefficient'
   | 'length'
-  | 'density';
+  | 'density'
+  | 'velocity'
+  | 'wettingRate'
+  | 'foulingResistance'
+  | 'thermalConductivity'
+  | 'viscosity'
+  | 'heatFlux';
 
 /** An SI value with its kind, for a message the caller formats. */
 export interface EngineQuantity {
@@ -90,6 +96,12 @@ const SI_UNIT_KINDS: Record<string, EngineQuantityKind> = {
   'W/(m²·K)': 'heatTransferCoefficient',
   m: 'length',
   'kg/m³': 'density',
+  'm/s': 'velocity',
+  'kg/(m·s)': 'wettingRate',
+  'm²·K/W': 'foulingResistance',
+  'W/(m·K)': 'thermalConductivity',
+  'Pa·s': 'viscosity',
+  'W/m²': 'heatFlux',
 };
 
 /** A safety caution shown with results that could hurt someone if misused. */

@@ -9,6 +9,7 @@ import { runSingleEffectBench } from './single-effect.js';
 import { runMultipleEffectBench } from './multiple-effect.js';
 import { runMechanicalVaporRecompressionBench } from './mechanical-vapor-recompression.js';
 import { runSchemeStudyBench } from './scheme-study.js';
+import { runHeatTransferBench } from './heat-transfer.js';
 import { runApiBench } from './api.js';
 import { runBundleBench } from './bundle.js';
 import { runDrainBench } from './drain.js';
@@ -20,6 +21,7 @@ const sections: { title: string; run: () => Promise<void> }[] = [
   { title: 'Multiple-effect evaporator', run: runMultipleEffectBench },
   { title: 'Mechanical-vapour-recompression evaporator', run: runMechanicalVaporRecompressionBench },
   { title: 'Evaporator-scheme study', run: runSchemeStudyBench },
+  { title: 'Overall heat-transfer coefficient estimate', run: runHeatTransferBench },
   {
     title: 'Metered API vs a bare Express route (autocannon, loopback)',
     run: async () => {

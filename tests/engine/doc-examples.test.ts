@@ -18,6 +18,7 @@ import { describe, expect, it } from 'vitest';
 import * as mechanicalVaporRecompression from '../../server/engine/evaporators/mechanical-vapor-recompression.js';
 import * as figuresOfMerit from '../../server/engine/evaporators/figures-of-merit.js';
 import * as thermocompressor from '../../server/engine/evaporators/thermocompressor.js';
+import * as heatTransfer from '../../server/engine/heat-transfer/correlations.js';
 import * as kraftBlackLiquor from '../../server/engine/liquors/kraft-black-liquor.js';
 import * as seawater from '../../server/engine/liquors/seawater.js';
 import * as sodiumHydroxide from '../../server/engine/liquors/sodium-hydroxide.js';
@@ -32,6 +33,7 @@ const CORRELATION_MODULES: Record<string, Record<string, unknown>> = {
   'evaporators/mechanical-vapor-recompression.ts': mechanicalVaporRecompression,
   'evaporators/figures-of-merit.ts': figuresOfMerit,
   'evaporators/thermocompressor.ts': thermocompressor,
+  'heat-transfer/correlations.ts': heatTransfer,
   'liquors/kraft-black-liquor.ts': kraftBlackLiquor,
   'liquors/seawater.ts': seawater,
   'liquors/sodium-hydroxide.ts': sodiumHydroxide,

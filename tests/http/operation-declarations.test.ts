@@ -116,6 +116,7 @@ describe('one declaration per /v1 operation', () => {
       'single-effect',
       'multiple-effect',
       'mechanical-vapor-recompression',
+      'overall-coefficient',
     ]);
     for (const name of batchOperations) {
       const decl = v1Operations.filter((d) => 'batchName' in d.operation && d.operation.batchName === name);

@@ -391,6 +391,88 @@ describe('fuzzed requests never give a 5xx or a non-finite number', { timeout: 6
     );
   });
 
+  it('POST /v1/heat-transfer/overall-coefficient', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.constantFrom('falling-film', 'forced-circulation', 'natural-circulation', 'plate'),
+        liquor,
+        fc.record(
+          {
+            outsideDiameter: quantity,
+            wallThickness: quantity,
+            length: quantity,
+            material: fc.constantFrom('stainless-316', 'unobtainium'),
+            wallConductivity: quantity,
+          },
+          { requiredKeys: ['outsideDiameter', 'wallThickness', 'length'] },
+        ),
+        fc.record(
+          {
+            wettingRate: quantity,
+            liquorFlowPerTube: quantity,
+            evaporatedFraction: quantity,
+            tubeVelocity: quantity,
+            circulationVelocity: quantity,
+          },
+          { requiredKeys: [] },
+        ),
+        fc.record(
+          { viscosity: quantity, thermalConductivity: quantity, density: quantity, heatCapacity: quantity },
+          { requiredKeys: [] },
+        ),
+        quantity,
+        quantity,
+        (evaporatorType, l, tube, flow, liquorProperties, p, ts) =>
+          check('post', '/v1/heat-transfer/overall-coefficient', {
+            evaporatorType,
+            liquor: l,
+            massFraction: 0.05,
+            bodyPressure: p,
+            steam: { temperature: ts },
+            tube,
+            flow,
+            liquorProperties,
+          }),
+      ),
+      { numRuns: RUNS },
+    );
+  });
+
+  it('POST /v1/heat-transfer/overall-coefficient with plausible numbers', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.constantFrom('falling-film', 'forced-circulation', 'natural-circulation'),
+        fc.constantFrom('sodium-hydroxide', 'sucrose', 'seawater', 'kraft-black-liquor'),
+        fc.double({ min: 0, max: 0.7, noNaN: true }),
+        fc.double({ min: 1, max: 500, noNaN: true }),
+        fc.double({ min: 1, max: 300, noNaN: true }),
+        fc.double({ min: 0.005, max: 0.2, noNaN: true }),
+        fc.double({ min: 0.0002, max: 0.02, noNaN: true }),
+        fc.double({ min: 0.1, max: 25, noNaN: true }),
+        fc.double({ min: 1e-3, max: 5, noNaN: true }),
+        fc.double({ min: 0, max: 0.95, noNaN: true }),
+        fc.option(fc.double({ min: 1, max: 250, noNaN: true })),
+        (type, l, x, p, ts, d, t, len, v, f, tb) =>
+          check('post', '/v1/heat-transfer/overall-coefficient', {
+            evaporatorType: type,
+            liquor: l,
+            massFraction: x,
+            ...(tb === null ? { bodyPressure: p } : { boilingTemperature: tb }),
+            steam: { temperature: ts },
+            tube: { outsideDiameter: d, wallThickness: t, length: len, wallConductivity: 16 },
+            flow:
+              type === 'falling-film'
+                ? { wettingRate: v, evaporatedFraction: f }
+                : type === 'forced-circulation'
+                  ? { tubeVelocity: v }
+                  : { circulationVelocity: v },
+            liquorProperties: { viscosity: 1, thermalConductivity: 0.6, density: 1100, heatCapacity: 3.8 },
+          }),
+      ),
+      { numRuns: RUNS },
+    );
+  });
+
   it('POST /v1/batch', async () => {
     await fc.assert(
       fc.asyncProperty(
@@ -401,6 +483,7 @@ describe('fuzzed requests never give a 5xx or a non-finite number', { timeout: 6
           'liquor-enthalpy',
           'single-effect',
           'mechanical-vapor-recompression',
+          'overall-coefficient',
           'bogus',
         ),
         fc.option(liquor),
@@ -426,6 +509,7 @@ describe('fuzzed requests never give a 5xx or a non-finite number', { timeout: 6
     '/v1/evaporators/multiple-effect',
     '/v1/evaporators/mechanical-vapor-recompression',
     '/v1/studies/evaporator-schemes',
+    '/v1/heat-transfer/overall-coefficient',
     '/v1/batch',
     '/v1/stored-liquors',
   ])('adversarial shapes on POST %s', async (path) => {

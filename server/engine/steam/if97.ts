@@ -1107,3 +1107,53 @@ export function waterSurfaceTension(temperature: number): number {
   const tau = 1 - temperature / IF97.criticalTemperature;
   return 235.8e-3 * tau ** 1.256 * (1 - 0.625 * tau);
 }
+
+// ---------------------------------------------------------------------------------------------
+// Transport: saturated-liquid properties for film coefficients (heat-transfer estimate)
+// ---------------------------------------------------------------------------------------------
+
+/** Saturated liquid water at T with what a film coefficient needs, SI. */
+export interface SaturatedLiquidTransport {
+  /** K */
+  temperature: number;
+  /** Saturation pressure, Pa. */
+  pressure: number;
+  /** kg/m³ */
+  density: number;
+  /** Isobaric heat capacity, J/(kg·K). */
+  heatCapacity: number;
+  /** Dynamic viscosity, Pa·s (IAPWS R12-08, μ2 = 1). */
+  viscosity: number;
+  /** W/(m·K) (IAPWS R15-11 without the critical enhancement). */
+  thermalConductivity: number;
+}
+
+/**
+ * Saturated liquid water at temperature T with its density, heat capacity, viscosity and thermal
+ * conductivity: the properties of a condensate film or a water film, evaluated in one call on the
+ * lean path (IF97 region 1 up to 623.15 K, no state object) and the package's transport functions.
+ *
+ * Validity: 273.15 K to 623.15 K (region 1 of IF97; heat-transfer films of evaporators lie far
+ * below), transport releases to 1173.15 K.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}) for ρ and c_p; IAPWS R12-08 (viscosity, μ2 = 1)
+ * and IAPWS R15-11 (thermal conductivity, without λ2) as in {@link viscosityAtDensity} and
+ * {@link thermalConductivityAtDensity}.
+ *
+ * @param temperature T, K
+ * @returns p_s, ρ, c_p, μ and λ of the saturated liquid, SI
+ * @example saturatedLiquidTransport(373.15).viscosity // ≈ 2.81585e-4 Pa·s (python3-iapws IAPWS97(T=373.15, x=0).mu: 2.81585e-4 Pa·s)
+ */
+export function saturatedLiquidTransport(temperature: number): SaturatedLiquidTransport {
+  checkRange('temperature', temperature, 'K', IF97.minTemperature, IF97.region13Temperature);
+  const pressure = saturationPressureLean(temperature);
+  const raw = leanProps(1, pressure, temperature);
+  const density = 1 / raw.v;
+  return {
+    temperature,
+    pressure,
+    density,
+    heatCapacity: raw.cp,
+    viscosity: packageViscosity(temperature, density) * 1e-6,
+    thermalConductivity: packageConductivity(temperature, density) * 1e-3,
+  };
+}

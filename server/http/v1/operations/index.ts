@@ -7,6 +7,7 @@ import type { AnyOperation } from '../operation.js';
 import { batchOperation } from './batch.js';
 import { multipleEffect, singleEffect } from './evaporators.js';
 import { mechanicalVaporRecompressionOperation } from './recompression.js';
+import { overallCoefficient } from './heat-transfer.js';
 import { liquorBoilingPoint, liquorEnthalpy, liquorGet, liquorList } from './liquors.js';
 import { steamSaturation, steamState } from './steam.js';
 import {
@@ -32,6 +33,7 @@ const calculations: AnyOperation[] = [
   singleEffect,
   multipleEffect,
   mechanicalVaporRecompressionOperation,
+  overallCoefficient,
 ];
 
 export const v1Operations: readonly AnyOperation[] = [
