@@ -727,7 +727,7 @@ function condensingTemperatureForArea(
   const lo = c.Tmean + MIN_RATING_TEMPERATURE_DIFFERENCE;
   if (!(lo < tcMax)) return Number.POSITIVE_INFINITY;
   const gHi = g(tcMax);
-  if (gHi < 0) return tcMax + (-gHi);
+  if (gHi < 0) return tcMax + -gHi;
   const gLo = g(lo);
   if (gLo > 0) {
     throw new EngineNoSolutionError(

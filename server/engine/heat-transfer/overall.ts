@@ -851,7 +851,9 @@ export function overallCoefficientProvider(
       throw err;
     }
     result.warnings = result.warnings.map((w) =>
-      w.field === undefined ? w : { ...w, field: rename(w.field), ...(label ? { context: w.context ?? label } : {}) },
+      w.field === undefined
+        ? w
+        : { ...w, field: rename(w.field), ...(label ? { context: w.context ?? label } : {}) },
     );
     return result;
   };
