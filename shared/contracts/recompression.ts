@@ -18,6 +18,7 @@ import {
   ProductSpecSchema,
   StreamResultSchema,
 } from './evaporators.js';
+import { coefficientOrEstimate, HeatTransferBreakdownSchema } from './heat-transfer-estimate.js';
 import { LiquorRefSchema } from './liquors.js';
 
 /**
@@ -79,11 +80,7 @@ function plainNumber(
 export const RecompressionBodySchema = z
   .object({
     pressure: quantity(specs.pressure, 'Pressure in the vapour space of the body', 31),
-    overallHeatTransferCoefficient: quantity(
-      specs.heatTransferCoefficient,
-      'Overall heat-transfer coefficient U',
-      2500,
-    ),
+    overallHeatTransferCoefficient: coefficientOrEstimate('Overall heat-transfer coefficient U', 2500),
     temperatureDifference: quantity(
       { ...specs.superheat, minExclusive: true },
       'Design: ΔT = saturation temperature at the discharge pressure − the liquor boiling point (BPR included). Give exactly one of this, body.area or compressor.dischargePressure',
@@ -243,7 +240,7 @@ export const MechanicalVaporRecompressionResponseSchema = z
       'temperatureDifference',
       `ΔT = saturation temperature at the discharge − the liquor boiling point (BPR included); above ${heatingWarningThresholds.temperatureDifference} K the result carries a "large-temperature-difference" warning, below 5 K "small-temperature-difference"`,
     ),
-    area: out('area', 'Heat-transfer area'),
+    area: out('area', 'Heat-transfer area (the outside area of the tubes when U is estimated)'),
     boilingPointRise: out('temperatureDifference', 'Boiling-point rise of the product'),
     feed: StreamResultSchema,
     product: StreamResultSchema,
@@ -286,6 +283,10 @@ export const MechanicalVaporRecompressionResponseSchema = z
         }),
       })
       .meta({ id: 'BalanceResiduals' }),
+    heatTransfer: HeatTransferBreakdownSchema.optional().meta({
+      description:
+        'With an estimated U only: the estimate at the solved state (product mass fraction, mean boiling temperature and pressure, the chest’s condensing temperature T_sat(p₂))',
+    }),
     warnings: z.array(WarningSchema),
     cautions: z.array(CautionSchema),
     provenance: ProvenanceSchema,
