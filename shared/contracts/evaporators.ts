@@ -274,10 +274,7 @@ export const SingleEffectResponseSchema = z
     waterBoilingPoint: out('temperature', 'Boiling point of pure water at the body pressure'),
     heatLoss: out('power', 'Heat lost to the surroundings (heatLossFraction × duty)'),
     figuresOfMerit: FiguresOfMeritSchema.optional(),
-    heatTransfer: HeatTransferBreakdownSchema.optional().meta({
-      description:
-        'With an estimated U only: the estimate at the solved state (product mass fraction, mean boiling temperature and pressure, steam condensing temperature), on the outside area of the tubes',
-    }),
+    heatTransfer: HeatTransferBreakdownSchema.optional(),
     warnings: z.array(WarningSchema),
     cautions: z.array(CautionSchema),
     provenance: ProvenanceSchema,
@@ -497,10 +494,7 @@ export const EffectResultSchema = z
       'massFlow',
       "Condensate-flash vapour joining this effect's vapour to the next chest (0 without condensateFlash)",
     ),
-    heatTransfer: HeatTransferBreakdownSchema.optional().meta({
-      description:
-        'With an estimated U for this effect only: the estimate at its converged state (its liquor’s mass fraction, boiling point and pressure, the condensing temperature of its heating steam or vapour)',
-    }),
+    heatTransfer: HeatTransferBreakdownSchema.optional(),
   })
   .meta({ id: 'EffectResult' });
 

@@ -321,5 +321,9 @@ const breakdownShape = {
 };
 /** The fields of {@link HeatTransferBreakdownSchema}, for the operation that adds its provenance. */
 export const heatTransferBreakdownShape = breakdownShape;
-export const HeatTransferBreakdownSchema = z.object(breakdownShape).meta({ id: 'HeatTransferBreakdown' });
+export const HeatTransferBreakdownSchema = z.object(breakdownShape).meta({
+  id: 'HeatTransferBreakdown',
+  description:
+    'The estimate of U with its resistances, on the outside area of the tubes. In an evaporator result (`heatTransfer` of the body or of effects[i]) only where U was given as { estimate }: evaluated at the solved state of that effect (the mass fraction of its liquor, its boiling temperature and pressure, the condensing temperature of its heating steam or vapour), which liquorState and steam report',
+});
 export type HeatTransferBreakdown = z.infer<typeof HeatTransferBreakdownSchema>;

@@ -203,7 +203,23 @@ export const MechanicalVaporRecompressionRequestSchema = z
       liquor: 'sucrose',
       feed: { massFlow: '20 t/h', massFraction: '12 Bx', temperature: 70 },
       product: { massFraction: '20 Bx' },
-      body: { pressure: 31, overallHeatTransferCoefficient: 2500, temperatureDifference: 5 },
+      body: {
+        pressure: 31,
+        // U estimated at the body's state (a falling film in stainless tubes) instead of a number
+        overallHeatTransferCoefficient: {
+          estimate: {
+            evaporatorType: 'falling-film',
+            tube: {
+              outsideDiameter: '50.8 mm',
+              wallThickness: '1.6 mm',
+              length: 10,
+              material: 'stainless-316',
+            },
+            flow: { wettingRate: 1.2 },
+          },
+        },
+        temperatureDifference: 5,
+      },
     },
   });
 export type MechanicalVaporRecompressionRequest = z.infer<typeof MechanicalVaporRecompressionRequestSchema>;
@@ -283,10 +299,7 @@ export const MechanicalVaporRecompressionResponseSchema = z
         }),
       })
       .meta({ id: 'BalanceResiduals' }),
-    heatTransfer: HeatTransferBreakdownSchema.optional().meta({
-      description:
-        'With an estimated U only: the estimate at the solved state (product mass fraction, mean boiling temperature and pressure, the chest’s condensing temperature T_sat(p₂))',
-    }),
+    heatTransfer: HeatTransferBreakdownSchema.optional(),
     warnings: z.array(WarningSchema),
     cautions: z.array(CautionSchema),
     provenance: ProvenanceSchema,
