@@ -805,16 +805,14 @@ export type OverallCoefficientEstimateSpec = Pick<
   'evaporatorType' | 'tube' | 'flow' | 'fouling' | 'liquorProperties'
 >;
 
-/** The estimate's own inputs, which a refusal names under `<field>.estimate.`. */
-const ESTIMATE_FIELDS = /^(tube|flow|fouling|liquorProperties|evaporatorType)\b/;
-
 /**
  * A {@link OverallCoefficientProvider} for an evaporator effect: {@link estimateOverallCoefficient}
  * with the liquor state (mass fraction, boiling temperature, body pressure) and the condensing
  * temperature of the effect, the rest from `spec`. Refusals and warnings name the request field
  * that gave the estimate: `field` (e.g. `overallHeatTransferCoefficients[2]`) + `.estimate.` + the
- * estimate's input (`liquorProperties.thermalConductivity`), or `field.estimate` for what the
- * effect's state caused; the message is led by `label` (e.g. "effect 3").
+ * estimate's input (`liquorProperties.thermalConductivity`) or the state quantity
+ * (`boilingTemperature`, `massFraction`, `steamTemperature`); the message is led by `label`
+ * (e.g. "effect 3").
  */
 export function overallCoefficientProvider(
   liquor: LiquorModel,
@@ -822,8 +820,8 @@ export function overallCoefficientProvider(
   field: string,
   label?: string,
 ): OverallCoefficientProvider {
-  const rename = (f: string): string =>
-    ESTIMATE_FIELDS.test(f) ? `${field}.estimate.${f}` : `${field}.estimate`;
+  // The liquor models call the boiling temperature "temperature".
+  const rename = (f: string): string => `${field}.estimate.${f === 'temperature' ? 'boilingTemperature' : f}`;
   const lead = (m: string): string => (label ? `${label}: ${m}` : m);
   return (state) => {
     let result: OverallCoefficientResult;
@@ -850,11 +848,11 @@ export function overallCoefficientProvider(
       if (err instanceof EngineInputError) throw new EngineInputError(rename(err.field), lead(err.message));
       throw err;
     }
-    result.warnings = result.warnings.map((w) =>
-      w.field === undefined
-        ? w
-        : { ...w, field: rename(w.field), ...(label ? { context: w.context ?? label } : {}) },
-    );
+    result.warnings = result.warnings.map((w) => ({
+      ...w,
+      ...(w.field !== undefined ? { field: rename(w.field) } : {}),
+      ...(label ? { message: lead(w.message), context: w.context ?? label } : {}),
+    }));
     return result;
   };
 }

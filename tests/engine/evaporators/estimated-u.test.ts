@@ -205,6 +205,23 @@ describe('six-effect train with an estimated U in each effect', () => {
     expect(r.effects[2]!.heatTransfer).toBeDefined();
   });
 
+  it('labels an estimate warning with its effect and field, in the train and in the breakdown', () => {
+    const thin = { ...juice, flow: { wettingRate: 0.02 } };
+    const r = train([
+      2800,
+      2300,
+      overallCoefficientProvider(sucrose, thin, 'overallHeatTransferCoefficients[2]', 'effect 3'),
+      1800,
+      1500,
+      1100,
+    ]);
+    const w = r.warnings.find((x) => x.code === 'wetting-rate-below-minimum');
+    expect(w?.field).toBe('overallHeatTransferCoefficients[2].estimate.flow.wettingRate');
+    expect(w?.context).toBe('effect 3');
+    expect(w?.message).toMatch(/^effect 3: /);
+    expect(r.effects[2]!.heatTransfer?.warnings).toContainEqual(w);
+  });
+
   it('names the effect and the missing property when an effect estimate lacks one', () => {
     const naoh = (i: number, props?: OverallCoefficientEstimateSpec['liquorProperties']) =>
       overallCoefficientProvider(
