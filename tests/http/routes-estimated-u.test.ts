@@ -315,4 +315,15 @@ describe('MVR with an estimated U', () => {
       units: UNITS.mvr + UNITS.estimate,
     });
   });
+
+  it('prices a batch case with its estimate and a plain case at the plain price', async () => {
+    const plain = { ...mvr, body: { ...mvr.body, overallHeatTransferCoefficient: 2000 } };
+    const res = await request(h.app)
+      .post('/v1/batch')
+      .set(auth())
+      .send({ operation: 'mechanical-vapor-recompression', cases: [mvr, plain] });
+    expect(res.status).toBe(200);
+    expect(res.body).toMatchObject({ succeeded: 2, unitsCharged: 2 * UNITS.mvr + UNITS.estimate });
+    expect(res.body.results[0].result.heatTransfer.area).toBe('outside');
+  });
 });
