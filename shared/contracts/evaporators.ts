@@ -10,6 +10,7 @@ import {
   specs,
   WarningSchema,
 } from './common.js';
+import { coefficientOrEstimate, HeatTransferBreakdownSchema } from './heat-transfer-estimate.js';
 import { LiquorRefSchema } from './liquors.js';
 
 export const FeedSchema = z
@@ -140,12 +141,12 @@ export const SteamSpecSchema = z
 export const BodySpecSchema = z
   .object({
     pressure: quantity(specs.pressure, 'Pressure in the vapour space of the body', 20),
-    overallHeatTransferCoefficient: quantity(
-      specs.heatTransferCoefficient,
-      'Overall heat-transfer coefficient U',
-      1800,
-    ),
-    area: quantity(specs.area, 'Heat-transfer area: given → rating mode', 60).optional(),
+    overallHeatTransferCoefficient: coefficientOrEstimate('Overall heat-transfer coefficient U', 1800),
+    area: quantity(
+      specs.area,
+      'Heat-transfer area: given → rating mode (on the outside of the tubes when U is estimated)',
+      60,
+    ).optional(),
     liquidHeight: quantity(
       specs.liquidHeight,
       'Liquid height above the heating surface (hydrostatic BPR at mid-depth)',
@@ -264,7 +265,7 @@ export const SingleEffectResponseSchema = z
       'temperatureDifference',
       `ΔT = T_steam − T_boiling (boiling point includes the BPR); above ${heatingWarningThresholds.temperatureDifference} K the result carries a "large-temperature-difference" warning, below 5 K "small-temperature-difference"`,
     ),
-    area: out('area', 'Heat-transfer area'),
+    area: out('area', 'Heat-transfer area (the outside area of the tubes when U is estimated)'),
     steamEconomy: out({ symbol: '1', label: 'kg vapour per kg steam' }, 'Steam economy V/S'),
     specificSteamConsumption: out(
       { symbol: '1', label: 'kg steam per kg vapour' },
@@ -273,6 +274,7 @@ export const SingleEffectResponseSchema = z
     waterBoilingPoint: out('temperature', 'Boiling point of pure water at the body pressure'),
     heatLoss: out('power', 'Heat lost to the surroundings (heatLossFraction × duty)'),
     figuresOfMerit: FiguresOfMeritSchema.optional(),
+    heatTransfer: HeatTransferBreakdownSchema.optional(),
     warnings: z.array(WarningSchema),
     cautions: z.array(CautionSchema),
     provenance: ProvenanceSchema,
@@ -302,10 +304,13 @@ export const MultipleEffectRequestSchema = z
     lastEffectPressure: quantity(specs.pressure, 'Pressure in the last effect (condenser side)', 15),
     atmosphericPressure: atmosphericPressureField(),
     overallHeatTransferCoefficients: z
-      .array(quantity(specs.heatTransferCoefficient, 'U of one effect', 2000))
+      .array(coefficientOrEstimate('U of one effect', 2000))
       .min(1)
       .max(MAX_EFFECTS)
-      .meta({ description: 'One overall heat-transfer coefficient per effect, effect 1 first' }),
+      .meta({
+        description:
+          'One overall heat-transfer coefficient per effect, effect 1 first: a number, or { estimate } to estimate that effect’s U at its state while the train is solved (each entry its own tube and flow); the area of an estimated effect is then its outside tube area',
+      }),
     areas: z
       .array(quantity(specs.area, 'Area of one effect', 80))
       .min(1)
@@ -483,12 +488,13 @@ export const EffectResultSchema = z
     massFraction: out('massFraction', 'Mass fraction of the liquor leaving the effect'),
     vaporFlow: out('massFlow', 'Vapour produced'),
     duty: out('power', 'Heat duty'),
-    area: out('area', 'Heat-transfer area'),
+    area: out('area', 'Heat-transfer area (the outside area of the tubes when U is estimated)'),
     vaporBleed: out('massFlow', 'Vapour bled from this effect to other users (including any feed preheat)'),
     flashVapor: out(
       'massFlow',
       "Condensate-flash vapour joining this effect's vapour to the next chest (0 without condensateFlash)",
     ),
+    heatTransfer: HeatTransferBreakdownSchema.optional(),
   })
   .meta({ id: 'EffectResult' });
 

@@ -18,6 +18,7 @@ import {
   ProductSpecSchema,
   StreamResultSchema,
 } from './evaporators.js';
+import { coefficientOrEstimate, HeatTransferBreakdownSchema } from './heat-transfer-estimate.js';
 import { LiquorRefSchema } from './liquors.js';
 
 /**
@@ -79,11 +80,7 @@ function plainNumber(
 export const RecompressionBodySchema = z
   .object({
     pressure: quantity(specs.pressure, 'Pressure in the vapour space of the body', 31),
-    overallHeatTransferCoefficient: quantity(
-      specs.heatTransferCoefficient,
-      'Overall heat-transfer coefficient U',
-      2500,
-    ),
+    overallHeatTransferCoefficient: coefficientOrEstimate('Overall heat-transfer coefficient U', 2500),
     temperatureDifference: quantity(
       { ...specs.superheat, minExclusive: true },
       'Design: ΔT = saturation temperature at the discharge pressure − the liquor boiling point (BPR included). Give exactly one of this, body.area or compressor.dischargePressure',
@@ -206,7 +203,23 @@ export const MechanicalVaporRecompressionRequestSchema = z
       liquor: 'sucrose',
       feed: { massFlow: '20 t/h', massFraction: '12 Bx', temperature: 70 },
       product: { massFraction: '20 Bx' },
-      body: { pressure: 31, overallHeatTransferCoefficient: 2500, temperatureDifference: 5 },
+      body: {
+        pressure: 31,
+        // U estimated at the body's state (a falling film in stainless tubes) instead of a number
+        overallHeatTransferCoefficient: {
+          estimate: {
+            evaporatorType: 'falling-film',
+            tube: {
+              outsideDiameter: '50.8 mm',
+              wallThickness: '1.6 mm',
+              length: 10,
+              material: 'stainless-316',
+            },
+            flow: { wettingRate: 1.2 },
+          },
+        },
+        temperatureDifference: 5,
+      },
     },
   });
 export type MechanicalVaporRecompressionRequest = z.infer<typeof MechanicalVaporRecompressionRequestSchema>;
@@ -243,7 +256,7 @@ export const MechanicalVaporRecompressionResponseSchema = z
       'temperatureDifference',
       `ΔT = saturation temperature at the discharge − the liquor boiling point (BPR included); above ${heatingWarningThresholds.temperatureDifference} K the result carries a "large-temperature-difference" warning, below 5 K "small-temperature-difference"`,
     ),
-    area: out('area', 'Heat-transfer area'),
+    area: out('area', 'Heat-transfer area (the outside area of the tubes when U is estimated)'),
     boilingPointRise: out('temperatureDifference', 'Boiling-point rise of the product'),
     feed: StreamResultSchema,
     product: StreamResultSchema,
@@ -286,6 +299,7 @@ export const MechanicalVaporRecompressionResponseSchema = z
         }),
       })
       .meta({ id: 'BalanceResiduals' }),
+    heatTransfer: HeatTransferBreakdownSchema.optional(),
     warnings: z.array(WarningSchema),
     cautions: z.array(CautionSchema),
     provenance: ProvenanceSchema,

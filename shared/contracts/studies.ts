@@ -143,7 +143,7 @@ export const EvaporatorSchemeStudyRequestSchema = z
       .meta({ description: 'Live steam, saturated at this pressure' }),
     overallHeatTransferCoefficient: quantity(
       specs.heatTransferCoefficient,
-      'One overall heat-transfer coefficient U for every body of every candidate',
+      'One overall heat-transfer coefficient U for every body of every candidate: a number only (the study does not take { estimate }; estimate U with POST /v1/heat-transfer/overall-coefficient, or run the chosen scheme with an estimate per effect)',
       2000,
     ),
     feedArrangement: z.enum(['forward', 'backward', 'parallel']).default('forward').meta({

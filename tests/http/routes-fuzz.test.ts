@@ -391,6 +391,130 @@ describe('fuzzed requests never give a 5xx or a non-finite number', { timeout: 6
     );
   });
 
+  // U given as { estimate }: hostile estimate parts, then plausible ones through the solvers
+  // (single effect design and rating, each train effect, MVR design and rating).
+  const estimate = fc.record(
+    {
+      evaporatorType: fc.constantFrom('falling-film', 'forced-circulation', 'natural-circulation', 'plate'),
+      tube: fc.oneof(
+        quantity,
+        fc.record(
+          {
+            outsideDiameter: quantity,
+            wallThickness: quantity,
+            length: quantity,
+            material: fc.constantFrom('stainless-316', 'unobtainium'),
+            wallConductivity: quantity,
+          },
+          { requiredKeys: ['outsideDiameter', 'wallThickness', 'length'] },
+        ),
+      ),
+      flow: fc.record(
+        { wettingRate: quantity, liquorFlowPerTube: quantity, tubeVelocity: quantity },
+        { requiredKeys: [] },
+      ),
+      fouling: fc.record({ inside: quantity, outside: quantity }, { requiredKeys: [] }),
+      liquorProperties: fc.record(
+        { viscosity: quantity, thermalConductivity: quantity },
+        { requiredKeys: [] },
+      ),
+    },
+    { requiredKeys: ['evaporatorType'] },
+  );
+  const coefficient = fc.oneof(quantity, fc.record({ estimate }), fc.record({ estimate: quantity }));
+  const plausibleEstimate = fc
+    .tuple(
+      fc.constantFrom('falling-film', 'forced-circulation', 'natural-circulation'),
+      fc.double({ min: 0.01, max: 0.1, noNaN: true }),
+      fc.double({ min: 0.0005, max: 0.004, noNaN: true }),
+      fc.double({ min: 0.5, max: 15, noNaN: true }),
+      fc.double({ min: 0.01, max: 3, noNaN: true }),
+    )
+    .map(([type, d, t, len, v]) => ({
+      estimate: {
+        evaporatorType: type,
+        tube: { outsideDiameter: d, wallThickness: t, length: len, material: 'stainless-316' },
+        flow:
+          type === 'falling-film'
+            ? { wettingRate: v }
+            : type === 'forced-circulation'
+              ? { tubeVelocity: v }
+              : { circulationVelocity: v },
+        liquorProperties: { thermalConductivity: 0.6 },
+      },
+    }));
+
+  it('POST evaporators with U as hostile { estimate } bodies', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.constantFrom('single-effect', 'multiple-effect', 'mechanical-vapor-recompression'),
+        liquor,
+        fc.array(coefficient, { minLength: 1, maxLength: 3 }),
+        (route, l, us) =>
+          check('post', `/v1/evaporators/${route}`, {
+            liquor: l,
+            feed: { massFlow: 2, massFraction: 0.1, temperature: 60 },
+            product: { massFraction: 0.2 },
+            ...(route === 'multiple-effect'
+              ? {
+                  effects: us.length,
+                  steam: { pressure: '3 barg' },
+                  lastEffectPressure: 15,
+                  overallHeatTransferCoefficients: us,
+                }
+              : {
+                  ...(route === 'single-effect' ? { steam: { pressure: '3 barg' } } : {}),
+                  body: {
+                    pressure: 31,
+                    overallHeatTransferCoefficient: us[0],
+                    ...(route === 'single-effect' ? {} : { temperatureDifference: 5 }),
+                  },
+                }),
+          }),
+      ),
+      { numRuns: RUNS / 2 },
+    );
+  });
+
+  it('POST evaporators with U as plausible { estimate } bodies', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.constantFrom('single-effect', 'multiple-effect', 'mechanical-vapor-recompression'),
+        fc.constantFrom('sodium-hydroxide', 'sucrose', 'seawater', 'kraft-black-liquor'),
+        fc.array(plausibleEstimate, { minLength: 1, maxLength: 4 }),
+        fc.double({ min: 0.02, max: 0.3, noNaN: true }),
+        fc.double({ min: 1.2, max: 4, noNaN: true }),
+        fc.option(fc.double({ min: 1, max: 500, noNaN: true })),
+        (route, l, us, xF, ratio, area) =>
+          check('post', `/v1/evaporators/${route}`, {
+            liquor: l,
+            feed: { massFlow: 2, massFraction: xF, temperature: 60 },
+            product: area === null || route !== 'single-effect' ? { massFraction: xF * ratio } : {},
+            ...(route === 'multiple-effect'
+              ? {
+                  effects: us.length,
+                  steam: { pressure: '3 barg' },
+                  lastEffectPressure: 15,
+                  overallHeatTransferCoefficients: us,
+                }
+              : {
+                  ...(route === 'single-effect' ? { steam: { pressure: '3 barg' } } : {}),
+                  body: {
+                    pressure: 31,
+                    overallHeatTransferCoefficient: us[0],
+                    ...(area !== null
+                      ? { area }
+                      : route === 'single-effect'
+                        ? {}
+                        : { temperatureDifference: 5 }),
+                  },
+                }),
+          }),
+      ),
+      { numRuns: RUNS / 2 },
+    );
+  });
+
   it('POST /v1/heat-transfer/overall-coefficient', async () => {
     await fc.assert(
       fc.asyncProperty(

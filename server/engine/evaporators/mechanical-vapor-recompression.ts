@@ -61,13 +61,17 @@ import {
   warnLargeTemperatureDifference,
   warnSmallTemperatureDifference,
 } from './common.js';
+import type { OverallCoefficientProvider, OverallCoefficientResult } from '../heat-transfer/overall.js';
+import { brentSolve } from '../numeric/roots.js';
 import {
+  coefficientAt,
   liquorBalance,
   liquorSideWarnings,
   prepareLiquorSide,
   productTarget,
   type FeedSpec,
   type LiquorBalance,
+  type LiquorSide,
   type ProductSpec,
   type StreamState,
 } from './single-effect.js';
@@ -102,8 +106,12 @@ export const MAX_STAGE_PRESSURE_RATIO = 10;
 export interface MvrBodySpec {
   /** Vapour-space pressure p, Pa absolute. */
   pressure: number;
-  /** U, W/(m²·K). */
-  overallHeatTransferCoefficient: number;
+  /**
+   * U, W/(m²·K), or a provider that estimates it at the body's state (product mass fraction, mean
+   * boiling temperature and pressure, the chest's condensing temperature T_sat(p₂)): U and the
+   * area then refer to the outside area of the tubes, and the result carries the estimate.
+   */
+  overallHeatTransferCoefficient: number | OverallCoefficientProvider;
   /** Design: T_sat(p₂) − T_boil, K. Exactly one of this, `area`, `compressor.dischargePressure`. */
   temperatureDifference?: number;
   /** Rating: heat-transfer area, m². */
@@ -239,6 +247,8 @@ export interface MechanicalVaporRecompressionResult {
   /** Condensate leaving the chest (saturated liquid at p₂), including the injected water. */
   condensate: { massFlow: number; enthalpy: number };
   balances: { mass: number; solute: number; energy: number };
+  /** The estimate of U at the solved state, when U was given as a provider. */
+  heatTransfer?: OverallCoefficientResult;
   warnings: EngineWarning[];
   cautions: EngineCaution[];
   sources: Citation[];
@@ -428,7 +438,6 @@ export function mechanicalVaporRecompression(
   }
   const f = side.f;
   const Q = c.need / (1 - f);
-  const u = side.u;
   const suctionPressure = side.pressure - dpSuction;
 
   // The chest: condensing temperature and discharge pressure.
@@ -443,7 +452,7 @@ export function mechanicalVaporRecompression(
     p2 = saturationPressure(tc);
   } else if (input.body.area !== undefined) {
     requirePositive('body.area', input.body.area, 'm²');
-    tc = c.Tmean + Q / (u * input.body.area);
+    tc = condensingTemperatureForArea(side, c, Q, input.body.area, tcMax);
     if (!(tc <= tcMax)) {
       throw new EngineNoSolutionError(
         `The area ${input.body.area} m² is so small that the vapour would have to condense at ${tc.toFixed(2)} K, beyond ${tcMax} K`,
@@ -559,7 +568,15 @@ export function mechanicalVaporRecompression(
     surplus = (qc - Q) / (delivered - chest.liquid);
   }
 
+  // U at the solved state (a given number, or the estimate at T_b, x_L and the chest's T_sat(p₂)).
+  const { u, estimate } = coefficientAt(side, {
+    massFraction: c.xL,
+    boilingTemperature: c.Tmean,
+    bodyPressure: c.pMean,
+    condensingTemperature: tc,
+  });
   const area = Q / (u * dT);
+  if (estimate) warnings.push(...estimate.warnings);
   const electric = shaft / m.etaDrive;
   const satSuction = saturationTemperature(suctionPressure);
   const lift = tc - satSuction;
@@ -674,6 +691,7 @@ export function mechanicalVaporRecompression(
     surplusVapor: { massFlow: surplus, enthalpy: delivered },
     condensate: { massFlow: mFlow - surplus + makeUp, enthalpy: chest.liquid },
     balances: { mass: 0, solute: 0, energy: 0 },
+    ...(estimate ? { heatTransfer: estimate } : {}),
     warnings,
     cautions,
     sources: collectSources(side.liquor),
@@ -682,6 +700,50 @@ export function mechanicalVaporRecompression(
   result.balances = mechanicalVaporRecompressionBalances(result);
   return result;
 }
+
+/**
+ * Rating: the chest's condensing temperature T_c at which the given area passes Q,
+ * T_c = T_b + Q/(U·A). With a given U that is explicit. With an estimated U (which depends on T_c
+ * through the condensing film and the heat flux) it is the root of g(T_c) = T_c − T_b − Q/(U(T_c)·A),
+ * found by Brent on (T_b + 0.001 K, T_max]: g < 0 at the lower end (the driving ΔT of the area
+ * cannot be below 0.001 K) and, where g(T_max) < 0, no temperature within the steam tables will do,
+ * which the caller reports as an area too small (T_c returned above T_max).
+ */
+function condensingTemperatureForArea(
+  side: LiquorSide,
+  c: LiquorBalance,
+  Q: number,
+  A: number,
+  tcMax: number,
+): number {
+  if (!side.uProvider) return c.Tmean + Q / (side.u * A);
+  const state = (tc: number) => ({
+    massFraction: c.xL,
+    boilingTemperature: c.Tmean,
+    bodyPressure: c.pMean,
+    condensingTemperature: tc,
+  });
+  const g = (tc: number): number => tc - c.Tmean - Q / (coefficientAt(side, state(tc)).u * A);
+  const lo = c.Tmean + MIN_RATING_TEMPERATURE_DIFFERENCE;
+  if (!(lo < tcMax)) return Number.POSITIVE_INFINITY;
+  const gHi = g(tcMax);
+  if (gHi < 0) return tcMax + -gHi;
+  const gLo = g(lo);
+  if (gLo > 0) {
+    throw new EngineNoSolutionError(
+      `The area ${A} m² is so large that the estimated U would need a temperature difference below ${MIN_RATING_TEMPERATURE_DIFFERENCE} K`,
+      {
+        reason: 'area-too-large',
+        template: 'The area is so large that the estimated U would need a temperature difference below {dt}',
+        values: { dt: { value: MIN_RATING_TEMPERATURE_DIFFERENCE, kind: 'temperatureDifference' } },
+      },
+    );
+  }
+  return brentSolve(g, lo, tcMax, { tol: 1e-10 }).root;
+}
+
+/** Smallest ΔT a rating with an estimated U searches down to, K. */
+const MIN_RATING_TEMPERATURE_DIFFERENCE = 1e-3;
 
 /**
  * Design: `body.temperatureDifference` or `compressor.dischargePressure` given (see

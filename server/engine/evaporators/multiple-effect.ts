@@ -76,6 +76,7 @@
  * chest-1 condensate's.
  */
 import { EngineInputError, EngineNoSolutionError, EngineRangeError } from '../errors.js';
+import type { OverallCoefficientProvider, OverallCoefficientResult } from '../heat-transfer/overall.js';
 import type { LiquorModel } from '../liquors/model.js';
 import { solveLinearSystem } from '../numeric/linear.js';
 import { brentSolve } from '../numeric/roots.js';
@@ -157,8 +158,13 @@ export interface MultipleEffectInput {
   steam: SteamSupplySpec;
   /** Vapour-space pressure of the last effect, Pa absolute. */
   lastEffectPressure: number;
-  /** U_i per effect, W/(m²·K); its length sets the number of effects (1…10). */
-  overallHeatTransferCoefficients: readonly number[];
+  /**
+   * U_i per effect, W/(m²·K); its length sets the number of effects (1…10). An entry may be a
+   * provider that estimates U at the effect's state (its liquor's mass fraction, boiling point and
+   * pressure, and the condensing temperature of its heating steam or vapour), re-evaluated every
+   * iteration: U and the area of that effect then refer to the outside area of the tubes.
+   */
+  overallHeatTransferCoefficients: readonly (number | OverallCoefficientProvider)[];
   /** Areas per effect, m² (required for 'given-areas'). */
   areas?: readonly number[];
   /** Default 'forward'. */
@@ -201,8 +207,10 @@ export interface EffectResult {
   boilingPointRise: number;
   /** Condensing temperature of the heating medium − liquor boiling point (BPR included), K. */
   temperatureDifference: number;
-  /** W/(m²·K) */
+  /** W/(m²·K) (the estimate's at the converged state, when a provider was given) */
   overallHeatTransferCoefficient: number;
+  /** The estimate of U at the converged state, when U was given as a provider. */
+  heatTransfer?: OverallCoefficientResult;
   /** kg/s of liquor entering (fresh feed share for parallel feed). */
   liquorInFlow: number;
   /** K, temperature of the liquor entering. */
@@ -441,8 +449,12 @@ interface TrainSpec {
   design: boolean;
   /** Number of effects. */
   n: number;
-  /** U_i, W/(m²·K). */
-  U: readonly number[];
+  /** U_i, W/(m²·K): given, or (with a provider) the estimate at the current iterate. */
+  U: Float64Array;
+  /** Providers of U per effect (undefined where U is a number); undefined when none. */
+  providers: readonly (OverallCoefficientProvider | undefined)[] | undefined;
+  /** The providers' estimates at the converged state. */
+  estimates: (OverallCoefficientResult | undefined)[];
   /** Given areas (rating only), m². */
   areas: readonly number[] | undefined;
   /** Fresh feed, kg/s. */
@@ -581,7 +593,18 @@ function prepareTrain(input: MultipleEffectInput): TrainSpec {
     );
   }
   const n = U.length;
-  U.forEach((u, i) => requirePositive(`overallHeatTransferCoefficients[${i}]`, u, 'W/(m²·K)'));
+  const Ugiven = new Float64Array(n);
+  let providers: (OverallCoefficientProvider | undefined)[] | undefined;
+  U.forEach((u, i) => {
+    if (typeof u === 'function') {
+      providers ??= new Array<OverallCoefficientProvider | undefined>(n).fill(undefined);
+      providers[i] = u;
+      Ugiven[i] = Number.NaN; // set from the estimate before each use
+    } else {
+      requirePositive(`overallHeatTransferCoefficients[${i}]`, u, 'W/(m²·K)');
+      Ugiven[i] = u;
+    }
+  });
   let areas: readonly number[] | undefined;
   if (design) {
     if (input.areas !== undefined) {
@@ -658,14 +681,16 @@ function prepareTrain(input: MultipleEffectInput): TrainSpec {
   requireInRange('maxIterations', maxIter, 1, 10_000, 'iterations');
   const heatWeights = new Float64Array(n);
   for (let i = 0; i < n; i++) {
-    heatWeights[i] = design ? (U[i] as number) : (U[i] as number) * (areas?.[i] as number);
+    heatWeights[i] = design ? (Ugiven[i] as number) : (Ugiven[i] as number) * (areas?.[i] as number);
   }
   return {
     input,
     liquor,
     design,
     n,
-    U,
+    U: Ugiven,
+    providers,
+    estimates: new Array<OverallCoefficientResult | undefined>(n).fill(undefined),
     areas,
     feedFlow: F,
     feedFraction: xF,
@@ -897,6 +922,44 @@ function evaluateProperties(spec: TrainSpec, st: TrainState, sink: EngineWarning
   }
   if (spec.ejector) evaluateEjector(spec, st, sink);
 }
+
+/**
+ * U of the effects given by a provider, at the current iterate: each effect's liquor (mass
+ * fraction, boiling point, pressure) and the condensing temperature of its heating medium (the
+ * steam for effect 1, the previous effect's vapour T_{i−1} after it). The heat weights of the
+ * temperature split follow. While iterating, a chest whose ΔT has not yet settled above
+ * {@link ESTIMATE_MIN_ITERATE_DT} is evaluated at that ΔT (the estimate needs steam hotter than
+ * the liquor); at the converged point (`final`) every ΔT has been checked positive and the
+ * estimates are kept for the result.
+ */
+function evaluateCoefficients(spec: TrainSpec, st: TrainState, final: boolean): void {
+  const providers = spec.providers;
+  if (!providers) return;
+  for (let i = 0; i < spec.n; i++) {
+    const provide = providers[i];
+    if (!provide) continue;
+    const e = effectAt(st, i);
+    const condensing = i === 0 ? spec.steamTemperature : effectAt(st, i - 1).vaporTemperature;
+    const estimate = provide({
+      massFraction: e.massFraction,
+      boilingTemperature: e.boilingPoint,
+      bodyPressure: e.pressure,
+      condensingTemperature: final
+        ? condensing
+        : Math.max(condensing, e.boilingPoint + ESTIMATE_MIN_ITERATE_DT),
+    });
+    const u = estimate.overallHeatTransferCoefficient;
+    spec.U[i] = u;
+    spec.heatWeights[i] = spec.design ? u : u * (spec.areas?.[i] as number);
+    if (final) {
+      spec.estimates[i] = estimate;
+      for (const w of estimate.warnings) spec.warnings.push(w);
+    }
+  }
+}
+
+/** Smallest chest ΔT at which an estimate is evaluated while iterating, K. */
+const ESTIMATE_MIN_ITERATE_DT = 0.1;
 
 /**
  * The thermocompressor at the current properties: Ra at the suction effect's pressure and
@@ -1263,6 +1326,7 @@ function iterateTrain(spec: TrainSpec, st: TrainState): number {
   for (let iter = 1; iter <= spec.maxIterations; iter++) {
     iterations = iter;
     evaluateProperties(spec, st, undefined);
+    evaluateCoefficients(spec, st, false);
     solveFlows(spec, st);
     stepFlows(spec, st, iter, next.massFraction);
     proposeTemperatures(spec, st, iter, next);
@@ -1298,15 +1362,18 @@ function finalEvaluation(spec: TrainSpec, st: TrainState, iterations: number): F
   }
   const areas = new Float64Array(n);
   for (let i = 0; i < n; i++) {
-    const e = effectAt(st, i);
-    const d = e.temperatureDifference;
+    const d = effectAt(st, i).temperatureDifference;
     if (!(d > 0) || d < minDT) {
       throw new EngineNoSolutionError(
         `No practical solution: effect ${i + 1} would work with ΔT = ${d.toFixed(3)} K, below the minimum ${minDT} K (too many effects or too little temperature difference for this liquor)`,
         { iterations, reason: 'temperature-difference-below-minimum' },
       );
     }
-    areas[i] = e.duty / ((spec.U[i] as number) * d);
+  }
+  evaluateCoefficients(spec, st, true);
+  for (let i = 0; i < n; i++) {
+    const e = effectAt(st, i);
+    areas[i] = e.duty / ((spec.U[i] as number) * e.temperatureDifference);
   }
   const pre = spec.preheatEffect;
   if (pre >= 0 && spec.feedInTemperature >= effectAt(st, pre).vaporTemperature) {
@@ -1524,6 +1591,7 @@ function effectResults(
       boilingPointRise: e.boilingPointRise,
       temperatureDifference: e.temperatureDifference,
       overallHeatTransferCoefficient: spec.U[i] as number,
+      ...(spec.estimates[i] ? { heatTransfer: spec.estimates[i] } : {}),
       liquorInFlow: e.liquorIn,
       liquorInTemperature: inT,
       liquorOutFlow: e.liquorOut,

@@ -26,6 +26,11 @@
  * All numbers SI (Pa, K, J/kg, kg/s, W, m², W/(m²·K), mass fraction 0–1).
  */
 import { EngineInputError, EngineNoSolutionError, EngineRangeError } from '../errors.js';
+import type {
+  EffectHeatTransferState,
+  OverallCoefficientProvider,
+  OverallCoefficientResult,
+} from '../heat-transfer/overall.js';
 import type { LiquorModel } from '../liquors/model.js';
 import { brentSolve } from '../numeric/roots.js';
 import { IF97, saturationTemperature } from '../steam/if97.js';
@@ -80,8 +85,12 @@ export interface ProductSpec {
 export interface BodySpec {
   /** Vapour-space pressure p, Pa absolute. */
   pressure: number;
-  /** U, W/(m²·K) (> 0). */
-  overallHeatTransferCoefficient: number;
+  /**
+   * U, W/(m²·K) (> 0), or a provider that estimates it at the effect's state (mass fraction of the
+   * product, mean boiling temperature and pressure, steam condensing temperature): then U and the
+   * area refer to the outside area of the tubes, and the result carries the estimate.
+   */
+  overallHeatTransferCoefficient: number | OverallCoefficientProvider;
   /** Height of the boiling liquid column above the heating surface's mid-point, m (default 0). */
   liquidHeight?: number;
 }
@@ -138,6 +147,7 @@ export interface SingleEffectResult {
   };
   body: {
     pressure: number;
+    /** U used for the area (the estimate's, at the converged state, when a provider was given). */
     overallHeatTransferCoefficient: number;
     liquidHeight: number;
     /** Pressure where the mean boiling point is taken (mid-depth; = pressure without head), Pa. */
@@ -171,6 +181,8 @@ export interface SingleEffectResult {
   figuresOfMerit: FiguresOfMerit;
   /** Relative residuals recomputed from the result's streams. */
   balances: { mass: number; solute: number; energy: number };
+  /** The estimate of U at the converged state, when U was given as a provider. */
+  heatTransfer?: OverallCoefficientResult;
   warnings: EngineWarning[];
   cautions: EngineCaution[];
   sources: Citation[];
@@ -189,7 +201,9 @@ export interface LiquorSide {
   liquor: LiquorModel;
   pressure: number;
   waterBoilingPoint: number;
+  /** U, W/(m²·K); NaN when `uProvider` gives it per state. */
   u: number;
+  uProvider: OverallCoefficientProvider | undefined;
   liquidHeight: number;
   f: number;
   feedFraction: number;
@@ -347,7 +361,9 @@ export function prepareLiquorSide(
   if (feed.enthalpy !== undefined) requireInRange('feed.enthalpy', feed.enthalpy, -1e7, 1e7, 'J/kg');
   if (productEnthalpy !== undefined) requireInRange('product.enthalpy', productEnthalpy, -1e7, 1e7, 'J/kg');
   requireInRange('body.pressure', body.pressure, IF97.minPressure, IF97.region13SaturationPressure, 'Pa');
-  requirePositive('body.overallHeatTransferCoefficient', body.overallHeatTransferCoefficient, 'W/(m²·K)');
+  const givenU = body.overallHeatTransferCoefficient;
+  const uProvider = typeof givenU === 'function' ? givenU : undefined;
+  if (!uProvider) requirePositive('body.overallHeatTransferCoefficient', givenU as number, 'W/(m²·K)');
   const liquidHeight = body.liquidHeight ?? 0;
   requireInRange('body.liquidHeight', liquidHeight, 0, 100, 'm');
   const f = input.heatLossFraction ?? 0;
@@ -363,13 +379,34 @@ export function prepareLiquorSide(
     liquor,
     pressure: body.pressure,
     waterBoilingPoint: saturationTemperature(body.pressure),
-    u: body.overallHeatTransferCoefficient,
+    u: uProvider ? Number.NaN : (givenU as number),
+    uProvider,
     liquidHeight,
     f,
     feedFraction: feed.massFraction,
     feedTemperature: feed.temperature,
     feedEnthalpyOverride: feed.enthalpy,
     productEnthalpyOverride: productEnthalpy,
+  };
+}
+
+/** U at an effect's state: the given number, or the provider's estimate there. */
+export function coefficientAt(
+  side: LiquorSide,
+  state: EffectHeatTransferState,
+): { u: number; estimate: OverallCoefficientResult | undefined } {
+  if (!side.uProvider) return { u: side.u, estimate: undefined };
+  const estimate = side.uProvider(state);
+  return { u: estimate.overallHeatTransferCoefficient, estimate };
+}
+
+/** The state of the single effect's heating surface for the U estimate. */
+function stateOf(pr: Prepared, c: CoreState): EffectHeatTransferState {
+  return {
+    massFraction: c.xL,
+    boilingTemperature: c.Tmean,
+    bodyPressure: c.pMean,
+    condensingTemperature: pr.steam.condensingTemperature,
   };
 }
 
@@ -413,7 +450,10 @@ function assemble(
   mode: 'design' | 'rating',
   warnings: EngineWarning[],
 ): SingleEffectResult {
-  const area = c.Q / (pr.u * c.dT);
+  // U at the converged state (ΔT > 0 is checked by every caller before this).
+  const { u, estimate } = coefficientAt(pr, stateOf(pr, c));
+  const area = c.Q / (u * c.dT);
+  if (estimate) warnings.push(...estimate.warnings);
   const heatLoss = pr.f * c.Q;
   if (![c.S, c.Q, area, c.HV, c.hF, c.hL, c.T].every(Number.isFinite)) {
     // Defensive: every input is range-checked, so this means a model returned a non-number.
@@ -449,7 +489,7 @@ function assemble(
     },
     body: {
       pressure: pr.pressure,
-      overallHeatTransferCoefficient: pr.u,
+      overallHeatTransferCoefficient: u,
       liquidHeight: pr.liquidHeight,
       meanBoilingPressure: c.pMean,
       meanBoilingTemperature: c.Tmean,
@@ -470,6 +510,7 @@ function assemble(
       totalArea: area,
     }),
     balances: { mass: 0, solute: 0, energy: 0 },
+    ...(estimate ? { heatTransfer: estimate } : {}),
     warnings,
     cautions: standardCautions({
       liquor: pr.liquor,
@@ -690,18 +731,28 @@ export function rateSingleEffect(input: SingleEffectRatingInput): SingleEffectRe
         'Rating with a fixed feed needs a feed with solute (x_F > 0): the product concentration is what is found',
       );
     }
-    const uA = pr.u * A;
-    const residual = (x: number): number => {
-      const c = core(pr, F, x, undefined);
-      return c.Q - uA * c.dT;
-    };
     // At x_F nothing is evaporated: a positive residual means the area cannot even heat the feed.
     const c0 = core(pr, F, xF, undefined);
     if (!(c0.dT > 0)) throw noSteamHotEnough(pr, c0);
-    const r0 = c0.Q - uA * c0.dT;
+    // A given U is a constant; an estimated U depends on x_L and the boiling point, so it is
+    // evaluated inside the residual and Brent's root is the fixed point of both. Where ΔT ≤ 0
+    // (beyond the bracket's useful end) the estimate has no meaning: the last U stands in there,
+    // which keeps the residual's sign (Q − U·A·ΔT > 0).
+    let lastU = coefficientAt(pr, stateOf(pr, c0)).u;
+    const uAt = (c: CoreState): number => {
+      if (!pr.uProvider || !(c.dT > 0)) return lastU;
+      lastU = coefficientAt(pr, stateOf(pr, c)).u;
+      return lastU;
+    };
+    const u0 = lastU;
+    const residual = (x: number): number => {
+      const c = core(pr, F, x, undefined);
+      return c.Q - uAt(c) * A * c.dT;
+    };
+    const r0 = c0.Q - u0 * A * c0.dT;
     if (r0 > 0) {
       throw new EngineNoSolutionError(
-        `The area ${A} m² is too small to bring the feed to its boiling point: heating it alone needs ${(c0.Q / (pr.u * c0.dT)).toFixed(3)} m², and nothing would be evaporated`,
+        `The area ${A} m² is too small to bring the feed to its boiling point: heating it alone needs ${(c0.Q / (u0 * c0.dT)).toFixed(3)} m², and nothing would be evaporated`,
         { reason: 'area-too-small-to-boil', residual: r0 },
       );
     }
@@ -742,7 +793,8 @@ export function rateSingleEffect(input: SingleEffectRatingInput): SingleEffectRe
         { reason: 'no-steam-needed', residual: c1.S },
       );
     }
-    const F = A / (c1.Q / (pr.u * c1.dT));
+    // x_L fixed: the state, and so an estimated U, does not depend on F.
+    const F = A / (c1.Q / (coefficientAt(pr, stateOf(pr, c1)).u * c1.dT));
     const warnings: EngineWarning[] = [];
     result = assemble(pr, core(pr, F, xL, warnings), 'rating', warnings);
   }

@@ -779,3 +779,80 @@ function boilingRange(liquor: LiquorModel, massFraction: number): { min: number;
     unit: 'K',
   };
 }
+
+// ---------------------------------------------------------------------------------------------
+// U as a function of an effect's state, for the evaporator models
+// ---------------------------------------------------------------------------------------------
+
+/** The state of one evaporator effect at which its U is estimated (SI). */
+export interface EffectHeatTransferState {
+  /** Mass fraction of the liquor in the effect (the liquor leaving it). */
+  massFraction: number;
+  /** Boiling temperature of the liquor (BPR included; mid-depth with a liquid head), K. */
+  boilingTemperature: number;
+  /** Pressure where the liquor boils, Pa. */
+  bodyPressure: number;
+  /** Condensing temperature of the heating steam or vapour, K. */
+  condensingTemperature: number;
+}
+
+/** U of an effect as a function of its state: the estimate with its breakdown. */
+export type OverallCoefficientProvider = (state: EffectHeatTransferState) => OverallCoefficientResult;
+
+/** The estimate's inputs that do not come from the effect's state. */
+export type OverallCoefficientEstimateSpec = Pick<
+  OverallCoefficientInput,
+  'evaporatorType' | 'tube' | 'flow' | 'fouling' | 'liquorProperties'
+>;
+
+/**
+ * A {@link OverallCoefficientProvider} for an evaporator effect: {@link estimateOverallCoefficient}
+ * with the liquor state (mass fraction, boiling temperature, body pressure) and the condensing
+ * temperature of the effect, the rest from `spec`. Refusals and warnings name the request field
+ * that gave the estimate: `field` (e.g. `overallHeatTransferCoefficients[2]`) + `.estimate.` + the
+ * estimate's input (`liquorProperties.thermalConductivity`) or the state quantity
+ * (`boilingTemperature`, `massFraction`, `steamTemperature`); the message is led by `label`
+ * (e.g. "effect 3").
+ */
+export function overallCoefficientProvider(
+  liquor: LiquorModel,
+  spec: OverallCoefficientEstimateSpec,
+  field: string,
+  label?: string,
+): OverallCoefficientProvider {
+  // The liquor models call the boiling temperature "temperature".
+  const rename = (f: string): string => `${field}.estimate.${f === 'temperature' ? 'boilingTemperature' : f}`;
+  const lead = (m: string): string => (label ? `${label}: ${m}` : m);
+  return (state) => {
+    let result: OverallCoefficientResult;
+    try {
+      result = estimateOverallCoefficient({
+        ...spec,
+        liquor,
+        massFraction: state.massFraction,
+        boilingTemperature: state.boilingTemperature,
+        bodyPressure: state.bodyPressure,
+        steamTemperature: state.condensingTemperature,
+      });
+    } catch (err) {
+      if (err instanceof EngineRangeError) {
+        throw new EngineRangeError(
+          rename(err.field),
+          err.value,
+          err.validRange,
+          lead(err.message),
+          err.context ?? label,
+          err.reason,
+        );
+      }
+      if (err instanceof EngineInputError) throw new EngineInputError(rename(err.field), lead(err.message));
+      throw err;
+    }
+    result.warnings = result.warnings.map((w) => ({
+      ...w,
+      ...(w.field !== undefined ? { field: rename(w.field) } : {}),
+      ...(label ? { message: lead(w.message), context: w.context ?? label } : {}),
+    }));
+    return result;
+  };
+}

@@ -7,10 +7,21 @@
 import {
   OverallCoefficientRequestSchema,
   OverallCoefficientResponseSchema,
+  type HeatTransferBreakdown,
+  type WarningDto,
   type OverallCoefficientResponse,
 } from '../../../../shared/contracts/index.js';
 import { operationCatalogue } from '../../../../shared/operations.js';
-import { estimateOverallCoefficient, liquorBoilingState } from '../../../engine/heat-transfer/overall.js';
+import {
+  estimateOverallCoefficient,
+  liquorBoilingState,
+  overallCoefficientProvider,
+  type EvaporatorType,
+  type OverallCoefficientEstimateSpec,
+  type OverallCoefficientProvider,
+  type OverallCoefficientResult,
+} from '../../../engine/heat-transfer/overall.js';
+import type { LiquorModel } from '../../../engine/liquors/model.js';
 import { saturationPressure, saturationTemperature } from '../../../engine/steam/if97.js';
 import type { EngineWarning } from '../../../engine/types.js';
 import { resolveLiquor } from '../../../liquors/index.js';
@@ -21,6 +32,202 @@ import { IF97_MODEL } from './steam.js';
 
 function bodyLiquor(parts: { body: { liquor: Parameters<typeof resolveLiquor>[0] } }, ctx: OperationContext) {
   return resolveLiquor(parts.body.liquor, ctx.db, ctx.accountId, 'liquor');
+}
+
+/** Drops the keys whose value is undefined (the engine's optional fields are absent, not undefined). */
+function defined<T extends object>(o: T | undefined): { [K in keyof T]?: Exclude<T[K], undefined> } {
+  return Object.fromEntries(Object.entries(o ?? {}).filter(([, v]) => v !== undefined)) as {
+    [K in keyof T]?: Exclude<T[K], undefined>;
+  };
+}
+
+/** The estimate's own inputs as the contract gives them in SI (the request's or an effect's `estimate`). */
+export interface EstimateInput {
+  evaporatorType: EvaporatorType;
+  tube: {
+    outsideDiameter: number;
+    wallThickness: number;
+    length: number;
+    wallConductivity?: number | undefined;
+    material?: string | undefined;
+  };
+  flow: Record<string, number | undefined>;
+  fouling?: { inside?: number | undefined; outside?: number | undefined } | undefined;
+  liquorProperties?: Record<string, number | undefined> | undefined;
+}
+
+/** The contract's estimate inputs (SI) → the engine's. */
+export function estimateSpec(e: EstimateInput): OverallCoefficientEstimateSpec {
+  return {
+    evaporatorType: e.evaporatorType,
+    tube: defined(e.tube) as OverallCoefficientEstimateSpec['tube'],
+    flow: defined(e.flow),
+    fouling: defined(e.fouling),
+    liquorProperties: defined(e.liquorProperties),
+  };
+}
+
+/**
+ * U of an evaporator effect as the request gives it (SI): a number, or `{ estimate }` → a provider
+ * that estimates U at the effect's state, its refusals and warnings named under `field` (the
+ * request path of the coefficient) and led by `label` ("effect 3").
+ */
+export function coefficientInput(
+  liquor: LiquorModel,
+  given: number | string | { estimate: EstimateInput },
+  field: string,
+  label?: string,
+): number | OverallCoefficientProvider {
+  if (typeof given === 'number') return given;
+  // Past the contract every quantity is an SI number; a string here is a bug, not input.
+  if (typeof given === 'string') throw new TypeError(`${field} was not converted to SI`);
+  return overallCoefficientProvider(liquor, estimateSpec(given.estimate), field, label);
+}
+
+/** How many `{ estimate }` a raw body gives for U (read before parsing, for the units it costs). */
+export function estimatesIn(value: unknown): number {
+  const isEstimate = (v: unknown): boolean =>
+    v !== null && typeof v === 'object' && !Array.isArray(v) && 'estimate' in v;
+  if (Array.isArray(value)) return value.slice(0, 10).filter(isEstimate).length;
+  return isEstimate(value) ? 1 : 0;
+}
+
+/** Units of the estimates a raw body gives (the overall-coefficient operation's units each). */
+export function estimateUnits(value: unknown): number {
+  return estimatesIn(value) * operationCatalogue.overallCoefficient.units;
+}
+
+/**
+ * An estimate and its resistances in display units: the answer of the overall-coefficient
+ * operation (without its provenance), also reported by each evaporator effect with an estimated U.
+ */
+export function breakdownOut(
+  e: OverallCoefficientResult,
+  state: { massFraction: number; boilingTemperature: number; bodyPressure: number },
+  steam: { pressure: number; temperature: number },
+  tube: { outsideDiameter: number; length: number },
+  warnings: WarningDto[],
+): HeatTransferBreakdown {
+  const T = (v: number) => display(v, 'temperature');
+  const flux = (v: number) => display(v, 'heatFlux');
+  const R = (v: number) => display(v, 'foulingResistance');
+  const hb = e.boilingSide;
+  return {
+    evaporatorType: e.evaporatorType,
+    overallHeatTransferCoefficient: r(e.overallHeatTransferCoefficient),
+    area: 'outside',
+    temperatureDifference: r(e.temperatureDifference),
+    heatFlux: flux(e.heatFlux),
+    totalResistance: R(e.totalResistance),
+    liquorState: {
+      massFraction: r(state.massFraction),
+      boilingTemperature: T(state.boilingTemperature),
+      bodyPressure: display(state.bodyPressure, 'pressure'),
+    },
+    steam: { pressure: display(steam.pressure, 'pressure'), temperature: T(steam.temperature) },
+    tube: {
+      outsideDiameter: display(tube.outsideDiameter, 'length'),
+      insideDiameter: display(e.insideDiameter, 'length'),
+      length: display(tube.length, 'length'),
+    },
+    boilingSide: {
+      model: hb.model,
+      filmCoefficient: r(hb.filmCoefficient),
+      resistance: R(hb.resistance),
+      share: r(hb.share),
+      reynolds: r(hb.reynolds),
+      reynoldsDefinition: hb.reynoldsDefinition,
+      prandtl: r(hb.prandtl),
+      regime: hb.regime,
+      heatFlux: flux(hb.heatFlux),
+      surfaceTemperature: T(hb.surfaceTemperature),
+      liquorTemperature: T(hb.liquorTemperature),
+      ...(hb.wettingRate
+        ? {
+            wettingRate: {
+              inlet: display(hb.wettingRate.inlet, 'wettingRate'),
+              mean: display(hb.wettingRate.mean, 'wettingRate'),
+              outlet: display(hb.wettingRate.outlet, 'wettingRate'),
+            },
+          }
+        : {}),
+      ...(hb.transitionReynolds !== undefined ? { transitionReynolds: r(hb.transitionReynolds) } : {}),
+      ...(hb.velocity !== undefined ? { velocity: display(hb.velocity, 'velocity') } : {}),
+      ...(hb.convectiveCoefficient !== undefined
+        ? { convectiveCoefficient: r(hb.convectiveCoefficient) }
+        : {}),
+      ...(hb.nucleateBoilingCoefficient !== undefined
+        ? { nucleateBoilingCoefficient: r(hb.nucleateBoilingCoefficient) }
+        : {}),
+      properties: {
+        density: display(hb.properties.density, 'density'),
+        viscosity: display(hb.properties.viscosity, 'viscosity'),
+        thermalConductivity: display(hb.properties.thermalConductivity, 'thermalConductivity'),
+        heatCapacity: display(hb.properties.heatCapacity, 'specificHeatCapacity'),
+        source: hb.properties.source,
+      },
+    },
+    wall: {
+      conductivity: display(e.wall.conductivity, 'thermalConductivity'),
+      ...(e.wall.material !== undefined ? { material: e.wall.material } : {}),
+      resistance: R(e.wall.resistance),
+      share: r(e.wall.share),
+      heatFlux: flux(e.wall.heatFlux),
+      outsideTemperature: T(e.wall.outsideTemperature),
+      insideTemperature: T(e.wall.insideTemperature),
+    },
+    condensingSide: {
+      model: e.condensingSide.model,
+      filmCoefficient: r(e.condensingSide.filmCoefficient),
+      resistance: R(e.condensingSide.resistance),
+      share: r(e.condensingSide.share),
+      reynolds: r(e.condensingSide.reynolds),
+      prandtl: r(e.condensingSide.prandtl),
+      regime: e.condensingSide.regime,
+      heatFlux: flux(e.condensingSide.heatFlux),
+      surfaceTemperature: T(e.condensingSide.surfaceTemperature),
+      filmTemperature: T(e.condensingSide.filmTemperature),
+      latentHeat: display(e.condensingSide.latentHeat, 'specificEnthalpy'),
+    },
+    fouling: {
+      inside: {
+        resistance: R(e.fouling.inside.resistance),
+        referredResistance: R(e.fouling.inside.referredResistance),
+        share: r(e.fouling.inside.share),
+        defaulted: e.fouling.inside.defaulted,
+        heatFlux: flux(e.fouling.inside.heatFlux),
+      },
+      outside: {
+        resistance: R(e.fouling.outside.resistance),
+        referredResistance: R(e.fouling.outside.referredResistance),
+        share: r(e.fouling.outside.share),
+        defaulted: e.fouling.outside.defaulted,
+        heatFlux: flux(e.fouling.outside.heatFlux),
+      },
+    },
+    assumptions: e.assumptions,
+    warnings,
+    cautions: e.cautions,
+  };
+}
+
+/**
+ * The breakdown of an evaporator effect's estimated U (SI result → display): the steam pressure is
+ * the saturation pressure of the condensing temperature; warnings carry their request paths.
+ */
+export function effectBreakdownOut(
+  e: OverallCoefficientResult,
+  state: { massFraction: number; bodyPressure: number },
+  tube: { outsideDiameter: number; length: number },
+): HeatTransferBreakdown {
+  const ts = e.condensingSide.steamTemperature;
+  return breakdownOut(
+    e,
+    { ...state, boilingTemperature: e.boilingSide.liquorTemperature },
+    { pressure: saturationPressure(ts), temperature: ts },
+    tube,
+    warningsOut(e.warnings),
+  );
 }
 
 const EXAMPLE = {
@@ -82,135 +289,27 @@ export const overallCoefficient = declareOperation({
           : { boilingTemperature: b.boilingTemperature! },
         warnings,
       );
-      const tube = {
-        outsideDiameter: b.tube.outsideDiameter,
-        wallThickness: b.tube.wallThickness,
-        length: b.tube.length,
-        ...(b.tube.wallConductivity !== undefined ? { wallConductivity: b.tube.wallConductivity } : {}),
-        ...(b.tube.material !== undefined ? { material: b.tube.material } : {}),
-      };
-      const flow = Object.fromEntries(Object.entries(b.flow).filter(([, v]) => v !== undefined));
-      const fouling = Object.fromEntries(Object.entries(b.fouling ?? {}).filter(([, v]) => v !== undefined));
-      const props = Object.fromEntries(
-        Object.entries(b.liquorProperties ?? {}).filter(([, v]) => v !== undefined),
-      );
       return {
         state,
         estimate: estimateOverallCoefficient({
-          evaporatorType: b.evaporatorType,
           liquor: liquor.model,
           massFraction: b.massFraction,
           boilingTemperature: state.boilingTemperature,
           bodyPressure: state.bodyPressure,
           steamTemperature: steam.temperature,
-          tube,
-          flow,
-          fouling,
-          liquorProperties: props,
+          ...estimateSpec(b),
         }),
       };
     });
     const e = result.estimate;
-    const T = (v: number) => display(v, 'temperature');
-    const flux = (v: number) => display(v, 'heatFlux');
-    const R = (v: number) => display(v, 'foulingResistance');
-    const hb = e.boilingSide;
     return {
-      evaporatorType: e.evaporatorType,
-      overallHeatTransferCoefficient: r(e.overallHeatTransferCoefficient),
-      area: 'outside',
-      temperatureDifference: r(e.temperatureDifference),
-      heatFlux: flux(e.heatFlux),
-      totalResistance: R(e.totalResistance),
-      liquorState: {
-        massFraction: r(b.massFraction),
-        boilingTemperature: T(result.state.boilingTemperature),
-        bodyPressure: display(result.state.bodyPressure, 'pressure'),
-      },
-      steam: { pressure: display(steam.pressure, 'pressure'), temperature: T(steam.temperature) },
-      tube: {
-        outsideDiameter: display(b.tube.outsideDiameter, 'length'),
-        insideDiameter: display(e.insideDiameter, 'length'),
-        length: display(b.tube.length, 'length'),
-      },
-      boilingSide: {
-        model: hb.model,
-        filmCoefficient: r(hb.filmCoefficient),
-        resistance: R(hb.resistance),
-        share: r(hb.share),
-        reynolds: r(hb.reynolds),
-        reynoldsDefinition: hb.reynoldsDefinition,
-        prandtl: r(hb.prandtl),
-        regime: hb.regime,
-        heatFlux: flux(hb.heatFlux),
-        surfaceTemperature: T(hb.surfaceTemperature),
-        liquorTemperature: T(hb.liquorTemperature),
-        ...(hb.wettingRate
-          ? {
-              wettingRate: {
-                inlet: display(hb.wettingRate.inlet, 'wettingRate'),
-                mean: display(hb.wettingRate.mean, 'wettingRate'),
-                outlet: display(hb.wettingRate.outlet, 'wettingRate'),
-              },
-            }
-          : {}),
-        ...(hb.transitionReynolds !== undefined ? { transitionReynolds: r(hb.transitionReynolds) } : {}),
-        ...(hb.velocity !== undefined ? { velocity: display(hb.velocity, 'velocity') } : {}),
-        ...(hb.convectiveCoefficient !== undefined
-          ? { convectiveCoefficient: r(hb.convectiveCoefficient) }
-          : {}),
-        ...(hb.nucleateBoilingCoefficient !== undefined
-          ? { nucleateBoilingCoefficient: r(hb.nucleateBoilingCoefficient) }
-          : {}),
-        properties: {
-          density: display(hb.properties.density, 'density'),
-          viscosity: display(hb.properties.viscosity, 'viscosity'),
-          thermalConductivity: display(hb.properties.thermalConductivity, 'thermalConductivity'),
-          heatCapacity: display(hb.properties.heatCapacity, 'specificHeatCapacity'),
-          source: hb.properties.source,
-        },
-      },
-      wall: {
-        conductivity: display(e.wall.conductivity, 'thermalConductivity'),
-        ...(e.wall.material !== undefined ? { material: e.wall.material } : {}),
-        resistance: R(e.wall.resistance),
-        share: r(e.wall.share),
-        heatFlux: flux(e.wall.heatFlux),
-        outsideTemperature: T(e.wall.outsideTemperature),
-        insideTemperature: T(e.wall.insideTemperature),
-      },
-      condensingSide: {
-        model: e.condensingSide.model,
-        filmCoefficient: r(e.condensingSide.filmCoefficient),
-        resistance: R(e.condensingSide.resistance),
-        share: r(e.condensingSide.share),
-        reynolds: r(e.condensingSide.reynolds),
-        prandtl: r(e.condensingSide.prandtl),
-        regime: e.condensingSide.regime,
-        heatFlux: flux(e.condensingSide.heatFlux),
-        surfaceTemperature: T(e.condensingSide.surfaceTemperature),
-        filmTemperature: T(e.condensingSide.filmTemperature),
-        latentHeat: display(e.condensingSide.latentHeat, 'specificEnthalpy'),
-      },
-      fouling: {
-        inside: {
-          resistance: R(e.fouling.inside.resistance),
-          referredResistance: R(e.fouling.inside.referredResistance),
-          share: r(e.fouling.inside.share),
-          defaulted: e.fouling.inside.defaulted,
-          heatFlux: flux(e.fouling.inside.heatFlux),
-        },
-        outside: {
-          resistance: R(e.fouling.outside.resistance),
-          referredResistance: R(e.fouling.outside.referredResistance),
-          share: r(e.fouling.outside.share),
-          defaulted: e.fouling.outside.defaulted,
-          heatFlux: flux(e.fouling.outside.heatFlux),
-        },
-      },
-      assumptions: e.assumptions,
-      warnings: warningsOut([...warnings, ...e.warnings], fields),
-      cautions: e.cautions,
+      ...breakdownOut(
+        e,
+        { ...result.state, massFraction: b.massFraction },
+        steam,
+        b.tube,
+        warningsOut([...warnings, ...e.warnings], fields),
+      ),
       provenance: provenance(ctx.engineVersion, [
         IF97_MODEL,
         ...liquor.models,

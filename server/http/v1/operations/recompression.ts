@@ -20,7 +20,8 @@ import { resolveLiquor } from '../../../liquors/index.js';
 import { calculate, warningsOut, type FieldMap } from '../../engine-errors.js';
 import { display, provenance, r } from '../../output.js';
 import { declareOperation } from '../operation.js';
-import { figuresOut } from './evaporators.js';
+import { bodyEstimateCaseUnits, bodyEstimateUnits, estimateSources, figuresOut } from './evaporators.js';
+import { coefficientInput, effectBreakdownOut, type EstimateInput } from './heat-transfer.js';
 import { IF97_MODEL } from './steam.js';
 
 const FIELDS: FieldMap = {
@@ -52,7 +53,10 @@ export const mechanicalVaporRecompressionOperation = declareOperation({
     'The vapour leaves the body at its pressure and the liquor boiling point, is compressed (IAPWS-IF97, ' +
     'isentropic efficiency per stage, equal pressure ratio per stage) and desuperheated with condensate, ' +
     'and condenses in the chest. Its heat is compared with the duty: make-up steam covers a shortfall, a ' +
-    'trim condenser takes a surplus. Example: an invented seawater distiller at the Skerrow Point works.',
+    'trim condenser takes a surplus. ' +
+    '`body.overallHeatTransferCoefficient` is a number, or `{ "estimate": { evaporatorType, tube, flow, fouling?, liquorProperties? } }`: U estimated at the solved state (product mass fraction, mean boiling temperature and pressure, the chest’s condensing temperature T_sat(p₂); in rating T_c and U are solved together by Brent). U and the area then refer to the OUTSIDE area of the tubes, and `heatTransfer` reports the estimate. ' +
+    `An estimate costs ${operationCatalogue.overallCoefficient.units} units on top of the ${operationCatalogue.mechanicalVaporRecompression.units} of the calculation (in a batch too). ` +
+    'Example: an invented seawater distiller at the Skerrow Point works.',
   request: {
     body: MechanicalVaporRecompressionRequestSchema,
     example: {
@@ -93,7 +97,11 @@ export const mechanicalVaporRecompressionOperation = declareOperation({
         },
         body: {
           pressure: b.body.pressure,
-          overallHeatTransferCoefficient: b.body.overallHeatTransferCoefficient,
+          overallHeatTransferCoefficient: coefficientInput(
+            liquor.model,
+            b.body.overallHeatTransferCoefficient,
+            'body.overallHeatTransferCoefficient',
+          ),
           ...(temperatureDifference !== undefined ? { temperatureDifference } : {}),
           ...(area !== undefined ? { area } : {}),
           ...(liquidHeight !== undefined ? { liquidHeight } : {}),
@@ -162,10 +170,20 @@ export const mechanicalVaporRecompressionOperation = declareOperation({
       heatLoss: display(result.heatLoss, 'power'),
       balances: result.balances,
       ...figures,
+      ...(result.heatTransfer
+        ? {
+            heatTransfer: effectBreakdownOut(
+              result.heatTransfer,
+              { massFraction: result.product.massFraction, bodyPressure: result.body.meanBoilingPressure },
+              (b.body.overallHeatTransferCoefficient as { estimate: EstimateInput }).estimate.tube,
+            ),
+          }
+        : {}),
       warnings: warningsOut([...liquor.definitionWarnings, ...result.warnings, ...figureWarnings], FIELDS),
       cautions: result.cautions,
-      provenance: provenance(ctx.engineVersion, [IF97_MODEL, ...liquor.models]),
+      provenance: provenance(ctx.engineVersion, [IF97_MODEL, ...liquor.models, ...estimateSources(result)]),
     };
   },
-  batch: {},
+  extraUnits: bodyEstimateUnits,
+  batch: { units: bodyEstimateCaseUnits(operationCatalogue.mechanicalVaporRecompression.units) },
 });
