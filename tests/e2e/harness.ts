@@ -330,7 +330,7 @@ export async function signIn(page: Page, origin: string, email: string, password
   // the fields are first found: let it settle, and type again if a re-render emptied a field, so
   // the click always submits what was typed.
   await page.waitForURL(/\/console\/sign-in/);
-  await page.waitForLoadState('networkidle');
+  await page.getByRole('button', { name: 'Sign in' }).waitFor();
   const emailField = page.getByLabel('E-mail');
   const passwordField = page.getByLabel('Password', { exact: true });
   for (let attempt = 0; attempt < 3; attempt++) {
