@@ -17,6 +17,8 @@ import type { KeyScope } from './access.js';
 export interface OperationInfo {
   /** Dotted id: `<area>.<operation>`; metering, usage and the request log record it. */
   readonly id: string;
+  /** A few words for tables and filters (the console's usage and request-log views). */
+  readonly title: string;
   /** One line for people (console usage pages, the OpenAPI summary of the catalogue). */
   readonly label: string;
   /** The API-key scope the operation needs. */
@@ -32,6 +34,7 @@ export interface OperationInfo {
 export const operationCatalogue = {
   steamSaturation: {
     id: 'steam.saturation',
+    title: 'Steam saturation',
     label: 'Saturation state of water at a pressure or temperature (IAPWS-IF97)',
     scope: 'steam',
     units: 1,
@@ -39,6 +42,7 @@ export const operationCatalogue = {
   },
   steamState: {
     id: 'steam.state',
+    title: 'Steam state',
     label: 'Water or steam state at (p, T) or (p, h) (IAPWS-IF97)',
     scope: 'steam',
     units: 1,
@@ -46,18 +50,21 @@ export const operationCatalogue = {
   },
   liquorList: {
     id: 'liquors.list',
+    title: 'Liquor list',
     label: 'List the built-in and stored liquor models with their validity ranges',
     scope: 'liquors',
     units: 0,
   },
   liquorGet: {
     id: 'liquors.get',
+    title: 'Liquor details',
     label: 'One liquor model: source, validity box, properties offered',
     scope: 'liquors',
     units: 0,
   },
   liquorBoilingPoint: {
     id: 'liquors.boiling-point',
+    title: 'Liquor boiling point',
     label: 'Boiling point and boiling-point rise of a liquor at a concentration and pressure',
     scope: 'liquors',
     units: 1,
@@ -65,6 +72,7 @@ export const operationCatalogue = {
   },
   liquorEnthalpy: {
     id: 'liquors.enthalpy',
+    title: 'Liquor enthalpy',
     label: 'Specific enthalpy of a liquor at a concentration and temperature',
     scope: 'liquors',
     units: 1,
@@ -72,30 +80,35 @@ export const operationCatalogue = {
   },
   storedLiquorCreate: {
     id: 'liquors.stored.create',
+    title: 'Store a liquor',
     label: "Store a custom liquor definition on the caller's account",
     scope: 'liquors',
     units: 1,
   },
   storedLiquorList: {
     id: 'liquors.stored.list',
+    title: 'Stored liquors',
     label: "List the caller's stored liquor definitions",
     scope: 'liquors',
     units: 0,
   },
   storedLiquorUpdate: {
     id: 'liquors.stored.update',
+    title: 'Update a stored liquor',
     label: 'Store a new version of a stored liquor definition',
     scope: 'liquors',
     units: 1,
   },
   storedLiquorDelete: {
     id: 'liquors.stored.delete',
+    title: 'Delete a stored liquor',
     label: 'Delete a stored liquor definition',
     scope: 'liquors',
     units: 0,
   },
   singleEffect: {
     id: 'evaporators.single-effect',
+    title: 'Single-effect evaporator',
     label: 'Design or rate a single-effect evaporator',
     scope: 'evaporators',
     units: 5,
@@ -103,20 +116,46 @@ export const operationCatalogue = {
   },
   multipleEffect: {
     id: 'evaporators.multiple-effect',
+    title: 'Multiple-effect train',
     label: 'Design a multiple-effect train (5 units + 5 per effect)',
     scope: 'evaporators',
     units: 5,
     unitsPerEffect: 5,
     batchName: 'multiple-effect',
   },
+  mechanicalVaporRecompression: {
+    id: 'evaporators.mechanical-vapor-recompression',
+    title: 'MVR evaporator',
+    label: 'Design or rate a mechanical-vapour-recompression evaporator (compressor, make-up steam, area)',
+    scope: 'evaporators',
+    units: 5,
+    batchName: 'mechanical-vapor-recompression',
+  },
+  evaporatorSchemeStudy: {
+    id: 'studies.evaporator-schemes',
+    title: 'Scheme study',
+    label: 'Rank evaporator schemes by total annual cost (the sum of the units of the calculations it runs)',
+    scope: 'evaporators',
+    units: 0,
+  },
+  overallCoefficient: {
+    id: 'heat-transfer.overall-coefficient',
+    title: 'U estimate',
+    label: 'Estimate the overall heat-transfer coefficient U of an evaporator tube from film coefficients',
+    scope: 'evaporators',
+    units: 2,
+    batchName: 'overall-coefficient',
+  },
   batch: {
     id: 'batch',
+    title: 'Batch',
     label: 'Run many calculations in one request (cost: the sum of the rows)',
     scope: 'batch',
     units: 0,
   },
   usageRead: {
     id: 'usage.read',
+    title: 'Usage report',
     label: "The calling account's usage and quota for the current month",
     scope: 'usage',
     units: 0,

@@ -21,6 +21,13 @@ export const quantityKinds = [
   'length',
   'fraction',
   'density',
+  'specificEnergy',
+  'velocity',
+  'wettingRate',
+  'foulingResistance',
+  'thermalConductivity',
+  'viscosity',
+  'heatFlux',
 ] as const;
 export type QuantityKind = (typeof quantityKinds)[number];
 
@@ -91,4 +98,38 @@ export const defaultUnits: Record<QuantityKind, DefaultUnit> = {
   length: { symbol: 'm', label: 'm', spelling: 'm', examples: ['1.5 m', '60 in'] },
   fraction: { symbol: '1', label: 'fraction 0–1', spelling: 'kg/kg', examples: ['2 %'] },
   density: { symbol: 'kg/m3', label: 'kg/m³', spelling: 'kg/m³', examples: ['1050 kg/m3', '1.05 g/cm3'] },
+  // Energy per mass processed, as plants state a compressor's consumption: kWh per tonne of water
+  // evaporated (common practice).
+  specificEnergy: {
+    symbol: 'kWh/t',
+    label: 'kWh/t',
+    spelling: 'kWh/t',
+    examples: ['20 kWh/t', '0.02 kWh/kg'],
+  },
+  velocity: { symbol: 'm/s', label: 'm/s', spelling: 'm/s', examples: ['1.8 m/s', '6 ft/s'] },
+  wettingRate: {
+    symbol: 'kg/(m*s)',
+    label: 'kg/(m·s)',
+    spelling: 'kg/(m·s)',
+    examples: ['0.3 kg/(m*s)', '1000 kg/(m*h)'],
+  },
+  foulingResistance: {
+    symbol: 'm2*K/W',
+    label: 'm²·K/W',
+    spelling: 'm²·K/W',
+    examples: ['0.0002 m2*K/W', '0.001 h*ft2*F/Btu'],
+  },
+  thermalConductivity: {
+    symbol: 'W/(m*K)',
+    label: 'W/(m·K)',
+    spelling: 'W/(m·K)',
+    examples: ['16 W/(m*K)', '9.2 Btu/(h*ft*F)'],
+  },
+  viscosity: {
+    symbol: 'mPa*s',
+    label: 'mPa·s',
+    spelling: 'mPa·s',
+    examples: ['0.35 mPa*s', '1.2 cP', '0.0004 Pa*s'],
+  },
+  heatFlux: { symbol: 'kW/m2', label: 'kW/m²', spelling: 'kW/m²', examples: ['25 kW/m2', '25000 W/m2'] },
 };

@@ -30,6 +30,11 @@ export interface EngineWarning {
   values?: Record<string, EngineQuantity>;
   /** Where in a larger calculation the warning arose, unit-free ("effect 2"). */
   context?: string;
+  /**
+   * The liquor property whose source's data range was left ("viscosity", "thermal conductivity"),
+   * when a model's properties come from sources with different ranges.
+   */
+  property?: string;
 }
 
 /** The kinds of quantity an engine message may carry (SI values; the same names as the API's kinds). */
@@ -45,7 +50,13 @@ export type EngineQuantityKind =
   | 'area'
   | 'heatTransferCoefficient'
   | 'length'
-  | 'density';
+  | 'density'
+  | 'velocity'
+  | 'wettingRate'
+  | 'foulingResistance'
+  | 'thermalConductivity'
+  | 'viscosity'
+  | 'heatFlux';
 
 /** An SI value with its kind, for a message the caller formats. */
 export interface EngineQuantity {
@@ -85,6 +96,12 @@ const SI_UNIT_KINDS: Record<string, EngineQuantityKind> = {
   'W/(m²·K)': 'heatTransferCoefficient',
   m: 'length',
   'kg/m³': 'density',
+  'm/s': 'velocity',
+  'kg/(m·s)': 'wettingRate',
+  'm²·K/W': 'foulingResistance',
+  'W/(m·K)': 'thermalConductivity',
+  'Pa·s': 'viscosity',
+  'W/m²': 'heatFlux',
 };
 
 /** A safety caution shown with results that could hurt someone if misused. */
@@ -103,7 +120,10 @@ export type WarningSink = EngineWarning[] | undefined;
 /** Adds a warning unless one with the same code and field is already present. */
 export function addWarning(sink: WarningSink, warning: EngineWarning): void {
   if (!sink) return;
-  if (sink.some((w) => w.code === warning.code && w.field === warning.field)) return;
+  if (
+    sink.some((w) => w.code === warning.code && w.field === warning.field && w.property === warning.property)
+  )
+    return;
   sink.push(warning);
 }
 

@@ -42,6 +42,13 @@ const SI_KIND_BY_UNIT: Record<string, QuantityKind> = {
   'W/(m2*K)': 'heatTransferCoefficient',
   m: 'length',
   'kg/kg': 'massFraction',
+  'kg/m³': 'density',
+  'm/s': 'velocity',
+  'kg/(m·s)': 'wettingRate',
+  'm²·K/W': 'foulingResistance',
+  'W/(m·K)': 'thermalConductivity',
+  'Pa·s': 'viscosity',
+  'W/m²': 'heatFlux',
 };
 
 function mapField(map: FieldMap, engineField: string, siUnit: string): FieldMapping {

@@ -178,6 +178,7 @@ export function buildOpenApiDocument(): ReturnType<OpenApiGeneratorV31['generate
       { name: 'Steam', description: 'Water and steam properties, IAPWS-IF97' },
       { name: 'Liquors', description: 'Liquor models and stored liquor data' },
       { name: 'Evaporators', description: 'Evaporator design and rating' },
+      { name: 'Studies', description: 'Comparisons of schemes for one duty, costed' },
       { name: 'Batch', description: 'Many cases in one request' },
     ],
   });

@@ -74,7 +74,9 @@ export function readQuantity(
 type SiNode =
   | { readonly spec: QuantitySpec; readonly path: string }
   | { readonly fields: readonly (readonly [string, SiNode])[] }
-  | { readonly items: SiNode };
+  | { readonly items: SiNode }
+  /** A union of a quantity and an object (U or `{ estimate }`): chosen by the value's shape. */
+  | { readonly scalar: SiNode | undefined; readonly object: SiNode | undefined };
 
 interface ZodInternals {
   _zod: {
@@ -83,6 +85,7 @@ interface ZodInternals {
       innerType?: object;
       shape?: Record<string, object>;
       element?: object;
+      options?: readonly object[];
     };
   };
 }
@@ -109,9 +112,22 @@ function compile(schema: object, path: string): SiNode | undefined {
       const items = def.element ? compile(def.element, `${path}[#]`) : undefined;
       return items ? { items } : undefined;
     }
+    case 'union': {
+      // A quantity or an object (U as a number or `{ estimate: … }`): one branch of each kind at
+      // most; other unions hold no quantity.
+      let scalar: SiNode | undefined;
+      let object: SiNode | undefined;
+      for (const option of def.options ?? []) {
+        const node = compile(option, path);
+        if (!node) continue;
+        if ('spec' in node) scalar = node;
+        else object = node;
+      }
+      return scalar || object ? { scalar, object } : undefined;
+    }
     default:
-      // Unions, records and the rest hold no quantity of the v1 contracts (a liquor definition
-      // is in display units and converted by the liquor service).
+      // Records and the rest hold no quantity of the v1 contracts (a liquor definition is in
+      // display units and converted by the liquor service).
       return undefined;
   }
 }
@@ -154,6 +170,11 @@ function convert(node: SiNode, value: unknown): unknown {
   if ('spec' in node) {
     if (typeof value === 'number') return displayToSI(value, node.spec.kind);
     return readQuantity(value as QuantityInput, node.spec, concretePath(node.path), current);
+  }
+  if ('scalar' in node) {
+    const isObject = value !== null && typeof value === 'object' && !Array.isArray(value);
+    const branch = isObject ? node.object : node.scalar;
+    return branch ? convert(branch, value) : value;
   }
   if (value === null || typeof value !== 'object') return value;
   if ('items' in node) {

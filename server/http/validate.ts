@@ -38,6 +38,9 @@ export function echo(value: unknown): unknown {
 
 type Issue = z.core.$ZodIssue;
 
+/** Errors that explain a likely mistake: listed first, so the problem's detail says them. */
+const hints = new WeakSet<ProblemFieldError>();
+
 /** For a failed union, the issues of the branch that got furthest (deepest path, then fewest issues). */
 function bestUnionBranch(branches: Issue[][]): Issue[] {
   let best: Issue[] | undefined;
@@ -65,6 +68,12 @@ function issueToErrors(
     return bestUnionBranch(issue.errors).flatMap((i) => issueToErrors(i, path, input, prefix));
   }
   if (issue.code === 'unrecognized_keys') {
+    // A contract may explain a likely mistake (its own message instead of zod's default).
+    if (!issue.message.startsWith('Unrecognized key')) {
+      const hint = { field: fieldPath([...path, issue.keys[0] ?? ''], prefix), message: issue.message };
+      hints.add(hint);
+      return [hint];
+    }
     return issue.keys.map((key) => ({
       field: fieldPath([...path, key], prefix),
       message: 'is not a field of this request',
@@ -90,7 +99,8 @@ function issueToErrors(
 
 /** The problem for a failed zod parse. */
 export function zodProblem(error: z.ZodError, input: unknown, prefix = ''): ProblemError {
-  const errors = error.issues.flatMap((i) => issueToErrors(i, [], input, prefix)).slice(0, 50);
+  const all = error.issues.flatMap((i) => issueToErrors(i, [], input, prefix));
+  const errors = [...all.filter((e) => hints.has(e)), ...all.filter((e) => !hints.has(e))].slice(0, 50);
   const first = errors[0];
   return problem(
     'validation-failed',

@@ -1,6 +1,6 @@
 /**
  * Custom liquor definitions (inline in a request, stored by an account, uploaded in the console):
- * display units (°C, kJ/kg, kJ/(kg·K)) → the engine's SI definition → a LiquorModel.
+ * display units (°C, kJ/kg, kJ/(kg·K), mN/m) → the engine's SI definition → a LiquorModel.
  */
 import type { CustomLiquorDefinition } from '../../shared/contracts/index.js';
 import {
@@ -20,6 +20,15 @@ export function toEngineDefinition(def: CustomLiquorDefinition, id?: string): En
     ...(def.compositionVariable !== undefined ? { compositionVariable: def.compositionVariable } : {}),
     ...(def.heatCapacity
       ? { heatCapacity: { polynomial: def.heatCapacity.polynomial.map((c) => c * KJ) } }
+      : {}),
+    ...(def.density ? { density: { polynomial: [...def.density.polynomial] } } : {}),
+    ...(def.viscosity ? { viscosity: { polynomial: [...def.viscosity.polynomial] } } : {}),
+    ...(def.thermalConductivity
+      ? { thermalConductivity: { polynomial: [...def.thermalConductivity.polynomial] } }
+      : {}),
+    // mN/m → N/m
+    ...(def.surfaceTension
+      ? { surfaceTension: { polynomial: def.surfaceTension.polynomial.map((c) => c * 1e-3) } }
       : {}),
     ...(def.enthalpy
       ? {
@@ -85,6 +94,10 @@ function definitionFieldMap(prefix: string): FieldMap {
     'heatCapacity',
     'enthalpy',
     'validity',
+    'density',
+    'viscosity',
+    'thermalConductivity',
+    'surfaceTension',
   ]) {
     map[key] = `${prefix}.${key}`;
   }

@@ -34,6 +34,9 @@ export function summarise(model: LiquorModel, kind: LiquorSummary['kind'], id = 
     limits: boxOut(d.limits),
     sources: d.sources,
     properties: d.properties,
+    transportValidity: Object.fromEntries(
+      Object.entries(d.transportValidity).map(([property, box]) => [property, boxOut(box)]),
+    ),
     cautions: model.cautions,
   };
 }

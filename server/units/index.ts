@@ -65,7 +65,14 @@ type UnitFamily =
   | 'length'
   | 'power'
   | 'massFraction'
-  | 'density';
+  | 'density'
+  | 'specificEnergy'
+  | 'velocity'
+  | 'wettingRate'
+  | 'foulingResistance'
+  | 'thermalConductivity'
+  | 'viscosity'
+  | 'heatFlux';
 
 const FAMILY: Readonly<Record<QuantityKind, UnitFamily>> = {
   pressure: 'pressure',
@@ -82,6 +89,13 @@ const FAMILY: Readonly<Record<QuantityKind, UnitFamily>> = {
   massFraction: 'massFraction',
   fraction: 'massFraction',
   density: 'density',
+  specificEnergy: 'specificEnergy',
+  velocity: 'velocity',
+  wettingRate: 'wettingRate',
+  foulingResistance: 'foulingResistance',
+  thermalConductivity: 'thermalConductivity',
+  viscosity: 'viscosity',
+  heatFlux: 'heatFlux',
 };
 
 /** Ebullio's default unit of each kind (shared/quantities.ts): what a bare number means, and what results are given in. */
@@ -103,6 +117,13 @@ const SI_UNITS: Readonly<Record<UnitFamily, string>> = {
   power: 'W',
   massFraction: 'kg/kg',
   density: 'kg/m³',
+  specificEnergy: 'J/kg',
+  velocity: 'm/s',
+  wettingRate: 'kg/(m·s)',
+  foulingResistance: 'm²·K/W',
+  thermalConductivity: 'W/(m·K)',
+  viscosity: 'Pa·s',
+  heatFlux: 'W/m²',
 };
 
 /** The SI unit the engine works in, per kind. */
@@ -124,6 +145,13 @@ const QTY_SI: Record<UnitFamily, string | undefined> = {
   power: 'W',
   massFraction: undefined,
   density: 'kg/m^3',
+  specificEnergy: 'J/kg',
+  velocity: 'm/s',
+  wettingRate: 'kg/m*s',
+  foulingResistance: 'm^2*degK/W',
+  thermalConductivity: 'W/m*degK',
+  viscosity: 'Pa*s',
+  heatFlux: 'W/m^2',
 };
 
 /** Exact values used instead of js-quantities' rounded ones (NIST SP 811 Appendix B). */
@@ -277,6 +305,49 @@ const UNIT_TABLE: Record<UnitFamily, UnitSpec[]> = {
     { unit: 'kg/m³', aliases: ['kg/m3', 'kg/m^3'], qty: 'kg/m^3' },
     { unit: 'g/cm³', aliases: ['g/cm3', 'g/cm^3', 'g/mL', 'g/ml'], qty: 'g/cm^3' },
     { unit: 'lb/ft³', aliases: ['lb/ft3', 'lb/ft^3'], factor: POUND / FOOT ** 3 },
+  ],
+  // 1 kWh = 3.6 MJ and 1 t = 1000 kg (exact).
+  specificEnergy: [
+    { unit: 'kWh/t', aliases: ['kWh/tonne', 'kW·h/t'], factor: 3600 },
+    { unit: 'kWh/kg', factor: 3.6e6 },
+    { unit: 'MJ/t', aliases: ['MJ/tonne'], factor: 1000 },
+  ],
+  velocity: [
+    { unit: 'm/s', qty: 'm/s' },
+    { unit: 'ft/s', aliases: ['fps'], qty: 'ft/s' },
+  ],
+  wettingRate: [
+    { unit: 'kg/(m·s)', aliases: ['kg/(m*s)', 'kg/m/s', 'kg/m·s', 'kg/(m s)', 'kg/ms'], factor: 1 },
+    { unit: 'kg/(m·h)', aliases: ['kg/(m*h)', 'kg/m/h', 'kg/m·h', 'kg/(m h)', 'kg/mh'], factor: 1 / HOUR },
+    {
+      unit: 'lb/(ft·h)',
+      aliases: ['lb/(ft*h)', 'lb/ft/h', 'lb/ft·h', 'lb/(ft h)'],
+      factor: POUND / FOOT / HOUR,
+    },
+  ],
+  foulingResistance: [
+    { unit: 'm²·K/W', aliases: ['m2K/W', 'm²K/W', 'm2*K/W', 'm^2*K/W', 'm2·K/W', 'm2 K/W'], factor: 1 },
+    {
+      unit: 'h·ft²·°F/Btu',
+      aliases: ['h*ft2*F/Btu', 'h ft2 F/Btu', 'hr*ft2*F/Btu', 'h·ft2·°F/Btu', 'hft2F/Btu', 'h*ft^2*degF/Btu'],
+      factor: (HOUR * FOOT ** 2 * RANKINE) / BTU,
+    },
+  ],
+  thermalConductivity: [
+    { unit: 'W/(m·K)', aliases: ['W/(m*K)', 'W/m/K', 'W/mK', 'W/m·K', 'W/(m K)'], factor: 1 },
+    {
+      unit: 'Btu/(h·ft·°F)',
+      aliases: ['Btu/(h*ft*F)', 'Btu/h/ft/F', 'Btu/(h ft F)', 'Btu/hr-ft-F', 'Btu/(hr*ft*F)'],
+      factor: BTU / HOUR / FOOT / RANKINE,
+    },
+  ],
+  viscosity: [
+    { unit: 'mPa·s', aliases: ['mPa*s', 'mPas', 'mPa s', 'cP', 'cp', 'centipoise'], factor: 1e-3 },
+    { unit: 'Pa·s', aliases: ['Pa*s', 'Pas', 'Pa s', 'kg/(m*s)'], factor: 1 },
+  ],
+  heatFlux: [
+    { unit: 'W/m²', aliases: ['W/m2', 'W/m^2'], factor: 1 },
+    { unit: 'kW/m²', aliases: ['kW/m2', 'kW/m^2'], factor: 1e3 },
   ],
 };
 

@@ -6,6 +6,11 @@
  * and is rebuilt as the same typed error by {@link reviveError}, so the edge maps it to the same
  * problem whichever thread ran it. HTTP-free: this module imports only the engine.
  *
+ * A U estimated at each effect's state is a function too: it crosses as {@link CoefficientData}
+ * (the estimate's inputs in SI with the request field its messages name) and the task rebuilds it
+ * with `overallCoefficientProvider` beside the liquor, so it calls the same correlations with the
+ * same numbers in either thread.
+ *
  * A new heavy operation (a sweep, a study) adds its entry to {@link engineTasks} and declares
  * `engine: { task: '<its id>', … }` on its /v1 declaration.
  */
@@ -29,22 +34,57 @@ import {
   type SingleEffectRatingInput,
   type SingleEffectResult,
 } from '../engine/evaporators/single-effect.js';
+import {
+  overallCoefficientProvider,
+  type OverallCoefficientEstimateSpec,
+  type OverallCoefficientProvider,
+} from '../engine/heat-transfer/overall.js';
 import { liquorFromDescription, type LiquorDescription } from '../engine/liquors/description.js';
+import type { LiquorModel } from '../engine/liquors/model.js';
 import { operationCatalogue } from '../../shared/operations.js';
 
 export type { LiquorDescription } from '../engine/liquors/description.js';
 
 type WithoutLiquor<T> = Omit<T, 'liquor'> & { liquor: LiquorDescription };
 
+/**
+ * U of an effect as plain data: W/(m²·K), or an estimate's own inputs (SI) with the request field
+ * (`body.overallHeatTransferCoefficient`, `overallHeatTransferCoefficients[2]`) and the label
+ * ("effect 3") its refusals and warnings carry, as `overallCoefficientProvider` takes them.
+ */
+export type CoefficientData =
+  number | { estimate: OverallCoefficientEstimateSpec; field: string; label?: string };
+
+/** U as the engine takes it: the number, or the provider rebuilt from its data. */
+export function coefficientFromData(
+  liquor: LiquorModel,
+  u: CoefficientData,
+): number | OverallCoefficientProvider {
+  return typeof u === 'number' ? u : overallCoefficientProvider(liquor, u.estimate, u.field, u.label);
+}
+
+/** A single-effect spec with the liquor and the body's U as data. */
+type SingleEffectSpec<T extends { body: { overallHeatTransferCoefficient: unknown } }> = Omit<
+  WithoutLiquor<T>,
+  'body'
+> & {
+  body: Omit<T['body'], 'overallHeatTransferCoefficient'> & {
+    overallHeatTransferCoefficient: CoefficientData;
+  };
+};
+
 /** A single effect: design (no area) or rating (area given). */
 export type SingleEffectTask =
-  | { mode: 'design'; spec: WithoutLiquor<SingleEffectDesignInput> }
-  | { mode: 'rating'; spec: WithoutLiquor<SingleEffectRatingInput> };
+  | { mode: 'design'; spec: SingleEffectSpec<SingleEffectDesignInput> }
+  | { mode: 'rating'; spec: SingleEffectSpec<SingleEffectRatingInput> };
 
 /** A multiple-effect train: equal-area design, or rating of given areas. */
 export interface MultipleEffectTask {
   mode: 'design' | 'rating';
-  spec: WithoutLiquor<Omit<MultipleEffectInput, 'mode'>> & { steam: SteamSupplySpec };
+  spec: Omit<WithoutLiquor<Omit<MultipleEffectInput, 'mode'>>, 'overallHeatTransferCoefficients'> & {
+    steam: SteamSupplySpec;
+    overallHeatTransferCoefficients: readonly CoefficientData[];
+  };
 }
 
 // Tasks are keyed by the catalogue's operation ids (shared/operations.ts spells them).
@@ -64,12 +104,20 @@ export const engineTasks: {
 } = {
   [SINGLE_EFFECT]: (t) => {
     const liquor = liquorFromDescription(t.spec.liquor);
+    const u = coefficientFromData(liquor, t.spec.body.overallHeatTransferCoefficient);
     return t.mode === 'design'
-      ? designSingleEffect({ ...t.spec, liquor })
-      : rateSingleEffect({ ...t.spec, liquor });
+      ? designSingleEffect({ ...t.spec, liquor, body: { ...t.spec.body, overallHeatTransferCoefficient: u } })
+      : rateSingleEffect({ ...t.spec, liquor, body: { ...t.spec.body, overallHeatTransferCoefficient: u } });
   },
   [MULTIPLE_EFFECT]: (t) => {
-    const input = { ...t.spec, liquor: liquorFromDescription(t.spec.liquor) };
+    const liquor = liquorFromDescription(t.spec.liquor);
+    const input = {
+      ...t.spec,
+      liquor,
+      overallHeatTransferCoefficients: t.spec.overallHeatTransferCoefficients.map((u) =>
+        coefficientFromData(liquor, u),
+      ),
+    };
     return t.mode === 'rating' ? rateMultipleEffect(input) : designMultipleEffect(input);
   },
 };

@@ -62,6 +62,21 @@ export const physicalRanges: Record<QuantityKind, Required<Pick<QuantityRange, '
   // Water ≈ 1000, the densest liquors a few thousand; 30 000 kg/m³ is above any substance at
   // ordinary pressure (osmium ≈ 22 600, common practice).
   density: { min: 0, max: 30_000 },
+  // Evaporating water by electric heating alone takes ≈ 700 kWh/t; 100 000 kWh/t bounds any
+  // machine's consumption per tonne.
+  specificEnergy: { min: 0, max: 100_000 },
+  // Liquor in evaporator tubes moves at 0.3–3 m/s (common practice); 50 m/s bounds any liquid flow.
+  velocity: { min: 0, max: 50 },
+  // Falling films are fed at ≈ 0.05–3 kg/(m·s) (common practice); 100 is far beyond any film.
+  wettingRate: { min: 0, max: 100 },
+  // TEMA's typical values are 1e-5 to 1e-3 m²·K/W; 0.1 (U below 10 W/(m²·K)) is no evaporator.
+  foulingResistance: { min: 0, max: 0.1 },
+  // Plastics ≈ 0.2, copper ≈ 400, diamond ≈ 2000 W/(m·K) (common practice): 0.01 to 5000.
+  thermalConductivity: { min: 0, max: 5000 },
+  // Water ≈ 0.3–1.8 mPa·s, molasses and black liquor up to ≈ 10⁵ mPa·s (common practice).
+  viscosity: { min: 0, max: 1e6 },
+  // Evaporator heating surfaces carry 5–100 kW/m² (common practice); 10 000 kW/m² is beyond boiling crisis.
+  heatFlux: { min: 0, max: 10_000 },
 };
 
 /** A kind's physical range, tightened by a field's own bounds where it has them. */
@@ -93,6 +108,22 @@ export const specs = {
   area: within('area', { min: 0, minExclusive: true }),
   liquidHeight: within('length', { max: 30 }),
   heatLossFraction: within('fraction', { max: 0.5 }),
+  // Evaporator tubes are 20–80 mm across (common practice); 0.5 m and 50 mm of wall bound any tube.
+  tubeDiameter: within('length', { min: 0, minExclusive: true, max: 0.5 }),
+  wallThickness: within('length', { min: 0, minExclusive: true, max: 0.05 }),
+  // Evaporator tubes are 1–16 m long (common practice); 30 m bounds them.
+  tubeLength: within('length', { min: 0, minExclusive: true, max: 30 }),
+  wallConductivity: within('thermalConductivity', { min: 0, minExclusive: true }),
+  wettingRate: within('wettingRate', { min: 0, minExclusive: true }),
+  flowPerTube: within('massFlow', { min: 0, minExclusive: true, max: 100 }),
+  // A tube that evaporates all its feed runs dry: 0.95 is the most a film may lose.
+  evaporatedFraction: within('fraction', { max: 0.95 }),
+  tubeVelocity: within('velocity', { min: 0, minExclusive: true, max: 10 }),
+  foulingResistance: within('foulingResistance'),
+  viscosity: within('viscosity', { min: 0, minExclusive: true }),
+  thermalConductivity: within('thermalConductivity', { min: 0, minExclusive: true }),
+  density: within('density', { min: 0, minExclusive: true }),
+  heatCapacity: within('specificHeatCapacity', { min: 0, minExclusive: true }),
   // The summit of Everest is ≈ 34 kPa, a deep mine ≈ 110 kPa (common practice): a local
   // barometric pressure outside 30–110 kPa is a typing slip.
   atmosphericPressure: { ...within('pressure', { min: 30, max: 110 }), atmosphere: true as const },
@@ -116,9 +147,16 @@ function plain(v: number): string {
     : String(v);
 }
 
-/** Human-readable range in default units, e.g. "0 to 1 mass fraction 0–1", "above 0 to 10 000 kg/s". */
+/** The unit words after a range: a fraction's label already states 0–1, so it is named, not repeated. */
+function rangeUnit(kind: QuantitySpec['kind']): string {
+  if (kind === 'massFraction') return '(mass fraction)';
+  if (kind === 'fraction') return '(fraction)';
+  return defaultUnits[kind].label;
+}
+
+/** Human-readable range in default units, e.g. "0 to 1 (mass fraction)", "above 0 to 10 000 kg/s". */
 export function describeRange(spec: QuantitySpec): string {
-  const unit = defaultUnits[spec.kind].label;
+  const unit = rangeUnit(spec.kind);
   if (spec.min !== undefined && spec.max !== undefined) {
     return `${spec.minExclusive ? 'above ' : ''}${plain(spec.min)} to ${plain(spec.max)} ${unit}`;
   }
@@ -153,7 +191,7 @@ export function outOfRangeMessage(spec: QuantitySpec, value: number): string {
 export const UNIT_GRAMMAR = [
   '## Quantities and units',
   '',
-  'Every quantity input is a number in the default unit of its kind (°C, kPa absolute, kg/s, kJ/kg, kJ/(kg·K), kW, m², W/(m²·K), mass fraction 0–1, m, kg/m³) or a string "number unit". Results are in the default units; so are the values and ranges in warnings and problems.',
+  'Every quantity input is a number in the default unit of its kind (°C, kPa absolute, kg/s, kJ/kg, kJ/(kg·K), kW, m², W/(m²·K), mass fraction 0–1, m, kg/m³, m/s, kg/(m·s), m²·K/W, W/(m·K), mPa·s, kW/m², kWh/t) or a string "number unit". Results are in the default units; so are the values and ranges in warnings and problems.',
   '',
   'Compound units follow one grammar:',
   '- products: a space, `.`, `*`, `·` or `-` (`kJ/kg-K`, `W/(m2.K)`);',

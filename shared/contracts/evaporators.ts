@@ -10,6 +10,7 @@ import {
   specs,
   WarningSchema,
 } from './common.js';
+import { coefficientOrEstimate, HeatTransferBreakdownSchema } from './heat-transfer-estimate.js';
 import { LiquorRefSchema } from './liquors.js';
 
 export const FeedSchema = z
@@ -67,6 +68,40 @@ export const ProductSpecSchema = z
     description: 'Design: the product mass fraction or flow. Rating (body.area given): may be omitted.',
   });
 
+export const figuresOfMeritFlag = z.boolean().optional().meta({
+  description:
+    'Report the desalination figures of merit (`figuresOfMerit`). Default: on for the seawater liquor, off otherwise',
+});
+
+export const FiguresOfMeritSchema = z
+  .object({
+    gainOutputRatio: out(
+      { symbol: '1', label: 'kg distillate per kg heating steam' },
+      'Gain output ratio GOR = M_d / M_s: distillate (the total evaporation) per kg of heating steam; with a thermocompressor M_s is the motive steam (El-Dessouky and Ettouney, Fundamentals of Salt Water Desalination, 2002). Null without heating steam (mechanical vapour recompression without make-up steam)',
+    ).nullable(),
+    performanceRatio: out(
+      { symbol: '1', label: 'kg distillate per 2326 kJ' },
+      'Performance ratio PR = M_d · 2326 kJ/kg / Q_in, Q_in = M_s · (h_steam − h_condensate), the heat the heating (motive) steam releases down to the chest-1 condensate; 2326 kJ/kg = 1000 Btu/lb. Null without heat input',
+    ).nullable(),
+    specificHeatTransferArea: out(
+      { symbol: 'm2/(kg/s)', label: 'm² per kg/s of distillate' },
+      'Specific heat-transfer area sA = A_total / M_d; null without distillate',
+    ).nullable(),
+    specificThermalEnergy: out(
+      { symbol: 'kW*h/m3', label: 'kWh per m³ of distillate' },
+      'Specific thermal energy Q_in / V_d, V_d = M_d / (1000 kg/m³); null without distillate',
+    ).nullable(),
+    specificElectricEnergy: out(
+      { symbol: 'kW*h/m3', label: 'kWh per m³ of distillate' },
+      'Specific electric energy P_el / V_d (mechanical vapour recompression); null where no electric power is modelled',
+    ).nullable(),
+  })
+  .meta({
+    id: 'FiguresOfMerit',
+    description:
+      'Desalination figures of merit. Definitions after H.T. El-Dessouky and H.M. Ettouney, Fundamentals of Salt Water Desalination, Elsevier (2002). Distillate M_d = all vapour evaporated from the liquor.',
+  });
+
 export const SteamSpecSchema = z
   .object({
     pressure: quantity(
@@ -106,12 +141,12 @@ export const SteamSpecSchema = z
 export const BodySpecSchema = z
   .object({
     pressure: quantity(specs.pressure, 'Pressure in the vapour space of the body', 20),
-    overallHeatTransferCoefficient: quantity(
-      specs.heatTransferCoefficient,
-      'Overall heat-transfer coefficient U',
-      1800,
-    ),
-    area: quantity(specs.area, 'Heat-transfer area: given → rating mode', 60).optional(),
+    overallHeatTransferCoefficient: coefficientOrEstimate('Overall heat-transfer coefficient U', 1800),
+    area: quantity(
+      specs.area,
+      'Heat-transfer area: given → rating mode (on the outside of the tubes when U is estimated)',
+      60,
+    ).optional(),
     liquidHeight: quantity(
       specs.liquidHeight,
       'Liquid height above the heating surface (hydrostatic BPR at mid-depth)',
@@ -136,6 +171,7 @@ export const SingleEffectRequestSchema = z
     body: BodySpecSchema,
     heatLossFraction: heatLossFraction.optional(),
     atmosphericPressure: atmosphericPressureField(),
+    figuresOfMerit: figuresOfMeritFlag,
   })
   .strict()
   .superRefine((r, ctx) => {
@@ -229,7 +265,7 @@ export const SingleEffectResponseSchema = z
       'temperatureDifference',
       `ΔT = T_steam − T_boiling (boiling point includes the BPR); above ${heatingWarningThresholds.temperatureDifference} K the result carries a "large-temperature-difference" warning, below 5 K "small-temperature-difference"`,
     ),
-    area: out('area', 'Heat-transfer area'),
+    area: out('area', 'Heat-transfer area (the outside area of the tubes when U is estimated)'),
     steamEconomy: out({ symbol: '1', label: 'kg vapour per kg steam' }, 'Steam economy V/S'),
     specificSteamConsumption: out(
       { symbol: '1', label: 'kg steam per kg vapour' },
@@ -237,6 +273,8 @@ export const SingleEffectResponseSchema = z
     ),
     waterBoilingPoint: out('temperature', 'Boiling point of pure water at the body pressure'),
     heatLoss: out('power', 'Heat lost to the surroundings (heatLossFraction × duty)'),
+    figuresOfMerit: FiguresOfMeritSchema.optional(),
+    heatTransfer: HeatTransferBreakdownSchema.optional(),
     warnings: z.array(WarningSchema),
     cautions: z.array(CautionSchema),
     provenance: ProvenanceSchema,
@@ -266,10 +304,13 @@ export const MultipleEffectRequestSchema = z
     lastEffectPressure: quantity(specs.pressure, 'Pressure in the last effect (condenser side)', 15),
     atmosphericPressure: atmosphericPressureField(),
     overallHeatTransferCoefficients: z
-      .array(quantity(specs.heatTransferCoefficient, 'U of one effect', 2000))
+      .array(coefficientOrEstimate('U of one effect', 2000))
       .min(1)
       .max(MAX_EFFECTS)
-      .meta({ description: 'One overall heat-transfer coefficient per effect, effect 1 first' }),
+      .meta({
+        description:
+          'One overall heat-transfer coefficient per effect, effect 1 first: a number, or { estimate } to estimate that effect’s U at its state while the train is solved (each entry its own tube and flow); the area of an estimated effect is then its outside tube area',
+      }),
     areas: z
       .array(quantity(specs.area, 'Area of one effect', 80))
       .min(1)
@@ -310,8 +351,32 @@ export const MultipleEffectRequestSchema = z
       .meta({ description: 'Feed preheating before the first effect the liquor enters' }),
     condensateFlash: z.boolean().optional().meta({
       description:
-        'Flash the condensate of vapour chests 2…N down the train; its flash vapour joins the vapour heating the next chest',
+        'Flash the condensate of vapour chests 2…N down the train (common practice): the condensate of chest j with the liquid cascaded from the previous flash tank flashes to the pressure of chest j+1, its flash vapour joins the vapour heating that chest (reported per effect as flashVapor) and the rest cascades on',
     }),
+    thermocompressor: z
+      .object({
+        motivePressure: quantity(
+          specs.pressure,
+          'Motive steam pressure (above the discharge pressure)',
+          1000,
+        ),
+        motiveSuperheat: quantity(
+          specs.superheat,
+          'Superheat of the motive steam (default 0: saturated)',
+          0,
+        ).optional(),
+        entrainedFromEffect: z.int().min(1).max(MAX_EFFECTS).optional().meta({
+          description:
+            'Effect whose vapour the ejector entrains (1 = steam-heated; default: the last effect)',
+        }),
+      })
+      .strict()
+      .optional()
+      .meta({
+        description:
+          "Thermal vapour recompression: a steam-jet ejector driven by motive steam entrains vapour from an effect and discharges into the chest of effect 1, whose pressure is then `steam.pressure` (give no `steam.superheat`: the discharge's state follows from the mixing balance h_d = (Ra·h_m + h_e)/(1 + Ra)). Ra (kg motive per kg entrained) from El-Dessouky's correlation Ra = 0.296·P_c^1.19/P_e^1.04·(P_m/P_e)^0.015·PCF/TCF (kPa; PCF = 3e-7·P_m² − 0.0009·P_m + 1.6101; TCF = 2e-8·T_e² − 0.0006·T_e + 1.0047, T_e in °C), El-Dessouky and Ettouney, Fundamentals of Salt Water Desalination (2002); valid for Ra ≤ 4, 10 ≤ T_e ≤ 500 °C, 100 ≤ P_m ≤ 3500 kPa and P_c/P_e ≥ 1.81 (outside: a model-extrapolated warning). Refused (422) when the discharge is not above the suction pressure or the motive steam not above the discharge",
+      }),
+    figuresOfMerit: figuresOfMeritFlag,
   })
   .strict()
   .superRefine((r, ctx) => {
@@ -357,6 +422,24 @@ export const MultipleEffectRequestSchema = z
         });
       }
     }
+    if (
+      r.thermocompressor?.entrainedFromEffect !== undefined &&
+      r.thermocompressor.entrainedFromEffect > r.effects
+    ) {
+      ctx.addIssue({
+        code: 'custom',
+        path: ['thermocompressor', 'entrainedFromEffect'],
+        message: `there are only ${r.effects} effects`,
+      });
+    }
+    if (r.thermocompressor && r.steam.superheat !== undefined && r.steam.superheat !== 0) {
+      ctx.addIssue({
+        code: 'custom',
+        path: ['steam', 'superheat'],
+        message:
+          "with a thermocompressor the chest steam is the ejector's discharge, whose state follows from the mixing balance; omit steam.superheat",
+      });
+    }
     r.vaporBleeds?.forEach((b, i) => {
       if (b.effect > r.effects) {
         ctx.addIssue({
@@ -376,15 +459,17 @@ export const MultipleEffectRequestSchema = z
   })
   .meta({
     id: 'MultipleEffectRequest',
+    // an invented four-effect seawater distiller with thermal vapour recompression
     example: {
-      liquor: 'sodium-hydroxide',
-      effects: 3,
-      feedArrangement: 'backward',
-      feed: { massFlow: '12 t/h', massFraction: 0.1, temperature: 50 },
-      product: { massFraction: 0.4 },
-      steam: { pressure: '4 barg' },
-      lastEffectPressure: 15,
-      overallHeatTransferCoefficients: [2500, 2000, 1500],
+      liquor: 'seawater',
+      effects: 4,
+      feed: { massFlow: 20, massFraction: 0.042, temperature: 35 },
+      product: { massFraction: 0.07 },
+      steam: { pressure: 35 },
+      lastEffectPressure: 8,
+      overallHeatTransferCoefficients: [2400, 2300, 2200, 2100],
+      condensateFlash: true,
+      thermocompressor: { motivePressure: '10 bar' },
     },
   });
 export type MultipleEffectRequest = z.infer<typeof MultipleEffectRequestSchema>;
@@ -403,8 +488,13 @@ export const EffectResultSchema = z
     massFraction: out('massFraction', 'Mass fraction of the liquor leaving the effect'),
     vaporFlow: out('massFlow', 'Vapour produced'),
     duty: out('power', 'Heat duty'),
-    area: out('area', 'Heat-transfer area'),
+    area: out('area', 'Heat-transfer area (the outside area of the tubes when U is estimated)'),
     vaporBleed: out('massFlow', 'Vapour bled from this effect to other users (including any feed preheat)'),
+    flashVapor: out(
+      'massFlow',
+      "Condensate-flash vapour joining this effect's vapour to the next chest (0 without condensateFlash)",
+    ),
+    heatTransfer: HeatTransferBreakdownSchema.optional(),
   })
   .meta({ id: 'EffectResult' });
 
@@ -421,6 +511,31 @@ export const MultipleEffectResponseSchema = z
       description: 'Largest relative residual of the balances at the solution (dimensionless)',
     }),
     feedPreheatDuty: out('power', 'Duty of the feed preheater (0 without preheat)'),
+    thermocompressor: z
+      .object({
+        motiveSteamFlow: out('massFlow', 'Motive steam M (the steam bought)'),
+        entrainedVaporFlow: out('massFlow', 'Vapour entrained from the suction effect E'),
+        entrainmentRatio: out(
+          { symbol: '1', label: 'kg entrained per kg motive' },
+          'Entrainment ratio E/M = 1/Ra',
+        ),
+        motivePerEntrained: out(
+          { symbol: '1', label: 'kg motive per kg entrained' },
+          "Ra = M/E from El-Dessouky's correlation (its validity Ra ≤ 4 applies to this)",
+        ),
+        compressionRatio: out({ symbol: '1', label: 'P_c/P_e' }, 'Compression ratio discharge/suction'),
+        expansionRatio: out({ symbol: '1', label: 'P_m/P_e' }, 'Expansion ratio motive/suction'),
+        entrainedFromEffect: z.int().meta({ description: 'Effect the vapour is entrained from' }),
+        suctionPressure: out('pressure', "Suction pressure P_e (the entrained effect's vapour space)"),
+        dischargeEnthalpy: out('specificEnthalpy', 'Discharge enthalpy h_d = (Ra·h_m + h_e)/(1 + Ra)'),
+        dischargeTemperature: out('temperature', 'Discharge temperature at the chest pressure'),
+      })
+      .optional()
+      .meta({
+        description:
+          'The ejector (with a thermocompressor). `steam` then describes the chest of effect 1 (its pressure the discharge, its flow motive + entrained) and `steamEconomy` = evaporation / motive steam',
+      }),
+    figuresOfMerit: FiguresOfMeritSchema.optional(),
     warnings: z.array(WarningSchema),
     cautions: z.array(CautionSchema),
     provenance: ProvenanceSchema,

@@ -3,5 +3,8 @@ export * from './common.js';
 export * from './steam.js';
 export * from './liquors.js';
 export * from './evaporators.js';
+export * from './heat-transfer.js';
 export * from './batch.js';
 export * from './usage.js';
+export * from './recompression.js';
+export * from './studies.js';

@@ -42,7 +42,32 @@ export const LiquorSummarySchema = z
       description: 'Hard limits: out-of-range beyond, a warning between validity and limits',
     }),
     sources: z.array(CitationSchema),
-    properties: z.object({ heatCapacity: z.boolean(), density: z.boolean(), solubilityLimit: z.boolean() }),
+    properties: z
+      .object({
+        heatCapacity: z.boolean(),
+        density: z.boolean(),
+        solubilityLimit: z.boolean(),
+        viscosity: z
+          .boolean()
+          .meta({ description: 'Dynamic viscosity (shown in mPa·s where results give it)' }),
+        thermalConductivity: z.boolean().meta({ description: 'Thermal conductivity, W/(m·K)' }),
+        surfaceTension: z.boolean().meta({ description: 'Surface tension against its vapour, mN/m' }),
+      })
+      .meta({
+        description:
+          'Which optional properties the model provides. A heat-transfer estimate that needs a missing one says so.',
+      }),
+    transportValidity: z
+      .object({
+        density: ValidityBoxSchema.optional(),
+        viscosity: ValidityBoxSchema.optional(),
+        thermalConductivity: ValidityBoxSchema.optional(),
+        surfaceTension: ValidityBoxSchema.optional(),
+      })
+      .meta({
+        description:
+          'Data range of the source of each property whose source differs from the model’s main one: silent inside, a model-extrapolated warning naming the property outside, refused beyond the limits',
+      }),
     cautions: z.array(CautionSchema),
   })
   .meta({ id: 'Liquor' });
@@ -140,42 +165,73 @@ const RangeDegC = z
   .strict()
   .refine((r) => r.min < r.max, { error: 'max must exceed min', path: ['max'] });
 
+/**
+ * `{"id": "sodium-hydroxide"}` is the likeliest first try at naming a liquor: say how it is named
+ * instead of listing a custom definition's missing fields.
+ */
+function referenceByObjectHint(issue: z.core.$ZodRawIssue): string | undefined {
+  if (issue.code !== 'unrecognized_keys') return undefined;
+  const keys = (issue as { keys?: string[] }).keys ?? [];
+  if (!keys.includes('id') && !keys.includes('stored')) return undefined;
+  return 'a built-in or stored liquor is named by its id as a plain string, e.g. "liquor": "sodium-hydroxide"; an object defines a custom liquor (name, boilingPoint or boilingPointRise, heatCapacity)';
+}
+
 export const CustomLiquorDefinitionSchema = z
-  .object({
-    name: z.string().trim().min(1).max(100),
-    compositionVariable: z.string().max(120).optional().meta({ example: 'dry-solids mass fraction' }),
-    boilingPoint: z
-      .object({ duhring: z.array(DuhringLineSchema).min(1).max(50) })
-      .strict()
-      .optional()
-      .meta({
+  .object(
+    {
+      name: z.string().trim().min(1).max(100),
+      compositionVariable: z.string().max(120).optional().meta({ example: 'dry-solids mass fraction' }),
+      boilingPoint: z
+        .object({ duhring: z.array(DuhringLineSchema).min(1).max(50) })
+        .strict()
+        .optional()
+        .meta({
+          description:
+            'Dühring table (give this or boilingPointRise): per concentration (increasing), readings of water and solution boiling ' +
+            'points at the same pressure. The solution boiling point is linear in that of water at each x (Dühring’s rule); ' +
+            'the lines are interpolated in x, and towards pure water below the lowest concentration',
+        }),
+      boilingPointRise: z.object({ polynomial: PolynomialSchema }).strict().optional().meta({
         description:
-          'Dühring table (give this or boilingPointRise): per concentration (increasing), readings of water and solution boiling ' +
-          'points at the same pressure. The solution boiling point is linear in that of water at each x (Dühring’s rule); ' +
-          'the lines are interpolated in x, and towards pure water below the lowest concentration',
+          'Boiling-point rise in K as a polynomial in x, independent of pressure (give this or boilingPoint)',
       }),
-    boilingPointRise: z.object({ polynomial: PolynomialSchema }).strict().optional().meta({
-      description:
-        'Boiling-point rise in K as a polynomial in x, independent of pressure (give this or boilingPoint)',
-    }),
-    heatCapacity: z.object({ polynomial: PolynomialSchema }).strict().optional().meta({
-      description:
-        'Heat capacity in kJ/(kg·K) as a polynomial in x; enthalpy h = c_p(x)·(T − 0.01 °C) on the steam-table datum, heat of dilution neglected',
-    }),
-    enthalpy: z
-      .object({ table: z.array(EnthalpyRowSchema).min(1).max(50) })
-      .strict()
-      .optional()
-      .meta({ description: 'Measured enthalpies per concentration, kJ/kg; replace the c_p-based enthalpy' }),
-    validity: z
-      .object({ massFraction: Range01, temperature: RangeDegC.optional() })
-      .strict()
-      .optional()
-      .meta({
+      heatCapacity: z.object({ polynomial: PolynomialSchema }).strict().optional().meta({
         description:
-          'Range of the data behind a polynomial definition (not for Dühring tables, whose range is the table)',
+          'Heat capacity in kJ/(kg·K) as a polynomial in x; enthalpy h = c_p(x)·(T − 0.01 °C) on the steam-table datum, heat of dilution neglected',
       }),
-  })
+      enthalpy: z
+        .object({ table: z.array(EnthalpyRowSchema).min(1).max(50) })
+        .strict()
+        .optional()
+        .meta({
+          description: 'Measured enthalpies per concentration, kJ/kg; replace the c_p-based enthalpy',
+        }),
+      density: z.object({ polynomial: PolynomialSchema }).strict().optional().meta({
+        description:
+          'Density in kg/m³ as a polynomial in x (optional; without it the liquor gives no density)',
+      }),
+      viscosity: z.object({ polynomial: PolynomialSchema }).strict().optional().meta({
+        description:
+          'Viscosity relative to pure water at the same temperature, μ/μ_water, as a polynomial in x (c0 = 1 for a liquor that tends to water); μ_water from IAPWS 2008. Optional: without it the liquor gives no viscosity',
+      }),
+      thermalConductivity: z.object({ polynomial: PolynomialSchema }).strict().optional().meta({
+        description:
+          'Thermal conductivity in W/(m·K) as a polynomial in x, independent of temperature (optional)',
+      }),
+      surfaceTension: z.object({ polynomial: PolynomialSchema }).strict().optional().meta({
+        description: 'Surface tension in mN/m as a polynomial in x, independent of temperature (optional)',
+      }),
+      validity: z
+        .object({ massFraction: Range01, temperature: RangeDegC.optional() })
+        .strict()
+        .optional()
+        .meta({
+          description:
+            'Range of the data behind a polynomial definition (not for Dühring tables, whose range is the table)',
+        }),
+    },
+    { error: referenceByObjectHint },
+  )
   .strict()
   .superRefine((d, ctx) => {
     const given = (d.boilingPoint ? 1 : 0) + (d.boilingPointRise ? 1 : 0);

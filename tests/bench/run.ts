@@ -7,6 +7,9 @@ import os from 'node:os';
 import { runSteamBench } from './steam.js';
 import { runSingleEffectBench } from './single-effect.js';
 import { runMultipleEffectBench } from './multiple-effect.js';
+import { runMechanicalVaporRecompressionBench } from './mechanical-vapor-recompression.js';
+import { runSchemeStudyBench } from './scheme-study.js';
+import { runHeatTransferBench } from './heat-transfer.js';
 import { runApiBench } from './api.js';
 import { runBundleBench } from './bundle.js';
 import { runDrainBench } from './drain.js';
@@ -17,6 +20,9 @@ const sections: { title: string; run: () => Promise<void> }[] = [
   { title: 'IAPWS-IF97 steam properties', run: runSteamBench },
   { title: 'Single-effect evaporator', run: runSingleEffectBench },
   { title: 'Multiple-effect evaporator', run: runMultipleEffectBench },
+  { title: 'Mechanical-vapour-recompression evaporator', run: runMechanicalVaporRecompressionBench },
+  { title: 'Evaporator-scheme study', run: runSchemeStudyBench },
+  { title: 'Overall heat-transfer coefficient estimate', run: runHeatTransferBench },
   {
     title: 'Metered API vs a bare Express route (autocannon, loopback)',
     run: async () => {

@@ -137,7 +137,7 @@ describe('POST /console-api/keys/:id/revoke', () => {
       .set('X-CSRF-Token', h.developer.csrf)
       .expect(200);
     expect(res.body.key.state).toBe('revoked');
-    expect(authenticateToken(h.deps.sqlite, h.deps.config.secret, token, h.clock.now)).toEqual({
+    expect(authenticateToken(h.deps.sqlite, h.deps.config.secret, token, h.clock.now)).toMatchObject({
       ok: false,
       reason: 'revoked',
     });
@@ -204,7 +204,7 @@ describe('POST /console-api/keys/:id/rotate', () => {
     ).toBe(true);
     expect(
       authenticateToken(h.deps.sqlite, h.deps.config.secret, token, new Date('2031-03-14T11:00:00Z')),
-    ).toEqual({ ok: false, reason: 'rotated' });
+    ).toMatchObject({ ok: false, reason: 'rotated' });
   });
 
   it('refuses to rotate a revoked key (409) and an overlap beyond 30 days (422)', async () => {

@@ -12,6 +12,8 @@ const consoleSrc = path.join(root, 'console/src');
 const sharedDir = path.join(root, 'shared');
 const serverDir = path.join(root, 'server');
 const access = path.join(sharedDir, 'access.ts');
+/** The operation catalogue: plain data (ids, titles, units) importing only a type from access.ts. */
+const catalogue = path.join(sharedDir, 'operations.ts');
 
 function sourceFiles(dir: string): string[] {
   return fs.readdirSync(dir, { withFileTypes: true }).flatMap((e) => {
@@ -60,16 +62,22 @@ describe('console import rules', () => {
     expect(offenders.map((s) => `${rel(s.file)} → ${s.specifier}`)).toEqual([]);
   });
 
-  it('takes only types from shared/, except the zod-free role and scope lists', () => {
+  it('takes only types from shared/, except the zod-free role and scope lists and the operation catalogue', () => {
     const offenders = imports.filter((s) => {
       const t = target(s);
-      return t?.startsWith(sharedDir + path.sep) && t !== access && !s.typeOnly;
+      return t?.startsWith(sharedDir + path.sep) && t !== access && t !== catalogue && !s.typeOnly;
     });
     expect(offenders.map((s) => `${rel(s.file)} → ${s.specifier}`)).toEqual([]);
   });
 
   it('keeps shared/access.ts free of imports, so importing it brings nothing else along', () => {
     expect(importsOf(access)).toEqual([]);
+  });
+
+  it('keeps the operation catalogue to a type import of access.ts, so it brings no zod along', () => {
+    expect(importsOf(catalogue).map((s) => ({ typeOnly: s.typeOnly, specifier: s.specifier }))).toEqual([
+      { typeOnly: true, specifier: './access.js' },
+    ]);
   });
 
   it('reaches shared/ by relative paths only, not through an alias', () => {

@@ -43,6 +43,8 @@ describe('Dühring upload errors', () => {
     const lines = uploadLineErrors(serverProblem().errors);
     // Source: RFC 4180 §2 (header record on line 1, then one record per line) applied to the table above (from memory)
     expect(lines.map((l) => l.line)).toEqual([3, 5]);
+    // The server names the cell as `line 3, column waterBoilingPoint`: the column leads the message.
+    expect(lines[0]!.message.startsWith('waterBoilingPoint: ')).toBe(true);
   });
 
   it('shows the line numbers and messages in the upload card', () => {

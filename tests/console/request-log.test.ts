@@ -170,6 +170,15 @@ describe('request detail', () => {
     expect(wrapper.get('[data-test="detail-request-id"]').text()).toBe(detail.requestId);
   });
 
+  it('names the operation by its catalogue title, with the id beside it', () => {
+    const wrapper = mount(RequestLogDetailPanel, {
+      props: { detail: { ...detail, operation: 'evaporators.mechanical-vapor-recompression' } },
+      global: { plugins: [vuetify] },
+    });
+    const values = wrapper.findAll('[data-test="facts"] dd').map((d) => d.text());
+    expect(values).toContain('MVR evaporator (evaporators.mechanical-vapor-recompression)');
+  });
+
   it('says so when the account keeps no bodies', () => {
     const wrapper = mount(RequestLogDetailPanel, {
       props: {

@@ -326,8 +326,18 @@ export async function screenshot(page: Page, name: string): Promise<string> {
  */
 export async function signIn(page: Page, origin: string, email: string, password: string): Promise<void> {
   await page.goto(`${origin}/console/`);
-  await page.getByLabel('E-mail').fill(email);
-  await page.getByLabel('Password', { exact: true }).fill(password);
+  // On a loaded machine the app may still be redirecting to the sign-in page and mounting it when
+  // the fields are first found: let it settle, and type again if a re-render emptied a field, so
+  // the click always submits what was typed.
+  await page.waitForURL(/\/console\/sign-in/);
+  await page.getByRole('button', { name: 'Sign in' }).waitFor();
+  const emailField = page.getByLabel('E-mail');
+  const passwordField = page.getByLabel('Password', { exact: true });
+  for (let attempt = 0; attempt < 3; attempt++) {
+    await emailField.fill(email);
+    await passwordField.fill(password);
+    if ((await emailField.inputValue()) === email && (await passwordField.inputValue()) === password) break;
+  }
   const answer = page.waitForResponse(
     (res) => res.request().method() === 'POST' && new URL(res.url()).pathname === '/console-api/auth/sign-in',
   );

@@ -15,26 +15,48 @@ import { readdirSync, readFileSync } from 'node:fs';
 import { join, relative } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
+import * as mechanicalVaporRecompression from '../../server/engine/evaporators/mechanical-vapor-recompression.js';
+import * as figuresOfMerit from '../../server/engine/evaporators/figures-of-merit.js';
+import * as thermocompressor from '../../server/engine/evaporators/thermocompressor.js';
+import * as heatTransfer from '../../server/engine/heat-transfer/correlations.js';
 import * as kraftBlackLiquor from '../../server/engine/liquors/kraft-black-liquor.js';
 import * as seawater from '../../server/engine/liquors/seawater.js';
 import * as sodiumHydroxide from '../../server/engine/liquors/sodium-hydroxide.js';
 import * as sucrose from '../../server/engine/liquors/sucrose.js';
 import * as if97 from '../../server/engine/steam/if97.js';
+import * as evaporatorSchemes from '../../server/engine/studies/evaporator-schemes.js';
 
 const ENGINE = fileURLToPath(new URL('../../server/engine/', import.meta.url));
 
 /** The modules whose every exported function is a correlation (or steam-property) function. */
 const CORRELATION_MODULES: Record<string, Record<string, unknown>> = {
+  'evaporators/mechanical-vapor-recompression.ts': mechanicalVaporRecompression,
+  'evaporators/figures-of-merit.ts': figuresOfMerit,
+  'evaporators/thermocompressor.ts': thermocompressor,
+  'heat-transfer/correlations.ts': heatTransfer,
   'liquors/kraft-black-liquor.ts': kraftBlackLiquor,
   'liquors/seawater.ts': seawater,
   'liquors/sodium-hydroxide.ts': sodiumHydroxide,
   'liquors/sucrose.ts': sucrose,
   'steam/if97.ts': if97,
+  'studies/evaporator-schemes.ts': evaporatorSchemes,
 };
 
 /** Exported functions that compute no property, so need no example. */
 const NOT_CORRELATIONS: Record<string, readonly string[]> = {
   'steam/if97.ts': ['if97CitationFor'], // builds a citation record
+  // whole-evaporator solvers and their balance check (tested against the fixture, not by an example)
+  'evaporators/mechanical-vapor-recompression.ts': [
+    'mechanicalVaporRecompression',
+    'designMechanicalVaporRecompression',
+    'rateMechanicalVaporRecompression',
+    'mechanicalVaporRecompressionBalances',
+    'mechanicalVaporRecompressionFiguresOfMerit', // assembles the figures from a result
+  ],
+  // take and return records (figures, prices, a study), not numbers; tested in tests/engine/studies/
+  'studies/evaporator-schemes.ts': ['candidateCosts', 'runSchemeStudy'],
+  'evaporators/figures-of-merit.ts': ['figuresOfMerit'], // assembles the figures from a result
+  'evaporators/thermocompressor.ts': ['requireWorkingEjector', 'checkThermocompressor'], // checks
 };
 
 interface Example {

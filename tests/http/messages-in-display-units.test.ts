@@ -198,6 +198,20 @@ describe('units that fit one liquor, and fractions typed as percents', () => {
     expect(res.status).toBe(422);
     expect(res.body.errors[0].field).toBe('feed.massFraction');
     expect(res.body.errors[0].message).toContain('did you mean "60 %" (0.6)?');
+    // The range is said once, not "0 to 1 mass fraction 0–1".
+    expect(res.body.errors[0].message).toBe(
+      '60 lies outside the accepted range 0 to 1 (mass fraction); did you mean "60 %" (0.6)?',
+    );
+  });
+
+  it('explains that a built-in liquor is named by its id string when sent as {"id": …}', async () => {
+    const res = await post('/v1/evaporators/single-effect', {
+      ...caustic,
+      liquor: { id: 'sodium-hydroxide' },
+    });
+    expect(res.status).toBe(422);
+    expect(res.body.errors[0].field).toBe('liquor.id');
+    expect(res.body.detail).toContain('named by its id as a plain string, e.g. "liquor": "sodium-hydroxide"');
   });
 });
 

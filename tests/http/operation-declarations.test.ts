@@ -115,6 +115,8 @@ describe('one declaration per /v1 operation', () => {
       'liquor-enthalpy',
       'single-effect',
       'multiple-effect',
+      'mechanical-vapor-recompression',
+      'overall-coefficient',
     ]);
     for (const name of batchOperations) {
       const decl = v1Operations.filter((d) => 'batchName' in d.operation && d.operation.batchName === name);

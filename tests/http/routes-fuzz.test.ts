@@ -1,6 +1,6 @@
 // Fuzz: random and adversarial bodies per route → never a 5xx, and never NaN/Infinity (or the
 // null JSON makes of them) in a 2xx body. Property-based with fast-check: a thousand random bodies
-// per route and a thousand adversarial JSON shapes per POST route (about 14 000 requests).
+// per route and a thousand adversarial JSON shapes per POST route (about 17 000 requests).
 import http from 'node:http';
 import type { AddressInfo } from 'node:net';
 import fc from 'fast-check';
@@ -57,9 +57,26 @@ const liquor = fc.oneof(
   }),
 );
 
-/** NaN/±Infinity, or a null (what JSON makes of them) anywhere but an unbounded end of a validRange or an echoed input `value`. */
+/** Figures of merit documented as null where undefined (no heating steam, no electric power, no distillate). */
+const NULLABLE_FIGURES = [
+  'gainOutputRatio',
+  'performanceRatio',
+  'specificHeatTransferArea',
+  'specificThermalEnergy',
+  'specificElectricEnergy',
+];
+
+/**
+ * NaN/±Infinity, or a null (what JSON makes of them) anywhere but an unbounded end of a validRange,
+ * an echoed input `value` or a figure of merit documented as nullable.
+ */
 function hasNonFiniteOrNull(v: unknown, key = '', parent = ''): boolean {
-  if (v === null) return !((parent === 'validRange' && (key === 'min' || key === 'max')) || key === 'value');
+  if (v === null)
+    return !(
+      (parent === 'validRange' && (key === 'min' || key === 'max')) ||
+      key === 'value' ||
+      (parent === 'figuresOfMerit' && NULLABLE_FIGURES.includes(key))
+    );
   if (typeof v === 'number') return !Number.isFinite(v);
   if (Array.isArray(v)) return v.some((x) => hasNonFiniteOrNull(x, '', key));
   if (typeof v === 'object')
@@ -159,13 +176,15 @@ describe('fuzzed requests never give a 5xx or a non-finite number', { timeout: 6
         fc.double({ min: 50, max: 2000, noNaN: true }),
         fc.double({ min: 1, max: 150, noNaN: true }),
         fc.option(fc.double({ min: 1, max: 500, noNaN: true })),
-        (l, F, xF, xL, p, ps, t, area) =>
+        fc.option(fc.boolean()),
+        (l, F, xF, xL, p, ps, t, area, fom) =>
           check('post', '/v1/evaporators/single-effect', {
             liquor: l,
             feed: { massFlow: F, massFraction: xF, temperature: t },
             product: area === null ? { massFraction: xL } : {},
             steam: { pressure: ps },
             body: { pressure: p, overallHeatTransferCoefficient: 1500, ...(area === null ? {} : { area }) },
+            ...(fom === null ? {} : { figuresOfMerit: fom }),
           }),
       ),
       { numRuns: RUNS },
@@ -202,6 +221,382 @@ describe('fuzzed requests never give a 5xx or a non-finite number', { timeout: 6
     );
   });
 
+  it('POST /v1/evaporators/mechanical-vapor-recompression', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        liquor,
+        fc.record({ massFlow: quantity, massFraction: quantity, temperature: quantity }),
+        fc.record({ massFraction: quantity }, { requiredKeys: [] }),
+        fc.record(
+          {
+            pressure: quantity,
+            overallHeatTransferCoefficient: quantity,
+            temperatureDifference: quantity,
+            area: quantity,
+          },
+          { requiredKeys: ['pressure', 'overallHeatTransferCoefficient'] },
+        ),
+        fc.record(
+          {
+            isentropicEfficiency: quantity,
+            driveEfficiency: quantity,
+            dischargePressure: quantity,
+            stages: weirdNumber,
+            maxPressureRatioPerStage: weirdNumber,
+          },
+          { requiredKeys: [] },
+        ),
+        fc.record(
+          {
+            heatLossFraction: quantity,
+            suctionPressureDrop: quantity,
+            makeUpSteam: fc.record({ pressure: quantity }),
+          },
+          { requiredKeys: [] },
+        ),
+        (l, feed, product, body, compressor, extra) =>
+          check('post', '/v1/evaporators/mechanical-vapor-recompression', {
+            liquor: l,
+            feed,
+            product,
+            body,
+            compressor,
+            ...extra,
+          }),
+      ),
+      { numRuns: RUNS },
+    );
+  });
+
+  it('POST /v1/evaporators/mechanical-vapor-recompression with plausible numbers', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.constantFrom('sodium-hydroxide', 'sucrose', 'seawater', 'kraft-black-liquor'),
+        fc.double({ min: 0.01, max: 50, noNaN: true }),
+        fc.double({ min: 0, max: 0.6, noNaN: true }),
+        fc.double({ min: 0, max: 0.9, noNaN: true }),
+        fc.double({ min: 1, max: 300, noNaN: true }),
+        fc.double({ min: 1, max: 150, noNaN: true }),
+        fc.oneof(
+          fc.record({ temperatureDifference: fc.double({ min: 0.01, max: 80, noNaN: true }) }),
+          fc.record({ area: fc.double({ min: 1, max: 5000, noNaN: true }) }),
+          fc.record({ dischargePressure: fc.double({ min: 1, max: 2000, noNaN: true }) }),
+        ),
+        fc.option(fc.integer({ min: 1, max: 10 })),
+        fc.double({ min: 0.3, max: 1, noNaN: true }),
+        fc.option(fc.double({ min: 1, max: 3000, noNaN: true })),
+        (l, F, xF, xL, p, t, lift, stages, eta, makeUp) =>
+          check('post', '/v1/evaporators/mechanical-vapor-recompression', {
+            liquor: l,
+            feed: { massFlow: F, massFraction: xF, temperature: t },
+            product: { massFraction: xL },
+            body: {
+              pressure: p,
+              overallHeatTransferCoefficient: 2000,
+              ...('dischargePressure' in lift ? {} : lift),
+            },
+            compressor: {
+              isentropicEfficiency: eta,
+              ...('dischargePressure' in lift ? lift : {}),
+              ...(stages === null ? {} : { stages }),
+            },
+            ...(makeUp === null ? {} : { makeUpSteam: { pressure: makeUp } }),
+          }),
+      ),
+      { numRuns: RUNS },
+    );
+  });
+
+  it('POST /v1/studies/evaporator-schemes', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.constantFrom('sodium-hydroxide', 'sucrose', 'seawater', 'nope'),
+        fc.integer({ min: 0, max: 11 }),
+        fc.constantFrom('forward', 'backward', 'parallel', 'sideways'),
+        fc.double({ min: 0.1, max: 20, noNaN: true }),
+        fc.double({ min: 0.01, max: 0.3, noNaN: true }),
+        fc.double({ min: 0.2, max: 0.7, noNaN: true }),
+        fc.oneof(weirdNumber, fc.double({ min: 5, max: 100, noNaN: true })),
+        fc.record({
+          steamPrice: weirdNumber,
+          electricityPrice: weirdNumber,
+          operatingHoursPerYear: fc.oneof(weirdNumber, fc.integer({ min: 0, max: 9000 })),
+          bodyCost: fc.record({ reference: weirdNumber, referenceArea: quantity, exponent: weirdNumber }),
+          compressorCost: fc.record({
+            reference: weirdNumber,
+            referenceShaftPower: quantity,
+            exponent: weirdNumber,
+          }),
+          interestRate: weirdNumber,
+          lifeYears: weirdNumber,
+        }),
+        fc.option(
+          fc.record({
+            temperatureDifference: quantity,
+            isentropicEfficiency: quantity,
+            driveEfficiency: quantity,
+          }),
+        ),
+        fc.option(fc.record({ motivePressure: quantity })),
+        (l, n, arrangement, F, xF, xL, pLast, prices, mvr, tvr) =>
+          check('post', '/v1/studies/evaporator-schemes', {
+            liquor: l,
+            feed: { massFlow: F, massFraction: xF, temperature: 60 },
+            product: { massFraction: xL },
+            lowestPressure: pLast,
+            steam: { pressure: '3 barg' },
+            overallHeatTransferCoefficient: 2000,
+            feedArrangement: arrangement,
+            maxEffects: n,
+            prices,
+            ...(mvr === null ? {} : { mvr }),
+            ...(tvr === null ? {} : { tvr }),
+          }),
+      ),
+      { numRuns: RUNS },
+    );
+  });
+
+  it('POST /v1/evaporators/multiple-effect with a thermocompressor, flash and figures of merit', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.constantFrom('sodium-hydroxide', 'sucrose', 'seawater'),
+        fc.integer({ min: 1, max: 5 }),
+        fc.oneof(quantity, fc.double({ min: 1, max: 5000, noNaN: true })),
+        fc.option(fc.oneof(quantity, fc.double({ min: 0, max: 300, noNaN: true }))),
+        fc.option(fc.oneof(fc.integer({ min: -1, max: 7 }), quantity)),
+        fc.oneof(quantity, fc.double({ min: 20, max: 400, noNaN: true })),
+        fc.double({ min: 2, max: 60, noNaN: true }),
+        fc.option(fc.oneof(fc.boolean(), quantity)),
+        fc.option(fc.oneof(fc.boolean(), quantity)),
+        (l, n, pm, superheat, from, chest, pLast, flash, fom) =>
+          check('post', '/v1/evaporators/multiple-effect', {
+            liquor: l,
+            effects: n,
+            feed: { massFlow: 10, massFraction: l === 'seawater' ? 0.04 : 0.1, temperature: 40 },
+            product: { massFraction: l === 'seawater' ? 0.07 : 0.2 },
+            steam: { pressure: chest },
+            lastEffectPressure: pLast,
+            overallHeatTransferCoefficients: Array.from({ length: n }, () => 2000),
+            thermocompressor: {
+              motivePressure: pm,
+              ...(superheat === null ? {} : { motiveSuperheat: superheat }),
+              ...(from === null ? {} : { entrainedFromEffect: from }),
+            },
+            ...(flash === null ? {} : { condensateFlash: flash }),
+            ...(fom === null ? {} : { figuresOfMerit: fom }),
+          }),
+      ),
+      { numRuns: RUNS },
+    );
+  });
+
+  // U given as { estimate }: hostile estimate parts, then plausible ones through the solvers
+  // (single effect design and rating, each train effect, MVR design and rating).
+  const estimate = fc.record(
+    {
+      evaporatorType: fc.constantFrom('falling-film', 'forced-circulation', 'natural-circulation', 'plate'),
+      tube: fc.oneof(
+        quantity,
+        fc.record(
+          {
+            outsideDiameter: quantity,
+            wallThickness: quantity,
+            length: quantity,
+            material: fc.constantFrom('stainless-316', 'unobtainium'),
+            wallConductivity: quantity,
+          },
+          { requiredKeys: ['outsideDiameter', 'wallThickness', 'length'] },
+        ),
+      ),
+      flow: fc.record(
+        { wettingRate: quantity, liquorFlowPerTube: quantity, tubeVelocity: quantity },
+        { requiredKeys: [] },
+      ),
+      fouling: fc.record({ inside: quantity, outside: quantity }, { requiredKeys: [] }),
+      liquorProperties: fc.record(
+        { viscosity: quantity, thermalConductivity: quantity },
+        { requiredKeys: [] },
+      ),
+    },
+    { requiredKeys: ['evaporatorType'] },
+  );
+  const coefficient = fc.oneof(quantity, fc.record({ estimate }), fc.record({ estimate: quantity }));
+  const plausibleEstimate = fc
+    .tuple(
+      fc.constantFrom('falling-film', 'forced-circulation', 'natural-circulation'),
+      fc.double({ min: 0.01, max: 0.1, noNaN: true }),
+      fc.double({ min: 0.0005, max: 0.004, noNaN: true }),
+      fc.double({ min: 0.5, max: 15, noNaN: true }),
+      fc.double({ min: 0.01, max: 3, noNaN: true }),
+    )
+    .map(([type, d, t, len, v]) => ({
+      estimate: {
+        evaporatorType: type,
+        tube: { outsideDiameter: d, wallThickness: t, length: len, material: 'stainless-316' },
+        flow:
+          type === 'falling-film'
+            ? { wettingRate: v }
+            : type === 'forced-circulation'
+              ? { tubeVelocity: v }
+              : { circulationVelocity: v },
+        liquorProperties: { thermalConductivity: 0.6 },
+      },
+    }));
+
+  it('POST evaporators with U as hostile { estimate } bodies', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.constantFrom('single-effect', 'multiple-effect', 'mechanical-vapor-recompression'),
+        liquor,
+        fc.array(coefficient, { minLength: 1, maxLength: 3 }),
+        (route, l, us) =>
+          check('post', `/v1/evaporators/${route}`, {
+            liquor: l,
+            feed: { massFlow: 2, massFraction: 0.1, temperature: 60 },
+            product: { massFraction: 0.2 },
+            ...(route === 'multiple-effect'
+              ? {
+                  effects: us.length,
+                  steam: { pressure: '3 barg' },
+                  lastEffectPressure: 15,
+                  overallHeatTransferCoefficients: us,
+                }
+              : {
+                  ...(route === 'single-effect' ? { steam: { pressure: '3 barg' } } : {}),
+                  body: {
+                    pressure: 31,
+                    overallHeatTransferCoefficient: us[0],
+                    ...(route === 'single-effect' ? {} : { temperatureDifference: 5 }),
+                  },
+                }),
+          }),
+      ),
+      { numRuns: RUNS / 2 },
+    );
+  });
+
+  it('POST evaporators with U as plausible { estimate } bodies', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.constantFrom('single-effect', 'multiple-effect', 'mechanical-vapor-recompression'),
+        fc.constantFrom('sodium-hydroxide', 'sucrose', 'seawater', 'kraft-black-liquor'),
+        fc.array(plausibleEstimate, { minLength: 1, maxLength: 4 }),
+        fc.double({ min: 0.02, max: 0.3, noNaN: true }),
+        fc.double({ min: 1.2, max: 4, noNaN: true }),
+        fc.option(fc.double({ min: 1, max: 500, noNaN: true })),
+        (route, l, us, xF, ratio, area) =>
+          check('post', `/v1/evaporators/${route}`, {
+            liquor: l,
+            feed: { massFlow: 2, massFraction: xF, temperature: 60 },
+            product: area === null || route !== 'single-effect' ? { massFraction: xF * ratio } : {},
+            ...(route === 'multiple-effect'
+              ? {
+                  effects: us.length,
+                  steam: { pressure: '3 barg' },
+                  lastEffectPressure: 15,
+                  overallHeatTransferCoefficients: us,
+                }
+              : {
+                  ...(route === 'single-effect' ? { steam: { pressure: '3 barg' } } : {}),
+                  body: {
+                    pressure: 31,
+                    overallHeatTransferCoefficient: us[0],
+                    ...(area !== null
+                      ? { area }
+                      : route === 'single-effect'
+                        ? {}
+                        : { temperatureDifference: 5 }),
+                  },
+                }),
+          }),
+      ),
+      { numRuns: RUNS / 2 },
+    );
+  });
+
+  it('POST /v1/heat-transfer/overall-coefficient', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.constantFrom('falling-film', 'forced-circulation', 'natural-circulation', 'plate'),
+        liquor,
+        fc.record(
+          {
+            outsideDiameter: quantity,
+            wallThickness: quantity,
+            length: quantity,
+            material: fc.constantFrom('stainless-316', 'unobtainium'),
+            wallConductivity: quantity,
+          },
+          { requiredKeys: ['outsideDiameter', 'wallThickness', 'length'] },
+        ),
+        fc.record(
+          {
+            wettingRate: quantity,
+            liquorFlowPerTube: quantity,
+            evaporatedFraction: quantity,
+            tubeVelocity: quantity,
+            circulationVelocity: quantity,
+          },
+          { requiredKeys: [] },
+        ),
+        fc.record(
+          { viscosity: quantity, thermalConductivity: quantity, density: quantity, heatCapacity: quantity },
+          { requiredKeys: [] },
+        ),
+        quantity,
+        quantity,
+        (evaporatorType, l, tube, flow, liquorProperties, p, ts) =>
+          check('post', '/v1/heat-transfer/overall-coefficient', {
+            evaporatorType,
+            liquor: l,
+            massFraction: 0.05,
+            bodyPressure: p,
+            steam: { temperature: ts },
+            tube,
+            flow,
+            liquorProperties,
+          }),
+      ),
+      { numRuns: RUNS },
+    );
+  });
+
+  it('POST /v1/heat-transfer/overall-coefficient with plausible numbers', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.constantFrom('falling-film', 'forced-circulation', 'natural-circulation'),
+        fc.constantFrom('sodium-hydroxide', 'sucrose', 'seawater', 'kraft-black-liquor'),
+        fc.double({ min: 0, max: 0.7, noNaN: true }),
+        fc.double({ min: 1, max: 500, noNaN: true }),
+        fc.double({ min: 1, max: 300, noNaN: true }),
+        fc.double({ min: 0.005, max: 0.2, noNaN: true }),
+        fc.double({ min: 0.0002, max: 0.02, noNaN: true }),
+        fc.double({ min: 0.1, max: 25, noNaN: true }),
+        fc.double({ min: 1e-3, max: 5, noNaN: true }),
+        fc.double({ min: 0, max: 0.95, noNaN: true }),
+        fc.option(fc.double({ min: 1, max: 250, noNaN: true })),
+        (type, l, x, p, ts, d, t, len, v, f, tb) =>
+          check('post', '/v1/heat-transfer/overall-coefficient', {
+            evaporatorType: type,
+            liquor: l,
+            massFraction: x,
+            ...(tb === null ? { bodyPressure: p } : { boilingTemperature: tb }),
+            steam: { temperature: ts },
+            tube: { outsideDiameter: d, wallThickness: t, length: len, wallConductivity: 16 },
+            flow:
+              type === 'falling-film'
+                ? { wettingRate: v, evaporatedFraction: f }
+                : type === 'forced-circulation'
+                  ? { tubeVelocity: v }
+                  : { circulationVelocity: v },
+            liquorProperties: { viscosity: 1, thermalConductivity: 0.6, density: 1100, heatCapacity: 3.8 },
+          }),
+      ),
+      { numRuns: RUNS },
+    );
+  });
+
   it('POST /v1/batch', async () => {
     await fc.assert(
       fc.asyncProperty(
@@ -211,6 +606,8 @@ describe('fuzzed requests never give a 5xx or a non-finite number', { timeout: 6
           'liquor-boiling-point',
           'liquor-enthalpy',
           'single-effect',
+          'mechanical-vapor-recompression',
+          'overall-coefficient',
           'bogus',
         ),
         fc.option(liquor),
@@ -234,6 +631,9 @@ describe('fuzzed requests never give a 5xx or a non-finite number', { timeout: 6
     '/v1/liquors/sodium-hydroxide/enthalpy',
     '/v1/evaporators/single-effect',
     '/v1/evaporators/multiple-effect',
+    '/v1/evaporators/mechanical-vapor-recompression',
+    '/v1/studies/evaporator-schemes',
+    '/v1/heat-transfer/overall-coefficient',
     '/v1/batch',
     '/v1/stored-liquors',
   ])('adversarial shapes on POST %s', async (path) => {

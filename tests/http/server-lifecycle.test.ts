@@ -295,7 +295,31 @@ describe('the key is checked again when the body is complete', () => {
     const other = new Database(file);
     const status = (requestId: string) =>
       sqlite.prepare('SELECT status, units FROM usage_events WHERE request_id = ?').get(requestId);
-    return { app, db, sqlite, config, clock, token, keyId: key.id, other, status };
+    // A key refused after its body is treated as at the door: a request-log row for the account,
+    // no usage event (DEVELOPERS.md, "A refused key is logged for its account").
+    const refusal = (requestId: string) => ({
+      usageEvents: (
+        sqlite.prepare('SELECT COUNT(*) AS n FROM usage_events WHERE request_id = ?').get(requestId) as {
+          n: number;
+        }
+      ).n,
+      logged: sqlite
+        .prepare('SELECT account_id AS accountId, status FROM request_log WHERE request_id = ?')
+        .get(requestId),
+    });
+    return {
+      app,
+      db,
+      sqlite,
+      config,
+      clock,
+      token,
+      keyId: key.id,
+      other,
+      status,
+      refusal,
+      accountId: account.id,
+    };
   }
 
   /** Sends the headers and half the body, runs `meanwhile`, then the rest; resolves with the answer. */
@@ -333,7 +357,10 @@ describe('the key is checked again when the body is complete', () => {
       type: '/problems/unauthorized',
       detail: 'The API key has been revoked.',
     });
-    expect(f.status('revoked-mid-body')).toEqual({ status: 401, units: 0 });
+    expect(f.refusal('revoked-mid-body')).toEqual({
+      usageEvents: 0,
+      logged: { accountId: f.accountId, status: 401 },
+    });
   });
 
   it('refuses with 401 a multipart upload completed after its key was revoked through the console path', async () => {
@@ -349,7 +376,10 @@ describe('the key is checked again when the body is complete', () => {
     const answer = await halfThen(port, head, body, () => revokeKey(f.db, f.keyId, f.clock.now));
     expect(answer.raw).toMatch(/^HTTP\/1\.1 401 /);
     expect(answer.body).toMatchObject({ detail: 'The API key has been revoked.' });
-    expect(f.status('revoked-mid-upload')).toEqual({ status: 401, units: 0 });
+    expect(f.refusal('revoked-mid-upload')).toEqual({
+      usageEvents: 0,
+      logged: { accountId: f.accountId, status: 401 },
+    });
     const stored = f.sqlite.prepare('SELECT COUNT(*) AS n FROM stored_liquors').get() as { n: number };
     expect(stored.n).toBe(0);
   });
@@ -364,6 +394,10 @@ describe('the key is checked again when the body is complete', () => {
       f.clock.now = new Date('2031-03-14T11:00:01Z');
     });
     expect(answer.body).toMatchObject({ status: 401, detail: 'The API key has expired.' });
+    expect(f.refusal('expired-mid-body')).toEqual({
+      usageEvents: 0,
+      logged: { accountId: f.accountId, status: 401 },
+    });
   });
 
   it('still answers a body completed while the key stayed valid', async () => {

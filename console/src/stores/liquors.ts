@@ -25,20 +25,25 @@ export function useLiquorsClient(next: ApiClient): void {
   client = next;
 }
 
-/** One rejected CSV line for the error list: the server names it `file:line N`. */
+/** One refused CSV line for the error list: the server names it `line N` or `line N, column C`. */
 export interface UploadLineError {
   line: number | null;
   message: string;
   value?: unknown;
 }
 
-/** Field errors of an upload problem, with the line number pulled out of `file:line N`. */
+/** Field errors of an upload problem, with the line number (and column) pulled out of the place. */
 export function uploadLineErrors(errors: readonly ApiFieldError[]): UploadLineError[] {
   return errors
     .map((e) => {
-      const m = /(?:^|:)line (\d+)$/.exec(e.field);
+      const m = /^line (\d+)(?:, column (.+))?$/.exec(e.field);
       const line = m ? Number(m[1]) : null;
-      const message = line === null && e.field && e.field !== 'file' ? `${e.field}: ${e.message}` : e.message;
+      const column = m?.[2];
+      const message = column
+        ? `${column}: ${e.message}`
+        : line === null && e.field && e.field !== 'file'
+          ? `${e.field}: ${e.message}`
+          : e.message;
       return { line, message, ...(e.value !== undefined ? { value: e.value } : {}) };
     })
     .sort((a, b) => (a.line ?? 0) - (b.line ?? 0));

@@ -60,9 +60,23 @@
  *   the flash vapour joins effect j's vapour heading to chest j+1 and the liquid cascades on. With
  *   saturated condensate everywhere, Fl_j = M_j·(h_f,j−1 − h_f,j)/(h_g,j − h_f,j), M_j = Σ_{k<j}(V_k − B_k).
  *   Requires vaporCondensateSubcooling = 0. The last chest's cascade leaves at p_{N−1}.
+ * - thermocompressor (thermal vapour recompression, TVR): a steam-jet ejector driven by motive
+ *   steam at P_m entrains vapour from effect j (default the last) at its pressure p_j and boiling
+ *   point (superheated by its BPR, enthalpy H_V,j) and discharges into the chest of effect 1, whose
+ *   pressure is then `steam.pressure` (P_c). Ra = motive/entrained from El-Dessouky's correlation
+ *   (./thermocompressor.ts) at (P_m, P_c, p_j, T_j); the discharge D = M + E is the chest's steam
+ *   (the unknown S), E = D/(1 + Ra) leaves effect j's vapour before chest j+1 (or the condenser),
+ *   exactly linear in S, so the linear solve carries it; Ra and the discharge enthalpy
+ *   h_d = (Ra·h_m + H_V,j)/(1 + Ra) are refreshed with the other properties each iteration. The
+ *   chest gives h_d − h_c per kg (superheat and latent heat down to its condensate).
  * - Hydrostatic head and heat losses are not modelled here (surface boiling points).
+ *
+ * Figures of merit (./figures-of-merit.ts): distillate = total evaporation; heating steam = the
+ * steam (the motive steam with a thermocompressor), its heat released per kg its enthalpy less the
+ * chest-1 condensate's.
  */
 import { EngineInputError, EngineNoSolutionError, EngineRangeError } from '../errors.js';
+import type { OverallCoefficientProvider, OverallCoefficientResult } from '../heat-transfer/overall.js';
 import type { LiquorModel } from '../liquors/model.js';
 import { solveLinearSystem } from '../numeric/linear.js';
 import { brentSolve } from '../numeric/roots.js';
@@ -73,8 +87,16 @@ import {
   saturatedLiquidEnthalpy,
   saturatedVaporEnthalpy,
   enthalpyAtPT,
+  stateAtPH,
 } from '../steam/if97.js';
 import { addWarning, type Citation, type EngineCaution, type EngineWarning } from '../types.js';
+import { figuresOfMerit, type FiguresOfMerit } from './figures-of-merit.js';
+import {
+  checkThermocompressor,
+  dischargeEnthalpy,
+  requireWorkingEjector,
+  THERMOCOMPRESSOR_SOURCE,
+} from './thermocompressor.js';
 import {
   balanceResidual,
   collectSources,
@@ -110,6 +132,16 @@ export interface FeedPreheat {
   source?: 'external' | { vaporFromEffect: number };
 }
 
+/** A steam-jet thermocompressor whose discharge heats effect 1 (thermal vapour recompression). */
+export interface ThermocompressorSpec {
+  /** Motive steam pressure P_m, Pa absolute. */
+  motivePressure: number;
+  /** Superheat of the motive steam, K (default 0: saturated). */
+  motiveSuperheat?: number;
+  /** Effect (1…N) whose vapour is entrained; default the last. */
+  entrainedFromEffect?: number;
+}
+
 export interface MultipleEffectInput {
   mode: MultipleEffectMode;
   liquor: LiquorModel;
@@ -126,8 +158,13 @@ export interface MultipleEffectInput {
   steam: SteamSupplySpec;
   /** Vapour-space pressure of the last effect, Pa absolute. */
   lastEffectPressure: number;
-  /** U_i per effect, W/(m²·K); its length sets the number of effects (1…10). */
-  overallHeatTransferCoefficients: readonly number[];
+  /**
+   * U_i per effect, W/(m²·K); its length sets the number of effects (1…10). An entry may be a
+   * provider that estimates U at the effect's state (its liquor's mass fraction, boiling point and
+   * pressure, and the condensing temperature of its heating steam or vapour), re-evaluated every
+   * iteration: U and the area of that effect then refer to the outside area of the tubes.
+   */
+  overallHeatTransferCoefficients: readonly (number | OverallCoefficientProvider)[];
   /** Areas per effect, m² (required for 'given-areas'). */
   areas?: readonly number[];
   /** Default 'forward'. */
@@ -138,6 +175,8 @@ export interface MultipleEffectInput {
   condensateFlash?: boolean;
   /** Subcooling of the condensate leaving the vapour chests 2…N, K. Default 0 (saturated). */
   vaporCondensateSubcooling?: number;
+  /** Thermal vapour recompression: `steam` is then the ejector's discharge (see the module comment). */
+  thermocompressor?: ThermocompressorSpec;
   /**
    * Smallest acceptable ΔT in any effect, K. Default 2 K: an engineering floor (common practice:
    * below a couple of kelvin boiling heat transfer is unreliable and the area grows as 1/ΔT);
@@ -168,8 +207,10 @@ export interface EffectResult {
   boilingPointRise: number;
   /** Condensing temperature of the heating medium − liquor boiling point (BPR included), K. */
   temperatureDifference: number;
-  /** W/(m²·K) */
+  /** W/(m²·K) (the estimate's at the converged state, when a provider was given) */
   overallHeatTransferCoefficient: number;
+  /** The estimate of U at the converged state, when U was given as a provider. */
+  heatTransfer?: OverallCoefficientResult;
   /** kg/s of liquor entering (fresh feed share for parallel feed). */
   liquorInFlow: number;
   /** K, temperature of the liquor entering. */
@@ -223,6 +264,35 @@ export interface MultipleEffectResult {
   steamEconomy: number;
   product: { massFlow: number; massFraction: number; temperature: number; enthalpy: number };
   feedPreheat?: { duty: number; source: 'external' | number; bleed: number; temperature: number };
+  /** The ejector, with a thermocompressor (then `steam` is its discharge and `steamEconomy` per kg motive). */
+  thermocompressor?: {
+    /** M, kg/s. */
+    motiveSteamFlow: number;
+    /** E, kg/s. */
+    entrainedVaporFlow: number;
+    /** E/M = 1/Ra, kg entrained per kg motive. */
+    entrainmentRatio: number;
+    /** Ra = M/E, kg motive per kg entrained (El-Dessouky's correlation). */
+    motivePerEntrained: number;
+    /** P_c/P_e. */
+    compressionRatio: number;
+    /** P_m/P_e. */
+    expansionRatio: number;
+    /** Pa */
+    motivePressure: number;
+    /** J/kg */
+    motiveEnthalpy: number;
+    /** Effect number (1…N) entrained from. */
+    entrainedFromEffect: number;
+    /** P_e, Pa. */
+    suctionPressure: number;
+    /** h_d, J/kg. */
+    dischargeEnthalpy: number;
+    /** Temperature of the discharge at P_c (superheated, or saturated when wet), K. */
+    dischargeTemperature: number;
+  };
+  /** Desalination figures of merit (./figures-of-merit.ts). */
+  figuresOfMerit: FiguresOfMerit;
   iterations: number;
   /** Largest scaled residual of the full equations at the returned point. */
   residual: number;
@@ -246,6 +316,14 @@ const METHOD_SOURCES: Citation[] = [
 ];
 
 const MAX_EFFECTS = 10;
+
+/** The validated thermocompressor (SI). */
+interface Ejector {
+  motivePressure: number;
+  motiveEnthalpy: number;
+  /** 0-based effect entrained from. */
+  suction: number;
+}
 /** Anderson works on [T (K), 100·x]: a change of 0.01 in x weighs like 1 K. */
 const X_SCALE = 100;
 
@@ -371,8 +449,12 @@ interface TrainSpec {
   design: boolean;
   /** Number of effects. */
   n: number;
-  /** U_i, W/(m²·K). */
-  U: readonly number[];
+  /** U_i, W/(m²·K): given, or (with a provider) the estimate at the current iterate. */
+  U: Float64Array;
+  /** Providers of U per effect (undefined where U is a number); undefined when none. */
+  providers: readonly (OverallCoefficientProvider | undefined)[] | undefined;
+  /** The providers' estimates at the converged state. */
+  estimates: (OverallCoefficientResult | undefined)[];
   /** Given areas (rating only), m². */
   areas: readonly number[] | undefined;
   /** Fresh feed, kg/s. */
@@ -399,6 +481,8 @@ interface TrainSpec {
   /** Subcooling of the vapour-chest condensate, K. */
   subcooling: number;
   condensateFlash: boolean;
+  /** The thermocompressor, if any. */
+  ejector: Ejector | undefined;
   maxIterations: number;
   /** Bleeds asked for per effect (without the preheat bleed), kg/s. */
   fixedBleed: Float64Array;
@@ -458,6 +542,13 @@ interface TrainState {
   feedPerVapor: number;
   /** Product mass fraction: the design's, or (parallel rating) the current estimate. */
   productFraction: number;
+  /** Heat given in the chest of effect 1 per kg of its steam (the discharge's with TVR), J/kg. */
+  chestHeatPerKg: number;
+  /** Vapour entrained from effect i per kg of chest-1 steam (1/(1 + Ra) at the suction effect). */
+  entrainedPerSteam: Float64Array;
+  /** TVR: Ra (motive per entrained) and the discharge enthalpy at the current properties. */
+  motivePerEntrained: number;
+  dischargeEnthalpy: number;
   /** (N+1)×(N+1) matrix, right-hand side and one coefficient row (length N+2). */
   matrix: Float64Array;
   rhs: Float64Array;
@@ -502,7 +593,18 @@ function prepareTrain(input: MultipleEffectInput): TrainSpec {
     );
   }
   const n = U.length;
-  U.forEach((u, i) => requirePositive(`overallHeatTransferCoefficients[${i}]`, u, 'W/(m²·K)'));
+  const Ugiven = new Float64Array(n);
+  let providers: (OverallCoefficientProvider | undefined)[] | undefined;
+  U.forEach((u, i) => {
+    if (typeof u === 'function') {
+      providers ??= new Array<OverallCoefficientProvider | undefined>(n).fill(undefined);
+      providers[i] = u;
+      Ugiven[i] = Number.NaN; // set from the estimate before each use
+    } else {
+      requirePositive(`overallHeatTransferCoefficients[${i}]`, u, 'W/(m²·K)');
+      Ugiven[i] = u;
+    }
+  });
   let areas: readonly number[] | undefined;
   if (design) {
     if (input.areas !== undefined) {
@@ -574,18 +676,21 @@ function prepareTrain(input: MultipleEffectInput): TrainSpec {
       'condensate flash assumes saturated condensate: set vaporCondensateSubcooling to 0 or turn the flash off',
     );
   }
+  const ejector = input.thermocompressor ? prepareEjector(input, n, steam, pN) : undefined;
   const maxIter = input.maxIterations ?? 200;
   requireInRange('maxIterations', maxIter, 1, 10_000, 'iterations');
   const heatWeights = new Float64Array(n);
   for (let i = 0; i < n; i++) {
-    heatWeights[i] = design ? (U[i] as number) : (U[i] as number) * (areas?.[i] as number);
+    heatWeights[i] = design ? (Ugiven[i] as number) : (Ugiven[i] as number) * (areas?.[i] as number);
   }
   return {
     input,
     liquor,
     design,
     n,
-    U,
+    U: Ugiven,
+    providers,
+    estimates: new Array<OverallCoefficientResult | undefined>(n).fill(undefined),
     areas,
     feedFlow: F,
     feedFraction: xF,
@@ -602,11 +707,51 @@ function prepareTrain(input: MultipleEffectInput): TrainSpec {
     minimumTemperatureDifference: minDT,
     subcooling: subcool,
     condensateFlash: flash,
+    ejector,
     maxIterations: maxIter,
     ...prepareFeed(input, n, F, xF, Ts),
     evaporationTarget: design ? F * (1 - xF / xP) : Number.NaN,
     heatWeights,
   };
+}
+
+/**
+ * The thermocompressor's fixed part: the motive steam's enthalpy, the suction effect, and the
+ * refusals known before iterating (the steam spec's superheat, which the mixing balance fixes; an
+ * ejector that cannot work when the suction pressure is the given last-effect pressure).
+ */
+function prepareEjector(input: MultipleEffectInput, n: number, steam: SteamSupply, pN: number): Ejector {
+  const tc = input.thermocompressor as ThermocompressorSpec;
+  if ((input.steam.superheat ?? 0) > 0) {
+    throw new EngineInputError(
+      'steam.superheat',
+      "with a thermocompressor the chest steam is the ejector's discharge, whose state follows from the mixing balance: omit steam.superheat",
+    );
+  }
+  const pm = tc.motivePressure;
+  requireInRange(
+    'thermocompressor.motivePressure',
+    pm,
+    IF97.minPressure,
+    IF97.region13SaturationPressure,
+    'Pa',
+  );
+  const tm = saturationTemperature(pm);
+  const sh = tc.motiveSuperheat ?? 0;
+  requireInRange('thermocompressor.motiveSuperheat', sh, 0, IF97.maxTemperature - tm, 'K');
+  const suction =
+    tc.entrainedFromEffect === undefined
+      ? n - 1
+      : requireEffect('thermocompressor.entrainedFromEffect', tc.entrainedFromEffect, n);
+  // the last effect's pressure is given; an intermediate suction lies below the chest by construction
+  requireWorkingEjector({
+    motivePressure: pm,
+    dischargePressure: steam.pressure,
+    suctionPressure: suction === n - 1 ? pN : IF97.minPressure,
+    suctionTemperature: tm,
+  });
+  const motiveEnthalpy = sh > 0 ? enthalpyAtPT(pm, tm + sh) : saturatedVaporEnthalpy(pm);
+  return { motivePressure: pm, motiveEnthalpy, suction };
 }
 
 /** Bleeds, the feed's enthalpy as it enters and the preheat duty (with the feed's warnings). */
@@ -689,6 +834,10 @@ function newTrainState(spec: TrainSpec): TrainState {
     proposedFlows: new Float64Array(M),
     feedPerVapor: 1,
     productFraction: spec.productFraction,
+    chestHeatPerKg: spec.steam.heatPerKg,
+    entrainedPerSteam: new Float64Array(spec.n),
+    motivePerEntrained: Number.NaN,
+    dischargeEnthalpy: Number.NaN,
     matrix: new Float64Array(M * M),
     rhs: new Float64Array(M),
     row: new Float64Array(M + 1),
@@ -771,6 +920,67 @@ function evaluateProperties(spec: TrainSpec, st: TrainState, sink: EngineWarning
     const e = effectAt(st, spec.preheatEffect);
     e.bleed = e.bleed + spec.preheatDuty / (e.vaporEnthalpy - e.condensateEnthalpy);
   }
+  if (spec.ejector) evaluateEjector(spec, st, sink);
+}
+
+/**
+ * U of the effects given by a provider, at the current iterate: each effect's liquor (mass
+ * fraction, boiling point, pressure) and the condensing temperature of its heating medium (the
+ * steam for effect 1, the previous effect's vapour T_{i−1} after it). The heat weights of the
+ * temperature split follow. While iterating, a chest whose ΔT has not yet settled above
+ * {@link ESTIMATE_MIN_ITERATE_DT} is evaluated at that ΔT (the estimate needs steam hotter than
+ * the liquor); at the converged point (`final`) every ΔT has been checked positive and the
+ * estimates are kept for the result.
+ */
+function evaluateCoefficients(spec: TrainSpec, st: TrainState, final: boolean): void {
+  const providers = spec.providers;
+  if (!providers) return;
+  for (let i = 0; i < spec.n; i++) {
+    const provide = providers[i];
+    if (!provide) continue;
+    const e = effectAt(st, i);
+    const condensing = i === 0 ? spec.steamTemperature : effectAt(st, i - 1).vaporTemperature;
+    const estimate = provide({
+      massFraction: e.massFraction,
+      boilingTemperature: e.boilingPoint,
+      bodyPressure: e.pressure,
+      condensingTemperature: final
+        ? condensing
+        : Math.max(condensing, e.boilingPoint + ESTIMATE_MIN_ITERATE_DT),
+    });
+    const u = estimate.overallHeatTransferCoefficient;
+    spec.U[i] = u;
+    spec.heatWeights[i] = spec.design ? u : u * (spec.areas?.[i] as number);
+    if (final) {
+      spec.estimates[i] = estimate;
+      for (const w of estimate.warnings) spec.warnings.push(w);
+    }
+  }
+}
+
+/** Smallest chest ΔT at which an estimate is evaluated while iterating, K. */
+const ESTIMATE_MIN_ITERATE_DT = 0.1;
+
+/**
+ * The thermocompressor at the current properties: Ra at the suction effect's pressure and
+ * saturation temperature, the entrained share 1/(1 + Ra) of the chest steam, and the discharge
+ * enthalpy from the mixing balance with the suction effect's vapour (superheated by its BPR).
+ */
+function evaluateEjector(spec: TrainSpec, st: TrainState, sink: EngineWarning[] | undefined): void {
+  const ej = spec.ejector as Ejector;
+  const e = effectAt(st, ej.suction);
+  const point = {
+    motivePressure: ej.motivePressure,
+    dischargePressure: spec.steam.pressure,
+    suctionPressure: e.pressure,
+    suctionTemperature: e.vaporTemperature,
+  };
+  requireWorkingEjector(point);
+  const ra = checkThermocompressor(point, sink);
+  st.motivePerEntrained = ra;
+  st.entrainedPerSteam[ej.suction] = 1 / (1 + ra);
+  st.dischargeEnthalpy = dischargeEnthalpy(ra, ej.motiveEnthalpy, e.vaporEnthalpy);
+  st.chestHeatPerKg = st.dischargeEnthalpy - spec.steam.enthalpyOut;
 }
 
 function evaluateEffect(spec: TrainSpec, st: TrainState, i: number, sink: EngineWarning[] | undefined): void {
@@ -802,20 +1012,24 @@ function dutyRow(spec: TrainSpec, st: TrainState, i: number, row: Float64Array):
   const M = spec.n + 1;
   row.fill(0);
   if (i === 0) {
-    row[0] = spec.steam.heatPerKg;
+    row[0] = st.chestHeatPerKg;
     return;
   }
   const j = i - 1; // vapour of effect j heats chest i
   const heating = effectAt(st, j);
   const lat = heating.vaporEnthalpy - heating.condensateEnthalpy;
+  const tvr = spec.ejector !== undefined;
   row[j + 1] = lat;
   row[M] = -heating.bleed * lat;
+  // the ejector takes E = S/(1 + Ra) of effect j's vapour before chest j+1
+  if (tvr) row[0] = (row[0] as number) - lat * (st.entrainedPerSteam[j] as number);
   if (spec.condensateFlash && j >= 1) {
-    // flash vapour: (h_f,j−1 − h_f,j)·Σ_{k<j}(V_k − B_k)
+    // flash vapour: (h_f,j−1 − h_f,j)·Σ_{k<j}(V_k − B_k − E_k)
     const dh = effectAt(st, j - 1).saturatedLiquidEnthalpy - heating.saturatedLiquidEnthalpy;
     for (let k = 0; k < j; k++) {
       row[k + 1] = (row[k + 1] as number) + dh;
       row[M] = (row[M] as number) - dh * effectAt(st, k).bleed;
+      if (tvr) row[0] = (row[0] as number) - dh * (st.entrainedPerSteam[k] as number);
     }
   }
 }
@@ -1112,6 +1326,7 @@ function iterateTrain(spec: TrainSpec, st: TrainState): number {
   for (let iter = 1; iter <= spec.maxIterations; iter++) {
     iterations = iter;
     evaluateProperties(spec, st, undefined);
+    evaluateCoefficients(spec, st, false);
     solveFlows(spec, st);
     stepFlows(spec, st, iter, next.massFraction);
     proposeTemperatures(spec, st, iter, next);
@@ -1147,15 +1362,18 @@ function finalEvaluation(spec: TrainSpec, st: TrainState, iterations: number): F
   }
   const areas = new Float64Array(n);
   for (let i = 0; i < n; i++) {
-    const e = effectAt(st, i);
-    const d = e.temperatureDifference;
+    const d = effectAt(st, i).temperatureDifference;
     if (!(d > 0) || d < minDT) {
       throw new EngineNoSolutionError(
         `No practical solution: effect ${i + 1} would work with ΔT = ${d.toFixed(3)} K, below the minimum ${minDT} K (too many effects or too little temperature difference for this liquor)`,
         { iterations, reason: 'temperature-difference-below-minimum' },
       );
     }
-    areas[i] = e.duty / ((spec.U[i] as number) * d);
+  }
+  evaluateCoefficients(spec, st, true);
+  for (let i = 0; i < n; i++) {
+    const e = effectAt(st, i);
+    areas[i] = e.duty / ((spec.U[i] as number) * e.temperatureDifference);
   }
   const pre = spec.preheatEffect;
   if (pre >= 0 && spec.feedInTemperature >= effectAt(st, pre).vaporTemperature) {
@@ -1175,6 +1393,13 @@ function finalEvaluation(spec: TrainSpec, st: TrainState, iterations: number): F
   for (let i = 0; i < n; i++) {
     const v = z[i + 1] as number;
     const bleed = effectAt(st, i).bleed;
+    const entrained = (z[0] as number) * (st.entrainedPerSteam[i] as number);
+    if (entrained > 0 && v - bleed - entrained < -1e-12 * spec.feedFlow) {
+      throw new EngineNoSolutionError(
+        `No physical solution: the thermocompressor would entrain ${entrained.toFixed(4)} kg/s from effect ${i + 1}, more than the ${(v - bleed).toFixed(4)} kg/s of vapour it makes (less bleeds)`,
+        { iterations, reason: 'entrainment-exceeds-vapour' },
+      );
+    }
     if (v - bleed < -1e-12 * spec.feedFlow) {
       throw new EngineNoSolutionError(
         `No physical solution: the vapour bled from effect ${i + 1} (${bleed.toFixed(4)} kg/s) exceeds the vapour it makes (${v.toFixed(4)} kg/s)`,
@@ -1195,7 +1420,7 @@ function equationResiduals(
   const z = st.flows;
   const effects: number[] = [];
   let residual = 0;
-  const qScale = (z[0] as number) * spec.steam.heatPerKg;
+  const qScale = (z[0] as number) * st.chestHeatPerKg;
   for (let i = 0; i < n; i++) {
     const e = effectAt(st, i);
     const hin = liquorInEnthalpy(spec, st, i);
@@ -1223,7 +1448,7 @@ function condensateCascade(spec: TrainSpec, st: TrainState): { flashVapor: Float
   let cascade = 0;
   for (let j = 0; j < n - 1; j++) {
     const e = effectAt(st, j);
-    const vc = (z[j + 1] as number) - e.bleed;
+    const vc = (z[j + 1] as number) - e.bleed - (z[0] as number) * (st.entrainedPerSteam[j] as number);
     if (flash && j >= 1 && j < n - 1) {
       const hgj = saturatedVaporEnthalpy(e.pressure);
       const hfPrev = effectAt(st, j - 1).saturatedLiquidEnthalpy;
@@ -1236,7 +1461,9 @@ function condensateCascade(spec: TrainSpec, st: TrainState): { flashVapor: Float
     else
       for (let j = 0; j < n - 1; j++) {
         const e = effectAt(st, j);
-        energyOut += ((z[j + 1] as number) - e.bleed) * e.condensateEnthalpy;
+        energyOut +=
+          ((z[j + 1] as number) - e.bleed - (z[0] as number) * (st.entrainedPerSteam[j] as number)) *
+          e.condensateEnthalpy;
       }
   }
   return { flashVapor, energyOut };
@@ -1297,11 +1524,16 @@ function trainBalances(
   for (let i = 0; i < n; i++) {
     const e = effectAt(st, i);
     evaporation += z[i + 1] as number;
-    const toCondenserOrUsers = i === n - 1 ? (z[i + 1] as number) : e.bleed;
+    // the entrained vapour circulates: only the last effect's is missing from the condenser
+    const toCondenserOrUsers =
+      i === n - 1 ? (z[i + 1] as number) - (z[0] as number) * (st.entrainedPerSteam[i] as number) : e.bleed;
     vaporOutEnergy += toCondenserOrUsers * e.vaporEnthalpy;
   }
   const S = z[0] as number;
-  const energyIn = [S * steam.enthalpyIn, F * spec.feedEnthalpy];
+  // with a thermocompressor only the motive steam enters; the entrained vapour circulates inside
+  const energyIn = spec.ejector
+    ? [motiveFlow(st) * spec.ejector.motiveEnthalpy, F * spec.feedEnthalpy]
+    : [S * steam.enthalpyIn, F * spec.feedEnthalpy];
   const energyOut = [S * steam.enthalpyOut, condensateEnergy, vaporOutEnergy, productEnthalpyFlow];
   return {
     evaporation,
@@ -1312,6 +1544,12 @@ function trainBalances(
       effects: effectResiduals,
     },
   };
+}
+
+/** Motive steam of the thermocompressor, M = D·Ra/(1 + Ra), kg/s. */
+function motiveFlow(st: TrainState): number {
+  const ra = st.motivePerEntrained;
+  return ((st.flows[0] as number) * ra) / (1 + ra);
 }
 
 /** Warnings of the converged train: feed flash, ΔT too small or large, steam superheat, solubility. */
@@ -1353,6 +1591,7 @@ function effectResults(
       boilingPointRise: e.boilingPointRise,
       temperatureDifference: e.temperatureDifference,
       overallHeatTransferCoefficient: spec.U[i] as number,
+      ...(spec.estimates[i] ? { heatTransfer: spec.estimates[i] } : {}),
       liquorInFlow: e.liquorIn,
       liquorInTemperature: inT,
       liquorOutFlow: e.liquorOut,
@@ -1369,6 +1608,38 @@ function effectResults(
         : { source: 'steam', pressure: spec.steam.pressure, condensingTemperature: spec.steamTemperature },
     };
   });
+}
+
+const EJECTOR_CAUTION: EngineCaution = {
+  code: 'thermocompressor',
+  message:
+    "The ejector's entrainment is a published correlation's estimate: size the thermocompressor from its maker's performance data. The motive-steam line is pressure equipment under local codes; an ejector is loud and its discharge superheated.",
+};
+
+/** The thermocompressor at the converged point. */
+function ejectorResult(
+  spec: TrainSpec,
+  st: TrainState,
+): NonNullable<MultipleEffectResult['thermocompressor']> {
+  const ej = spec.ejector as Ejector;
+  const ra = st.motivePerEntrained;
+  const D = st.flows[0] as number;
+  const suctionPressure = effectAt(st, ej.suction).pressure;
+  const pc = spec.steam.pressure;
+  return {
+    motiveSteamFlow: motiveFlow(st),
+    entrainedVaporFlow: D * (st.entrainedPerSteam[ej.suction] as number),
+    entrainmentRatio: 1 / ra,
+    motivePerEntrained: ra,
+    compressionRatio: pc / suctionPressure,
+    expansionRatio: ej.motivePressure / suctionPressure,
+    motivePressure: ej.motivePressure,
+    motiveEnthalpy: ej.motiveEnthalpy,
+    entrainedFromEffect: ej.suction + 1,
+    suctionPressure,
+    dischargeEnthalpy: st.dischargeEnthalpy,
+    dischargeTemperature: stateAtPH(pc, st.dischargeEnthalpy, { transport: false }).temperature,
+  };
 }
 
 /** Equation residual above which an apparently converged point is refused (converged ones are < 1e-9). */
@@ -1404,6 +1675,10 @@ function assembleResult(spec: TrainSpec, st: TrainState, iterations: number): Mu
   let totalArea = 0;
   for (let i = 0; i < n; i++) totalArea += areas[i] as number;
   const S = st.flows[0] as number;
+  const ejector = spec.ejector ? ejectorResult(spec, st) : undefined;
+  // the steam bought: the motive steam with a thermocompressor, else the chest's steam
+  const boughtSteam = ejector ? ejector.motiveSteamFlow : S;
+  const boughtHeatPerKg = ejector ? ejector.motiveEnthalpy - steam.enthalpyOut : steam.heatPerKg;
   const result: MultipleEffectResult = {
     mode: spec.input.mode,
     feedArrangement: spec.arrangementName,
@@ -1414,12 +1689,12 @@ function assembleResult(spec: TrainSpec, st: TrainState, iterations: number): Mu
       pressure: steam.pressure,
       temperature: spec.steamTemperature,
       latentHeat: steam.latentHeat,
-      heatPerKg: steam.heatPerKg,
+      heatPerKg: st.chestHeatPerKg,
     },
     totalArea,
     area: totalArea / n,
     evaporation,
-    steamEconomy: evaporation / S,
+    steamEconomy: evaporation / boughtSteam,
     product,
     iterations,
     residual,
@@ -1427,11 +1702,27 @@ function assembleResult(spec: TrainSpec, st: TrainState, iterations: number): Mu
     warnings: spec.warnings,
     cautions: standardCautions({
       liquor,
-      steamPressures: [steam.pressure],
+      steamPressures: ejector ? [steam.pressure, ejector.motivePressure] : [steam.pressure],
       bodyPressures: st.effects.map((e) => e.pressure),
     }),
     sources: [...collectSources(liquor), ...METHOD_SOURCES],
+    figuresOfMerit: figuresOfMerit({
+      distillateFlow: evaporation,
+      heatingSteamFlow: boughtSteam,
+      heatPerKgSteam: boughtHeatPerKg,
+      totalArea,
+    }),
   };
+  if (ejector) {
+    warnLargeSteamSuperheat(
+      ejector.dischargeTemperature - spec.steamTemperature,
+      result.warnings,
+      'thermocompressor.dischargeTemperature',
+    );
+    result.thermocompressor = ejector;
+    result.sources.push(THERMOCOMPRESSOR_SOURCE);
+    result.cautions.push(EJECTOR_CAUTION);
+  }
   if (spec.input.feedPreheat) {
     const pre = spec.preheatEffect;
     const bleedEffect = pre >= 0 ? effectAt(st, pre) : undefined;

@@ -26,6 +26,11 @@
  * All numbers SI (Pa, K, J/kg, kg/s, W, m², W/(m²·K), mass fraction 0–1).
  */
 import { EngineInputError, EngineNoSolutionError, EngineRangeError } from '../errors.js';
+import type {
+  EffectHeatTransferState,
+  OverallCoefficientProvider,
+  OverallCoefficientResult,
+} from '../heat-transfer/overall.js';
 import type { LiquorModel } from '../liquors/model.js';
 import { brentSolve } from '../numeric/roots.js';
 import { IF97, saturationTemperature } from '../steam/if97.js';
@@ -48,6 +53,7 @@ import {
   type SteamSupply,
   type SteamSupplySpec,
 } from './common.js';
+import { figuresOfMerit, type FiguresOfMerit } from './figures-of-merit.js';
 
 // ---------------------------------------------------------------------------------------------
 // Inputs and result
@@ -79,8 +85,12 @@ export interface ProductSpec {
 export interface BodySpec {
   /** Vapour-space pressure p, Pa absolute. */
   pressure: number;
-  /** U, W/(m²·K) (> 0). */
-  overallHeatTransferCoefficient: number;
+  /**
+   * U, W/(m²·K) (> 0), or a provider that estimates it at the effect's state (mass fraction of the
+   * product, mean boiling temperature and pressure, steam condensing temperature): then U and the
+   * area refer to the outside area of the tubes, and the result carries the estimate.
+   */
+  overallHeatTransferCoefficient: number | OverallCoefficientProvider;
   /** Height of the boiling liquid column above the heating surface's mid-point, m (default 0). */
   liquidHeight?: number;
 }
@@ -137,6 +147,7 @@ export interface SingleEffectResult {
   };
   body: {
     pressure: number;
+    /** U used for the area (the estimate's, at the converged state, when a provider was given). */
     overallHeatTransferCoefficient: number;
     liquidHeight: number;
     /** Pressure where the mean boiling point is taken (mid-depth; = pressure without head), Pa. */
@@ -163,8 +174,15 @@ export interface SingleEffectResult {
   steamEconomy: number;
   /** S / V */
   specificSteamConsumption: number;
+  /**
+   * Desalination figures of merit (./figures-of-merit.ts): distillate = the vapour, heating
+   * steam = the steam, its heat per kg h_in − h_out.
+   */
+  figuresOfMerit: FiguresOfMerit;
   /** Relative residuals recomputed from the result's streams. */
   balances: { mass: number; solute: number; energy: number };
+  /** The estimate of U at the converged state, when U was given as a provider. */
+  heatTransfer?: OverallCoefficientResult;
   warnings: EngineWarning[];
   cautions: EngineCaution[];
   sources: Citation[];
@@ -174,18 +192,48 @@ export interface SingleEffectResult {
 // Core (validated inputs, resolved steam)
 // ---------------------------------------------------------------------------------------------
 
-interface Prepared {
+/**
+ * The liquor side of an effect, validated: everything but the heating medium. Exported so that
+ * other arrangements heated by something else (a vapour compressor) share the same checks and
+ * balances.
+ */
+export interface LiquorSide {
   liquor: LiquorModel;
-  steam: SteamSupply;
   pressure: number;
   waterBoilingPoint: number;
+  /** U, W/(m²·K); NaN when `uProvider` gives it per state. */
   u: number;
+  uProvider: OverallCoefficientProvider | undefined;
   liquidHeight: number;
   f: number;
   feedFraction: number;
   feedTemperature: number;
   feedEnthalpyOverride: number | undefined;
   productEnthalpyOverride: number | undefined;
+}
+
+interface Prepared extends LiquorSide {
+  steam: SteamSupply;
+}
+
+/** The liquor-side balance of an effect at product fraction x_L and feed F (see {@link liquorBalance}). */
+export interface LiquorBalance {
+  F: number;
+  L: number;
+  V: number;
+  xL: number;
+  hF: number;
+  hL: number;
+  /** Surface boiling point, K. */
+  T: number;
+  /** Mean boiling point (mid-depth with a liquid head), K. */
+  Tmean: number;
+  pMean: number;
+  /** Enthalpy of the vapour leaving at (p, T), J/kg. */
+  HV: number;
+  superheat: number;
+  /** Heat the liquor takes: V·H_V + L·h_L − F·h_F, W. */
+  need: number;
 }
 
 interface CoreState {
@@ -206,10 +254,17 @@ interface CoreState {
 }
 
 /**
- * Balances for product fraction x_L and feed F. May return S ≤ 0 (hot feed) or dT ≤ 0 (steam too
- * cold); the public functions decide what that means. `warnings` undefined inside iterations.
+ * Liquor-side balances for product fraction x_L and feed F: L and V from the mass and solute
+ * balances, the boiling points (surface and mean), the leaving vapour and the heat the liquor
+ * takes, V·H_V + L·h_L − F·h_F. `warnings` undefined inside iterations.
  */
-function core(pr: Prepared, F: number, xL: number, warnings: WarningSink, productFlow?: number): CoreState {
+export function liquorBalance(
+  pr: LiquorSide,
+  F: number,
+  xL: number,
+  warnings: WarningSink,
+  productFlow?: number,
+): LiquorBalance {
   const { liquor, pressure } = pr;
   // A pure-water feed (x_F = 0) leaves x_L = 0 whatever L is: the solute balance cannot give L,
   // so the caller passes it (from product.massFlow or F − V).
@@ -225,9 +280,6 @@ function core(pr: Prepared, F: number, xL: number, warnings: WarningSink, produc
   const vap = leavingVapor(pressure, T, pr.waterBoilingPoint);
   const hF = pr.feedEnthalpyOverride ?? liquor.enthalpy(pr.feedFraction, pr.feedTemperature, warnings);
   const hL = pr.productEnthalpyOverride ?? liquor.enthalpy(xL, T, warnings);
-  const need = V * vap.enthalpy + L * hL - F * hF;
-  const S = need / (pr.steam.heatPerKg * (1 - pr.f));
-  const Q = S * pr.steam.heatPerKg;
   return {
     F,
     L,
@@ -240,9 +292,33 @@ function core(pr: Prepared, F: number, xL: number, warnings: WarningSink, produc
     pMean,
     HV: vap.enthalpy,
     superheat: vap.superheat,
+    need: V * vap.enthalpy + L * hL - F * hF,
+  };
+}
+
+/**
+ * Balances for product fraction x_L and feed F. May return S ≤ 0 (hot feed) or dT ≤ 0 (steam too
+ * cold); the public functions decide what that means. `warnings` undefined inside iterations.
+ */
+function core(pr: Prepared, F: number, xL: number, warnings: WarningSink, productFlow?: number): CoreState {
+  const b = liquorBalance(pr, F, xL, warnings, productFlow);
+  const S = b.need / (pr.steam.heatPerKg * (1 - pr.f));
+  const Q = S * pr.steam.heatPerKg;
+  return {
+    F: b.F,
+    L: b.L,
+    V: b.V,
+    xL: b.xL,
+    hF: b.hF,
+    hL: b.hL,
+    T: b.T,
+    Tmean: b.Tmean,
+    pMean: b.pMean,
+    HV: b.HV,
+    superheat: b.superheat,
     S,
     Q,
-    dT: pr.steam.condensingTemperature - Tmean,
+    dT: pr.steam.condensingTemperature - b.Tmean,
   };
 }
 
@@ -256,6 +332,26 @@ function prepare(
   },
   productEnthalpy: number | undefined,
 ): Prepared {
+  const side = prepareLiquorSide(input, productEnthalpy);
+  return { ...side, steam: resolveSteamSupply(input.steam, 'steam') };
+}
+
+/**
+ * Validates the liquor side of an effect (liquor, feed, body pressure, U, liquid height, heat-loss
+ * fraction) and resolves T_sat(p).
+ *
+ * @throws EngineRangeError an input outside its range (field, value and range named)
+ * @throws EngineInputError when `liquor` is not a liquor model
+ */
+export function prepareLiquorSide(
+  input: {
+    liquor: LiquorModel;
+    feed: { massFraction: number; temperature: number; enthalpy?: number };
+    body: BodySpec;
+    heatLossFraction?: number;
+  },
+  productEnthalpy: number | undefined,
+): LiquorSide {
   const { liquor, feed, body } = input;
   if (!liquor || typeof liquor.boilingPoint !== 'function') {
     throw new EngineInputError('liquor', 'liquor must be a liquor model');
@@ -265,7 +361,9 @@ function prepare(
   if (feed.enthalpy !== undefined) requireInRange('feed.enthalpy', feed.enthalpy, -1e7, 1e7, 'J/kg');
   if (productEnthalpy !== undefined) requireInRange('product.enthalpy', productEnthalpy, -1e7, 1e7, 'J/kg');
   requireInRange('body.pressure', body.pressure, IF97.minPressure, IF97.region13SaturationPressure, 'Pa');
-  requirePositive('body.overallHeatTransferCoefficient', body.overallHeatTransferCoefficient, 'W/(m²·K)');
+  const givenU = body.overallHeatTransferCoefficient;
+  const uProvider = typeof givenU === 'function' ? givenU : undefined;
+  if (!uProvider) requirePositive('body.overallHeatTransferCoefficient', givenU as number, 'W/(m²·K)');
   const liquidHeight = body.liquidHeight ?? 0;
   requireInRange('body.liquidHeight', liquidHeight, 0, 100, 'm');
   const f = input.heatLossFraction ?? 0;
@@ -277,19 +375,38 @@ function prepare(
       `heatLossFraction = ${f} must be from 0 up to (not including) 1`,
     );
   }
-  const steam = resolveSteamSupply(input.steam, 'steam');
   return {
     liquor,
-    steam,
     pressure: body.pressure,
     waterBoilingPoint: saturationTemperature(body.pressure),
-    u: body.overallHeatTransferCoefficient,
+    u: uProvider ? Number.NaN : (givenU as number),
+    uProvider,
     liquidHeight,
     f,
     feedFraction: feed.massFraction,
     feedTemperature: feed.temperature,
     feedEnthalpyOverride: feed.enthalpy,
     productEnthalpyOverride: productEnthalpy,
+  };
+}
+
+/** U at an effect's state: the given number, or the provider's estimate there. */
+export function coefficientAt(
+  side: LiquorSide,
+  state: EffectHeatTransferState,
+): { u: number; estimate: OverallCoefficientResult | undefined } {
+  if (!side.uProvider) return { u: side.u, estimate: undefined };
+  const estimate = side.uProvider(state);
+  return { u: estimate.overallHeatTransferCoefficient, estimate };
+}
+
+/** The state of the single effect's heating surface for the U estimate. */
+function stateOf(pr: Prepared, c: CoreState): EffectHeatTransferState {
+  return {
+    massFraction: c.xL,
+    boilingTemperature: c.Tmean,
+    bodyPressure: c.pMean,
+    condensingTemperature: pr.steam.condensingTemperature,
   };
 }
 
@@ -313,6 +430,19 @@ function noSteamHotEnough(pr: Prepared, c: CoreState): EngineNoSolutionError {
   );
 }
 
+/** The liquor side's warnings: a feed that flashes on entry, a product near its solubility limit. */
+export function liquorSideWarnings(
+  pr: LiquorSide,
+  c: { xL: number; T: number },
+  warnings: EngineWarning[],
+): void {
+  if (pr.feedTemperature > pr.waterBoilingPoint) {
+    // The BPR is ≥ 0, so a feed below T_sat(p) cannot flash: skip the model call then.
+    warnFeedFlash(pr.feedTemperature, pr.liquor.boilingPoint(pr.feedFraction, pr.pressure), warnings);
+  }
+  warnSolubility(pr.liquor, c.xL, c.T, warnings);
+}
+
 /** Builds the public result from a converged core state, with warnings, cautions and balances. */
 function assemble(
   pr: Prepared,
@@ -320,7 +450,10 @@ function assemble(
   mode: 'design' | 'rating',
   warnings: EngineWarning[],
 ): SingleEffectResult {
-  const area = c.Q / (pr.u * c.dT);
+  // U at the converged state (ΔT > 0 is checked by every caller before this).
+  const { u, estimate } = coefficientAt(pr, stateOf(pr, c));
+  const area = c.Q / (u * c.dT);
+  if (estimate) warnings.push(...estimate.warnings);
   const heatLoss = pr.f * c.Q;
   if (![c.S, c.Q, area, c.HV, c.hF, c.hL, c.T].every(Number.isFinite)) {
     // Defensive: every input is range-checked, so this means a model returned a non-number.
@@ -331,11 +464,7 @@ function assemble(
   warnSmallTemperatureDifference(c.dT, warnings);
   warnLargeTemperatureDifference(c.dT, warnings);
   warnLargeSteamSuperheat(pr.steam.superheat, warnings);
-  if (pr.feedTemperature > pr.waterBoilingPoint) {
-    // The BPR is ≥ 0, so a feed below T_sat(p) cannot flash: skip the model call then.
-    warnFeedFlash(pr.feedTemperature, pr.liquor.boilingPoint(pr.feedFraction, pr.pressure), warnings);
-  }
-  warnSolubility(pr.liquor, c.xL, c.T, warnings);
+  liquorSideWarnings(pr, c, warnings);
   const st = pr.steam;
   const result: SingleEffectResult = {
     mode,
@@ -360,7 +489,7 @@ function assemble(
     },
     body: {
       pressure: pr.pressure,
-      overallHeatTransferCoefficient: pr.u,
+      overallHeatTransferCoefficient: u,
       liquidHeight: pr.liquidHeight,
       meanBoilingPressure: c.pMean,
       meanBoilingTemperature: c.Tmean,
@@ -374,7 +503,14 @@ function assemble(
     area,
     steamEconomy: c.V / c.S,
     specificSteamConsumption: c.S / c.V,
+    figuresOfMerit: figuresOfMerit({
+      distillateFlow: c.V,
+      heatingSteamFlow: c.S,
+      heatPerKgSteam: st.enthalpyIn - st.enthalpyOut,
+      totalArea: area,
+    }),
     balances: { mass: 0, solute: 0, energy: 0 },
+    ...(estimate ? { heatTransfer: estimate } : {}),
     warnings,
     cautions: standardCautions({
       liquor: pr.liquor,
@@ -424,7 +560,7 @@ export function singleEffectBalances(r: SingleEffectResult): {
  * For a pure-water feed (x_F = 0) the product flow L is returned too: the solute balance is then
  * silent about it, and V = F − L.
  */
-function productTarget(F: number, xF: number, product: ProductSpec): { xL: number; L?: number } {
+export function productTarget(F: number, xF: number, product: ProductSpec): { xL: number; L?: number } {
   const given = (['massFraction', 'massFlow', 'evaporation'] as const).filter(
     (k) => product[k] !== undefined,
   );
@@ -595,18 +731,28 @@ export function rateSingleEffect(input: SingleEffectRatingInput): SingleEffectRe
         'Rating with a fixed feed needs a feed with solute (x_F > 0): the product concentration is what is found',
       );
     }
-    const uA = pr.u * A;
-    const residual = (x: number): number => {
-      const c = core(pr, F, x, undefined);
-      return c.Q - uA * c.dT;
-    };
     // At x_F nothing is evaporated: a positive residual means the area cannot even heat the feed.
     const c0 = core(pr, F, xF, undefined);
     if (!(c0.dT > 0)) throw noSteamHotEnough(pr, c0);
-    const r0 = c0.Q - uA * c0.dT;
+    // A given U is a constant; an estimated U depends on x_L and the boiling point, so it is
+    // evaluated inside the residual and Brent's root is the fixed point of both. Where ΔT ≤ 0
+    // (beyond the bracket's useful end) the estimate has no meaning: the last U stands in there,
+    // which keeps the residual's sign (Q − U·A·ΔT > 0).
+    let lastU = coefficientAt(pr, stateOf(pr, c0)).u;
+    const uAt = (c: CoreState): number => {
+      if (!pr.uProvider || !(c.dT > 0)) return lastU;
+      lastU = coefficientAt(pr, stateOf(pr, c)).u;
+      return lastU;
+    };
+    const u0 = lastU;
+    const residual = (x: number): number => {
+      const c = core(pr, F, x, undefined);
+      return c.Q - uAt(c) * A * c.dT;
+    };
+    const r0 = c0.Q - u0 * A * c0.dT;
     if (r0 > 0) {
       throw new EngineNoSolutionError(
-        `The area ${A} m² is too small to bring the feed to its boiling point: heating it alone needs ${(c0.Q / (pr.u * c0.dT)).toFixed(3)} m², and nothing would be evaporated`,
+        `The area ${A} m² is too small to bring the feed to its boiling point: heating it alone needs ${(c0.Q / (u0 * c0.dT)).toFixed(3)} m², and nothing would be evaporated`,
         { reason: 'area-too-small-to-boil', residual: r0 },
       );
     }
@@ -647,7 +793,8 @@ export function rateSingleEffect(input: SingleEffectRatingInput): SingleEffectRe
         { reason: 'no-steam-needed', residual: c1.S },
       );
     }
-    const F = A / (c1.Q / (pr.u * c1.dT));
+    // x_L fixed: the state, and so an estimated U, does not depend on F.
+    const F = A / (c1.Q / (coefficientAt(pr, stateOf(pr, c1)).u * c1.dT));
     const warnings: EngineWarning[] = [];
     result = assemble(pr, core(pr, F, xL, warnings), 'rating', warnings);
   }

@@ -28,6 +28,16 @@
  *     IAPWS-IF97 unless the table has an x = 0 row). It replaces the c_p-based enthalpy, and gives
  *     c_p as the slope ∂h/∂T when no c_p polynomial is given.
  *
+ * Optional transport properties, each a polynomial in x over the liquor's mass-fraction range
+ * (validated like the c_p polynomial: positive over the range plus its margin), independent of
+ * temperature except viscosity; absent, the property is simply not provided:
+ * - `density.polynomial`: ρ(x) = Σ c_i·x^i, kg/m³;
+ * - `viscosity.polynomial`: relative viscosity, μ(x, T) = μ_water(T)·Σ c_i·x^i with μ_water from
+ *   IAPWS R12-08 at T (saturated liquid), so a liquor follows water's steep fall with temperature
+ *   (c_0 = 1 for a liquor that tends to water);
+ * - `thermalConductivity.polynomial`: k(x) = Σ c_i·x^i, W/(m·K);
+ * - `surfaceTension.polynomial`: σ(x) = Σ c_i·x^i, N/m.
+ *
  * Decisions (documented in the API description as well):
  * - Extrapolation margins. Mass fraction: up to {@link MASS_FRACTION_MARGIN} (absolute) beyond the
  *   data, the end lines/polynomials are extrapolated with a "model-extrapolated" warning; further
@@ -48,6 +58,7 @@ import { addWarning, type Citation, type EngineWarning, type WarningSink } from 
 import {
   IF97,
   if97CitationFor,
+  liquidViscosity,
   saturatedLiquidAtTemperature,
   saturationPressure,
   saturationTemperature,
@@ -110,6 +121,14 @@ interface CustomLiquorCommon {
   heatCapacity?: PolynomialData;
   /** User-given enthalpies; replace the c_p-based enthalpy. */
   enthalpy?: EnthalpyTableData;
+  /** ρ(x) = Σ c_i·x^i, kg/m³. */
+  density?: PolynomialData;
+  /** μ(x, T)/μ_water(T) = Σ c_i·x^i (dimensionless; μ_water from IAPWS R12-08). */
+  viscosity?: PolynomialData;
+  /** k(x) = Σ c_i·x^i, W/(m·K). */
+  thermalConductivity?: PolynomialData;
+  /** σ(x) = Σ c_i·x^i, N/m. */
+  surfaceTension?: PolynomialData;
 }
 
 /** (a) Dühring table, optionally with c_p polynomial and/or enthalpy table. */
@@ -279,6 +298,8 @@ interface Compiled {
   linePairs?: PairRange[];
   bpr?: number[];
   cp?: number[];
+  /** Optional property polynomials in x (SI; viscosity relative to water). */
+  properties: Partial<Record<CustomProperty, number[]>>;
   rows?: CompiledRow[];
   rowPairs?: PairRange[];
   /** Mass fraction range of the boiling-point data and its hard limits. */
@@ -295,6 +316,15 @@ interface Compiled {
   box: ValidityBox;
   limitsBox: ValidityBox;
 }
+
+/** The optional property polynomials, with what each must stay above and its SI unit. */
+const CUSTOM_PROPERTIES = {
+  density: { what: 'density', unit: 'kg/m³' },
+  viscosity: { what: 'relative viscosity μ/μ_water', unit: '1' },
+  thermalConductivity: { what: 'thermal conductivity', unit: 'W/(m·K)' },
+  surfaceTension: { what: 'surface tension', unit: 'N/m' },
+} as const;
+type CustomProperty = keyof typeof CUSTOM_PROPERTIES;
 
 /** Lowercase ASCII slug: "Black liquor (mill 2)" → "black-liquor-mill-2". */
 export function slugify(name: string): string {
@@ -556,7 +586,14 @@ function compile(def: unknown): Compiled {
     );
   }
   const definitionWarnings: EngineWarning[] = [];
-  const out: Partial<Compiled> = { id, name, compositionVariable, definitionWarnings, validityStated: true };
+  const out: Partial<Compiled> = {
+    id,
+    name,
+    compositionVariable,
+    definitionWarnings,
+    validityStated: true,
+    properties: {},
+  };
 
   let xValidity: Interval;
   let tValidity: Interval = LIQUID_TEMPERATURE;
@@ -613,6 +650,15 @@ function compile(def: unknown): Compiled {
   if (def.heatCapacity !== undefined) {
     out.cp = polynomial(def.heatCapacity, 'heatCapacity');
     checkPolynomialOver(out.cp, 'heatCapacity.polynomial', xLimits, 0, 'c_p', 'J/(kg·K)');
+  }
+  for (const [key, spec] of Object.entries(CUSTOM_PROPERTIES) as [
+    CustomProperty,
+    (typeof CUSTOM_PROPERTIES)[CustomProperty],
+  ][]) {
+    if (def[key] === undefined) continue;
+    const coefficients = polynomial(def[key], key);
+    checkPolynomialOver(coefficients, `${key}.polynomial`, xLimits, 0, spec.what, spec.unit);
+    (out.properties as Partial<Record<CustomProperty, number[]>>)[key] = coefficients;
   }
   let enthalpyT: Interval | undefined;
   if (def.enthalpy !== undefined) {
@@ -774,5 +820,21 @@ export function createCustomLiquor(definition: CustomLiquorDefinition): CustomLi
     enthalpy,
   });
   if (c.cp || c.rows) model.heatCapacity = heatCapacity;
+
+  /** The x and T checks of the polynomials, and the property's value at x. */
+  const property = (key: CustomProperty, x: number, t: number, w?: WarningSink): number => {
+    checkAgainst(id, 'massFraction', x, MF, c.xValidity, c.xLimits, w);
+    checkAgainst(id, 'temperature', t, 'K', c.tValidity, c.tLimits, w);
+    unstated(w);
+    return polyval(c.properties[key] as number[], x);
+  };
+  if (c.properties.density) model.density = (x, t, w) => property('density', x, t, w);
+  if (c.properties.viscosity) {
+    model.viscosity = (x, t, w) => property('viscosity', x, t, w) * liquidViscosity(t);
+  }
+  if (c.properties.thermalConductivity) {
+    model.thermalConductivity = (x, t, w) => property('thermalConductivity', x, t, w);
+  }
+  if (c.properties.surfaceTension) model.surfaceTension = (x, t, w) => property('surfaceTension', x, t, w);
   return model;
 }

@@ -14,10 +14,13 @@
  * their solubility limit. A generic correlation is a preliminary estimate; users with measured
  * data for their liquor should bring it as a custom (Dühring-table) liquor.
  *
- * Density and a solubility (burkeite / sodium-salt crystallisation) limit are not provided.
+ * Density and viscosity are generic correlations (see {@link blackLiquorDensity} and
+ * {@link blackLiquorKinematicViscosity}); the viscosity always carries a warning that it is
+ * liquor-specific. Thermal conductivity, surface tension and a solubility (burkeite /
+ * sodium-salt crystallisation) limit are not provided.
  */
 import { saturationPressure, saturationTemperature, IF97, if97CitationFor } from '../steam/if97.js';
-import { KELVIN_OFFSET, type Citation, type WarningSink } from '../types.js';
+import { addWarning, KELVIN_OFFSET, type Citation, type WarningSink } from '../types.js';
 import { defineLiquorModel, type Interval, type LiquorModel, type ValidityBox } from './model.js';
 import { checkAgainst } from './validity.js';
 import { EngineRangeError } from '../errors.js';
@@ -139,6 +142,66 @@ export function blackLiquorEnthalpyKJPerKg(solidsMassFraction: number, temperatu
   );
 }
 
+/**
+ * Density of kraft black liquor against dry solids and temperature (Frederick 1997).
+ *
+ *   ρ_25 = 997 + 694·S   [kg/m³],   ρ(t) = ρ_25·(1.008 − 0.237·(t/1000) − 1.94·(t/1000)²)
+ *
+ * The equation is recalled ("from memory"); its digits agree with an open-source transcription of
+ * the book's black-liquor correlations (which also carries the BPR coefficients used above),
+ * except that we recall a solids slope of 649 rather than 694 kg/m³: the two differ by 2 % at 70 %
+ * solids. Check against the book before design. Its water end (S = 0) is within 1 % of IF97
+ * between 20 and 150 °C.
+ *
+ * Validity: the fitted range is not in our notes; used with the model's box (silent to 80 % solids
+ * and 40–150 °C) and flagged as generic.
+ * Source: W.J. Frederick, "Black liquor properties", ch. 3 in T.N. Adams (ed.), Kraft Recovery
+ * Boilers, TAPPI Press 1997 (from memory, see above).
+ *
+ * @param solidsMassFraction S, kg dry solids per kg liquor (0–1)
+ * @param temperatureCelsius t, °C
+ * @returns ρ, kg/m³
+ * @example blackLiquorDensity(0.65, 100) // ≈ 1397.3 kg/m³
+ */
+export function blackLiquorDensity(solidsMassFraction: number, temperatureCelsius: number): number {
+  requireSolids(solidsMassFraction);
+  const r = temperatureCelsius / 1000;
+  return (997 + 694 * solidsMassFraction) * (1.008 - 0.237 * r - 1.94 * r * r);
+}
+
+/**
+ * Kinematic viscosity of kraft black liquor (a generic fit of the form used in the black-liquor
+ * literature, as Frederick 1997 collects it).
+ *
+ *   ln(ν/cSt) = A + B/T³,  T in K
+ *   A = −2.4273 + 3.3532·S + 3.7654·S² − 2.49·S³
+ *   B = 6.1347e7 − 5.442e7·S + 2.1915e8·S² + 1.7042e8·S³
+ *
+ * Coefficients recalled ("from memory") and as transcribed in the same open-source code as
+ * {@link blackLiquorDensity}; not read from the book here. Its water end (S = 0) reproduces IAPWS
+ * water within 2.3 % from 20 to 150 °C, which checks A and B at S = 0 only. Real black-liquor
+ * viscosity depends on the liquor (wood species, cooking, lignin molecular weight, residual
+ * alkali; Zaman and Fricke, Ind. Eng. Chem. Res. 33 (1994) 428–435): at high solids two liquors
+ * can differ by a factor of several, so this is an order-of-magnitude estimate.
+ *
+ * Validity: the fitted range is not in our notes; used silently to 80 % solids and 40–150 °C,
+ * always with a warning that the property is liquor-specific.
+ * Source: W.J. Frederick, "Black liquor properties", ch. 3 in T.N. Adams (ed.), Kraft Recovery
+ * Boilers, TAPPI Press 1997 (form and coefficients from memory, see above).
+ *
+ * @param solidsMassFraction S, kg dry solids per kg liquor (0–1)
+ * @param temperature T, K
+ * @returns ν, m²/s
+ * @example blackLiquorKinematicViscosity(0.65, 373.15) // ≈ 4.662e-5 m²/s (about 47 cSt)
+ */
+export function blackLiquorKinematicViscosity(solidsMassFraction: number, temperature: number): number {
+  requireSolids(solidsMassFraction);
+  const s = solidsMassFraction;
+  const a = -2.4273 + s * (3.3532 + s * (3.7654 - 2.49 * s));
+  const b = 6.1347e7 + s * (-5.442e7 + s * (2.1915e8 + 1.7042e8 * s));
+  return Math.exp(a + b / temperature ** 3) * 1e-6;
+}
+
 const C = (celsius: number): number => celsius + KELVIN_OFFSET;
 const KJ = 1e3;
 
@@ -171,7 +234,8 @@ const validity: ValidityBox = {
     'Enthalpy and heat capacity: silent to 80 % dry solids and 40–150 °C.',
     'The pressure correction is trusted for water boiling temperatures of 50–150 °C.',
     'A generic correlation: liquors from different mills differ by several kelvin in BPR at high solids. Use a custom Dühring table for measured data.',
-    'Density and a solubility limit are not provided by this model.',
+    'Density and viscosity: generic correlations (Frederick 1997, from memory), used silently to 80 % dry solids and 40–150 °C; every viscosity carries a warning that black-liquor viscosity is liquor-specific (a factor of several between liquors at high solids).',
+    'Thermal conductivity, surface tension and a solubility limit are not provided by this model.',
   ],
 };
 
@@ -192,6 +256,11 @@ const sources: Citation[] = [
     key: 'zaman-1998',
     reference:
       'A.A. Zaman, T.W. McNally, A.L. Fricke, "Vapor pressure and boiling point elevation of slash pine black liquors: predictive models with statistical approach", Industrial & Engineering Chemistry Research 37 (1998) 275–283 (data range and slope change near 65 % solids)',
+  },
+  {
+    key: 'zaman-fricke-1994',
+    reference:
+      'A.A. Zaman, A.L. Fricke, "Newtonian viscosity of high solids kraft black liquors: effects of temperature and solids concentrations", Industrial & Engineering Chemistry Research 33 (1994) 428–435 (viscosity depends on the liquor)',
   },
   if97CitationFor('pure-water saturation temperature'),
 ];
@@ -217,6 +286,29 @@ function riseOverWater(
     frederickAtmosphericBoilingPointRise(massFraction) * frederickBoilingPointRisePressureFactor(tWater);
   checkAgainst(MODEL_ID, 'temperature', tWater + rise, 'K', T_VALID, T_LIMITS, warnings);
   return { waterBoilingTemperature: tWater, rise };
+}
+
+/** Box in which the generic density and viscosity are used without an extrapolation warning. */
+const TRANSPORT_BOX: ValidityBox = { massFraction: S_VALID_CP, temperature: T_VALID };
+
+function checkTransportInputs(
+  property: 'density' | 'viscosity',
+  massFraction: number,
+  temperature: number,
+  warnings: WarningSink,
+): number {
+  checkAgainst(
+    MODEL_ID,
+    'massFraction',
+    massFraction,
+    'kg dry solids/kg liquor',
+    S_VALID_CP,
+    S_LIMITS,
+    warnings,
+    property,
+  );
+  checkAgainst(MODEL_ID, 'temperature', temperature, 'K', T_VALID, T_LIMITS, warnings, property);
+  return temperature - KELVIN_OFFSET;
 }
 
 function checkEnthalpyInputs(massFraction: number, temperature: number, warnings: WarningSink): number {
@@ -257,6 +349,11 @@ export const kraftBlackLiquor: LiquorModel = defineLiquorModel({
         'Sodium salts (sodium carbonate and sulfate) crystallise from concentrated black liquor and scale heating surfaces; viscosity rises steeply with solids. This model gives no solubility limit: check the product solids against your liquor data.',
     },
     {
+      code: 'black-liquor-viscosity-varies',
+      message:
+        'Black-liquor viscosity rises steeply with solids and differs from liquor to liquor; above about 65 % solids it can gel or set on cooling. Size pumps, lines and heating surfaces on measured viscosities of your liquor.',
+    },
+    {
       code: 'reduced-sulfur-gases',
       message:
         'Evaporator vapours and condensates from black liquor carry hydrogen sulfide and other reduced sulfur compounds that are toxic; they must be collected and treated.',
@@ -281,5 +378,25 @@ export const kraftBlackLiquor: LiquorModel = defineLiquorModel({
   heatCapacity(massFraction: number, temperature: number, warnings?: WarningSink): number {
     const t = checkEnthalpyInputs(massFraction, temperature, warnings);
     return blackLiquorHeatCapacityKJPerKgK(massFraction, t) * KJ;
+  },
+
+  transportValidity: { density: TRANSPORT_BOX, viscosity: TRANSPORT_BOX },
+
+  density(massFraction: number, temperature: number, warnings?: WarningSink): number {
+    const t = checkTransportInputs('density', massFraction, temperature, warnings);
+    return blackLiquorDensity(massFraction, t);
+  },
+
+  /** μ = ν·ρ, Pa·s; always with a "liquor-specific-property" warning. */
+  viscosity(massFraction: number, temperature: number, warnings?: WarningSink): number {
+    const t = checkTransportInputs('viscosity', massFraction, temperature, warnings);
+    addWarning(warnings, {
+      code: 'liquor-specific-property',
+      field: 'massFraction',
+      property: 'viscosity',
+      message:
+        'Black-liquor viscosity depends on the liquor (wood, cooking, lignin and residual alkali): this generic correlation can be off by a factor of several at high solids. Use measured viscosities of your liquor (a custom liquor) for design.',
+    });
+    return blackLiquorKinematicViscosity(massFraction, temperature) * blackLiquorDensity(massFraction, t);
   },
 });

@@ -110,7 +110,17 @@ export interface LiquorDescription {
   validity: ValidityBox;
   limits: ValidityBox;
   sources: Citation[];
-  properties: { heatCapacity: boolean; density: boolean; solubilityLimit: boolean };
+  /** Which optional properties the model provides. */
+  properties: {
+    heatCapacity: boolean;
+    density: boolean;
+    solubilityLimit: boolean;
+    viscosity: boolean;
+    thermalConductivity: boolean;
+    surfaceTension: boolean;
+  };
+  /** The source box of each provided property whose source differs from `validity`. */
+  transportValidity: Partial<Record<TransportProperty | 'density', ValidityBox>>;
 }
 
 export function describeLiquor(model: LiquorModel): LiquorDescription {
@@ -126,6 +136,10 @@ export function describeLiquor(model: LiquorModel): LiquorDescription {
       heatCapacity: typeof model.heatCapacity === 'function',
       density: typeof model.density === 'function',
       solubilityLimit: typeof model.solubilityLimit === 'function',
+      viscosity: typeof model.viscosity === 'function',
+      thermalConductivity: typeof model.thermalConductivity === 'function',
+      surfaceTension: typeof model.surfaceTension === 'function',
     },
+    transportValidity: { ...model.transportValidity },
   };
 }

@@ -18,9 +18,12 @@
 import { EngineNoSolutionError, EngineRangeError } from '../errors.js';
 import {
   if97CitationFor,
+  liquidThermalConductivity,
+  liquidViscosity,
   saturatedLiquidAtTemperature,
   saturationPressure,
   saturationTemperature,
+  waterSurfaceTension,
 } from '../steam/if97.js';
 import {
   addWarning,
@@ -197,6 +200,96 @@ export function seawaterBoilingTemperature(massFraction: number, pressure: numbe
   });
 }
 
+/** Sharqawy et al. 2010 eq. 22 coefficients, at the precision of the authors' own library. */
+const VISCOSITY_A = [1.540913604, 1.9981117208e-2, -9.5203865864e-5] as const;
+const VISCOSITY_B = [7.9739318223, -7.5614568881e-2, 4.7237011074e-4] as const;
+
+/**
+ * Relative viscosity of seawater, μ_sw/μ_w (Sharqawy et al. 2010, eq. 22, fitted to the data of
+ * Fabuss, Korosi and Othmer 1969, Isdale, Spence and Tudhope 1972, and Millero 1974).
+ *
+ *   μ_sw/μ_w = 1 + A·S + B·S²,  S in kg/kg, t in °C
+ *   A = 1.541 + 1.998e−2·t − 9.52e−5·t²
+ *   B = 7.974 − 7.561e−2·t + 4.724e−4·t²
+ *
+ * Coefficients at the precision of the authors' own implementation (MIT seawater property
+ * library, SW_Viscosity: 1.5409136040, 1.9981117208e−2, …), which the paper prints rounded; the
+ * digits were checked there. The paper pairs it with its own fit of the IAPWS 2008 pure-water
+ * viscosity; Ebullio multiplies it by IAPWS R12-08 itself ({@link liquidViscosity}).
+ *
+ * Validity: 0–180 °C, 0–0.15 kg/kg at 0.1 MPa (saturation pressure above 100 °C); stated accuracy
+ * ±1.5 %.
+ * Source: M.H. Sharqawy, J.H. Lienhard V, S.M. Zubair, "Thermophysical properties of seawater: a
+ * review of existing correlations and data", Desalination and Water Treatment 16 (2010) 354–380.
+ *
+ * @param massFraction absolute salinity, kg/kg (0–0.15)
+ * @param temperature K (273.15–453.15)
+ * @returns μ_sw/μ_w (dimensionless)
+ * @example sharqawyRelativeViscosity(0.035, 293.15) // ≈ 1.0747 (at 20 °C, 35 g/kg)
+ */
+export function sharqawyRelativeViscosity(massFraction: number, temperature: number): number {
+  const s = massFraction;
+  const t = temperature - KELVIN_OFFSET;
+  const a = VISCOSITY_A[0] + t * (VISCOSITY_A[1] + t * VISCOSITY_A[2]);
+  const b = VISCOSITY_B[0] + t * (VISCOSITY_B[1] + t * VISCOSITY_B[2]);
+  return 1 + a * s + b * s * s;
+}
+
+/**
+ * Thermal conductivity of seawater (Sharqawy et al. 2010, eq. 13, their recommended correlation,
+ * due to Jamieson and Tudhope, Desalination 8 (1970) 393–401).
+ *
+ *   log10(k/(mW/(m·K))) = log10(240 + 0.0002·S) + 0.434·(2.3 − (343.5 + 0.037·S)/T)
+ *                         ·(1 − T/(647.3 + 0.03·S))^(1/3)
+ *
+ * with T in K on IPTS-68 (T68 = 1.00024·T90, as the review converts) and S the practical
+ * salinity in g/kg (S_P = S_A/1.00472). Digits checked in the authors' own implementation (MIT
+ * seawater property library, SW_Conductivity).
+ *
+ * Validity: 0–180 °C, 0–160 g/kg; stated accuracy ±3 %.
+ * Source: Sharqawy, Lienhard and Zubair (2010) (see {@link sharqawyRelativeViscosity}).
+ *
+ * @param massFraction absolute salinity, kg/kg (0–0.16)
+ * @param temperature K, ITS-90 (273.15–453.15)
+ * @returns k, W/(m·K)
+ * @example jamiesonTudhopeThermalConductivity(0.035, 298.15) // ≈ 0.6087 W/(m·K) (the IAPWS seawater guideline through python3-iapws, tests/fixtures/seawater/iapws-transport-points.json: 0.6023 at 25 °C, 35 g/kg, 0.1 MPa)
+ */
+export function jamiesonTudhopeThermalConductivity(massFraction: number, temperature: number): number {
+  const s = (1000 * massFraction) / 1.00472;
+  const t68 = 1.00024 * (temperature - KELVIN_OFFSET) + KELVIN_OFFSET;
+  const log10k =
+    Math.log10(240 + 0.0002 * s) +
+    0.434 * (2.3 - (343.5 + 0.037 * s) / t68) * Math.cbrt(1 - t68 / (647.3 + 0.03 * s));
+  return 10 ** log10k * 1e-3;
+}
+
+/**
+ * Relative surface tension of seawater against air, σ_sw/σ_w (IAPWS guideline on the surface
+ * tension of seawater, 2014, which adopts the measurements and fit of Nayar et al. 2014).
+ *
+ *   σ_sw/σ_w = 1 + 3.766e−4·S + 2.347e−6·S·t,  S in g/kg, t in °C
+ *
+ * σ_w is the IAPWS surface tension of pure water ({@link waterSurfaceTension}). Sharqawy et al.
+ * (2010) give an older fit over 0–40 °C and 0–40 g/kg only; this one, from the same laboratory,
+ * covers desalination brines.
+ *
+ * Validity: 1–92 °C, 0–131 g/kg (measured); stated accuracy ±0.6 %.
+ * Source: IAPWS G14, "Guideline on the Surface Tension of Seawater" (2014); K.G. Nayar,
+ * D. Panchanathan, G.H. McKinley, J.H. Lienhard V, "Surface tension of seawater", Journal of
+ * Physical and Chemical Reference Data 43 (2014) 043103 (guideline number and article number
+ * from memory).
+ *
+ * @param massFraction absolute salinity, kg/kg (0–0.131)
+ * @param temperature K (274.15–365.15)
+ * @returns σ_sw/σ_w (dimensionless)
+ * @example nayarRelativeSurfaceTension(0.035, 293.15) // ≈ 1.014824 (20 °C, 35 g/kg)
+ */
+export function nayarRelativeSurfaceTension(massFraction: number, temperature: number): number {
+  const s = 1000 * massFraction;
+  const t = temperature - KELVIN_OFFSET;
+  return 1 + 3.766e-4 * s + 2.347e-6 * s * t;
+}
+
 const MASS_FRACTION_LIMITS: Interval = { min: 0, max: 0.16 };
 const TEMPERATURE_LIMITS: Interval = { min: 273.15, max: 473.15 };
 /** Validity of each correlation as Sharqawy et al. 2010 state it with each equation. */
@@ -205,6 +298,9 @@ const RANGES = {
   enthalpy: { massFraction: { min: 0, max: 0.12 }, temperature: { min: 283.15, max: 393.15 } },
   heatCapacity: { massFraction: { min: 0, max: 0.16 }, temperature: { min: 273.15, max: 453.15 } },
   density: { massFraction: { min: 0, max: 0.16 }, temperature: { min: 273.15, max: 453.15 } },
+  viscosity: { massFraction: { min: 0, max: 0.15 }, temperature: { min: 273.15, max: 453.15 } },
+  thermalConductivity: { massFraction: { min: 0, max: 0.16 }, temperature: { min: 273.15, max: 453.15 } },
+  surfaceTension: { massFraction: { min: 0, max: 0.131 }, temperature: { min: 274.15, max: 365.15 } },
 } as const;
 /** The enthalpy cubic is refused above 120 °C (see {@link sharqawyEnthalpyDifference}). */
 const ENTHALPY_TEMPERATURE_LIMITS: Interval = { min: 273.15, max: 393.15 };
@@ -228,6 +324,7 @@ const validity: ValidityBox = {
     'Boiling-point rise: 0-200 °C, 0-0.12 kg/kg (Sharqawy et al. 2010, ±0.018 K).',
     'Enthalpy: 10-120 °C, 0-0.12 kg/kg (±1.5 %); refused above 120 °C.',
     'Heat capacity and density: 0-180 °C, 0-0.16 kg/kg (±0.28 %, ±0.1 %).',
+    'Viscosity: 0-180 °C, 0-0.15 kg/kg (±1.5 %); thermal conductivity: 0-180 °C, 0-0.16 kg/kg (±3 %); surface tension: 1-92 °C, 0-0.131 kg/kg (±0.6 %). Outside these a "model-extrapolated" warning names the property.',
     'Pure-water parts from IAPWS-IF97 saturated liquid at T.',
   ],
 };
@@ -244,7 +341,17 @@ const sources: Citation[] = [
     reference:
       'M. H. Sharqawy, J. H. Lienhard V, S. M. Zubair, "Thermophysical properties of seawater: a review of existing correlations and data", Desalination and Water Treatment 16 (2010) 354-380',
   },
+  {
+    key: 'nayar-2014',
+    reference:
+      'K. G. Nayar, D. Panchanathan, G. H. McKinley, J. H. Lienhard V, "Surface tension of seawater", Journal of Physical and Chemical Reference Data 43 (2014); adopted by the IAPWS Guideline on the Surface Tension of Seawater (2014)',
+  },
   if97CitationFor('pure-water parts'),
+  {
+    key: 'iapws-transport',
+    reference:
+      'IAPWS R12-08 (viscosity, 2008), R15-11 (thermal conductivity, 2011) and R1-76(2014) (surface tension) of ordinary water substance (pure-water parts of the transport properties)',
+  },
 ];
 
 const cautions: EngineCaution[] = [
@@ -275,6 +382,46 @@ function checkMassFraction(value: number, range: Interval, warnings: WarningSink
 function checkTemperature(value: number, range: Interval, hard: Interval, warnings: WarningSink): void {
   checkAgainst(MODEL_ID, 'temperature', value, 'K', range, hard, warnings);
 }
+
+/**
+ * The one rule for a transport property: hard limits of the model, warnings outside the box of
+ * the property's own source, the property named in the warning's field (e.g. "viscosity.temperature").
+ */
+function checkProperty(
+  property: 'viscosity' | 'thermalConductivity' | 'surfaceTension',
+  massFraction: number,
+  temperature: number,
+  warnings: WarningSink,
+): void {
+  const box = RANGES[property];
+  const words = PROPERTY_WORDS[property];
+  checkAgainst(
+    MODEL_ID,
+    'massFraction',
+    massFraction,
+    'kg/kg',
+    box.massFraction,
+    MASS_FRACTION_LIMITS,
+    warnings,
+    words,
+  );
+  checkAgainst(
+    MODEL_ID,
+    'temperature',
+    temperature,
+    'K',
+    box.temperature,
+    TEMPERATURE_LIMITS,
+    warnings,
+    words,
+  );
+}
+
+const PROPERTY_WORDS = {
+  viscosity: 'viscosity',
+  thermalConductivity: 'thermal conductivity',
+  surfaceTension: 'surface tension',
+} as const;
 
 function checkPressure(value: number): void {
   if (!Number.isFinite(value) || value < PRESSURE_RANGE.min || value > PRESSURE_RANGE.max) {
@@ -324,6 +471,39 @@ export const seawater: LiquorModel = defineLiquorModel({
       });
     }
     return water + jamiesonHeatCapacity(massFraction, temperature) - jamiesonHeatCapacity(0, temperature);
+  },
+
+  transportValidity: {
+    density: { ...RANGES.density },
+    viscosity: { ...RANGES.viscosity },
+    thermalConductivity: { ...RANGES.thermalConductivity },
+    surfaceTension: { ...RANGES.surfaceTension },
+  },
+
+  /** μ = μ_IAPWS(T, saturated liquid)·(μ_sw/μ_w)_Sharqawy(S, T), Pa·s. */
+  viscosity(massFraction: number, temperature: number, warnings?: WarningSink): number {
+    checkProperty('viscosity', massFraction, temperature, warnings);
+    return liquidViscosity(temperature) * sharqawyRelativeViscosity(massFraction, temperature);
+  },
+
+  /**
+   * k = k_IAPWS(T)·k_JT(S, T)/k_JT(0, T), W/(m·K): the review's correlation as a ratio to its own
+   * pure-water value, on IAPWS R15-11 water, so that S = 0 gives IAPWS exactly (the correlation's
+   * own pure-water value is −0.2 to +1.7 % off IAPWS between 10 and 180 °C).
+   */
+  thermalConductivity(massFraction: number, temperature: number, warnings?: WarningSink): number {
+    checkProperty('thermalConductivity', massFraction, temperature, warnings);
+    return (
+      (liquidThermalConductivity(temperature) *
+        jamiesonTudhopeThermalConductivity(massFraction, temperature)) /
+      jamiesonTudhopeThermalConductivity(0, temperature)
+    );
+  },
+
+  /** σ = σ_IAPWS(T)·(σ_sw/σ_w)_Nayar(S, T), N/m. */
+  surfaceTension(massFraction: number, temperature: number, warnings?: WarningSink): number {
+    checkProperty('surfaceTension', massFraction, temperature, warnings);
+    return waterSurfaceTension(temperature) * nayarRelativeSurfaceTension(massFraction, temperature);
   },
 
   /** ρ = ρ_f,IF97(T) + (ρ_sw − ρ_w)_Sharqawy(S, T), kg/m³. */

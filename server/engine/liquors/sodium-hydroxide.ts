@@ -9,12 +9,20 @@
  * exported functions below keep the paper's variables and units (ξ, °C, kPa, kJ/kg) so that they
  * can be checked line by line against it, and the LiquorModel at the end converts to SI.
  *
- * Density and a crystallisation (solubility) limit are deliberately not provided: the paper's
- * density coefficients are not in our notes and we do not invent coefficients; we have no
- * published NaOH-hydrate solubility correlation at hand. Both optional methods are left out.
+ * Density and viscosity come from Laliberté's models for aqueous electrolytes (Laliberté and
+ * Cooper 2004; Laliberté 2007), with NaOH's parameters as Laliberté (2009) tabulates them, each
+ * with its own data box (`transportValidity`). Thermal conductivity, surface tension and a
+ * crystallisation (solubility) limit are not provided: we have no published NaOH coefficients at
+ * hand for them and do not invent coefficients.
  */
 import { EngineRangeError } from '../errors.js';
-import { saturationTemperature, IF97, if97CitationFor } from '../steam/if97.js';
+import {
+  saturatedLiquidAtTemperature,
+  saturationTemperature,
+  IF97,
+  if97CitationFor,
+  liquidViscosity,
+} from '../steam/if97.js';
 import { addWarning, KELVIN_OFFSET, type Citation, type WarningSink } from '../types.js';
 import { defineLiquorModel, type Interval, type LiquorModel, type ValidityBox } from './model.js';
 import { polyval } from '../numeric/polynomial.js';
@@ -286,6 +294,130 @@ export function olssonEnthalpyMinWaterFraction(temperatureCelsius: number): numb
   return staircaseMinimum(H_STAIRCASE, t);
 }
 
+/**
+ * Laliberté's NaOH viscosity parameters v1…v6 (mPa·s model), as tabulated in Laliberté (2009),
+ * which refits the 2007 parameters on more data; digits checked in the open-source `chemicals`
+ * library's transcription of that table (Laliberte2009.tsv). Data: 12.5–70 °C, w ≤ 0.56, 180 points.
+ */
+const NAOH_VISCOSITY = [
+  448.457566713375, 0.00871452408983102, -431.97212334697, 0.0160144202049452, 104.011738670148,
+  4.64493684488816,
+] as const;
+/**
+ * Laliberté's NaOH density parameters c0…c4 (apparent specific volume model), as tabulated in
+ * Laliberté (2009); digits checked as above. Data: 4–120 °C, w ≤ 0.503, 517 points.
+ */
+const NAOH_DENSITY = [
+  319.020509469838, 528.592358475315, -0.102197896602724, 0.000350420706415566, 765.970470238438,
+] as const;
+
+/**
+ * Viscosity that NaOH contributes in Laliberté's mixing rule (the "solute viscosity" μ_i).
+ *
+ *   μ_i = exp[(v1·w^v2 + v3)/(v4·t + 1)] / (v5·w^v6 + 1)   [mPa·s],  w = mass fraction of NaOH
+ *
+ * v1…v6 = 448.4576, 0.0087145, −431.9721, 0.0160144, 104.0117, 4.644937.
+ *
+ * Validity: 12.5–70 °C, w ≤ 0.56 (the NaOH data behind the parameters).
+ * Source: M. Laliberté, "Model for calculating the viscosity of aqueous solutions", J. Chem. Eng.
+ * Data 52 (2007) 321–335 (equation); parameters from M. Laliberté, "A model for calculating the
+ * heat capacity of aqueous solutions, with updated density and viscosity data", J. Chem. Eng.
+ * Data 54 (2009) 1725–1760.
+ *
+ * @param massFraction w, kg NaOH per kg solution (0–0.56)
+ * @param temperatureCelsius t, °C
+ * @returns μ_i, mPa·s
+ * @example laliberteNaohSoluteViscosityMPaS(0.3, 40) // ≈ 961.0 mPa·s (a fit parameter, not the solution's viscosity)
+ */
+export function laliberteNaohSoluteViscosityMPaS(massFraction: number, temperatureCelsius: number): number {
+  const [v1, v2, v3, v4, v5, v6] = NAOH_VISCOSITY;
+  const w = massFraction;
+  return Math.exp((v1 * w ** v2 + v3) / (v4 * temperatureCelsius + 1)) / (v5 * w ** v6 + 1);
+}
+
+/**
+ * Viscosity of aqueous NaOH by Laliberté's logarithmic mixing rule, with the water viscosity from
+ * IAPWS R12-08 (as the model allows: Laliberté fitted with his own water equation, which agrees
+ * with IAPWS to about 0.1 % between 0 and 100 °C, from memory).
+ *
+ *   ln μ_m = w_w·ln μ_w + w·ln μ_i,  w_w = 1 − w
+ *
+ * Validity: as {@link laliberteNaohSoluteViscosityMPaS}.
+ * Source: M. Laliberté, J. Chem. Eng. Data 52 (2007) 321–335, with the 2009 parameters.
+ *
+ * @param massFraction w, kg NaOH per kg solution (0–0.56)
+ * @param temperatureCelsius t, °C
+ * @param waterViscosityMPaS μ_w at t, mPa·s
+ * @returns μ_m, mPa·s
+ * @example laliberteNaohViscosityMPaS(0.3, 40, 0.6527) // ≈ 5.82 mPa·s
+ */
+export function laliberteNaohViscosityMPaS(
+  massFraction: number,
+  temperatureCelsius: number,
+  waterViscosityMPaS: number,
+): number {
+  const w = massFraction;
+  if (w === 0) return waterViscosityMPaS;
+  return Math.exp(
+    (1 - w) * Math.log(waterViscosityMPaS) +
+      w * Math.log(laliberteNaohSoluteViscosityMPaS(w, temperatureCelsius)),
+  );
+}
+
+/**
+ * Apparent specific volume of NaOH in water (Laliberté and Cooper's density model).
+ *
+ *   v_app = (w + c2 + c3·t) / [(c0·w + c1)·exp(1e−6·(t + c4)²)]   [m³/kg]
+ *
+ * c0…c4 = 319.0205, 528.5924, −0.1021979, 3.504207e−4, 765.9705. Negative at low w and t: NaOH
+ * shrinks the water it dissolves in (a negative apparent molar volume at infinite dilution).
+ *
+ * Validity: 4–120 °C, w ≤ 0.503.
+ * Source: M. Laliberté, W.E. Cooper, "Model for calculating the density of aqueous electrolyte
+ * solutions", J. Chem. Eng. Data 49 (2004) 1141–1151 (equation); parameters from Laliberté,
+ * J. Chem. Eng. Data 54 (2009) 1725–1760.
+ *
+ * @param massFraction w, kg NaOH per kg solution (0–0.503)
+ * @param temperatureCelsius t, °C
+ * @returns v_app, m³/kg
+ * @example laliberteNaohApparentSpecificVolume(0.3, 20) // ≈ 1.7688e-4 m³/kg
+ */
+export function laliberteNaohApparentSpecificVolume(
+  massFraction: number,
+  temperatureCelsius: number,
+): number {
+  const [c0, c1, c2, c3, c4] = NAOH_DENSITY;
+  const w = massFraction;
+  const t = temperatureCelsius;
+  return (w + c2 + c3 * t) / ((c0 * w + c1) * Math.exp(1e-6 * (t + c4) ** 2));
+}
+
+/**
+ * Density of aqueous NaOH (Laliberté and Cooper): water and solute volumes added.
+ *
+ *   1/ρ_m = w_w/ρ_w + w·v_app,  w_w = 1 − w
+ *
+ * Ebullio takes ρ_w from IF97 (saturated liquid at t); Laliberté and Cooper used a 1 atm water
+ * equation, which differs by less than 0.01 % below 100 °C.
+ *
+ * Validity: as {@link laliberteNaohApparentSpecificVolume}.
+ * Source: M. Laliberté, W.E. Cooper, J. Chem. Eng. Data 49 (2004) 1141–1151.
+ *
+ * @param massFraction w, kg NaOH per kg solution (0–0.503)
+ * @param temperatureCelsius t, °C
+ * @param waterDensity ρ_w at t, kg/m³
+ * @returns ρ_m, kg/m³
+ * @example laliberteNaohDensity(0.5, 20, 998.16) // ≈ 1516.3 kg/m³ (handbook tables give about 1525 kg/m³, from memory)
+ */
+export function laliberteNaohDensity(
+  massFraction: number,
+  temperatureCelsius: number,
+  waterDensity: number,
+): number {
+  const w = massFraction;
+  return 1 / ((1 - w) / waterDensity + w * laliberteNaohApparentSpecificVolume(w, temperatureCelsius));
+}
+
 const KPA = 1e3;
 const KJ = 1e3;
 const C = (celsius: number): number => celsius + KELVIN_OFFSET;
@@ -317,7 +449,8 @@ const validity: ValidityBox = {
     'Boiling point (vapour pressure) data, lowest water fraction by temperature: 0–20 °C ξ ≥ 0.582; 20–60 °C ξ ≥ 0.500; 60–70 °C ξ ≥ 0.353; 70–150 °C ξ ≥ 0.300; 150–200 °C ξ ≥ 0.200. Outside these steps a "model-extrapolated" warning is returned.',
     'Enthalpy data, lowest water fraction by temperature: 0–4 °C 0.78; 4–10 °C 0.68; 10–15 °C 0.58; 15–26 °C 0.54; 26–37 °C 0.44; 37–48 °C 0.40; 48–60 °C 0.34; 60–71 °C 0.30; 71–82 °C 0.28; 82–93 °C 0.24; 93–204 °C 0.22.',
     'Boiling-point rise = the fit’s boiling point at the solution minus its own pure-water boiling point at the same pressure, added to IF97 T_sat(p); the fit’s pure-water error (0.04 K at 101.325 kPa, 0.14 K at 5 kPa) cancels, so the rise is 0 for pure water.',
-    'Density and the crystallisation (hydrate solubility) limit are not provided by this model.',
+    'Viscosity (Laliberté 2007, 2009 parameters): data 12.5–70 °C, x ≤ 0.56; density (Laliberté and Cooper 2004, 2009 parameters): data 4–120 °C, x ≤ 0.503. Outside these a "model-extrapolated" warning names the property; the hard limits stay those of the model.',
+    'Thermal conductivity, surface tension and the crystallisation (hydrate solubility) limit are not provided by this model.',
   ],
 };
 
@@ -336,7 +469,27 @@ const sources: Citation[] = [
     reference:
       'M. Olsson, Å. Jernqvist, G. Aly, "Thermophysical properties of aqueous NaOH–H2O solutions at high concentrations", International Journal of Thermophysics 18(3) (1997)',
   },
-  if97CitationFor('pure-water saturation temperature for the boiling-point rise'),
+  {
+    key: 'laliberte-2007',
+    reference:
+      'M. Laliberté, "Model for calculating the viscosity of aqueous solutions", Journal of Chemical & Engineering Data 52 (2007) 321–335 (viscosity)',
+  },
+  {
+    key: 'laliberte-cooper-2004',
+    reference:
+      'M. Laliberté, W. E. Cooper, "Model for calculating the density of aqueous electrolyte solutions", Journal of Chemical & Engineering Data 49 (2004) 1141–1151 (density)',
+  },
+  {
+    key: 'laliberte-2009',
+    reference:
+      'M. Laliberté, "A model for calculating the heat capacity of aqueous solutions, with updated density and viscosity data", Journal of Chemical & Engineering Data 54 (2009) 1725–1760 (the NaOH density and viscosity parameters used)',
+  },
+  if97CitationFor('pure-water saturation temperature for the boiling-point rise; water density'),
+  {
+    key: 'iapws-r12-08',
+    reference:
+      'IAPWS R12-08, Release on the IAPWS Formulation 2008 for the Viscosity of Ordinary Water Substance (water viscosity)',
+  },
 ];
 
 function checkMassFraction(x: number, warnings: WarningSink): void {
@@ -399,6 +552,38 @@ function boilingPoint(massFraction: number, pressure: number, warnings?: Warning
   return temperature;
 }
 
+/** Data boxes of the Laliberté parameters for NaOH (Laliberté 2009, its NaOH rows). */
+const VISCOSITY_BOX: ValidityBox = {
+  massFraction: { min: 0, max: 0.56 },
+  temperature: { min: C(12.5), max: C(70) },
+};
+const DENSITY_BOX: ValidityBox = {
+  massFraction: { min: 0, max: 0.503 },
+  temperature: { min: C(4), max: C(120) },
+};
+
+/** Hard limits of the model, a warning naming the property outside its own data box. */
+function checkTransportInputs(
+  box: ValidityBox,
+  property: string,
+  massFraction: number,
+  temperature: number,
+  warnings: WarningSink,
+): number {
+  checkAgainst(
+    MODEL_ID,
+    'massFraction',
+    massFraction,
+    'kg NaOH/kg solution',
+    box.massFraction,
+    X_LIMITS,
+    warnings,
+    property,
+  );
+  checkAgainst(MODEL_ID, 'temperature', temperature, 'K', box.temperature, T_LIMITS, warnings, property);
+  return temperature - KELVIN_OFFSET;
+}
+
 function checkEnthalpyInputs(massFraction: number, temperature: number, warnings: WarningSink): number {
   checkMassFraction(massFraction, warnings);
   checkAgainst(MODEL_ID, 'temperature', temperature, 'K', T_VALID_ENTHALPY, T_LIMITS, warnings);
@@ -456,5 +641,22 @@ export const sodiumHydroxide: LiquorModel = defineLiquorModel({
   heatCapacity(massFraction: number, temperature: number, warnings?: WarningSink): number {
     const t = checkEnthalpyInputs(massFraction, temperature, warnings);
     return olssonHeatCapacityKJPerKgK(1 - massFraction, t) * KJ;
+  },
+
+  transportValidity: { viscosity: VISCOSITY_BOX, density: DENSITY_BOX },
+
+  /**
+   * Laliberté's mixing rule on IAPWS R12-08 water (saturated liquid at T), mPa·s → Pa·s. Beyond
+   * 70 °C, where evaporators run, the value is extrapolated and says so.
+   */
+  viscosity(massFraction: number, temperature: number, warnings?: WarningSink): number {
+    const t = checkTransportInputs(VISCOSITY_BOX, 'viscosity', massFraction, temperature, warnings);
+    return laliberteNaohViscosityMPaS(massFraction, t, liquidViscosity(temperature) * 1e3) * 1e-3;
+  },
+
+  /** Laliberté and Cooper's volume addition on IF97 water (saturated liquid at T), kg/m³. */
+  density(massFraction: number, temperature: number, warnings?: WarningSink): number {
+    const t = checkTransportInputs(DENSITY_BOX, 'density', massFraction, temperature, warnings);
+    return laliberteNaohDensity(massFraction, t, saturatedLiquidAtTemperature(temperature).density);
   },
 });

@@ -223,6 +223,100 @@ export function vavrineczSolubility(temperature: number): number {
   return (64.447 + t * (0.08222 + t * (1.6169e-3 + t * (-1.558e-6 + t * -4.63e-8)))) / 100;
 }
 
+/**
+ * Viscosity of pure sucrose solutions (Genotelle 1978, the sugar industry's usual correlation).
+ *
+ *   log10(μ/(mPa·s)) = 22.46·N − 0.114 + φ·(1.1 + 43.1·N^1.25)
+ *   N = w/(1900 − 18·w)  (w = dry substance, % by mass),  φ = (30 − t)/(91 + t)  (t in °C)
+ *
+ * Its pure-water limit is not IAPWS water: −3.5 % at 20 °C, +3.7 % at 80 °C (measured against
+ * R12-08), negligible beside the solutions' own viscosity once w passes about 20 %.
+ *
+ * Validity: 0–86 % dry substance, 0–80 °C (range from memory).
+ * Source: J. Genotelle, "Expression de la viscosité des solutions sucrées", Industries Alimentaires
+ * et Agricoles 95 (1978) 747–755, as given in M. Mathlouthi, P. Reiser (eds.), Sucrose: Properties
+ * and Applications, Blackie, Glasgow (1995), eq. 6.29 (page and equation number from the
+ * open-source code that cites it; coefficients checked there).
+ *
+ * @param massFraction x, kg sucrose per kg solution (0–0.86)
+ * @param temperature T, K
+ * @returns μ, Pa·s
+ * @example genotelleViscosity(0.6, 293.15) // ≈ 0.05974 Pa·s (sugar tables give about 0.0585 Pa·s for 60 % at 20 °C, from memory)
+ */
+export function genotelleViscosity(massFraction: number, temperature: number): number {
+  const w = 100 * massFraction;
+  const n = w / (1900 - 18 * w);
+  const t = temperature - KELVIN_OFFSET;
+  const phi = (30 - t) / (91 + t);
+  return 10 ** (22.46 * n - 0.114 + phi * (1.1 + 43.1 * n ** 1.25)) * 1e-3;
+}
+
+/** Laliberté (2009) parameters c0…c4 of sucrose in his density model (15–55 °C, w ≤ 0.507). */
+const SUCROSE_DENSITY = [
+  532.919899042424, 13692.5881480438, 12.6127261369233, 0.0266415899284128, 649.049186827162,
+] as const;
+
+/**
+ * Density of sucrose solutions: Laliberté and Cooper's apparent-specific-volume model with the
+ * sucrose parameters that Laliberté (2009) fitted (the digits checked in the open-source
+ * `chemicals` library's transcription of that table, Laliberte2009.tsv), on IF97 water.
+ *
+ *   1/ρ = (1 − w)/ρ_w + w·v_app,  v_app = (w + c2 + c3·t)/[(c0·w + c1)·exp(1e−6·(t + c4)²)]
+ *
+ * c0…c4 = 532.9199, 13692.588, 12.612726, 0.02664159, 649.0492; t in °C, ρ_w in kg/m³.
+ *
+ * Validity: 15–55 °C, w ≤ 0.507 (the sucrose data behind the parameters); above 50 % it is
+ * extrapolated (0.15 % below the sugar tables at 70 %, 20 °C; from memory).
+ * Source: M. Laliberté, W.E. Cooper, J. Chem. Eng. Data 49 (2004) 1141–1151 (model); M. Laliberté,
+ * J. Chem. Eng. Data 54 (2009) 1725–1760 (parameters).
+ *
+ * @param massFraction w, kg sucrose per kg solution
+ * @param temperature T, K (IF97 saturated liquid gives ρ_w)
+ * @returns ρ, kg/m³
+ * @example laliberteSucroseDensity(0.5, 293.15) // ≈ 1229.5 kg/m³ (sugar tables: 1229.6 kg/m³ at 50 %, 20 °C, from memory)
+ */
+export function laliberteSucroseDensity(massFraction: number, temperature: number): number {
+  const [c0, c1, c2, c3, c4] = SUCROSE_DENSITY;
+  const w = massFraction;
+  const t = temperature - KELVIN_OFFSET;
+  const apparentVolume = (w + c2 + c3 * t) / ((c0 * w + c1) * Math.exp(1e-6 * (t + c4) ** 2));
+  return 1 / ((1 - w) / saturatedLiquidAtTemperature(temperature).density + w * apparentVolume);
+}
+
+/**
+ * Thermal conductivity of a sucrose solution by Choi and Okos' rule for foods: the components'
+ * conductivities weighted by their volume fractions, with sucrose as their "carbohydrate".
+ *
+ *   k = Σ k_i·φ_i,  φ_i = (w_i/ρ_i)/Σ(w_j/ρ_j)   [W/(m·K)],  t in °C
+ *   k_water = 0.57109 + 1.7625e−3·t − 6.7036e−6·t²,  ρ_water = 997.18 + 3.1439e−3·t − 3.7574e−3·t²
+ *   k_carb  = 0.20141 + 1.3874e−3·t − 4.3312e−6·t²,  ρ_carb  = 1599.1 − 0.31046·t
+ *
+ * Component conductivities and the water density checked in an open-source implementation of
+ * the paper (a MATLAB food-process library); the carbohydrate density from memory. Its water
+ * conductivity is 1 % above IAPWS at 20 °C, 0.3 % at 50–100 °C.
+ *
+ * Validity: −40 to 150 °C (the component fits, from memory); a predictive rule, not a fit to
+ * sucrose data.
+ * Source: Y. Choi, M.R. Okos, "Effects of temperature and composition on the thermal properties
+ * of foods", in M. Le Maguer, P. Jelen (eds.), Food Engineering and Process Applications, vol. 1,
+ * Elsevier Applied Science, London (1986) 93–101 (editors and pages from memory).
+ *
+ * @param massFraction x, kg sucrose per kg solution
+ * @param temperature T, K
+ * @returns k, W/(m·K)
+ * @example choiOkosSucroseThermalConductivity(0.6, 293.15) // ≈ 0.4216 W/(m·K)
+ */
+export function choiOkosSucroseThermalConductivity(massFraction: number, temperature: number): number {
+  const t = temperature - KELVIN_OFFSET;
+  const kWater = 0.57109 + 1.7625e-3 * t - 6.7036e-6 * t * t;
+  const kCarb = 0.20141 + 1.3874e-3 * t - 4.3312e-6 * t * t;
+  const rhoWater = 997.18 + 3.1439e-3 * t - 3.7574e-3 * t * t;
+  const rhoCarb = 1599.1 - 0.31046 * t;
+  const vWater = (1 - massFraction) / rhoWater;
+  const vCarb = massFraction / rhoCarb;
+  return (kWater * vWater + kCarb * vCarb) / (vWater + vCarb);
+}
+
 const MASS_FRACTION_VALIDITY: Interval = { min: 0, max: 0.85 };
 const MASS_FRACTION_LIMITS: Interval = { min: 0, max: 0.95 };
 const TEMPERATURE_VALIDITY: Interval = { min: 273.15, max: 393.15 };
@@ -231,6 +325,47 @@ const HEAT_CAPACITY_MASS_FRACTION: Interval = { min: 0, max: 0.8 };
 const HEAT_CAPACITY_TEMPERATURE: Interval = { min: 273.15, max: 373.15 };
 const SOLUBILITY_VALIDITY: Interval = { min: 273.15, max: 373.15 };
 const SOLUBILITY_LIMITS: Interval = { min: 273.15, max: 403.15 };
+/** The box of each transport property's source (see the correlations above). */
+const TRANSPORT_BOXES = {
+  viscosity: { massFraction: { min: 0, max: 0.86 }, temperature: { min: 273.15, max: 353.15 } },
+  density: { massFraction: { min: 0, max: 0.507 }, temperature: { min: 288.15, max: 328.15 } },
+  thermalConductivity: { massFraction: { ...MASS_FRACTION_LIMITS }, temperature: { ...TEMPERATURE_LIMITS } },
+} as const;
+const PROPERTY_WORDS = {
+  viscosity: 'viscosity',
+  density: 'density',
+  thermalConductivity: 'thermal conductivity',
+};
+
+function checkTransport(
+  property: keyof typeof TRANSPORT_BOXES,
+  massFraction: number,
+  temperature: number,
+  warnings: WarningSink,
+): void {
+  const box = TRANSPORT_BOXES[property];
+  const words = PROPERTY_WORDS[property];
+  checkAgainst(
+    MODEL_ID,
+    'massFraction',
+    massFraction,
+    'kg/kg',
+    box.massFraction,
+    MASS_FRACTION_LIMITS,
+    warnings,
+    words,
+  );
+  checkAgainst(
+    MODEL_ID,
+    'temperature',
+    temperature,
+    'K',
+    box.temperature,
+    TEMPERATURE_LIMITS,
+    warnings,
+    words,
+  );
+}
 /** Pressures at which pure water boils inside the temperature box. */
 const PRESSURE_VALIDITY: Interval = {
   min: saturationPressure(TEMPERATURE_VALIDITY.min),
@@ -249,7 +384,8 @@ const validity: ValidityBox = {
     'Water activity (Starzak and Peacock 1997): about 0-0.85 kg/kg and 0-120 °C (data range from memory).',
     'Heat capacity and enthalpy (Lyle): 0-0.80 kg/kg, 0-100 °C (from memory); heat of dilution neglected.',
     'Solubility (Vavrinecz 1962): 0-100 °C; extrapolated to 130 °C.',
-    'Pure sucrose: impurities (non-sugars) raise the boiling point further and change the solubility.',
+    'Viscosity (Genotelle 1978): 0-0.86 kg/kg, 0-80 °C; density (Laliberté 2009 parameters): 0-0.507 kg/kg, 15-55 °C; thermal conductivity (Choi and Okos 1986, a predictive rule for foods): -40 to 150 °C. Outside these a "model-extrapolated" warning names the property.',
+    'Pure sucrose: impurities (non-sugars) raise the boiling point further and change the solubility and the viscosity.',
   ],
 };
 const limits: ValidityBox = {
@@ -273,6 +409,21 @@ const sources: Citation[] = [
     key: 'vavrinecz-1962',
     reference:
       'G. Vavrinecz, "Neue Tabelle über die Löslichkeit reiner Saccharose in Wasser", Zeitschrift für die Zuckerindustrie 12 (1962) 481-487',
+  },
+  {
+    key: 'genotelle-1978',
+    reference:
+      'J. Genotelle, "Expression de la viscosité des solutions sucrées", Industries Alimentaires et Agricoles 95 (1978) 747-755 (viscosity)',
+  },
+  {
+    key: 'laliberte-2009',
+    reference:
+      'M. Laliberté, W. E. Cooper, "Model for calculating the density of aqueous electrolyte solutions", Journal of Chemical & Engineering Data 49 (2004) 1141-1151, with the sucrose parameters of M. Laliberté, Journal of Chemical & Engineering Data 54 (2009) 1725-1760 (density)',
+  },
+  {
+    key: 'choi-okos-1986',
+    reference:
+      'Y. Choi, M. R. Okos, "Effects of temperature and composition on the thermal properties of foods", in Food Engineering and Process Applications, vol. 1, Elsevier Applied Science (1986) (thermal conductivity)',
   },
   if97CitationFor('water vapour pressure and pure-water parts'),
 ];
@@ -371,6 +522,31 @@ export const sucrose: LiquorModel = defineLiquorModel({
       });
     }
     return water + lyleHeatCapacity(massFraction, temperature) - lyleHeatCapacity(0, temperature);
+  },
+
+  transportValidity: {
+    viscosity: { ...TRANSPORT_BOXES.viscosity },
+    density: { ...TRANSPORT_BOXES.density },
+    thermalConductivity: { ...TRANSPORT_BOXES.thermalConductivity },
+  },
+
+  /** Genotelle (1978) as published (its own pure-water limit, see {@link genotelleViscosity}), Pa·s. */
+  viscosity(massFraction: number, temperature: number, warnings?: WarningSink): number {
+    checkTransport('viscosity', massFraction, temperature, warnings);
+    checkSaturation(massFraction, temperature, warnings);
+    return genotelleViscosity(massFraction, temperature);
+  },
+
+  /** Laliberté's density model with his sucrose parameters, on IF97 water, kg/m³. */
+  density(massFraction: number, temperature: number, warnings?: WarningSink): number {
+    checkTransport('density', massFraction, temperature, warnings);
+    return laliberteSucroseDensity(massFraction, temperature);
+  },
+
+  /** Choi and Okos' volume-fraction rule, W/(m·K). */
+  thermalConductivity(massFraction: number, temperature: number, warnings?: WarningSink): number {
+    checkTransport('thermalConductivity', massFraction, temperature, warnings);
+    return choiOkosSucroseThermalConductivity(massFraction, temperature);
   },
 
   /**

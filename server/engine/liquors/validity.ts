@@ -30,6 +30,11 @@ export function checkAgainst(
   validity: Interval,
   limits: Interval,
   warnings: WarningSink,
+  /**
+   * The property whose source's range `validity` is, in words ("viscosity"), when it is not the
+   * model's main data range: the warning then names it (and is kept apart from other properties').
+   */
+  property?: string,
 ): void {
   if (!Number.isFinite(value) || below(value, limits.min) || above(value, limits.max)) {
     throw new EngineRangeError(
@@ -42,16 +47,19 @@ export function checkAgainst(
     );
   }
   if (below(value, validity.min) || above(value, validity.max)) {
+    const range = property ? `${property} data range` : 'data range';
+    const what = property ? `the ${property} is extrapolated` : 'the result is extrapolated';
     addWarning(warnings, {
       code: 'model-extrapolated',
       field,
-      message: `${field} = ${value} ${unit} lies outside the ${modelId} model's data range (${validity.min} to ${validity.max} ${unit}); the result is extrapolated`,
+      message: `${field} = ${value} ${unit} lies outside the ${modelId} model's ${range} (${validity.min} to ${validity.max} ${unit}); ${what}`,
       validRange: { min: validity.min, max: validity.max, unit },
       ...templated(
-        `{field} = {value} lies outside the ${modelId} model's data range ({min} to {max}); the result is extrapolated`,
+        `{field} = {value} lies outside the ${modelId} model's ${range} ({min} to {max}); ${what}`,
         kindOfSiUnit(unit),
         { value, min: validity.min, max: validity.max },
       ),
+      ...(property ? { property } : {}),
     });
   }
 }

@@ -1034,3 +1034,126 @@ export function thermalConductivityAtDensity(temperature: number, density: numbe
   checkRange('density', density, 'kg/m³', 0, 1250);
   return packageConductivity(temperature, density) * 1e-3;
 }
+
+/** Density of liquid water at T: saturated liquid, or compressed liquid at p ≥ p_sat(T). */
+function liquidDensity(temperature: number, pressure?: number): number {
+  if (pressure === undefined) return saturatedLiquidAtTemperature(temperature).density;
+  checkRange('temperature', temperature, 'K', IF97.minTemperature, IF97.maxSaturationStateTemperature);
+  const pSat = saturationPressureLean(temperature);
+  checkRange('pressure', pressure, 'Pa', pSat, IF97.maxPressure);
+  return stateAtPT(pressure, temperature, { transport: false }).density;
+}
+
+/**
+ * Dynamic viscosity of liquid water at T (and p), the pure-water part of the liquor models'
+ * viscosities: IAPWS R12-08 ({@link viscosityAtDensity}) at the IF97 density of saturated liquid at
+ * T, or of compressed liquid at p when p is given (p ≥ p_sat(T)). The pressure effect is small in
+ * evaporators (about 0.01 % per bar near 100 °C), so liquor models call it without p.
+ *
+ *   μ = μ_R12-08(T, ρ_IF97(T[, p]))
+ *
+ * Validity: liquid, 273.15–647.095 K; p_sat(T) ≤ p ≤ 100 MPa.
+ * Source: IAPWS R12-08 (viscosity) with IAPWS R7-97(2012) ({@link IF97_CITATION}) densities.
+ *
+ * @param temperature T, K
+ * @param pressure p, Pa (optional; saturated liquid when left out)
+ * @returns μ, Pa·s
+ * @example liquidViscosity(373.15) // ≈ 2.81585e-4 Pa·s (python3-iapws _Viscosity at IF97 ρ_f, tests/fixtures/steam/water-transport.json)
+ */
+export function liquidViscosity(temperature: number, pressure?: number): number {
+  return viscosityAtDensity(temperature, liquidDensity(temperature, pressure));
+}
+
+/**
+ * Thermal conductivity of liquid water at T (and p), the pure-water part of the liquor models'
+ * conductivities: IAPWS R15-11 without the critical enhancement ({@link thermalConductivityAtDensity})
+ * at the IF97 density of saturated liquid at T, or of compressed liquid at p (p ≥ p_sat(T)). The
+ * missing enhancement matters only near the critical point, far above evaporator temperatures.
+ *
+ *   λ = λ_R15-11(T, ρ_IF97(T[, p])),  λ2 = 0
+ *
+ * Validity: liquid, 273.15–647.095 K (low near the critical point); p_sat(T) ≤ p ≤ 100 MPa.
+ * Source: IAPWS R15-11 (thermal conductivity) with IAPWS R7-97(2012) ({@link IF97_CITATION}) densities.
+ *
+ * @param temperature T, K
+ * @param pressure p, Pa (optional; saturated liquid when left out)
+ * @returns λ, W/(m·K)
+ * @example liquidThermalConductivity(373.15) // ≈ 0.677217 W/(m·K) (python3-iapws _ThCond at IF97 ρ_f, tests/fixtures/steam/water-transport.json)
+ */
+export function liquidThermalConductivity(temperature: number, pressure?: number): number {
+  return thermalConductivityAtDensity(temperature, liquidDensity(temperature, pressure));
+}
+
+/** Lowest temperature of the IAPWS surface-tension release (supercooled liquid), K. */
+const SURFACE_TENSION_MIN_TEMPERATURE = 248.15;
+
+/**
+ * Surface tension of water against its vapour (IAPWS 1994 release, reaffirmed 2014).
+ *
+ *   σ = B·τ^μ·(1 + b·τ),  τ = 1 − T/Tc,  B = 235.8e−3 N/m, b = −0.625, μ = 1.256, Tc = 647.096 K
+ *
+ * Validity: 248.15 K (supercooled) to Tc = 647.096 K; ±0.5 % near 0–100 °C (release's uncertainty,
+ * from memory).
+ * Source: IAPWS R1-76(2014), "Revised Release on Surface Tension of Ordinary Water Substance"
+ * (first issued 1976, revised 1994 and 2014).
+ *
+ * @param temperature T, K
+ * @returns σ, N/m
+ * @example waterSurfaceTension(300) // ≈ 0.0716859625 N/m (IAPWS R1-76 table and python3-iapws _Tension(300): 0.0716859625)
+ * @example waterSurfaceTension(373.15) // ≈ 0.05891 N/m
+ */
+export function waterSurfaceTension(temperature: number): number {
+  checkRange('temperature', temperature, 'K', SURFACE_TENSION_MIN_TEMPERATURE, IF97.criticalTemperature);
+  const tau = 1 - temperature / IF97.criticalTemperature;
+  return 235.8e-3 * tau ** 1.256 * (1 - 0.625 * tau);
+}
+
+// ---------------------------------------------------------------------------------------------
+// Transport: saturated-liquid properties for film coefficients (heat-transfer estimate)
+// ---------------------------------------------------------------------------------------------
+
+/** Saturated liquid water at T with what a film coefficient needs, SI. */
+export interface SaturatedLiquidTransport {
+  /** K */
+  temperature: number;
+  /** Saturation pressure, Pa. */
+  pressure: number;
+  /** kg/m³ */
+  density: number;
+  /** Isobaric heat capacity, J/(kg·K). */
+  heatCapacity: number;
+  /** Dynamic viscosity, Pa·s (IAPWS R12-08, μ2 = 1). */
+  viscosity: number;
+  /** W/(m·K) (IAPWS R15-11 without the critical enhancement). */
+  thermalConductivity: number;
+}
+
+/**
+ * Saturated liquid water at temperature T with its density, heat capacity, viscosity and thermal
+ * conductivity: the properties of a condensate film or a water film, evaluated in one call on the
+ * lean path (IF97 region 1 up to 623.15 K, no state object) and the package's transport functions.
+ *
+ * Validity: 273.15 K to 623.15 K (region 1 of IF97; heat-transfer films of evaporators lie far
+ * below), transport releases to 1173.15 K.
+ * Source: IAPWS R7-97(2012) ({@link IF97_CITATION}) for ρ and c_p; IAPWS R12-08 (viscosity, μ2 = 1)
+ * and IAPWS R15-11 (thermal conductivity, without λ2) as in {@link viscosityAtDensity} and
+ * {@link thermalConductivityAtDensity}.
+ *
+ * @param temperature T, K
+ * @returns p_s, ρ, c_p, μ and λ of the saturated liquid, SI
+ * @example saturatedLiquidTransport(373.15).viscosity // ≈ 2.81585e-4 Pa·s (python3-iapws IAPWS97(T=373.15, x=0).mu: 2.81585e-4 Pa·s)
+ */
+export function saturatedLiquidTransport(temperature: number): SaturatedLiquidTransport {
+  checkRange('temperature', temperature, 'K', IF97.minTemperature, IF97.region13Temperature);
+  const pressure = saturationPressureLean(temperature);
+  const raw = leanProps(1, pressure, temperature);
+  const density = 1 / raw.v;
+  return {
+    temperature,
+    pressure,
+    density,
+    heatCapacity: raw.cp,
+    viscosity: packageViscosity(temperature, density) * 1e-6,
+    thermalConductivity: packageConductivity(temperature, density) * 1e-3,
+  };
+}

@@ -138,7 +138,10 @@ export function reauthenticate(deps: AppDeps): RequestHandler {
         token === undefined
           ? ({ ok: false, reason: 'malformed' } as const)
           : authenticateToken(deps.sqlite, deps.config.secret, token, deps.clock());
-      if (!result.ok) throw unauthorized(result.reason);
+      if (!result.ok) {
+        res.locals.meter?.keyRefused();
+        throw unauthorized(result.reason);
+      }
     };
     // Multipart bodies are read by the route (upload.ts), which calls this again when done.
     res.locals.recheckKey = recheck;

@@ -32,6 +32,11 @@ export interface MeterState {
   usedByOthers(): number;
   /** What `usedByOthers()` returned at the last charge (to see whether this request crossed a quota-notice threshold). */
   usedByOthersAtCharge?: number;
+  /**
+   * The key was refused on the second check, after the body: the request is logged for its
+   * account like a 401 at the door, with no usage event (a refused key costs and counts nothing).
+   */
+  keyRefused(): void;
 }
 
 declare global {

@@ -94,7 +94,7 @@ class MeteredRequest implements MeterState {
     private readonly res: Response,
     private readonly auth: AuthContext,
     /** A refused key's request: logged for its account, never metered (see `logRefusal`). */
-    private readonly logOnly = false,
+    private logOnly = false,
   ) {
     this.quota = auth.monthlyUnitQuota;
     let siblings = ctx.inFlight.get(auth.accountId);
@@ -107,6 +107,11 @@ class MeteredRequest implements MeterState {
     this.originalEnd = res.end.bind(res) as (...args: unknown[]) => Response;
     this.token = auth.retainRequestBodies ? presentedToken(req.get('authorization')) : undefined;
     keepRequestIdKeyFree(req, res, ctx.deps.config.bootstrapApiKey);
+  }
+
+  /** The key was refused after the body arrived (revoked or expired meanwhile): log, never meter. */
+  keyRefused(): void {
+    this.logOnly = true;
   }
 
   usedByOthers(): number {

@@ -28,7 +28,7 @@ import {
 } from '../../workers/engine-tasks.js';
 import { EngineCallError, type EnginePool } from '../../workers/engine-pool.js';
 import { calculate, type FieldMap } from '../engine-errors.js';
-import { chargeUnits, guardOperation } from '../middleware/operation.js';
+import { chargeUnits, guardOperation, releaseUnits } from '../middleware/operation.js';
 import { problem, type ProblemError } from '../problem.js';
 import { siPlan, toSI, type SI, type SiPlan } from '../quantities.js';
 import { sendCalculation } from '../send.js';
@@ -43,6 +43,11 @@ export interface OperationContext {
   clock: () => Date;
   /** The worker threads of heavy calculations (absent: everything inline). */
   enginePool?: EnginePool;
+  /**
+   * Gives back units of this request's charge for work that was refused after all (a study's
+   * infeasible candidates, as a batch's failed cases). Absent where nothing can be given back.
+   */
+  releaseUnits?: (units: number) => void;
 }
 
 type Out<S> = S extends z.ZodType ? z.output<S> : undefined;
@@ -56,7 +61,7 @@ export interface OperationInput<P, Q, B, L> {
   loaded: L;
 }
 
-export type OpenApiTag = 'Steam' | 'Liquors' | 'Evaporators' | 'Batch' | 'Usage';
+export type OpenApiTag = 'Steam' | 'Liquors' | 'Evaporators' | 'Studies' | 'Batch' | 'Usage';
 
 export interface OperationDeclaration<
   P extends z.ZodType | undefined = z.ZodType | undefined,
@@ -317,6 +322,7 @@ function contextOf(res: Response, deps: AppDeps): OperationContext {
     engineVersion: deps.engineVersion,
     clock: deps.clock,
     ...(deps.enginePool ? { enginePool: deps.enginePool } : {}),
+    releaseUnits: (units) => releaseUnits(res, units),
   };
 }
 

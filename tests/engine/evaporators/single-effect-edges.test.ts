@@ -11,6 +11,7 @@ import {
 } from '../../../server/engine/evaporators/single-effect.js';
 import { EngineInputError } from '../../../server/engine/errors.js';
 import { createCustomLiquor } from '../../../server/engine/liquors/custom.js';
+import type { LiquorModel } from '../../../server/engine/liquors/model.js';
 import { sodiumHydroxide } from '../../../server/engine/liquors/sodium-hydroxide.js';
 import { sucrose } from '../../../server/engine/liquors/sucrose.js';
 import { saturatedLiquidEnthalpy, saturatedVaporEnthalpy } from '../../../server/engine/steam/if97.js';
@@ -18,9 +19,12 @@ import { saturatedLiquidEnthalpy, saturatedVaporEnthalpy } from '../../../server
 const G = 9.80665; // standard gravity, CGPM 1901 (exact)
 const rel = (a: number, b: number) => Math.abs(a - b) / Math.abs(b);
 
+/** The NaOH model with its density taken away: a liquor without a density model. */
+const causticWithoutDensity: LiquorModel = { ...sodiumHydroxide, density: undefined };
+
 /** 10 % NaOH at 56.85 °C, 10 kg/s; steam 500 kPa; body 77 kPa; U = 1500 W/(m²·K); head 2 m. */
-const caustic = (x: number): SingleEffectDesignInput => ({
-  liquor: sodiumHydroxide,
+const caustic = (x: number, liquor: LiquorModel = causticWithoutDensity): SingleEffectDesignInput => ({
+  liquor,
   feed: { massFlow: 10, massFraction: 0.1, temperature: 330 },
   product: { massFraction: x },
   steam: { pressure: 500e3 },
@@ -48,6 +52,16 @@ describe('liquid head of a liquor without a density model', () => {
     // the liquor surface boils here near 100.3 °C, so the density is within 1 kg/m³ of it.
     expect(Math.abs(rho - 958.35)).toBeLessThan(1);
     expect(r.warnings.find((w) => w.code === 'density-assumed-water')?.message).toMatch(/958\.\d kg\/m³/);
+  });
+
+  it('takes the head from the liquor’s own density once the model gives one (NaOH, Laliberté)', () => {
+    const r = designSingleEffect(caustic(0.2003, sodiumHydroxide));
+    const rho = (2 * (r.body.meanBoilingPressure - r.body.pressure)) / (G * 2);
+    // The model’s density at the surface boiling point (1168 kg/m³ for 20 % NaOH at 100.3 °C, near
+    // 100 °C; handbook tables give about 1219 kg/m³ at 20 °C, from memory).
+    const expected = sodiumHydroxide.density?.(0.2003, r.product.temperature) as number;
+    expect(rel(rho, expected)).toBeLessThan(1e-3);
+    expect(r.warnings.some((w) => w.code === 'density-assumed-water')).toBe(false);
   });
 
   it('rates a custom polynomial liquor with a head at the area it was designed for', () => {

@@ -249,12 +249,13 @@ describe('sodium-hydroxide: validity and limits', () => {
 });
 
 describe('sodium-hydroxide: description', () => {
-  it('carries the burn and caustic-cracking cautions and cites Olsson et al. 1997', () => {
+  it('carries the burn and caustic-cracking cautions and cites Olsson et al. 1997 and Laliberté', () => {
     const codes = sodiumHydroxide.cautions.map((c) => c.code);
     expect(codes).toContain('hot-caustic-burns');
     expect(codes).toContain('caustic-stress-corrosion-cracking');
     expect(sodiumHydroxide.sources.map((s) => s.key)).toContain('olsson-1997');
-    expect(sodiumHydroxide.density).toBeUndefined();
+    expect(sodiumHydroxide.sources.map((s) => s.key)).toContain('laliberte-cooper-2004');
+    expect(typeof sodiumHydroxide.density).toBe('function');
     expect(sodiumHydroxide.solubilityLimit).toBeUndefined();
   });
 });

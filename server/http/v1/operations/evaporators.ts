@@ -14,7 +14,11 @@ import {
 } from '../../../../shared/contracts/index.js';
 import { operationCatalogue } from '../../../../shared/operations.js';
 import type { SteamSupplySpec } from '../../../engine/evaporators/common.js';
-import type { MultipleEffectResult } from '../../../engine/evaporators/multiple-effect.js';
+import type { FiguresOfMerit } from '../../../engine/evaporators/figures-of-merit.js';
+import type {
+  MultipleEffectResult,
+  ThermocompressorSpec,
+} from '../../../engine/evaporators/multiple-effect.js';
 import type { SingleEffectResult, StreamState } from '../../../engine/evaporators/single-effect.js';
 import type { MultipleEffectTask, SingleEffectTask } from '../../../workers/engine-tasks.js';
 import { resolveLiquor } from '../../../liquors/index.js';
@@ -22,6 +26,7 @@ import { warningsOut, type FieldMap } from '../../engine-errors.js';
 import { display, provenance, r } from '../../output.js';
 import { problem } from '../../problem.js';
 import { declareOperation, type OperationContext } from '../operation.js';
+import { coefficientData, effectBreakdownOut, estimateUnits, type EstimateInput } from './heat-transfer.js';
 import { IF97_MODEL } from './steam.js';
 
 function stream(s: StreamState) {
@@ -30,6 +35,31 @@ function stream(s: StreamState) {
     massFraction: r(s.massFraction),
     temperature: display(s.temperature, 'temperature'),
     enthalpy: display(s.enthalpy, 'specificEnthalpy'),
+  };
+}
+
+/** J/m³ → kWh/m³ (the figures of merit's energy per volume of distillate). */
+const J_PER_KWH = 3.6e6;
+
+/**
+ * The figures of merit when asked for, or by default for the seawater liquor (desalination);
+ * nothing otherwise, so other results keep their shape.
+ */
+export function figuresOut(fom: FiguresOfMerit, asked: boolean | undefined, liquorId: string) {
+  if (!(asked ?? liquorId === 'seawater')) return {};
+  const nullable = (v: number | null) => (v === null ? null : r(v));
+  return {
+    figuresOfMerit: {
+      gainOutputRatio: nullable(fom.gainOutputRatio),
+      performanceRatio: nullable(fom.performanceRatio),
+      specificHeatTransferArea: nullable(fom.specificHeatTransferArea),
+      specificThermalEnergy: nullable(
+        fom.specificThermalEnergy === null ? null : fom.specificThermalEnergy / J_PER_KWH,
+      ),
+      specificElectricEnergy: nullable(
+        fom.specificElectricEnergy === null ? null : fom.specificElectricEnergy / J_PER_KWH,
+      ),
+    },
   };
 }
 
@@ -44,7 +74,7 @@ const SINGLE_EFFECT_FIELDS: FieldMap = {
 // The engine names the last effect's pressure itself, and labels what a liquor model refuses
 // inside effect i as effects[i].pressure / .boilingTemperature / .massFraction; a bare
 // "pressure" is not the last effect's.
-const MULTIPLE_EFFECT_FIELDS: FieldMap = {
+export const MULTIPLE_EFFECT_FIELDS: FieldMap = {
   ...SINGLE_EFFECT_FIELDS,
   pressure: 'pressure',
   massFraction: 'product.massFraction',
@@ -65,6 +95,27 @@ function steamSpec(s: {
   };
 }
 
+/** The tube of an `{ estimate }` coefficient (SI), for its breakdown. */
+function estimateTube(given: unknown): { outsideDiameter: number; length: number } {
+  return (given as { estimate: EstimateInput }).estimate.tube;
+}
+
+/** The body's `overallHeatTransferCoefficient` of a raw single-effect or MVR request. */
+function bodyCoefficient(body: unknown): unknown {
+  return (body as { body?: { overallHeatTransferCoefficient?: unknown } } | undefined)?.body
+    ?.overallHeatTransferCoefficient;
+}
+
+/** Units beyond the base of a request whose body's U may be an estimate (the estimate's units). */
+export function bodyEstimateUnits(body: unknown): number | undefined {
+  return estimateUnits(bodyCoefficient(body)) || undefined;
+}
+
+/** Units of a single-effect or MVR batch case: base + the estimate's, if U is estimated. */
+export function bodyEstimateCaseUnits(base: number): (c: Record<string, unknown>) => number {
+  return (c) => base + estimateUnits(bodyCoefficient(c));
+}
+
 /** The liquor of an evaporator request (inline, built-in or stored), found once the body is valid. */
 function bodyLiquor(parts: { body: { liquor: Parameters<typeof resolveLiquor>[0] } }, ctx: OperationContext) {
   return resolveLiquor(parts.body.liquor, ctx.db, ctx.accountId, 'liquor');
@@ -79,6 +130,8 @@ export const singleEffect = declareOperation({
   summary: 'Single-effect evaporator: design (area from product) or rating (product from area)',
   description:
     'Mass and energy balances with the boiling-point rise included in ΔT = T_steam − T_boiling. ' +
+    '`body.overallHeatTransferCoefficient` is a number, or `{ "estimate": { evaporatorType, tube, flow, fouling?, liquorProperties? } }`: the inputs of POST /v1/heat-transfer/overall-coefficient without the liquor state, which comes from the solved effect (product mass fraction, mean boiling temperature and pressure, steam condensing temperature); in rating U is re-evaluated inside the root search. U and the area then refer to the OUTSIDE area of the tubes, and `heatTransfer` reports the estimate with its resistances. ' +
+    `An estimate costs ${operationCatalogue.overallCoefficient.units} units on top of the ${operationCatalogue.singleEffect.units} of the calculation (in a batch too). ` +
     'Example: an invented caustic concentrator at Harrow Vale works taking 4.5 t/h of 10 % NaOH to 30 %.',
   request: {
     body: SingleEffectRequestSchema,
@@ -116,7 +169,11 @@ export const singleEffect = declareOperation({
       const { liquidHeight, area } = b.body;
       const bodySpec = {
         pressure: b.body.pressure,
-        overallHeatTransferCoefficient: b.body.overallHeatTransferCoefficient,
+        // A number, or the estimate's inputs as data: the task rebuilds the provider beside the liquor.
+        overallHeatTransferCoefficient: coefficientData(
+          b.body.overallHeatTransferCoefficient,
+          'body.overallHeatTransferCoefficient',
+        ),
         ...(liquidHeight !== undefined ? { liquidHeight } : {}),
       };
       const common = {
@@ -173,7 +230,7 @@ export const singleEffect = declareOperation({
         },
       };
     },
-    output: (result: SingleEffectResult, { loaded: liquor }, ctx): SingleEffectResponse => {
+    output: (result: SingleEffectResult, { body: b, loaded: liquor }, ctx): SingleEffectResponse => {
       return {
         mode: result.mode,
         feed: stream(result.feed),
@@ -198,12 +255,24 @@ export const singleEffect = declareOperation({
         specificSteamConsumption: r(result.specificSteamConsumption),
         waterBoilingPoint: display(result.waterBoilingPoint, 'temperature'),
         heatLoss: display(result.heatLoss, 'power'),
+        ...figuresOut(result.figuresOfMerit, b.figuresOfMerit, liquor.model.id),
+        ...(result.heatTransfer
+          ? {
+              heatTransfer: effectBreakdownOut(
+                result.heatTransfer,
+                { massFraction: result.product.massFraction, bodyPressure: result.body.meanBoilingPressure },
+                estimateTube(b.body.overallHeatTransferCoefficient),
+              ),
+            }
+          : {}),
         warnings: warningsOut([...liquor.definitionWarnings, ...result.warnings], SINGLE_EFFECT_FIELDS),
         cautions: result.cautions,
-        provenance: provenance(ctx.engineVersion, [IF97_MODEL, ...liquor.models]),
+        provenance: provenance(ctx.engineVersion, [IF97_MODEL, ...liquor.models, ...estimateSources(result)]),
       };
     },
   },
+  extraUnits: bodyEstimateUnits,
+  batch: { units: bodyEstimateCaseUnits(operationCatalogue.singleEffect.units) },
 });
 
 /**
@@ -215,17 +284,65 @@ export const singleEffect = declareOperation({
  */
 export const POOLED_EFFECTS = 5;
 
-/** Units beyond the base of a multiple-effect request: `unitsPerEffect` × effects (1 to 10). */
+/** The correlations behind the estimates of a result's effects, for `provenance`. */
+export function estimateSources(
+  ...results: ({ heatTransfer?: { sources: { key: string; reference: string }[] } } | undefined)[]
+): { id: string; source: string }[] {
+  const seen = new Map<string, string>();
+  for (const r of results) {
+    for (const s of r?.heatTransfer?.sources ?? []) if (s.key !== IF97_MODEL.id) seen.set(s.key, s.reference);
+  }
+  return [...seen].map(([id, source]) => ({ id, source }));
+}
+
+/** The request's thermocompressor in SI → the engine's spec (absent optional fields left out). */
+function thermocompressorSpec(t: {
+  motivePressure: number;
+  motiveSuperheat?: number;
+  entrainedFromEffect?: number;
+}): ThermocompressorSpec {
+  return {
+    motivePressure: t.motivePressure,
+    ...(t.motiveSuperheat !== undefined ? { motiveSuperheat: t.motiveSuperheat } : {}),
+    ...(t.entrainedFromEffect !== undefined ? { entrainedFromEffect: t.entrainedFromEffect } : {}),
+  };
+}
+
+function thermocompressorOut(t: NonNullable<MultipleEffectResult['thermocompressor']>) {
+  return {
+    motiveSteamFlow: r(t.motiveSteamFlow),
+    entrainedVaporFlow: r(t.entrainedVaporFlow),
+    entrainmentRatio: r(t.entrainmentRatio),
+    motivePerEntrained: r(t.motivePerEntrained),
+    compressionRatio: r(t.compressionRatio),
+    expansionRatio: r(t.expansionRatio),
+    entrainedFromEffect: t.entrainedFromEffect,
+    suctionPressure: display(t.suctionPressure, 'pressure'),
+    dischargeEnthalpy: display(t.dischargeEnthalpy, 'specificEnthalpy'),
+    dischargeTemperature: display(t.dischargeTemperature, 'temperature'),
+  };
+}
+
+/**
+ * Units beyond the base of a multiple-effect request: `unitsPerEffect` × effects (1 to 10), plus
+ * the overall-coefficient estimate's units for each effect whose U is `{ estimate }`.
+ */
 function perEffectUnits(body: unknown): number | undefined {
   const effects = (body as { effects?: unknown } | undefined)?.effects;
   return Number.isInteger(effects) && (effects as number) > 0 && (effects as number) <= 10
-    ? operationCatalogue.multipleEffect.unitsPerEffect * (effects as number)
+    ? operationCatalogue.multipleEffect.unitsPerEffect * (effects as number) +
+        estimateUnits((body as { overallHeatTransferCoefficients?: unknown }).overallHeatTransferCoefficients)
     : undefined;
 }
 
 /** Units of a multiple-effect batch case: base + per effect, a case with no readable count as one effect. */
 export function multipleEffectCaseUnits(c: Record<string, unknown>): number {
-  return operationCatalogue.multipleEffect.units + (perEffectUnits(c) ?? perEffectUnits({ effects: 1 })!);
+  return (
+    operationCatalogue.multipleEffect.units +
+    (perEffectUnits(c) ??
+      operationCatalogue.multipleEffect.unitsPerEffect +
+        estimateUnits((c as { overallHeatTransferCoefficients?: unknown }).overallHeatTransferCoefficients))
+  );
 }
 
 export const multipleEffect = declareOperation({
@@ -235,6 +352,9 @@ export const multipleEffect = declareOperation({
   openApiName: 'postMultipleEffect',
   tag: 'Evaporators',
   summary: 'Multiple-effect train (forward, backward, parallel or mixed feed), equal-area design or rating',
+  description:
+    'Each entry of `overallHeatTransferCoefficients` is a number, or `{ "estimate": { evaporatorType, tube, flow, fouling?, liquorProperties? } }`: the inputs of POST /v1/heat-transfer/overall-coefficient without the liquor state, which comes from that effect while the train is solved (its liquor’s mass fraction, boiling point and pressure, and the condensing temperature of its heating steam or vapour; re-evaluated every iteration). Each entry has its own tube and flow: a wetting rate or flow per tube is taken as given, the same in every effect that repeats it. An estimated effect’s U and area refer to the OUTSIDE area of its tubes, and `effects[i].heatTransfer` reports the estimate. ' +
+    `Costs ${operationCatalogue.multipleEffect.units} units + ${operationCatalogue.multipleEffect.unitsPerEffect} per effect + ${operationCatalogue.overallCoefficient.units} per estimated effect (in a batch too).`,
   request: {
     body: MultipleEffectRequestSchema,
     example: {
@@ -271,19 +391,22 @@ export const multipleEffect = declareOperation({
         feed,
         steam: steamSpec(b.steam),
         lastEffectPressure: b.lastEffectPressure,
-        overallHeatTransferCoefficients: b.overallHeatTransferCoefficients,
+        overallHeatTransferCoefficients: b.overallHeatTransferCoefficients.map((u, i) =>
+          coefficientData(u, `overallHeatTransferCoefficients[${i}]`, `effect ${i + 1}`),
+        ),
         feedArrangement: b.feedArrangement,
         ...(b.vaporBleeds ? { vaporBleeds: b.vaporBleeds } : {}),
         ...(productMassFraction !== undefined ? { productMassFraction } : {}),
         ...(b.feedPreheat ? { feedPreheat: b.feedPreheat } : {}),
         ...(b.condensateFlash !== undefined ? { condensateFlash: b.condensateFlash } : {}),
+        ...(b.thermocompressor ? { thermocompressor: thermocompressorSpec(b.thermocompressor) } : {}),
       };
       if (b.areas) return { mode: 'rating', spec: { ...input, areas: b.areas } };
       return { mode: 'design', spec: input };
     },
-    output: (result: MultipleEffectResult, { loaded: liquor }, ctx): MultipleEffectResponse => {
+    output: (result: MultipleEffectResult, { body: b, loaded: liquor }, ctx): MultipleEffectResponse => {
       return {
-        effects: result.effects.map((e) => ({
+        effects: result.effects.map((e, i) => ({
           pressure: display(e.pressure, 'pressure'),
           vaporTemperature: display(e.vaporTemperature, 'temperature'),
           boilingPoint: display(e.boilingPoint, 'temperature'),
@@ -295,6 +418,16 @@ export const multipleEffect = declareOperation({
           duty: display(e.duty, 'power'),
           area: r(e.area),
           vaporBleed: r(e.vaporBleed),
+          flashVapor: r(e.flashVapor),
+          ...(e.heatTransfer
+            ? {
+                heatTransfer: effectBreakdownOut(
+                  e.heatTransfer,
+                  { massFraction: e.massFraction, bodyPressure: e.pressure },
+                  estimateTube(b.overallHeatTransferCoefficients[i]),
+                ),
+              }
+            : {}),
         })),
         steam: {
           massFlow: r(result.steam.massFlow),
@@ -309,9 +442,17 @@ export const multipleEffect = declareOperation({
         iterations: result.iterations,
         residual: result.residual,
         feedPreheatDuty: display(result.feedPreheat?.duty ?? 0, 'power'),
+        ...(result.thermocompressor
+          ? { thermocompressor: thermocompressorOut(result.thermocompressor) }
+          : {}),
+        ...figuresOut(result.figuresOfMerit, b.figuresOfMerit, liquor.model.id),
         warnings: warningsOut([...liquor.definitionWarnings, ...result.warnings], MULTIPLE_EFFECT_FIELDS),
         cautions: result.cautions,
-        provenance: provenance(ctx.engineVersion, [IF97_MODEL, ...liquor.models]),
+        provenance: provenance(ctx.engineVersion, [
+          IF97_MODEL,
+          ...liquor.models,
+          ...estimateSources(...result.effects),
+        ]),
       };
     },
   },

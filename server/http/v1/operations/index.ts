@@ -6,6 +6,8 @@
 import type { AnyOperation } from '../operation.js';
 import { batchOperation } from './batch.js';
 import { multipleEffect, singleEffect } from './evaporators.js';
+import { mechanicalVaporRecompressionOperation } from './recompression.js';
+import { overallCoefficient } from './heat-transfer.js';
 import { liquorBoilingPoint, liquorEnthalpy, liquorGet, liquorList } from './liquors.js';
 import { steamSaturation, steamState } from './steam.js';
 import {
@@ -14,6 +16,7 @@ import {
   storedLiquorList,
   storedLiquorUpdate,
 } from './stored-liquors.js';
+import { evaporatorSchemeStudy } from './studies.js';
 import { usageRead } from './usage.js';
 
 const calculations: AnyOperation[] = [
@@ -29,11 +32,14 @@ const calculations: AnyOperation[] = [
   liquorEnthalpy,
   singleEffect,
   multipleEffect,
+  mechanicalVaporRecompressionOperation,
+  overallCoefficient,
 ];
 
 export const v1Operations: readonly AnyOperation[] = [
   ...calculations,
   batchOperation(calculations),
+  evaporatorSchemeStudy,
   usageRead,
 ];
 
