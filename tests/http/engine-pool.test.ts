@@ -129,6 +129,138 @@ describe('the calculation pool', () => {
     expect(bits(viaPool)).toBe(bits(viaMain));
   });
 
+  it('answers multiple-effect trains with { estimate } U through its threads bit for bit as inline, breakdowns, TVR, flash, figures and refusals included', async () => {
+    const inline = harness(pool({ workers: 0 }));
+    const pooled = harness(pool({ workers: 2 }));
+    // Invented tubes (demo only); the estimate's correlations and fouling are the engine's own.
+    const juiceTube = {
+      evaporatorType: 'falling-film',
+      tube: { outsideDiameter: '50.8 mm', wallThickness: '1.6 mm', length: 8, material: 'stainless-304' },
+      flow: { wettingRate: 1 },
+    };
+    const brineTube = {
+      evaporatorType: 'falling-film',
+      tube: { outsideDiameter: '50.8 mm', wallThickness: '1.6 mm', length: 8, material: 'titanium-grade-2' },
+      flow: { wettingRate: '1800 kg/(m*h)' },
+    };
+    const estimated = (n: number, estimate: object) => Array.from({ length: n }, () => ({ estimate }));
+    const juice = (n: number, extra: Record<string, unknown> = {}) =>
+      train(n, 'sucrose', {
+        feedArrangement: 'forward',
+        feed: { massFlow: '72 t/h', massFraction: '15 Bx', temperature: 95 },
+        product: { massFraction: '65 Bx' },
+        steam: { pressure: 300 },
+        overallHeatTransferCoefficients: estimated(n, juiceTube),
+        ...extra,
+      });
+    const brine = (n: number, extra: Record<string, unknown> = {}) =>
+      train(n, 'seawater', {
+        feedArrangement: 'forward',
+        feed: { massFlow: 10, massFraction: 0.035, temperature: 60 },
+        product: { massFraction: 0.07 },
+        steam: { temperature: 80 },
+        lastEffectPressure: 20,
+        overallHeatTransferCoefficients: estimated(n, brineTube),
+        ...extra,
+      });
+    const cases = [
+      juice(6),
+      juice(4, {
+        overallHeatTransferCoefficients: [2800, { estimate: juiceTube }, 1800, { estimate: juiceTube }],
+      }),
+      // rating a little more area than the design needs (≈ 472 m² each): U re-estimated as the state moves
+      juice(3, { areas: [500, 500, 500], product: {} }),
+      brine(4), // seawater: figures of merit by default
+      brine(3, { thermocompressor: { motivePressure: 1000 }, condensateFlash: true }),
+      // refused inside the task: NaOH gives no thermal conductivity; names effect 2's estimate field
+      train(3, 'sodium-hydroxide', {
+        overallHeatTransferCoefficients: [1500, { estimate: juiceTube }, 1500],
+      }),
+    ];
+    const answers: unknown[][] = [[], []];
+    for (const [i, h] of [inline, pooled].entries()) {
+      const res = await request(h.app)
+        .post('/v1/batch')
+        .set(auth(h))
+        .send({ operation: 'multiple-effect', cases });
+      expect(res.status).toBe(200);
+      answers[i]!.push(res.body);
+      // A single call past the crossover (POOLED_EFFECTS) goes to the pool with its estimates too.
+      const one = await request(h.app).post('/v1/evaporators/multiple-effect').set(auth(h)).send(juice(6));
+      expect(one.status).toBe(200);
+      answers[i]!.push(one.body);
+    }
+    const [viaMain, viaPool] = answers as [unknown[], unknown[]];
+    type Effect = { heatTransfer?: { area: string; overallHeatTransferCoefficient: number } };
+    const batch = viaPool[0] as {
+      succeeded: number;
+      failed: number;
+      results: {
+        status: string;
+        result?: { effects: Effect[]; thermocompressor?: unknown; figuresOfMerit?: unknown };
+        problem?: { errors?: { field: string }[] };
+      }[];
+    };
+    expect(batch).toMatchObject({ succeeded: 5, failed: 1 });
+    const [all, mixed, rated, seawater, tvr, refused] = batch.results;
+    expect(rated!.result!.effects.every((e) => e.heatTransfer?.area === 'outside')).toBe(true);
+    expect(all!.result!.effects.every((e) => e.heatTransfer?.area === 'outside')).toBe(true);
+    expect(mixed!.result!.effects.map((e) => e.heatTransfer !== undefined)).toEqual([
+      false,
+      true,
+      false,
+      true,
+    ]);
+    expect(seawater!.result!.figuresOfMerit).toBeDefined();
+    expect(tvr!.result!.thermocompressor).toBeDefined();
+    expect(refused!.problem!.errors![0]!.field).toBe(
+      'cases[5].overallHeatTransferCoefficients[1].estimate.liquorProperties.thermalConductivity',
+    );
+    expect(bits(viaPool)).toBe(bits(viaMain));
+  });
+
+  it('answers batches of MVR and of the U estimate (inline parts, no engine task) beside a pool as without one', async () => {
+    const inline = harness(pool({ workers: 0 }));
+    const pooled = harness(pool({ workers: 2 }));
+    const fallingFilm = {
+      evaporatorType: 'falling-film',
+      tube: { outsideDiameter: '50.8 mm', wallThickness: '1.6 mm', length: 8, material: 'titanium-grade-2' },
+      flow: { wettingRate: '1800 kg/(m*h)' },
+    };
+    // Invented seawater duties (demo only).
+    const mvr = (u: unknown) => ({
+      liquor: 'seawater',
+      feed: { massFlow: 10, massFraction: 0.035, temperature: 60 },
+      product: { massFraction: 0.07 },
+      body: { pressure: 31, overallHeatTransferCoefficient: u, temperatureDifference: 5 },
+    });
+    const estimate = (massFraction: number) => ({
+      ...fallingFilm,
+      liquor: 'seawater',
+      massFraction,
+      bodyPressure: 31,
+      steam: { temperature: 80 },
+    });
+    const batches = [
+      { operation: 'mechanical-vapor-recompression', cases: [mvr({ estimate: fallingFilm }), mvr(1500)] },
+      { operation: 'overall-coefficient', cases: [estimate(0.035), estimate(0.07), estimate(1.5)] },
+    ];
+    const answers: { succeeded: number; failed: number; unitsCharged: number }[][] = [[], []];
+    for (const [i, h] of [inline, pooled].entries()) {
+      for (const body of batches) {
+        const res = await request(h.app).post('/v1/batch').set(auth(h)).send(body);
+        expect(res.status).toBe(200);
+        answers[i]!.push(res.body);
+      }
+    }
+    const [viaMain, viaPool] = answers as [(typeof answers)[0], (typeof answers)[0]];
+    expect(viaPool.map((b) => [b.succeeded, b.failed])).toEqual([
+      [2, 0],
+      [2, 1], // a mass fraction of 1.5 is refused
+    ]);
+    expect(bits(viaPool)).toBe(bits(viaMain));
+  });
+
   it('loads its TypeScript worker under `node --import tsx`, the way the server runs', () => {
     const out = execFileSync(process.execPath, ['--import', 'tsx', 'tests/support/engine-pool-smoke.ts'], {
       encoding: 'utf8',
