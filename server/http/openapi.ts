@@ -162,8 +162,11 @@ export function buildOpenApiDocument(): ReturnType<OpenApiGeneratorV31['generate
       title: 'Ebullio calculation API',
       version: API_VERSION,
       description:
-        'Evaporation calculations as a metered REST API: steam tables (IAPWS-IF97), liquor boiling points and enthalpies ' +
-        'from published correlations, single- and multiple-effect evaporators, and batches.\n\n' +
+        'Evaporation calculations as a metered REST API: steam tables (IAPWS-IF97), liquor boiling points, enthalpies ' +
+        'and transport properties from published correlations, single- and multiple-effect evaporators (with thermal ' +
+        'vapour recompression and condensate flash), mechanical-vapour-recompression evaporators, an estimate of the ' +
+        'overall heat-transfer coefficient from film coefficients, a study that ranks evaporator schemes by annual ' +
+        'cost, and batches.\n\n' +
         'Outputs are plain numbers in the default units; each field states its unit (`x-unit`). ' +
         'Every result carries `provenance` (engine version and models used).\n\n' +
         UNIT_GRAMMAR +
