@@ -1,10 +1,12 @@
 /**
  * The composition root of the HTTP service: the app of `server/http/app.ts` with the service's
  * modules outside /v1, and the hooks that connect rooms without an import between them (metering
- * tells billing's quota notices when an account crosses a threshold). main.ts and the tests build
- * the service here.
+ * tells billing's quota notices when an account crosses a threshold; the key cache and the
+ * shared state's invalidation channel). main.ts and the tests build the service here, and close
+ * what it opened with {@link closeApp} after the HTTP drain.
  */
 import type express from 'express';
+import { forgetKnownKeys, onLocalAuthChange } from './accounts/keys.js';
 import { scheduleQuotaCheck } from './billing/quota-notices.js';
 import { paymentsWebhookModule } from './billing/webhook.js';
 import { consoleApiModule } from './console/index.js';
@@ -12,6 +14,7 @@ import { consoleStaticModule } from './console/static.js';
 import type { AppDeps, AppModule } from './deps.js';
 import { createHttpApp } from './http/app.js';
 import { openApiModule } from './http/openapi.js';
+import { connectSharedState } from './integrations/shared-state.js';
 
 export type { AppDeps, AppModule } from './deps.js';
 
@@ -30,5 +33,22 @@ export const appModules: readonly AppModule[] = [
  */
 export function createApp(deps: AppDeps): express.Express {
   deps.onQuotaThresholdCrossed ??= (accountId) => scheduleQuotaCheck(deps, accountId);
+  if (deps.config.redisUrl !== undefined && deps.shared === undefined) {
+    const shared = connectSharedState(deps.config.redisUrl);
+    deps.shared = shared;
+    // Key-cache invalidation between nodes: a change made through this node's connection is
+    // announced, and another node's announcement drops the keys this node remembers.
+    onLocalAuthChange(deps.sqlite, () => shared.publishAuthChange());
+    shared.onAuthChange(() => forgetKnownKeys(deps.sqlite));
+  }
   return createHttpApp(deps, appModules);
+}
+
+/**
+ * Closes what createApp opened (the Redis connections of the shared state), after the HTTP server
+ * has drained: a request still in flight may need its limiter. Idempotent; the database stays
+ * the caller's to close.
+ */
+export async function closeApp(deps: AppDeps): Promise<void> {
+  await deps.shared?.close();
 }

@@ -6,6 +6,7 @@
 import type express from 'express';
 import type { Config } from './config.js';
 import type { Db, Sqlite } from './db/client.js';
+import type { SharedState } from './integrations/shared-state.js';
 
 export interface AppDeps {
   db: Db;
@@ -23,6 +24,11 @@ export interface AppDeps {
   onQuotaThresholdCrossed?: (accountId: number) => void;
   /** Set to draining on SIGTERM (main.ts): /readyz then answers 503. Absent in most tests. */
   lifecycle?: Lifecycle;
+  /**
+   * Redis-backed state shared between nodes (rate limits, key-cache invalidation). createApp opens
+   * it when `config.redisUrl` is set and closeApp closes it; absent: everything stays in memory.
+   */
+  shared?: SharedState;
 }
 
 /** Shared between main.ts, the app (/readyz) and the HTTP server: set once on SIGTERM. */

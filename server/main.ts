@@ -4,7 +4,7 @@
  * a draining shutdown on SIGTERM/SIGINT (see `shutdown` below: refuse new connections, answer
  * what arrives on open ones with `Connection: close` for SHUTDOWN_GRACE_MS, then close the idle
  * ones, let in-flight requests finish for up to SHUTDOWN_TIMEOUT_MS more, stop the development
- * services, close the database, exit 0).
+ * services, close the Redis connections of the shared state (REDIS_URL), close the database, exit 0).
  *
  *   PORT=8080 DB_FILE=./data/ebullio.db BOOTSTRAP_API_KEY=… node --import tsx server/main.ts
  *
@@ -31,7 +31,7 @@ import { ensureDefaultPlans } from './billing/plans.js';
 import { checkQuotaNotices } from './billing/quota-notices.js';
 import { ConfigError, loadConfig, serverSettings, type Config } from './config.js';
 import { openDatabase, runMigrations } from './db/client.js';
-import { createApp } from './app.js';
+import { closeApp, createApp } from './app.js';
 import type { AppDeps, Lifecycle } from './deps.js';
 import { createHttpServer, startDraining } from './http/server.js';
 import { startMailCapture, type MailCapture } from './integrations/mail-capture.js';
@@ -204,6 +204,15 @@ async function main(): Promise<void> {
   quotaTimer.unref();
 
   const app = createApp(deps);
+  if (deps.shared) {
+    // Not fatal: until Redis answers, the limits answer 503 (fail closed) and the node reconnects.
+    const up = await deps.shared.ready(5_000);
+    console.log(
+      up
+        ? '[start-up] shared state on Redis (REDIS_URL): rate limits and key-cache invalidation shared between nodes'
+        : '[start-up] Redis (REDIS_URL) not reachable yet: limited routes answer 503 until it is; retrying',
+    );
+  }
   const server = createHttpServer(app, config, lifecycle);
   const onListenError = (err: Error) => {
     console.error(`[start-up] cannot listen on port ${config.port}: ${err.message}`);
@@ -277,8 +286,10 @@ async function main(): Promise<void> {
       // Development services after the last request: a finalize in flight may still call the fake.
       // Then one more turn of the event loop: the row of a request its client abandoned is still
       // queued for the metering group commit, which runs on the next turn.
+      // The shared state's connections last: a request answered during the drain needed its limiter.
       void Promise.allSettled([payments?.close(), mail?.close()])
         .then(() => new Promise((resolve) => setImmediate(resolve)))
+        .then(() => closeApp(deps).catch((e: unknown) => console.error('[shutdown] Redis:', e)))
         .then(() => {
           sqlite.close();
           console.log('[shutdown] done');
