@@ -289,7 +289,12 @@ async function main(): Promise<void> {
       // The shared state's connections last: a request answered during the drain needed its limiter.
       void Promise.allSettled([payments?.close(), mail?.close()])
         .then(() => new Promise((resolve) => setImmediate(resolve)))
-        .then(() => closeApp(deps).catch((e: unknown) => console.error('[shutdown] Redis:', e)))
+        .then(() =>
+          closeApp(deps).then(
+            () => deps.shared && console.log('[shutdown] Redis connections closed'),
+            (e: unknown) => console.error('[shutdown] Redis:', e),
+          ),
+        )
         .then(() => {
           sqlite.close();
           console.log('[shutdown] done');

@@ -17,6 +17,7 @@ import { openDatabase, runMigrations } from '../../server/db/client.js';
 import { KEY_FAILURE_LIMIT } from '../../server/http/middleware/auth.js';
 import { csrf, Jar } from '../console-api/auth-harness.js';
 import { startTestRedis, type TestRedis } from '../support/redis-server.js';
+import { startServerProcess } from '../support/server-process.js';
 import { ALL_SCOPES, testConfig } from './helpers.js';
 
 let redis: TestRedis;
@@ -204,6 +205,39 @@ describe('lifecycle', () => {
       await c.close();
     }
   });
+
+  it('a server process connects at start and closes its connections after the drain on SIGTERM', async () => {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'ebullio-shared-proc-'));
+    dirs.push(dir);
+    const proc = startServerProcess({
+      PORT: '0',
+      DB_FILE: path.join(dir, 'e.db'),
+      EBULLIO_SECRET: 'p'.repeat(40),
+      REDIS_URL: redis.url,
+      SHUTDOWN_GRACE_MS: '0',
+      MAIL_CAPTURE: '0',
+      FAKE_PAYMENTS: '0',
+    });
+    const c = await admin().connect();
+    try {
+      await proc.port;
+      expect(proc.output()).toContain('[start-up] shared state on Redis');
+      const named = async () => (await c.clientList()).filter((x) => x.name.startsWith('ebullio')).length;
+      expect(await named()).toBe(2);
+      proc.child.kill('SIGTERM');
+      expect((await proc.exited).code).toBe(0);
+      const out = proc.output();
+      // Closed by the app, after the HTTP drain, before the database.
+      expect(out.indexOf('[shutdown] Redis connections closed')).toBeGreaterThan(
+        out.indexOf('[shutdown] SIGTERM'),
+      );
+      expect(out.indexOf('[shutdown] Redis connections closed')).toBeLessThan(out.indexOf('[shutdown] done'));
+      await until('the connections to go', async () => (await named()) === 0);
+    } finally {
+      if (proc.child.exitCode === null) proc.child.kill('SIGKILL');
+      await c.close();
+    }
+  }, 30_000);
 
   it('refuses a malformed REDIS_URL at start-up', () => {
     const env = { DB_FILE: ':memory:', EBULLIO_SECRET: 'x'.repeat(32) };
