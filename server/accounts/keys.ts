@@ -316,6 +316,10 @@ interface KnownKey {
  *   it. (A request that is answered after a revocation was confirmed to its issuer always starts
  *   in a later turn.)
  *
+ * - Other nodes (REDIS_URL): server/app.ts announces every local change ({@link onLocalAuthChange})
+ *   on the shared state's channel, and drops this connection's keys ({@link forgetKnownKeys}) when
+ *   another node announces one. The revision check above stays, with or without the message.
+ *
  * So a request reads one row per turn instead of the key JOIN account lookup per request (each
  * read is a read transaction on the WAL, which showed in profiles of the metered route).
  */
