@@ -80,9 +80,13 @@ class SharedKeyFailureCounter {
     void store.init({ windowMs: KEY_FAILURE_WINDOW_MS } as Parameters<SharedRateLimitStore['init']>[0]);
   }
 
-  /** Seconds until the address's window ends when it is over the limit, else 0. */
-  async blockedFor(address: string, now: number): Promise<number> {
+  /**
+   * Seconds until the address's window ends when it is over the limit, else 0. Redis expires the
+   * window in real time, so this is measured on the real clock, not the app's injectable one.
+   */
+  async blockedFor(address: string): Promise<number> {
     const info = await this.store.get(address);
+    const now = Date.now();
     if (info === undefined || info.totalHits < KEY_FAILURE_LIMIT) return 0;
     const reset = info.resetTime?.getTime() ?? now + KEY_FAILURE_WINDOW_MS;
     return Math.max(1, Math.ceil((reset - now) / 1000));
@@ -170,7 +174,7 @@ function authenticateShared(
     if (token === undefined) throw unauthorized('malformed');
     const address = ipKeyGenerator(req.ip ?? '0.0.0.0');
     try {
-      const wait = await failures.blockedFor(address, deps.clock().getTime());
+      const wait = await failures.blockedFor(address);
       if (wait > 0) throw tooManyRefusedKeys(wait);
       // Read after the await: a revocation committed meanwhile is seen by this request.
       const result = authenticateToken(deps.sqlite, deps.config.secret, token, deps.clock());
