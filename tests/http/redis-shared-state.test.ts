@@ -161,6 +161,24 @@ describe('key-cache invalidation between nodes', () => {
     expect(res.body.detail).toMatch(/revoked/);
   });
 
+  it.each([
+    ['a scope change', `UPDATE api_keys SET scopes = '["steam"]' WHERE id = ?`],
+    ['an expiry change', 'UPDATE api_keys SET expires_at = 1 WHERE id = ?'],
+    ['a rate-limit change', 'UPDATE api_keys SET rate_limit_per_minute = 9 WHERE id = ?'],
+    [
+      "an account's quota change",
+      'UPDATE accounts SET monthly_unit_quota = 5 WHERE id = (SELECT account_id FROM api_keys WHERE id = ?)',
+    ],
+    ['a deleted key', 'DELETE FROM api_keys WHERE id = ?'],
+  ])('announces %s made through node A to node B', async (_what, sql) => {
+    const n = await twoNodes();
+    expect(n.authenticate(n.b).ok).toBe(true);
+    expect(knownKeyCount(n.b.sqlite)).toBe(1);
+    n.a.sqlite.prepare(sql).run(n.keyId);
+    await until('B to hear of it', () => n.b.shared!.invalidationsReceived === 1);
+    expect(knownKeyCount(n.b.sqlite)).toBe(0);
+  });
+
   it('does not echo a node its own announcement', async () => {
     const n = await twoNodes();
     n.a.sqlite.prepare('UPDATE api_keys SET rate_limit_per_minute = 7 WHERE id = ?').run(n.keyId);
