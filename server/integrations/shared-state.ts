@@ -62,12 +62,26 @@ class ResilientRedisStore extends RedisStore {
     this.windowMs = options.windowMs;
   }
 
+  /**
+   * Runs a store command, bounded by {@link COMMAND_TIMEOUT_MS}: node-redis's own command timeout
+   * covers only the wait to be written, not the wait for the reply of a Redis that hangs. A reply
+   * that comes later still counts in Redis; this request has been refused by then.
+   */
   private async guarded<T>(run: () => Promise<T>): Promise<T> {
     if (this.scriptsFailed) this.reloadScripts();
+    let timer: NodeJS.Timeout | undefined;
+    const timeout = new Promise<never>((_resolve, reject) => {
+      timer = setTimeout(
+        () => reject(new Error(`no answer within ${COMMAND_TIMEOUT_MS} ms`)),
+        COMMAND_TIMEOUT_MS,
+      );
+    });
     try {
-      return await run();
+      return await Promise.race([run(), timeout]);
     } catch (err) {
       throw new SharedStateUnavailableError(err);
+    } finally {
+      clearTimeout(timer);
     }
   }
 

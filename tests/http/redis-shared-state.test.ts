@@ -216,6 +216,24 @@ describe('a Redis outage', () => {
     await until('node A to answer again', async () => (await n.usage(n.appA)).status === 200);
     await until('node B to answer again', async () => (await n.usage(n.appB)).status === 200);
   });
+
+  it('answers 503 when Redis is too slow to answer within a second, and serves again after', async () => {
+    const n = await twoNodes();
+    expect((await n.usage(n.appA)).status).toBe(200);
+    const c = await admin().connect();
+    try {
+      await c.sendCommand(['CLIENT', 'PAUSE', '2500', 'ALL']); // every client's commands wait
+      const started = Date.now();
+      const res = await n.usage(n.appA);
+      expect(res.status).toBe(503);
+      expect(res.body.type).toBe('/problems/busy');
+      expect(Date.now() - started).toBeLessThan(2_400); // the command timeout, not the pause
+    } finally {
+      await c.sendCommand(['CLIENT', 'UNPAUSE']);
+      await c.close();
+    }
+    await until('node A to answer again', async () => (await n.usage(n.appA)).status === 200);
+  });
 });
 
 describe('the key cache while Redis is down', () => {

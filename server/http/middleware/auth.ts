@@ -20,7 +20,7 @@ import type { AppDeps } from '../../deps.js';
 import { SharedStateUnavailableError, type SharedRateLimitStore } from '../../integrations/shared-state.js';
 import { problem } from '../problem.js';
 import type { AuthContext } from './locals.js';
-import { limitsUnavailable } from './rate-limit.js';
+import { limitsUnavailable, logLimitsUnavailable } from './rate-limit.js';
 import './locals.js';
 
 const DETAILS = {
@@ -186,7 +186,7 @@ function authenticateShared(
       res.locals.auth = contextOf(result.key);
     } catch (err) {
       if (err instanceof SharedStateUnavailableError) {
-        console.error(`[limits] request ${String(res.locals.requestId)} refused: ${err.message}`);
+        logLimitsUnavailable(err);
         throw limitsUnavailable();
       }
       throw err;

@@ -27,12 +27,24 @@ export function limitsUnavailable(): ReturnType<typeof problem> {
   );
 }
 
+let lastOutageLog = 0;
+let refusedSinceLog = 0;
+/** Logs refusals for an unreachable store at most once per 10 s (an outage refuses every request). */
+export function logLimitsUnavailable(err: SharedStateUnavailableError): void {
+  refusedSinceLog++;
+  const now = Date.now();
+  if (now - lastOutageLog < 10_000) return;
+  console.error(`[limits] ${refusedSinceLog} request(s) refused with 503: ${err.message}`);
+  lastOutageLog = now;
+  refusedSinceLog = 0;
+}
+
 /** `limiter`, with a failure of its shared store answered as {@link limitsUnavailable}. */
 export function failClosed(limiter: RequestHandler): RequestHandler {
   return (req, res, next) =>
     limiter(req, res, (err?: unknown) => {
       if (err instanceof SharedStateUnavailableError) {
-        console.error(`[limits] request ${String(res.locals.requestId)} refused: ${err.message}`);
+        logLimitsUnavailable(err);
         next(limitsUnavailable());
         return;
       }
