@@ -1,10 +1,12 @@
 /**
  * The composition root of the HTTP service: the app of `server/http/app.ts` with the service's
  * modules outside /v1, and the hooks that connect rooms without an import between them (metering
- * tells billing's quota notices when an account crosses a threshold). main.ts and the tests build
- * the service here.
+ * tells billing's quota notices when an account crosses a threshold; the key cache and the
+ * shared state's invalidation channel). main.ts and the tests build the service here, and close
+ * what it opened with {@link closeApp} after the HTTP drain.
  */
 import type express from 'express';
+import { forgetKnownKeys, onLocalAuthChange } from './accounts/keys.js';
 import { scheduleQuotaCheck } from './billing/quota-notices.js';
 import { paymentsWebhookModule } from './billing/webhook.js';
 import { consoleApiModule } from './console/index.js';
@@ -14,6 +16,7 @@ import { createHttpApp } from './http/app.js';
 import { openApiModule } from './http/openapi.js';
 import { engineSettings } from './config.js';
 import { createEnginePool } from './workers/engine-pool.js';
+import { connectSharedState } from './integrations/shared-state.js';
 
 export type { AppDeps, AppModule } from './deps.js';
 
@@ -34,13 +37,23 @@ export function createApp(deps: AppDeps): express.Express {
   deps.onQuotaThresholdCrossed ??= (accountId) => scheduleQuotaCheck(deps, accountId);
   // Threads start at the first heavy task: an app that never runs one starts none.
   deps.enginePool ??= createEnginePool(engineSettings(deps.config));
+  if (deps.config.redisUrl !== undefined && deps.shared === undefined) {
+    const shared = connectSharedState(deps.config.redisUrl);
+    deps.shared = shared;
+    // Key-cache invalidation between nodes: a change made through this node's connection is
+    // announced, and another node's announcement drops the keys this node remembers.
+    onLocalAuthChange(deps.sqlite, () => shared.publishAuthChange());
+    shared.onAuthChange(() => forgetKnownKeys(deps.sqlite));
+  }
   return createHttpApp(deps, appModules);
 }
 
 /**
  * Ends what the app owns besides the database, after the HTTP drain (main.ts's shutdown, tests):
- * the calculation pool's threads. A request still waiting for the pool then fails with 500.
+ * the calculation pool's threads (a request still waiting for the pool then fails with 500) and
+ * the Redis connections of the shared state. Idempotent; the database stays the caller's to close.
  */
 export async function closeApp(deps: AppDeps): Promise<void> {
   await deps.enginePool?.destroy();
+  await deps.shared?.close();
 }

@@ -28,6 +28,7 @@
  * | ENGINE_WORKERS | available parallelism | worker threads of the calculation pool (server/workers/engine-pool.ts); 0 runs every calculation on the main thread |
  * | ENGINE_WORKER_NICE | 10 | the pool's threads run this much lower in scheduling priority than the main thread (Linux; 0 = the same), so HTTP is served first |
  * | ENGINE_TASK_TIMEOUT_MS | 30000 | a pooled calculation unanswered this long after a thread took it is hung: its thread is replaced and the request gets 503 calculation-timeout |
+ * | REDIS_URL | — | redis://[user:password@]host[:port][/db] or rediss://…: rate limits and key-cache invalidation shared between nodes (server/integrations/shared-state.ts); unset → in memory, one node |
  */
 import crypto from 'node:crypto';
 import fs from 'node:fs';
@@ -77,6 +78,8 @@ export interface Config {
   engineWorkers?: number;
   engineTaskTimeoutMs?: number;
   engineWorkerNice?: number;
+  /** Redis for state shared between nodes; undefined: everything in this process's memory. */
+  redisUrl?: string;
 }
 
 /** The calculation pool's settings with the defaults filled in. */
@@ -246,6 +249,26 @@ export function loadOrCreateSecretFile(dataDir: string): { secret: Buffer; file:
   return { secret: Buffer.from(text, 'hex'), file };
 }
 
+/** REDIS_URL, checked at start-up: a typo must not leave the limits silently per node. */
+export function parseRedisUrl(raw: string | undefined): string | undefined {
+  if (raw === undefined || raw.trim() === '') return undefined;
+  const text = raw.trim();
+  let url: URL;
+  try {
+    url = new URL(text);
+  } catch {
+    throw new ConfigError(`REDIS_URL must be a URL like redis://host:6379, got "${raw}"`);
+  }
+  if (url.protocol !== 'redis:' && url.protocol !== 'rediss:')
+    throw new ConfigError(`REDIS_URL must start with redis:// or rediss://, got "${url.protocol}//"`);
+  if (url.hostname === '') throw new ConfigError('REDIS_URL names no host');
+  if (url.pathname !== '' && url.pathname !== '/' && !/^\/\d{1,2}$/.test(url.pathname))
+    throw new ConfigError(`REDIS_URL path must be a database number like /0, got "${url.pathname}"`);
+  if (url.search !== '' || url.hash !== '')
+    throw new ConfigError('REDIS_URL must not carry a query or fragment');
+  return text;
+}
+
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   const port = parseIntVar(env, 'PORT', 8080, 0, 65535);
   const dbFile = env.DB_FILE && env.DB_FILE !== '' ? env.DB_FILE : './data/ebullio.db';
@@ -324,6 +347,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     consoleOutbox: parseFlag(env, 'CONSOLE_OUTBOX'),
     smtpUrl: env.SMTP_URL && env.SMTP_URL !== '' ? env.SMTP_URL : undefined,
     mailFrom: env.MAIL_FROM && env.MAIL_FROM !== '' ? env.MAIL_FROM : undefined,
+    redisUrl: parseRedisUrl(env.REDIS_URL),
     port,
     dbFile,
     dataDir,

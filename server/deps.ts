@@ -7,6 +7,7 @@ import type express from 'express';
 import type { Config } from './config.js';
 import type { Db, Sqlite } from './db/client.js';
 import type { EnginePool } from './workers/engine-pool.js';
+import type { SharedState } from './integrations/shared-state.js';
 
 export interface AppDeps {
   db: Db;
@@ -30,6 +31,11 @@ export interface AppDeps {
    * whose threads start at once. Destroyed by `closeApp` after the HTTP drain.
    */
   enginePool?: EnginePool;
+  /**
+   * Redis-backed state shared between nodes (rate limits, key-cache invalidation). createApp opens
+   * it when `config.redisUrl` is set and closeApp closes it; absent: everything stays in memory.
+   */
+  shared?: SharedState;
 }
 
 /**

@@ -4,7 +4,8 @@
  * a draining shutdown on SIGTERM/SIGINT (see `shutdown` below: refuse new connections, answer
  * what arrives on open ones with `Connection: close` for SHUTDOWN_GRACE_MS, then close the idle
  * ones, let in-flight requests finish for up to SHUTDOWN_TIMEOUT_MS more, stop the development
- * services and the calculation pool's threads, close the database, exit 0).
+ * services, the calculation pool's threads and the Redis connections of the shared state (REDIS_URL),
+ * close the database, exit 0).
  *
  *   PORT=8080 DB_FILE=./data/ebullio.db BOOTSTRAP_API_KEY=… node --import tsx server/main.ts
  *
@@ -211,6 +212,15 @@ async function main(): Promise<void> {
   quotaTimer.unref();
 
   const app = createApp(deps);
+  if (deps.shared) {
+    // Not fatal: until Redis answers, the limits answer 503 (fail closed) and the node reconnects.
+    const up = await deps.shared.ready(5_000);
+    console.log(
+      up
+        ? '[start-up] shared state on Redis (REDIS_URL): rate limits and key-cache invalidation shared between nodes'
+        : '[start-up] Redis (REDIS_URL) not reachable yet: limited routes answer 503 until it is; retrying',
+    );
+  }
   const server = createHttpServer(app, config, lifecycle);
   const onListenError = (err: Error) => {
     console.error(`[start-up] cannot listen on port ${config.port}: ${err.message}`);
@@ -281,12 +291,19 @@ async function main(): Promise<void> {
       clearTimeout(grace);
       clearTimeout(force);
       clearInterval(reaper);
-      // Development services and the calculation pool after the last request: a finalize in
-      // flight may still call the fake, and a batch in flight may still need the pool.
-      // Then one more turn of the event loop: the row of a request its client abandoned is still
-      // queued for the metering group commit, which runs on the next turn.
-      void Promise.allSettled([payments?.close(), mail?.close(), closeApp(deps)])
+      // Development services after the last request (a finalize in flight may still call the
+      // fake). Then one more turn of the event loop: the row of a request its client abandoned is
+      // still queued for the metering group commit, which runs on the next turn. The pool and the
+      // shared state's connections last (closeApp): a request answered during the drain may still
+      // have needed a thread or its limiter.
+      void Promise.allSettled([payments?.close(), mail?.close()])
         .then(() => new Promise((resolve) => setImmediate(resolve)))
+        .then(() =>
+          closeApp(deps).then(
+            () => deps.shared && console.log('[shutdown] Redis connections closed'),
+            (e: unknown) => console.error('[shutdown] closing the pool or Redis:', e),
+          ),
+        )
         .then(() => {
           sqlite.close();
           console.log('[shutdown] done');

@@ -316,6 +316,10 @@ interface KnownKey {
  *   it. (A request that is answered after a revocation was confirmed to its issuer always starts
  *   in a later turn.)
  *
+ * - Other nodes (REDIS_URL): server/app.ts announces every local change ({@link onLocalAuthChange})
+ *   on the shared state's channel, and drops this connection's keys ({@link forgetKnownKeys}) when
+ *   another node announces one. The revision check above stays, with or without the message.
+ *
  * So a request reads one row per turn instead of the key JOIN account lookup per request (each
  * read is a read transaction on the WAL, which showed in profiles of the metered route).
  */
@@ -325,6 +329,8 @@ interface KnownKeys {
   seen: number;
   checkedThisTurn: boolean;
   byHash: Map<string, KnownKey>;
+  /** Called after this connection changed something authentication reads (the shared-state hook). */
+  onLocalChange: (() => void)[];
 }
 const knownKeys = new WeakMap<Sqlite, KnownKeys>();
 const FORGET_FUNCTION = 'ebullio_forget_known_keys';
@@ -358,18 +364,30 @@ function installLocalForgetting(sqlite: Sqlite, forget: () => void): void {
   }
 }
 
-function knownKeysFor(sqlite: Sqlite): Map<string, KnownKey> {
+function knownKeysState(sqlite: Sqlite): KnownKeys {
   let known = knownKeys.get(sqlite);
   if (!known) {
     const revision = sqlite.prepare<[], number>('SELECT revision FROM auth_revision WHERE id = 1').pluck();
-    const fresh: KnownKeys = { revision, seen: -1, checkedThisTurn: false, byHash: new Map() };
+    const fresh: KnownKeys = {
+      revision,
+      seen: -1,
+      checkedThisTurn: false,
+      byHash: new Map(),
+      onLocalChange: [],
+    };
     installLocalForgetting(sqlite, () => {
       fresh.byHash.clear();
       fresh.checkedThisTurn = false;
+      for (const listener of fresh.onLocalChange) listener();
     });
     known = fresh;
     knownKeys.set(sqlite, known);
   }
+  return known;
+}
+
+function knownKeysFor(sqlite: Sqlite): Map<string, KnownKey> {
+  const known = knownKeysState(sqlite);
   if (!known.checkedThisTurn) {
     const turn = known;
     turn.checkedThisTurn = true;
@@ -384,6 +402,30 @@ function knownKeysFor(sqlite: Sqlite): Map<string, KnownKey> {
   }
   if (known.byHash.size >= KNOWN_KEY_LIMIT) known.byHash.clear();
   return known.byHash;
+}
+
+/**
+ * Drops every key remembered for `sqlite` (another node said authentication data changed: the
+ * shared-state hook of server/app.ts). The next request looks its key up again.
+ */
+export function forgetKnownKeys(sqlite: Sqlite): void {
+  const known = knownKeys.get(sqlite);
+  if (!known) return;
+  known.byHash.clear();
+  known.checkedThisTurn = false;
+}
+
+/**
+ * Calls `listener` whenever a statement on `sqlite` changes something authentication reads (the
+ * same events as the auth_revision triggers), from inside that statement: defer real work.
+ */
+export function onLocalAuthChange(sqlite: Sqlite, listener: () => void): void {
+  knownKeysState(sqlite).onLocalChange.push(listener);
+}
+
+/** How many keys are remembered for `sqlite` (diagnostics and tests). */
+export function knownKeyCount(sqlite: Sqlite): number {
+  return knownKeys.get(sqlite)?.byHash.size ?? 0;
 }
 
 function knownKeyOf(row: KeyLookupRow): KnownKey {

@@ -48,6 +48,9 @@ const commonProblems = {
       'the field, value and valid range in display units are in `errors`), no-solution, or inconsistent-input',
   ),
   429: problem('Rate limit or monthly quota exceeded (type rate-limited or quota-exceeded); see Retry-After'),
+  503: problem(
+    'busy: the request limits cannot be checked (a service sharing its limits between nodes cannot reach its limit store); nothing was done, retry after Retry-After',
+  ),
 };
 
 function ok(

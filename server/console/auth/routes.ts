@@ -33,6 +33,7 @@ import { findSession, revokeSession } from '../../accounts/sessions.js';
 import { acceptInvitation, invitationOffer, loadUserSummary } from '../../accounts/users.js';
 import { consoleSettings } from '../../config.js';
 import type { AppDeps } from '../../deps.js';
+import { failClosed, limiterStore } from '../../http/middleware/rate-limit.js';
 import { problem } from '../../http/problem.js';
 import { consoleRoute, type ConsoleRouteModule } from '../route.js';
 import { issueCsrfCookie, isValidCsrfToken, presentedCsrfCookie } from './csrf.js';
@@ -54,11 +55,14 @@ const HASHING_ROUTE_WINDOW_MS = 15 * 60_000;
 /**
  * Per-address limit of one public route (the limit is `consoleSettings.signInLimit` per 15
  * minutes, each route counted on its own). One client flooding a hashing route is stopped here,
- * long before it can fill the shared hashing queue for everybody.
+ * long before it can fill the shared hashing queue for everybody. With shared state (REDIS_URL)
+ * each route's counts live in Redis under its own prefix (`name`), for all nodes; a Redis that
+ * cannot be asked is a 503 (server/http/middleware/rate-limit.ts `failClosed`).
  */
-function signInLimiter(deps: AppDeps, what: string): RequestHandler {
+function signInLimiter(deps: AppDeps, name: string, what: string): RequestHandler {
   const settings = consoleSettings(deps.config);
-  return rateLimit({
+  const store = limiterStore(deps, name);
+  const limiter = rateLimit({
     windowMs: HASHING_ROUTE_WINDOW_MS,
     limit: settings.signInLimit,
     standardHeaders: 'draft-7', // as the API (server/http/middleware/rate-limit.ts)
@@ -76,7 +80,9 @@ function signInLimiter(deps: AppDeps, what: string): RequestHandler {
         }),
       );
     },
+    ...(store ? { store } : {}),
   });
+  return store ? failClosed(limiter) : limiter;
 }
 
 function sessionBody(deps: AppDeps, userId: number, session: IssuedSession | undefined) {
@@ -92,10 +98,10 @@ function sessionBody(deps: AppDeps, userId: number, session: IssuedSession | und
 export const authRouteModule: ConsoleRouteModule = {
   register(router, deps) {
     const settings = consoleSettings(deps.config);
-    const signInLimit = signInLimiter(deps, 'sign-in');
-    const resetLimit = signInLimiter(deps, 'password-reset');
-    const resetConfirmLimit = signInLimiter(deps, 'password-reset confirmation');
-    const acceptLimit = signInLimiter(deps, 'invitation acceptance');
+    const signInLimit = signInLimiter(deps, 'console-sign-in', 'sign-in');
+    const resetLimit = signInLimiter(deps, 'console-reset', 'password-reset');
+    const resetConfirmLimit = signInLimiter(deps, 'console-reset-confirm', 'password-reset confirmation');
+    const acceptLimit = signInLimiter(deps, 'console-invitation-accept', 'invitation acceptance');
 
     consoleRoute(router, {
       method: 'get',

@@ -8,13 +8,19 @@
  * refused keys (unknown, revoked, expired, rotated) within {@link KEY_FAILURE_WINDOW_MS}, the
  * address gets 429 'rate-limited' with Retry-After until the window ends, before its key is even
  * looked up. Only failures count, so a client using a valid key never moves towards the limit.
+ *
+ * With shared state (REDIS_URL) the failures are counted in Redis (a rate-limit-redis store under
+ * `ebullio:rl:key-failures:`, a window per address from its first failure), so the limit holds
+ * for the address across all nodes; a Redis that cannot be asked is a 503 (fail closed).
  */
 import type { Request, RequestHandler, Response } from 'express';
 import { ipKeyGenerator } from 'express-rate-limit';
 import { authenticateToken, type AuthenticatedKey } from '../../accounts/keys.js';
 import type { AppDeps } from '../../deps.js';
+import { SharedStateUnavailableError, type SharedRateLimitStore } from '../../integrations/shared-state.js';
 import { problem } from '../problem.js';
 import type { AuthContext } from './locals.js';
+import { limitsUnavailable, logLimitsUnavailable } from './rate-limit.js';
 import './locals.js';
 
 const DETAILS = {
@@ -67,6 +73,36 @@ class KeyFailureCounter {
   }
 }
 
+/** Failed key attempts per address in Redis, for all nodes (asynchronous: one round trip). */
+class SharedKeyFailureCounter {
+  constructor(private readonly store: SharedRateLimitStore) {
+    // The store needs only its window from express-rate-limit's options.
+    void store.init({ windowMs: KEY_FAILURE_WINDOW_MS } as Parameters<SharedRateLimitStore['init']>[0]);
+  }
+
+  /**
+   * Seconds until the address's window ends when it is over the limit, else 0. Redis expires the
+   * window in real time, so this is measured on the real clock, not the app's injectable one.
+   */
+  async blockedFor(address: string): Promise<number> {
+    const info = await this.store.get(address);
+    const now = Date.now();
+    if (info === undefined || info.totalHits < KEY_FAILURE_LIMIT) return 0;
+    const reset = info.resetTime?.getTime() ?? now + KEY_FAILURE_WINDOW_MS;
+    return Math.max(1, Math.ceil((reset - now) / 1000));
+  }
+
+  async fail(address: string): Promise<void> {
+    await this.store.increment(address);
+  }
+}
+
+function tooManyRefusedKeys(wait: number) {
+  return problem('rate-limited', 'Too many refused API keys from this address; try again later.', {
+    headers: { 'Retry-After': String(wait) },
+  });
+}
+
 /** Presented token of the request, if any (used for redaction). */
 export function presentedToken(header: string | undefined): string | undefined {
   const m = header === undefined ? null : /^Bearer +(\S+)\s*$/i.exec(header);
@@ -96,6 +132,8 @@ export interface AuthenticateOptions {
 }
 
 export function authenticate(deps: AppDeps, options: AuthenticateOptions = {}): RequestHandler {
+  const store = deps.shared?.rateLimitStore('key-failures');
+  if (store) return authenticateShared(deps, options, new SharedKeyFailureCounter(store));
   const failures = new KeyFailureCounter();
   return (req, res, next) => {
     const header = req.get('authorization');
@@ -105,11 +143,7 @@ export function authenticate(deps: AppDeps, options: AuthenticateOptions = {}): 
     const now = deps.clock();
     const address = ipKeyGenerator(req.ip ?? '0.0.0.0');
     const wait = failures.blockedFor(address, now.getTime());
-    if (wait > 0) {
-      throw problem('rate-limited', 'Too many refused API keys from this address; try again later.', {
-        headers: { 'Retry-After': String(wait) },
-      });
-    }
+    if (wait > 0) throw tooManyRefusedKeys(wait);
     const result = authenticateToken(deps.sqlite, deps.config.secret, token, now);
     if (!result.ok) {
       failures.fail(address, now.getTime());
@@ -120,6 +154,43 @@ export function authenticate(deps: AppDeps, options: AuthenticateOptions = {}): 
       throw unauthorized(result.reason);
     }
     res.locals.auth = contextOf(result.key);
+    next();
+  };
+}
+
+/**
+ * {@link authenticate} with the failures counted in Redis: the same checks in the same order, one
+ * round trip before the lookup and one more for a refused key. Redis down: 503, nothing looked up.
+ */
+function authenticateShared(
+  deps: AppDeps,
+  options: AuthenticateOptions,
+  failures: SharedKeyFailureCounter,
+): RequestHandler {
+  return async (req, res, next) => {
+    const header = req.get('authorization');
+    if (header === undefined || header.trim() === '') throw unauthorized('missing');
+    const token = presentedToken(header);
+    if (token === undefined) throw unauthorized('malformed');
+    const address = ipKeyGenerator(req.ip ?? '0.0.0.0');
+    try {
+      const wait = await failures.blockedFor(address);
+      if (wait > 0) throw tooManyRefusedKeys(wait);
+      // Read after the await: a revocation committed meanwhile is seen by this request.
+      const result = authenticateToken(deps.sqlite, deps.config.secret, token, deps.clock());
+      if (!result.ok) {
+        await failures.fail(address);
+        if ('key' in result) options.onRefusedKnownKey?.(req, res, contextOf(result.key));
+        throw unauthorized(result.reason);
+      }
+      res.locals.auth = contextOf(result.key);
+    } catch (err) {
+      if (err instanceof SharedStateUnavailableError) {
+        logLimitsUnavailable(err);
+        throw limitsUnavailable();
+      }
+      throw err;
+    }
     next();
   };
 }

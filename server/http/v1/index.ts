@@ -29,7 +29,7 @@ export function createV1Router(deps: AppDeps): express.Router {
   // A 401 for a known key is logged (unmetered) under its account; see middleware/auth.ts.
   router.use(authenticate(deps, { onRefusedKnownKey: meter.logRefusal }));
   router.use(meter);
-  router.use(perKeyRateLimit());
+  router.use(perKeyRateLimit(deps));
   router.use(bodyReader(deps.config.bodyLimitBytes));
   router.use(reauthenticate(deps));
   for (const decl of v1Operations) mountOperation(router, decl, deps);
