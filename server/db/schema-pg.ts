@@ -18,6 +18,11 @@
  *   with every request (usage_events, request_log) get `bigint` ids, as SQLite's are 64-bit.
  * - The auth_revision table and its triggers are in the custom migration
  *   `drizzle-pg/0001_auth_revision.sql`, not here, as on SQLite.
+ *
+ * The PostgreSQL history starts at today's schema (`drizzle-pg/0000_init.sql`), so the later SQLite
+ * migrations are already in it: 0004's plain rowid event keys are the identities above, 0006's
+ * per-version liquor index is declared below, and 0005 repaired key prefixes in rows that a new
+ * PostgreSQL database cannot hold (new keys are written with their display prefix).
  */
 import { sql } from 'drizzle-orm';
 import {

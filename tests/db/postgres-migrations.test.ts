@@ -4,6 +4,7 @@
 // (drizzle/0003_auth_revision.sql, exercised in tests/http/auth-revision.test.ts), and rows go in
 // and come out through Drizzle with the app's types (Date, boolean, JSON, numeric ids).
 import fs from 'node:fs';
+import os from 'node:os';
 import path from 'node:path';
 import { eq, is } from 'drizzle-orm';
 import { drizzle, type NodePgDatabase } from 'drizzle-orm/node-postgres';
@@ -12,7 +13,7 @@ import { getTableConfig, PgTable } from 'drizzle-orm/pg-core';
 import pg from 'pg';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import * as schema from '../../server/db/schema-pg.js';
-import { startPostgres, type PostgresServer } from '../support/postgres-server.js';
+import { findPostgresBinDir, startPostgres, type PostgresServer } from '../support/postgres-server.js';
 
 const migrationsFolder = path.resolve(import.meta.dirname, '../../drizzle-pg');
 const journal = JSON.parse(fs.readFileSync(path.join(migrationsFolder, 'meta', '_journal.json'), 'utf8')) as {
@@ -63,6 +64,27 @@ async function accountWithKey(name: string) {
     .returning();
   return { account: account!, key: key! };
 }
+
+describe('the throw-away server harness', () => {
+  it('says what to install when the PostgreSQL binaries are missing, instead of skipping', () => {
+    const empty = fs.mkdtempSync(path.join(os.tmpdir(), 'ebullio-no-pg-'));
+    try {
+      fs.mkdirSync(path.join(empty, '15', 'bin'), { recursive: true }); // a version folder without binaries
+      expect(() => findPostgresBinDir(empty, undefined)).toThrow(/apt-get install -y postgresql/);
+    } finally {
+      fs.rmSync(empty, { recursive: true, force: true });
+    }
+  });
+
+  it('runs the cluster as an unprivileged system user, with the test role as its superuser', async () => {
+    const { rows } = await pool.query<{ user: string; superuser: string }>(
+      `SELECT current_user AS user, current_setting('is_superuser') AS superuser`,
+    );
+    expect(rows[0]).toEqual({ user: 'ebullio', superuser: 'on' });
+    // initdb and postgres refuse root; as root the harness hands the cluster to `postgres`.
+    expect(fs.statSync(path.join(server.dir, 'data')).uid).not.toBe(0);
+  });
+});
 
 describe('PostgreSQL migrations', () => {
   it('records every committed migration once, and a second run applies none', async () => {

@@ -31,20 +31,20 @@ export interface PostgresServer {
 }
 
 /** The newest /usr/lib/postgresql/<version>/bin holding initdb, pg_ctl and postgres. */
-export function findPostgresBinDir(): string {
+export function findPostgresBinDir(root = PG_ROOT, override = process.env.POSTGRES_BIN_DIR): string {
   const candidates: string[] = [];
-  if (process.env.POSTGRES_BIN_DIR) candidates.push(process.env.POSTGRES_BIN_DIR);
-  if (fs.existsSync(PG_ROOT)) {
+  if (override) candidates.push(override);
+  if (fs.existsSync(root)) {
     const versions = fs
-      .readdirSync(PG_ROOT)
+      .readdirSync(root)
       .filter((v) => /^\d+(\.\d+)?$/.test(v))
       .sort((a, b) => Number(b) - Number(a));
-    for (const v of versions) candidates.push(path.join(PG_ROOT, v, 'bin'));
+    for (const v of versions) candidates.push(path.join(root, v, 'bin'));
   }
   const found = candidates.find((dir) => NEEDED.every((bin) => fs.existsSync(path.join(dir, bin))));
   if (!found) {
     throw new Error(
-      `PostgreSQL server binaries (${NEEDED.join(', ')}) not found in ${PG_ROOT}/<version>/bin. ` +
+      `PostgreSQL server binaries (${NEEDED.join(', ')}) not found in ${root}/<version>/bin. ` +
         'Install them with: apt-get install -y postgresql (or set POSTGRES_BIN_DIR).',
     );
   }
@@ -79,7 +79,9 @@ function freeLoopbackPort(): Promise<number> {
 export async function startPostgres(): Promise<PostgresServer> {
   const began = performance.now();
   const binDir = findPostgresBinDir();
-  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'ebullio-pg-'));
+  // As root the cluster belongs to `postgres`, which must reach the folder: a TMPDIR under /root
+  // would not do, so root uses /tmp (world-traversable on every Debian).
+  const dir = fs.mkdtempSync(path.join(isRoot() ? '/tmp' : os.tmpdir(), 'ebullio-pg-'));
   const data = path.join(dir, 'data');
   const log = path.join(dir, 'server.log');
   if (isRoot()) {
