@@ -5,7 +5,18 @@ import pluginVue from 'eslint-plugin-vue';
 import tseslint from 'typescript-eslint';
 
 export default tseslint.config(
-  { ignores: ['node_modules/', 'dist/', 'coverage/', 'data/', 'console/dist/', 'openapi/', 'drizzle/meta/'] },
+  {
+    ignores: [
+      'node_modules/',
+      'dist/',
+      'coverage/',
+      'data/',
+      'console/dist/',
+      'openapi/',
+      'drizzle/meta/',
+      'drizzle-pg/meta/',
+    ],
+  },
   js.configs.recommended,
   ...tseslint.configs.recommended,
   ...pluginVue.configs['flat/recommended'],
