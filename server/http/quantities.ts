@@ -39,7 +39,7 @@ export function readQuantity(
   let si: number;
   try {
     // a bare number in a string is read in the default unit by server/units itself
-    si = parseQuantity(input, spec.kind, field, context);
+    si = parseQuantity(input, spec.kind, field, spec.difference ? { ...context, difference: true } : context);
   } catch (err) {
     throw toProblem(err);
   }

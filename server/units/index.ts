@@ -524,6 +524,8 @@ export interface ParseContext {
   liquor?: string;
   /** This field is itself the atmosphere: gauge and vacuum readings make no sense in it. */
   absoluteOnly?: boolean;
+  /** This field is a pressure difference: a gauge or vacuum reading would be misread. */
+  difference?: boolean;
 }
 
 /**
@@ -620,6 +622,14 @@ export function parseQuantity(
       input,
       kind,
       `${field}: the atmosphere itself is an absolute pressure; "${unit.unit}" reads against it (give e.g. "99.2 kPa" or "992 mbar")`,
+    );
+  }
+  if (unit.gauge !== undefined && context?.difference) {
+    throw unitErrorFor(
+      field,
+      input,
+      kind,
+      `${field}: a pressure difference is not read against the atmosphere; "${unit.unit}" is a gauge or vacuum reading (give e.g. "5 mbar" or "0.5 kPa")`,
     );
   }
   const si = convert(value, unit, context?.atmosphere);

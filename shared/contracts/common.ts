@@ -24,6 +24,8 @@ export interface QuantitySpec extends QuantityRange {
   kind: QuantityKind;
   /** The request's atmosphere: gauge and vacuum readings of its other fields refer to it. */
   atmosphere?: true;
+  /** A pressure difference (a drop): a gauge or vacuum reading would be misread, so it is refused. */
+  difference?: true;
 }
 
 /**

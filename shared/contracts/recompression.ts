@@ -43,7 +43,7 @@ export const recompressionLimits = {
 /** An efficiency: above 0, at most 1. */
 const efficiencySpec: QuantitySpec = { kind: 'fraction', min: 0, max: 1, minExclusive: true };
 /** A pressure difference, kPa: 0 to 1000 (give it in kPa, bar or mbar; it is not an absolute pressure). */
-const pressureDropSpec: QuantitySpec = { kind: 'pressure', min: 0, max: 1000 };
+const pressureDropSpec: QuantitySpec = { kind: 'pressure', min: 0, max: 1000, difference: true };
 
 /** A dimensionless number with its range stated in the refusal (422 naming the field and the range). */
 function plainNumber(
@@ -155,7 +155,7 @@ export const MechanicalVaporRecompressionRequestSchema = z
       .optional(),
     suctionPressureDrop: quantity(
       pressureDropSpec,
-      'Pressure lost between the vapour space and the compressor inlet (a difference: give it in kPa, bar or mbar, never as a gauge reading; default 0)',
+      'Pressure lost between the vapour space and the compressor inlet (a difference: give it in kPa, bar or mbar; a gauge or vacuum reading such as "0.05 barg" is refused; default 0)',
       undefined,
     ).optional(),
     figuresOfMerit: figuresOfMeritFlag,

@@ -290,3 +290,31 @@ describe(`${PATH}: desalination figures of merit`, () => {
     expect(res.body.figuresOfMerit).toBeUndefined();
   });
 });
+
+describe(`${PATH}: the suction pressure drop is a difference`, () => {
+  it('refuses a gauge or vacuum reading for it, naming the field, instead of reading it as absolute', async () => {
+    for (const drop of ['0.05 barg', '2 inHg vac']) {
+      const res = await request(h.app)
+        .post(PATH)
+        .set(auth())
+        .send({ ...oneStageBody, suctionPressureDrop: drop });
+      expect(res.status).toBe(422);
+      expect(res.body.errors[0].field).toBe('suctionPressureDrop');
+      expect(res.body.errors[0].message).toContain(
+        'a pressure difference is not read against the atmosphere',
+      );
+    }
+  });
+
+  it('still takes a plain difference in mbar, kPa or bar', async () => {
+    for (const drop of ['5 mbar', '0.5 kPa', '0.005 bar']) {
+      const res = await request(h.app)
+        .post(PATH)
+        .set(auth())
+        .send({ ...oneStageBody, suctionPressureDrop: drop });
+      expect(res.status).toBe(200);
+      // 5 mbar = 0.5 kPa = 0.005 bar (SI definitions): suction = 31 − 0.5 kPa
+      expect(res.body.compressor.suctionPressure).toBeCloseTo(30.5, 9);
+    }
+  });
+});
