@@ -22,7 +22,7 @@
 import { saturationPressure, saturationTemperature, IF97, if97CitationFor } from '../steam/if97.js';
 import { addWarning, KELVIN_OFFSET, type Citation, type WarningSink } from '../types.js';
 import { defineLiquorModel, type Interval, type LiquorModel, type ValidityBox } from './model.js';
-import { checkAgainst } from './validity.js';
+import { checkAgainst, checkPropertyBox } from './validity.js';
 import { EngineRangeError } from '../errors.js';
 
 const MODEL_ID = 'kraft-black-liquor';
@@ -297,17 +297,16 @@ function checkTransportInputs(
   temperature: number,
   warnings: WarningSink,
 ): number {
-  checkAgainst(
+  checkPropertyBox(
     MODEL_ID,
-    'massFraction',
-    massFraction,
-    'kg dry solids/kg liquor',
-    S_VALID_CP,
-    S_LIMITS,
-    warnings,
     property,
+    TRANSPORT_BOX,
+    { massFraction: S_LIMITS, temperature: T_LIMITS },
+    massFraction,
+    temperature,
+    warnings,
+    'kg dry solids/kg liquor',
   );
-  checkAgainst(MODEL_ID, 'temperature', temperature, 'K', T_VALID, T_LIMITS, warnings, property);
   return temperature - KELVIN_OFFSET;
 }
 

@@ -34,7 +34,7 @@ import {
   type WarningSink,
 } from '../types.js';
 import { defineLiquorModel, type Interval, type LiquorModel, type ValidityBox } from './model.js';
-import { checkAgainst } from './validity.js';
+import { checkAgainst, checkPropertyBox } from './validity.js';
 
 const MODEL_ID = 'seawater';
 
@@ -393,27 +393,14 @@ function checkProperty(
   temperature: number,
   warnings: WarningSink,
 ): void {
-  const box = RANGES[property];
-  const words = PROPERTY_WORDS[property];
-  checkAgainst(
+  checkPropertyBox(
     MODEL_ID,
-    'massFraction',
+    PROPERTY_WORDS[property],
+    RANGES[property],
+    { massFraction: MASS_FRACTION_LIMITS, temperature: TEMPERATURE_LIMITS },
     massFraction,
-    'kg/kg',
-    box.massFraction,
-    MASS_FRACTION_LIMITS,
-    warnings,
-    words,
-  );
-  checkAgainst(
-    MODEL_ID,
-    'temperature',
     temperature,
-    'K',
-    box.temperature,
-    TEMPERATURE_LIMITS,
     warnings,
-    words,
   );
 }
 

@@ -26,7 +26,7 @@ import {
 import { addWarning, KELVIN_OFFSET, type Citation, type WarningSink } from '../types.js';
 import { defineLiquorModel, type Interval, type LiquorModel, type ValidityBox } from './model.js';
 import { polyval } from '../numeric/polynomial.js';
-import { checkAgainst } from './validity.js';
+import { checkAgainst, checkPropertyBox } from './validity.js';
 
 const MODEL_ID = 'sodium-hydroxide';
 
@@ -570,17 +570,16 @@ function checkTransportInputs(
   temperature: number,
   warnings: WarningSink,
 ): number {
-  checkAgainst(
+  checkPropertyBox(
     MODEL_ID,
-    'massFraction',
-    massFraction,
-    'kg NaOH/kg solution',
-    box.massFraction,
-    X_LIMITS,
-    warnings,
     property,
+    box,
+    { massFraction: X_LIMITS, temperature: T_LIMITS },
+    massFraction,
+    temperature,
+    warnings,
+    'kg NaOH/kg solution',
   );
-  checkAgainst(MODEL_ID, 'temperature', temperature, 'K', box.temperature, T_LIMITS, warnings, property);
   return temperature - KELVIN_OFFSET;
 }
 

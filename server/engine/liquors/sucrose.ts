@@ -16,7 +16,7 @@ import {
 } from '../steam/if97.js';
 import { addWarning, KELVIN_OFFSET, type Citation, type EngineCaution, type WarningSink } from '../types.js';
 import { defineLiquorModel, type Interval, type LiquorModel, type ValidityBox } from './model.js';
-import { checkAgainst } from './validity.js';
+import { checkAgainst, checkPropertyBox } from './validity.js';
 import { brent } from '../numeric/roots.js';
 
 const MODEL_ID = 'sucrose';
@@ -343,27 +343,14 @@ function checkTransport(
   temperature: number,
   warnings: WarningSink,
 ): void {
-  const box = TRANSPORT_BOXES[property];
-  const words = PROPERTY_WORDS[property];
-  checkAgainst(
+  checkPropertyBox(
     MODEL_ID,
-    'massFraction',
+    PROPERTY_WORDS[property],
+    TRANSPORT_BOXES[property],
+    { massFraction: MASS_FRACTION_LIMITS, temperature: TEMPERATURE_LIMITS },
     massFraction,
-    'kg/kg',
-    box.massFraction,
-    MASS_FRACTION_LIMITS,
-    warnings,
-    words,
-  );
-  checkAgainst(
-    MODEL_ID,
-    'temperature',
     temperature,
-    'K',
-    box.temperature,
-    TEMPERATURE_LIMITS,
     warnings,
-    words,
   );
 }
 /** Pressures at which pure water boils inside the temperature box. */

@@ -63,3 +63,40 @@ export function checkAgainst(
     });
   }
 }
+
+/**
+ * The validity rule for a property whose source has its own box in mass fraction and temperature
+ * (a transport property): each input is checked with {@link checkAgainst} against that box and the
+ * model's hard limits, and an extrapolation warning names the property.
+ */
+export function checkPropertyBox(
+  modelId: string,
+  property: string,
+  box: { massFraction: Interval; temperature: Interval },
+  limits: { massFraction: Interval; temperature: Interval },
+  massFraction: number,
+  temperature: number,
+  warnings: WarningSink,
+  massFractionUnit = 'kg/kg',
+): void {
+  checkAgainst(
+    modelId,
+    'massFraction',
+    massFraction,
+    massFractionUnit,
+    box.massFraction,
+    limits.massFraction,
+    warnings,
+    property,
+  );
+  checkAgainst(
+    modelId,
+    'temperature',
+    temperature,
+    'K',
+    box.temperature,
+    limits.temperature,
+    warnings,
+    property,
+  );
+}
