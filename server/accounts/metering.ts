@@ -101,36 +101,8 @@ function prepareCommit(sqlite: Sqlite): CommitRecords {
       { accountId: number; day: string; operation: string; requests: number; units: number; errors: number }
     >();
     const lastUse = new Map<number, number>();
-    for (const r of records) {
-      const at = r.at.getTime();
-      const isError = r.status >= 400 ? 1 : 0;
-      if (r.logOnly) {
-        insertLog.run(
-          r.requestId,
-          at,
-          r.accountId,
-          r.keyId,
-          r.method,
-          r.path,
-          r.status,
-          r.latencyMs,
-          r.requestBody,
-          r.responseBody,
-          r.engineVersion,
-        );
-        continue;
-      }
-      insertEvent.run(
-        at,
-        r.accountId,
-        r.keyId,
-        r.operation,
-        r.status,
-        r.units,
-        r.latencyMs,
-        r.requestId,
-        r.engineVersion,
-      );
+    // Every record gets its request-log row; a refused key's (logOnly) gets nothing else.
+    const logRow = (r: (typeof records)[number], at: number) =>
       insertLog.run(
         r.requestId,
         at,
@@ -144,6 +116,25 @@ function prepareCommit(sqlite: Sqlite): CommitRecords {
         r.responseBody,
         r.engineVersion,
       );
+    for (const r of records) {
+      const at = r.at.getTime();
+      const isError = r.status >= 400 ? 1 : 0;
+      if (r.logOnly) {
+        logRow(r, at);
+        continue;
+      }
+      insertEvent.run(
+        at,
+        r.accountId,
+        r.keyId,
+        r.operation,
+        r.status,
+        r.units,
+        r.latencyMs,
+        r.requestId,
+        r.engineVersion,
+      );
+      logRow(r, at);
       const day = utcDay(r.at);
       const rollKey = `${r.accountId}\u0000${day}\u0000${r.operation}`;
       const roll = daily.get(rollKey);
