@@ -236,18 +236,8 @@ export interface LiquorBalance {
   need: number;
 }
 
-interface CoreState {
-  F: number;
-  L: number;
-  V: number;
-  xL: number;
-  hF: number;
-  hL: number;
-  T: number;
-  Tmean: number;
-  pMean: number;
-  HV: number;
-  superheat: number;
+/** The liquor-side balance with the steam side: S (kg/s), Q (W) and ΔT (K). */
+interface CoreState extends Omit<LiquorBalance, 'need'> {
   S: number;
   Q: number;
   dT: number;
