@@ -132,6 +132,70 @@ export function sumSeries(t: PowerSeries, x: number, y: number): number {
   return sum;
 }
 
+/**
+ * A series with the coefficients of its derivatives ready: n·I, n·I(I−1), n·J, n·J(J−1), n·I·J,
+ * so that γ and its first and second derivatives come from one pass over the terms.
+ */
+export interface DerivativeSeries extends PowerSeries {
+  readonly nI: Float64Array;
+  readonly nII: Float64Array;
+  readonly nJ: Float64Array;
+  readonly nJJ: Float64Array;
+  readonly nIJ: Float64Array;
+}
+
+export function derivativeSeries(rows: readonly number[]): DerivativeSeries {
+  const t = powerSeries(rows);
+  const nI = new Float64Array(t.count);
+  const nII = new Float64Array(t.count);
+  const nJ = new Float64Array(t.count);
+  const nJJ = new Float64Array(t.count);
+  const nIJ = new Float64Array(t.count);
+  for (let k = 0; k < t.count; k++) {
+    const n = t.n[k] as number;
+    const I = t.I[k] as number;
+    const J = t.J[k] as number;
+    nI[k] = n * I;
+    nII[k] = n * I * (I - 1);
+    nJ[k] = n * J;
+    nJJ[k] = n * J * (J - 1);
+    nIJ[k] = n * I * J;
+  }
+  return { ...t, nI, nII, nJ, nJJ, nIJ };
+}
+
+/**
+ * The six sums Σ c·x^I·y^J of a {@link DerivativeSeries} for c = n, n·I, n·I(I−1), n·J, n·J(J−1),
+ * n·I·J, left in `sums[0..5]` (x and y powers built here). A region turns them into γ and its
+ * derivatives by its own variables (Tables 4 and 14 of R7-97(2012)).
+ */
+export function derivativeSums(t: DerivativeSeries, x: number, y: number, sums: Float64Array): void {
+  fillPowers(xPowers, x, t.iMin, t.iMax);
+  fillPowers(yPowers, y, t.jMin, t.jMax);
+  const { n, nI, nII, nJ, nJJ, nIJ, xIndex, yIndex, count } = t;
+  let s0 = 0;
+  let sI = 0;
+  let sII = 0;
+  let sJ = 0;
+  let sJJ = 0;
+  let sIJ = 0;
+  for (let k = 0; k < count; k++) {
+    const v = (xPowers[xIndex[k] as number] as number) * (yPowers[yIndex[k] as number] as number);
+    s0 += (n[k] as number) * v;
+    sI += (nI[k] as number) * v;
+    sII += (nII[k] as number) * v;
+    sJ += (nJ[k] as number) * v;
+    sJJ += (nJJ[k] as number) * v;
+    sIJ += (nIJ[k] as number) * v;
+  }
+  sums[0] = s0;
+  sums[1] = sI;
+  sums[2] = sII;
+  sums[3] = sJ;
+  sums[4] = sJJ;
+  sums[5] = sIJ;
+}
+
 /** Forward properties of one (p, T) state, SI: filled by the lean forward equations. */
 export interface LeanProperties {
   /** m³/kg */

@@ -14,7 +14,7 @@ import type { LeanProperties } from './if97-lean-series.js';
 
 // Module-local aliases: the hot loops below then read constants of this module, not imported
 // bindings (which some loaders compile to property getters).
-const { fillPowers, powerSeries, R, xPowers, yPowers } = series;
+const { derivativeSeries, derivativeSums, fillPowers, R, xPowers, yPowers } = series;
 
 /** Reducing pressure p* = 16.53 MPa and temperature T* = 1386 K (eq. 7). */
 const P_STAR = 16.53e6;
@@ -63,26 +63,10 @@ const TABLE_2 = [
   32, -41, -0.93537087292458e-25,
 ];
 
-const T2 = powerSeries(TABLE_2);
-const count = T2.count;
-const xIndex = T2.xIndex;
-const yIndex = T2.yIndex;
-const nI = new Float64Array(count);
-const nII = new Float64Array(count);
-const nJ = new Float64Array(count);
-const nJJ = new Float64Array(count);
-const nIJ = new Float64Array(count);
-for (let k = 0; k < count; k++) {
-  const n = T2.n[k] as number;
-  const I = T2.I[k] as number;
-  const J = T2.J[k] as number;
-  nI[k] = n * I;
-  nII[k] = n * I * (I - 1);
-  nJ[k] = n * J;
-  nJJ[k] = n * J * (J - 1);
-  nIJ[k] = n * I * J;
-}
-const n0 = T2.n;
+const T2 = derivativeSeries(TABLE_2);
+const { count, xIndex, yIndex, nJ } = T2;
+/** s0 … sIJ of {@link derivativeSums}. */
+const sums = new Float64Array(6);
 
 /**
  * Specific enthalpy of region 1, R7-97(2012) Table 3: h = R·T·τ·γ_τ, with
@@ -121,23 +105,13 @@ export function region1Properties(p: number, T: number, out: LeanProperties): Le
   const tau = T_STAR / T;
   const x = 7.1 - pi;
   const y = tau - 1.222;
-  fillPowers(xPowers, x, T2.iMin, T2.iMax);
-  fillPowers(yPowers, y, T2.jMin, T2.jMax);
-  let s0 = 0;
-  let sI = 0;
-  let sII = 0;
-  let sJ = 0;
-  let sJJ = 0;
-  let sIJ = 0;
-  for (let k = 0; k < count; k++) {
-    const t = (xPowers[xIndex[k] as number] as number) * (yPowers[yIndex[k] as number] as number);
-    s0 += (n0[k] as number) * t;
-    sI += (nI[k] as number) * t;
-    sII += (nII[k] as number) * t;
-    sJ += (nJ[k] as number) * t;
-    sJJ += (nJJ[k] as number) * t;
-    sIJ += (nIJ[k] as number) * t;
-  }
+  derivativeSums(T2, x, y, sums);
+  const s0 = sums[0] as number;
+  const sI = sums[1] as number;
+  const sII = sums[2] as number;
+  const sJ = sums[3] as number;
+  const sJJ = sums[4] as number;
+  const sIJ = sums[5] as number;
   // Table 4: d/dπ of (7.1 − π)^I is −I·(7.1 − π)^(I−1).
   const g = s0;
   const gPi = -sI / x;

@@ -17,7 +17,7 @@ import type { LeanProperties } from './if97-lean-series.js';
 
 // Module-local aliases: the hot loops below then read constants of this module, not imported
 // bindings (which some loaders compile to property getters).
-const { fillPowers, powerSeries, R, xPowers, yPowers } = series;
+const { derivativeSeries, derivativeSums, fillPowers, R, xPowers, yPowers } = series;
 
 /** Reducing pressure p* = 1 MPa and temperature T* = 540 K (eq. 15). */
 const P_STAR = 1e6;
@@ -105,26 +105,10 @@ const idealPowers = new Float64Array(16);
 const IDEAL_MIN = -5;
 const IDEAL_OFFSET = -IDEAL_MIN + series.POWER_OFFSET;
 
-const T11 = powerSeries(TABLE_11);
-const count = T11.count;
-const xIndex = T11.xIndex;
-const yIndex = T11.yIndex;
-const nR = T11.n;
-const nI = new Float64Array(count);
-const nII = new Float64Array(count);
-const nJ = new Float64Array(count);
-const nJJ = new Float64Array(count);
-const nIJ = new Float64Array(count);
-for (let k = 0; k < count; k++) {
-  const n = T11.n[k] as number;
-  const I = T11.I[k] as number;
-  const J = T11.J[k] as number;
-  nI[k] = n * I;
-  nII[k] = n * I * (I - 1);
-  nJ[k] = n * J;
-  nJJ[k] = n * J * (J - 1);
-  nIJ[k] = n * I * J;
-}
+const T11 = derivativeSeries(TABLE_11);
+const { count, xIndex, yIndex, nJ } = T11;
+/** s0 … sIJ of {@link derivativeSums}. */
+const sums = new Float64Array(6);
 
 /**
  * Sums of the ideal-gas part at τ (Table 13): γ° − ln π, τ·γ°_τ and τ²·γ°_ττ, left in
@@ -200,23 +184,13 @@ export function region2Properties(p: number, T: number, out: LeanProperties): Le
   const g0 = Math.log(pi) + (idealSums[0] as number);
   const tg0 = idealSums[1] as number; // τ·γ°_τ
   const ttg0 = idealSums[2] as number; // τ²·γ°_ττ
-  fillPowers(xPowers, pi, T11.iMin, T11.iMax);
-  fillPowers(yPowers, y, T11.jMin, T11.jMax);
-  let s0 = 0;
-  let sI = 0;
-  let sII = 0;
-  let sJ = 0;
-  let sJJ = 0;
-  let sIJ = 0;
-  for (let k = 0; k < count; k++) {
-    const t = (xPowers[xIndex[k] as number] as number) * (yPowers[yIndex[k] as number] as number);
-    s0 += (nR[k] as number) * t;
-    sI += (nI[k] as number) * t;
-    sII += (nII[k] as number) * t;
-    sJ += (nJ[k] as number) * t;
-    sJJ += (nJJ[k] as number) * t;
-    sIJ += (nIJ[k] as number) * t;
-  }
+  derivativeSums(T11, pi, y, sums);
+  const s0 = sums[0] as number;
+  const sI = sums[1] as number;
+  const sII = sums[2] as number;
+  const sJ = sums[3] as number;
+  const sJJ = sums[4] as number;
+  const sIJ = sums[5] as number;
   // Table 14, written as π·γʳ_π = sI, π²·γʳ_ππ = sII, τ·γʳ_τ = τ·sJ/y, τ²·γʳ_ττ = τ²·sJJ/y²,
   // τ·π·γʳ_πτ = τ·sIJ/y.
   const piGr = sI;
