@@ -12,6 +12,16 @@ export function operationTitle(id: string): string {
   return titles.get(id) ?? id;
 }
 
+const idsByTitle = new Map<string, string>(
+  Object.values(operationCatalogue).map((op) => [op.title.toLowerCase(), op.id]),
+);
+
+/** What a person typed in an operation filter, as the id the server filters by: a title is read as its id. */
+export function operationIdOf(text: string): string {
+  const t = text.trim();
+  return idsByTitle.get(t.toLowerCase()) ?? t;
+}
+
 /** Choices for an operation filter: the title shown, the id sent. */
 export function operationChoices(ids: readonly string[]): { title: string; value: string }[] {
   return ids.map((id) => ({ title: operationTitle(id), value: id }));

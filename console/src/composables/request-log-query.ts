@@ -3,6 +3,7 @@
  * export always agree: GET /console-api/request-log and /request-log/export.csv take the same
  * filters (shared/console/request-log.ts), the page adds paging and sorting.
  */
+import { operationIdOf } from './operation-titles.js';
 import type { Query } from '../api/client.js';
 
 /** What the filter bar holds. Times are the values of <input type="datetime-local"> (local time). */
@@ -67,7 +68,7 @@ export function filterQuery(f: RequestLogFilters): Query {
   return {
     accountId: f.accountId ?? undefined,
     keyId: f.keyId ?? undefined,
-    operation: f.operation?.trim() || undefined,
+    operation: f.operation?.trim() ? operationIdOf(f.operation) : undefined,
     status: normaliseStatus(f.status),
     from: localToInstant(f.from),
     to: localToInstant(f.to),
