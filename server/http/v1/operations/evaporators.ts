@@ -19,24 +19,15 @@ import type {
   MultipleEffectResult,
   ThermocompressorSpec,
 } from '../../../engine/evaporators/multiple-effect.js';
-import type { SingleEffectResult, StreamState } from '../../../engine/evaporators/single-effect.js';
+import type { SingleEffectResult } from '../../../engine/evaporators/single-effect.js';
 import type { MultipleEffectTask, SingleEffectTask } from '../../../workers/engine-tasks.js';
-import { resolveLiquor } from '../../../liquors/index.js';
 import { warningsOut, type FieldMap } from '../../engine-errors.js';
 import { display, provenance, r } from '../../output.js';
 import { problem } from '../../problem.js';
-import { declareOperation, type OperationContext } from '../operation.js';
+import { declareOperation } from '../operation.js';
 import { coefficientData, effectBreakdownOut, estimateUnits, type EstimateInput } from './heat-transfer.js';
 import { IF97_MODEL } from './steam.js';
-
-function stream(s: StreamState) {
-  return {
-    massFlow: r(s.massFlow),
-    massFraction: r(s.massFraction),
-    temperature: display(s.temperature, 'temperature'),
-    enthalpy: display(s.enthalpy, 'specificEnthalpy'),
-  };
-}
+import { bodyLiquor, streamOut } from './common.js';
 
 /** J/m³ → kWh/m³ (the figures of merit's energy per volume of distillate). */
 const J_PER_KWH = 3.6e6;
@@ -117,9 +108,6 @@ export function bodyEstimateCaseUnits(base: number): (c: Record<string, unknown>
 }
 
 /** The liquor of an evaporator request (inline, built-in or stored), found once the body is valid. */
-function bodyLiquor(parts: { body: { liquor: Parameters<typeof resolveLiquor>[0] } }, ctx: OperationContext) {
-  return resolveLiquor(parts.body.liquor, ctx.db, ctx.accountId, 'liquor');
-}
 
 export const singleEffect = declareOperation({
   operation: operationCatalogue.singleEffect,
@@ -233,8 +221,8 @@ export const singleEffect = declareOperation({
     output: (result: SingleEffectResult, { body: b, loaded: liquor }, ctx): SingleEffectResponse => {
       return {
         mode: result.mode,
-        feed: stream(result.feed),
-        product: stream(result.product),
+        feed: streamOut(result.feed),
+        product: streamOut(result.product),
         vapor: {
           massFlow: r(result.vapor.massFlow),
           pressure: display(result.vapor.pressure, 'pressure'),
@@ -435,7 +423,7 @@ export const multipleEffect = declareOperation({
           temperature: display(result.steam.temperature, 'temperature'),
           latentHeat: display(result.steam.heatPerKg, 'specificEnthalpy'),
         },
-        product: stream(result.product),
+        product: streamOut(result.product),
         totalArea: r(result.totalArea),
         evaporation: r(result.evaporation),
         steamEconomy: r(result.steamEconomy),

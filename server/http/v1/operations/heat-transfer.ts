@@ -24,16 +24,12 @@ import {
 import type { LiquorModel } from '../../../engine/liquors/model.js';
 import { saturationPressure, saturationTemperature } from '../../../engine/steam/if97.js';
 import type { EngineWarning } from '../../../engine/types.js';
-import { resolveLiquor } from '../../../liquors/index.js';
 import type { CoefficientData } from '../../../workers/engine-tasks.js';
 import { calculate, warningsOut, type FieldMap } from '../../engine-errors.js';
 import { display, provenance, r } from '../../output.js';
-import { declareOperation, type OperationContext } from '../operation.js';
+import { declareOperation } from '../operation.js';
 import { IF97_MODEL } from './steam.js';
-
-function bodyLiquor(parts: { body: { liquor: Parameters<typeof resolveLiquor>[0] } }, ctx: OperationContext) {
-  return resolveLiquor(parts.body.liquor, ctx.db, ctx.accountId, 'liquor');
-}
+import { bodyLiquor } from './common.js';
 
 /** Drops the keys whose value is undefined (the engine's optional fields are absent, not undefined). */
 function defined<T extends object>(o: T | undefined): { [K in keyof T]?: Exclude<T[K], undefined> } {

@@ -15,14 +15,13 @@ import {
   mechanicalVaporRecompressionFiguresOfMerit,
 } from '../../../engine/evaporators/mechanical-vapor-recompression.js';
 import type { EngineWarning } from '../../../engine/types.js';
-import type { StreamState } from '../../../engine/evaporators/single-effect.js';
-import { resolveLiquor } from '../../../liquors/index.js';
 import { calculate, warningsOut, type FieldMap } from '../../engine-errors.js';
 import { display, provenance, r } from '../../output.js';
 import { declareOperation } from '../operation.js';
 import { bodyEstimateCaseUnits, bodyEstimateUnits, estimateSources, figuresOut } from './evaporators.js';
 import { coefficientInput, effectBreakdownOut, type EstimateInput } from './heat-transfer.js';
 import { IF97_MODEL } from './steam.js';
+import { bodyLiquor, streamOut } from './common.js';
 
 const FIELDS: FieldMap = {
   pressure: 'body.pressure',
@@ -32,15 +31,6 @@ const FIELDS: FieldMap = {
   boilingPointRise: 'boilingPointRise',
   suctionPressureDrop: { path: 'suctionPressureDrop', kind: 'pressure' },
 };
-
-function stream(s: StreamState) {
-  return {
-    massFlow: r(s.massFlow),
-    massFraction: r(s.massFraction),
-    temperature: display(s.temperature, 'temperature'),
-    enthalpy: display(s.enthalpy, 'specificEnthalpy'),
-  };
-}
 
 export const mechanicalVaporRecompressionOperation = declareOperation({
   operation: operationCatalogue.mechanicalVaporRecompression,
@@ -75,8 +65,7 @@ export const mechanicalVaporRecompressionOperation = declareOperation({
     schema: MechanicalVaporRecompressionResponseSchema,
   },
   loadAfterBody: true,
-  load: (parts: { body: { liquor: Parameters<typeof resolveLiquor>[0] } }, ctx) =>
-    resolveLiquor(parts.body.liquor, ctx.db, ctx.accountId, 'liquor'),
+  load: bodyLiquor,
   run: ({ body: b, loaded: liquor }, ctx): MechanicalVaporRecompressionResponse => {
     const result = calculate(FIELDS, () => {
       const { massFraction: productFraction, massFlow: productFlow, enthalpy: productEnthalpy } = b.product;
@@ -150,8 +139,8 @@ export const mechanicalVaporRecompressionOperation = declareOperation({
       temperatureDifference: r(result.temperatureDifference),
       area: r(result.area),
       boilingPointRise: r(result.boilingPointRise),
-      feed: stream(result.feed),
-      product: stream(result.product),
+      feed: streamOut(result.feed),
+      product: streamOut(result.product),
       vapor: {
         massFlow: r(result.vapor.massFlow),
         pressure: display(result.vapor.pressure, 'pressure'),

@@ -29,10 +29,10 @@ import type { SI } from '../../quantities.js';
 import { calculate, toProblem, warningsOut, type FieldMap } from '../../engine-errors.js';
 import { display, provenance, r } from '../../output.js';
 import { problem } from '../../problem.js';
-import { declareOperation, type OperationContext } from '../operation.js';
-import { resolveLiquor } from '../../../liquors/index.js';
+import { declareOperation } from '../operation.js';
 import { MULTIPLE_EFFECT_FIELDS, multipleEffect } from './evaporators.js';
 import { IF97_MODEL } from './steam.js';
+import { bodyLiquor } from './common.js';
 
 type StudyBody = SI<EvaporatorSchemeStudyRequest>;
 
@@ -194,10 +194,6 @@ function candidateUnits(body: unknown): number[] | undefined {
  */
 export function studyUnits(body: unknown): number | undefined {
   return candidateUnits(body)?.reduce((sum, u) => sum + u, 0);
-}
-
-function bodyLiquor(parts: { body: { liquor: Parameters<typeof resolveLiquor>[0] } }, ctx: OperationContext) {
-  return resolveLiquor(parts.body.liquor, ctx.db, ctx.accountId, 'liquor');
 }
 
 const ECONOMIC_CAUTIONS: EngineCaution[] = [
