@@ -460,5 +460,8 @@ describe('the calculation pool', () => {
     await closeApp(h.deps);
     expect(p.destroyed).toBe(true);
     await expect(p.run('evaporators.multiple-effect', {})).rejects.toThrow(/shut down/);
+    // A request that still arrives is calculated on the main thread, not refused with a 500.
+    const late = await request(h.app).post('/v1/evaporators/multiple-effect').set(auth(h)).send(train(10));
+    expect(late.status).toBe(200);
   });
 });

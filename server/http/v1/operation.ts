@@ -287,7 +287,7 @@ export function poolProblem(err: unknown, requestId: unknown): ProblemError {
 
 /** Whether tasks go to worker threads (a pool with threads, not destroyed). */
 export function pooled(pool: EnginePool | undefined): pool is EnginePool {
-  return pool !== undefined && pool.workers > 0;
+  return pool !== undefined && pool.workers > 0 && !pool.destroyed;
 }
 
 /** Parses and runs a request for `op` on this thread (the engine inline). */
