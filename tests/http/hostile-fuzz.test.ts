@@ -237,6 +237,34 @@ const BATCH_CSV: Record<string, string[][]> = {
     ],
     ['4.5 t/h', '0.1', '40', '0.3', '3 barg', '20', '1800'],
   ],
+  'multiple-effect': [
+    [
+      'effects',
+      'feed.massFlow',
+      'feed.massFraction',
+      'feed.temperature',
+      'product.massFraction',
+      'steam.pressure',
+      'lastEffectPressure',
+      'overallHeatTransferCoefficients[0]',
+      'overallHeatTransferCoefficients[1]',
+      'atmosphericPressure',
+    ],
+    ['2', '4.5 t/h', '0.1', '40', '0.3', '3 barg', '20', '1800', '1500', '99 kPa'],
+  ],
+  'mechanical-vapor-recompression': [
+    [
+      'feed.massFlow',
+      'feed.massFraction',
+      'feed.temperature',
+      'product.massFraction',
+      'body.pressure',
+      'body.overallHeatTransferCoefficient',
+      'body.temperatureDifference',
+      'compressor.isentropicEfficiency',
+    ],
+    ['10', '0.03', '60', '0.06', '31', '2500', '5', '0.75'],
+  ],
 };
 const DUHRING_CSV = [
   ['massFraction', 'waterBoilingPoint', 'solutionBoilingPoint'],
@@ -247,7 +275,7 @@ const DUHRING_CSV = [
 ];
 
 /** A CSV body for an upload target with extra columns (header → cell value of every row). */
-function csvWith(t: Target, extra: [string, string][], base: 'steam-saturation' | 'single-effect'): string {
+function csvWith(t: Target, extra: [string, string][], base: keyof typeof BATCH_CSV): string {
   const rows = t.template.includes('batch') ? BATCH_CSV[base]! : DUHRING_CSV;
   return csv(rows.map((r, i) => [...r, ...extra.map(([h, v]) => (i === 0 ? h : v))]));
 }
@@ -522,6 +550,23 @@ beforeAll(async () => {
   await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve));
   port = (server.address() as AddressInfo).port;
   targets = [...v1Targets(), ...consoleTargets(h.accountId), webhookTarget];
+  // The documented stored liquor exists, so hostile bodies sent to PUT /v1/stored-liquors/{id}
+  // reach its body reader instead of stopping at a 404 for an unknown liquor.
+  const doc = JSON.parse(fs.readFileSync(new URL('../../openapi/openapi.json', import.meta.url), 'utf8')) as {
+    paths: Record<
+      string,
+      { post: { requestBody: { content: Record<string, { examples: Record<string, { value: unknown }> }> } } }
+    >;
+  };
+  const storedExample =
+    doc.paths['/v1/stored-liquors']!.post.requestBody.content['application/json']!.examples['spent-wash']!
+      .value;
+  const made = await fetch(`http://127.0.0.1:${port}/v1/stored-liquors`, {
+    method: 'POST',
+    headers: { authorization: `Bearer ${h.token}`, 'content-type': 'application/json' },
+    body: JSON.stringify(storedExample),
+  });
+  expect(made.status).toBe(201);
 
   const before = await singleEffect();
   baseline = { status: before.status, body: JSON.parse(before.text) as unknown };
@@ -572,12 +617,22 @@ const PROTO_CSV_HEADERS = [
   '__proto__[0]',
   'feed.constructor.prototype.polluted',
   'prototype.polluted',
+  // under the nested paths of the recompression and estimate inputs
+  'compressor.__proto__.polluted',
+  'body.overallHeatTransferCoefficient.estimate.__proto__.polluted',
+  'thermocompressor.constructor.prototype.polluted',
+  'atmosphericPressure.__proto__',
 ];
 const prototypeKeyCsv = fc.record({
   target: targetIndex,
   headers: fc.subarray(PROTO_CSV_HEADERS, { minLength: 1, maxLength: 3 }),
   value: fc.constantFrom('yes', '1', 'true', '{}'),
-  base: fc.constantFrom('steam-saturation' as const, 'single-effect' as const),
+  base: fc.constantFrom(
+    'steam-saturation' as const,
+    'single-effect' as const,
+    'multiple-effect' as const,
+    'mechanical-vapor-recompression' as const,
+  ),
   /** text/csv (batch only) or a multipart upload; a multipart field name may carry the key too. */
   transport: fc.constantFrom('csv', 'multipart', 'multipart-proto-field'),
 });
@@ -618,7 +673,19 @@ const deepNesting = fc.record({
   shape: fc.constantFrom('array' as const, 'object' as const, 'proto' as const, 'mixed' as const),
   /** The whole body, or a member of the example (first object, so the route's own fields are there too). */
   whole: fc.boolean(),
-  member: fc.constantFrom('liquor', 'cases', 'feed', 'nested', 'data'),
+  member: fc.constantFrom(
+    'liquor',
+    'cases',
+    'feed',
+    'nested',
+    'data',
+    'atmosphericPressure',
+    'thermocompressor',
+    'compressor',
+    'prices',
+    'tube',
+    'liquorProperties',
+  ),
   at: fc.nat(),
 });
 
