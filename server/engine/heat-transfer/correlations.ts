@@ -239,15 +239,17 @@ export function nusseltCondensationCoefficient(
   height: number,
   subcooling: number,
 ): number {
+  // h = q/ΔT with q from the one written form of the equation below.
   return (
-    0.943 *
-    ((liquidDensity *
-      (liquidDensity - vaporDensity) *
-      STANDARD_GRAVITY *
-      thermalConductivity ** 3 *
-      latentHeat) /
-      (viscosity * height * subcooling)) **
-      0.25
+    nusseltCondensationHeatFlux(
+      liquidDensity,
+      vaporDensity,
+      thermalConductivity,
+      viscosity,
+      latentHeat,
+      height,
+      subcooling,
+    ) / subcooling
   );
 }
 

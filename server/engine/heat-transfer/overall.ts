@@ -287,6 +287,9 @@ export const NUCLEATION_CRITICAL_PRESSURE = IF97.criticalPressure;
 /** The film temperature of the condensate properties is converged to this, K. */
 const FILM_TEMPERATURE_TOLERANCE = 0.01;
 
+/** Largest fouling resistance accepted, m²·K/W. */
+const MAX_FOULING_RESISTANCE = 0.1;
+
 /**
  * Estimates U of an evaporator tube (see the module comment for the model).
  * Refuses (EngineRangeError / EngineInputError naming the field) a wall thicker than the radius,
@@ -348,10 +351,20 @@ export function estimateOverallCoefficient(input: OverallCoefficientInput): Over
   const foulingInsideGiven = input.fouling?.inside;
   const Rfo = foulingOutsideGiven ?? DEFAULT_FOULING.outside.resistance;
   const Rfi = foulingInsideGiven ?? DEFAULT_FOULING.inside.resistance;
-  if (!Number.isFinite(Rfo) || Rfo < 0)
-    throw new EngineRangeError('fouling.outside', Rfo, { min: 0, max: 0.01, unit: 'm²·K/W' });
-  if (!Number.isFinite(Rfi) || Rfi < 0)
-    throw new EngineRangeError('fouling.inside', Rfi, { min: 0, max: 0.01, unit: 'm²·K/W' });
+  // The range said is the range checked: up to 0.1 m²·K/W (U below 10 W/(m²·K) is no evaporator),
+  // the contract's physical range of a fouling resistance.
+  if (!Number.isFinite(Rfo) || Rfo < 0 || Rfo > MAX_FOULING_RESISTANCE)
+    throw new EngineRangeError('fouling.outside', Rfo, {
+      min: 0,
+      max: MAX_FOULING_RESISTANCE,
+      unit: 'm²·K/W',
+    });
+  if (!Number.isFinite(Rfi) || Rfi < 0 || Rfi > MAX_FOULING_RESISTANCE)
+    throw new EngineRangeError('fouling.inside', Rfi, {
+      min: 0,
+      max: MAX_FOULING_RESISTANCE,
+      unit: 'm²·K/W',
+    });
 
   const ratio = Do / Di;
   const Rwall = cylindricalWallResistance(Do, Di, kw);
@@ -528,13 +541,11 @@ export function estimateOverallCoefficient(input: OverallCoefficientInput): Over
     throw new EngineRangeError('bodyPressure', pBody, { min: 0, max: pCritical, unit: 'Pa' });
   }
   const hc = hConvective;
-  /** Temperature drop from the liquor-side surface to the liquor at inside heat flux qi. */
-  const boilingDrop = nucleate
-    ? (qi: number): number => qi / kutateladzeAddition(hc, mostinskiNucleateBoiling(qi, pBody, pCritical))
-    : (qi: number): number => qi / hc;
   const hInside = nucleate
     ? (qi: number): number => kutateladzeAddition(hc, mostinskiNucleateBoiling(qi, pBody, pCritical))
     : (): number => hc;
+  /** Temperature drop from the liquor-side surface to the liquor at inside heat flux qi. */
+  const boilingDrop = (qi: number): number => qi / hInside(qi);
 
   // Condensing side: h_fg and ρ_v at T_sat; the film's properties at T_f (fixed-point loop).
   const sat = saturationAtTemperature(Ts, { transport: false });

@@ -251,6 +251,17 @@ describe('overall coefficient: refusals', () => {
     ).toThrow(/circulationVelocity/);
   });
 
+  it('refuses a fouling resistance above the range it states (0 to 0.1 m²·K/W)', () => {
+    expectRangeError(() => estimateOverallCoefficient({ ...fallingFilm, fouling: { outside: 0.2 } }), {
+      field: 'fouling.outside',
+      validRange: { min: 0, max: 0.1, unit: 'm²·K/W' },
+    });
+    expectRangeError(() => estimateOverallCoefficient({ ...fallingFilm, fouling: { inside: -1e-4 } }), {
+      field: 'fouling.inside',
+      validRange: { min: 0, max: 0.1, unit: 'm²·K/W' },
+    });
+  });
+
   it('refuses an evaporated fraction of 1 or more', () => {
     expectRangeError(
       () => estimateOverallCoefficient({ ...fallingFilm, flow: { wettingRate: 0.5, evaporatedFraction: 1 } }),
