@@ -1153,7 +1153,7 @@ export function saturatedLiquidTransport(temperature: number): SaturatedLiquidTr
     pressure,
     density,
     heatCapacity: raw.cp,
-    viscosity: packageViscosity(temperature, density) * 1e-6,
-    thermalConductivity: packageConductivity(temperature, density) * 1e-3,
+    viscosity: viscosityAtDensity(temperature, density),
+    thermalConductivity: thermalConductivityAtDensity(temperature, density),
   };
 }
