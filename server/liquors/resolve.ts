@@ -6,7 +6,7 @@
 import { randomUUID } from 'node:crypto';
 import type { LiquorRef } from '../../shared/contracts/index.js';
 import type { Db } from '../db/client.js';
-import type { LiquorDescription } from '../engine/liquors/description.js';
+import type { LiquorReference } from '../engine/liquors/description.js';
 import type { LiquorModel } from '../engine/liquors/model.js';
 import { findBuiltInLiquor } from '../engine/liquors/registry.js';
 import type { EngineWarning } from '../engine/types.js';
@@ -22,7 +22,7 @@ export interface ResolvedLiquor {
   /** Warnings about the definition itself (custom liquors). */
   definitionWarnings: EngineWarning[];
   /** The model as plain data, for a calculation in a worker thread, which rebuilds it. */
-  description: LiquorDescription;
+  description: LiquorReference;
 }
 
 function modelRefs(model: LiquorModel): ModelRef[] {

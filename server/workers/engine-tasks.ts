@@ -1,7 +1,7 @@
 /**
  * The engine's heavy calculations as tasks of plain data, keyed by operation id: what a worker
  * thread (./engine-worker.ts) or the main thread (inline) runs for the HTTP layer. A task's input
- * is the request already in SI with its liquor as a {@link LiquorDescription}; its result is the
+ * is the request already in SI with its liquor as a {@link LiquorReference}; its result is the
  * engine's own plain result object; an engine error comes back as {@link SerializedError} data
  * and is rebuilt as the same typed error by {@link reviveError}, so the edge maps it to the same
  * problem whichever thread ran it. HTTP-free: this module imports only the engine.
@@ -39,13 +39,13 @@ import {
   type OverallCoefficientEstimateSpec,
   type OverallCoefficientProvider,
 } from '../engine/heat-transfer/overall.js';
-import { liquorFromDescription, type LiquorDescription } from '../engine/liquors/description.js';
+import { liquorFromDescription, type LiquorReference } from '../engine/liquors/description.js';
 import type { LiquorModel } from '../engine/liquors/model.js';
 import { operationCatalogue } from '../../shared/operations.js';
 
-export type { LiquorDescription } from '../engine/liquors/description.js';
+export type { LiquorReference } from '../engine/liquors/description.js';
 
-type WithoutLiquor<T> = Omit<T, 'liquor'> & { liquor: LiquorDescription };
+type WithoutLiquor<T> = Omit<T, 'liquor'> & { liquor: LiquorReference };
 
 /**
  * U of an effect as plain data: W/(m²·K), or an estimate's own inputs (SI) with the request field

@@ -8,7 +8,8 @@ import { createCustomLiquor, type CustomLiquorDefinition } from './custom.js';
 import type { LiquorModel } from './model.js';
 import { findBuiltInLiquor } from './registry.js';
 
-export type LiquorDescription =
+/** A liquor as plain data for a worker thread (not the public {@link LiquorModel} description). */
+export type LiquorReference =
   | { builtIn: string }
   | {
       /** The definition in SI, as `createCustomLiquor` takes it. */
@@ -24,7 +25,7 @@ const COMPILED_MAX = 64;
 const compiled = new Map<string, LiquorModel>();
 
 /** The model a description names (refuses an unknown built-in id with an Error: a caller's bug). */
-export function liquorFromDescription(description: LiquorDescription): LiquorModel {
+export function liquorFromDescription(description: LiquorReference): LiquorModel {
   if ('builtIn' in description) {
     const model = findBuiltInLiquor(description.builtIn);
     if (!model) throw new Error(`unknown built-in liquor "${description.builtIn}"`);
