@@ -15,7 +15,7 @@
  */
 import { physicalRanges, type QuantityKind, type WarningDto } from '../../shared/contracts/index.js';
 import { EngineInputError, EngineNoSolutionError, EngineRangeError } from '../engine/errors.js';
-import type { EngineQuantity, EngineWarning } from '../engine/types.js';
+import { kindOfSiUnit, type EngineQuantity, type EngineWarning } from '../engine/types.js';
 import { UnitError } from '../units/index.js';
 import { displayNumber, displayRange, sayQuantity, sayValueAndRange } from './output.js';
 import { problem, ProblemError } from './problem.js';
@@ -28,33 +28,18 @@ export interface FieldMapping {
 }
 export type FieldMap = Record<string, string | FieldMapping>;
 
-const SI_KIND_BY_UNIT: Record<string, QuantityKind> = {
-  Pa: 'pressure',
-  K: 'temperature',
-  'J/kg': 'specificEnthalpy',
-  'J/(kg·K)': 'specificHeatCapacity',
-  'J/(kg*K)': 'specificHeatCapacity',
-  W: 'power',
-  'kg/s': 'massFlow',
-  'm²': 'area',
-  m2: 'area',
-  'W/(m²·K)': 'heatTransferCoefficient',
-  'W/(m2*K)': 'heatTransferCoefficient',
-  m: 'length',
-  'kg/kg': 'massFraction',
-  'kg/m³': 'density',
-  'm/s': 'velocity',
-  'kg/(m·s)': 'wettingRate',
-  'm²·K/W': 'foulingResistance',
-  'W/(m·K)': 'thermalConductivity',
-  'Pa·s': 'viscosity',
-  'W/m²': 'heatFlux',
-};
+/** ASCII spellings some engine messages use for units `kindOfSiUnit` knows in their printed form. */
+const ASCII_SI_UNITS: Record<string, string> = { m2: 'm²', 'J/(kg*K)': 'J/(kg·K)', 'W/(m2*K)': 'W/(m²·K)' };
+
+/** The quantity kind of an SI unit named by the engine (the engine's own table). */
+function siKind(unit: string): QuantityKind | undefined {
+  return kindOfSiUnit(ASCII_SI_UNITS[unit] ?? unit);
+}
 
 function mapField(map: FieldMap, engineField: string, siUnit: string): FieldMapping {
   const direct = map[engineField];
   const guessKind = (): QuantityKind | undefined => {
-    const kind = SI_KIND_BY_UNIT[siUnit];
+    const kind = siKind(siUnit);
     // Temperature differences (superheat, BPR, ΔT) are in K in both SI and display units.
     if (kind === 'temperature' && /superheat|subcool|difference|rise|delta/i.test(engineField)) {
       return 'temperatureDifference';
@@ -154,7 +139,7 @@ export function warningsOut(warnings: readonly EngineWarning[], map: FieldMap = 
     const out: WarningDto = { code: w.code, message: sayWarning(w, mapped?.path) };
     if (mapped) out.field = mapped.path;
     if (w.validRange) {
-      const kind = mapped?.kind ?? SI_KIND_BY_UNIT[w.validRange.unit];
+      const kind = mapped?.kind ?? siKind(w.validRange.unit);
       const r = displayRange(w.validRange, kind);
       // A range is stated within what the quantity can physically be (not "from −273.15 °C").
       const phys = kind ? physicalRanges[kind] : undefined;
