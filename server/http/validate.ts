@@ -5,7 +5,7 @@
  * has one, the valid range in display units.
  */
 import type { z } from 'zod';
-import type { ValidRangeDto } from '../../shared/contracts/index.js';
+import { CONTRACT_FIELD_HINTS, type ValidRangeDto } from '../../shared/contracts/index.js';
 import { problem, type ProblemError, type ProblemFieldError } from './problem.js';
 
 /** Dotted request path of a zod issue path: ['effects', 2, 'area'] → "effects[2].area". */
@@ -68,8 +68,8 @@ function issueToErrors(
     return bestUnionBranch(issue.errors).flatMap((i) => issueToErrors(i, path, input, prefix));
   }
   if (issue.code === 'unrecognized_keys') {
-    // A contract may explain a likely mistake (its own message instead of zod's default).
-    if (!issue.message.startsWith('Unrecognized key')) {
+    // A contract may explain a likely mistake: a message of its own, listed in CONTRACT_FIELD_HINTS.
+    if (CONTRACT_FIELD_HINTS.has(issue.message)) {
       const hint = { field: fieldPath([...path, issue.keys[0] ?? ''], prefix), message: issue.message };
       hints.add(hint);
       return [hint];

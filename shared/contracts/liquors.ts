@@ -173,8 +173,17 @@ function referenceByObjectHint(issue: z.core.$ZodRawIssue): string | undefined {
   if (issue.code !== 'unrecognized_keys') return undefined;
   const keys = (issue as { keys?: string[] }).keys ?? [];
   if (!keys.includes('id') && !keys.includes('stored')) return undefined;
-  return 'a built-in or stored liquor is named by its id as a plain string, e.g. "liquor": "sodium-hydroxide"; an object defines a custom liquor (name, boilingPoint or boilingPointRise, heatCapacity)';
+  return LIQUOR_BY_ID_HINT;
 }
+
+const LIQUOR_BY_ID_HINT =
+  'a built-in or stored liquor is named by its id as a plain string, e.g. "liquor": "sodium-hydroxide"; an object defines a custom liquor (name, boilingPoint or boilingPointRise, heatCapacity)';
+
+/**
+ * The messages the contracts give unknown fields that are likely mistakes: the validator lists them
+ * first under the field they name, instead of "is not a field of this request".
+ */
+export const CONTRACT_FIELD_HINTS: ReadonlySet<string> = new Set([LIQUOR_BY_ID_HINT]);
 
 export const CustomLiquorDefinitionSchema = z
   .object(
