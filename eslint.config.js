@@ -29,6 +29,16 @@ export default tseslint.config(
     rules: { 'no-undef': 'off' },
   },
   {
+    // The repositories are async on both databases: a call whose promise nobody awaits would let a
+    // response leave before its write, or lose the write's error. Type-aware, so server and tests.
+    files: ['server/**/*.ts', 'tests/**/*.ts', 'scripts/**/*.ts'],
+    languageOptions: { parserOptions: { projectService: true, tsconfigRootDir: import.meta.dirname } },
+    rules: {
+      '@typescript-eslint/no-floating-promises': ['error', { ignoreVoid: true }],
+      '@typescript-eslint/await-thenable': 'error',
+    },
+  },
+  {
     rules: {
       '@typescript-eslint/no-unused-vars': ['error', { argsIgnorePattern: '^_', varsIgnorePattern: '^_' }],
       // layout rules that Prettier owns

@@ -10,18 +10,20 @@ import { writeFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { loadConfig } from '../server/config.js';
 import { openDatabase } from '../server/db/client.js';
+import { sqliteStore } from '../server/db/store.js';
 import { createConsoleRouter } from '../server/console/index.js';
 import { buildConsoleOpenApiDocument } from '../server/console/openapi.js';
 import { consoleRouteTable } from '../server/console/route.js';
 
 export function serialiseConsoleOpenApi(): string {
   const { sqlite, db } = openDatabase(':memory:');
+  const store = sqliteStore(sqlite, db);
   try {
     const config = loadConfig({
       EBULLIO_SECRET: 'openapi-generation-only-not-a-secret-0000',
       DB_FILE: ':memory:',
     });
-    createConsoleRouter({ db, sqlite, config, clock: () => new Date(0), engineVersion: 'openapi' });
+    createConsoleRouter({ store, db, sqlite, config, clock: () => new Date(0), engineVersion: 'openapi' });
   } finally {
     sqlite.close();
   }

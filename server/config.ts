@@ -80,6 +80,8 @@ export interface Config {
   engineWorkerNice?: number;
   /** Redis for state shared between nodes; undefined: everything in this process's memory. */
   redisUrl?: string;
+  /** PostgreSQL (`postgres://…`) shared by several nodes; undefined: the SQLite file `dbFile`. */
+  databaseUrl?: string;
 }
 
 /** The calculation pool's settings with the defaults filled in. */
@@ -269,6 +271,25 @@ export function parseRedisUrl(raw: string | undefined): string | undefined {
   return text;
 }
 
+/** DATABASE_URL: a postgres:// URL, or empty for the embedded SQLite file (DB_FILE). */
+export function parseDatabaseUrl(raw: string | undefined): string | undefined {
+  if (raw === undefined || raw.trim() === '') return undefined;
+  const text = raw.trim();
+  let url: URL;
+  try {
+    url = new URL(text);
+  } catch {
+    throw new ConfigError('DATABASE_URL must be a URL like postgres://user@host:5432/ebullio');
+  }
+  if (url.protocol !== 'postgres:' && url.protocol !== 'postgresql:')
+    throw new ConfigError(
+      `DATABASE_URL must start with postgres:// (SQLite is chosen by DB_FILE), got "${url.protocol}//"`,
+    );
+  if (url.hostname === '' && !url.searchParams.has('host'))
+    throw new ConfigError('DATABASE_URL names no host');
+  return text;
+}
+
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   const port = parseIntVar(env, 'PORT', 8080, 0, 65535);
   const dbFile = env.DB_FILE && env.DB_FILE !== '' ? env.DB_FILE : './data/ebullio.db';
@@ -348,6 +369,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     smtpUrl: env.SMTP_URL && env.SMTP_URL !== '' ? env.SMTP_URL : undefined,
     mailFrom: env.MAIL_FROM && env.MAIL_FROM !== '' ? env.MAIL_FROM : undefined,
     redisUrl: parseRedisUrl(env.REDIS_URL),
+    databaseUrl: parseDatabaseUrl(env.DATABASE_URL),
     port,
     dbFile,
     dataDir,

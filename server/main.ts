@@ -32,6 +32,7 @@ import { ensureDefaultPlans } from './billing/plans.js';
 import { checkQuotaNotices } from './billing/quota-notices.js';
 import { ConfigError, engineSettings, loadConfig, serverSettings, type Config } from './config.js';
 import { openDatabase, runMigrations } from './db/client.js';
+import { sqliteStore } from './db/store.js';
 import { closeApp, createApp } from './app.js';
 import type { AppDeps, Lifecycle } from './deps.js';
 import { createHttpServer, startDraining } from './http/server.js';
@@ -130,6 +131,7 @@ async function main(): Promise<void> {
   const clock = () => new Date();
   const version = engineVersion();
   const { sqlite, db } = openDatabase(config.dbFile);
+  const store = sqliteStore(sqlite, db);
   runMigrations(db);
   // Price plans (server/billing/plans.ts): inserts the missing default tiers, never overwrites one.
   const plansAdded = ensureDefaultPlans(db);
@@ -188,7 +190,7 @@ async function main(): Promise<void> {
   console.log(
     `[start-up] calculation pool: ${engine.workers === 0 ? 'inline (ENGINE_WORKERS=0)' : `${engine.workers} worker thread(s)`}, ${engine.taskTimeoutMs} ms limit per task`,
   );
-  const deps: AppDeps = { db, sqlite, config, clock, engineVersion: version, lifecycle, enginePool };
+  const deps: AppDeps = { store, db, sqlite, config, clock, engineVersion: version, lifecycle, enginePool };
   // Quota e-mails (80 % and 100 %, once per account and month; server/billing/quota-notices.ts):
   // a sweep over every account catches usage that no request-time check saw (seeded or imported).
   let sweeping = false;

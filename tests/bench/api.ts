@@ -45,6 +45,7 @@ import { createKey } from '../../server/accounts/keys.js';
 import { scopes } from '../../server/accounts/operations.js';
 import { loadConfig } from '../../server/config.js';
 import { openDatabase, runMigrations } from '../../server/db/client.js';
+import { sqliteStore } from '../../server/db/store.js';
 import { createApp } from '../../server/app.js';
 
 const ROOT = path.resolve(import.meta.dirname, '../..');
@@ -111,9 +112,11 @@ export interface ApiBenchResult {
 function serveApp(): void {
   const config = loadConfig(process.env);
   const { sqlite, db } = openDatabase(config.dbFile);
+  const store = sqliteStore(sqlite, db);
   runMigrations(db);
   const pkg = JSON.parse(fs.readFileSync(path.join(ROOT, 'package.json'), 'utf8')) as { version: string };
   const app = createApp({
+    store,
     db,
     sqlite,
     config,

@@ -157,7 +157,7 @@ async function underLoad(workers: number, probe: boolean, niceIncrement?: number
     eager: true,
     ...(niceIncrement !== undefined ? { niceIncrement } : {}),
   });
-  const h = makeHarness({
+  const h = await makeHarness({
     quota: 100_000_000,
     rateLimit: 100_000,
     enginePool: pool,

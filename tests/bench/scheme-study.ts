@@ -98,7 +98,7 @@ export async function runSchemeStudyBench(): Promise<void> {
       `${times.length} runs (trains only)`,
   );
 
-  const h = makeHarness({ quota: 100_000_000, rateLimit: 100_000 });
+  const h = await makeHarness({ quota: 100_000_000, rateLimit: 100_000 });
   const send = () =>
     request(h.app)
       .post('/v1/studies/evaporator-schemes')

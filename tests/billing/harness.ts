@@ -10,6 +10,7 @@ import { ensureDefaultPlans } from '../../server/billing/plans.js';
 import { billingRouteModule } from '../../server/console/billing.js';
 import { consoleRouteModules } from '../../server/console/index.js';
 import { openDatabase, runMigrations } from '../../server/db/client.js';
+import { sqliteStore } from '../../server/db/store.js';
 import { createApp, type AppDeps } from '../../server/app.js';
 import { configurePayments } from '../../server/integrations/payments/client.js';
 import {
@@ -49,11 +50,13 @@ export async function makeBillingHarness(
   opts: { autoPay?: boolean; now?: string } = {},
 ): Promise<BillingHarness> {
   const { sqlite, db } = openDatabase(':memory:');
+  const store = sqliteStore(sqlite, db);
   runMigrations(db);
   ensureDefaultPlans(db);
   // 3 April 2031: March is complete.
   const clock = { now: new Date(opts.now ?? '2031-04-03T09:00:00Z') };
   const deps: AppDeps = {
+    store,
     db,
     sqlite,
     config: testConfig({ consoleSignInLimit: 1000 }),

@@ -4,22 +4,22 @@
 import request from 'supertest';
 import { describe, expect, it } from 'vitest';
 import { updateAccount } from '../../server/accounts/accounts.js';
-import { makeHarness } from '../http/helpers.js';
+import { makeHarness, type Harness } from '../http/helpers.js';
 
-function mailKinds(h: ReturnType<typeof makeHarness>): string[] {
+function mailKinds(h: Harness): string[] {
   return (h.sqlite.prepare('SELECT kind FROM mail_log ORDER BY id').all() as { kind: string }[]).map(
     (r) => r.kind,
   );
 }
 
-async function settle(h: ReturnType<typeof makeHarness>, kinds: number): Promise<void> {
+async function settle(h: Harness, kinds: number): Promise<void> {
   // The check runs after the response (setImmediate) and mails over SMTP: wait for the rows.
   for (let i = 0; i < 200 && mailKinds(h).length < kinds; i++) await new Promise((r) => setTimeout(r, 25));
 }
 
 describe('quota e-mails from metered requests', () => {
   it('mails quota-80 when a request crosses 80 %, quota-100 at 100 %, and nothing more', async () => {
-    const h = makeHarness({ quota: 25 });
+    const h = await makeHarness({ quota: 25 });
     updateAccount(h.db, h.accountId, { billingEmail: 'plant-billing@works.invalid' });
     const charge = (extra: number) =>
       request(h.app)

@@ -19,7 +19,7 @@ export interface ConsoleHarness extends Harness {
 }
 
 export async function makeConsoleHarness(config: Partial<Config> = {}): Promise<ConsoleHarness> {
-  const h = makeHarness({ config: { consoleSignInLimit: 1000, ...config } });
+  const h = await makeHarness({ config: { consoleSignInLimit: 1000, ...config } });
   const otherAccountId = createAccount(h.db, { name: 'Invented Other Works', now: h.clock.now }).id;
   const users = {} as ConsoleHarness['users'];
   for (const role of ['admin', 'billing', 'developer'] as const) {

@@ -4,6 +4,7 @@
 import { createAccount } from '../../server/accounts/accounts.js';
 import { recordRequest, type RequestRecord } from '../../server/accounts/metering.js';
 import { openDatabase, runMigrations } from '../../server/db/client.js';
+import { sqliteStore } from '../../server/db/store.js';
 import { plans } from '../../server/db/schema.js';
 import { createApp, type AppDeps } from '../../server/app.js';
 import { consoleRouteModules } from '../../server/console/index.js';
@@ -42,9 +43,11 @@ export interface ConsoleHarness {
 
 export async function makeConsoleHarness(): Promise<ConsoleHarness> {
   const { sqlite, db } = openDatabase(':memory:');
+  const store = sqliteStore(sqlite, db);
   runMigrations(db);
   const clock = { now: new Date('2031-03-14T10:00:00Z') };
   const deps: AppDeps = {
+    store,
     db,
     sqlite,
     config: testConfig({ consoleSignInLimit: 1000 }),

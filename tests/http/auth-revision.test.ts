@@ -13,6 +13,7 @@ import { createAccount } from '../../server/accounts/accounts.js';
 import { authenticateToken, createKey, revokeKey } from '../../server/accounts/keys.js';
 import { scopes as ALL_SCOPES } from '../../server/accounts/operations.js';
 import { openDatabase, runMigrations } from '../../server/db/client.js';
+import { sqliteStore } from '../../server/db/store.js';
 import { createApp } from '../../server/app.js';
 import { testConfig } from './helpers.js';
 
@@ -27,6 +28,7 @@ function fileHarness(quota = 1000) {
   dirs.push(dir);
   const file = path.join(dir, 'auth.db');
   const { sqlite, db } = openDatabase(file);
+  const store = sqliteStore(sqlite, db);
   runMigrations(db);
   const config = testConfig();
   const now = new Date('2031-03-14T10:00:00Z');
@@ -38,7 +40,7 @@ function fileHarness(quota = 1000) {
     rateLimitPerMinute: 1000,
     now,
   });
-  const app = createApp({ db, sqlite, config, clock: () => now, engineVersion: 'test-engine' });
+  const app = createApp({ store, db, sqlite, config, clock: () => now, engineVersion: 'test-engine' });
   const authenticate = () => authenticateToken(sqlite, config.secret, token, now);
   const other = new Database(file);
   const revision = () =>
@@ -46,6 +48,7 @@ function fileHarness(quota = 1000) {
   const usage = () => request(app).get('/v1/usage').set('Authorization', `Bearer ${token}`);
   return {
     app,
+    store,
     db,
     sqlite,
     other,

@@ -17,7 +17,7 @@ const singleEffectCase = {
 
 describe('batch billing', () => {
   it('charges nothing for two refused single-effect cases, as a refused single call costs nothing', async () => {
-    const h = makeHarness({ quota: 1000 });
+    const h = await makeHarness({ quota: 1000 });
     const single = await request(h.app)
       .post('/v1/evaporators/single-effect')
       .set(auth(h.token))
@@ -47,7 +47,7 @@ describe('batch billing', () => {
   });
 
   it('bills only the cases that succeed and says so in unitsCharged and the usage event', async () => {
-    const h = makeHarness({ quota: 1000 });
+    const h = await makeHarness({ quota: 1000 });
     const res = await request(h.app)
       .post('/v1/batch')
       .set(auth(h.token))
@@ -68,7 +68,7 @@ describe('batch billing', () => {
 
   it('still refuses with 429 a batch whose cases together exceed the quota, even if some would fail', async () => {
     // 3 cases × 5 units = 15 > 12: the quota check covers every case before any runs.
-    const h = makeHarness({ quota: 12 });
+    const h = await makeHarness({ quota: 12 });
     const res = await request(h.app)
       .post('/v1/batch')
       .set(auth(h.token))

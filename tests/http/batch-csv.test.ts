@@ -6,8 +6,8 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { makeHarness, type Harness } from './helpers.js';
 
 let h: Harness;
-beforeAll(() => {
-  h = makeHarness({ quota: 100_000 });
+beforeAll(async () => {
+  h = await makeHarness({ quota: 100_000 });
 });
 const auth = () => ({ Authorization: `Bearer ${h.token}` });
 

@@ -9,13 +9,13 @@ const UUID_V4 = /^[0-9a-f]{8}-[0-9a-f]{4}-4[0-9a-f]{3}-[89ab][0-9a-f]{3}-[0-9a-f
 
 describe('request ids', () => {
   it('echoes a well-formed X-Request-Id from the client', async () => {
-    const { app } = makeHarness();
+    const { app } = await makeHarness();
     const res = await request(app).get('/healthz').set('X-Request-Id', 'client-42.a_b');
     expect(res.headers['x-request-id']).toBe('client-42.a_b');
   });
 
   it('generates a UUID v4 when the client sends none or a malformed one', async () => {
-    const { app } = makeHarness();
+    const { app } = await makeHarness();
     const none = await request(app).get('/healthz');
     expect(none.headers['x-request-id']).toMatch(UUID_V4); // RFC 9562 §5.4 layout
     const bad = await request(app).get('/healthz').set('X-Request-Id', 'has spaces and <html>');
@@ -27,7 +27,7 @@ describe('request ids', () => {
 
 describe('problem details', () => {
   it('answers an unknown route with a 404 application/problem+json carrying type, title, status, instance and requestId', async () => {
-    const { app } = makeHarness();
+    const { app } = await makeHarness();
     const res = await request(app).get('/nowhere/at-all?x=1').set('X-Request-Id', 'r-404');
     expect(res.status).toBe(404);
     // RFC 9457 §3: media type application/problem+json; members type, title, status, detail, instance.
@@ -43,7 +43,7 @@ describe('problem details', () => {
   });
 
   it('serves a human page and a JSON description for each problem type URI', async () => {
-    const { app } = makeHarness();
+    const { app } = await makeHarness();
     const html = await request(app).get('/problems/quota-exceeded').set('Accept', 'text/html');
     expect(html.status).toBe(200);
     expect(html.headers['content-type']).toMatch(/^text\/html/);
@@ -57,7 +57,7 @@ describe('problem details', () => {
 
 describe('request bodies', () => {
   it('refuses malformed JSON with 400 malformed-json', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const res = await request(h.app)
       .post('/v1/__test/charge')
       .set('Authorization', `Bearer ${h.token}`)
@@ -69,7 +69,7 @@ describe('request bodies', () => {
   });
 
   it('refuses a body larger than the limit with 413 payload-too-large', async () => {
-    const h = makeHarness({ config: { bodyLimitBytes: 2048 } });
+    const h = await makeHarness({ config: { bodyLimitBytes: 2048 } });
     const res = await request(h.app)
       .post('/v1/__test/charge')
       .set('Authorization', `Bearer ${h.token}`)
@@ -80,7 +80,7 @@ describe('request bodies', () => {
   });
 
   it('refuses a non-JSON content type with 415 unsupported-media-type', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const res = await request(h.app)
       .post('/v1/__test/charge')
       .set('Authorization', `Bearer ${h.token}`)
@@ -98,7 +98,7 @@ describe('request bodies', () => {
     ['application/vnd.ebullio.case+json', '{"a":3}', { a: 3 }],
     ['text/csv; charset=utf-8', 'x,y\n1,2\n', 'x,y\n1,2\n'],
   ])('reads a body sent as %s', async (type, body, echo) => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const res = await request(h.app)
       .post('/v1/__test/charge')
       .set('Authorization', `Bearer ${h.token}`)
@@ -109,13 +109,13 @@ describe('request bodies', () => {
   });
 
   it('asks no media type of a POST without a body', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const res = await request(h.app).post('/v1/__test/charge').set('Authorization', `Bearer ${h.token}`);
     expect(res.status).toBe(200);
   });
 
   it('accepts a JSON body and passes it to the route', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const res = await request(h.app)
       .post('/v1/__test/charge')
       .set('Authorization', `Bearer ${h.token}`)
@@ -127,14 +127,14 @@ describe('request bodies', () => {
 
 describe('health', () => {
   it('reports the process up on /healthz', async () => {
-    const { app } = makeHarness();
+    const { app } = await makeHarness();
     const res = await request(app).get('/healthz');
     expect(res.status).toBe(200);
     expect(res.body).toEqual({ status: 'ok' });
   });
 
   it('reports ready on /readyz when every migration is applied, and 503 when the database is closed', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     expect((await request(h.app).get('/readyz')).status).toBe(200);
     h.sqlite.close();
     const res = await request(h.app).get('/readyz');
@@ -143,7 +143,7 @@ describe('health', () => {
   });
 
   it('reports 503 on /readyz when a migration has not been applied', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     h.sqlite.prepare('DELETE FROM __drizzle_migrations').run();
     const res = await request(h.app).get('/readyz');
     expect(res.status).toBe(503);

@@ -10,6 +10,7 @@ import { describe, expect, it } from 'vitest';
 import { verifyUserPassword } from '../../server/accounts/accounts.js';
 import { ConfigError, loadConfig } from '../../server/config.js';
 import { openDatabase, runMigrations } from '../../server/db/client.js';
+import { sqliteStore } from '../../server/db/store.js';
 import { createApp } from '../../server/app.js';
 import { bootstrap } from '../../server/seed/bootstrap.js';
 import { DEMO_ACCOUNT_NAME } from '../../server/seed/demo.js';
@@ -53,6 +54,7 @@ describe('configuration', () => {
 describe('seed and bootstrap variables', () => {
   it('seeds an empty database, registers the bootstrap key with all scopes on the demo account, and creates the admin once', async () => {
     const { sqlite, db } = openDatabase(':memory:');
+    const store = sqliteStore(sqlite, db);
     runMigrations(db);
     const config = testConfig({
       bootstrapApiKey: BOOT_KEY,
@@ -80,7 +82,7 @@ describe('seed and bootstrap variables', () => {
     ).toBe('admin');
     expect(await verifyUserPassword(db, 'admin@example.invalid', 'wrong password here')).toBeUndefined();
 
-    const app = createApp({ db, sqlite, config, clock: () => now, engineVersion: 'test' });
+    const app = createApp({ store, db, sqlite, config, clock: () => now, engineVersion: 'test' });
     const res = await request(app).get('/v1/usage').set('Authorization', `Bearer ${BOOT_KEY}`);
     expect(res.status).toBe(200);
     const key = sqlite

@@ -23,8 +23,8 @@ function pool(options: { workers: number; taskTimeoutMs?: number; testHooks?: bo
   return p;
 }
 
-function harness(enginePool: EnginePool): Harness {
-  return makeHarness({ quota: 10_000_000, enginePool, config: { bodyLimitBytes: 4 * 1024 * 1024 } });
+async function harness(enginePool: EnginePool): Promise<Harness> {
+  return await makeHarness({ quota: 10_000_000, enginePool, config: { bodyLimitBytes: 4 * 1024 * 1024 } });
 }
 
 /** The value as JSON with every number written as the hex of its IEEE 754 bits. */
@@ -75,8 +75,8 @@ function single(extra: Record<string, unknown> = {}) {
 
 describe('the calculation pool', () => {
   it('answers every batch through its worker threads exactly as the main thread does, custom and stored liquors included', async () => {
-    const inline = harness(pool({ workers: 0 }));
-    const pooled = harness(pool({ workers: 2 }));
+    const inline = await harness(pool({ workers: 0 }));
+    const pooled = await harness(pool({ workers: 2 }));
     const multiple = [
       train(3),
       train(6, 'stored-brine'),
@@ -130,8 +130,8 @@ describe('the calculation pool', () => {
   });
 
   it('answers multiple-effect trains with { estimate } U through its threads bit for bit as inline, breakdowns, TVR, flash, figures and refusals included', async () => {
-    const inline = harness(pool({ workers: 0 }));
-    const pooled = harness(pool({ workers: 2 }));
+    const inline = await harness(pool({ workers: 0 }));
+    const pooled = await harness(pool({ workers: 2 }));
     // Invented tubes (demo only); the estimate's correlations and fouling are the engine's own.
     const juiceTube = {
       evaporatorType: 'falling-film',
@@ -220,8 +220,8 @@ describe('the calculation pool', () => {
   });
 
   it('answers batches of MVR and of the U estimate (inline parts, no engine task) beside a pool as without one', async () => {
-    const inline = harness(pool({ workers: 0 }));
-    const pooled = harness(pool({ workers: 2 }));
+    const inline = await harness(pool({ workers: 0 }));
+    const pooled = await harness(pool({ workers: 2 }));
     const fallingFilm = {
       evaporatorType: 'falling-film',
       tube: { outsideDiameter: '50.8 mm', wallThickness: '1.6 mm', length: 8, material: 'titanium-grade-2' },
@@ -355,7 +355,7 @@ describe('the calculation pool', () => {
   it('stops a hung calculation with 503 calculation-timeout, charges nothing, logs it, and answers the next request', async () => {
     // The limit counts from the hand-over, so it must also cover starting a replacement thread.
     const p = pool({ workers: 1, taskTimeoutMs: 3000, testHooks: true });
-    const h = harness(p);
+    const h = await harness(p);
     p.divertNext('hang');
     const hung = await request(h.app)
       .post('/v1/batch')
@@ -401,7 +401,7 @@ describe('the calculation pool', () => {
 
   it('answers 500 calculation-failed when a worker thread dies, charges nothing, logs it, and answers the next request', async () => {
     const p = pool({ workers: 1, testHooks: true });
-    const h = harness(p);
+    const h = await harness(p);
     p.divertNext('crash');
     const crashed = await request(h.app)
       .post('/v1/batch')
@@ -419,7 +419,7 @@ describe('the calculation pool', () => {
   });
 
   it('answers /healthz while a large batch is still running', async () => {
-    const h = harness(pool({ workers: 1 }));
+    const h = await harness(pool({ workers: 1 }));
     const server = http.createServer(h.app).listen(0, '127.0.0.1');
     await new Promise((resolve) => server.once('listening', resolve));
     const base = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
@@ -453,7 +453,7 @@ describe('the calculation pool', () => {
 
   it('ends the pool when the app is closed after the drain', async () => {
     const p = pool({ workers: 1 });
-    const h = harness(p);
+    const h = await harness(p);
     expect(
       (await request(h.app).post('/v1/evaporators/multiple-effect').set(auth(h)).send(train(10))).status,
     ).toBe(200);

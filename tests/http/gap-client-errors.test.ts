@@ -13,7 +13,7 @@ const BAD_SEGMENT = '%E0%A4%A';
 
 describe('client errors raised by Express itself', () => {
   it('answers a malformed percent-encoding in a /v1 path with a 400 bad-request problem and meters it with 0 units', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const res = await request(h.app)
       .get(`/v1/liquors/${BAD_SEGMENT}`)
       .set('Authorization', `Bearer ${h.token}`);
@@ -26,7 +26,7 @@ describe('client errors raised by Express itself', () => {
   });
 
   it('answers a malformed percent-encoding outside /v1 with a 400 problem as well', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const res = await request(h.app).get(`/problems/${BAD_SEGMENT}`);
     expect(res.status).toBe(400);
     expect(res.headers['content-type']).toMatch(/^application\/problem\+json/);
@@ -35,7 +35,7 @@ describe('client errors raised by Express itself', () => {
 
   it('answers a body labelled gzip that is not gzip data with a 400 problem, not a 500', async () => {
     // RFC 1952 §2.3.1 (from memory): a gzip member starts with the bytes 1f 8b; this body does not.
-    const h = makeHarness();
+    const h = await makeHarness();
     const res = await request(h.app)
       .post('/v1/steam/state')
       .set('Authorization', `Bearer ${h.token}`)
@@ -50,7 +50,7 @@ describe('client errors raised by Express itself', () => {
 
   it('still answers an unsupported content encoding with the 415 problem', async () => {
     // RFC 9110 §15.5.16 (from memory): 415 covers a Content-Encoding the server does not accept.
-    const h = makeHarness();
+    const h = await makeHarness();
     const res = await request(h.app)
       .post('/v1/steam/state')
       .set('Authorization', `Bearer ${h.token}`)

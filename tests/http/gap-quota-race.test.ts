@@ -68,7 +68,7 @@ async function slowRequest(port: number, path: string, token: string, id: string
 describe('monthly quota with concurrent requests', () => {
   it('refuses the second of two interleaved requests when the quota covers only one, and bills one', async () => {
     // The test route costs 5 units (it is guarded as evaporators.multiple-effect, see helpers.ts).
-    const h = makeHarness({ quota: 5 });
+    const h = await makeHarness({ quota: 5 });
     const port = await listen(h);
     const slow = await slowRequest(port, '/v1/__test/charge', h.token, 'race-slow');
     const fast = await fetch(`http://127.0.0.1:${port}/v1/__test/charge`, {
@@ -90,7 +90,7 @@ describe('monthly quota with concurrent requests', () => {
   });
 
   it('counts the units of a request still in flight (charged, not yet answered) against the next one', async () => {
-    const h = makeHarness({ quota: 9 });
+    const h = await makeHarness({ quota: 9 });
     const port = await listen(h);
     const held = fetch(`http://127.0.0.1:${port}/v1/__race/hold`, {
       method: 'POST',

@@ -5,7 +5,8 @@ import { createAccount } from '../../server/accounts/accounts.js';
 import { createKey } from '../../server/accounts/keys.js';
 import type { Scope } from '../../server/accounts/operations.js';
 import type { Config } from '../../server/config.js';
-import { openDatabase, runMigrations, type Db, type Sqlite } from '../../server/db/client.js';
+import { openDatabase, type Db, type Sqlite } from '../../server/db/client.js';
+import { sqliteStore, type Store } from '../../server/db/store.js';
 import { createApp, type AppDeps } from '../../server/app.js';
 import { chargeUnits, requireOperation } from '../../server/http/middleware/operation.js';
 import { v1RouteModules } from '../../server/http/v1/index.js';
@@ -27,6 +28,7 @@ if (!v1RouteModules.includes(testModule)) v1RouteModules.push(testModule);
 
 export interface Harness {
   app: express.Express;
+  store: Store;
   db: Db;
   sqlite: Sqlite;
   config: Config;
@@ -55,7 +57,7 @@ export function testConfig(overrides: Partial<Config> = {}): Config {
   };
 }
 
-export function makeHarness(
+export async function makeHarness(
   opts: {
     scopes?: Scope[];
     quota?: number;
@@ -65,12 +67,14 @@ export function makeHarness(
     /** The calculation pool (default: one made by createApp from the config). */
     enginePool?: EnginePool;
   } = {},
-): Harness {
+): Promise<Harness> {
   const { sqlite, db } = openDatabase(':memory:');
-  runMigrations(db);
+  const store = sqliteStore(sqlite, db);
+  await store.migrate();
   const config = testConfig(opts.config);
   const clock = { now: new Date('2031-03-14T10:00:00Z') };
   const deps: AppDeps = {
+    store,
     db,
     sqlite,
     config,
@@ -93,6 +97,7 @@ export function makeHarness(
   });
   return {
     app: createApp(deps),
+    store,
     db,
     sqlite,
     config,

@@ -494,7 +494,7 @@ function singleEffect(): Promise<Got> {
 beforeAll(async () => {
   protoKeysBefore = Object.getOwnPropertyNames(Object.prototype).sort();
   // The fuzzed account keeps request bodies, so every hostile body goes through the log's redaction.
-  h = makeHarness({
+  h = await makeHarness({
     quota: 10_000_000,
     rateLimit: 100_000,
     retain: true,

@@ -61,7 +61,7 @@ describe('batch CSV columns that name prototypes', () => {
   it.each(['__proto__.polluted', 'constructor.prototype.polluted', 'feed.__proto__.polluted'])(
     'refuses a CSV column named %s with a 422 naming the column, and another account is then served',
     async (column) => {
-      const h = makeHarness();
+      const h = await makeHarness();
       const other = otherAccount(h);
       const res = await csvPost(h, `pressure,temperature,${column}\n100 kPa,20,1\n`);
       expect(res.status).toBe(422);
@@ -74,7 +74,7 @@ describe('batch CSV columns that name prototypes', () => {
   );
 
   it('refuses the same column in an uploaded CSV file with a 422 naming the column', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const res = await request(h.app)
       .post('/v1/batch')
       .set('Authorization', `Bearer ${h.token}`)
@@ -88,7 +88,7 @@ describe('batch CSV columns that name prototypes', () => {
   });
 
   it('fails the case, without touching Object.prototype.toString, for a column toString.polluted', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const res = await csvPost(h, 'pressure,temperature,toString.polluted\n100 kPa,20,1\n');
     // An own property "toString" is built instead, which the contract then refuses as no field:
     // the batch answers, and that case carries its own 422.
@@ -102,7 +102,7 @@ describe('batch CSV columns that name prototypes', () => {
     ['an array length', 'overallHeatTransferCoefficients.length'],
     ['an index above 999', 'overallHeatTransferCoefficients[4000000000]'],
   ])('refuses a CSV column setting %s with a 422 naming the column', async (_what, column) => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const res = await request(h.app)
       .post('/v1/batch?operation=multiple-effect')
       .set('Authorization', `Bearer ${h.token}`)
@@ -113,7 +113,7 @@ describe('batch CSV columns that name prototypes', () => {
   });
 
   it('answers 422, not 500, when one column goes inside the number another column set', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const res = await csvPost(h, 'pressure,pressure.unit,temperature\n100 kPa,kPa,20\n');
     expect(res.status).toBe(422);
     expect(res.body.errors).toEqual([expect.objectContaining({ field: 'line 1, column pressure.unit' })]);
@@ -142,7 +142,7 @@ describe('JSON bodies with prototype-named properties', () => {
   it.each(cases)(
     'refuses a "__proto__"-style property (%s) with a 422 naming its path, and another account is then served',
     async (_where, body, field) => {
-      const h = makeHarness({ retain: true });
+      const h = await makeHarness({ retain: true });
       const other = otherAccount(h);
       const path = body.includes('"cases"') ? '/v1/batch' : '/v1/steam/state';
       const res = await request(h.app)
@@ -159,7 +159,7 @@ describe('JSON bodies with prototype-named properties', () => {
   );
 
   it('refuses a multipart text field named __proto__[polluted] with a 422 naming it', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const res = await request(h.app)
       .post('/v1/batch')
       .set('Authorization', `Bearer ${h.token}`)
@@ -172,7 +172,7 @@ describe('JSON bodies with prototype-named properties', () => {
   });
 
   it('refuses a console body with a __proto__ property with a 422 before any route reads it', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const res = await request(h.app)
       .post('/console-api/auth/sign-in')
       .set('Content-Type', 'application/json')
@@ -188,7 +188,7 @@ const nested = (depth: number) => '['.repeat(depth) + ']'.repeat(depth);
 
 describe('deeply nested JSON bodies', () => {
   it(`refuses a 5 000-level body on a retained-body account with a 400 naming the limit of ${MAX_JSON_DEPTH}, logs it at 0 units, and keeps serving`, async () => {
-    const h = makeHarness({ retain: true });
+    const h = await makeHarness({ retain: true });
     const res = await request(h.app)
       .post('/v1/steam/state')
       .set('Authorization', `Bearer ${h.token}`)
@@ -215,7 +215,7 @@ describe('deeply nested JSON bodies', () => {
   });
 
   it('handles a 63-level body normally, and logs it with its deep part cut', async () => {
-    const h = makeHarness({ retain: true });
+    const h = await makeHarness({ retain: true });
     // The harness's test route echoes its body, so any nesting reaches a 200.
     const res = await request(h.app)
       .post('/v1/__test/charge')
@@ -233,7 +233,7 @@ describe('deeply nested JSON bodies', () => {
   });
 
   it(`accepts exactly ${MAX_JSON_DEPTH} levels and refuses ${MAX_JSON_DEPTH + 1}`, async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const send = (depth: number) =>
       request(h.app)
         .post('/v1/__test/charge')
@@ -247,7 +247,7 @@ describe('deeply nested JSON bodies', () => {
   });
 
   it('refuses a deeply nested console body with the same 400', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const res = await request(h.app)
       .post('/console-api/auth/sign-in')
       .set('Content-Type', 'application/json')

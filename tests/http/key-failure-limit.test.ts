@@ -11,7 +11,7 @@ const WRONG = `Bearer ebl_live_AAAAAAAAAAAA_${'B'.repeat(32)}`;
 
 describe('refused API keys per client address', () => {
   it('answers 429 with Retry-After once an address has presented too many refused keys, and again 401 after the window', async () => {
-    const h = makeHarness({ config: { trustProxy: true } });
+    const h = await makeHarness({ config: { trustProxy: true } });
     const from = (ip: string, auth: string) =>
       request(h.app).get('/v1/usage').set('X-Forwarded-For', ip).set('Authorization', auth);
     for (let i = 0; i < KEY_FAILURE_LIMIT; i++) {
@@ -39,7 +39,7 @@ describe('refused API keys per client address', () => {
   });
 
   it('never limits an address that only presents a valid key', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     for (let i = 0; i < KEY_FAILURE_LIMIT + 5; i++) {
       expect((await request(h.app).get('/v1/usage').set('Authorization', `Bearer ${h.token}`)).status).toBe(
         200,

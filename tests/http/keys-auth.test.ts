@@ -14,7 +14,7 @@ describe('401 unauthorized', () => {
     ['too short to be a key', 'Bearer short', /not "Bearer <key>"/],
     ['unknown', `Bearer ebl_live_AAAAAAAAAAAA_${'B'.repeat(32)}`, /not recognised/],
   ])('refuses a %s key with 401, WWW-Authenticate: Bearer and a reason', async (_label, header, detail) => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const req = request(h.app).get('/v1/usage');
     const res = await (header === undefined ? req : req.set('Authorization', header));
     expect(res.status).toBe(401);
@@ -26,7 +26,7 @@ describe('401 unauthorized', () => {
   });
 
   it('says "unknown", not "wrong secret", when a real public id comes with a wrong secret', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const [, publicId] = h.token.split('.');
     const res = await request(h.app)
       .get('/v1/usage')
@@ -38,7 +38,7 @@ describe('401 unauthorized', () => {
 
 describe('403 forbidden', () => {
   it('names the missing scope and is metered with 0 units', async () => {
-    const h = makeHarness({ scopes: ['steam'] });
+    const h = await makeHarness({ scopes: ['steam'] });
     const res = await request(h.app).get('/v1/usage').set('Authorization', `Bearer ${h.token}`);
     expect(res.status).toBe(403);
     expect(res.body.type).toBe('/problems/forbidden');
@@ -50,8 +50,8 @@ describe('403 forbidden', () => {
 });
 
 describe('key lifecycle', () => {
-  it('stores only the keyed hash, never the key', () => {
-    const h = makeHarness();
+  it('stores only the keyed hash, never the key', async () => {
+    const h = await makeHarness();
     const row = h.sqlite.prepare('SELECT * FROM api_keys WHERE id = ?').get(h.keyId) as Record<
       string,
       unknown
@@ -63,7 +63,7 @@ describe('key lifecycle', () => {
   });
 
   it('keeps accepting a key of the first issued format (ebl_live_…) stored before ebk1', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     // Invented key of the earlier format (not real): stored, as every key is, as a hash of the whole.
     const legacy = `ebl_live_FirstFormat1_${'Q'.repeat(32)}`;
     createKey(h.db, h.config.secret, {
@@ -78,7 +78,7 @@ describe('key lifecycle', () => {
   });
 
   it('refuses a revoked key on the very next request', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const auth = `Bearer ${h.token}`;
     expect((await request(h.app).get('/v1/usage').set('Authorization', auth)).status).toBe(200);
     revokeKey(h.db, h.keyId, h.clock.now);
@@ -88,7 +88,7 @@ describe('key lifecycle', () => {
   });
 
   it('refuses a key from its expiry time on', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const { token } = createKey(h.db, h.config.secret, {
       accountId: h.accountId,
       name: 'short-lived',
@@ -106,7 +106,7 @@ describe('key lifecycle', () => {
   });
 
   it('keeps the old key working during the rotation overlap window, then refuses it', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const rotated = rotateKey(h.db, h.config.secret, h.keyId, { now: h.clock.now, overlapSeconds: 600 });
     expect(rotated.key.rotatedFromId).toBe(h.keyId);
     expect(rotated.key.scopes).toEqual(expect.arrayContaining(['usage', 'steam']));
@@ -123,7 +123,7 @@ describe('key lifecycle', () => {
   });
 
   it('updates last_used_at when a key is used', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     await request(h.app).get('/v1/usage').set('Authorization', `Bearer ${h.token}`);
     const row = h.sqlite.prepare('SELECT last_used_at FROM api_keys WHERE id = ?').get(h.keyId) as {
       last_used_at: number;

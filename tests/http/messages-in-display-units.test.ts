@@ -7,8 +7,8 @@ import { physicalRanges } from '../../shared/contracts/common.js';
 import { makeHarness, type Harness } from './helpers.js';
 
 let h: Harness;
-beforeAll(() => {
-  h = makeHarness({ quota: 100_000 });
+beforeAll(async () => {
+  h = await makeHarness({ quota: 100_000 });
 });
 const post = (path: string, body: object) =>
   request(h.app)

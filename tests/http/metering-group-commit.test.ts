@@ -11,14 +11,9 @@ import {
   type RequestRecord,
 } from '../../server/accounts/metering.js';
 import { unitsUsedThisMonth } from '../../server/accounts/usage.js';
-import { makeHarness, usageRows } from './helpers.js';
+import { makeHarness, usageRows, type Harness } from './helpers.js';
 
-function record(
-  h: ReturnType<typeof makeHarness>,
-  requestId: string,
-  units: number,
-  status = 200,
-): RequestRecord {
+function record(h: Harness, requestId: string, units: number, status = 200): RequestRecord {
   return {
     at: h.clock.now,
     accountId: h.accountId,
@@ -36,12 +31,12 @@ function record(
   };
 }
 
-const eventCount = (h: ReturnType<typeof makeHarness>) =>
+const eventCount = (h: Harness) =>
   (h.sqlite.prepare('SELECT COUNT(*) AS n FROM usage_events').get() as { n: number }).n;
 
 describe('metering group commit', () => {
   it('holds every record of a turn until the next turn, commits them together, then calls back in order', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const writer = meteringWriter(h.sqlite);
     const calls: string[] = [];
     for (let i = 0; i < 5; i++) {
@@ -65,7 +60,7 @@ describe('metering group commit', () => {
   });
 
   it('adds a later group to the same roll-up row, counting errors and billing no units for them', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const writer = meteringWriter(h.sqlite);
     writer.submit(record(h, 'a', 3), () => {});
     writer.flush();
@@ -80,7 +75,7 @@ describe('metering group commit', () => {
   });
 
   it('retries a failed group record by record: only the refused record gets the error', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     // The database refuses one request id (stands in for a full disk or a constraint).
     h.sqlite.exec(`CREATE TRIGGER refuse_one BEFORE INSERT ON usage_events WHEN NEW.request_id = 'bad'
                    BEGIN SELECT RAISE(ABORT, 'refused for the test'); END`);
@@ -97,7 +92,7 @@ describe('metering group commit', () => {
   });
 
   it('answers 500 without the result when its row cannot be committed, and 200 to the others', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     h.sqlite.exec(`CREATE TRIGGER refuse_one BEFORE INSERT ON usage_events WHEN NEW.request_id = 'unbillable'
                    BEGIN SELECT RAISE(ABORT, 'refused for the test'); END`);
     const auth = `Bearer ${h.token}`;
@@ -123,7 +118,7 @@ describe('metering group commit', () => {
   });
 
   it('keeps the month total that quotas are checked against equal to the roll-up, across commits and months', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const writer = meteringWriter(h.sqlite);
     const march = h.clock.now;
     const april = new Date('2031-04-01T00:00:05Z');

@@ -7,7 +7,7 @@ import { makeHarness, usageRows } from './helpers.js';
 
 describe('metering', () => {
   it('writes one usage row per authenticated request, success or error, with its status and units', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const auth = `Bearer ${h.token}`;
     const ok = await request(h.app).post('/v1/__test/charge?extra=3').set('Authorization', auth).send({});
     const bad = await request(h.app)
@@ -33,7 +33,7 @@ describe('metering', () => {
   });
 
   it('rolls usage up per day and operation, and /v1/usage reports the month and the quota', async () => {
-    const h = makeHarness({ quota: 100 });
+    const h = await makeHarness({ quota: 100 });
     const auth = `Bearer ${h.token}`;
     await request(h.app).post('/v1/__test/charge').set('Authorization', auth).send({});
     await request(h.app).post('/v1/__test/charge?extra=2').set('Authorization', auth).send({});
@@ -64,7 +64,7 @@ describe('metering', () => {
   });
 
   it('commits the usage row before the response reaches the client', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     let rowsWhenResponseArrived = -1;
     await request(h.app)
       .get('/v1/usage')
@@ -78,7 +78,7 @@ describe('metering', () => {
 
 describe('quota', () => {
   it('refuses with 429 quota-exceeded before running, and bills nothing beyond the quota', async () => {
-    const h = makeHarness({ quota: 12 });
+    const h = await makeHarness({ quota: 12 });
     const auth = `Bearer ${h.token}`;
     const first = await request(h.app).post('/v1/__test/charge?extra=5').set('Authorization', auth).send({}); // 10 units
     expect(first.status).toBe(200);
@@ -99,7 +99,7 @@ describe('quota', () => {
 
 describe('rate limit', () => {
   it('answers 429 rate-limited with draft-7 RateLimit and RateLimit-Policy headers after the per-key limit', async () => {
-    const h = makeHarness({ rateLimit: 3 });
+    const h = await makeHarness({ rateLimit: 3 });
     const auth = `Bearer ${h.token}`;
     const statuses: number[] = [];
     let last: request.Response | undefined;
@@ -120,7 +120,7 @@ describe('rate limit', () => {
 
 describe('request log', () => {
   it('keeps redacted bodies for a retaining account and never the Authorization header or key', async () => {
-    const h = makeHarness({ retain: true });
+    const h = await makeHarness({ retain: true });
     const res = await request(h.app)
       .post('/v1/__test/charge')
       .set('Authorization', `Bearer ${h.token}`)
@@ -144,7 +144,7 @@ describe('request log', () => {
   });
 
   it('keeps no bodies when the account does not retain them, and truncates long ones', async () => {
-    const off = makeHarness({ retain: false });
+    const off = await makeHarness({ retain: false });
     await request(off.app)
       .post('/v1/__test/charge')
       .set('Authorization', `Bearer ${off.token}`)
@@ -153,7 +153,7 @@ describe('request log', () => {
       request_body: null,
       response_body: null,
     });
-    const on = makeHarness({ retain: true, config: { logBodyLimitBytes: 100 } });
+    const on = await makeHarness({ retain: true, config: { logBodyLimitBytes: 100 } });
     await request(on.app)
       .post('/v1/__test/charge')
       .set('Authorization', `Bearer ${on.token}`)
@@ -165,7 +165,7 @@ describe('request log', () => {
   });
 
   it('prunes rows older than the retention period and keeps newer ones', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const auth = `Bearer ${h.token}`;
     h.clock.now = new Date('2031-01-01T00:00:00Z');
     await request(h.app).get('/v1/usage').set('Authorization', auth);

@@ -53,7 +53,7 @@ describe('the worked examples of the OpenAPI document', () => {
   });
 
   it('answers each documented request with a 2xx', async () => {
-    const h = makeHarness({ quota: 1_000_000, rateLimit: 100_000 });
+    const h = await makeHarness({ quota: 1_000_000, rateLimit: 100_000 });
     const sorted = [...documented].sort((a, b) => order(a.op.operationId) - order(b.op.operationId));
     for (const { method, path, op } of sorted) {
       let url = path;
@@ -81,7 +81,7 @@ describe('the worked examples of the OpenAPI document', () => {
 
   it("answers each request-body schema's own example with a 2xx", async () => {
     // Swagger UI shows the body schema's example too (the multiple-effect one runs a thermocompressor)
-    const h = makeHarness({ quota: 1_000_000, rateLimit: 100_000 });
+    const h = await makeHarness({ quota: 1_000_000, rateLimit: 100_000 });
     const schemas = (doc as unknown as { components: { schemas: Record<string, { example?: unknown }> } })
       .components.schemas;
     let sent = 0;

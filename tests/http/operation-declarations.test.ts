@@ -131,7 +131,7 @@ describe('one declaration per /v1 operation', () => {
   it('meters each declared operation under its dotted id, with its catalogue scope', async () => {
     // A key with no scope at all: every operation answers 403 naming its own id and scope,
     // which shows the router guards each declaration with its catalogue entry.
-    const h = makeHarness({ scopes: [] });
+    const h = await makeHarness({ scopes: [] });
     for (const decl of v1Operations) {
       const url = decl.path.replace(/\{(\w+)\}/g, 'sodium-hydroxide');
       const res = await request(h.app)[decl.method](url).set('Authorization', `Bearer ${h.token}`);
@@ -146,7 +146,7 @@ describe('one declaration per /v1 operation', () => {
   });
 
   it('runs a case of each batch operation as that operation would, and names a failing case’s fields under cases[i]', async () => {
-    const h = makeHarness({ quota: 1_000_000 });
+    const h = await makeHarness({ quota: 1_000_000 });
     for (const decl of v1Operations) {
       if (!('batchName' in decl.operation)) continue;
       const example = decl.request?.body
@@ -169,7 +169,7 @@ describe('one declaration per /v1 operation', () => {
   });
 
   it('names a batch warning about a request field under cases[i], and one about a result quantity as it is', async () => {
-    const h = makeHarness({ quota: 1_000_000 });
+    const h = await makeHarness({ quota: 1_000_000 });
     const boiling = await request(h.app)
       .post('/v1/batch')
       .set('Authorization', `Bearer ${h.token}`)

@@ -14,6 +14,7 @@ import { authenticateToken, createKey, knownKeyCount } from '../../server/accoun
 import { closeApp, createApp, type AppDeps } from '../../server/app.js';
 import { ConfigError, loadConfig, type Config } from '../../server/config.js';
 import { openDatabase, runMigrations } from '../../server/db/client.js';
+import { sqliteStore } from '../../server/db/store.js';
 import { KEY_FAILURE_LIMIT } from '../../server/http/middleware/auth.js';
 import { csrf, Jar } from '../console-api/auth-harness.js';
 import { startTestRedis, type TestRedis } from '../support/redis-server.js';
@@ -55,8 +56,9 @@ async function twoNodes(opts: { rateLimit?: number; config?: Partial<Config>; re
   const config = testConfig({ redisUrl: opts.redis === false ? undefined : redis.url, ...opts.config });
   const node = () => {
     const { sqlite, db } = openDatabase(file);
+    const store = sqliteStore(sqlite, db);
     runMigrations(db);
-    const deps: AppDeps = { db, sqlite, config, clock: () => NOW, engineVersion: 'test-engine' };
+    const deps: AppDeps = { store, db, sqlite, config, clock: () => NOW, engineVersion: 'test-engine' };
     opened.push(deps);
     return deps;
   };

@@ -34,15 +34,15 @@ function expectNoSecret(h: Harness, secret: string): void {
 }
 
 describe('request log redaction of an issued key', () => {
-  const setup = () => {
-    const h = makeHarness({ retain: true });
+  const setup = async () => {
+    const h = await makeHarness({ retain: true });
     const secret = secretPartOf(h.token)!;
     expect(secret).toHaveLength(32); // format documented in server/accounts/keys.ts
     return { h, secret, auth: `Bearer ${h.token}` };
   };
 
   it('keeps no key sent in the URL path, in the log or in the problem instance', async () => {
-    const { h, secret, auth } = setup();
+    const { h, secret, auth } = await setup();
     const res = await request(h.app).get(`/v1/liquors/${h.token}`).set('Authorization', auth);
     expect(res.status).toBe(422); // not a liquor id: too long for the id pattern
     expect(res.body.instance).toBe(`/v1/liquors/${REDACTED}`);
@@ -53,7 +53,7 @@ describe('request log redaction of an issued key', () => {
   });
 
   it('keeps no key sent in the query string', async () => {
-    const { h, secret, auth } = setup();
+    const { h, secret, auth } = await setup();
     const res = await request(h.app)
       .get(`/v1/steam/saturation?pressure=${h.token}`)
       .set('Authorization', auth);
@@ -62,7 +62,7 @@ describe('request log redaction of an issued key', () => {
   });
 
   it('keeps no key sent as a JSON property name', async () => {
-    const { h, secret, auth } = setup();
+    const { h, secret, auth } = await setup();
     const res = await request(h.app)
       .post('/v1/steam/state')
       .set('Authorization', auth)
@@ -72,7 +72,7 @@ describe('request log redaction of an issued key', () => {
   });
 
   it('keeps no key sent as a JSON value', async () => {
-    const { h, secret, auth } = setup();
+    const { h, secret, auth } = await setup();
     await request(h.app)
       .post('/v1/steam/state')
       .set('Authorization', auth)
@@ -81,7 +81,7 @@ describe('request log redaction of an issued key', () => {
   });
 
   it('keeps no bare secret part, as a value or as a property name', async () => {
-    const { h, secret, auth } = setup();
+    const { h, secret, auth } = await setup();
     await request(h.app)
       .post('/v1/steam/state')
       .set('Authorization', auth)
@@ -90,7 +90,7 @@ describe('request log redaction of an issued key', () => {
   });
 
   it('keeps no key sent in a CSV body', async () => {
-    const { h, secret, auth } = setup();
+    const { h, secret, auth } = await setup();
     await request(h.app)
       .post('/v1/batch?operation=steam-state')
       .set('Authorization', auth)
@@ -100,7 +100,7 @@ describe('request log redaction of an issued key', () => {
   });
 
   it('replaces an X-Request-Id that carries the key, and keeps a UUID the client chose', async () => {
-    const { h, secret, auth } = setup();
+    const { h, secret, auth } = await setup();
     const res = await request(h.app)
       .get('/v1/usage')
       .set('Authorization', auth)
@@ -115,8 +115,8 @@ describe('request log redaction of an issued key', () => {
 });
 
 describe.each(BOOTSTRAP_KEYS)('request log redaction of the bootstrap-format key %s', (bootKey) => {
-  const setup = () => {
-    const h = makeHarness({ retain: true });
+  const setup = async () => {
+    const h = await makeHarness({ retain: true });
     createKey(h.db, h.config.secret, {
       accountId: h.accountId,
       name: 'Bootstrap key (BOOTSTRAP_API_KEY)',
@@ -128,7 +128,7 @@ describe.each(BOOTSTRAP_KEYS)('request log redaction of the bootstrap-format key
   };
 
   it('keeps no trace of it when it is the presented key, in the path, a name and a value', async () => {
-    const h = setup();
+    const h = await setup();
     const auth = `Bearer ${bootKey}`;
     const byPath = await request(h.app).get(`/v1/liquors/${bootKey}`).set('Authorization', auth);
     expect([404, 422]).toContain(byPath.status);
@@ -142,7 +142,7 @@ describe.each(BOOTSTRAP_KEYS)('request log redaction of the bootstrap-format key
   });
 
   it('keeps no trace of it when another key sends it in a body (known only by its shape)', async () => {
-    const h = setup();
+    const h = await setup();
     await request(h.app)
       .post('/v1/steam/state')
       .set('Authorization', `Bearer ${h.token}`)
@@ -152,8 +152,8 @@ describe.each(BOOTSTRAP_KEYS)('request log redaction of the bootstrap-format key
 });
 
 describe('the key-shape pattern', () => {
-  it('matches every key format accepted: issued keys, their bare secrets, and bootstrap-form keys', () => {
-    const h = makeHarness();
+  it('matches every key format accepted: issued keys, their bare secrets, and bootstrap-form keys', async () => {
+    const h = await makeHarness();
     for (const key of [h.token, secretPartOf(h.token)!, ...BOOTSTRAP_KEYS]) {
       expect(key.replace(KEY_SHAPED_PATTERN, '')).toBe('');
     }
@@ -175,7 +175,7 @@ describe('the key-shape pattern', () => {
   });
 
   it('keeps no key of the first issued format that its holder sends in the path and body', async () => {
-    const h = makeHarness({ retain: true });
+    const h = await makeHarness({ retain: true });
     const legacy = `ebl_live_FirstFormat1_${'Rq7'.repeat(10)}Zx`; // invented, not real
     createKey(h.db, h.config.secret, {
       accountId: h.accountId,

@@ -8,8 +8,8 @@ import { operationCatalogue } from '../../shared/operations.js';
 import { makeHarness, usageRows, type Harness } from './helpers.js';
 
 let h: Harness;
-beforeAll(() => {
-  h = makeHarness({ quota: 100_000 });
+beforeAll(async () => {
+  h = await makeHarness({ quota: 100_000 });
 });
 const auth = () => ({ Authorization: `Bearer ${h.token}` });
 

@@ -11,8 +11,8 @@ import { heatingWarningThresholds, physicalRanges, quantityKinds } from '../../s
 import { makeHarness, type Harness } from './helpers.js';
 
 let h: Harness;
-beforeAll(() => {
-  h = makeHarness({ quota: 100_000 });
+beforeAll(async () => {
+  h = await makeHarness({ quota: 100_000 });
 });
 const post = (path: string, body: object) =>
   request(h.app)

@@ -14,7 +14,7 @@ let h: Harness;
 let server: http.Server;
 let origin: string;
 beforeAll(async () => {
-  h = makeHarness({ quota: 10_000_000, rateLimit: 100_000 });
+  h = await makeHarness({ quota: 10_000_000, rateLimit: 100_000 });
   server = http.createServer(h.app);
   await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve));
   origin = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;

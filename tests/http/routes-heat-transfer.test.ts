@@ -8,8 +8,8 @@ import { seawater } from '../../server/engine/liquors/seawater.js';
 import { makeHarness, usageRows, type Harness } from './helpers.js';
 
 let h: Harness;
-beforeAll(() => {
-  h = makeHarness({ quota: 100_000 });
+beforeAll(async () => {
+  h = await makeHarness({ quota: 100_000 });
 });
 const auth = () => ({ Authorization: `Bearer ${h.token}` });
 const PATH = '/v1/heat-transfer/overall-coefficient';

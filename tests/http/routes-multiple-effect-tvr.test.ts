@@ -7,8 +7,8 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { makeHarness, usageRows, type Harness } from './helpers.js';
 
 let h: Harness;
-beforeAll(() => {
-  h = makeHarness({ quota: 100_000 });
+beforeAll(async () => {
+  h = await makeHarness({ quota: 100_000 });
 });
 const auth = () => ({ Authorization: `Bearer ${h.token}` });
 const ME = '/v1/evaporators/multiple-effect';
@@ -211,7 +211,7 @@ describe('figuresOfMerit on other liquors', () => {
 
 describe('a thermocompressor case in a batch', () => {
   it('runs and is billed like the single call', async () => {
-    const hb = makeHarness({ quota: 1000 });
+    const hb = await makeHarness({ quota: 1000 });
     const rest = distiller;
     const res = await request(hb.app)
       .post('/v1/batch')

@@ -4,8 +4,8 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { makeHarness, type Harness } from './helpers.js';
 
 let h: Harness;
-beforeAll(() => {
-  h = makeHarness();
+beforeAll(async () => {
+  h = await makeHarness();
 });
 const auth = () => ({ Authorization: `Bearer ${h.token}` });
 

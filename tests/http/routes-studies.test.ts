@@ -11,8 +11,8 @@ const SINGLE = '/v1/evaporators/multiple-effect';
 const MVR = '/v1/evaporators/mechanical-vapor-recompression';
 
 let h: Harness;
-beforeAll(() => {
-  h = makeHarness({ quota: 1_000_000 });
+beforeAll(async () => {
+  h = await makeHarness({ quota: 1_000_000 });
 });
 const auth = (token = h.token) => ({ Authorization: `Bearer ${token}` });
 
@@ -399,7 +399,7 @@ describe('refusals', () => {
 
 describe('metering', () => {
   it('charges the sum of the units of the single calls its candidates stand for', async () => {
-    const m = makeHarness({ quota: 10_000 });
+    const m = await makeHarness({ quota: 10_000 });
     const res = await request(m.app)
       .post(STUDY)
       .set(auth(m.token))
@@ -432,7 +432,7 @@ describe('metering', () => {
   });
 
   it('gives back the units of infeasible candidates, as their refused single calls cost nothing', async () => {
-    const m = makeHarness({ quota: 10_000 });
+    const m = await makeHarness({ quota: 10_000 });
     const tight = {
       ...duty,
       feed: { massFlow: 2, massFraction: 0.1, temperature: 60 },
@@ -456,7 +456,7 @@ describe('metering', () => {
   });
 
   it('refuses with 429 before any work a study the quota cannot cover', async () => {
-    const m = makeHarness({ quota: 60 });
+    const m = await makeHarness({ quota: 60 });
     // 1…4 effects: 70 units > 60.
     const res = await request(m.app).post(STUDY).set(auth(m.token)).send(study());
     expect(res.status).toBe(429);

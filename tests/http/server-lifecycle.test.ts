@@ -15,6 +15,7 @@ import { createKey, revokeKey } from '../../server/accounts/keys.js';
 import { scopes as ALL_SCOPES } from '../../server/accounts/operations.js';
 import { ConfigError, loadConfig, type Config } from '../../server/config.js';
 import { openDatabase, runMigrations } from '../../server/db/client.js';
+import { sqliteStore } from '../../server/db/store.js';
 import { createApp } from '../../server/app.js';
 import type { Lifecycle } from '../../server/deps.js';
 import { createHttpServer, startDraining } from '../../server/http/server.js';
@@ -85,7 +86,7 @@ const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
 describe('header and body timeouts', () => {
   it('answers a body that trickles in past REQUEST_TIMEOUT_MS with a 408 problem and closes the connection, metered as 408 and unbilled', async () => {
-    const h = makeHarness({ config: { headersTimeoutMs: 500, requestTimeoutMs: 1000 } });
+    const h = await makeHarness({ config: { headersTimeoutMs: 500, requestTimeoutMs: 1000 } });
     const port = await listen(h.app, h.config);
     const c = await connect(port);
     const body = JSON.stringify({ padding: 'x'.repeat(200) });
@@ -122,7 +123,7 @@ describe('header and body timeouts', () => {
   });
 
   it('answers headers that never finish with a 408 within HEADERS_TIMEOUT_MS', async () => {
-    const h = makeHarness({ config: { headersTimeoutMs: 500, requestTimeoutMs: 5000 } });
+    const h = await makeHarness({ config: { headersTimeoutMs: 500, requestTimeoutMs: 5000 } });
     const port = await listen(h.app, h.config);
     const c = await connect(port);
     const started = Date.now();
@@ -191,7 +192,7 @@ describe('header and body timeouts', () => {
 
 describe('Expect: 100-continue', () => {
   it('answers an expectation other than 100-continue with a 417 problem', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const port = await listen(h.app, h.config);
     const c = await connect(port);
     c.socket.write(
@@ -205,7 +206,7 @@ describe('Expect: 100-continue', () => {
   });
 
   it('refuses a declared 100 MB JSON body with a 413 problem before the body is sent, without 100 Continue', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const port = await listen(h.app, h.config);
     const c = await connect(port);
     c.socket.write(
@@ -228,7 +229,7 @@ describe('Expect: 100-continue', () => {
   });
 
   it('refuses a declared multipart body above the upload ceiling, and lets one below the ceiling continue', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const port = await listen(h.app, h.config);
     const big = await connect(port);
     big.socket.write(
@@ -250,7 +251,7 @@ describe('Expect: 100-continue', () => {
   });
 
   it('answers 100 Continue to a small declared body, then the normal answer once the body is sent', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const port = await listen(h.app, h.config);
     const c = await connect(port);
     const body = JSON.stringify({ hello: 'continue' });
@@ -275,6 +276,7 @@ describe('the key is checked again when the body is complete', () => {
     dirs.push(dir);
     const file = path.join(dir, 'recheck.db');
     const { sqlite, db } = openDatabase(file);
+    const store = sqliteStore(sqlite, db);
     runMigrations(db);
     const config = testConfig();
     const clock = { now: new Date('2031-03-14T10:00:00Z') };
@@ -291,7 +293,14 @@ describe('the key is checked again when the body is complete', () => {
       expiresAt: new Date('2031-03-14T11:00:00Z'),
       now: clock.now,
     });
-    const app = createApp({ db, sqlite, config, clock: () => clock.now, engineVersion: 'test-engine' });
+    const app = createApp({
+      store,
+      db,
+      sqlite,
+      config,
+      clock: () => clock.now,
+      engineVersion: 'test-engine',
+    });
     const other = new Database(file);
     const status = (requestId: string) =>
       sqlite.prepare('SELECT status, units FROM usage_events WHERE request_id = ?').get(requestId);
@@ -309,6 +318,7 @@ describe('the key is checked again when the body is complete', () => {
     });
     return {
       app,
+      store,
       db,
       sqlite,
       config,
@@ -414,7 +424,7 @@ describe('the key is checked again when the body is complete', () => {
 
 describe('a draining server', () => {
   it('answers every request with Connection: close, those in flight at the start included, and reports not ready', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const lifecycle: Lifecycle = { draining: false };
     const port = await listen(createApp({ ...h.deps, lifecycle }), h.config, lifecycle);
     const server = servers.at(-1)!;

@@ -13,7 +13,7 @@ const polynomialLiquor = (rise: number) => ({
 
 describe('stored liquors across delete and re-create', () => {
   it('answers with the definition stored now, never an earlier one under the same id', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const auth = { Authorization: `Bearer ${h.token}` };
     const boilingPoint = () =>
       request(h.app)

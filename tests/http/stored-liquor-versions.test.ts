@@ -7,8 +7,8 @@ import { beforeEach, describe, expect, it } from 'vitest';
 import { makeHarness, type Harness } from './helpers.js';
 
 let h: Harness;
-beforeEach(() => {
-  h = makeHarness({ quota: 100_000, retain: true });
+beforeEach(async () => {
+  h = await makeHarness({ quota: 100_000, retain: true });
 });
 const auth = () => ({ Authorization: `Bearer ${h.token}` });
 

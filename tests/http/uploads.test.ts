@@ -14,7 +14,7 @@ const routes = ['/v1/stored-liquors', '/v1/batch'] as const;
 
 describe.each(routes)('uploads to %s', (path) => {
   it('refuses a file in a field other than "file" with 422 naming that field', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const res = await request(h.app)
       .post(path)
       .set('Authorization', `Bearer ${h.token}`)
@@ -27,7 +27,7 @@ describe.each(routes)('uploads to %s', (path) => {
   });
 
   it('refuses a second file with 422', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const res = await request(h.app)
       .post(path)
       .set('Authorization', `Bearer ${h.token}`)
@@ -38,7 +38,7 @@ describe.each(routes)('uploads to %s', (path) => {
   });
 
   it('refuses a file over the limit with 413 stating the limit', async () => {
-    const h = makeHarness({ config: { bodyLimitBytes: 4 * MAX_UPLOAD_BYTES } });
+    const h = await makeHarness({ config: { bodyLimitBytes: 4 * MAX_UPLOAD_BYTES } });
     const big = Buffer.alloc(MAX_UPLOAD_BYTES + 1, 'a');
     const res = await request(h.app)
       .post(path)
@@ -50,7 +50,7 @@ describe.each(routes)('uploads to %s', (path) => {
   });
 
   it('answers a multipart body that cannot be read with 400', async () => {
-    const h = makeHarness();
+    const h = await makeHarness();
     const res = await request(h.app)
       .post(path)
       .set('Authorization', `Bearer ${h.token}`)

@@ -10,7 +10,7 @@ import {
   type MailCapture,
 } from '../../server/integrations/mail-capture.js';
 import { sendMail } from '../../server/mail/send.js';
-import { makeHarness } from '../http/helpers.js';
+import { makeHarness, type Harness } from '../http/helpers.js';
 
 describe('decodeEncodedWords', () => {
   it('decodes the RFC 2047 section 8 examples', () => {
@@ -61,8 +61,9 @@ describe('parseMessage', () => {
 
 describe('sendMail through the capture server', () => {
   let capture: MailCapture;
-  const h = makeHarness();
+  let h: Harness;
   beforeAll(async () => {
+    h = await makeHarness();
     capture = await startMailCapture({ db: h.db, port: 0, clock: () => h.clock.now });
     h.config.smtpUrl = capture.url;
   });
@@ -95,7 +96,7 @@ describe('sendMail through the capture server', () => {
   it('logs a failure instead of throwing when the SMTP server cannot be reached', async () => {
     const closed = await startMailCapture({ db: h.db, port: 0 });
     await closed.close();
-    const h2 = makeHarness({ config: { smtpUrl: closed.url } });
+    const h2 = await makeHarness({ config: { smtpUrl: closed.url } });
     const result = await sendMail(h2.deps, {
       kind: 'key-revoked',
       to: 'x@ebullio.invalid',
@@ -107,7 +108,7 @@ describe('sendMail through the capture server', () => {
   });
 
   it('does not fall back to the capture server in production', async () => {
-    const h3 = makeHarness({ config: { nodeEnv: 'production' } });
+    const h3 = await makeHarness({ config: { nodeEnv: 'production' } });
     const result = await sendMail(h3.deps, {
       kind: 'invitation',
       to: 'x@ebullio.invalid',
