@@ -5,8 +5,9 @@ import { createAccount } from '../../server/accounts/accounts.js';
 import { createKey } from '../../server/accounts/keys.js';
 import type { Scope } from '../../server/accounts/operations.js';
 import type { Config } from '../../server/config.js';
-import { openDatabase, type Db, type Sqlite } from '../../server/db/client.js';
-import { sqliteStore, type Store } from '../../server/db/store.js';
+import { type Db, type Sqlite } from '../../server/db/client.js';
+import type { Store } from '../../server/db/store.js';
+import { openTestStore } from '../support/test-store.js';
 import { createApp, type AppDeps } from '../../server/app.js';
 import { chargeUnits, requireOperation } from '../../server/http/middleware/operation.js';
 import { v1RouteModules } from '../../server/http/v1/index.js';
@@ -68,9 +69,11 @@ export async function makeHarness(
     enginePool?: EnginePool;
   } = {},
 ): Promise<Harness> {
-  const { sqlite, db } = openDatabase(':memory:');
-  const store = sqliteStore(sqlite, db);
-  await store.migrate();
+  const store = await openTestStore();
+  // The SQLite handles stay on the harness until every repository has moved onto the store; on
+  // PostgreSQL they are absent, so a test still using them fails there at once.
+  const db = store.db;
+  const sqlite = store.sqlite as Sqlite;
   const config = testConfig(opts.config);
   const clock = { now: new Date('2031-03-14T10:00:00Z') };
   const deps: AppDeps = {
