@@ -172,10 +172,14 @@ describe('the calculation pool', () => {
       juice(3, { areas: [500, 500, 500], product: {} }),
       brine(4), // seawater: figures of merit by default
       brine(3, { thermocompressor: { motivePressure: 1000 }, condensateFlash: true }),
-      // refused inside the task: NaOH gives no thermal conductivity; names effect 2's estimate field
-      train(3, 'sodium-hydroxide', {
-        overallHeatTransferCoefficients: [1500, { estimate: juiceTube }, 1500],
-      }),
+      // refused inside the task: a custom liquor without a thermal conductivity; names effect 2's estimate field
+      train(
+        3,
+        { ...inventedBrine(2), density: { polynomial: [1000, 400] }, viscosity: { polynomial: [1, 2, 30] } },
+        {
+          overallHeatTransferCoefficients: [1500, { estimate: juiceTube }, 1500],
+        },
+      ),
     ];
     const answers: unknown[][] = [[], []];
     for (const [i, h] of [inline, pooled].entries()) {

@@ -33,7 +33,13 @@ describe('liquor catalogue: transport properties', () => {
     expect(byId.get('sodium-hydroxide')).toMatchObject({
       viscosity: true,
       density: true,
-      thermalConductivity: false,
+      thermalConductivity: true,
+      surfaceTension: false,
+    });
+    expect(byId.get('kraft-black-liquor')).toMatchObject({
+      viscosity: true,
+      density: true,
+      thermalConductivity: true,
       surfaceTension: false,
     });
     expect(byId.get('sucrose')).toMatchObject({ viscosity: true, density: true, thermalConductivity: true });
@@ -46,6 +52,15 @@ describe('liquor catalogue: transport properties', () => {
     expect(box?.temperature.min).toBeCloseTo(12.5, 6);
     expect(box?.temperature.max).toBeCloseTo(70, 6);
     expect(box?.massFraction.max).toBe(0.56);
+  });
+
+  it('shows the thermal-conductivity box of sodium hydroxide in °C (Riedel: 10–30 °C, up to 0.10)', async () => {
+    const res = await request(h.app).get('/v1/liquors/sodium-hydroxide').set(auth());
+    expect(res.status).toBe(200);
+    const box = (res.body as Summary).transportValidity.thermalConductivity;
+    expect(box?.temperature.min).toBeCloseTo(10, 6);
+    expect(box?.temperature.max).toBeCloseTo(30, 6);
+    expect(box?.massFraction.max).toBe(0.1);
   });
 
   it('stores a liquor with transport polynomials (surface tension in mN/m) and lists them as provided', async () => {

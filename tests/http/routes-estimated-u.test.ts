@@ -26,6 +26,15 @@ const single = {
   steam: { temperature: 80 },
   body: { pressure: 31, overallHeatTransferCoefficient: { estimate: fallingFilm } },
 };
+// An invented custom liquor with density and viscosity but no thermal conductivity (demo only).
+const noConductivity = {
+  name: 'Invented liquor without a conductivity',
+  boilingPointRise: { polynomial: [0, 5] },
+  heatCapacity: { polynomial: [4.18, -2.5] },
+  validity: { massFraction: { min: 0, max: 0.5 } },
+  density: { polynomial: [1000, 400] },
+  viscosity: { polynomial: [1, 2, 30] },
+};
 const UNITS = {
   single: operationCatalogue.singleEffect.units,
   estimate: operationCatalogue.overallCoefficient.units,
@@ -125,7 +134,7 @@ describe('single effect with an estimated U', () => {
       .set(auth())
       .send({
         ...single,
-        liquor: 'sodium-hydroxide',
+        liquor: noConductivity,
         feed: { massFlow: 1, massFraction: 0.1, temperature: 40 },
         product: { massFraction: 0.3 },
         steam: { pressure: '3 barg' },
@@ -179,7 +188,7 @@ describe('single effect with an estimated U', () => {
         cases: [
           single,
           { ...single, body: { pressure: 31, overallHeatTransferCoefficient: 1500 } },
-          { ...single, liquor: 'sodium-hydroxide' },
+          { ...single, liquor: noConductivity },
         ],
       });
     expect(res.status).toBe(200);
@@ -256,7 +265,7 @@ describe('six-effect train with an estimated U in each effect', () => {
       .post('/v1/evaporators/multiple-effect')
       .set(auth())
       .send({
-        liquor: 'sodium-hydroxide',
+        liquor: noConductivity,
         effects: 3,
         feed: { massFlow: 2, massFraction: 0.1, temperature: 60 },
         product: { massFraction: 0.3 },
@@ -273,6 +282,45 @@ describe('six-effect train with an estimated U in each effect', () => {
       'overallHeatTransferCoefficients[2].estimate.liquorProperties.thermalConductivity',
     );
     expect(res.body.detail).toMatch(/effect 3/);
+  });
+
+  it('designs a caustic train with every U estimated from the NaOH model alone', async () => {
+    const res = await request(h.app)
+      .post('/v1/evaporators/multiple-effect')
+      .set(auth())
+      .send({
+        liquor: 'sodium-hydroxide',
+        effects: 3,
+        feed: { massFlow: 2, massFraction: 0.1, temperature: 60 },
+        product: { massFraction: 0.3 },
+        steam: { pressure: 600 },
+        lastEffectPressure: 15,
+        overallHeatTransferCoefficients: [{ estimate: juice }, { estimate: juice }, { estimate: juice }],
+      });
+    expect(res.status).toBe(200);
+    type Effect = {
+      heatTransfer: {
+        overallHeatTransferCoefficient: number;
+        boilingSide: { properties: { source: Record<string, string>; thermalConductivity: number } };
+      };
+    };
+    const effects = res.body.effects as Effect[];
+    expect(effects).toHaveLength(3);
+    for (const e of effects) {
+      expect(e.heatTransfer.boilingSide.properties.source.thermalConductivity).toBe('model');
+      // A falling film of caustic: of the order of 10² to 10³ W/(m²·K) (common practice).
+      expect(e.heatTransfer.overallHeatTransferCoefficient).toBeGreaterThan(300);
+      expect(e.heatTransfer.overallHeatTransferCoefficient).toBeLessThan(5000);
+    }
+    // The liquor thickens towards the last effect: more NaOH raises Riedel's conductivity.
+    expect(effects[2]!.heatTransfer.boilingSide.properties.thermalConductivity).toBeGreaterThan(
+      effects[0]!.heatTransfer.boilingSide.properties.thermalConductivity,
+    );
+    expect(
+      (res.body.warnings as { message: string }[]).some((w) =>
+        w.message.includes('the thermal conductivity is extrapolated'),
+      ),
+    ).toBe(true);
   });
 
   it('prices a batch case with its estimates', async () => {

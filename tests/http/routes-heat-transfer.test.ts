@@ -5,6 +5,8 @@ import request from 'supertest';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { estimateOverallCoefficient } from '../../server/engine/heat-transfer/overall.js';
 import { seawater } from '../../server/engine/liquors/seawater.js';
+import { sodiumHydroxide } from '../../server/engine/liquors/sodium-hydroxide.js';
+import { liquidThermalConductivity } from '../../server/engine/steam/if97.js';
 import { makeHarness, usageRows, type Harness } from './helpers.js';
 
 let h: Harness;
@@ -24,6 +26,16 @@ const brine = {
   tube: { outsideDiameter: '50.8 mm', wallThickness: '1.6 mm', length: 8, material: 'titanium-grade-2' },
   flow: { wettingRate: '1800 kg/(m*h)', evaporatedFraction: 0.3 },
   liquorProperties: { viscosity: '0.45 mPa*s', thermalConductivity: 0.65 },
+};
+
+// An invented custom liquor with density and viscosity but no thermal conductivity (demo only).
+const noConductivity = {
+  name: 'Invented liquor without a conductivity',
+  boilingPointRise: { polynomial: [0, 5] },
+  heatCapacity: { polynomial: [4.18, -2.5] },
+  validity: { massFraction: { min: 0, max: 0.5 } },
+  density: { polynomial: [1000, 400] },
+  viscosity: { polynomial: [1, 2, 30] },
 };
 
 describe('POST /v1/heat-transfer/overall-coefficient', () => {
@@ -82,15 +94,85 @@ describe('POST /v1/heat-transfer/overall-coefficient', () => {
     const res = await request(h.app)
       .post(PATH)
       .set(auth())
-      .send({ ...brine, liquor: 'sodium-hydroxide', massFraction: 0.2, liquorProperties: undefined });
+      .send({ ...brine, liquor: noConductivity, massFraction: 0.2, liquorProperties: undefined });
     expect(res.status).toBe(422);
-    expect(res.body.errors[0].field).toMatch(/^liquorProperties\.(density|viscosity|thermalConductivity)$/);
-    expect(res.body.errors[0].message).toMatch(/gives no (density|viscosity|thermal conductivity)/);
+    expect(res.body.errors[0].field).toBe('liquorProperties.thermalConductivity');
+    expect(res.body.errors[0].message).toMatch(/gives no thermal conductivity/);
     expect(
       usageRows(h.sqlite)
         .slice(before)
         .every((r) => r.units === 0),
     ).toBe(true);
+  });
+
+  it('estimates a caustic falling film from the NaOH model alone, saying its conductivity is Riedel’s, extrapolated', async () => {
+    const res = await request(h.app)
+      .post(PATH)
+      .set(auth())
+      .send({ ...brine, liquor: 'sodium-hydroxide', massFraction: 0.2, liquorProperties: undefined });
+    expect(res.status).toBe(200);
+    const b = res.body;
+    expect(b.boilingSide.properties.source).toEqual({
+      density: 'model',
+      viscosity: 'model',
+      thermalConductivity: 'model',
+      heatCapacity: 'model',
+    });
+    // Riedel on IAPWS water at the boiling point, as the model computes it (W/(m·K) in and out).
+    const T = b.liquorState.boilingTemperature + 273.15;
+    expect(b.boilingSide.properties.thermalConductivity).toBeCloseTo(
+      sodiumHydroxide.thermalConductivity?.(0.2, T) as number,
+      3,
+    );
+    expect(b.boilingSide.properties.thermalConductivity / liquidThermalConductivity(T)).toBeCloseTo(1.213, 2);
+    expect(b.provenance.models.map((m: { id: string }) => m.id)).toEqual(
+      expect.arrayContaining(['sodium-hydroxide', 'chun-seban-1971']),
+    );
+    expect(b.overallHeatTransferCoefficient).toBeGreaterThan(500);
+    expect(b.overallHeatTransferCoefficient).toBeLessThan(5000);
+    // 20 % NaOH near 75 °C: beyond Riedel's 10–30 °C, x ≤ 0.10, said in the API's units.
+    const extrapolated = b.warnings.filter(
+      (w: { code: string; message: string }) =>
+        w.code === 'model-extrapolated' && w.message.includes('the thermal conductivity is extrapolated'),
+    );
+    // The boiling temperature comes from the body pressure, so the edge names that field.
+    expect(extrapolated.map((w: { field: string }) => w.field).sort()).toEqual([
+      'bodyPressure',
+      'massFraction',
+    ]);
+    const t = extrapolated.find((w: { field: string }) => w.field === 'bodyPressure');
+    expect(t.message).toContain('10 °C to 30 °C');
+    expect(b.cautions.map((c: { code: string }) => c.code)).toContain('hot-caustic-burns');
+  });
+
+  it('estimates a black-liquor falling film from the model alone, with the liquor-specific warnings', async () => {
+    const res = await request(h.app)
+      .post(PATH)
+      .set(auth())
+      .send({
+        ...brine,
+        liquor: 'kraft-black-liquor',
+        massFraction: 0.5,
+        bodyPressure: 50,
+        steam: { temperature: 100 },
+        liquorProperties: undefined,
+      });
+    expect(res.status).toBe(200);
+    const b = res.body;
+    expect(b.boilingSide.properties.source.thermalConductivity).toBe('model');
+    const T = b.liquorState.boilingTemperature;
+    // k = 1.44e-3·t − 0.335·S + 0.58 (from memory) at the boiling point t in °C.
+    expect(b.boilingSide.properties.thermalConductivity).toBeCloseTo(1.44e-3 * T - 0.335 * 0.5 + 0.58, 3);
+    const specific = b.warnings
+      .filter((w: { code: string }) => w.code === 'liquor-specific-property')
+      .map((w: { message: string }) => w.message.slice(0, 40));
+    expect(specific).toEqual([
+      expect.stringContaining('Black-liquor viscosity'),
+      expect.stringContaining('Black-liquor thermal conductivity'),
+    ]);
+    expect(b.overallHeatTransferCoefficient).toBeGreaterThan(300);
+    expect(b.overallHeatTransferCoefficient).toBeLessThan(4000);
+    expect(b.provenance.models.map((m: { id: string }) => m.id)).toContain('kraft-black-liquor');
   });
 
   it('refuses a wall as thick as the tube radius with the range in m', async () => {

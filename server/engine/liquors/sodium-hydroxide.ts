@@ -11,9 +11,11 @@
  *
  * Density and viscosity come from Laliberté's models for aqueous electrolytes (Laliberté and
  * Cooper 2004; Laliberté 2007), with NaOH's parameters as Laliberté (2009) tabulates them, each
- * with its own data box (`transportValidity`). Thermal conductivity, surface tension and a
- * crystallisation (solubility) limit are not provided: we have no published NaOH coefficients at
- * hand for them and do not invent coefficients.
+ * with its own data box (`transportValidity`). Thermal conductivity comes from Riedel's additive
+ * rule for electrolyte solutions (Riedel 1951, as Reid, Prausnitz and Poling give it) on IAPWS
+ * water, with the Laliberté density for the molarity. Surface tension and a crystallisation
+ * (solubility) limit are not provided: we have no published NaOH coefficients at hand for them
+ * and do not invent coefficients.
  */
 import { EngineRangeError } from '../errors.js';
 import {
@@ -21,6 +23,7 @@ import {
   saturationTemperature,
   IF97,
   if97CitationFor,
+  liquidThermalConductivity,
   liquidViscosity,
 } from '../steam/if97.js';
 import { addWarning, KELVIN_OFFSET, type Citation, type WarningSink } from '../types.js';
@@ -418,6 +421,71 @@ export function laliberteNaohDensity(
   return 1 / ((1 - w) / waterDensity + w * laliberteNaohApparentSpecificVolume(w, temperatureCelsius));
 }
 
+/** Molar mass of NaOH, kg/mol (IUPAC standard atomic weights: 22.990 + 15.999 + 1.008 g/mol). */
+export const NAOH_MOLAR_MASS = 39.997e-3;
+
+/**
+ * Riedel's ionic coefficients σ_i for Na⁺ and OH⁻, W/(m·K) per mol/L of the ion, at 20 °C, as
+ * Reid, Prausnitz and Poling tabulate them (from memory: 0 for Na⁺, the reference ion, and
+ * +20.934 × 10⁻³ for OH⁻, one of the few ions that raise water's conductivity). Their scale was
+ * checked against the recalled Cl⁻ coefficient (−5.466 × 10⁻³), which reproduces the drop of
+ * seawater's conductivity below water's (tests).
+ */
+const RIEDEL_SIGMA = { sodium: 0, hydroxide: 20.934e-3 } as const;
+/** Riedel's reference temperature, K (his data were measured near 20 °C). */
+export const RIEDEL_REFERENCE_TEMPERATURE = 293.15;
+
+/**
+ * Molar concentration of NaOH at 20 °C from its mass fraction and the solution density at 20 °C.
+ *
+ *   c = w·ρ_20/M_NaOH/1000   [mol/L]
+ *
+ * Validity: as the density passed in.
+ * Source: definition; M_NaOH = 39.997 g/mol (IUPAC atomic weights).
+ *
+ * @param massFraction w, kg NaOH per kg solution
+ * @param density20 ρ of the solution at 20 °C, kg/m³
+ * @returns c, mol/L
+ * @example naohMolarity(0.1, 1109) // ≈ 2.773 mol/L
+ */
+export function naohMolarity(massFraction: number, density20: number): number {
+  return (massFraction * density20) / NAOH_MOLAR_MASS / 1000;
+}
+
+/**
+ * Thermal conductivity of aqueous NaOH by Riedel's additive rule for electrolyte solutions: at
+ * 20 °C each ion adds σ_i times its molar concentration to water's conductivity, and at other
+ * temperatures the solution's conductivity keeps its ratio to water's (the method's temperature
+ * rule: the temperature dependence is water's).
+ *
+ *   k(293 K) = k_w(293 K) + Σ σ_i·c_i,   k(T) = k(293 K)·k_w(T)/k_w(293 K)
+ *   c_Na⁺ = c_OH⁻ = c (mol/L at 20 °C);  σ_Na⁺ = 0,  σ_OH⁻ = 20.934 × 10⁻³ W·L/(m·K·mol)
+ *
+ * At c = 0 it is k_w(T) exactly, whatever water equation supplies k_w.
+ *
+ * Validity: Riedel's measurements were near 20 °C and at moderate concentrations (a few mol/L,
+ * from memory); Reid, Prausnitz and Poling quote errors of a few per cent there (from memory).
+ * The temperature rule and high concentrations are extrapolations.
+ * Source: L. Riedel, "Die Wärmeleitfähigkeit von wäßrigen Lösungen starker Elektrolyte",
+ * Chemie-Ingenieur-Technik 23 (1951) 59–64; equations and ionic coefficients as given in R.C. Reid,
+ * J.M. Prausnitz, B.E. Poling, The Properties of Gases and Liquids, 4th ed., McGraw-Hill (1987),
+ * section 10-13 (from memory).
+ *
+ * @param molarity c, mol NaOH per litre of solution at 20 °C
+ * @param waterConductivity k_w(T), W/(m·K)
+ * @param waterConductivity20 k_w(293.15 K), W/(m·K)
+ * @returns k, W/(m·K)
+ * @example riedelNaohThermalConductivity(2.773, 0.598, 0.598) // ≈ 0.6560 W/(m·K)
+ */
+export function riedelNaohThermalConductivity(
+  molarity: number,
+  waterConductivity: number,
+  waterConductivity20: number,
+): number {
+  const k20 = waterConductivity20 + (RIEDEL_SIGMA.sodium + RIEDEL_SIGMA.hydroxide) * molarity;
+  return (k20 * waterConductivity) / waterConductivity20;
+}
+
 const KPA = 1e3;
 const KJ = 1e3;
 const C = (celsius: number): number => celsius + KELVIN_OFFSET;
@@ -450,7 +518,8 @@ const validity: ValidityBox = {
     'Enthalpy data, lowest water fraction by temperature: 0–4 °C 0.78; 4–10 °C 0.68; 10–15 °C 0.58; 15–26 °C 0.54; 26–37 °C 0.44; 37–48 °C 0.40; 48–60 °C 0.34; 60–71 °C 0.30; 71–82 °C 0.28; 82–93 °C 0.24; 93–204 °C 0.22.',
     'Boiling-point rise = the fit’s boiling point at the solution minus its own pure-water boiling point at the same pressure, added to IF97 T_sat(p); the fit’s pure-water error (0.04 K at 101.325 kPa, 0.14 K at 5 kPa) cancels, so the rise is 0 for pure water.',
     'Viscosity (Laliberté 2007, 2009 parameters): data 12.5–70 °C, x ≤ 0.56; density (Laliberté and Cooper 2004, 2009 parameters): data 4–120 °C, x ≤ 0.503. Outside these a "model-extrapolated" warning names the property; the hard limits stay those of the model.',
-    'Thermal conductivity, surface tension and the crystallisation (hydrate solubility) limit are not provided by this model.',
+    'Thermal conductivity (Riedel 1951, additive ionic rule on IAPWS water): silent at 10–30 °C and x ≤ 0.10 (about 2.8 mol/L), near Riedel’s 20 °C data at moderate concentration; elsewhere a "model-extrapolated" warning names it (the temperature dependence is water’s, by the method). Refused above x = 0.50, where the molarity would leave the density data (x ≤ 0.503).',
+    'Surface tension and the crystallisation (hydrate solubility) limit are not provided by this model.',
   ],
 };
 
@@ -484,11 +553,21 @@ const sources: Citation[] = [
     reference:
       'M. Laliberté, "A model for calculating the heat capacity of aqueous solutions, with updated density and viscosity data", Journal of Chemical & Engineering Data 54 (2009) 1725–1760 (the NaOH density and viscosity parameters used)',
   },
+  {
+    key: 'riedel-1951',
+    reference:
+      'L. Riedel, "Die Wärmeleitfähigkeit von wäßrigen Lösungen starker Elektrolyte", Chemie-Ingenieur-Technik 23 (1951) 59–64; additive ionic rule and coefficients as given in R.C. Reid, J.M. Prausnitz, B.E. Poling, The Properties of Gases and Liquids, 4th ed., McGraw-Hill (1987), section 10-13 (thermal conductivity; coefficients from memory)',
+  },
   if97CitationFor('pure-water saturation temperature for the boiling-point rise; water density'),
   {
     key: 'iapws-r12-08',
     reference:
       'IAPWS R12-08, Release on the IAPWS Formulation 2008 for the Viscosity of Ordinary Water Substance (water viscosity)',
+  },
+  {
+    key: 'iapws-r15-11',
+    reference:
+      'IAPWS R15-11, Release on the IAPWS Formulation 2011 for the Thermal Conductivity of Ordinary Water Substance (water conductivity)',
   },
 ];
 
@@ -561,6 +640,16 @@ const DENSITY_BOX: ValidityBox = {
   massFraction: { min: 0, max: 0.503 },
   temperature: { min: C(4), max: C(120) },
 };
+/**
+ * Where Riedel's rule is used silently: 20 ± 10 °C (his data were near 20 °C) and x ≤ 0.10
+ * (≈ 2.8 mol/L, a moderate concentration). Its hard limit in x is 0.50: the molarity needs the
+ * density at 20 °C, whose data end at x = 0.503.
+ */
+const CONDUCTIVITY_BOX: ValidityBox = {
+  massFraction: { min: 0, max: 0.1 },
+  temperature: { min: C(10), max: C(30) },
+};
+const CONDUCTIVITY_X_LIMITS: Interval = { min: 0, max: 0.5 };
 
 /** Hard limits of the model, a warning naming the property outside its own data box. */
 function checkTransportInputs(
@@ -569,12 +658,13 @@ function checkTransportInputs(
   massFraction: number,
   temperature: number,
   warnings: WarningSink,
+  massFractionLimits: Interval = X_LIMITS,
 ): number {
   checkPropertyBox(
     MODEL_ID,
     property,
     box,
-    { massFraction: X_LIMITS, temperature: T_LIMITS },
+    { massFraction: massFractionLimits, temperature: T_LIMITS },
     massFraction,
     temperature,
     warnings,
@@ -642,7 +732,11 @@ export const sodiumHydroxide: LiquorModel = defineLiquorModel({
     return olssonHeatCapacityKJPerKgK(1 - massFraction, t) * KJ;
   },
 
-  transportValidity: { viscosity: VISCOSITY_BOX, density: DENSITY_BOX },
+  transportValidity: {
+    viscosity: VISCOSITY_BOX,
+    density: DENSITY_BOX,
+    thermalConductivity: CONDUCTIVITY_BOX,
+  },
 
   /**
    * Laliberté's mixing rule on IAPWS R12-08 water (saturated liquid at T), mPa·s → Pa·s. Beyond
@@ -657,5 +751,31 @@ export const sodiumHydroxide: LiquorModel = defineLiquorModel({
   density(massFraction: number, temperature: number, warnings?: WarningSink): number {
     const t = checkTransportInputs(DENSITY_BOX, 'density', massFraction, temperature, warnings);
     return laliberteNaohDensity(massFraction, t, saturatedLiquidAtTemperature(temperature).density);
+  },
+
+  /**
+   * Riedel's additive rule on IAPWS R15-11 water (saturated liquid at T), the molarity from
+   * Laliberté and Cooper's density at 20 °C, W/(m·K). k is IAPWS water's at x = 0.
+   */
+  thermalConductivity(massFraction: number, temperature: number, warnings?: WarningSink): number {
+    checkTransportInputs(
+      CONDUCTIVITY_BOX,
+      'thermal conductivity',
+      massFraction,
+      temperature,
+      warnings,
+      CONDUCTIVITY_X_LIMITS,
+    );
+    const t20 = RIEDEL_REFERENCE_TEMPERATURE;
+    const density20 = laliberteNaohDensity(
+      massFraction,
+      t20 - KELVIN_OFFSET,
+      saturatedLiquidAtTemperature(t20).density,
+    );
+    return riedelNaohThermalConductivity(
+      naohMolarity(massFraction, density20),
+      liquidThermalConductivity(temperature),
+      liquidThermalConductivity(t20),
+    );
   },
 });

@@ -23,6 +23,8 @@ import { builtInLiquors } from '../../../server/engine/liquors/registry.js';
 const seawater = builtInLiquors.get('seawater')!;
 const sucrose = builtInLiquors.get('sucrose')!;
 const sodiumHydroxide = builtInLiquors.get('sodium-hydroxide')!;
+/** A liquor model without a thermal conductivity, as a custom liquor without its polynomial is. */
+const noConductivity = { ...sodiumHydroxide, id: 'custom:no-conductivity', thermalConductivity: undefined };
 
 const fallingFilm: OverallCoefficientEstimateSpec = {
   evaporatorType: 'falling-film',
@@ -120,14 +122,14 @@ describe('single effect with an estimated U', () => {
   it('refuses a liquor without thermal conductivity, naming the estimate field to give', () => {
     expect(() =>
       designSingleEffect({
-        liquor: sodiumHydroxide,
+        liquor: noConductivity,
         feed: { massFlow: 1, massFraction: 0.1, temperature: 313.15 },
         product: { massFraction: 0.3 },
         steam: { pressure: 400_000 },
         body: {
           pressure: 20_000,
           overallHeatTransferCoefficient: overallCoefficientProvider(
-            sodiumHydroxide,
+            noConductivity,
             fallingFilm,
             'body.overallHeatTransferCoefficient',
           ),
@@ -225,7 +227,7 @@ describe('six-effect train with an estimated U in each effect', () => {
   it('names the effect and the missing property when an effect estimate lacks one', () => {
     const naoh = (i: number, props?: OverallCoefficientEstimateSpec['liquorProperties']) =>
       overallCoefficientProvider(
-        sodiumHydroxide,
+        noConductivity,
         { ...juice, ...(props ? { liquorProperties: props } : {}) },
         `overallHeatTransferCoefficients[${i}]`,
         `effect ${i + 1}`,
@@ -233,7 +235,7 @@ describe('six-effect train with an estimated U in each effect', () => {
     let error: unknown;
     try {
       designMultipleEffect({
-        liquor: sodiumHydroxide,
+        liquor: noConductivity,
         feed: { massFlow: 2, massFraction: 0.1, temperature: 333.15 },
         productMassFraction: 0.3,
         steam: { pressure: 600_000 },
@@ -248,6 +250,34 @@ describe('six-effect train with an estimated U in each effect', () => {
       'overallHeatTransferCoefficients[2].estimate.liquorProperties.thermalConductivity',
     );
     expect((error as Error).message).toMatch(/^effect 3: /);
+  });
+
+  it('estimates every effect of a caustic train from the NaOH model alone, with its conductivity warnings', () => {
+    const r = designMultipleEffect({
+      liquor: sodiumHydroxide,
+      feed: { massFlow: 2, massFraction: 0.1, temperature: 333.15 },
+      productMassFraction: 0.3,
+      steam: { pressure: 600_000 },
+      lastEffectPressure: 15_000,
+      overallHeatTransferCoefficients: [0, 1, 2].map((i) =>
+        overallCoefficientProvider(
+          sodiumHydroxide,
+          juice,
+          `overallHeatTransferCoefficients[${i}]`,
+          `effect ${i + 1}`,
+        ),
+      ),
+    });
+    for (const e of r.effects) {
+      expect(e.heatTransfer?.boilingSide.properties.source.thermalConductivity).toBe('model');
+      expect(e.overallHeatTransferCoefficient).toBe(e.heatTransfer?.overallHeatTransferCoefficient);
+    }
+    // Above 30 °C Riedel's rule is extrapolated with water's temperature dependence: said, per effect.
+    const extrapolated = r.warnings.filter(
+      (w) => w.code === 'model-extrapolated' && w.property === 'thermal conductivity',
+    );
+    expect(extrapolated.length).toBeGreaterThan(0);
+    for (const b of [r.balances.mass, r.balances.solute, r.balances.energy]) expect(b).toBeLessThan(1e-9);
   });
 });
 

@@ -74,6 +74,20 @@ describe('Chun & Seban (1971) falling-film coefficient', () => {
       expect(Math.abs(h / p.filmCoefficient - 1)).toBeLessThan(1e-4);
     }
   });
+
+  it('has the constants of an independent transcription of the correlation (0.606 for Re = Γ/μ)', () => {
+    // An open-source MATLAB evaporator model (its falling-film branch cited to R.W. Hartel,
+    // "Evaporation and freeze concentration", in D.R. Heldman and D.B. Lund (eds.), Handbook of
+    // Food Engineering, Marcel Dekker 1992) writes Chun & Seban as h* = 0.606·Re^−0.22 (wavy
+    // laminar) and 0.0038·Re^0.4·Pr^0.65 (turbulent). 0.822·4^−0.22 = 0.6059: the same wavy-laminar
+    // constant written for Re = Γ/μ. This checks the constants against a second transcription, not
+    // the correlation against measurements: we found no printed Chun & Seban data point to read.
+    for (const gammaOverMu of [100, 300, 1000]) {
+      const hartel = 0.606 * gammaOverMu ** -0.22;
+      expect(chunSebanWavyLaminar(4 * gammaOverMu) / hartel - 1).toBeCloseTo(0, 3);
+    }
+    expect(chunSebanTurbulent(10_000, 3)).toBeCloseTo(0.0038 * 10_000 ** 0.4 * 3 ** 0.65, 12);
+  });
 });
 
 describe('Nusselt film condensation with Rohsenow’s latent heat', () => {

@@ -214,16 +214,46 @@ describe('overall coefficient: warnings', () => {
 });
 
 describe('overall coefficient: refusals', () => {
-  it('refuses a liquor without viscosity, naming the property', () => {
+  it('refuses a liquor model without thermal conductivity, naming the property to give', () => {
+    // A model as a custom liquor without a conductivity polynomial would be: the rest of NaOH's.
+    const noConductivity = {
+      ...sodiumHydroxide,
+      id: 'custom:no-conductivity',
+      thermalConductivity: undefined,
+    };
     let caught: unknown;
     try {
-      estimateOverallCoefficient({ ...fallingFilm, liquor: sodiumHydroxide, massFraction: 0.2 });
+      estimateOverallCoefficient({ ...fallingFilm, liquor: noConductivity, massFraction: 0.2 });
     } catch (e) {
       caught = e;
     }
     expect(caught).toBeInstanceOf(EngineInputError);
-    expect((caught as EngineInputError).field).toMatch(/^liquorProperties\./);
-    expect((caught as EngineInputError).message).toMatch(/gives no (viscosity|density|thermal conductivity)/);
+    expect((caught as EngineInputError).field).toBe('liquorProperties.thermalConductivity');
+    expect((caught as EngineInputError).message).toMatch(/gives no thermal conductivity/);
+  });
+
+  it('estimates a caustic falling film from the NaOH model alone, its conductivity by Riedel’s rule', () => {
+    const boilingTemperature = sodiumHydroxide.boilingPoint(0.2, saturationPressure(333.15));
+    const r = estimateOverallCoefficient({
+      ...fallingFilm,
+      liquor: sodiumHydroxide,
+      massFraction: 0.2,
+      boilingTemperature,
+      steamTemperature: 353.15,
+    });
+    expect(r.boilingSide.properties.source).toEqual({
+      density: 'model',
+      viscosity: 'model',
+      thermalConductivity: 'model',
+      heatCapacity: 'model',
+    });
+    expect(r.boilingSide.properties.thermalConductivity).toBe(
+      sodiumHydroxide.thermalConductivity?.(0.2, boilingTemperature),
+    );
+    // Riedel's box is 10–30 °C and x ≤ 0.10: at 20 % and ≈ 70 °C both are extrapolated, and said so.
+    const conductivity = r.warnings.filter((w) => w.property === 'thermal conductivity');
+    expect(conductivity.map((w) => w.field).sort()).toEqual(['massFraction', 'temperature']);
+    expect(r.sources.map((c) => c.key)).toContain('chun-seban-1971');
   });
 
   it('refuses steam not hotter than the boiling liquor', () => {

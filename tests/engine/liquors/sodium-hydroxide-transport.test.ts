@@ -1,6 +1,7 @@
 /**
  * NaOH solution density (Laliberté and Cooper 2004) and viscosity (Laliberté 2007), with the NaOH
- * parameters of Laliberté (2009), on IF97 / IAPWS water.
+ * parameters of Laliberté (2009), on IF97 / IAPWS water; thermal conductivity by Riedel's additive
+ * ionic rule (1951, as Reid, Prausnitz and Poling give it) on IAPWS R15-11 water.
  *
  * Reference values: handbook tables of aqueous NaOH at 20 °C (the CRC Handbook's "concentrative
  * properties of aqueous solutions" table and caustic-soda producers' data sheets), recalled
@@ -8,11 +9,18 @@
  */
 import { describe, expect, it } from 'vitest';
 import { expectRangeError } from '../expect-range-error.js';
+import { describeLiquor } from '../../../server/engine/liquors/model.js';
+import { seawater } from '../../../server/engine/liquors/seawater.js';
 import {
   laliberteNaohApparentSpecificVolume,
+  naohMolarity,
   sodiumHydroxide,
 } from '../../../server/engine/liquors/sodium-hydroxide.js';
-import { liquidViscosity, saturatedLiquidAtTemperature } from '../../../server/engine/steam/if97.js';
+import {
+  liquidThermalConductivity,
+  liquidViscosity,
+  saturatedLiquidAtTemperature,
+} from '../../../server/engine/steam/if97.js';
 import type { EngineWarning } from '../../../server/engine/types.js';
 
 const rel = (a: number, b: number): number => Math.abs(a / b - 1);
@@ -86,8 +94,84 @@ describe('sodium hydroxide viscosity (Laliberté 2007)', () => {
     expectRangeError(() => sodiumHydroxide.viscosity?.(0.3, Number.NaN), { field: 'temperature' });
   });
 
-  it('gives no thermal conductivity or surface tension (no published NaOH coefficients at hand)', () => {
-    expect(sodiumHydroxide.thermalConductivity).toBeUndefined();
+  it('gives no surface tension (no published NaOH coefficients at hand)', () => {
     expect(sodiumHydroxide.surfaceTension).toBeUndefined();
+  });
+});
+
+describe('sodium hydroxide thermal conductivity (Riedel’s additive ionic rule)', () => {
+  const k = (x: number, T: number, w?: EngineWarning[]) =>
+    sodiumHydroxide.thermalConductivity?.(x, T, w) as number;
+  /** Riedel's OH⁻ coefficient as recalled (Reid, Prausnitz and Poling's table, from memory); Na⁺ is 0. */
+  const SIGMA_OH = 20.934e-3;
+
+  it('is IAPWS R15-11 water exactly at x = 0, at every temperature', () => {
+    for (const T of [283.15, 293.15, 333.15, 373.15, 423.15]) {
+      expect(k(0, T)).toBe(liquidThermalConductivity(T));
+    }
+  });
+
+  it('adds σ_Na⁺·c + σ_OH⁻·c to water at 20 °C, c in mol/L from the model’s density', () => {
+    const T = 293.15;
+    for (const x of [0.02, 0.05, 0.1, 0.3]) {
+      const c = naohMolarity(x, sodiumHydroxide.density?.(x, T) as number);
+      expect((k(x, T) - liquidThermalConductivity(T)) / c, `x = ${x}`).toBeCloseTo(SIGMA_OH, 12);
+    }
+    // 10 % NaOH: ρ ≈ 1109 kg/m³ (handbook, from memory), c ≈ 2.77 mol/L, k about 10 % above water.
+    expect(naohMolarity(0.1, sodiumHydroxide.density?.(0.1, T) as number)).toBeCloseTo(2.77, 2);
+    expect(k(0.1, T) / liquidThermalConductivity(T)).toBeCloseTo(1.097, 3);
+  });
+
+  it('keeps its ratio to water at other temperatures (the method’s temperature rule)', () => {
+    const ratio = (T: number) => k(0.1, T) / liquidThermalConductivity(T);
+    for (const T of [283.15, 333.15, 373.15, 413.15]) expect(ratio(T)).toBeCloseTo(ratio(293.15), 12);
+  });
+
+  it('has the scale of the recalled table: its Cl⁻ coefficient gives seawater’s small drop below water', () => {
+    // Riedel's Cl⁻ (from memory −5.466e-3 W·L/(m·K·mol), Na⁺ 0) on the Cl⁻ of standard seawater at
+    // S = 35 g/kg (0.5458 mol/kg, Millero et al. 2008, from memory), against the seawater model
+    // (Jamieson and Tudhope's correlation on IAPWS water) at 20 °C: the same sign, within a factor
+    // of 2, where a slip of a power of ten in the recalled scale would be 10 times off.
+    const T = 293.15;
+    const rho = seawater.density?.(0.035, T) as number;
+    const riedelDrop = -5.466e-3 * 0.5458 * (rho / 1000);
+    const jamiesonDrop = (seawater.thermalConductivity?.(0.035, T) as number) - liquidThermalConductivity(T);
+    expect(jamiesonDrop).toBeLessThan(0);
+    expect(riedelDrop / jamiesonDrop).toBeGreaterThan(0.5);
+    expect(riedelDrop / jamiesonDrop).toBeLessThan(2);
+    // Measured: Riedel −0.0031, Jamieson–Tudhope −0.0019 W/(m·K).
+  });
+
+  it('is silent near 20 °C at moderate concentration and names the property when extrapolated', () => {
+    const quiet: EngineWarning[] = [];
+    k(0.08, 298.15, quiet);
+    expect(quiet).toEqual([]);
+    const w: EngineWarning[] = [];
+    k(0.3, 373.15, w);
+    expect(w.map((x) => [x.code, x.field, x.property])).toEqual([
+      ['model-extrapolated', 'massFraction', 'thermal conductivity'],
+      ['model-extrapolated', 'temperature', 'thermal conductivity'],
+    ]);
+    expect(w[1]?.validRange).toEqual({ min: 283.15, max: 303.15, unit: 'K' });
+    expect(w[1]?.message).toContain('the thermal conductivity is extrapolated');
+  });
+
+  it('refuses beyond x = 0.50, where the molarity would leave the density data, with the range', () => {
+    expectRangeError(() => k(0.55, 320), {
+      field: 'massFraction',
+      validRange: { min: 0, max: 0.5, unit: 'kg NaOH/kg solution' },
+    });
+    expectRangeError(() => k(0.2, Number.NaN), { field: 'temperature' });
+    expectRangeError(() => k(0.2, 530), { field: 'temperature' });
+  });
+
+  it('is listed as provided, with its own data box', () => {
+    const d = describeLiquor(sodiumHydroxide);
+    expect(d.properties.thermalConductivity).toBe(true);
+    expect(d.transportValidity.thermalConductivity).toEqual({
+      massFraction: { min: 0, max: 0.1 },
+      temperature: { min: 283.15, max: 303.15 },
+    });
+    expect(d.sources.map((c) => c.key)).toEqual(expect.arrayContaining(['riedel-1951', 'iapws-r15-11']));
   });
 });
