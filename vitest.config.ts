@@ -26,7 +26,7 @@ export default defineConfig({
         test: {
           name: 'server',
           include: ['tests/**/*.test.ts'],
-          exclude: ['tests/console/**', 'tests/e2e/**', '**/node_modules/**'],
+          exclude: ['tests/console/**', 'tests/e2e/**', 'tests/cluster/**', '**/node_modules/**'],
           environment: 'node',
         },
       },
@@ -57,6 +57,18 @@ export default defineConfig({
           environment: 'node',
           maxWorkers: 1,
           sequence: { groupOrder: 1 },
+        },
+      },
+      {
+        // Three nodes, PostgreSQL, Redis and HAProxy (tests/support/cluster.ts): alone, last, so its
+        // load and its killed node meet no other suite's timing.
+        extends: true,
+        test: {
+          name: 'cluster',
+          include: ['tests/cluster/**/*.test.ts'],
+          environment: 'node',
+          maxWorkers: 1,
+          sequence: { groupOrder: 2 },
         },
       },
       {

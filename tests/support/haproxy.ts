@@ -73,6 +73,8 @@ frontend ebullio
 
 backend nodes
   balance roundrobin
+  # Which node answered: for operators reading a trace, and for the cluster suite.
+  http-response set-header X-Ebullio-Node %[srv_name]
   option httpchk GET /readyz
   http-check expect status 200
   default-server inter 250ms fastinter 100ms downinter 250ms fall 1 rise 2
