@@ -198,7 +198,8 @@ async function main(): Promise<void> {
     if (sweeping) return;
     sweeping = true;
     try {
-      const ids = sqlite.prepare('SELECT id FROM accounts ORDER BY id').all() as { id: number }[];
+      const { accounts } = store.t;
+      const ids = await store.db.select({ id: accounts.id }).from(accounts).orderBy(accounts.id);
       for (const { id } of ids) {
         const r = await checkQuotaNotices(deps, id);
         if (r.sent !== null)
