@@ -61,7 +61,7 @@ function flag(name: string, fallback: boolean): boolean {
 /** Local SMTP capture server: outside production, when no SMTP server is configured. */
 async function startDevMail(
   config: Config,
-  deps: Pick<AppDeps, 'db' | 'clock'>,
+  deps: Pick<AppDeps, 'store' | 'clock'>,
 ): Promise<MailCapture | undefined> {
   if (config.nodeEnv === 'production' || config.smtpUrl !== undefined || !flag('MAIL_CAPTURE', true))
     return undefined;
@@ -69,7 +69,7 @@ async function startDevMail(
   const port = raw === undefined || raw === '' ? 0 : Number(raw);
   if (!Number.isInteger(port) || port < 0 || port > 65535)
     throw new ConfigError(`MAIL_CAPTURE_PORT must be a port number, got "${raw}"`);
-  const capture = await startMailCapture({ db: deps.db, port, clock: deps.clock });
+  const capture = await startMailCapture({ store: deps.store, port, clock: deps.clock });
   // sendMail reads config.smtpUrl: point it at the capture server (loopback, no TLS).
   config.smtpUrl = capture.url;
   console.log(
@@ -134,7 +134,7 @@ async function main(): Promise<void> {
   const store = sqliteStore(sqlite, db);
   runMigrations(db);
   // Price plans (server/billing/plans.ts): inserts the missing default tiers, never overwrites one.
-  const plansAdded = ensureDefaultPlans(db);
+  const plansAdded = await ensureDefaultPlans(store);
   if (plansAdded > 0) console.log(`[start-up] ${plansAdded} default price plan(s) added`);
   const report = await bootstrap(db, sqlite, config, clock(), version);
   if (report.seeded) console.log('[start-up] empty database: demo accounts and usage seeded');
@@ -176,7 +176,7 @@ async function main(): Promise<void> {
 
   let mail: MailCapture | undefined;
   try {
-    mail = await startDevMail(config, { db, clock });
+    mail = await startDevMail(config, { store, clock });
   } catch (err) {
     // A busy capture port should not stop the service: mail is then logged as failed.
     console.error(`[start-up] development mail capture not started: ${(err as Error).message}`);
@@ -198,7 +198,8 @@ async function main(): Promise<void> {
     if (sweeping) return;
     sweeping = true;
     try {
-      const ids = sqlite.prepare('SELECT id FROM accounts ORDER BY id').all() as { id: number }[];
+      const { accounts } = store.t;
+      const ids = await store.db.select({ id: accounts.id }).from(accounts).orderBy(accounts.id);
       for (const { id } of ids) {
         const r = await checkQuotaNotices(deps, id);
         if (r.sent !== null)

@@ -15,7 +15,6 @@
 import { and, eq } from 'drizzle-orm';
 import type { FinalizeStatementResponse, StatementDetail } from '../../shared/console/billing.js';
 import { getAccount } from '../accounts/accounts.js';
-import { accounts, statements } from '../db/schema.js';
 import type { AppDeps } from '../deps.js';
 import { problem, ProblemError } from '../http/problem.js';
 import { paymentsFor } from '../integrations/payments/client.js';
@@ -78,7 +77,7 @@ export async function finalizeStatement(
 }
 
 async function finalizeOnce(deps: AppDeps, statementId: number): Promise<FinalizeStatementResponse> {
-  const before = statementDetail(deps.db, statementId);
+  const before = await statementDetail(deps.store, statementId);
   if (!before) throw problem('not-found', `There is no statement ${statementId}.`);
   if (before.status !== 'draft') {
     throw problem(
@@ -101,8 +100,8 @@ async function finalizeOnce(deps: AppDeps, statementId: number): Promise<Finaliz
     );
   }
   // The month is over: its usage is final. Recompute the draft once more before freezing it.
-  refreshDraft(deps.db, deps.sqlite, statementId);
-  const detail = statementDetail(deps.db, statementId);
+  await refreshDraft(deps.store, statementId);
+  const detail = await statementDetail(deps.store, statementId);
   const account = getAccount(deps.db, before.accountId);
   if (!detail || !account) throw problem('not-found', `There is no statement ${statementId}.`);
 
@@ -121,11 +120,11 @@ async function finalizeOnce(deps: AppDeps, statementId: number): Promise<Finaliz
         { idempotencyKey: `ebullio-account-${account.id}-${account.createdAt.getTime()}-customer` },
       );
       customerId = customer.id;
-      deps.db
+      const { accounts } = deps.store.t;
+      await deps.store.db
         .update(accounts)
         .set({ paymentCustomerId: customerId })
-        .where(eq(accounts.id, account.id))
-        .run();
+        .where(eq(accounts.id, account.id));
     }
     const draft = await client.invoices.create(
       {
@@ -175,7 +174,8 @@ async function finalizeOnce(deps: AppDeps, statementId: number): Promise<Finaliz
   }
   const paid = invoice.status === 'paid';
   const paidAtSeconds = invoice.status_transitions?.paid_at;
-  const updated = deps.db
+  const { statements } = deps.store.t;
+  const [updated] = await deps.store.db
     .update(statements)
     .set({
       status: paid ? 'paid' : 'finalized',
@@ -184,10 +184,9 @@ async function finalizeOnce(deps: AppDeps, statementId: number): Promise<Finaliz
       paidAt: paid ? (paidAtSeconds ? new Date(paidAtSeconds * 1000) : now) : null,
     })
     .where(and(eq(statements.id, statementId), eq(statements.status, 'draft')))
-    .returning()
-    .get();
+    .returning();
   if (!updated) throw problem('conflict', `Statement ${statementId} changed while it was being issued.`);
-  const final = statementDetail(deps.db, statementId);
+  const final = await statementDetail(deps.store, statementId);
   if (!final) throw problem('not-found', `There is no statement ${statementId}.`);
 
   let mailedTo: string | null = null;

@@ -6,8 +6,8 @@
  * survive restarts.
  */
 import { eq } from 'drizzle-orm';
-import type { Db } from '../db/client.js';
-import { plans } from '../db/schema.js';
+import type { plans } from '../db/schema.js';
+import type { Store } from '../db/store.js';
 
 export type PlanRow = typeof plans.$inferSelect;
 
@@ -40,19 +40,23 @@ export const DEFAULT_PLANS: readonly PlanRow[] = [
 ];
 
 /** Inserts the default plans that are not stored yet; returns how many were inserted. */
-export function ensureDefaultPlans(db: Db): number {
+export async function ensureDefaultPlans(store: Store): Promise<number> {
+  const { plans } = store.t;
   let inserted = 0;
   for (const plan of DEFAULT_PLANS) {
-    const row = db.insert(plans).values(plan).onConflictDoNothing().returning().get();
+    const [row] = await store.db.insert(plans).values(plan).onConflictDoNothing().returning();
     if (row) inserted++;
   }
   return inserted;
 }
 
-export function listPlans(db: Db): PlanRow[] {
-  return db.select().from(plans).orderBy(plans.includedUnits, plans.name).all();
+export async function listPlans(store: Store): Promise<PlanRow[]> {
+  const { plans } = store.t;
+  return store.db.select().from(plans).orderBy(plans.includedUnits, plans.name);
 }
 
-export function getPlan(db: Db, name: string): PlanRow | undefined {
-  return db.select().from(plans).where(eq(plans.name, name)).get();
+export async function getPlan(store: Store, name: string): Promise<PlanRow | undefined> {
+  const { plans } = store.t;
+  const [row] = await store.db.select().from(plans).where(eq(plans.name, name)).limit(1);
+  return row;
 }

@@ -20,7 +20,6 @@ import {
   utcMonth,
   type QuotaThreshold,
 } from '../accounts/usage.js';
-import { quotaNotices } from '../db/schema.js';
 import type { AppDeps } from '../deps.js';
 import { sendMail } from '../mail/send.js';
 
@@ -69,13 +68,14 @@ export async function checkQuotaNotices(deps: AppDeps, accountId: number): Promi
   if (reached.length === 0 || !account.billingEmail) return result;
 
   // Claim the thresholds atomically: only the check that inserts a row mails it.
-  const claimed = deps.db
-    .insert(quotaNotices)
-    .values(reached.map((threshold) => ({ accountId, month, threshold, sentAt: now })))
-    .onConflictDoNothing()
-    .returning()
-    .all()
-    .map((r) => r.threshold as QuotaThreshold);
+  const { quotaNotices } = deps.store.t;
+  const claimed = (
+    await deps.store.db
+      .insert(quotaNotices)
+      .values(reached.map((threshold) => ({ accountId, month, threshold, sentAt: now })))
+      .onConflictDoNothing()
+      .returning()
+  ).map((r) => r.threshold as QuotaThreshold);
   if (claimed.length === 0) return result;
   const highest = Math.max(...claimed) as QuotaThreshold;
   const mail = await sendMail(deps, {
@@ -88,7 +88,7 @@ export async function checkQuotaNotices(deps: AppDeps, accountId: number): Promi
     text: noticeText(account.name, highest, used, quota, nextMonthStartUtc(now)),
   });
   if (mail.status !== 'sent') {
-    deps.db
+    await deps.store.db
       .delete(quotaNotices)
       .where(
         and(
@@ -96,8 +96,7 @@ export async function checkQuotaNotices(deps: AppDeps, accountId: number): Promi
           eq(quotaNotices.month, month),
           inArray(quotaNotices.threshold, claimed),
         ),
-      )
-      .run();
+      );
     return result;
   }
   result.sent = highest;

@@ -5,9 +5,9 @@
  * void statement is never changed. Line items are derived from the statement's stored figures and
  * its plan's prices (plans are never edited by the service; see plans.ts).
  */
-import { and, eq, type SQL } from 'drizzle-orm';
-import type { Db, Sqlite } from '../db/client.js';
-import { accounts, statements } from '../db/schema.js';
+import { and, eq, sql, type SQL } from 'drizzle-orm';
+import type { statements } from '../db/schema.js';
+import type { Store } from '../db/store.js';
 import { getPlan, listPlans, type PlanRow } from './plans.js';
 import { toCsv } from '../http/csv.js';
 import {
@@ -28,15 +28,13 @@ import type {
 export type StatementRow = typeof statements.$inferSelect;
 
 /** Units per account in a month (UTC), from usage_daily. Accounts without usage are absent. */
-export function unitsByAccount(sqlite: Sqlite, month: string): Map<number, number> {
+export async function unitsByAccount(store: Store, month: string): Promise<Map<number, number>> {
   const { fromDay, toDay } = monthDayRange(month);
-  const rows = sqlite
-    .prepare(
-      `SELECT account_id AS accountId, COALESCE(SUM(units), 0) AS units FROM usage_daily
-       WHERE day >= ? AND day < ? GROUP BY account_id`,
-    )
-    .all(fromDay, toDay) as { accountId: number; units: number }[];
-  return new Map(rows.map((r) => [r.accountId, r.units]));
+  const rows = await store.rows<{ accountId: number | string; units: number | string }>(
+    sql`SELECT account_id AS "accountId", COALESCE(SUM(units), 0) AS units FROM usage_daily
+        WHERE day >= ${fromDay} AND day < ${toDay} GROUP BY account_id`,
+  );
+  return new Map(rows.map((r) => [Number(r.accountId), Number(r.units)]));
 }
 
 function toStatement(row: StatementRow, accountName: string, plan: PlanRow | undefined): Statement {
@@ -86,14 +84,13 @@ function monthEnd(month: string): number {
  * Creates or refreshes the statements of `month` for every account that existed in it: an
  * account created after the month ended has nothing to be billed for then, so it gets no draft.
  */
-export function generateStatements(
-  db: Db,
-  sqlite: Sqlite,
+export async function generateStatements(
+  store: Store,
   month: string,
   now: Date,
-): GenerateStatementsResponse {
-  const units = unitsByAccount(sqlite, month);
-  const planByName = new Map(listPlans(db).map((p) => [p.name, p]));
+): Promise<GenerateStatementsResponse> {
+  const units = await unitsByAccount(store, month);
+  const planByName = new Map((await listPlans(store)).map((p) => [p.name, p]));
   const result: GenerateStatementsResponse = {
     month,
     monthComplete: isMonthComplete(month, now),
@@ -104,14 +101,15 @@ export function generateStatements(
     items: [],
   };
   const end = monthEnd(month);
-  db.transaction((tx) => {
-    for (const account of tx.select().from(accounts).orderBy(accounts.id).all()) {
+  await store.transaction(async (tx) => {
+    const { accounts, statements } = tx.t;
+    for (const account of await tx.db.select().from(accounts).orderBy(accounts.id)) {
       if (account.createdAt.getTime() >= end) continue;
-      const existing = tx
+      const [existing] = await tx.db
         .select()
         .from(statements)
         .where(and(eq(statements.accountId, account.id), eq(statements.month, month)))
-        .get();
+        .limit(1);
       if (existing && existing.status !== 'draft') {
         result.frozen++;
         result.items.push(toStatement(existing, account.name, planByName.get(existing.planName)));
@@ -127,19 +125,18 @@ export function generateStatements(
         continue;
       }
       const values = statementValues(units.get(account.id) ?? 0, plan);
-      let row: StatementRow;
+      let row: StatementRow | undefined;
       if (existing) {
-        row = tx.update(statements).set(values).where(eq(statements.id, existing.id)).returning().get();
+        [row] = await tx.db.update(statements).set(values).where(eq(statements.id, existing.id)).returning();
         result.refreshed++;
       } else {
-        row = tx
+        [row] = await tx.db
           .insert(statements)
           .values({ accountId: account.id, month, status: 'draft', createdAt: now, ...values })
-          .returning()
-          .get();
+          .returning();
         result.created++;
       }
-      result.items.push(toStatement(row, account.name, plan));
+      result.items.push(toStatement(row!, account.name, plan));
     }
   });
   return result;
@@ -151,43 +148,46 @@ export interface StatementFilter {
   status?: StatementStatus;
 }
 
-export function listStatements(db: Db, filter: StatementFilter): Statement[] {
+export async function listStatements(store: Store, filter: StatementFilter): Promise<Statement[]> {
+  const { accounts, statements } = store.t;
   const conditions: SQL[] = [];
   if (filter.month) conditions.push(eq(statements.month, filter.month));
   if (filter.accountId !== undefined) conditions.push(eq(statements.accountId, filter.accountId));
   if (filter.status) conditions.push(eq(statements.status, filter.status));
-  const planByName = new Map(listPlans(db).map((p) => [p.name, p]));
-  return db
+  const planByName = new Map((await listPlans(store)).map((p) => [p.name, p]));
+  const rows = await store.db
     .select({ statement: statements, accountName: accounts.name })
     .from(statements)
     .innerJoin(accounts, eq(statements.accountId, accounts.id))
     .where(conditions.length > 0 ? and(...conditions) : undefined)
-    .orderBy(statements.month, statements.accountId)
-    .all()
-    .map((r) => toStatement(r.statement, r.accountName, planByName.get(r.statement.planName)));
+    .orderBy(statements.month, statements.accountId);
+  return rows.map((r) => toStatement(r.statement, r.accountName, planByName.get(r.statement.planName)));
 }
 
 /**
  * Recomputes one DRAFT statement from its month's usage and its account's current plan; leaves
  * any other status alone. Returns the row as it now is (undefined if there is none).
  */
-export function refreshDraft(db: Db, sqlite: Sqlite, id: number): StatementRow | undefined {
-  const row = getStatementRow(db, id);
+export async function refreshDraft(store: Store, id: number): Promise<StatementRow | undefined> {
+  const { accounts, statements } = store.t;
+  const row = await getStatementRow(store, id);
   if (!row || row.status !== 'draft') return row;
-  const account = db.select().from(accounts).where(eq(accounts.id, row.accountId)).get();
-  const plan = account ? getPlan(db, account.plan) : undefined;
+  const [account] = await store.db.select().from(accounts).where(eq(accounts.id, row.accountId)).limit(1);
+  const plan = account ? await getPlan(store, account.plan) : undefined;
   if (!plan) return row;
-  const units = unitsByAccount(sqlite, row.month).get(row.accountId) ?? 0;
-  return db
+  const units = (await unitsByAccount(store, row.month)).get(row.accountId) ?? 0;
+  const [updated] = await store.db
     .update(statements)
     .set(statementValues(units, plan))
     .where(and(eq(statements.id, id), eq(statements.status, 'draft')))
-    .returning()
-    .get();
+    .returning();
+  return updated;
 }
 
-export function getStatementRow(db: Db, id: number): StatementRow | undefined {
-  return db.select().from(statements).where(eq(statements.id, id)).get();
+export async function getStatementRow(store: Store, id: number): Promise<StatementRow | undefined> {
+  const { statements } = store.t;
+  const [row] = await store.db.select().from(statements).where(eq(statements.id, id)).limit(1);
+  return row;
 }
 
 /**
@@ -197,16 +197,17 @@ export function getStatementRow(db: Db, id: number): StatementRow | undefined {
  * reproduce the stored amount, the stored total is shown as one line so the lines always sum to
  * `amountMinor`.
  */
-export function statementDetail(db: Db, id: number): StatementDetail | undefined {
-  const found = db
+export async function statementDetail(store: Store, id: number): Promise<StatementDetail | undefined> {
+  const { accounts, statements } = store.t;
+  const [found] = await store.db
     .select({ statement: statements, account: accounts })
     .from(statements)
     .innerJoin(accounts, eq(statements.accountId, accounts.id))
     .where(eq(statements.id, id))
-    .get();
+    .limit(1);
   if (!found) return undefined;
   const { statement: row, account } = found;
-  const plan = getPlan(db, row.planName);
+  const plan = await getPlan(store, row.planName);
   let lineItems: LineItem[];
   let monthlyFeeMinor: number;
   let pricePer1000UnitsMinor: number;

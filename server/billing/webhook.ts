@@ -15,7 +15,6 @@
 import { eq } from 'drizzle-orm';
 import express, { type RequestHandler } from 'express';
 import Stripe from 'stripe';
-import { paymentEvents, statements } from '../db/schema.js';
 import type { AppDeps, AppModule } from '../deps.js';
 import { problem } from '../http/problem.js';
 import { recordAudit } from '../accounts/audit.js';
@@ -39,7 +38,7 @@ interface InvoiceLike {
 }
 
 function handler(deps: AppDeps): RequestHandler {
-  return (req, res) => {
+  return async (req, res) => {
     const payments = paymentsFor(deps);
     if (!payments.config.enabled || payments.config.webhookSecret === '') {
       throw problem('payment-provider-failed', 'No webhook secret is configured (PAYMENTS_WEBHOOK_SECRET).');
@@ -81,19 +80,23 @@ function handler(deps: AppDeps): RequestHandler {
       );
     }
     const now = deps.clock();
-    const outcome = deps.db.transaction((tx): WebhookOutcome => {
-      const fresh = tx
+    const outcome = await deps.store.transaction(async (tx): Promise<WebhookOutcome> => {
+      const { paymentEvents, statements } = tx.t;
+      const [fresh] = await tx.db
         .insert(paymentEvents)
         .values({ id: event.id, type: event.type, receivedAt: now })
         .onConflictDoNothing()
-        .returning()
-        .get();
+        .returning();
       if (!fresh) return { received: true, duplicate: true, effect: 'already processed' };
       if (event.type !== 'invoice.paid')
         return { received: true, duplicate: false, effect: `ignored: ${event.type}` };
       const invoice = event.data.object as InvoiceLike;
       const invoiceId = typeof invoice.id === 'string' ? invoice.id : '';
-      const statement = tx.select().from(statements).where(eq(statements.providerInvoiceId, invoiceId)).get();
+      const [statement] = await tx.db
+        .select()
+        .from(statements)
+        .where(eq(statements.providerInvoiceId, invoiceId))
+        .limit(1);
       if (!statement)
         return { received: true, duplicate: false, effect: `no statement for invoice ${invoiceId}` };
       if (statement.status === 'paid') {
@@ -108,7 +111,8 @@ function handler(deps: AppDeps): RequestHandler {
       }
       const paidSeconds = invoice.status_transitions?.paid_at;
       const paidAt = typeof paidSeconds === 'number' ? new Date(paidSeconds * 1000) : now;
-      tx.update(statements).set({ status: 'paid', paidAt }).where(eq(statements.id, statement.id)).run();
+      await tx.db.update(statements).set({ status: 'paid', paidAt }).where(eq(statements.id, statement.id));
+      // Synchronous on the same SQLite connection, so it joins this transaction.
       recordAudit(deps, req, res, {
         action: 'statement.paid',
         targetType: 'statement',

@@ -8,7 +8,7 @@
  *   POST /statements/:id/finalize        invoice at the payment provider, mail 'statement-ready'
  *   GET  /statements/:id/export.csv      line items as CSV
  *
- * Mutations are audited. Start-up calls ensureDefaultPlans(db) (server/billing/plans.ts).
+ * Mutations are audited. Start-up calls ensureDefaultPlans(store) (server/billing/plans.ts).
  */
 import { z } from 'zod';
 import {
@@ -40,7 +40,7 @@ export const billingRouteModule: ConsoleRouteModule = {
       tag: 'billing',
       summary: 'List the price plans',
       response: PlansResponse,
-      handler: ({ deps }) => ({ items: listPlans(deps.db) }),
+      handler: async ({ deps }) => ({ items: await listPlans(deps.store) }),
     });
 
     consoleRoute(router, {
@@ -51,7 +51,7 @@ export const billingRouteModule: ConsoleRouteModule = {
       summary: 'List statements (filters: month, accountId, status)',
       request: { query: StatementsQuery },
       response: StatementsResponse,
-      handler: ({ deps, query }) => ({ items: listStatements(deps.db, query) }),
+      handler: async ({ deps, query }) => ({ items: await listStatements(deps.store, query) }),
     });
 
     consoleRoute(router, {
@@ -63,8 +63,8 @@ export const billingRouteModule: ConsoleRouteModule = {
         'Create or refresh the draft statements of a month for every account (finalized ones stay as they are)',
       request: { body: GenerateStatementsRequest },
       response: GenerateStatementsResponse,
-      handler: ({ deps, body, req, res }) => {
-        const result = generateStatements(deps.db, deps.sqlite, body.month, deps.clock());
+      handler: async ({ deps, body, req, res }) => {
+        const result = await generateStatements(deps.store, body.month, deps.clock());
         recordAudit(deps, req, res, {
           action: 'statement.generate',
           targetType: 'month',
@@ -88,8 +88,8 @@ export const billingRouteModule: ConsoleRouteModule = {
       summary: 'One statement with its line items',
       request: { params: StatementIdParams },
       response: StatementDetail,
-      handler: ({ deps, params }) => {
-        const detail = statementDetail(deps.db, params.id);
+      handler: async ({ deps, params }) => {
+        const detail = await statementDetail(deps.store, params.id);
         if (!detail) throw problem('not-found', `There is no statement ${params.id}.`);
         return detail;
       },
@@ -133,8 +133,8 @@ export const billingRouteModule: ConsoleRouteModule = {
       request: { params: StatementIdParams },
       response: z.string().meta({ description: `CSV columns: ${statementCsvColumns.join(', ')}` }),
       responseContentType: 'text/csv',
-      handler: ({ deps, params, res }) => {
-        const detail = statementDetail(deps.db, params.id);
+      handler: async ({ deps, params, res }) => {
+        const detail = await statementDetail(deps.store, params.id);
         if (!detail) throw problem('not-found', `There is no statement ${params.id}.`);
         res
           .status(200)

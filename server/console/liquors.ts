@@ -220,8 +220,9 @@ export function describeStoredTable(item: ConsoleLiquor, definition: unknown): C
   };
 }
 
-function storedItems(deps: AppDeps, accountId: number | undefined): ConsoleLiquor[] {
-  return listStoredLiquorsWithAccounts(deps.db, accountId).map(({ record, accountId, accountName }) => {
+async function storedItems(deps: AppDeps, accountId: number | undefined): Promise<ConsoleLiquor[]> {
+  const stored = await listStoredLiquorsWithAccounts(deps.store, accountId);
+  return stored.map(({ record, accountId, accountName }) => {
     const model = buildCustomLiquor(record.definition, 'definition', record.id);
     return describeStoredTable(
       libraryItem(model, 'stored', record.id, { id: accountId, name: accountName }),
@@ -265,10 +266,10 @@ export const liquorRoutes: ConsoleRouteModule = {
       summary: 'The liquor library: built-in models and the liquors stored by accounts',
       request: { query: LiquorLibraryQuerySchema },
       response: LiquorLibrarySchema,
-      handler: ({ query }) => {
+      handler: async ({ query }) => {
         if (query.accountId !== undefined) requireAccount(deps.db, query.accountId);
         const items = [...builtInLiquors.values()].map((m) => libraryItem(m, 'built-in', m.id, null));
-        items.push(...storedItems(deps, query.accountId));
+        items.push(...(await storedItems(deps, query.accountId)));
         return { items };
       },
     });
@@ -280,7 +281,7 @@ export const liquorRoutes: ConsoleRouteModule = {
       summary: 'Dühring lines and enthalpy–concentration curves of a liquor, computed by the engine',
       request: { params: LiquorChartParamsSchema, query: LiquorChartQuerySchema },
       response: LiquorChartsSchema,
-      handler: ({ params, query }) => {
+      handler: async ({ params, query }) => {
         let model: LiquorModel;
         let item: ConsoleLiquor;
         const builtIn = findBuiltInLiquor(params.id);
@@ -298,7 +299,7 @@ export const liquorRoutes: ConsoleRouteModule = {
             );
           }
           const account = requireAccount(deps.db, query.accountId);
-          const stored = findStoredLiquor(deps.db, account.id, params.id);
+          const stored = await findStoredLiquor(deps.store, account.id, params.id);
           if (!stored)
             throw problem('not-found', `Account ${account.id} has no stored liquor "${params.id}".`);
           model = buildCustomLiquor(stored.definition, 'definition', stored.id);
@@ -320,7 +321,7 @@ export const liquorRoutes: ConsoleRouteModule = {
       middleware: [multipartUpload],
       response: LiquorLibraryItemSchema,
       status: 201,
-      handler: ({ req, res, params }) => {
+      handler: async ({ req, res, params }) => {
         const account = requireAccount(deps.db, params.id);
         const fields = validate(LiquorUploadFieldsSchema, req.body ?? {});
         if (!req.file) {
@@ -358,7 +359,7 @@ export const liquorRoutes: ConsoleRouteModule = {
             errors: [{ field: 'id', message: 'is required when the name has no letters or digits' }],
           });
         }
-        if (findBuiltInLiquor(id) || storedLiquorExists(deps.db, account.id, id)) {
+        if (findBuiltInLiquor(id) || (await storedLiquorExists(deps.store, account.id, id))) {
           throw problem(
             'conflict',
             `A liquor with the id "${id}" exists already for this account; choose another id.`,
@@ -373,7 +374,7 @@ export const liquorRoutes: ConsoleRouteModule = {
         } catch (err) {
           throw inCsvTerms(err, upload);
         }
-        insertStoredLiquor(deps.db, account.id, id, input.definition, deps.clock());
+        await insertStoredLiquor(deps.store, account.id, id, input.definition, deps.clock());
         recordAudit(deps, req, res, {
           action: 'liquor.upload',
           targetType: 'stored-liquor',

@@ -3,11 +3,10 @@
  * invitations and reset links can be followed without a real mailbox. Admins only; answers 404
  * when CONSOLE_OUTBOX is off and always in production (NODE_ENV=production).
  */
-import { count, desc, eq, like } from 'drizzle-orm';
+import { count, desc, eq, sql } from 'drizzle-orm';
 import { IdParamsSchema } from '../../shared/console/common.js';
 import { OutboxDetailSchema, OutboxPageSchema, OutboxQuerySchema } from '../../shared/console/users.js';
 import { consoleSettings } from '../config.js';
-import { capturedMail } from '../db/schema.js';
 import type { AppDeps } from '../deps.js';
 import { problem } from '../http/problem.js';
 import { consoleRoute, type ConsoleRouteModule } from './route.js';
@@ -27,11 +26,17 @@ export const outboxRouteModule: ConsoleRouteModule = {
       summary: 'Mail received by the local capture server, newest first (development only)',
       request: { query: OutboxQuerySchema },
       response: OutboxPageSchema,
-      handler: ({ deps, query }) => {
+      handler: async ({ deps, query }) => {
         requireOutbox(deps);
-        const where = query.to ? like(capturedMail.to, `%${query.to.replace(/[%_"]/g, '')}%`) : undefined;
-        const total = deps.db.select({ n: count() }).from(capturedMail).where(where).get()?.n ?? 0;
-        const rows = deps.db
+        const { capturedMail } = deps.store.t;
+        // The recipients are a JSON array (json on PostgreSQL, text on SQLite): searched as text,
+        // ignoring ASCII case on both (SQLite's LIKE did; PostgreSQL's does not).
+        const where = query.to
+          ? sql`lower(cast(${capturedMail.to} as text)) like lower(${`%${query.to.replace(/[%_"]/g, '')}%`})`
+          : undefined;
+        const [counted] = await deps.store.db.select({ n: count() }).from(capturedMail).where(where);
+        const total = counted?.n ?? 0;
+        const rows = await deps.store.db
           .select({
             id: capturedMail.id,
             receivedAt: capturedMail.receivedAt,
@@ -43,8 +48,7 @@ export const outboxRouteModule: ConsoleRouteModule = {
           .where(where)
           .orderBy(desc(capturedMail.id))
           .limit(query.pageSize)
-          .offset((query.page - 1) * query.pageSize)
-          .all();
+          .offset((query.page - 1) * query.pageSize);
         return {
           items: rows.map((r) => ({ ...r, receivedAt: r.receivedAt.toISOString() })),
           total,
@@ -61,9 +65,14 @@ export const outboxRouteModule: ConsoleRouteModule = {
       summary: 'One captured message with its text and HTML parts (development only)',
       request: { params: IdParamsSchema },
       response: OutboxDetailSchema,
-      handler: ({ deps, params }) => {
+      handler: async ({ deps, params }) => {
         requireOutbox(deps);
-        const row = deps.db.select().from(capturedMail).where(eq(capturedMail.id, params.id)).get();
+        const { capturedMail } = deps.store.t;
+        const [row] = await deps.store.db
+          .select()
+          .from(capturedMail)
+          .where(eq(capturedMail.id, params.id))
+          .limit(1);
         if (!row) throw problem('not-found', `No captured message with id ${params.id}.`);
         return {
           id: row.id,

@@ -4,7 +4,7 @@
  * text/plain and text/html parts) and stored in captured_mail, which the console's dev-only
  * outbox (GET /console-api/outbox) shows.
  *
- *   const capture = await startMailCapture({ db, port: 0 });   // 0: a random free port
+ *   const capture = await startMailCapture({ store, port: 0 });   // 0: a random free port
  *   config.smtpUrl = `smtp://127.0.0.1:${capture.port}`;
  *   ...
  *   await capture.close();
@@ -15,8 +15,7 @@
  */
 import type { AddressInfo } from 'node:net';
 import { SMTPServer } from 'smtp-server';
-import type { Db } from '../db/client.js';
-import { capturedMail } from '../db/schema.js';
+import type { Store } from '../db/store.js';
 
 export interface MailCapture {
   port: number;
@@ -135,7 +134,11 @@ export function parseMessage(raw: string): ParsedMessage {
 }
 
 /** Starts the capture server on 127.0.0.1 (port 0: random free port). */
-export function startMailCapture(opts: { db: Db; port?: number; clock?: () => Date }): Promise<MailCapture> {
+export function startMailCapture(opts: {
+  store: Store;
+  port?: number;
+  clock?: () => Date;
+}): Promise<MailCapture> {
   const clock = opts.clock ?? (() => new Date());
   const server = new SMTPServer({
     authOptional: true,
@@ -156,26 +159,26 @@ export function startMailCapture(opts: { db: Db; port?: number; clock?: () => Da
         if ((stream as unknown as { sizeExceeded?: boolean }).sizeExceeded) {
           return callback(Object.assign(new Error('message too large'), { responseCode: 552 }));
         }
-        try {
+        // The message is accepted only once it is stored: a failed insert is the sender's error.
+        const store = async () => {
           const raw = Buffer.concat(chunks).toString('utf8');
           const parsed = parseMessage(raw);
           const mailFrom = session.envelope.mailFrom;
-          opts.db
-            .insert(capturedMail)
-            .values({
-              receivedAt: clock(),
-              from: mailFrom ? mailFrom.address : (parsed.headers.get('from') ?? ''),
-              to: session.envelope.rcptTo.map((r) => r.address),
-              subject: parsed.subject,
-              text: parsed.text,
-              html: parsed.html,
-              raw,
-            })
-            .run();
-          callback();
-        } catch (err) {
-          callback(err as Error);
-        }
+          const { capturedMail } = opts.store.t;
+          await opts.store.db.insert(capturedMail).values({
+            receivedAt: clock(),
+            from: mailFrom ? mailFrom.address : (parsed.headers.get('from') ?? ''),
+            to: session.envelope.rcptTo.map((r) => r.address),
+            subject: parsed.subject,
+            text: parsed.text,
+            html: parsed.html,
+            raw,
+          });
+        };
+        store().then(
+          () => callback(),
+          (err: unknown) => callback(err as Error),
+        );
       });
     },
   });

@@ -11,8 +11,8 @@ import {
   type CustomLiquorDefinition,
   type StoredLiquor,
 } from '../../shared/contracts/index.js';
-import type { Db } from '../db/client.js';
-import { accounts, storedLiquors } from '../db/schema.js';
+import type { storedLiquors } from '../db/schema.js';
+import type { Store, Tables } from '../db/store.js';
 
 export interface StoredLiquorRecord {
   /** Database row id: never reused, so it identifies this exact definition (internal only). */
@@ -37,33 +37,35 @@ function toRecord(row: typeof storedLiquors.$inferSelect): StoredLiquorRecord {
   };
 }
 
-export function findStoredLiquor(
-  db: Db,
+export async function findStoredLiquor(
+  store: Store,
   accountId: number,
   liquorId: string,
-): StoredLiquorRecord | undefined {
-  const row = db
+): Promise<StoredLiquorRecord | undefined> {
+  const { storedLiquors } = store.t;
+  const [row] = await store.db
     .select()
     .from(storedLiquors)
     .where(and(eq(storedLiquors.accountId, accountId), eq(storedLiquors.liquorId, liquorId)))
     .orderBy(desc(storedLiquors.version))
-    .limit(1)
-    .get();
+    .limit(1);
   return row ? toRecord(row) : undefined;
 }
 
-/** Only the latest version of each stored liquor. */
-const isLatestVersion = sql`${storedLiquors.version} = (SELECT MAX(v.version) FROM stored_liquors v WHERE v.account_id = ${storedLiquors.accountId} AND v.liquor_id = ${storedLiquors.liquorId})`;
+/** Only the latest version of each stored liquor (the columns of this store's table). */
+function isLatestVersion({ storedLiquors }: Tables) {
+  return sql`${storedLiquors.version} = (SELECT MAX(v.version) FROM stored_liquors v WHERE v.account_id = ${storedLiquors.accountId} AND v.liquor_id = ${storedLiquors.liquorId})`;
+}
 
 /** The account's stored liquors, each at its latest version. */
-export function listStoredLiquors(db: Db, accountId: number): StoredLiquorRecord[] {
-  return db
+export async function listStoredLiquors(store: Store, accountId: number): Promise<StoredLiquorRecord[]> {
+  const { storedLiquors } = store.t;
+  const rows = await store.db
     .select()
     .from(storedLiquors)
-    .where(and(eq(storedLiquors.accountId, accountId), isLatestVersion))
-    .orderBy(asc(storedLiquors.liquorId))
-    .all()
-    .map(toRecord);
+    .where(and(eq(storedLiquors.accountId, accountId), isLatestVersion(store.t)))
+    .orderBy(asc(storedLiquors.liquorId));
+  return rows.map(toRecord);
 }
 
 /** The API's view of a stored liquor. */
@@ -79,53 +81,57 @@ export function storedLiquorView(r: StoredLiquorRecord): StoredLiquor {
 }
 
 /** True if the account stores a liquor with this id (a cheap existence check, no definition parsed). */
-export function storedLiquorExists(db: Db, accountId: number, liquorId: string): boolean {
-  return (
-    db
-      .select({ id: storedLiquors.id })
-      .from(storedLiquors)
-      .where(and(eq(storedLiquors.accountId, accountId), eq(storedLiquors.liquorId, liquorId)))
-      .get() !== undefined
-  );
+export async function storedLiquorExists(
+  store: Store,
+  accountId: number,
+  liquorId: string,
+): Promise<boolean> {
+  const { storedLiquors } = store.t;
+  const rows = await store.db
+    .select({ id: storedLiquors.id })
+    .from(storedLiquors)
+    .where(and(eq(storedLiquors.accountId, accountId), eq(storedLiquors.liquorId, liquorId)))
+    .limit(1);
+  return rows.length > 0;
 }
 
 /** Stores a definition (already checked by building its model) and returns the stored record. */
-export function insertStoredLiquor(
-  db: Db,
+export async function insertStoredLiquor(
+  store: Store,
   accountId: number,
   liquorId: string,
   definition: CustomLiquorDefinition,
   createdAt: Date,
-): StoredLiquorRecord {
-  const row = db
+): Promise<StoredLiquorRecord> {
+  const { storedLiquors } = store.t;
+  const [row] = await store.db
     .insert(storedLiquors)
     .values({ accountId, liquorId, name: definition.name, definition, createdAt })
-    .returning()
-    .get();
-  return toRecord(row);
+    .returning();
+  return toRecord(row!);
 }
 
 /**
  * Stores a new version of an account's stored liquor (already checked by building its model);
  * undefined if the account has no liquor with this id. Earlier versions are kept.
  */
-export function insertStoredLiquorVersion(
-  db: Db,
+export async function insertStoredLiquorVersion(
+  store: Store,
   accountId: number,
   liquorId: string,
   definition: CustomLiquorDefinition,
   createdAt: Date,
-): StoredLiquorRecord | undefined {
-  return db.transaction((tx) => {
-    const latest = tx
+): Promise<StoredLiquorRecord | undefined> {
+  return store.transaction(async (tx) => {
+    const { storedLiquors } = tx.t;
+    const [latest] = await tx.db
       .select({ version: storedLiquors.version })
       .from(storedLiquors)
       .where(and(eq(storedLiquors.accountId, accountId), eq(storedLiquors.liquorId, liquorId)))
       .orderBy(desc(storedLiquors.version))
-      .limit(1)
-      .get();
+      .limit(1);
     if (!latest) return undefined;
-    const row = tx
+    const [row] = await tx.db
       .insert(storedLiquors)
       .values({
         accountId,
@@ -135,43 +141,44 @@ export function insertStoredLiquorVersion(
         definition,
         createdAt,
       })
-      .returning()
-      .get();
-    return toRecord(row);
+      .returning();
+    return toRecord(row!);
   });
 }
 
 /** Deletes an account's stored liquor, every version; false if it had none with this id. */
-export function deleteStoredLiquor(db: Db, accountId: number, liquorId: string): boolean {
-  const result = db
+export async function deleteStoredLiquor(
+  store: Store,
+  accountId: number,
+  liquorId: string,
+): Promise<boolean> {
+  const { storedLiquors } = store.t;
+  const deleted = await store.db
     .delete(storedLiquors)
     .where(and(eq(storedLiquors.accountId, accountId), eq(storedLiquors.liquorId, liquorId)))
-    .run();
-  return result.changes > 0;
+    .returning({ id: storedLiquors.id });
+  return deleted.length > 0;
 }
 
 /**
  * Every account's stored liquors (or one account's), each at its latest version, with the
  * account's name, for the console library.
  */
-export function listStoredLiquorsWithAccounts(
-  db: Db,
+export async function listStoredLiquorsWithAccounts(
+  store: Store,
   accountId: number | undefined,
-): { record: StoredLiquorRecord; accountId: number; accountName: string }[] {
-  return db
+): Promise<{ record: StoredLiquorRecord; accountId: number; accountName: string }[]> {
+  const { accounts, storedLiquors } = store.t;
+  const latest = isLatestVersion(store.t);
+  const rows = await store.db
     .select({ liquor: storedLiquors, accountName: accounts.name })
     .from(storedLiquors)
     .innerJoin(accounts, eq(accounts.id, storedLiquors.accountId))
-    .where(
-      accountId === undefined
-        ? isLatestVersion
-        : and(eq(storedLiquors.accountId, accountId), isLatestVersion),
-    )
-    .orderBy(storedLiquors.accountId, storedLiquors.liquorId)
-    .all()
-    .map(({ liquor, accountName }) => ({
-      record: toRecord(liquor),
-      accountId: liquor.accountId,
-      accountName,
-    }));
+    .where(accountId === undefined ? latest : and(eq(storedLiquors.accountId, accountId), latest))
+    .orderBy(storedLiquors.accountId, storedLiquors.liquorId);
+  return rows.map(({ liquor, accountName }) => ({
+    record: toRecord(liquor),
+    accountId: liquor.accountId,
+    accountName,
+  }));
 }

@@ -5,7 +5,7 @@
  */
 import { randomUUID } from 'node:crypto';
 import type { LiquorRef } from '../../shared/contracts/index.js';
-import type { Db } from '../db/client.js';
+import type { Store } from '../db/store.js';
 import type { LiquorReference } from '../engine/liquors/description.js';
 import type { LiquorModel } from '../engine/liquors/model.js';
 import { findBuiltInLiquor } from '../engine/liquors/registry.js';
@@ -30,18 +30,23 @@ function modelRefs(model: LiquorModel): ModelRef[] {
 }
 
 /**
- * Compiled stored liquors of each database by account, id and version, oldest first (a Map keeps
+ * Compiled stored liquors of each store by account, id and version, oldest first (a Map keeps
  * insertion order), bounded. An update stores a new version, so its key is new and it is compiled at once.
  */
-const compiledByDb = new WeakMap<Db, Map<string, ResolvedLiquor>>();
+const compiledByStore = new WeakMap<Store, Map<string, ResolvedLiquor>>();
 const COMPILED_STORED_MAX = 256;
-const dbTokens = new WeakMap<Db, string>();
+const storeTokens = new WeakMap<Store, string>();
 
 /**
  * The liquor a request names: a built-in id, an id stored by this account, or an inline
  * definition. 404 'not-found' for an unknown id (the field is named in `errors`).
  */
-export function resolveLiquor(ref: LiquorRef, db: Db, accountId: number, field: string): ResolvedLiquor {
+export async function resolveLiquor(
+  ref: LiquorRef,
+  store: Store,
+  accountId: number,
+  field: string,
+): Promise<ResolvedLiquor> {
   if (typeof ref === 'string') {
     const builtIn = findBuiltInLiquor(ref);
     if (builtIn) {
@@ -52,7 +57,7 @@ export function resolveLiquor(ref: LiquorRef, db: Db, accountId: number, field: 
         description: { builtIn: builtIn.id },
       };
     }
-    const stored = findStoredLiquor(db, accountId, ref);
+    const stored = await findStoredLiquor(store, accountId, ref);
     if (!stored) {
       throw problem(
         'not-found',
@@ -66,10 +71,10 @@ export function resolveLiquor(ref: LiquorRef, db: Db, accountId: number, field: 
     // above finds the latest version first, so an update is served at once. The row id is part
     // of the key too: a liquor deleted and stored again starts at version 1 with a new row.
     const key = `${accountId}/${ref}/${stored.version}/${stored.rowId}`;
-    let compiledStored = compiledByDb.get(db);
+    let compiledStored = compiledByStore.get(store);
     if (!compiledStored) {
-      compiledByDb.set(db, (compiledStored = new Map()));
-      dbTokens.set(db, randomUUID());
+      compiledByStore.set(store, (compiledStored = new Map()));
+      storeTokens.set(store, randomUUID());
     }
     const cached = compiledStored.get(key);
     if (cached) return cached;
@@ -80,11 +85,11 @@ export function resolveLiquor(ref: LiquorRef, db: Db, accountId: number, field: 
       model,
       models,
       definitionWarnings: model.definitionWarnings,
-      // A worker keeps the model under this key: the database's token keeps two databases in one
+      // A worker keeps the model under this key: the store's token keeps two databases in one
       // process (tests) from sharing a key.
       description: {
         custom: toEngineDefinition(stored.definition, ref),
-        key: `stored:${dbTokens.get(db)}/${key}`,
+        key: `stored:${storeTokens.get(store)}/${key}`,
       },
     };
     if (compiledStored.size >= COMPILED_STORED_MAX) {

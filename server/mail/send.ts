@@ -11,8 +11,7 @@
  */
 import nodemailer, { type Transporter } from 'nodemailer';
 import { consoleSettings } from '../config.js';
-import type { Db } from '../db/client.js';
-import { mailLog } from '../db/schema.js';
+import type { Store } from '../db/store.js';
 import type { AppDeps } from '../deps.js';
 import { startMailCapture, type MailCapture } from '../integrations/mail-capture.js';
 
@@ -43,7 +42,7 @@ export interface MailResult {
 }
 
 const transports = new Map<string, Transporter>();
-const captures = new WeakMap<Db, Promise<MailCapture>>();
+const captures = new WeakMap<Store, Promise<MailCapture>>();
 
 function transportFor(url: string, local: boolean): Transporter {
   let t = transports.get(url);
@@ -60,12 +59,12 @@ function transportFor(url: string, local: boolean): Transporter {
   return t;
 }
 
-/** The local capture server for this database (started on first use; development and tests only). */
-export function defaultMailCapture(deps: Pick<AppDeps, 'db' | 'clock'>): Promise<MailCapture> {
-  let capture = captures.get(deps.db);
+/** The local capture server for this store (started on first use; development and tests only). */
+export function defaultMailCapture(deps: Pick<AppDeps, 'store' | 'clock'>): Promise<MailCapture> {
+  let capture = captures.get(deps.store);
   if (!capture) {
-    capture = startMailCapture({ db: deps.db, port: 0, clock: deps.clock });
-    captures.set(deps.db, capture);
+    capture = startMailCapture({ store: deps.store, port: 0, clock: deps.clock });
+    captures.set(deps.store, capture);
   }
   return capture;
 }
@@ -98,7 +97,8 @@ export async function sendMail(deps: AppDeps, input: MailInput): Promise<MailRes
     error = (err as Error).message;
     console.error(`[mail] ${input.kind} to ${input.to} failed: ${error}`);
   }
-  const row = deps.db
+  const { mailLog } = deps.store.t;
+  const [row] = await deps.store.db
     .insert(mailLog)
     .values({
       at: deps.clock(),
@@ -109,7 +109,6 @@ export async function sendMail(deps: AppDeps, input: MailInput): Promise<MailRes
       messageId,
       error,
     })
-    .returning({ id: mailLog.id })
-    .get();
-  return { status: error === null ? 'sent' : 'failed', mailLogId: row.id, messageId, error };
+    .returning({ id: mailLog.id });
+  return { status: error === null ? 'sent' : 'failed', mailLogId: row!.id, messageId, error };
 }

@@ -8,6 +8,7 @@
 import { eq } from 'drizzle-orm';
 import type { Config } from '../config.js';
 import type { Db, Sqlite } from '../db/client.js';
+import { sqliteStore } from '../db/store.js';
 import { accounts } from '../db/schema.js';
 import { addMember, createAccount, createUser, findUserByEmail } from '../accounts/accounts.js';
 import { createKey, keyExists } from '../accounts/keys.js';
@@ -30,8 +31,10 @@ export async function bootstrap(
   engineVersion: string,
 ): Promise<BootstrapReport> {
   const report: BootstrapReport = { seeded: false, apiKeyRegistered: false, adminCreated: false };
-  if (isDatabaseEmpty(sqlite)) {
-    report.demoCredentials = await seedDemo(db, sqlite, config.secret, now, engineVersion);
+  // The demo seed goes through the store; bootstrap itself still takes the SQLite connection.
+  const store = sqliteStore(sqlite, db);
+  if (await isDatabaseEmpty(store)) {
+    report.demoCredentials = await seedDemo(store, config.secret, now, engineVersion);
     report.seeded = true;
   }
   const demoAccountId = () =>

@@ -6,7 +6,9 @@
  * which main.ts registers on the demo account (see bootstrap.ts).
  */
 import crypto from 'node:crypto';
-import type { Db, Sqlite } from '../db/client.js';
+import { sql } from 'drizzle-orm';
+import type { Sqlite } from '../db/client.js';
+import type { Store } from '../db/store.js';
 import { addMember, createAccount, insertUser } from '../accounts/accounts.js';
 import { hashPassword } from '../accounts/passwords.js';
 import { createKey } from '../accounts/keys.js';
@@ -20,13 +22,11 @@ export const DEMO_ACCOUNT_NAME = 'Saltmarsh Chlor-Alkali Works, Process Engineer
 export const SECOND_DEMO_ACCOUNT_NAME = 'Heatherfold Dairy Concentrates';
 export const DEMO_OPERATOR_EMAIL = 'operator@ebullio.invalid';
 
-export function isDatabaseEmpty(sqlite: Sqlite): boolean {
-  const row = sqlite
-    .prepare('SELECT (SELECT COUNT(*) FROM accounts) + (SELECT COUNT(*) FROM users) AS n')
-    .get() as {
-    n: number;
-  };
-  return row.n === 0;
+export async function isDatabaseEmpty(store: Store): Promise<boolean> {
+  const [row] = await store.rows<{ n: number | string }>(
+    sql`SELECT (SELECT COUNT(*) FROM accounts) + (SELECT COUNT(*) FROM users) AS n`,
+  );
+  return Number(row?.n) === 0;
 }
 
 /** Small deterministic generator so the demo looks the same on every fresh start. */
@@ -99,19 +99,24 @@ export interface DemoCredentials {
  * once, and are never shown again.
  */
 export async function seedDemo(
-  db: Db,
-  sqlite: Sqlite,
+  store: Store,
   serverSecret: Buffer,
   now: Date,
   engineVersion: string,
 ): Promise<DemoCredentials> {
   const operatorPassword = crypto.randomBytes(12).toString('base64url');
-  // Hashed before the (synchronous) transaction: hashing runs in a worker thread.
+  // Hashed before the transaction: hashing runs in a worker thread, and a transaction awaits
+  // nothing but the store (server/db/store.ts).
   const operatorHash = await hashPassword(operatorPassword);
   // The demo accounts and keys date from the start of last month (UTC): before their first metered
   // day (the usage below goes back six days), and early enough that last month can be billed.
   const since = new Date(Date.UTC(now.getUTCFullYear(), now.getUTCMonth() - 1, 1));
-  return sqlite.transaction(() => {
+  return store.transaction(async (tx) => {
+    const db = tx.db;
+    // The usage below is written by metering's recordRequest, which still takes the SQLite
+    // connection (it joins this transaction, being synchronous on it).
+    const sqlite = tx.sqlite;
+    if (!sqlite) throw new Error('Seeding the demo usage needs the SQLite store for now.');
     const operator = insertUser(db, {
       email: DEMO_OPERATOR_EMAIL,
       passwordHash: operatorHash,
@@ -182,5 +187,5 @@ export async function seedDemo(
       operatorPassword,
       apiKey: causticCreated.token,
     };
-  })();
+  });
 }

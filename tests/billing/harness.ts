@@ -52,7 +52,7 @@ export async function makeBillingHarness(
   const { sqlite, db } = openDatabase(':memory:');
   const store = sqliteStore(sqlite, db);
   runMigrations(db);
-  ensureDefaultPlans(db);
+  await ensureDefaultPlans(store);
   // 3 April 2031: March is complete.
   const clock = { now: new Date(opts.now ?? '2031-04-03T09:00:00Z') };
   const deps: AppDeps = {
@@ -142,11 +142,13 @@ export function meter(h: BillingHarness, accountId: number, units: number, at: s
   });
 }
 
-export function mailRows(h: BillingHarness): { kind: string; to: string; subject: string; status: string }[] {
-  return h.deps.sqlite.prepare('SELECT kind, "to", subject, status FROM mail_log ORDER BY id').all() as {
-    kind: string;
-    to: string;
-    subject: string;
-    status: string;
-  }[];
+/** The mail log in order, read through the store. */
+export async function mailRows(
+  h: BillingHarness,
+): Promise<{ kind: string; to: string; subject: string; status: string }[]> {
+  const { mailLog } = h.deps.store.t;
+  return h.deps.store.db
+    .select({ kind: mailLog.kind, to: mailLog.to, subject: mailLog.subject, status: mailLog.status })
+    .from(mailLog)
+    .orderBy(mailLog.id);
 }

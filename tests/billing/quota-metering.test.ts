@@ -6,15 +6,17 @@ import { describe, expect, it } from 'vitest';
 import { updateAccount } from '../../server/accounts/accounts.js';
 import { makeHarness, type Harness } from '../http/helpers.js';
 
-function mailKinds(h: Harness): string[] {
-  return (h.sqlite.prepare('SELECT kind FROM mail_log ORDER BY id').all() as { kind: string }[]).map(
+async function mailKinds(h: Harness): Promise<string[]> {
+  const { mailLog } = h.store.t;
+  return (await h.store.db.select({ kind: mailLog.kind }).from(mailLog).orderBy(mailLog.id)).map(
     (r) => r.kind,
   );
 }
 
 async function settle(h: Harness, kinds: number): Promise<void> {
   // The check runs after the response (setImmediate) and mails over SMTP: wait for the rows.
-  for (let i = 0; i < 200 && mailKinds(h).length < kinds; i++) await new Promise((r) => setTimeout(r, 25));
+  for (let i = 0; i < 200 && (await mailKinds(h)).length < kinds; i++)
+    await new Promise((r) => setTimeout(r, 25));
 }
 
 describe('quota e-mails from metered requests', () => {
@@ -29,18 +31,18 @@ describe('quota e-mails from metered requests', () => {
     // Each call costs 5 units plus `extra`. 15 of 25 units (60 %): below the first threshold.
     expect((await charge(10)).status).toBe(200);
     await new Promise((r) => setTimeout(r, 50));
-    expect(mailKinds(h)).toEqual([]);
+    expect(await mailKinds(h)).toEqual([]);
     // 20 of 25 = 80 %: quota-80.
     expect((await charge(0)).status).toBe(200);
     await settle(h, 1);
-    expect(mailKinds(h)).toEqual(['quota-80']);
+    expect(await mailKinds(h)).toEqual(['quota-80']);
     // 25 of 25 = 100 %: quota-100, once.
     expect((await charge(0)).status).toBe(200);
     await settle(h, 2);
-    expect(mailKinds(h)).toEqual(['quota-80', 'quota-100']);
+    expect(await mailKinds(h)).toEqual(['quota-80', 'quota-100']);
     // Over quota: 429, no calculation, no further mail.
     expect((await charge(0)).status).toBe(429);
     await new Promise((r) => setTimeout(r, 100));
-    expect(mailKinds(h)).toEqual(['quota-80', 'quota-100']);
+    expect(await mailKinds(h)).toEqual(['quota-80', 'quota-100']);
   });
 });

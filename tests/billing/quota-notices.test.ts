@@ -1,6 +1,7 @@
 // Quota e-mails: quota-80 and quota-100, each once per account and calendar month (UTC).
 // Rule from the issue 4 brief ("sends quota-80 / quota-100 once per account per month"); the
 // thresholds are compared exactly in integers (used·100 ≥ t·quota), hand-computed below.
+import { sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createAccount } from '../../server/accounts/accounts.js';
 import { thresholdsReached } from '../../server/accounts/usage.js';
@@ -36,10 +37,8 @@ describe('checkQuotaNotices', () => {
       billingEmail: 'quota@works.invalid',
       now: h.clock.now,
     });
-    const kinds = () =>
-      mailRows(h)
-        .filter((m) => m.to === 'quota@works.invalid')
-        .map((m) => m.kind);
+    const kinds = async () =>
+      (await mailRows(h)).filter((m) => m.to === 'quota@works.invalid').map((m) => m.kind);
     meter(h, a.id, 799, '2031-05-02T00:00:00Z');
     expect((await checkQuotaNotices(h.deps, a.id)).sent).toBeNull();
     meter(h, a.id, 1, '2031-05-09T00:00:00Z');
@@ -48,29 +47,27 @@ describe('checkQuotaNotices', () => {
     meter(h, a.id, 200, '2031-05-09T01:00:00Z');
     expect((await checkQuotaNotices(h.deps, a.id)).sent).toBe(100);
     expect((await checkQuotaNotices(h.deps, a.id)).sent).toBeNull();
-    expect(kinds()).toEqual(['quota-80', 'quota-100']);
+    expect(await kinds()).toEqual(['quota-80', 'quota-100']);
 
     // June: a new month starts from zero; jumping straight to 100 % sends only the 100 % notice.
     h.clock.now = new Date('2031-06-03T00:00:00Z');
     meter(h, a.id, 1000, '2031-06-02T00:00:00Z');
     expect((await checkQuotaNotices(h.deps, a.id)).sent).toBe(100);
     expect((await checkQuotaNotices(h.deps, a.id)).sent).toBeNull();
-    expect(kinds()).toEqual(['quota-80', 'quota-100', 'quota-100']);
-    const notices = h.deps.sqlite
-      .prepare('SELECT month, threshold FROM quota_notices WHERE account_id = ? ORDER BY month, threshold')
-      .all(a.id);
+    expect(await kinds()).toEqual(['quota-80', 'quota-100', 'quota-100']);
+    const notices = await h.deps.store.rows(
+      sql`SELECT month, threshold FROM quota_notices WHERE account_id = ${a.id} ORDER BY month, threshold`,
+    );
     expect(notices).toEqual([
       { month: '2031-05', threshold: 80 },
       { month: '2031-05', threshold: 100 },
       { month: '2031-06', threshold: 80 },
       { month: '2031-06', threshold: 100 },
     ]);
-    const text = h.deps.sqlite
-      .prepare(
-        "SELECT text_body AS t FROM captured_mail WHERE subject LIKE '%quota used up%' ORDER BY id DESC",
-      )
-      .get() as { t: string };
-    expect(text.t).toContain('2031-07-01 00:00 UTC');
+    const [text] = await h.deps.store.rows<{ t: string }>(
+      sql`SELECT text_body AS t FROM captured_mail WHERE subject LIKE '%quota used up%' ORDER BY id DESC`,
+    );
+    expect(text?.t).toContain('2031-07-01 00:00 UTC');
   });
 
   it('sends and records nothing for an account without a billing e-mail', async () => {
@@ -81,12 +78,10 @@ describe('checkQuotaNotices', () => {
     });
     meter(h, b.id, 10, h.clock.now.toISOString());
     expect((await checkQuotaNotices(h.deps, b.id)).sent).toBeNull();
-    const n = h.deps.sqlite
-      .prepare('SELECT COUNT(*) AS n FROM quota_notices WHERE account_id = ?')
-      .get(b.id) as {
-      n: number;
-    };
-    expect(n.n).toBe(0);
+    const [n] = await h.deps.store.rows<{ n: number | string }>(
+      sql`SELECT COUNT(*) AS n FROM quota_notices WHERE account_id = ${b.id}`,
+    );
+    expect(Number(n?.n)).toBe(0);
   });
 
   it('runs after the current turn when scheduled, coalescing repeated calls', async () => {
@@ -99,14 +94,12 @@ describe('checkQuotaNotices', () => {
     meter(h, c.id, 85, h.clock.now.toISOString());
     scheduleQuotaCheck(h.deps, c.id);
     scheduleQuotaCheck(h.deps, c.id);
-    expect(mailRows(h).filter((m) => m.to === 'later@deferred.invalid')).toEqual([]); // not yet
-    for (let i = 0; i < 100 && mailRows(h).every((m) => m.to !== 'later@deferred.invalid'); i++) {
+    expect((await mailRows(h)).filter((m) => m.to === 'later@deferred.invalid')).toEqual([]); // not yet
+    for (let i = 0; i < 100 && (await mailRows(h)).every((m) => m.to !== 'later@deferred.invalid'); i++) {
       await new Promise((r) => setTimeout(r, 20));
     }
-    expect(
-      mailRows(h)
-        .filter((m) => m.to === 'later@deferred.invalid')
-        .map((m) => m.kind),
-    ).toEqual(['quota-80']);
+    expect((await mailRows(h)).filter((m) => m.to === 'later@deferred.invalid').map((m) => m.kind)).toEqual([
+      'quota-80',
+    ]);
   });
 });

@@ -11,7 +11,7 @@
 // - CSV: RFC 4180 (CRLF records, quoted fields); formula neutralising: OWASP "CSV Injection".
 import crypto from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { auditLog } from '../../server/db/schema.js';
+import { and, eq, sql } from 'drizzle-orm';
 import { configurePayments } from '../../server/integrations/payments/client.js';
 import { createAccount } from '../../server/accounts/accounts.js';
 import {
@@ -48,6 +48,21 @@ interface StatementBody {
   providerInvoiceId: string | null;
   paidAt: string | null;
   lineItems?: { code: string; quantity: number; unitAmountMinor: number; amountMinor: number }[];
+}
+
+/** The audit log, read through the store. */
+function auditRows() {
+  return h.deps.store.db.select().from(h.deps.store.t.auditLog);
+}
+
+/** Stored payment events (with this id, if given). */
+async function paymentEventCount(id?: string): Promise<number> {
+  const [row] = await h.deps.store.rows<{ n: number | string }>(
+    id === undefined
+      ? sql`SELECT COUNT(*) AS n FROM payment_events`
+      : sql`SELECT COUNT(*) AS n FROM payment_events WHERE id = ${id}`,
+  );
+  return Number(row?.n);
 }
 
 function statementOf(items: StatementBody[], accountId: number): StatementBody {
@@ -122,7 +137,7 @@ describe('statements', () => {
       overageUnits: 0,
       amountMinor: 0,
     });
-    const audit = h.deps.db.select().from(auditLog).all();
+    const audit = await auditRows();
     expect(audit.some((a) => a.action === 'statement.generate' && a.targetId === '2031-03')).toBe(true);
   });
 
@@ -274,21 +289,23 @@ describe('finalize through the payment provider', () => {
       metadata: { statementId: String(id) },
     });
     expect(invoice?.lines.data.map((l) => l.amount)).toEqual([4_900, 1_200]);
-    const customerId = h.deps.sqlite
-      .prepare('SELECT payment_customer_id AS c FROM accounts WHERE id = ?')
-      .get(h.alphaId) as { c: string };
+    const [customerId] = await h.deps.store.rows<{ c: string }>(
+      sql`SELECT payment_customer_id AS c FROM accounts WHERE id = ${h.alphaId}`,
+    );
+    if (!customerId) throw new Error('no account row');
     expect(customerId.c).toMatch(/^cust-/);
     expect(h.fake.state.customers.get(customerId.c)?.email).toBe('accounts@alpha.invalid');
     // Mail and audit.
-    expect(mailRows(h)).toContainEqual(
+    expect(await mailRows(h)).toContainEqual(
       expect.objectContaining({ kind: 'statement-ready', to: 'accounts@alpha.invalid', status: 'sent' }),
     );
-    const captured = h.deps.sqlite
-      .prepare("SELECT subject, text_body AS text FROM captured_mail WHERE subject LIKE 'Ebullio statement%'")
-      .get() as { subject: string; text: string };
+    const [captured] = await h.deps.store.rows<{ subject: string; text: string }>(
+      sql`SELECT subject, text_body AS text FROM captured_mail WHERE subject LIKE 'Ebullio statement%'`,
+    );
+    if (!captured) throw new Error('no captured statement mail');
     expect(captured.subject).toBe('Ebullio statement 2031-03 issued: €61.00');
     expect(captured.text).toContain(statement.providerInvoiceId);
-    expect(h.deps.db.select().from(auditLog).all()).toContainEqual(
+    expect(await auditRows()).toContainEqual(
       expect.objectContaining({
         action: 'statement.finalize',
         actorEmail: 'billing@ebullio.invalid',
@@ -326,10 +343,11 @@ describe('finalize through the payment provider', () => {
       .get(`/console-api/statements?month=2031-03&accountId=${h.alphaId}`)
       .expect(200);
     const id = (list.body.items[0] as StatementBody).id;
-    const reprice = h.deps.sqlite.prepare(
-      'UPDATE plans SET monthly_fee_minor = ?, price_per_1000_units_minor = ? WHERE name = ?',
-    );
-    reprice.run(9_900, 250, 'professional'); // an operator raises the prices in April
+    const reprice = (fee: number, price: number) =>
+      h.deps.store.execute(
+        sql`UPDATE plans SET monthly_fee_minor = ${fee}, price_per_1000_units_minor = ${price} WHERE name = 'professional'`,
+      );
+    await reprice(9_900, 250); // an operator raises the prices in April
     try {
       const detail = (await h.billing.agent.get(`/console-api/statements/${id}`).expect(200))
         .body as StatementBody;
@@ -341,23 +359,19 @@ describe('finalize through the payment provider', () => {
       ]);
       // A statement made before prices were kept falls back to the plan; repriced, it shows the
       // stored total as one line rather than line items that would not add up.
-      h.deps.sqlite
-        .prepare(
-          'UPDATE statements SET monthly_fee_minor = NULL, price_per_1000_units_minor = NULL WHERE id = ?',
-        )
-        .run(id);
+      await h.deps.store.execute(
+        sql`UPDATE statements SET monthly_fee_minor = NULL, price_per_1000_units_minor = NULL WHERE id = ${id}`,
+      );
       const legacy = (await h.billing.agent.get(`/console-api/statements/${id}`).expect(200))
         .body as StatementBody;
       expect(legacy.lineItems).toEqual([
         expect.objectContaining({ code: 'monthly-fee', quantity: 1, amountMinor: 6_100 }),
       ]);
     } finally {
-      reprice.run(4_900, 100, 'professional');
-      h.deps.sqlite
-        .prepare(
-          'UPDATE statements SET monthly_fee_minor = 4900, price_per_1000_units_minor = 100 WHERE id = ?',
-        )
-        .run(id);
+      await reprice(4_900, 100);
+      await h.deps.store.execute(
+        sql`UPDATE statements SET monthly_fee_minor = 4900, price_per_1000_units_minor = 100 WHERE id = ${id}`,
+      );
     }
   });
 
@@ -416,17 +430,25 @@ describe('finalize through the payment provider', () => {
 });
 
 describe('payments webhook', () => {
-  function alphaMarch(): StatementBody {
-    return h.deps.sqlite
-      .prepare(
-        `SELECT id, account_id AS accountId, status, provider_invoice_id AS providerInvoiceId, paid_at AS paidAt
-         FROM statements WHERE account_id = ? AND month = '2031-03'`,
-      )
-      .get(h.alphaId) as StatementBody;
+  async function alphaMarch() {
+    const { statements } = h.deps.store.t;
+    const [row] = await h.deps.store.db
+      .select({
+        id: statements.id,
+        accountId: statements.accountId,
+        status: statements.status,
+        providerInvoiceId: statements.providerInvoiceId,
+        paidAt: statements.paidAt,
+      })
+      .from(statements)
+      .where(and(eq(statements.accountId, h.alphaId), eq(statements.month, '2031-03')))
+      .limit(1);
+    if (!row) throw new Error('no March statement for Alpha');
+    return row;
   }
 
   it('marks the statement paid when the provider delivers a correctly signed invoice.paid', async () => {
-    const before = alphaMarch();
+    const before = await alphaMarch();
     expect(before.status).toBe('finalized');
     h.clock.now = new Date('2031-04-10T12:00:00Z');
     const res = await fetch(`${h.fake.url}/test/invoices/${before.providerInvoiceId}/pay`, {
@@ -435,20 +457,20 @@ describe('payments webhook', () => {
     });
     const body = (await res.json()) as { delivery: { status: number } };
     expect(body.delivery.status).toBe(200);
-    const after = alphaMarch();
+    const after = await alphaMarch();
     expect(after.status).toBe('paid');
-    expect(after.paidAt).toBe(Date.parse('2031-04-10T12:00:00Z'));
-    expect(h.deps.db.select().from(auditLog).all()).toContainEqual(
+    expect(after.paidAt?.getTime()).toBe(Date.parse('2031-04-10T12:00:00Z'));
+    expect(await auditRows()).toContainEqual(
       expect.objectContaining({ action: 'statement.paid', targetId: String(before.id) }),
     );
   });
 
   it('ignores a replayed event: 200, marked duplicate, nothing changes', async () => {
     // The delivery for Alpha's invoice (within the 300 s tolerance: the clock has not moved since).
-    const invoiceId = alphaMarch().providerInvoiceId ?? '';
+    const invoiceId = (await alphaMarch()).providerInvoiceId ?? '';
     const delivery = h.fake.state.deliveries.find((d) => d.status === 200 && d.payload.includes(invoiceId));
     if (!delivery) throw new Error('no delivered event');
-    const paidBefore = alphaMarch().paidAt;
+    const paidBefore = (await alphaMarch()).paidAt?.getTime();
     const res = await fetch(`${h.baseUrl}/webhooks/payments`, {
       method: 'POST',
       headers: { 'Content-Type': 'application/json', 'Stripe-Signature': delivery.signatureHeader },
@@ -456,13 +478,8 @@ describe('payments webhook', () => {
     });
     expect(res.status).toBe(200);
     expect(await res.json()).toMatchObject({ received: true, duplicate: true });
-    expect(alphaMarch().paidAt).toBe(paidBefore);
-    const n = h.deps.sqlite
-      .prepare('SELECT COUNT(*) AS n FROM payment_events WHERE id = ?')
-      .get(delivery.eventId) as {
-      n: number;
-    };
-    expect(n.n).toBe(1);
+    expect((await alphaMarch()).paidAt?.getTime()).toBe(paidBefore);
+    expect(await paymentEventCount(delivery.eventId)).toBe(1);
   });
 
   function signed(payload: string, secret: string, t: number): string {
@@ -518,18 +535,12 @@ describe('payments webhook', () => {
       expect({ name, status: res.status }).toEqual({ name, status: 400 });
       expect(res.headers.get('content-type')).toMatch(/^application\/problem\+json/);
     }
-    const stored = h.deps.sqlite
-      .prepare("SELECT COUNT(*) AS n FROM payment_events WHERE id = 'evt_rejected_1'")
-      .get() as {
-      n: number;
-    };
-    expect(stored.n).toBe(0);
+    expect(await paymentEventCount('evt_rejected_1')).toBe(0);
   });
 
   it('refuses a correctly signed event without an id, a type or an object with a 400 problem, storing nothing', async () => {
-    const count = () =>
-      (h.deps.sqlite.prepare('SELECT COUNT(*) AS n FROM payment_events').get() as { n: number }).n;
-    const before = count();
+    const count = () => paymentEventCount();
+    const before = await count();
     const bodies = [
       JSON.stringify({ object: 'event', type: 'invoice.paid', data: { object: { id: 'in_x' } } }),
       JSON.stringify({ id: 'evt_no_type', object: 'event', data: { object: { id: 'in_x' } } }),
@@ -548,6 +559,6 @@ describe('payments webhook', () => {
       expect({ payload, status: res.status }).toEqual({ payload, status: 400 });
       expect(res.headers.get('content-type')).toMatch(/^application\/problem\+json/);
     }
-    expect(count()).toBe(before);
+    expect(await count()).toBe(before);
   });
 });

@@ -2,6 +2,7 @@
 // (heat capacity required), an update stores a new version that calculations use at once and
 // name in their provenance, and the Dühring CSV reads like the batch CSV (units in cells, errors
 // by line and column). The tables are invented; checks of numbers are against the table itself.
+import { sql } from 'drizzle-orm';
 import request from 'supertest';
 import { beforeEach, describe, expect, it } from 'vitest';
 import { makeHarness, type Harness } from './helpers.js';
@@ -123,11 +124,9 @@ describe('PUT /v1/stored-liquors/{liquorId}', () => {
       expect.objectContaining({ id: 'custom:wash', version: 2 }),
     );
 
-    const rows = h.sqlite
-      .prepare(
-        "SELECT response_body FROM request_log WHERE path = '/v1/liquors/wash/boiling-point' ORDER BY id",
-      )
-      .all() as { response_body: string }[];
+    const rows = await h.store.rows<{ response_body: string }>(
+      sql`SELECT response_body FROM request_log WHERE path = '/v1/liquors/wash/boiling-point' ORDER BY id`,
+    );
     expect(rows).toHaveLength(2);
     expect(JSON.parse(rows[0]!.response_body).provenance.models).toContainEqual(
       expect.objectContaining({ id: 'custom:wash', version: 1 }),
@@ -136,9 +135,9 @@ describe('PUT /v1/stored-liquors/{liquorId}', () => {
       expect.objectContaining({ id: 'custom:wash', version: 2 }),
     );
     // Old versions are kept.
-    const versions = h.sqlite
-      .prepare("SELECT version FROM stored_liquors WHERE liquor_id = 'wash' ORDER BY version")
-      .all();
+    const versions = await h.store.rows(
+      sql`SELECT version FROM stored_liquors WHERE liquor_id = 'wash' ORDER BY version`,
+    );
     expect(versions).toEqual([{ version: 1 }, { version: 2 }]);
     const list = await request(h.app).get('/v1/stored-liquors').set(auth());
     expect(list.body.liquors).toHaveLength(1);

@@ -64,7 +64,7 @@ describe('sendMail through the capture server', () => {
   let h: Harness;
   beforeAll(async () => {
     h = await makeHarness();
-    capture = await startMailCapture({ db: h.db, port: 0, clock: () => h.clock.now });
+    capture = await startMailCapture({ store: h.store, port: 0, clock: () => h.clock.now });
     h.config.smtpUrl = capture.url;
   });
   afterAll(async () => {
@@ -81,20 +81,21 @@ describe('sendMail through the capture server', () => {
       html: '<p>Hello</p>',
     });
     expect(result.status).toBe('sent');
-    const row = h.sqlite
-      .prepare('SELECT from_address, to_addresses, subject, text_body, html_body FROM captured_mail')
-      .get() as Record<string, string>;
-    expect(row.from_address).toBe('no-reply@ebullio.invalid');
-    expect(JSON.parse(row.to_addresses!)).toEqual(['ops@ebullio.invalid']);
-    expect(row.subject).toBe('Kontingent zu 80 % verbraucht — Dühring-Tabelle');
-    expect(row.text_body).toBe(`Hello,\n\n${long}`);
-    expect(row.html_body).toBe('<p>Hello</p>');
-    const log = h.sqlite.prepare('SELECT kind, status, error FROM mail_log').all();
+    const { capturedMail, mailLog } = h.store.t;
+    const [row] = await h.store.db.select().from(capturedMail).limit(1);
+    expect(row?.from).toBe('no-reply@ebullio.invalid');
+    expect(row?.to).toEqual(['ops@ebullio.invalid']);
+    expect(row?.subject).toBe('Kontingent zu 80 % verbraucht — Dühring-Tabelle');
+    expect(row?.text).toBe(`Hello,\n\n${long}`);
+    expect(row?.html).toBe('<p>Hello</p>');
+    const log = await h.store.db
+      .select({ kind: mailLog.kind, status: mailLog.status, error: mailLog.error })
+      .from(mailLog);
     expect(log).toEqual([{ kind: 'quota-80', status: 'sent', error: null }]);
   });
 
   it('logs a failure instead of throwing when the SMTP server cannot be reached', async () => {
-    const closed = await startMailCapture({ db: h.db, port: 0 });
+    const closed = await startMailCapture({ store: h.store, port: 0 });
     await closed.close();
     const h2 = await makeHarness({ config: { smtpUrl: closed.url } });
     const result = await sendMail(h2.deps, {
@@ -104,7 +105,10 @@ describe('sendMail through the capture server', () => {
       text: 't',
     });
     expect(result.status).toBe('failed');
-    expect(h2.sqlite.prepare('SELECT status FROM mail_log').all()).toEqual([{ status: 'failed' }]);
+    const { mailLog } = h2.store.t;
+    expect(await h2.store.db.select({ status: mailLog.status }).from(mailLog)).toEqual([
+      { status: 'failed' },
+    ]);
   });
 
   it('does not fall back to the capture server in production', async () => {

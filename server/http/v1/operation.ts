@@ -19,6 +19,7 @@ import type { Request, RequestHandler, Response, Router } from 'express';
 import type { z } from 'zod';
 import type { CatalogueEntry } from '../../../shared/operations.js';
 import type { Db, Sqlite } from '../../db/client.js';
+import type { Store } from '../../db/store.js';
 import type { AppDeps } from '../../deps.js';
 import {
   reviveError,
@@ -37,6 +38,8 @@ import { validate } from '../validate.js';
 /** What a calculation may use besides its input. */
 export interface OperationContext {
   accountId: number;
+  /** The data store (stored liquors). */
+  store: Store;
   db: Db;
   sqlite: Sqlite;
   engineVersion: string;
@@ -111,10 +114,10 @@ export interface OperationDeclaration<
    * Finds what the request names (a liquor: 404 'not-found'): from the path, before the body is
    * read, or with `loadAfterBody` from the validated body (before its quantities are converted).
    */
-  load?: (parts: { params: Out<P>; query: Out<Q>; body: Out<B> }, ctx: OperationContext) => L;
+  load?: (parts: { params: Out<P>; query: Out<Q>; body: Out<B> }, ctx: OperationContext) => L | Promise<L>;
   loadAfterBody?: boolean;
   /** The calculation: input in SI → the response body. */
-  run?: (input: OperationInput<P, Q, B, L>, ctx: OperationContext) => R;
+  run?: (input: OperationInput<P, Q, B, L>, ctx: OperationContext) => R | Promise<R>;
   /**
    * A heavy calculation, in three steps so that the middle one may run in a worker thread
    * (server/workers/): `input` (main thread) turns the request in SI into the task's plain
@@ -135,7 +138,11 @@ export interface OperationDeclaration<
    * from the case (and the batch's shared fields), and `units` prices a case.
    */
   batch?: {
-    load?: (c: Record<string, unknown>, shared: { liquor?: unknown }, ctx: OperationContext) => L;
+    load?: (
+      c: Record<string, unknown>,
+      shared: { liquor?: unknown },
+      ctx: OperationContext,
+    ) => L | Promise<L>;
     /** Fields of the case that `load` consumed and the body must not see. */
     consumes?: readonly string[];
     /** Units of one case (default: the catalogue's base units). */
@@ -221,21 +228,21 @@ export type Prepared =
  * `loadAfterBody`), then every quantity is converted to SI, then `run` (or the `engine` part's
  * `input`). A batch case brings what `load` would find in `caseLoad`.
  */
-export function prepareOperation(
+export async function prepareOperation(
   op: CompiledOperation,
   raw: { params?: unknown; query?: unknown; body?: unknown },
   ctx: OperationContext,
   caseLoad?: { value: unknown },
-): Prepared {
+): Promise<Prepared> {
   const decl = op.decl;
   const load = caseLoad ? undefined : decl.load;
   // A batch case has no path: it brings what `load` would have found from the path's params.
   const params: unknown = op.params && !caseLoad ? validate(op.params.schema, raw.params) : undefined;
   let loaded: unknown = caseLoad?.value;
-  if (load && !decl.loadAfterBody) loaded = load({ params, query: undefined, body: undefined }, ctx);
+  if (load && !decl.loadAfterBody) loaded = await load({ params, query: undefined, body: undefined }, ctx);
   const query: unknown = op.query ? validate(op.query.schema, raw.query) : undefined;
   const body: unknown = op.body ? validate(op.body.schema, raw.body) : undefined;
-  if (load && decl.loadAfterBody) loaded = load({ params, query, body }, ctx);
+  if (load && decl.loadAfterBody) loaded = await load({ params, query, body }, ctx);
   const context = { liquor: liquorOf(loaded, body) };
   const input = {
     params: op.params && !caseLoad ? toSI(op.params.plan, params, context) : undefined,
@@ -244,7 +251,7 @@ export function prepareOperation(
     loaded,
   };
   const engine = decl.engine;
-  if (!engine) return { done: decl.run!(input, ctx) };
+  if (!engine) return { done: await decl.run!(input, ctx) };
   const taskInput = calculate(engine.fields, () => engine.input(input, ctx));
   return {
     task: engine.task,
@@ -291,13 +298,13 @@ export function pooled(pool: EnginePool | undefined): pool is EnginePool {
 }
 
 /** Parses and runs a request for `op` on this thread (the engine inline). */
-export function runOperation(
+export async function runOperation(
   op: CompiledOperation,
   raw: { params?: unknown; query?: unknown; body?: unknown },
   ctx: OperationContext,
   caseLoad?: { value: unknown },
-): unknown {
-  const prepared = prepareOperation(op, raw, ctx, caseLoad);
+): Promise<unknown> {
+  const prepared = await prepareOperation(op, raw, ctx, caseLoad);
   if ('done' in prepared) return prepared.done;
   return prepared.finish(() => runTaskInline(prepared.task, prepared.taskInput));
 }
@@ -317,6 +324,7 @@ function liquorOf(loaded: unknown, body: unknown): string | undefined {
 function contextOf(res: Response, deps: AppDeps): OperationContext {
   return {
     accountId: res.locals.auth!.accountId,
+    store: deps.store,
     db: deps.db,
     sqlite: deps.sqlite,
     engineVersion: deps.engineVersion,
@@ -338,7 +346,7 @@ export function mountOperation(router: Router, decl: AnyOperation, deps: AppDeps
           const extra = extraUnits(req.body);
           if (extra) chargeUnits(res, extra);
         }
-        const prepared = prepareOperation(op, req, contextOf(res, deps));
+        const prepared = await prepareOperation(op, req, contextOf(res, deps));
         let result: unknown;
         if ('done' in prepared) result = prepared.done;
         else if (prepared.offload && pooled(deps.enginePool)) {

@@ -184,17 +184,17 @@ function validateCsvBatch(raw: unknown, lines: readonly number[]) {
 }
 
 /** One case as its operation's own request (paths relative to the case), parsed and prepared. */
-function prepareCase(
+async function prepareCase(
   op: CompiledOperation,
   c: Record<string, unknown>,
   shared: { liquor?: unknown },
   ctx: OperationContext,
-): Prepared {
+): Promise<Prepared> {
   const batch = op.decl.batch;
   let input = c;
   let caseLoad: { value: unknown } | undefined;
   if (batch?.load) {
-    caseLoad = { value: batch.load(c, shared, ctx) };
+    caseLoad = { value: await batch.load(c, shared, ctx) };
     input = { ...c };
     for (const key of batch.consumes ?? []) delete input[key];
   }
@@ -325,7 +325,7 @@ export function batchOperation(operations: readonly AnyOperation[]) {
           await nextTurn();
         }
         try {
-          const value = prepareCase(op, c, shared, ctx);
+          const value = await prepareCase(op, c, shared, ctx);
           prepared.push({ ok: true, value });
           if (!('done' in value)) waiting.push({ index, task: value });
         } catch (error) {

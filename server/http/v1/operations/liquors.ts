@@ -41,7 +41,7 @@ function caseLiquor(
   c: Record<string, unknown>,
   shared: { liquor?: unknown },
   ctx: OperationContext,
-): ResolvedLiquor {
+): Promise<ResolvedLiquor> {
   const ref = c.liquor ?? shared.liquor;
   if (ref === undefined) {
     throw problem('validation-failed', 'No liquor: give `liquor` for the batch or for the case.', {
@@ -49,12 +49,12 @@ function caseLiquor(
     });
   }
   const valid: LiquorRef = validate(LiquorRefSchema, ref, 'liquor');
-  return resolveLiquor(valid, ctx.db, ctx.accountId, 'liquor');
+  return resolveLiquor(valid, ctx.store, ctx.accountId, 'liquor');
 }
 
 /** The liquor the path names (404 'not-found' before the body is read). */
-function pathLiquor(parts: { params: { liquorId: string } }, ctx: OperationContext): ResolvedLiquor {
-  return resolveLiquor(parts.params.liquorId, ctx.db, ctx.accountId, 'liquorId');
+function pathLiquor(parts: { params: { liquorId: string } }, ctx: OperationContext): Promise<ResolvedLiquor> {
+  return resolveLiquor(parts.params.liquorId, ctx.store, ctx.accountId, 'liquorId');
 }
 
 const BOILING_POINT_FIELDS: FieldMap = {
@@ -73,11 +73,11 @@ export const liquorList = declareOperation({
   summary: 'Liquor models: built-in correlations and this account’s stored liquors, with their validity',
   request: { query: LiquorListQuerySchema },
   response: { description: 'The liquors', schema: LiquorListSchema },
-  run: ({ query: { kind } }, ctx) => {
+  run: async ({ query: { kind } }, ctx) => {
     const liquors: LiquorSummary[] = [];
     if (kind !== 'stored') for (const m of builtInLiquors.values()) liquors.push(summarise(m, 'built-in'));
     if (kind !== 'built-in') {
-      for (const s of listStoredLiquors(ctx.db, ctx.accountId)) {
+      for (const s of await listStoredLiquors(ctx.store, ctx.accountId)) {
         liquors.push(summarise(buildCustomLiquor(s.definition, 'definition', s.id), 'stored', s.id));
       }
     }

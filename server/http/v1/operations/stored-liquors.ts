@@ -150,9 +150,9 @@ export const storedLiquorCreate = declareOperation({
   },
   middleware: [multipartOnly({ fieldSize: 4096 })],
   // JSON or multipart: the body is read here, not by the generic parser.
-  handle: (req, res, ctx) => {
+  handle: async (req, res, ctx) => {
     const { id, ...input } = createInput(req);
-    if (findBuiltInLiquor(id) || findStoredLiquor(ctx.db, ctx.accountId, id)) {
+    if (findBuiltInLiquor(id) || (await findStoredLiquor(ctx.store, ctx.accountId, id))) {
       throw problem(
         'conflict',
         `A liquor with the id "${id}" exists already; choose another id or delete the stored one first.`,
@@ -160,7 +160,7 @@ export const storedLiquorCreate = declareOperation({
       );
     }
     buildCustomLiquor(input.definition, 'definition', id); // refuses a definition the engine cannot use
-    const record = insertStoredLiquor(ctx.db, ctx.accountId, id, input.definition, ctx.clock());
+    const record = await insertStoredLiquor(ctx.store, ctx.accountId, id, input.definition, ctx.clock());
     res
       .status(201)
       .location(pathOf(liquorGet, { liquorId: id }))
@@ -177,7 +177,9 @@ export const storedLiquorList = declareOperation({
   summary: 'The liquors stored by this account, with their definitions',
   response: { description: 'Stored liquors', schema: StoredLiquorListSchema, example: listExample },
   send: 'json',
-  run: (_input, ctx) => ({ liquors: listStoredLiquors(ctx.db, ctx.accountId).map(storedLiquorView) }),
+  run: async (_input, ctx) => ({
+    liquors: (await listStoredLiquors(ctx.store, ctx.accountId)).map(storedLiquorView),
+  }),
 });
 
 export const storedLiquorDelete = declareOperation({
@@ -190,8 +192,8 @@ export const storedLiquorDelete = declareOperation({
   request: { params: StoredLiquorIdParamsSchema },
   response: { status: 204, description: 'Deleted' },
   problems: { 404: 'No stored liquor with this id' },
-  run: ({ params: { liquorId } }, ctx) => {
-    if (!deleteStoredLiquor(ctx.db, ctx.accountId, liquorId)) {
+  run: async ({ params: { liquorId } }, ctx) => {
+    if (!(await deleteStoredLiquor(ctx.store, ctx.accountId, liquorId))) {
       throw problem(
         'not-found',
         findBuiltInLiquor(liquorId)
@@ -225,10 +227,10 @@ export const storedLiquorUpdate = declareOperation({
     413: 'The upload is too large (type payload-too-large)',
   },
   middleware: [multipartOnly({ fieldSize: 4096 })],
-  handle: (req, res, ctx) => {
+  handle: async (req, res, ctx) => {
     const { liquorId } = validate(StoredLiquorIdParamsSchema, req.params);
     // 404 before the definition is looked at: there is nothing to update.
-    if (!findStoredLiquor(ctx.db, ctx.accountId, liquorId)) {
+    if (!(await findStoredLiquor(ctx.store, ctx.accountId, liquorId))) {
       throw problem(
         'not-found',
         findBuiltInLiquor(liquorId)
@@ -246,7 +248,13 @@ export const storedLiquorUpdate = declareOperation({
         )
       : validate(StoredLiquorUpdateSchema, req.body);
     if (!req.is('multipart/form-data')) buildable(liquorId)(input);
-    const record = insertStoredLiquorVersion(ctx.db, ctx.accountId, liquorId, input.definition, ctx.clock());
+    const record = await insertStoredLiquorVersion(
+      ctx.store,
+      ctx.accountId,
+      liquorId,
+      input.definition,
+      ctx.clock(),
+    );
     if (!record) throw problem('not-found', `This account has no stored liquor "${liquorId}".`);
     res.location(pathOf(liquorGet, { liquorId })).json(storedLiquorView(record));
   },
