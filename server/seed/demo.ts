@@ -10,7 +10,7 @@ import type { Db, Sqlite } from '../db/client.js';
 import { addMember, createAccount, insertUser } from '../accounts/accounts.js';
 import { hashPassword } from '../accounts/passwords.js';
 import { createKey } from '../accounts/keys.js';
-import { recordRequest } from '../accounts/metering.js';
+import { recordRequestOnSqlite } from '../accounts/metering.js';
 import { operationCatalogue, scopes, type OperationId } from '../accounts/operations.js';
 import { pathOf } from '../http/v1/operation.js';
 import { operationDeclaration } from '../http/v1/operations/index.js';
@@ -63,7 +63,7 @@ function seedUsage(
       for (let i = 0; i < n; i++) {
         const at = new Date(dayStart + Math.floor((7 + 11 * random()) * 3_600_000));
         const failed = random() < 0.04;
-        recordRequest(sqlite, {
+        recordRequestOnSqlite(sqlite, {
           at,
           accountId,
           keyId,

@@ -20,6 +20,7 @@ import fs from 'node:fs';
 import type { AddressInfo } from 'node:net';
 import express from 'express';
 import { openDatabase, runMigrations } from '../../server/db/client.js';
+import { sqliteStore } from '../../server/db/store.js';
 import { sendCalculation } from '../../server/http/send.js';
 import { compileOperation, runOperation } from '../../server/http/v1/operation.js';
 import { singleEffect } from '../../server/http/v1/operations/evaporators.js';
@@ -41,7 +42,7 @@ if (process.env.BARE_MODE === 'calculation') {
   runMigrations(db);
   const engineVersion = (responseBody as { provenance: { engineVersion: string } }).provenance.engineVersion;
   const op = compileOperation(singleEffect);
-  const ctx = { accountId: 0, db, sqlite, engineVersion, clock: () => new Date() };
+  const ctx = { accountId: 0, store: sqliteStore(sqlite, db), engineVersion, clock: () => new Date() };
   app.post('/bare', (req, res) => {
     sendCalculation(res, runOperation(op, { body: req.body }, ctx));
   });

@@ -40,7 +40,7 @@ describe('batch billing', () => {
     expect(res.status).toBe(200);
     expect(res.body).toMatchObject({ count: 2, succeeded: 0, failed: 2, unitsCharged: 0 });
     // The single refused call and the batch both bill 0 units.
-    expect(usageRows(h.sqlite).map((r) => [r.operation, r.units])).toEqual([
+    expect((await usageRows(h.store)).map((r) => [r.operation, r.units])).toEqual([
       ['evaporators.single-effect', 0],
       ['batch', 0],
     ]);
@@ -61,7 +61,7 @@ describe('batch billing', () => {
       });
     expect(res.status).toBe(200);
     expect(res.body).toMatchObject({ succeeded: 2, failed: 1, unitsCharged: 10 });
-    expect(usageRows(h.sqlite).at(-1)).toMatchObject({ operation: 'batch', units: 10 });
+    expect((await usageRows(h.store)).at(-1)).toMatchObject({ operation: 'batch', units: 10 });
     const log = h.sqlite.prepare('SELECT status FROM request_log').all();
     expect(log).toEqual([{ status: 200 }]);
   });
@@ -78,6 +78,6 @@ describe('batch billing', () => {
       });
     expect(res.status).toBe(429);
     expect(res.body.detail).toContain('costs 15 units');
-    expect(usageRows(h.sqlite).at(-1)).toMatchObject({ status: 429, units: 0 });
+    expect((await usageRows(h.store)).at(-1)).toMatchObject({ status: 429, units: 0 });
   });
 });

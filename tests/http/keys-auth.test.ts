@@ -22,7 +22,7 @@ describe('401 unauthorized', () => {
     expect(res.headers['content-type']).toMatch(/^application\/problem\+json/); // RFC 9457 §3
     expect(res.body.type).toBe('/problems/unauthorized');
     expect(res.body.detail).toMatch(detail);
-    expect(usageRows(h.sqlite)).toHaveLength(0); // no account is known, so nothing is metered
+    expect(await usageRows(h.store)).toHaveLength(0); // no account is known, so nothing is metered
   });
 
   it('says "unknown", not "wrong secret", when a real public id comes with a wrong secret', async () => {
@@ -43,7 +43,7 @@ describe('403 forbidden', () => {
     expect(res.status).toBe(403);
     expect(res.body.type).toBe('/problems/forbidden');
     expect(res.body.detail).toContain('"usage"');
-    expect(usageRows(h.sqlite)).toEqual([
+    expect(await usageRows(h.store)).toEqual([
       expect.objectContaining({ operation: 'usage.read', status: 403, units: 0 }),
     ]);
   });

@@ -117,7 +117,7 @@ describe('header and body timeouts', () => {
     });
     // The request log says what the client was told, and nothing is charged.
     await sleep(50);
-    expect(usageRows(h.sqlite).filter((r) => r.request_id === 'slow-body-1')).toEqual([
+    expect((await usageRows(h.store)).filter((r) => r.request_id === 'slow-body-1')).toEqual([
       { operation: 'unmatched', status: 408, units: 0, request_id: 'slow-body-1' },
     ]);
   });

@@ -21,7 +21,8 @@
  */
 import type { Request, RequestHandler, Response } from 'express';
 import {
-  committedUnitsThisMonth,
+  knownUnitsThisMonth,
+  loadUnitsThisMonth,
   meteringWriter,
   type MeteringWriter,
   type RequestRecord,
@@ -83,6 +84,8 @@ class MeteredRequest implements MeterState {
   quota: number;
   usedByOthersAtCharge?: number;
   private recorded = false;
+  /** The clock when the request was metered (its month total was read then). */
+  readonly startedAt: Date;
   private readonly siblings: Set<MeteredRequest>;
   private readonly originalEnd: (...args: unknown[]) => Response;
   /** The presented key, kept only when a logged body must be redacted. */
@@ -97,6 +100,7 @@ class MeteredRequest implements MeterState {
     private logOnly = false,
   ) {
     this.quota = auth.monthlyUnitQuota;
+    this.startedAt = ctx.deps.clock();
     let siblings = ctx.inFlight.get(auth.accountId);
     if (!siblings) {
       siblings = new Set();
@@ -118,7 +122,20 @@ class MeteredRequest implements MeterState {
     let pending = 0;
     for (const other of this.siblings) if (other !== this) pending += other.units;
     const { deps } = this.ctx;
-    return committedUnitsThisMonth(deps.sqlite, this.auth.accountId, deps.clock()) + pending;
+    const { store } = deps;
+    const accountId = this.auth.accountId;
+    const now = deps.clock();
+    // Known: read on SQLite now, on PostgreSQL by the middleware before the request went on. The
+    // one gap: the month turned during the request on PostgreSQL; it is then checked against the
+    // month it started in, and the new month is read for the requests after it.
+    let committed = knownUnitsThisMonth(store, accountId, now);
+    if (committed === undefined) {
+      loadUnitsThisMonth(store, accountId, now)?.catch((err: unknown) =>
+        console.error('[metering] could not read the month total:', err),
+      );
+      committed = knownUnitsThisMonth(store, accountId, this.startedAt) ?? 0;
+    }
+    return committed + pending;
   }
 
   /** Leaves the in-flight set once the record is committed (or could not be). */
@@ -259,13 +276,17 @@ function install(meter: MeteredRequest, res: Response): void {
 }
 
 export function metering(deps: AppDeps): MeteringMiddleware {
-  const ctx: MeteringContext = { deps, writer: meteringWriter(deps.sqlite), inFlight: new Map() };
+  const ctx: MeteringContext = { deps, writer: meteringWriter(deps.store), inFlight: new Map() };
   const middleware: RequestHandler = (req, res, next) => {
     const auth = res.locals.auth;
     if (!auth) throw new Error('metering must run after authentication');
     const meter = new MeteredRequest(ctx, req, res, auth);
     res.locals.meter = meter;
     install(meter, res);
+    // The month total the quota is checked against: in memory after the first request of the
+    // account's month (and always at once on SQLite); only that first read waits.
+    const loading = loadUnitsThisMonth(deps.store, auth.accountId, meter.startedAt);
+    if (loading) return loading.then(() => next());
     next();
   };
   return Object.assign(middleware, {

@@ -18,7 +18,7 @@
 import type { Request, RequestHandler, Response, Router } from 'express';
 import type { z } from 'zod';
 import type { CatalogueEntry } from '../../../shared/operations.js';
-import type { Db, Sqlite } from '../../db/client.js';
+import type { Store } from '../../db/store.js';
 import type { AppDeps } from '../../deps.js';
 import {
   reviveError,
@@ -37,8 +37,8 @@ import { validate } from '../validate.js';
 /** What a calculation may use besides its input. */
 export interface OperationContext {
   accountId: number;
-  db: Db;
-  sqlite: Sqlite;
+  /** The data store (server/db/store.ts). */
+  store: Store;
   engineVersion: string;
   clock: () => Date;
   /** The worker threads of heavy calculations (absent: everything inline). */
@@ -113,8 +113,11 @@ export interface OperationDeclaration<
    */
   load?: (parts: { params: Out<P>; query: Out<Q>; body: Out<B> }, ctx: OperationContext) => L;
   loadAfterBody?: boolean;
-  /** The calculation: input in SI → the response body. */
-  run?: (input: OperationInput<P, Q, B, L>, ctx: OperationContext) => R;
+  /**
+   * The calculation: input in SI → the response body. A run that reads the database returns a
+   * promise (the router awaits it; such an operation is not run in a batch).
+   */
+  run?: (input: OperationInput<P, Q, B, L>, ctx: OperationContext) => R | Promise<R>;
   /**
    * A heavy calculation, in three steps so that the middle one may run in a worker thread
    * (server/workers/): `input` (main thread) turns the request in SI into the task's plain
@@ -317,8 +320,7 @@ function liquorOf(loaded: unknown, body: unknown): string | undefined {
 function contextOf(res: Response, deps: AppDeps): OperationContext {
   return {
     accountId: res.locals.auth!.accountId,
-    db: deps.db,
-    sqlite: deps.sqlite,
+    store: deps.store,
     engineVersion: deps.engineVersion,
     clock: deps.clock,
     ...(deps.enginePool ? { enginePool: deps.enginePool } : {}),
@@ -340,7 +342,8 @@ export function mountOperation(router: Router, decl: AnyOperation, deps: AppDeps
         }
         const prepared = prepareOperation(op, req, contextOf(res, deps));
         let result: unknown;
-        if ('done' in prepared) result = prepared.done;
+        if ('done' in prepared)
+          result = prepared.done instanceof Promise ? await prepared.done : prepared.done;
         else if (prepared.offload && pooled(deps.enginePool)) {
           let outcome: TaskOutcome;
           try {

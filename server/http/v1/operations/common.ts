@@ -12,7 +12,7 @@ export function bodyLiquor(
   parts: { body: { liquor: Parameters<typeof resolveLiquor>[0] } },
   ctx: OperationContext,
 ) {
-  return resolveLiquor(parts.body.liquor, ctx.db, ctx.accountId, 'liquor');
+  return resolveLiquor(parts.body.liquor, ctx.store.db, ctx.accountId, 'liquor');
 }
 
 /** A feed or product stream in display units. */

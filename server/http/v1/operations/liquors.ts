@@ -49,12 +49,12 @@ function caseLiquor(
     });
   }
   const valid: LiquorRef = validate(LiquorRefSchema, ref, 'liquor');
-  return resolveLiquor(valid, ctx.db, ctx.accountId, 'liquor');
+  return resolveLiquor(valid, ctx.store.db, ctx.accountId, 'liquor');
 }
 
 /** The liquor the path names (404 'not-found' before the body is read). */
 function pathLiquor(parts: { params: { liquorId: string } }, ctx: OperationContext): ResolvedLiquor {
-  return resolveLiquor(parts.params.liquorId, ctx.db, ctx.accountId, 'liquorId');
+  return resolveLiquor(parts.params.liquorId, ctx.store.db, ctx.accountId, 'liquorId');
 }
 
 const BOILING_POINT_FIELDS: FieldMap = {
@@ -77,7 +77,7 @@ export const liquorList = declareOperation({
     const liquors: LiquorSummary[] = [];
     if (kind !== 'stored') for (const m of builtInLiquors.values()) liquors.push(summarise(m, 'built-in'));
     if (kind !== 'built-in') {
-      for (const s of listStoredLiquors(ctx.db, ctx.accountId)) {
+      for (const s of listStoredLiquors(ctx.store.db, ctx.accountId)) {
         liquors.push(summarise(buildCustomLiquor(s.definition, 'definition', s.id), 'stored', s.id));
       }
     }

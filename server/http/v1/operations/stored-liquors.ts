@@ -152,7 +152,7 @@ export const storedLiquorCreate = declareOperation({
   // JSON or multipart: the body is read here, not by the generic parser.
   handle: (req, res, ctx) => {
     const { id, ...input } = createInput(req);
-    if (findBuiltInLiquor(id) || findStoredLiquor(ctx.db, ctx.accountId, id)) {
+    if (findBuiltInLiquor(id) || findStoredLiquor(ctx.store.db, ctx.accountId, id)) {
       throw problem(
         'conflict',
         `A liquor with the id "${id}" exists already; choose another id or delete the stored one first.`,
@@ -160,7 +160,7 @@ export const storedLiquorCreate = declareOperation({
       );
     }
     buildCustomLiquor(input.definition, 'definition', id); // refuses a definition the engine cannot use
-    const record = insertStoredLiquor(ctx.db, ctx.accountId, id, input.definition, ctx.clock());
+    const record = insertStoredLiquor(ctx.store.db, ctx.accountId, id, input.definition, ctx.clock());
     res
       .status(201)
       .location(pathOf(liquorGet, { liquorId: id }))
@@ -177,7 +177,7 @@ export const storedLiquorList = declareOperation({
   summary: 'The liquors stored by this account, with their definitions',
   response: { description: 'Stored liquors', schema: StoredLiquorListSchema, example: listExample },
   send: 'json',
-  run: (_input, ctx) => ({ liquors: listStoredLiquors(ctx.db, ctx.accountId).map(storedLiquorView) }),
+  run: (_input, ctx) => ({ liquors: listStoredLiquors(ctx.store.db, ctx.accountId).map(storedLiquorView) }),
 });
 
 export const storedLiquorDelete = declareOperation({
@@ -191,7 +191,7 @@ export const storedLiquorDelete = declareOperation({
   response: { status: 204, description: 'Deleted' },
   problems: { 404: 'No stored liquor with this id' },
   run: ({ params: { liquorId } }, ctx) => {
-    if (!deleteStoredLiquor(ctx.db, ctx.accountId, liquorId)) {
+    if (!deleteStoredLiquor(ctx.store.db, ctx.accountId, liquorId)) {
       throw problem(
         'not-found',
         findBuiltInLiquor(liquorId)
@@ -228,7 +228,7 @@ export const storedLiquorUpdate = declareOperation({
   handle: (req, res, ctx) => {
     const { liquorId } = validate(StoredLiquorIdParamsSchema, req.params);
     // 404 before the definition is looked at: there is nothing to update.
-    if (!findStoredLiquor(ctx.db, ctx.accountId, liquorId)) {
+    if (!findStoredLiquor(ctx.store.db, ctx.accountId, liquorId)) {
       throw problem(
         'not-found',
         findBuiltInLiquor(liquorId)
@@ -246,7 +246,13 @@ export const storedLiquorUpdate = declareOperation({
         )
       : validate(StoredLiquorUpdateSchema, req.body);
     if (!req.is('multipart/form-data')) buildable(liquorId)(input);
-    const record = insertStoredLiquorVersion(ctx.db, ctx.accountId, liquorId, input.definition, ctx.clock());
+    const record = insertStoredLiquorVersion(
+      ctx.store.db,
+      ctx.accountId,
+      liquorId,
+      input.definition,
+      ctx.clock(),
+    );
     if (!record) throw problem('not-found', `This account has no stored liquor "${liquorId}".`);
     res.location(pathOf(liquorGet, { liquorId })).json(storedLiquorView(record));
   },
