@@ -1,5 +1,6 @@
 // Batch billing: a case that is refused costs nothing, as the same call on its own route would;
 // the quota still has to cover every case before the batch runs.
+import { sql } from 'drizzle-orm';
 import request from 'supertest';
 import { describe, expect, it } from 'vitest';
 import { makeHarness, usageRows } from './helpers.js';
@@ -62,7 +63,7 @@ describe('batch billing', () => {
     expect(res.status).toBe(200);
     expect(res.body).toMatchObject({ succeeded: 2, failed: 1, unitsCharged: 10 });
     expect((await usageRows(h.store)).at(-1)).toMatchObject({ operation: 'batch', units: 10 });
-    const log = h.sqlite.prepare('SELECT status FROM request_log').all();
+    const log = await h.store.rows(sql`SELECT status FROM request_log`);
     expect(log).toEqual([{ status: 200 }]);
   });
 
