@@ -50,6 +50,12 @@ async function stepsOfSteamState(h: Harness): Promise<{ requests: number; units:
   }));
 }
 
+/** An error's message with its cause's (Drizzle wraps the driver's error on PostgreSQL). */
+function messageOf(err: unknown): string {
+  const e = err as Error & { cause?: Error };
+  return `${e.message} ${e.cause?.message ?? ''}`;
+}
+
 /** Makes the database refuse usage events with this request id (stands in for a full disk or a constraint). */
 async function refuseRequestId(store: Store, requestId: string): Promise<void> {
   if (store.dialect === 'sqlite') {
@@ -115,7 +121,7 @@ describe('metering group commit', () => {
     const outcome: Record<string, string> = {};
     for (const id of ['good-1', 'bad', 'good-2']) {
       writer.submit(record(h, id, 1), (err) => {
-        outcome[id] = err === undefined ? 'committed' : (err as Error).message;
+        outcome[id] = err === undefined ? 'committed' : messageOf(err);
       });
     }
     await writer.flush();
