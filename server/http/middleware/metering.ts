@@ -5,8 +5,8 @@
  * handler) finishes the response, the request's record (usage event, daily roll-up, request-log
  * row) goes to the app's group-commit writer (server/accounts/metering.ts), and the original
  * `res.end`, which hands the bytes to the socket, is called only once the transaction holding the
- * record has committed: on the next turn of the event loop, together with the other requests
- * finished in this one. Express's `res.send`/`res.json` write the whole body through a single
+ * record has committed, together with the other requests finished in this turn of the event loop
+ * (on SQLite in the next turn; on PostgreSQL once its COMMIT is acknowledged). Express's `res.send`/`res.json` write the whole body through a single
  * `res.end`, so for JSON responses no byte leaves before the row is committed. (A streamed
  * response would send headers with its first `res.write`; its row is still committed before the
  * final chunk.) If the client disconnects first, the request is recorded with status 499 when
@@ -17,7 +17,9 @@
  * Quota: each request's meter is kept in a per-account in-flight set until its row is written.
  * `meter.usedByOthers()` (used by `chargeUnits` when units are charged, i.e. after the body is
  * read) returns the units committed this month plus those charged by the account's other
- * in-flight requests, so concurrent requests cannot spend the same remaining units twice.
+ * in-flight requests, so concurrent requests cannot spend the same remaining units twice. The
+ * committed units come from memory (server/accounts/metering.ts), so the check stays synchronous;
+ * the middleware awaits only the month's first read on PostgreSQL.
  */
 import type { Request, RequestHandler, Response } from 'express';
 import {
@@ -84,8 +86,8 @@ class MeteredRequest implements MeterState {
   quota: number;
   usedByOthersAtCharge?: number;
   private recorded = false;
-  /** The clock when the request was metered (its month total was read then). */
-  readonly startedAt: Date;
+  /** PostgreSQL: the clock when the request was metered (its month total was read then). */
+  startedAt: Date | undefined;
   private readonly siblings: Set<MeteredRequest>;
   private readonly originalEnd: (...args: unknown[]) => Response;
   /** The presented key, kept only when a logged body must be redacted. */
@@ -100,7 +102,6 @@ class MeteredRequest implements MeterState {
     private logOnly = false,
   ) {
     this.quota = auth.monthlyUnitQuota;
-    this.startedAt = ctx.deps.clock();
     let siblings = ctx.inFlight.get(auth.accountId);
     if (!siblings) {
       siblings = new Set();
@@ -133,7 +134,7 @@ class MeteredRequest implements MeterState {
       loadUnitsThisMonth(store, accountId, now)?.catch((err: unknown) =>
         console.error('[metering] could not read the month total:', err),
       );
-      committed = knownUnitsThisMonth(store, accountId, this.startedAt) ?? 0;
+      committed = knownUnitsThisMonth(store, accountId, this.startedAt ?? now) ?? 0;
     }
     return committed + pending;
   }
@@ -283,10 +284,13 @@ export function metering(deps: AppDeps): MeteringMiddleware {
     const meter = new MeteredRequest(ctx, req, res, auth);
     res.locals.meter = meter;
     install(meter, res);
-    // The month total the quota is checked against: in memory after the first request of the
-    // account's month (and always at once on SQLite); only that first read waits.
-    const loading = loadUnitsThisMonth(deps.store, auth.accountId, meter.startedAt);
-    if (loading) return loading.then(() => next());
+    // PostgreSQL: the month total the quota is checked against is read before the request goes on
+    // (only the account's first request of the month waits). SQLite reads it at the charge.
+    if (!deps.store.sqlite) {
+      meter.startedAt = deps.clock();
+      const loading = loadUnitsThisMonth(deps.store, auth.accountId, meter.startedAt);
+      if (loading) return loading.then(() => next());
+    }
     next();
   };
   return Object.assign(middleware, {
