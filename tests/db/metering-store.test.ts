@@ -5,7 +5,9 @@
 // PostgreSQL is a throw-away server (tests/support/postgres-server.ts); each test gets a fresh
 // database on it.
 import { sql } from 'drizzle-orm';
+import express, { type ErrorRequestHandler } from 'express';
 import pg from 'pg';
+import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import {
   committedUnitsThisMonth,
@@ -29,7 +31,13 @@ import {
   type Dialect,
   type Store,
 } from '../../server/db/store.js';
+import type { AppDeps } from '../../server/deps.js';
+import { metering } from '../../server/http/middleware/metering.js';
+import { chargeUnits, requireOperation } from '../../server/http/middleware/operation.js';
+import { requestId } from '../../server/http/middleware/request-id.js';
+import { ProblemError } from '../../server/http/problem.js';
 import { startPostgres, type PostgresServer } from '../support/postgres-server.js';
+import { testConfig } from '../http/helpers.js';
 
 let server: PostgresServer;
 let admin: pg.Pool;
@@ -391,5 +399,73 @@ describe.each(['sqlite', 'postgres'] as const)('metering on %s', (dialect) => {
     expect(await pruneRequestLog(f.store, NOW, 10)).toBe(1);
     expect(await count(f.store, 'request_log')).toBe(3);
     expect(await count(f.store, 'usage_events')).toBe(4);
+  });
+});
+
+describe.each(['sqlite', 'postgres'] as const)('the metering middleware on %s', (dialect) => {
+  /** Key checks and the rest of the app aside: the metering middleware and a charged route. */
+  function meteredApp(f: Fixture) {
+    const deps = {
+      store: f.store,
+      config: testConfig(),
+      clock: () => NOW,
+      engineVersion: 'test-engine',
+    } as AppDeps;
+    const app = express();
+    app.use(express.json());
+    app.use(requestId());
+    app.use((_req, res, next) => {
+      res.locals.auth = {
+        accountId: f.accountId,
+        keyId: f.keyId,
+        publicId: 'InventedPublicId1',
+        scopes: ['evaporators'],
+        rateLimitPerMinute: 1000,
+        monthlyUnitQuota: 100,
+        retainRequestBodies: false,
+      };
+      next();
+    });
+    app.use(metering(deps));
+    // 5 units (evaporators.multiple-effect) + `extra`; answers how many usage events were committed.
+    app.post('/charge', requireOperation('evaporators.multiple-effect'), async (req, res) => {
+      chargeUnits(res, Number(req.query.extra ?? 0));
+      res.json({ eventsBefore: await count(f.store, 'usage_events') });
+    });
+    const problems: ErrorRequestHandler = (err, _req, res, _next) => {
+      res.status(err instanceof ProblemError ? err.status : 500).json({ type: (err as ProblemError).type });
+    };
+    app.use(problems);
+    return app;
+  }
+
+  it('checks the quota against the units committed this month and answers once the row is committed', async () => {
+    const f = await fixture(dialect);
+    await recordRequest(f.store, record(f, 'earlier', 85)); // 85 of 100 used before the app starts
+    const app = meteredApp(f);
+    let eventsWhenAnswered = -1;
+    const first = await request(app)
+      .post('/charge')
+      .send({})
+      .then(async (res) => {
+        eventsWhenAnswered = await count(f.store, 'usage_events');
+        return res;
+      });
+    expect(first.status).toBe(200);
+    expect(first.body.eventsBefore).toBe(1);
+    expect(eventsWhenAnswered).toBe(2); // its own row was committed before the answer left
+    // 90 used: two requests at once for the last 10 units, 7 each: only one fits.
+    const pair = await Promise.all([
+      request(app).post('/charge?extra=2').send({}),
+      request(app).post('/charge?extra=2').send({}),
+    ]);
+    expect(pair.map((r) => r.status).sort()).toEqual([200, 429]);
+    expect(pair.find((r) => r.status === 429)!.body.type).toBe('quota-exceeded');
+    // 97 used: 5 more do not fit.
+    expect((await request(app).post('/charge').send({})).status).toBe(429);
+    const usage = await monthUsage(f.store, f.accountId, NOW);
+    expect(usage.quota.used).toBe(97);
+    expect(usage.totals).toEqual({ requests: 5, units: 97, errors: 2 });
+    expect(await committedUnitsThisMonth(f.store, f.accountId, NOW)).toBe(97);
   });
 });
