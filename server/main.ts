@@ -163,15 +163,18 @@ async function main(): Promise<void> {
     `[start-up] server secret from ${config.secretSource === 'env' ? 'EBULLIO_SECRET' : config.secretSource}`,
   );
 
-  const prune = () => {
-    const n = pruneRequestLog(sqlite, clock(), config.requestLogRetentionDays);
+  const prune = async () => {
+    const n = await pruneRequestLog(store, clock(), config.requestLogRetentionDays);
     if (n > 0)
       console.log(
         `[maintenance] pruned ${n} request-log rows older than ${config.requestLogRetentionDays} days`,
       );
   };
-  prune();
-  const pruneTimer = setInterval(prune, PRUNE_INTERVAL_MS);
+  await prune();
+  // A later pass that fails (the database briefly unreachable) is logged; the next one retries.
+  const pruneTimer = setInterval(() => {
+    prune().catch((err: unknown) => console.error('[maintenance] request-log pruning failed:', err));
+  }, PRUNE_INTERVAL_MS);
   pruneTimer.unref();
 
   let mail: MailCapture | undefined;

@@ -1,12 +1,11 @@
 /**
  * Metering: for each request one usage_events row, its share of the usage_daily roll-up, one
- * request_log row and the key's last_used_at, committed in a synchronous better-sqlite3
- * transaction before the response leaves.
+ * request_log row and the key's last_used_at, committed before the response leaves.
  *
  * Group commit. The HTTP layer hands each finished request to a {@link MeteringWriter} and holds
  * the response bytes back until the writer reports the commit. The writer gathers the requests
  * finished in one turn of the event loop and commits them together in ONE transaction on the next
- * `setImmediate` (i.e. after the poll phase has handled every socket that was ready), so the WAL
+ * `setImmediate` (i.e. after the poll phase has handled every socket that was ready), so the
  * pages of the tables and indexes are written once per group, not once per request, and the daily
  * roll-up gets one upsert per (account, day, operation) in the group. The promise is unchanged: a
  * response is written only after the transaction holding its row has committed, so a process
@@ -14,18 +13,35 @@
  * were in flight). If the group's transaction fails, each record is retried alone, so one bad
  * record cannot cost the others their response.
  *
- * {@link recordRequest} is the same write for one record, synchronously (seeding, tests).
+ * Two paths behind the same writer:
+ * - **SQLite** (the measured hot path, `npm run bench`, section api): prepared statements in one
+ *   synchronous better-sqlite3 transaction per group, committed on `store.sqlite` within the
+ *   `setImmediate` callback.
+ * - **PostgreSQL**: the same group in one transaction on one pooled connection, as a multi-row
+ *   INSERT into usage_events and into request_log, one multi-row upsert of the group's
+ *   (account, day, operation) roll-ups (sorted, so two nodes lock them in the same order) and an
+ *   UPDATE per key for last_used_at. Groups go one at a time: what finishes while a group commits
+ *   forms the next group.
+ *
+ * {@link recordRequest} is the same write for one record (seeding, tests).
  *
  * Month totals. Every charged request checks the account's quota against the units committed
  * this month. This module is the only writer of usage_daily, so it keeps those totals per
- * account in memory ({@link committedUnitsThisMonth}): read from usage_daily on first use in a
- * month, then advanced by each commit, in the same synchronous step that commits the rows. (A
- * second process writing usage_daily to the same file would need the query instead; one server
- * process per database is the supported layout, see middleware/rate-limit.ts.)
+ * account in memory, per database ({@link knownUnitsThisMonth}, {@link committedUnitsThisMonth}):
+ * read from usage_daily on first use in a month, then advanced by each commit. On SQLite the
+ * first read is synchronous, so the quota check never waits; on PostgreSQL it is queued behind the
+ * group being committed (so it neither misses nor double-counts that group), and the metering
+ * middleware awaits it before the request goes on. (A second process writing usage_daily — a
+ * second server on the same SQLite file or PostgreSQL database — is not seen by these totals;
+ * one server process per database is the supported layout for quotas, see
+ * middleware/rate-limit.ts.)
  */
 import { setImmediate as nextTurn } from 'node:timers';
+import { and, eq, isNull, lt, or, sql } from 'drizzle-orm';
+import type { Statement } from 'better-sqlite3';
 import type { Sqlite } from '../db/client.js';
-import { unitsUsedThisMonth, utcDay, utcMonth } from './usage.js';
+import type { Store } from '../db/store.js';
+import { monthStartUtc, nextMonthStartUtc, unitsUsedThisMonth, utcDay, utcMonth } from './usage.js';
 
 export interface RequestRecord {
   at: Date;
@@ -51,31 +67,104 @@ export interface RequestRecord {
 /** last_used_at is written at most once a minute per key, to keep the hot path cheap. */
 const LAST_USED_GRANULARITY_MS = 60_000;
 
+/** Rows per multi-row INSERT on PostgreSQL (its statements take at most 65 535 parameters). */
+const ROWS_PER_INSERT = 1000;
+
 type CommitRecords = (records: readonly RequestRecord[]) => void;
 
 const committers = new WeakMap<Sqlite, CommitRecords>();
 
-/** Units committed per account in one calendar month (UTC), per connection. */
+/** Units committed per account in one calendar month (UTC), per database. */
 type MonthTotals = Map<number, { month: string; units: number }>;
-const monthTotals = new WeakMap<Sqlite, MonthTotals>();
-function totalsFor(sqlite: Sqlite): MonthTotals {
-  let totals = monthTotals.get(sqlite);
+const monthTotals = new WeakMap<object, MonthTotals>();
+
+/** The connection (SQLite) or pool (PostgreSQL) a store writes through: the month totals' key. */
+function databaseOf(store: Store): object {
+  return store.sqlite ?? store.pool ?? store;
+}
+
+function totalsFor(database: object): MonthTotals {
+  let totals = monthTotals.get(database);
   if (!totals) {
     totals = new Map();
-    monthTotals.set(sqlite, totals);
+    monthTotals.set(database, totals);
   }
   return totals;
 }
 
-/** Units the account has committed in the calendar month (UTC) containing `now`. */
-export function committedUnitsThisMonth(sqlite: Sqlite, accountId: number, now: Date): number {
-  const totals = totalsFor(sqlite);
+/** Committed: advance the month totals already known (others are read on first use). */
+function advanceTotals(totals: MonthTotals, records: readonly RequestRecord[]): void {
+  for (const r of records) {
+    const known = totals.get(r.accountId);
+    if (known?.month === utcMonth(r.at)) known.units += r.units;
+  }
+}
+
+/** The month-sum statement, prepared once per connection (read on the first charge of a month). */
+const monthSums = new WeakMap<Sqlite, Statement<[number, string, string], { units: number }>>();
+
+function sqliteUnitsThisMonth(sqlite: Sqlite, accountId: number, now: Date): number {
+  let stmt = monthSums.get(sqlite);
+  if (!stmt) {
+    stmt = sqlite.prepare<[number, string, string], { units: number }>(
+      'SELECT COALESCE(SUM(units), 0) AS units FROM usage_daily WHERE account_id = ? AND day >= ? AND day < ?',
+    );
+    monthSums.set(sqlite, stmt);
+  }
+  const row = stmt.get(accountId, utcDay(monthStartUtc(now)), utcDay(nextMonthStartUtc(now)));
+  return row?.units ?? 0;
+}
+
+/**
+ * Units the account has committed in the calendar month (UTC) containing `now`, if known without
+ * waiting: from memory, or on SQLite read now. Undefined on PostgreSQL before the month's first
+ * read ({@link committedUnitsThisMonth}, {@link loadUnitsThisMonth}).
+ */
+export function knownUnitsThisMonth(store: Store, accountId: number, now: Date): number | undefined {
+  const totals = totalsFor(databaseOf(store));
   const month = utcMonth(now);
   const known = totals.get(accountId);
   if (known?.month === month) return known.units;
-  const units = unitsUsedThisMonth(sqlite, accountId, now);
+  if (!store.sqlite) return undefined;
+  const units = sqliteUnitsThisMonth(store.sqlite, accountId, now);
   totals.set(accountId, { month, units });
   return units;
+}
+
+/**
+ * Reads the month total into memory unless it is known: undefined when nothing had to wait (always
+ * on SQLite), else a promise that settles once it is read. The metering middleware awaits it
+ * before the request goes on, so the quota check itself stays synchronous.
+ */
+export function loadUnitsThisMonth(store: Store, accountId: number, now: Date): Promise<number> | undefined {
+  if (knownUnitsThisMonth(store, accountId, now) !== undefined) return undefined;
+  const totals = totalsFor(databaseOf(store));
+  const month = utcMonth(now);
+  // Behind the group being committed: the sum then holds every committed group, and the groups
+  // after it advance the total (the read can neither miss nor count twice a group in flight).
+  return serial(store, async () => {
+    const known = totals.get(accountId);
+    if (known?.month === month) return known.units;
+    const units = await unitsUsedThisMonth(store, accountId, now);
+    totals.set(accountId, { month, units });
+    return units;
+  });
+}
+
+/** Units the account has committed in the calendar month (UTC) containing `now`. */
+export async function committedUnitsThisMonth(store: Store, accountId: number, now: Date): Promise<number> {
+  return knownUnitsThisMonth(store, accountId, now) ?? (await loadUnitsThisMonth(store, accountId, now))!;
+}
+
+/** The PostgreSQL work of one store (group commits, month reads), one at a time, in order. */
+const queues = new WeakMap<Store, Promise<unknown>>();
+function serial<T>(store: Store, job: () => Promise<T>): Promise<T> {
+  const result = (queues.get(store) ?? Promise.resolve()).then(job);
+  queues.set(
+    store,
+    result.catch(() => undefined),
+  );
+  return result;
 }
 
 function prepareCommit(sqlite: Sqlite): CommitRecords {
@@ -161,11 +250,7 @@ function prepareCommit(sqlite: Sqlite): CommitRecords {
   const totals = totalsFor(sqlite);
   return (records) => {
     write(records);
-    // Committed: advance the month totals already known (others are read on first use).
-    for (const r of records) {
-      const known = totals.get(r.accountId);
-      if (known?.month === utcMonth(r.at)) known.units += r.units;
-    }
+    advanceTotals(totals, records);
   };
 }
 
@@ -178,9 +263,130 @@ function committerFor(sqlite: Sqlite): CommitRecords {
   return commit;
 }
 
-/** Writes one record durably (synchronous transaction). Throws if the database refuses. */
-export function recordRequest(sqlite: Sqlite, record: RequestRecord): void {
-  committerFor(sqlite)([record]);
+interface DailyRoll {
+  accountId: number;
+  day: string;
+  operation: string;
+  requests: number;
+  units: number;
+  errors: number;
+}
+
+function chunks<T>(rows: readonly T[]): T[][] {
+  const out: T[][] = [];
+  for (let i = 0; i < rows.length; i += ROWS_PER_INSERT) out.push(rows.slice(i, i + ROWS_PER_INSERT));
+  return out;
+}
+
+/**
+ * The PostgreSQL write of a group: the same rows as the SQLite path, in one transaction, as few
+ * statements as the group allows. The roll-ups and key updates are sorted, so two nodes that
+ * commit groups touching the same rows take their locks in the same order (no deadlock).
+ */
+async function commitPostgres(store: Store, records: readonly RequestRecord[]): Promise<void> {
+  const events: (typeof store.t.usageEvents.$inferInsert)[] = [];
+  const logs: (typeof store.t.requestLog.$inferInsert)[] = [];
+  const daily = new Map<string, DailyRoll>();
+  const lastUse = new Map<number, number>();
+  for (const r of records) {
+    logs.push({
+      requestId: r.requestId,
+      at: r.at,
+      accountId: r.accountId,
+      keyId: r.keyId,
+      method: r.method,
+      path: r.path,
+      status: r.status,
+      latencyMs: r.latencyMs,
+      requestBody: r.requestBody,
+      responseBody: r.responseBody,
+      engineVersion: r.engineVersion,
+    });
+    // A refused key's (logOnly) request gets its request-log row and nothing else.
+    if (r.logOnly) continue;
+    events.push({
+      at: r.at,
+      accountId: r.accountId,
+      keyId: r.keyId,
+      operation: r.operation,
+      status: r.status,
+      units: r.units,
+      latencyMs: r.latencyMs,
+      requestId: r.requestId,
+      engineVersion: r.engineVersion,
+    });
+    const isError = r.status >= 400 ? 1 : 0;
+    const day = utcDay(r.at);
+    const rollKey = `${r.accountId}\u0000${day}\u0000${r.operation}`;
+    const roll = daily.get(rollKey);
+    if (roll) {
+      roll.requests += 1;
+      roll.units += r.units;
+      roll.errors += isError;
+    } else {
+      daily.set(rollKey, {
+        accountId: r.accountId,
+        day,
+        operation: r.operation,
+        requests: 1,
+        units: r.units,
+        errors: isError,
+      });
+    }
+    const at = r.at.getTime();
+    lastUse.set(r.keyId, Math.max(lastUse.get(r.keyId) ?? at, at));
+  }
+  const rolls = [...daily.values()].sort(
+    (a, b) =>
+      a.accountId - b.accountId ||
+      (a.day < b.day ? -1 : a.day > b.day ? 1 : 0) ||
+      (a.operation < b.operation ? -1 : a.operation > b.operation ? 1 : 0),
+  );
+  const keyUses = [...lastUse].sort((a, b) => a[0] - b[0]);
+  await store.transaction(async (tx) => {
+    const { usageEvents, usageDaily, requestLog, apiKeys } = tx.t;
+    for (const rows of chunks(events)) await tx.db.insert(usageEvents).values(rows);
+    for (const rows of chunks(logs)) await tx.db.insert(requestLog).values(rows);
+    for (const rows of chunks(rolls)) {
+      await tx.db
+        .insert(usageDaily)
+        .values(rows)
+        .onConflictDoUpdate({
+          target: [usageDaily.accountId, usageDaily.day, usageDaily.operation],
+          // Qualified: a bare "requests" is ambiguous between the row and excluded on PostgreSQL.
+          set: {
+            requests: sql`usage_daily.requests + excluded.requests`,
+            units: sql`usage_daily.units + excluded.units`,
+            errors: sql`usage_daily.errors + excluded.errors`,
+          },
+        });
+    }
+    for (const [keyId, at] of keyUses) {
+      await tx.db
+        .update(apiKeys)
+        .set({ lastUsedAt: new Date(at) })
+        .where(
+          and(
+            eq(apiKeys.id, keyId),
+            or(isNull(apiKeys.lastUsedAt), lt(apiKeys.lastUsedAt, new Date(at - LAST_USED_GRANULARITY_MS))),
+          ),
+        );
+    }
+  });
+  advanceTotals(totalsFor(databaseOf(store)), records);
+}
+
+/** Writes one record durably in its own transaction. Rejects if the database refuses. */
+export async function recordRequest(store: Store, record: RequestRecord): Promise<void> {
+  if (store.sqlite) committerFor(store.sqlite)([record]);
+  else await serial(store, () => commitPostgres(store, [record]));
+}
+
+/** Writes several records durably in one transaction (the demo seed's past usage). */
+export async function recordRequests(store: Store, records: readonly RequestRecord[]): Promise<void> {
+  if (records.length === 0) return;
+  if (store.sqlite) committerFor(store.sqlite)(records);
+  else await serial(store, () => commitPostgres(store, records));
 }
 
 /** Called once the record is committed (`error` undefined) or could not be written. */
@@ -189,9 +395,12 @@ export type CommitCallback = (error?: unknown) => void;
 export interface MeteringWriter {
   /** Queues a record for the next group commit; `done` runs after that commit (or its failure). */
   submit(record: RequestRecord, done: CommitCallback): void;
-  /** Commits what is queued now, synchronously. */
-  flush(): void;
-  /** Records queued and not yet committed. */
+  /**
+   * Commits what is queued now; resolves once it is committed (and its callbacks have run). On
+   * SQLite the commit is done before `flush` returns.
+   */
+  flush(): Promise<void>;
+  /** Records queued and not yet handed to a commit. */
   readonly pending: number;
 }
 
@@ -204,8 +413,12 @@ function settle(cb: CommitCallback, error?: unknown): void {
   }
 }
 
-/** A group-commit writer on this connection (one per app). */
-export function meteringWriter(sqlite: Sqlite): MeteringWriter {
+/** A group-commit writer on this store (one per app): SQLite or PostgreSQL, see the module comment. */
+export function meteringWriter(store: Store): MeteringWriter {
+  return store.sqlite ? sqliteWriter(store.sqlite) : postgresWriter(store);
+}
+
+function sqliteWriter(sqlite: Sqlite): MeteringWriter {
   const commit = committerFor(sqlite);
   let records: RequestRecord[] = [];
   let callbacks: CommitCallback[] = [];
@@ -247,6 +460,74 @@ export function meteringWriter(sqlite: Sqlite): MeteringWriter {
       if (!scheduled) {
         scheduled = true;
         nextTurn(flush);
+      }
+    },
+    flush() {
+      flush();
+      return Promise.resolve();
+    },
+    get pending() {
+      return records.length;
+    },
+  };
+}
+
+function postgresWriter(store: Store): MeteringWriter {
+  let records: RequestRecord[] = [];
+  let callbacks: CommitCallback[] = [];
+  let scheduled = false;
+  /** The commit loop while it runs: one group at a time; what arrives meanwhile is the next. */
+  let running: Promise<void> | undefined;
+
+  const commitGroup = async (group: RequestRecord[], done: CommitCallback[]): Promise<void> => {
+    try {
+      await serial(store, () => commitPostgres(store, group));
+    } catch {
+      // The group was rolled back as a whole: retry each record alone so only a bad one fails.
+      for (let i = 0; i < group.length; i++) {
+        let error: unknown;
+        try {
+          await serial(store, () => commitPostgres(store, [group[i]!]));
+        } catch (err) {
+          error = err;
+        }
+        settle(done[i]!, error);
+      }
+      return;
+    }
+    // Released only now: every response of the group leaves after its COMMIT.
+    for (const cb of done) settle(cb);
+  };
+
+  const run = async (): Promise<void> => {
+    try {
+      while (records.length > 0) {
+        const group = records;
+        const done = callbacks;
+        records = [];
+        callbacks = [];
+        await commitGroup(group, done);
+      }
+    } finally {
+      running = undefined;
+    }
+  };
+
+  const flush = (): Promise<void> => {
+    scheduled = false;
+    if (running) return running;
+    if (records.length === 0) return Promise.resolve();
+    running = run();
+    return running;
+  };
+
+  return {
+    submit(record, done) {
+      records.push(record);
+      callbacks.push(done);
+      if (!scheduled) {
+        scheduled = true;
+        nextTurn(() => void flush());
       }
     },
     flush,

@@ -1,13 +1,14 @@
 /**
- * Request-log queries for the console: filters, sort and paging in SQL (never in memory), and a
- * bounded row iterator for the CSV export.
+ * Request-log queries for the console: filters, sort and paging in SQL (never in memory), and the
+ * bounded rows of the CSV export.
  *
  * request_log has no operation column; the operation and the units come from the usage_events row
  * written in the same metering transaction (same request id, account and instant), joined here.
  *
  * `scope` limits the rows to some accounts (a developer's memberships); null means all accounts.
  */
-import type { Sqlite } from '../db/client.js';
+import { sql, type SQL } from 'drizzle-orm';
+import { readInstant, type Store } from '../db/store.js';
 
 export interface RequestLogFilterInput {
   accountId?: number | undefined;
@@ -51,70 +52,74 @@ const SORT_COLUMN: Record<RequestLogSort, string> = {
   status: 'rl.status',
 };
 
-const FROM = `FROM request_log rl
+const FROM = sql.raw(`FROM request_log rl
   LEFT JOIN usage_events ue
-    ON ue.request_id = rl.request_id AND ue.account_id = rl.account_id AND ue.at = rl.at`;
+    ON ue.request_id = rl.request_id AND ue.account_id = rl.account_id AND ue.at = rl.at`);
 
-const COLUMNS = `rl.id AS id, rl.request_id AS requestId, rl.at AS at, rl.account_id AS accountId,
-  rl.key_id AS keyId, rl.method AS method, rl.path AS path, ue.operation AS operation,
-  rl.status AS status, rl.latency_ms AS latencyMs, ue.units AS units,
-  (SELECT a.name FROM accounts a WHERE a.id = rl.account_id) AS accountName,
-  (SELECT k.name FROM api_keys k WHERE k.id = rl.key_id) AS keyName`;
+// Aliases quoted: PostgreSQL folds unquoted names to lower case.
+const COLUMNS = sql.raw(`rl.id AS id, rl.request_id AS "requestId", rl.at AS at, rl.account_id AS "accountId",
+  rl.key_id AS "keyId", rl.method AS method, rl.path AS path, ue.operation AS operation,
+  rl.status AS status, rl.latency_ms AS "latencyMs", ue.units AS units,
+  (SELECT a.name FROM accounts a WHERE a.id = rl.account_id) AS "accountName",
+  (SELECT k.name FROM api_keys k WHERE k.id = rl.key_id) AS "keyName"`);
 
-type RawRow = Omit<RequestLogRow, 'at'> & { at: number };
+/** As the driver returns it: a time as epoch ms or a Date, a bigint id as a string (PostgreSQL). */
+type RawRow = Omit<RequestLogRow, 'at' | 'id'> & { at: unknown; id: number | string };
 
-function toRow<T extends RawRow>(raw: T): Omit<T, 'at'> & { at: Date } {
-  return { ...raw, at: new Date(raw.at) };
+function toRow<T extends RawRow>(raw: T): Omit<T, 'at' | 'id'> & { at: Date; id: number } {
+  return { ...raw, id: Number(raw.id), at: readInstant(raw.at) };
 }
 
-/** The WHERE clause and its parameters. An empty scope matches nothing. */
-export function requestLogWhere(
+/** The conditions of a filter and scope. An empty scope matches nothing. */
+function requestLogConditions(
+  store: Store,
   filter: RequestLogFilterInput,
   scope: readonly number[] | null,
-): { sql: string; params: (string | number)[] } {
-  const clauses: string[] = [];
-  const params: (string | number)[] = [];
+): SQL[] {
+  const clauses: SQL[] = [];
   if (scope !== null) {
-    if (scope.length === 0) return { sql: 'WHERE 0', params: [] };
-    clauses.push(`rl.account_id IN (${scope.map(() => '?').join(',')})`);
-    params.push(...scope);
+    if (scope.length === 0) return [sql`1 = 0`];
+    clauses.push(
+      sql`rl.account_id IN (${sql.join(
+        scope.map((id) => sql`${id}`),
+        sql`, `,
+      )})`,
+    );
   }
-  if (filter.accountId !== undefined) {
-    clauses.push('rl.account_id = ?');
-    params.push(filter.accountId);
-  }
-  if (filter.keyId !== undefined) {
-    clauses.push('rl.key_id = ?');
-    params.push(filter.keyId);
-  }
-  if (filter.operation !== undefined) {
-    clauses.push('ue.operation = ?');
-    params.push(filter.operation);
-  }
+  if (filter.accountId !== undefined) clauses.push(sql`rl.account_id = ${filter.accountId}`);
+  if (filter.keyId !== undefined) clauses.push(sql`rl.key_id = ${filter.keyId}`);
+  if (filter.operation !== undefined) clauses.push(sql`ue.operation = ${filter.operation}`);
   if (filter.status !== undefined) {
     const cls = /^([1-5])xx$/.exec(filter.status);
     if (cls) {
       const base = Number(cls[1]) * 100;
-      clauses.push('rl.status >= ? AND rl.status < ?');
-      params.push(base, base + 100);
+      clauses.push(sql`rl.status >= ${base} AND rl.status < ${base + 100}`);
     } else {
-      clauses.push('rl.status = ?');
-      params.push(Number(filter.status));
+      clauses.push(sql`rl.status = ${Number(filter.status)}`);
     }
   }
-  if (filter.from !== undefined) {
-    clauses.push('rl.at >= ?');
-    params.push(filter.from.getTime());
-  }
-  if (filter.to !== undefined) {
-    clauses.push('rl.at < ?');
-    params.push(filter.to.getTime());
-  }
-  if (filter.requestId !== undefined) {
-    clauses.push('rl.request_id = ?');
-    params.push(filter.requestId);
-  }
-  return { sql: clauses.length > 0 ? `WHERE ${clauses.join(' AND ')}` : '', params };
+  if (filter.from !== undefined) clauses.push(sql`rl.at >= ${store.instant(filter.from)}`);
+  if (filter.to !== undefined) clauses.push(sql`rl.at < ${store.instant(filter.to)}`);
+  if (filter.requestId !== undefined) clauses.push(sql`rl.request_id = ${filter.requestId}`);
+  return clauses;
+}
+
+function whereOf(clauses: SQL[]): SQL {
+  return clauses.length > 0 ? sql`WHERE ${sql.join(clauses, sql` AND `)}` : sql``;
+}
+
+/** The WHERE clause (empty when nothing filters). An empty scope matches nothing. */
+export function requestLogWhere(
+  store: Store,
+  filter: RequestLogFilterInput,
+  scope: readonly number[] | null,
+): SQL {
+  return whereOf(requestLogConditions(store, filter, scope));
+}
+
+function orderBy(sort: RequestLogSort, order: 'asc' | 'desc'): SQL {
+  const dir = order === 'asc' ? 'ASC' : 'DESC';
+  return sql.raw(`ORDER BY ${SORT_COLUMN[sort]} ${dir}, rl.id ${dir}`);
 }
 
 export interface RequestLogPageInput extends RequestLogFilterInput {
@@ -125,67 +130,58 @@ export interface RequestLogPageInput extends RequestLogFilterInput {
 }
 
 /** One page of matching rows and the total count. Ties in the sort key are broken by id. */
-export function queryRequestLog(
-  sqlite: Sqlite,
+export async function queryRequestLog(
+  store: Store,
   input: RequestLogPageInput,
   scope: readonly number[] | null,
-): { items: RequestLogRow[]; total: number; page: number; pageSize: number } {
-  const where = requestLogWhere(input, scope);
-  const total = (
-    sqlite.prepare(`SELECT COUNT(*) AS n ${FROM} ${where.sql}`).get(...where.params) as { n: number }
-  ).n;
-  const dir = input.order === 'asc' ? 'ASC' : 'DESC';
-  const rows = sqlite
-    .prepare(
-      `SELECT ${COLUMNS} ${FROM} ${where.sql}
-       ORDER BY ${SORT_COLUMN[input.sort]} ${dir}, rl.id ${dir} LIMIT ? OFFSET ?`,
-    )
-    .all(...where.params, input.pageSize, (input.page - 1) * input.pageSize) as RawRow[];
+): Promise<{ items: RequestLogRow[]; total: number; page: number; pageSize: number }> {
+  const where = requestLogWhere(store, input, scope);
+  const total = await countWhere(store, where);
+  const rows = await store.rows<RawRow>(
+    sql`SELECT ${COLUMNS} ${FROM} ${where} ${orderBy(input.sort, input.order)}
+        LIMIT ${input.pageSize} OFFSET ${(input.page - 1) * input.pageSize}`,
+  );
   return { items: rows.map(toRow), total, page: input.page, pageSize: input.pageSize };
 }
 
 /** One row with its bodies, if it is inside the scope. */
-export function getRequestLogEntry(
-  sqlite: Sqlite,
+export async function getRequestLogEntry(
+  store: Store,
   id: number,
   scope: readonly number[] | null,
-): RequestLogDetailRow | undefined {
-  const where = requestLogWhere({}, scope);
-  const extra = where.sql === '' ? 'WHERE rl.id = ?' : `${where.sql} AND rl.id = ?`;
-  const raw = sqlite
-    .prepare(
-      `SELECT ${COLUMNS}, rl.engine_version AS engineVersion, rl.request_body AS requestBody,
-         rl.response_body AS responseBody ${FROM} ${extra}`,
-    )
-    .get(...where.params, id) as (RawRow & Omit<RequestLogDetailRow, keyof RequestLogRow>) | undefined;
+): Promise<RequestLogDetailRow | undefined> {
+  const where = whereOf([...requestLogConditions(store, {}, scope), sql`rl.id = ${id}`]);
+  const [raw] = await store.rows<RawRow & Omit<RequestLogDetailRow, keyof RequestLogRow>>(
+    sql`SELECT ${COLUMNS}, rl.engine_version AS "engineVersion", rl.request_body AS "requestBody",
+          rl.response_body AS "responseBody" ${FROM} ${where}`,
+  );
   return raw ? toRow(raw) : undefined;
 }
 
-/**
- * Matching rows in the given order, at most `cap` of them, read lazily (better-sqlite3's
- * iterate), so an export never holds the whole table in memory.
- */
-export function* iterateRequestLog(
-  sqlite: Sqlite,
+/** Matching rows in the given order, at most `cap` of them (the CSV export). */
+export async function listRequestLog(
+  store: Store,
   input: RequestLogFilterInput & { sort: RequestLogSort; order: 'asc' | 'desc' },
   scope: readonly number[] | null,
   cap: number,
-): Generator<RequestLogRow> {
-  const where = requestLogWhere(input, scope);
-  const dir = input.order === 'asc' ? 'ASC' : 'DESC';
-  const stmt = sqlite.prepare(
-    `SELECT ${COLUMNS} ${FROM} ${where.sql} ORDER BY ${SORT_COLUMN[input.sort]} ${dir}, rl.id ${dir} LIMIT ?`,
+): Promise<RequestLogRow[]> {
+  const where = requestLogWhere(store, input, scope);
+  const rows = await store.rows<RawRow>(
+    sql`SELECT ${COLUMNS} ${FROM} ${where} ${orderBy(input.sort, input.order)} LIMIT ${cap}`,
   );
-  for (const raw of stmt.iterate(...where.params, cap) as IterableIterator<RawRow>) yield toRow(raw);
+  return rows.map(toRow);
+}
+
+async function countWhere(store: Store, where: SQL): Promise<number> {
+  const [row] = await store.rows<{ n: number | string }>(sql`SELECT COUNT(*) AS n ${FROM} ${where}`);
+  return Number(row?.n ?? 0);
 }
 
 /** Number of matching rows (to tell an export that it was capped). */
-export function countRequestLog(
-  sqlite: Sqlite,
+export async function countRequestLog(
+  store: Store,
   filter: RequestLogFilterInput,
   scope: readonly number[] | null,
-): number {
-  const where = requestLogWhere(filter, scope);
-  return (sqlite.prepare(`SELECT COUNT(*) AS n ${FROM} ${where.sql}`).get(...where.params) as { n: number })
-    .n;
+): Promise<number> {
+  return countWhere(store, requestLogWhere(store, filter, scope));
 }

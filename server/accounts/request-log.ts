@@ -7,7 +7,8 @@
  * problem's instance), nor the key presented with the request or its secret part. Bodies are
  * stored only for accounts with `retain_request_bodies` on, truncated to a byte limit.
  */
-import type { Sqlite } from '../db/client.js';
+import { sql } from 'drizzle-orm';
+import type { Store } from '../db/store.js';
 import { ISSUED_KEY_SHAPED, KEY_SHAPED_PATTERN, secretPartOf } from './keys.js';
 
 const SECRET_PROPERTY = /pass(word)?|secret|token|authori[sz]ation|api[-_]?key|^key$|credential|cookie/i;
@@ -124,7 +125,7 @@ function serialiseBody(body: unknown, limitBytes: number, ctx: RedactionContext)
 }
 
 /** Deletes request_log rows older than `retentionDays` before `now`; returns how many. */
-export function pruneRequestLog(sqlite: Sqlite, now: Date, retentionDays: number): number {
-  const cutoff = now.getTime() - retentionDays * 86_400_000;
-  return sqlite.prepare('DELETE FROM request_log WHERE at < ?').run(cutoff).changes;
+export async function pruneRequestLog(store: Store, now: Date, retentionDays: number): Promise<number> {
+  const cutoff = new Date(now.getTime() - retentionDays * 86_400_000);
+  return store.execute(sql`DELETE FROM request_log WHERE at < ${store.instant(cutoff)}`);
 }

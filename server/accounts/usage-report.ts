@@ -5,8 +5,9 @@
  *
  * `scope` limits every figure to some accounts (a developer's memberships); null means all.
  */
-import type { Sqlite } from '../db/client.js';
-import { monthStartUtc, nextMonthStartUtc, utcDay } from './usage.js';
+import { sql, type SQL } from 'drizzle-orm';
+import type { Store } from '../db/store.js';
+import { bytewise, monthStartUtc, nextMonthStartUtc, utcDay } from './usage.js';
 
 export interface UsageFigures {
   requests: number;
@@ -16,10 +17,20 @@ export interface UsageFigures {
 
 export type UsageGroupBy = 'day' | 'operation' | 'account';
 
-function scopeClause(column: string, scope: readonly number[] | null): { sql: string; params: number[] } {
-  if (scope === null) return { sql: '1', params: [] };
-  if (scope.length === 0) return { sql: '0', params: [] };
-  return { sql: `${column} IN (${scope.map(() => '?').join(',')})`, params: [...scope] };
+/** The condition limiting rows to the scope's accounts (`column` is a fixed name, never input). */
+function scopeClause(column: string, scope: readonly number[] | null): SQL {
+  if (scope === null) return sql`1 = 1`;
+  if (scope.length === 0) return sql`1 = 0`;
+  return sql`${sql.raw(column)} IN (${sql.join(
+    scope.map((id) => sql`${id}`),
+    sql`, `,
+  )})`;
+}
+
+/** Sums are bigint (a string) on PostgreSQL, counts too: read as numbers. */
+type Raw<T> = { [K in keyof T]: T[K] extends number ? number | string : T[K] };
+function figuresOf<T extends Raw<UsageFigures>>(r: T): Omit<T, keyof UsageFigures> & UsageFigures {
+  return { ...r, requests: Number(r.requests), units: Number(r.units), errors: Number(r.errors) };
 }
 
 /** The day after a 'YYYY-MM-DD' day. */
@@ -43,40 +54,37 @@ export function nearestRank(p: number, n: number): number {
   return Math.max(1, Math.ceil((p / 100) * n));
 }
 
-export function percentileLatencyMs(
-  sqlite: Sqlite,
+export async function percentileLatencyMs(
+  store: Store,
   p: number,
   fromMs: number,
   toMs: number,
   scope: readonly number[] | null,
-): number | null {
-  const s = scopeClause('account_id', scope);
-  const where = `WHERE at >= ? AND at < ? AND ${s.sql}`;
-  const n = (
-    sqlite.prepare(`SELECT COUNT(*) AS n FROM usage_events ${where}`).get(fromMs, toMs, ...s.params) as {
-      n: number;
-    }
-  ).n;
+): Promise<number | null> {
+  const where = sql`WHERE at >= ${store.instant(new Date(fromMs))} AND at < ${store.instant(new Date(toMs))}
+    AND ${scopeClause('account_id', scope)}`;
+  const [count] = await store.rows<{ n: number | string }>(
+    sql`SELECT COUNT(*) AS n FROM usage_events ${where}`,
+  );
+  const n = Number(count?.n ?? 0);
   if (n === 0) return null;
-  const row = sqlite
-    .prepare(`SELECT latency_ms AS v FROM usage_events ${where} ORDER BY latency_ms LIMIT 1 OFFSET ?`)
-    .get(fromMs, toMs, ...s.params, nearestRank(p, n) - 1) as { v: number };
-  return row.v;
+  const [row] = await store.rows<{ v: number }>(
+    sql`SELECT latency_ms AS v FROM usage_events ${where} ORDER BY latency_ms LIMIT 1 OFFSET ${nearestRank(p, n) - 1}`,
+  );
+  return Number(row!.v);
 }
 
-function figures(
-  sqlite: Sqlite,
+async function figures(
+  store: Store,
   fromDay: string,
   toDayExclusive: string,
   scope: readonly number[] | null,
-): UsageFigures {
-  const s = scopeClause('account_id', scope);
-  return sqlite
-    .prepare(
-      `SELECT COALESCE(SUM(requests),0) AS requests, COALESCE(SUM(units),0) AS units, COALESCE(SUM(errors),0) AS errors
-       FROM usage_daily WHERE day >= ? AND day < ? AND ${s.sql}`,
-    )
-    .get(fromDay, toDayExclusive, ...s.params) as UsageFigures;
+): Promise<UsageFigures> {
+  const [row] = await store.rows<Raw<UsageFigures>>(
+    sql`SELECT COALESCE(SUM(requests),0) AS requests, COALESCE(SUM(units),0) AS units, COALESCE(SUM(errors),0) AS errors
+        FROM usage_daily WHERE day >= ${fromDay} AND day < ${toDayExclusive} AND ${scopeClause('account_id', scope)}`,
+  );
+  return figuresOf(row!);
 }
 
 export interface UsageReportRow extends UsageFigures {
@@ -85,34 +93,28 @@ export interface UsageReportRow extends UsageFigures {
 }
 
 /** Usage between two days (inclusive), grouped by day, operation or account. */
-export function usageReport(
-  sqlite: Sqlite,
+export async function usageReport(
+  store: Store,
   input: { from: string; to: string; groupBy: UsageGroupBy },
   scope: readonly number[] | null,
-): { totals: UsageFigures; rows: UsageReportRow[] } {
-  const s = scopeClause('d.account_id', scope);
-  const end = nextDay(input.to);
-  const params = [input.from, end, ...s.params];
-  const where = `WHERE d.day >= ? AND d.day < ? AND ${s.sql}`;
-  const sums = 'SUM(d.requests) AS requests, SUM(d.units) AS units, SUM(d.errors) AS errors';
-  let rows: UsageReportRow[];
+): Promise<{ totals: UsageFigures; rows: UsageReportRow[] }> {
+  const where = sql`WHERE d.day >= ${input.from} AND d.day < ${nextDay(input.to)} AND ${scopeClause('d.account_id', scope)}`;
+  const sums = sql`SUM(d.requests) AS requests, SUM(d.units) AS units, SUM(d.errors) AS errors`;
+  let raw: Raw<UsageReportRow>[];
   if (input.groupBy === 'account') {
-    rows = sqlite
-      .prepare(
-        `SELECT CAST(d.account_id AS TEXT) AS "group", a.name AS label, ${sums}
-         FROM usage_daily d JOIN accounts a ON a.id = d.account_id ${where}
-         GROUP BY d.account_id ORDER BY d.account_id`,
-      )
-      .all(...params) as UsageReportRow[];
+    raw = await store.rows(
+      sql`SELECT CAST(d.account_id AS TEXT) AS "group", a.name AS label, ${sums}
+          FROM usage_daily d JOIN accounts a ON a.id = d.account_id ${where}
+          GROUP BY d.account_id, a.name ORDER BY d.account_id`,
+    );
   } else {
-    const col = input.groupBy === 'day' ? 'd.day' : 'd.operation';
-    rows = sqlite
-      .prepare(
-        `SELECT ${col} AS "group", ${col} AS label, ${sums} FROM usage_daily d ${where}
-         GROUP BY ${col} ORDER BY ${col}`,
-      )
-      .all(...params) as UsageReportRow[];
+    const col = sql.raw(input.groupBy === 'day' ? 'd.day' : 'd.operation');
+    raw = await store.rows(
+      sql`SELECT ${col} AS "group", ${col} AS label, ${sums} FROM usage_daily d ${where}
+          GROUP BY ${col} ORDER BY ${col}${bytewise(store)}`,
+    );
   }
+  const rows = raw.map(figuresOf);
   const totals = rows.reduce(
     (t, r) => ({ requests: t.requests + r.requests, units: t.units + r.units, errors: t.errors + r.errors }),
     { requests: 0, units: 0, errors: 0 },
@@ -127,22 +129,21 @@ export interface UsageCsvRow extends UsageFigures {
   operation: string;
 }
 
-/** Every roll-up row between two days (inclusive), lazily, ordered by day, account, operation. */
-export function* iterateUsageRows(
-  sqlite: Sqlite,
+/** Roll-up rows between two days (inclusive), at most `cap`, ordered by day, account, operation. */
+export async function listUsageRows(
+  store: Store,
   input: { from: string; to: string },
   scope: readonly number[] | null,
   cap: number,
-): Generator<UsageCsvRow> {
-  const s = scopeClause('d.account_id', scope);
-  const stmt = sqlite.prepare(
-    `SELECT d.day AS day, d.account_id AS accountId, a.name AS accountName, d.operation AS operation,
-       d.requests AS requests, d.units AS units, d.errors AS errors
-     FROM usage_daily d JOIN accounts a ON a.id = d.account_id
-     WHERE d.day >= ? AND d.day < ? AND ${s.sql}
-     ORDER BY d.day, d.account_id, d.operation LIMIT ?`,
+): Promise<UsageCsvRow[]> {
+  const rows = await store.rows<Raw<UsageCsvRow>>(
+    sql`SELECT d.day AS day, d.account_id AS "accountId", a.name AS "accountName", d.operation AS operation,
+          d.requests AS requests, d.units AS units, d.errors AS errors
+        FROM usage_daily d JOIN accounts a ON a.id = d.account_id
+        WHERE d.day >= ${input.from} AND d.day < ${nextDay(input.to)} AND ${scopeClause('d.account_id', scope)}
+        ORDER BY d.day, d.account_id, d.operation${bytewise(store)} LIMIT ${cap}`,
   );
-  yield* stmt.iterate(input.from, nextDay(input.to), ...s.params, cap) as IterableIterator<UsageCsvRow>;
+  return rows.map((r) => ({ ...figuresOf(r), accountId: Number(r.accountId) }));
 }
 
 export interface Overview {
@@ -167,51 +168,55 @@ export function quotaPercent(units: number, quota: number): number {
   return quota > 0 ? (units / quota) * 100 : 100;
 }
 
-export function overview(
-  sqlite: Sqlite,
+export async function overview(
+  store: Store,
   now: Date,
   scope: readonly number[] | null,
   opts: { nearQuotaPercent: number; days: number; topOperations: number },
-): Overview {
+): Promise<Overview> {
   const today = utcDay(now);
   const monthStart = monthStartUtc(now);
   const monthEnd = nextMonthStartUtc(now);
   const monthFrom = utcDay(monthStart);
   const monthTo = utcDay(monthEnd);
-  const thisMonth = figures(sqlite, monthFrom, monthTo, scope);
+  const thisMonth = await figures(store, monthFrom, monthTo, scope);
 
-  const s = scopeClause('account_id', scope);
-  const topOperations = sqlite
-    .prepare(
-      `SELECT operation, SUM(requests) AS requests, SUM(units) AS units, SUM(errors) AS errors
-       FROM usage_daily WHERE day >= ? AND day < ? AND ${s.sql}
-       GROUP BY operation ORDER BY requests DESC, operation LIMIT ?`,
+  const topOperations = (
+    await store.rows<Raw<Overview['topOperations'][number]>>(
+      sql`SELECT operation, SUM(requests) AS requests, SUM(units) AS units, SUM(errors) AS errors
+          FROM usage_daily WHERE day >= ${monthFrom} AND day < ${monthTo} AND ${scopeClause('account_id', scope)}
+          GROUP BY operation ORDER BY requests DESC, operation${bytewise(store)} LIMIT ${opts.topOperations}`,
     )
-    .all(monthFrom, monthTo, ...s.params, opts.topOperations) as Overview['topOperations'];
+  ).map(figuresOf);
 
-  const sa = scopeClause('a.id', scope);
-  const accountsUsage = sqlite
-    .prepare(
-      `SELECT a.id AS accountId, a.name AS accountName, a.monthly_unit_quota AS monthlyUnitQuota,
-         COALESCE((SELECT SUM(units) FROM usage_daily d WHERE d.account_id = a.id AND d.day >= ? AND d.day < ?), 0) AS unitsUsed
-       FROM accounts a WHERE ${sa.sql} ORDER BY a.id`,
-    )
-    .all(monthFrom, monthTo, ...sa.params) as Omit<Overview['nearQuota'][number], 'percent'>[];
+  const accountsUsage = await store.rows<{
+    accountId: number;
+    accountName: string;
+    monthlyUnitQuota: number;
+    unitsUsed: number | string;
+  }>(
+    sql`SELECT a.id AS "accountId", a.name AS "accountName", a.monthly_unit_quota AS "monthlyUnitQuota",
+          COALESCE((SELECT SUM(units) FROM usage_daily d
+                    WHERE d.account_id = a.id AND d.day >= ${monthFrom} AND d.day < ${monthTo}), 0) AS "unitsUsed"
+        FROM accounts a WHERE ${scopeClause('a.id', scope)} ORDER BY a.id`,
+  );
   const nearQuota = accountsUsage
-    .map((a) => ({ ...a, percent: quotaPercent(a.unitsUsed, a.monthlyUnitQuota) }))
+    .map((a) => {
+      const unitsUsed = Number(a.unitsUsed);
+      return { ...a, unitsUsed, percent: quotaPercent(unitsUsed, a.monthlyUnitQuota) };
+    })
     .filter((a) => a.percent >= opts.nearQuotaPercent)
     .sort((a, b) => b.percent - a.percent || a.accountId - b.accountId);
 
   const first = new Date(Date.parse(`${today}T00:00:00Z`) - (opts.days - 1) * 86_400_000);
   const byDay = new Map(
     (
-      sqlite
-        .prepare(
-          `SELECT day, SUM(requests) AS requests, SUM(units) AS units, SUM(errors) AS errors
-           FROM usage_daily WHERE day >= ? AND day <= ? AND ${s.sql} GROUP BY day`,
-        )
-        .all(utcDay(first), today, ...s.params) as (UsageFigures & { day: string })[]
-    ).map((r) => [r.day, r]),
+      await store.rows<Raw<UsageFigures & { day: string }>>(
+        sql`SELECT day, SUM(requests) AS requests, SUM(units) AS units, SUM(errors) AS errors
+            FROM usage_daily WHERE day >= ${utcDay(first)} AND day <= ${today} AND ${scopeClause('account_id', scope)}
+            GROUP BY day`,
+      )
+    ).map((r) => [r.day, figuresOf(r)]),
   );
   const daily: Overview['daily'] = [];
   for (let day = utcDay(first), i = 0; i < opts.days; i++, day = nextDay(day)) {
@@ -220,10 +225,10 @@ export function overview(
 
   return {
     month: monthFrom.slice(0, 7),
-    today: figures(sqlite, today, nextDay(today), scope),
+    today: await figures(store, today, nextDay(today), scope),
     thisMonth,
     errorRate: thisMonth.requests > 0 ? thisMonth.errors / thisMonth.requests : null,
-    p95LatencyMs: percentileLatencyMs(sqlite, 95, monthStart.getTime(), monthEnd.getTime(), scope),
+    p95LatencyMs: await percentileLatencyMs(store, 95, monthStart.getTime(), monthEnd.getTime(), scope),
     topOperations,
     nearQuota,
     daily,

@@ -2,8 +2,8 @@
  * Monthly usage and quota, read from the usage_daily roll-up (one row per account, UTC day and
  * operation). Calendar months are UTC.
  */
-import type { Statement } from 'better-sqlite3';
-import type { Sqlite } from '../db/client.js';
+import { sql, type SQL } from 'drizzle-orm';
+import type { Store } from '../db/store.js';
 
 const DAY_MS = 86_400_000; // a UTC day in JavaScript time, which has no leap seconds
 
@@ -40,21 +40,25 @@ export function nextMonthStartUtc(at: Date): Date {
   return new Date(Date.UTC(at.getUTCFullYear(), at.getUTCMonth() + 1, 1));
 }
 
-/** The month-sum statement, prepared once per connection (it runs on every charged request). */
-const monthSums = new WeakMap<Sqlite, Statement<[number, string, string], { units: number }>>();
-
 /** Units used by an account in the calendar month (UTC) containing `now`. */
-export function unitsUsedThisMonth(sqlite: Sqlite, accountId: number, now: Date): number {
-  let stmt = monthSums.get(sqlite);
-  if (!stmt) {
-    stmt = sqlite.prepare<[number, string, string], { units: number }>(
-      'SELECT COALESCE(SUM(units), 0) AS units FROM usage_daily WHERE account_id = ? AND day >= ? AND day < ?',
-    );
-    monthSums.set(sqlite, stmt);
-  }
-  const row = stmt.get(accountId, utcDay(monthStartUtc(now)), utcDay(nextMonthStartUtc(now)));
-  return row?.units ?? 0;
+export async function unitsUsedThisMonth(store: Store, accountId: number, now: Date): Promise<number> {
+  const [row] = await store.rows<{ units: number | string }>(
+    sql`SELECT COALESCE(SUM(units), 0) AS units FROM usage_daily
+        WHERE account_id = ${accountId} AND day >= ${utcDay(monthStartUtc(now))} AND day < ${utcDay(nextMonthStartUtc(now))}`,
+  );
+  return Number(row?.units ?? 0);
 }
+
+/**
+ * Appended to an ORDER BY on a text column: byte order, as SQLite sorts. A PostgreSQL database
+ * made with a language locale would otherwise sort operation ids by its collation (which skips
+ * punctuation such as "-" and ".").
+ */
+export function bytewise(store: Store): SQL {
+  return store.dialect === 'postgres' ? sql` COLLATE "C"` : sql``;
+}
+
+type FiguresRow = { requests: number | string; units: number | string; errors: number | string };
 
 export interface MonthUsage {
   month: string;
@@ -65,25 +69,33 @@ export interface MonthUsage {
 }
 
 /** The usage summary of the calendar month (UTC) containing `now`. */
-export function monthUsage(sqlite: Sqlite, accountId: number, now: Date): MonthUsage {
+export async function monthUsage(store: Store, accountId: number, now: Date): Promise<MonthUsage> {
   const from = utcDay(monthStartUtc(now));
   const to = utcDay(nextMonthStartUtc(now));
-  const account = sqlite
-    .prepare('SELECT monthly_unit_quota AS quota FROM accounts WHERE id = ?')
-    .get(accountId) as { quota: number } | undefined;
+  const [account] = await store.rows<{ quota: number }>(
+    sql`SELECT monthly_unit_quota AS quota FROM accounts WHERE id = ${accountId}`,
+  );
   if (!account) throw new Error(`account ${accountId} does not exist`);
-  const byOperation = sqlite
-    .prepare(
-      `SELECT operation, SUM(requests) AS requests, SUM(units) AS units, SUM(errors) AS errors
-       FROM usage_daily WHERE account_id = ? AND day >= ? AND day < ? GROUP BY operation ORDER BY operation`,
+  // Sums are bigint (a string) on PostgreSQL: read as numbers.
+  const figures = (r: FiguresRow) => ({
+    requests: Number(r.requests),
+    units: Number(r.units),
+    errors: Number(r.errors),
+  });
+  const byOperation = (
+    await store.rows<FiguresRow & { operation: string }>(
+      sql`SELECT operation, SUM(requests) AS requests, SUM(units) AS units, SUM(errors) AS errors
+          FROM usage_daily WHERE account_id = ${accountId} AND day >= ${from} AND day < ${to}
+          GROUP BY operation ORDER BY operation${bytewise(store)}`,
     )
-    .all(accountId, from, to) as MonthUsage['byOperation'];
-  const byDay = sqlite
-    .prepare(
-      `SELECT day, SUM(requests) AS requests, SUM(units) AS units, SUM(errors) AS errors
-       FROM usage_daily WHERE account_id = ? AND day >= ? AND day < ? GROUP BY day ORDER BY day`,
+  ).map((r) => ({ operation: r.operation, ...figures(r) }));
+  const byDay = (
+    await store.rows<FiguresRow & { day: string }>(
+      sql`SELECT day, SUM(requests) AS requests, SUM(units) AS units, SUM(errors) AS errors
+          FROM usage_daily WHERE account_id = ${accountId} AND day >= ${from} AND day < ${to}
+          GROUP BY day ORDER BY day`,
     )
-    .all(accountId, from, to) as MonthUsage['byDay'];
+  ).map((r) => ({ day: r.day, ...figures(r) }));
   const totals = byOperation.reduce(
     (t, r) => ({ requests: t.requests + r.requests, units: t.units + r.units, errors: t.errors + r.errors }),
     { requests: 0, units: 0, errors: 0 },

@@ -62,7 +62,7 @@ export async function checkQuotaNotices(deps: AppDeps, accountId: number): Promi
   const account = getAccount(deps.db, accountId);
   if (!account) return { month, used: 0, quota: 0, sent: null };
   const quota = account.monthlyUnitQuota;
-  const used = unitsUsedThisMonth(deps.sqlite, accountId, now);
+  const used = await unitsUsedThisMonth(deps.store, accountId, now);
   const result: QuotaCheckResult = { month, used, quota, sent: null };
   const reached = thresholdsReached(used, quota);
   if (reached.length === 0 || !account.billingEmail) return result;

@@ -21,16 +21,16 @@ export const overviewRoutes: ConsoleRouteModule = {
       summary: 'Traffic, errors, latency and quota at a glance',
       request: { query: OverviewQuerySchema },
       response: OverviewSchema,
-      handler: ({ query, user }) => {
+      handler: async ({ query, user }) => {
         const now = deps.clock();
         const scope = queryScope(user, query.accountId);
         return {
           generatedAt: now.toISOString(),
-          ...overview(deps.sqlite, now, scope, {
+          ...(await overview(deps.store, now, scope, {
             nearQuotaPercent: NEAR_QUOTA_PERCENT,
             days: OVERVIEW_DAYS,
             topOperations: TOP_OPERATIONS,
-          }),
+          })),
         };
       },
     });

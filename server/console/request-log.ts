@@ -23,7 +23,7 @@ import { getAccount } from '../accounts/accounts.js';
 import {
   countRequestLog,
   getRequestLogEntry,
-  iterateRequestLog,
+  listRequestLog,
   queryRequestLog,
   type RequestLogFilterInput,
   type RequestLogRow,
@@ -87,11 +87,11 @@ export const requestLogRoutes: ConsoleRouteModule = {
       summary: 'Search the request log (paged, sorted and filtered on the server)',
       request: { query: RequestLogQuerySchema },
       response: RequestLogPageSchema,
-      handler: ({ query, user }) => {
+      handler: async ({ query, user }) => {
         checkRange(query);
         const scope = queryScope(user, query.accountId);
-        const page = queryRequestLog(
-          deps.sqlite,
+        const page = await queryRequestLog(
+          deps.store,
           {
             ...filterInput(query),
             page: query.page,
@@ -114,21 +114,27 @@ export const requestLogRoutes: ConsoleRouteModule = {
       request: { query: ExportQuerySchema },
       response: z.string().meta({ description: 'text/csv (RFC 4180), one header row' }),
       responseContentType: 'text/csv',
-      handler: ({ query, user, res }) => {
+      handler: async ({ query, user, res }) => {
         checkRange(query);
         const scope = queryScope(user, query.accountId);
         const filter = filterInput(query);
-        const total = countRequestLog(deps.sqlite, filter, scope);
-        const rows = iterateRequestLog(
-          deps.sqlite,
+        const total = await countRequestLog(deps.store, filter, scope);
+        const rows = await listRequestLog(
+          deps.store,
           { ...filter, sort: query.sort, order: query.order },
           scope,
           CSV_ROW_CAP,
         );
-        sendCsv(res, 'request-log.csv', REQUEST_LOG_CSV_COLUMNS, rows as Iterable<Record<string, unknown>>, {
-          total,
-          cap: CSV_ROW_CAP,
-        });
+        sendCsv(
+          res,
+          'request-log.csv',
+          REQUEST_LOG_CSV_COLUMNS,
+          rows as unknown as Record<string, unknown>[],
+          {
+            total,
+            cap: CSV_ROW_CAP,
+          },
+        );
       },
     });
 
@@ -139,8 +145,8 @@ export const requestLogRoutes: ConsoleRouteModule = {
       summary: 'One request with its redacted bodies and timings',
       request: { params: RequestLogIdParamsSchema },
       response: RequestLogDetailSchema,
-      handler: ({ params, user }) => {
-        const row = getRequestLogEntry(deps.sqlite, params.id, null);
+      handler: async ({ params, user }) => {
+        const row = await getRequestLogEntry(deps.store, params.id, null);
         if (!row) throw problem('not-found', `There is no request-log entry ${params.id}.`);
         const scope = scopeOf(user);
         if (scope !== null && (row.accountId === null || !scope.includes(row.accountId))) {

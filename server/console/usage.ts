@@ -12,7 +12,7 @@ import {
   type UsageQuery,
 } from '../../shared/console/usage.js';
 import { CSV_ROW_CAP } from '../../shared/console/request-log.js';
-import { daysInclusive, iterateUsageRows, usageReport } from '../accounts/usage-report.js';
+import { daysInclusive, listUsageRows, usageReport } from '../accounts/usage-report.js';
 import { monthStartUtc, utcDay } from '../accounts/usage.js';
 import { problem } from '../http/problem.js';
 import { queryScope } from './accounts.js';
@@ -48,10 +48,10 @@ export const usageRoutes: ConsoleRouteModule = {
       summary: 'Requests, units and errors between two days, grouped by day, operation or account',
       request: { query: UsageQuerySchema },
       response: UsageReportSchema,
-      handler: ({ query, user }) => {
+      handler: async ({ query, user }) => {
         const range = dayRange(query, deps.clock());
         const scope = queryScope(user, query.accountId);
-        const report = usageReport(deps.sqlite, { ...range, groupBy: query.groupBy }, scope);
+        const report = await usageReport(deps.store, { ...range, groupBy: query.groupBy }, scope);
         return {
           ...range,
           groupBy: query.groupBy,
@@ -69,10 +69,10 @@ export const usageRoutes: ConsoleRouteModule = {
       request: { query: UsageExportQuerySchema },
       response: z.string().meta({ description: 'text/csv (RFC 4180), one header row' }),
       responseContentType: 'text/csv',
-      handler: ({ query, user, res }) => {
+      handler: async ({ query, user, res }) => {
         const range = dayRange(query, deps.clock());
         const scope = queryScope(user, query.accountId);
-        const rows = [...iterateUsageRows(deps.sqlite, range, scope, CSV_ROW_CAP + 1)];
+        const rows = await listUsageRows(deps.store, range, scope, CSV_ROW_CAP + 1);
         sendCsv(
           res,
           `usage-${range.from}-${range.to}.csv`,

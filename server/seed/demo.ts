@@ -7,12 +7,11 @@
  */
 import crypto from 'node:crypto';
 import { sql } from 'drizzle-orm';
-import type { Sqlite } from '../db/client.js';
 import type { Store } from '../db/store.js';
 import { addMember, createAccount, insertUser } from '../accounts/accounts.js';
 import { hashPassword } from '../accounts/passwords.js';
 import { createKey } from '../accounts/keys.js';
-import { recordRequest } from '../accounts/metering.js';
+import { recordRequests, type RequestRecord } from '../accounts/metering.js';
 import { operationCatalogue, scopes, type OperationId } from '../accounts/operations.js';
 import { pathOf } from '../http/v1/operation.js';
 import { operationDeclaration } from '../http/v1/operations/index.js';
@@ -46,15 +45,16 @@ interface DemoMix {
   units: number;
 }
 
-function seedUsage(
-  sqlite: Sqlite,
+/** The demo account's requests of the past `days` days, as metering would have recorded them. */
+function demoUsage(
   accountId: number,
   keyId: number,
   mix: DemoMix[],
   now: Date,
   days: number,
   engineVersion: string,
-): void {
+): RequestRecord[] {
+  const records: RequestRecord[] = [];
   const random = mulberry32(accountId * 7919);
   for (let d = days; d >= 1; d--) {
     const dayStart = Date.UTC(now.getUTCFullYear(), now.getUTCMonth(), now.getUTCDate() - d);
@@ -63,7 +63,7 @@ function seedUsage(
       for (let i = 0; i < n; i++) {
         const at = new Date(dayStart + Math.floor((7 + 11 * random()) * 3_600_000));
         const failed = random() < 0.04;
-        recordRequest(sqlite, {
+        records.push({
           at,
           accountId,
           keyId,
@@ -81,6 +81,7 @@ function seedUsage(
       }
     }
   }
+  return records;
 }
 
 /** What a first start may show once: the demo operator's sign-in and the demo account's key. */
@@ -113,10 +114,6 @@ export async function seedDemo(
   const since = new Date(Date.UTC(now.getUTCFullYear(), now.getUTCMonth() - 1, 1));
   return store.transaction(async (tx) => {
     const db = tx.db;
-    // The usage below is written by metering's recordRequest, which still takes the SQLite
-    // connection (it joins this transaction, being synchronous on it).
-    const sqlite = tx.sqlite;
-    if (!sqlite) throw new Error('Seeding the demo usage needs the SQLite store for now.');
     const operator = insertUser(db, {
       email: DEMO_OPERATOR_EMAIL,
       passwordHash: operatorHash,
@@ -155,8 +152,7 @@ export async function seedDemo(
       rateLimitPerMinute: 60,
       now: since,
     }).key;
-    seedUsage(
-      sqlite,
+    const usage = demoUsage(
       caustic.id,
       causticKey.id,
       [
@@ -169,18 +165,21 @@ export async function seedDemo(
       6,
       engineVersion,
     );
-    seedUsage(
-      sqlite,
-      dairy.id,
-      dairyKey.id,
-      [
-        { operation: operationCatalogue.singleEffect.id, perDay: 12, units: 5 },
-        { operation: operationCatalogue.steamState.id, perDay: 15, units: 1 },
-      ],
-      now,
-      4,
-      engineVersion,
+    usage.push(
+      ...demoUsage(
+        dairy.id,
+        dairyKey.id,
+        [
+          { operation: operationCatalogue.singleEffect.id, perDay: 12, units: 5 },
+          { operation: operationCatalogue.steamState.id, perDay: 15, units: 1 },
+        ],
+        now,
+        4,
+        engineVersion,
+      ),
     );
+    // One group, as the metering group commit writes a busy moment's requests.
+    await recordRequests(tx, usage);
     return {
       accountId: caustic.id,
       operatorEmail: DEMO_OPERATOR_EMAIL,

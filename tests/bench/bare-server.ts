@@ -42,14 +42,7 @@ if (process.env.BARE_MODE === 'calculation') {
   runMigrations(db);
   const engineVersion = (responseBody as { provenance: { engineVersion: string } }).provenance.engineVersion;
   const op = compileOperation(singleEffect);
-  const ctx = {
-    accountId: 0,
-    store: sqliteStore(sqlite, db),
-    db,
-    sqlite,
-    engineVersion,
-    clock: () => new Date(),
-  };
+  const ctx = { accountId: 0, store: sqliteStore(sqlite, db), engineVersion, clock: () => new Date() };
   app.post('/bare', async (req, res) => {
     sendCalculation(res, await runOperation(op, { body: req.body }, ctx));
   });

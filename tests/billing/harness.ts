@@ -123,9 +123,9 @@ export async function makeBillingHarness(
 
 let seq = 0;
 /** Writes metered usage exactly as the v1 metering hook does (one request of `units` at `at`). */
-export function meter(h: BillingHarness, accountId: number, units: number, at: string): void {
+export async function meter(h: BillingHarness, accountId: number, units: number, at: string): Promise<void> {
   seq++;
-  recordRequest(h.deps.sqlite, {
+  await recordRequest(h.deps.store, {
     at: new Date(at),
     accountId,
     keyId: null as unknown as number,

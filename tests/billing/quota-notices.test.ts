@@ -39,19 +39,19 @@ describe('checkQuotaNotices', () => {
     });
     const kinds = async () =>
       (await mailRows(h)).filter((m) => m.to === 'quota@works.invalid').map((m) => m.kind);
-    meter(h, a.id, 799, '2031-05-02T00:00:00Z');
+    await meter(h, a.id, 799, '2031-05-02T00:00:00Z');
     expect((await checkQuotaNotices(h.deps, a.id)).sent).toBeNull();
-    meter(h, a.id, 1, '2031-05-09T00:00:00Z');
+    await meter(h, a.id, 1, '2031-05-09T00:00:00Z');
     expect((await checkQuotaNotices(h.deps, a.id)).sent).toBe(80);
     expect((await checkQuotaNotices(h.deps, a.id)).sent).toBeNull();
-    meter(h, a.id, 200, '2031-05-09T01:00:00Z');
+    await meter(h, a.id, 200, '2031-05-09T01:00:00Z');
     expect((await checkQuotaNotices(h.deps, a.id)).sent).toBe(100);
     expect((await checkQuotaNotices(h.deps, a.id)).sent).toBeNull();
     expect(await kinds()).toEqual(['quota-80', 'quota-100']);
 
     // June: a new month starts from zero; jumping straight to 100 % sends only the 100 % notice.
     h.clock.now = new Date('2031-06-03T00:00:00Z');
-    meter(h, a.id, 1000, '2031-06-02T00:00:00Z');
+    await meter(h, a.id, 1000, '2031-06-02T00:00:00Z');
     expect((await checkQuotaNotices(h.deps, a.id)).sent).toBe(100);
     expect((await checkQuotaNotices(h.deps, a.id)).sent).toBeNull();
     expect(await kinds()).toEqual(['quota-80', 'quota-100', 'quota-100']);
@@ -76,7 +76,7 @@ describe('checkQuotaNotices', () => {
       monthlyUnitQuota: 10,
       now: h.clock.now,
     });
-    meter(h, b.id, 10, h.clock.now.toISOString());
+    await meter(h, b.id, 10, h.clock.now.toISOString());
     expect((await checkQuotaNotices(h.deps, b.id)).sent).toBeNull();
     const [n] = await h.deps.store.rows<{ n: number | string }>(
       sql`SELECT COUNT(*) AS n FROM quota_notices WHERE account_id = ${b.id}`,
@@ -91,7 +91,7 @@ describe('checkQuotaNotices', () => {
       billingEmail: 'later@deferred.invalid',
       now: h.clock.now,
     });
-    meter(h, c.id, 85, h.clock.now.toISOString());
+    await meter(h, c.id, 85, h.clock.now.toISOString());
     scheduleQuotaCheck(h.deps, c.id);
     scheduleQuotaCheck(h.deps, c.id);
     expect((await mailRows(h)).filter((m) => m.to === 'later@deferred.invalid')).toEqual([]); // not yet

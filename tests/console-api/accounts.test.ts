@@ -21,8 +21,8 @@ describe('GET /console-api/accounts', () => {
       scopes: ['steam'],
       now: h.clock.now,
     });
-    meter(h, { accountId: h.alphaId, keyId: key.id, units: 250 });
-    meter(h, { accountId: h.alphaId, keyId: key.id, units: 50 });
+    await meter(h, { accountId: h.alphaId, keyId: key.id, units: 250 });
+    await meter(h, { accountId: h.alphaId, keyId: key.id, units: 50 });
     for (const who of [h.admin, h.billing]) {
       const res = await who.agent.get('/console-api/accounts').expect(200);
       const alpha = (res.body.items as { id: number }[]).find((a) => a.id === h.alphaId) as Record<

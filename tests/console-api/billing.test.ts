@@ -28,10 +28,10 @@ beforeAll(async () => {
   h = await makeBillingHarness();
   // March 2031 usage. Alpha (Professional: 50 000 included, €49.00, €1.00 per 1000):
   // 30 000 + 31 001 = 61 001 units. Beta (Starter: 10 000 included, no fee): exactly 10 000.
-  meter(h, h.alphaId, 30_000, '2031-03-02T08:00:00Z');
-  meter(h, h.alphaId, 31_001, '2031-03-31T23:59:59Z');
-  meter(h, h.alphaId, 999_999, '2031-04-01T00:00:00Z'); // April: must not count for March
-  meter(h, h.betaId, 10_000, '2031-03-15T12:00:00Z');
+  await meter(h, h.alphaId, 30_000, '2031-03-02T08:00:00Z');
+  await meter(h, h.alphaId, 31_001, '2031-03-31T23:59:59Z');
+  await meter(h, h.alphaId, 999_999, '2031-04-01T00:00:00Z'); // April: must not count for March
+  await meter(h, h.betaId, 10_000, '2031-03-15T12:00:00Z');
 });
 afterAll(async () => {
   await h.close();
@@ -142,7 +142,7 @@ describe('statements', () => {
   });
 
   it('refreshes a draft when late usage arrives, and skips an account whose plan does not exist', async () => {
-    meter(h, h.betaId, 1, '2031-03-20T00:00:00Z');
+    await meter(h, h.betaId, 1, '2031-03-20T00:00:00Z');
     const ghost = createAccount(h.deps.db, {
       name: 'Invented Ghost Plan Ltd',
       plan: 'no-such-plan',
@@ -250,7 +250,7 @@ describe('statements', () => {
 
 describe('finalize through the payment provider', () => {
   it('refuses to finalize a month that is not over yet', async () => {
-    meter(h, h.alphaId, 5, '2031-04-02T00:00:00Z');
+    await meter(h, h.alphaId, 5, '2031-04-02T00:00:00Z');
     const gen = await h.billing.agent
       .post('/console-api/statements/generate')
       .set('X-CSRF-Token', h.billing.csrf)
@@ -315,7 +315,7 @@ describe('finalize through the payment provider', () => {
   });
 
   it('never changes a finalized statement: a second finalize is 409, generate leaves it frozen', async () => {
-    meter(h, h.alphaId, 7_000, '2031-03-30T00:00:00Z'); // late usage after finalizing
+    await meter(h, h.alphaId, 7_000, '2031-03-30T00:00:00Z'); // late usage after finalizing
     const list = await h.billing.agent
       .get(`/console-api/statements?month=2031-03&accountId=${h.alphaId}`)
       .expect(200);

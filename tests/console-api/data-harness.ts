@@ -89,12 +89,12 @@ export async function makeConsoleHarness(): Promise<ConsoleHarness> {
 
 let seq = 0;
 /** Writes one metered request exactly as the v1 metering hook does (server/accounts/metering.ts). */
-export function meter(
+export async function meter(
   h: ConsoleHarness,
   r: Partial<RequestRecord> & { accountId: number; keyId: number },
-): void {
+): Promise<void> {
   seq++;
-  recordRequest(h.deps.sqlite, {
+  await recordRequest(h.deps.store, {
     at: h.clock.now,
     operation: 'steam.state',
     status: 200,

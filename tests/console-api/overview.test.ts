@@ -24,19 +24,19 @@ beforeAll(async () => {
   // Alpha today: latencies 15, 20, 35, 40, 50 ms (the list of the nearest-rank example below),
   // 850 units in all (85 % of its 1000 quota), one 500.
   const alpha = [15, 20, 35, 40, 50];
-  alpha.forEach((latencyMs, i) =>
-    meter(h, {
+  for (const [i, latencyMs] of alpha.entries()) {
+    await meter(h, {
       accountId: h.alphaId,
       keyId: a,
       latencyMs,
       units: 170,
       status: i === 4 ? 500 : 200,
       operation: i < 3 ? 'steam.state' : 'liquors.enthalpy',
-    }),
-  );
+    });
+  }
   // Beta, 2 March: 20 requests, latencies 1..20 ms, 10 units each (200 of 500 = 40 %).
   for (let i = 1; i <= 20; i++) {
-    meter(h, {
+    await meter(h, {
       accountId: h.betaId,
       keyId: b,
       at: new Date(Date.UTC(2031, 2, 2, 8)),
@@ -46,7 +46,7 @@ beforeAll(async () => {
     });
   }
   // Last month: outside every "this month" figure, inside the 30-day series (14 Feb … 14 Mar).
-  meter(h, {
+  await meter(h, {
     accountId: h.betaId,
     keyId: b,
     at: new Date(Date.UTC(2031, 1, 20, 8)),
@@ -114,9 +114,9 @@ describe('GET /console-api/overview', () => {
     await h.developer.agent.get(`/console-api/overview?accountId=${h.betaId}`).expect(403);
   });
 
-  it('reports no error rate and no p95 for a month without requests', () => {
+  it('reports no error rate and no p95 for a month without requests', async () => {
     // Service level: moving the clock a month on would end the console session.
-    const may = overview(h.deps.sqlite, new Date('2031-05-02T00:00:00Z'), null, {
+    const may = await overview(h.deps.store, new Date('2031-05-02T00:00:00Z'), null, {
       nearQuotaPercent: 80,
       days: 30,
       topOperations: 5,

@@ -42,7 +42,7 @@ beforeAll(async () => {
     now: h.clock.now,
   }).key.id;
   for (const [acct, minute, status, latencyMs, operation] of SEED) {
-    meter(h, {
+    await meter(h, {
       accountId: acct === 'alpha' ? h.alphaId : h.betaId,
       keyId: acct === 'alpha' ? alphaKey : betaKey,
       at: at(minute),
@@ -220,7 +220,7 @@ describe('GET /console-api/request-log/export.csv', () => {
   });
 
   it('neutralises a cell that a spreadsheet would run as a formula', async () => {
-    meter(h, {
+    await meter(h, {
       accountId: h.alphaId,
       keyId: alphaKey,
       at: at(30),

@@ -24,13 +24,13 @@ beforeAll(async () => {
     now: h.clock.now,
   }).key.id;
   // Alpha: 3 requests on 1 March (one error), 2 on 13 March; Beta: 4 on 13 March; one in February.
-  meter(h, { accountId: h.alphaId, keyId: a, at: day(1), units: 5 });
-  meter(h, { accountId: h.alphaId, keyId: a, at: day(1, 23), units: 5, operation: 'liquors.enthalpy' });
-  meter(h, { accountId: h.alphaId, keyId: a, at: day(1), units: 0, status: 422 });
-  meter(h, { accountId: h.alphaId, keyId: a, at: day(13), units: 7 });
-  meter(h, { accountId: h.alphaId, keyId: a, at: day(13), units: 1, operation: 'liquors.enthalpy' });
-  for (let i = 0; i < 4; i++) meter(h, { accountId: h.betaId, keyId: b, at: day(13), units: 10 });
-  meter(h, { accountId: h.alphaId, keyId: a, at: new Date(Date.UTC(2031, 1, 28, 23, 59)), units: 100 });
+  await meter(h, { accountId: h.alphaId, keyId: a, at: day(1), units: 5 });
+  await meter(h, { accountId: h.alphaId, keyId: a, at: day(1, 23), units: 5, operation: 'liquors.enthalpy' });
+  await meter(h, { accountId: h.alphaId, keyId: a, at: day(1), units: 0, status: 422 });
+  await meter(h, { accountId: h.alphaId, keyId: a, at: day(13), units: 7 });
+  await meter(h, { accountId: h.alphaId, keyId: a, at: day(13), units: 1, operation: 'liquors.enthalpy' });
+  for (let i = 0; i < 4; i++) await meter(h, { accountId: h.betaId, keyId: b, at: day(13), units: 10 });
+  await meter(h, { accountId: h.alphaId, keyId: a, at: new Date(Date.UTC(2031, 1, 28, 23, 59)), units: 100 });
 });
 afterAll(async () => {
   await h.close();

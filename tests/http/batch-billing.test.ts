@@ -1,5 +1,6 @@
 // Batch billing: a case that is refused costs nothing, as the same call on its own route would;
 // the quota still has to cover every case before the batch runs.
+import { sql } from 'drizzle-orm';
 import request from 'supertest';
 import { describe, expect, it } from 'vitest';
 import { makeHarness, usageRows } from './helpers.js';
@@ -40,7 +41,7 @@ describe('batch billing', () => {
     expect(res.status).toBe(200);
     expect(res.body).toMatchObject({ count: 2, succeeded: 0, failed: 2, unitsCharged: 0 });
     // The single refused call and the batch both bill 0 units.
-    expect(usageRows(h.sqlite).map((r) => [r.operation, r.units])).toEqual([
+    expect((await usageRows(h.store)).map((r) => [r.operation, r.units])).toEqual([
       ['evaporators.single-effect', 0],
       ['batch', 0],
     ]);
@@ -61,8 +62,8 @@ describe('batch billing', () => {
       });
     expect(res.status).toBe(200);
     expect(res.body).toMatchObject({ succeeded: 2, failed: 1, unitsCharged: 10 });
-    expect(usageRows(h.sqlite).at(-1)).toMatchObject({ operation: 'batch', units: 10 });
-    const log = h.sqlite.prepare('SELECT status FROM request_log').all();
+    expect((await usageRows(h.store)).at(-1)).toMatchObject({ operation: 'batch', units: 10 });
+    const log = await h.store.rows(sql`SELECT status FROM request_log`);
     expect(log).toEqual([{ status: 200 }]);
   });
 
@@ -78,6 +79,6 @@ describe('batch billing', () => {
       });
     expect(res.status).toBe(429);
     expect(res.body.detail).toContain('costs 15 units');
-    expect(usageRows(h.sqlite).at(-1)).toMatchObject({ status: 429, units: 0 });
+    expect((await usageRows(h.store)).at(-1)).toMatchObject({ status: 429, units: 0 });
   });
 });

@@ -4,6 +4,7 @@
 import { execFileSync } from 'node:child_process';
 import http from 'node:http';
 import type { AddressInfo } from 'node:net';
+import { sql } from 'drizzle-orm';
 import request from 'supertest';
 import { afterAll, describe, expect, it } from 'vitest';
 import { closeApp } from '../../server/app.js';
@@ -368,9 +369,9 @@ describe('the calculation pool', () => {
     expect(hung.status).toBe(503);
     expect(hung.body).toMatchObject({ type: '/problems/calculation-timeout', status: 503 });
     expect(hung.body.detail).toMatch(/3000 ms/);
-    const usage = h.sqlite.prepare('SELECT operation, status, units FROM usage_events').all();
+    const usage = await h.store.rows(sql`SELECT operation, status, units FROM usage_events`);
     expect(usage).toEqual([{ operation: 'batch', status: 503, units: 0 }]);
-    const log = h.sqlite.prepare('SELECT path, status FROM request_log').all();
+    const log = await h.store.rows(sql`SELECT path, status FROM request_log`);
     expect(log).toEqual([{ path: '/v1/batch', status: 503 }]);
     // What the client sees: the batch counted as an error, 0 units used.
     const usageRes = await request(h.app).get('/v1/usage').set(auth(h));
@@ -395,10 +396,9 @@ describe('the calculation pool', () => {
       .send({ operation: 'multiple-effect', cases: [train(10)] });
     expect(next.status).toBe(200);
     expect(next.body).toMatchObject({ succeeded: 1, unitsCharged: expect.any(Number) });
-    const units = h.sqlite.prepare('SELECT status, units FROM usage_events ORDER BY id').all() as {
-      status: number;
-      units: number;
-    }[];
+    const units = await h.store.rows<{ status: number; units: number }>(
+      sql`SELECT status, units FROM usage_events ORDER BY id`,
+    );
     expect(units.filter((u) => u.status >= 500).every((u) => u.units === 0)).toBe(true);
     expect(units.at(-1)!.units).toBe(next.body.unitsCharged);
   });
@@ -413,10 +413,10 @@ describe('the calculation pool', () => {
       .send({ operation: 'multiple-effect', cases: [train(6)] });
     expect(crashed.status).toBe(500);
     expect(crashed.body).toMatchObject({ type: '/problems/calculation-failed', status: 500 });
-    expect(h.sqlite.prepare('SELECT status, units FROM usage_events').all()).toEqual([
+    expect(await h.store.rows(sql`SELECT status, units FROM usage_events`)).toEqual([
       { status: 500, units: 0 },
     ]);
-    expect(h.sqlite.prepare('SELECT status FROM request_log').all()).toEqual([{ status: 500 }]);
+    expect(await h.store.rows(sql`SELECT status FROM request_log`)).toEqual([{ status: 500 }]);
     expect((await request(h.app).get('/v1/usage').set(auth(h))).body.quota.used).toBe(0);
     const next = await request(h.app).post('/v1/evaporators/multiple-effect').set(auth(h)).send(train(6));
     expect(next.status).toBe(200);

@@ -21,7 +21,7 @@ describe('client errors raised by Express itself', () => {
     expect(res.headers['content-type']).toMatch(/^application\/problem\+json/);
     expect(res.body).toMatchObject({ type: '/problems/bad-request', status: 400 });
     expect(res.body.detail).toContain('decode');
-    const rows = usageRows(h.sqlite);
+    const rows = await usageRows(h.store);
     expect(rows.map((r) => [r.status, r.units])).toEqual([[400, 0]]);
   });
 
@@ -45,7 +45,7 @@ describe('client errors raised by Express itself', () => {
     expect(res.status).toBe(400);
     expect(res.headers['content-type']).toMatch(/^application\/problem\+json/);
     expect(res.body.type).toBe('/problems/bad-request');
-    expect(usageRows(h.sqlite).map((r) => r.status)).toEqual([400]);
+    expect((await usageRows(h.store)).map((r) => r.status)).toEqual([400]);
   });
 
   it('still answers an unsupported content encoding with the 415 problem', async () => {

@@ -85,7 +85,7 @@ describe('monthly quota with concurrent requests', () => {
     expect(raw).toMatch(/^HTTP\/1\.1 429 /);
     expect(raw).toMatch(/content-type: application\/problem\+json/i);
     expect(raw).toContain('"type":"/problems/quota-exceeded"');
-    const billed = usageRows(h.sqlite).reduce((sum, r) => sum + r.units, 0);
+    const billed = (await usageRows(h.store)).reduce((sum, r) => sum + r.units, 0);
     expect(billed).toBe(5);
   });
 
@@ -106,6 +106,6 @@ describe('monthly quota with concurrent requests', () => {
     expect((await second.json()).type).toBe('/problems/quota-exceeded');
     release();
     expect((await held).status).toBe(200);
-    expect(usageRows(h.sqlite).reduce((sum, r) => sum + r.units, 0)).toBe(5);
+    expect((await usageRows(h.store)).reduce((sum, r) => sum + r.units, 0)).toBe(5);
   });
 });

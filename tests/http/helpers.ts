@@ -1,6 +1,7 @@
 // Test harness for the HTTP core: an in-memory database with migrations applied, an injectable
 // clock, and a test-only route module that spends units (so quota tests need no calculation route).
 import type express from 'express';
+import { sql } from 'drizzle-orm';
 import { createAccount } from '../../server/accounts/accounts.js';
 import { createKey } from '../../server/accounts/keys.js';
 import type { Scope } from '../../server/accounts/operations.js';
@@ -112,15 +113,17 @@ export async function makeHarness(
   };
 }
 
-export function usageRows(
-  sqlite: Sqlite,
-): { operation: string; status: number; units: number; request_id: string }[] {
-  return sqlite
-    .prepare('SELECT operation, status, units, request_id FROM usage_events ORDER BY id')
-    .all() as {
-    operation: string;
-    status: number;
-    units: number;
-    request_id: string;
-  }[];
+export interface UsageEventRow {
+  operation: string;
+  status: number;
+  units: number;
+  request_id: string;
+}
+
+/** Every usage event in the order it was written, read through the store (any dialect). */
+export async function usageRows(store: Store): Promise<UsageEventRow[]> {
+  const rows = await store.rows<UsageEventRow>(
+    sql`SELECT operation, status, units, request_id FROM usage_events ORDER BY id`,
+  );
+  return rows.map((r) => ({ ...r, status: Number(r.status), units: Number(r.units) }));
 }

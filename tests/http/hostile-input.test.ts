@@ -4,6 +4,7 @@
 // Why: assignment through a user-chosen key "__proto__" sets a prototype (ECMA-262 §B.2.2.1,
 // Object.prototype.__proto__), so one account's body could change every object in the process;
 // and recursive code overflows the stack on deep input (common practice: bound the depth first).
+import { sql } from 'drizzle-orm';
 import request from 'supertest';
 import { afterEach, describe, expect, it } from 'vitest';
 import { createAccount } from '../../server/accounts/accounts.js';
@@ -198,11 +199,9 @@ describe('deeply nested JSON bodies', () => {
     expect(res.headers['content-type']).toMatch(/^application\/problem\+json/);
     expect(res.body.type).toBe('/problems/body-too-deep');
     expect(res.body.detail).toContain(`${MAX_JSON_DEPTH} levels`);
-    const rows = h.sqlite
-      .prepare(
-        'SELECT rl.status, rl.response_body, ue.units FROM request_log rl JOIN usage_events ue USING (request_id)',
-      )
-      .all() as { status: number; response_body: string; units: number }[];
+    const rows = await h.store.rows<{ status: number; response_body: string; units: number }>(
+      sql`SELECT rl.status, rl.response_body, ue.units FROM request_log rl JOIN usage_events ue USING (request_id)`,
+    );
     expect(rows).toEqual([
       { status: 400, response_body: expect.stringContaining('body-too-deep'), units: 0 },
     ]);
@@ -224,12 +223,11 @@ describe('deeply nested JSON bodies', () => {
       .send(nested(63));
     expect(res.status).toBe(200);
     expect(JSON.stringify(res.body.echo)).toBe(nested(63));
-    const row = h.sqlite.prepare('SELECT status, request_body FROM request_log').get() as {
-      status: number;
-      request_body: string;
-    };
-    expect(row.status).toBe(200);
-    expect(row.request_body).toContain('[nested too deep]');
+    const [row] = await h.store.rows<{ status: number; request_body: string }>(
+      sql`SELECT status, request_body FROM request_log`,
+    );
+    expect(row!.status).toBe(200);
+    expect(row!.request_body).toContain('[nested too deep]');
   });
 
   it(`accepts exactly ${MAX_JSON_DEPTH} levels and refuses ${MAX_JSON_DEPTH + 1}`, async () => {

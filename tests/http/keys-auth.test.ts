@@ -1,8 +1,10 @@
 // API-key authentication: 401 variants (RFC 6750 §3: a 401 carries "WWW-Authenticate: Bearer"),
 // 403 for a missing scope (RFC 9110 §15.5.4), revocation, rotation overlap and expiry.
+import { sql } from 'drizzle-orm';
 import request from 'supertest';
 import { describe, expect, it } from 'vitest';
 import { createKey, hashKey, revokeKey, rotateKey } from '../../server/accounts/keys.js';
+import { readInstant } from '../../server/db/store.js';
 import { makeHarness, usageRows } from './helpers.js';
 
 const later = (d: Date, seconds: number) => new Date(d.getTime() + seconds * 1000);
@@ -22,7 +24,7 @@ describe('401 unauthorized', () => {
     expect(res.headers['content-type']).toMatch(/^application\/problem\+json/); // RFC 9457 §3
     expect(res.body.type).toBe('/problems/unauthorized');
     expect(res.body.detail).toMatch(detail);
-    expect(usageRows(h.sqlite)).toHaveLength(0); // no account is known, so nothing is metered
+    expect(await usageRows(h.store)).toHaveLength(0); // no account is known, so nothing is metered
   });
 
   it('says "unknown", not "wrong secret", when a real public id comes with a wrong secret', async () => {
@@ -43,7 +45,7 @@ describe('403 forbidden', () => {
     expect(res.status).toBe(403);
     expect(res.body.type).toBe('/problems/forbidden');
     expect(res.body.detail).toContain('"usage"');
-    expect(usageRows(h.sqlite)).toEqual([
+    expect(await usageRows(h.store)).toEqual([
       expect.objectContaining({ operation: 'usage.read', status: 403, units: 0 }),
     ]);
   });
@@ -125,9 +127,9 @@ describe('key lifecycle', () => {
   it('updates last_used_at when a key is used', async () => {
     const h = await makeHarness();
     await request(h.app).get('/v1/usage').set('Authorization', `Bearer ${h.token}`);
-    const row = h.sqlite.prepare('SELECT last_used_at FROM api_keys WHERE id = ?').get(h.keyId) as {
-      last_used_at: number;
-    };
-    expect(row.last_used_at).toBe(h.clock.now.getTime());
+    const [row] = await h.store.rows<{ last_used_at: unknown }>(
+      sql`SELECT last_used_at FROM api_keys WHERE id = ${h.keyId}`,
+    );
+    expect(readInstant(row!.last_used_at).getTime()).toBe(h.clock.now.getTime());
   });
 });

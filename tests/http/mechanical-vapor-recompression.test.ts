@@ -74,7 +74,7 @@ describe(`POST ${PATH}`, () => {
     expect(b.cautions.map((c: { code: string }) => c.code)).toEqual(
       expect.arrayContaining(['rotating-machinery', 'hot-compressor-discharge', 'vacuum-equipment']),
     );
-    const row = usageRows(h.sqlite).at(-1)!;
+    const row = (await usageRows(h.store)).at(-1)!;
     expect(row).toMatchObject({
       operation: 'evaporators.mechanical-vapor-recompression',
       status: 200,
@@ -149,7 +149,7 @@ describe(`POST ${PATH}`, () => {
     expect(none.status).toBe(422);
     expect(none.body.errors[0].field).toBe('body.temperatureDifference');
     // a refused request costs nothing
-    expect(usageRows(h.sqlite).at(-1)).toMatchObject({ status: 422, units: 0 });
+    expect((await usageRows(h.store)).at(-1)).toMatchObject({ status: 422, units: 0 });
   });
 
   it('refuses an isentropic efficiency outside (0, 1] with the range, and warns outside 0.5–0.9', async () => {

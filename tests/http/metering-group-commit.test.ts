@@ -2,6 +2,7 @@
 // the records of one event-loop turn share one transaction, no response leaves before the
 // transaction holding its row has committed, and a record the database refuses costs only its own
 // request a 500 (never an unbilled 2xx).
+import { sql } from 'drizzle-orm';
 import request from 'supertest';
 import { describe, expect, it } from 'vitest';
 import {
@@ -11,6 +12,7 @@ import {
   type RequestRecord,
 } from '../../server/accounts/metering.js';
 import { unitsUsedThisMonth } from '../../server/accounts/usage.js';
+import type { Store } from '../../server/db/store.js';
 import { makeHarness, usageRows, type Harness } from './helpers.js';
 
 function record(h: Harness, requestId: string, units: number, status = 200): RequestRecord {
@@ -31,70 +33,106 @@ function record(h: Harness, requestId: string, units: number, status = 200): Req
   };
 }
 
-const eventCount = (h: Harness) =>
-  (h.sqlite.prepare('SELECT COUNT(*) AS n FROM usage_events').get() as { n: number }).n;
+async function count(h: Harness, table: 'usage_events' | 'request_log'): Promise<number> {
+  const [row] = await h.store.rows<{ n: number | string }>(sql`SELECT COUNT(*) AS n FROM ${sql.raw(table)}`);
+  return Number(row!.n);
+}
+const eventCount = (h: Harness) => count(h, 'usage_events');
+
+async function stepsOfSteamState(h: Harness): Promise<{ requests: number; units: number; errors: number }[]> {
+  const rows = await h.store.rows<Record<'requests' | 'units' | 'errors', number>>(
+    sql`SELECT requests, units, errors FROM usage_daily WHERE operation = ${'steam.state'}`,
+  );
+  return rows.map((r) => ({
+    requests: Number(r.requests),
+    units: Number(r.units),
+    errors: Number(r.errors),
+  }));
+}
+
+/** An error's message with its cause's (Drizzle wraps the driver's error on PostgreSQL). */
+function messageOf(err: unknown): string {
+  const e = err as Error & { cause?: Error };
+  return `${e.message} ${e.cause?.message ?? ''}`;
+}
+
+/** Makes the database refuse usage events with this request id (stands in for a full disk or a constraint). */
+async function refuseRequestId(store: Store, requestId: string): Promise<void> {
+  if (store.dialect === 'sqlite') {
+    await store.execute(
+      sql.raw(`CREATE TRIGGER refuse_one BEFORE INSERT ON usage_events WHEN NEW.request_id = '${requestId}'
+               BEGIN SELECT RAISE(ABORT, 'refused for the test'); END`),
+    );
+  } else {
+    await store.execute(
+      sql.raw(`CREATE FUNCTION refuse_one() RETURNS trigger LANGUAGE plpgsql AS $$
+               BEGIN RAISE EXCEPTION 'refused for the test'; END $$`),
+    );
+    await store.execute(
+      sql.raw(`CREATE TRIGGER refuse_one BEFORE INSERT ON usage_events FOR EACH ROW
+               WHEN (NEW.request_id = '${requestId}') EXECUTE FUNCTION refuse_one()`),
+    );
+  }
+}
 
 describe('metering group commit', () => {
   it('holds every record of a turn until the next turn, commits them together, then calls back in order', async () => {
     const h = await makeHarness();
-    const writer = meteringWriter(h.sqlite);
+    const writer = meteringWriter(h.store);
     const calls: string[] = [];
+    // Each callback reads the events at once: after the commit, the whole group is readable.
+    const seen: Promise<number>[] = [];
+    let allDone!: () => void;
+    const finished = new Promise<void>((resolve) => (allDone = resolve));
     for (let i = 0; i < 5; i++) {
       writer.submit(record(h, `req-${i}`, 2), (err) => {
-        // Called after the commit: the row is already readable.
-        calls.push(`${i}:${err === undefined ? 'ok' : 'error'}:${eventCount(h)}`);
+        calls.push(`${i}:${err === undefined ? 'ok' : 'error'}`);
+        seen.push(eventCount(h));
+        if (i === 4) allDone();
       });
     }
     expect(writer.pending).toBe(5);
-    expect(eventCount(h)).toBe(0);
-    await new Promise((resolve) => setImmediate(resolve));
+    expect(await eventCount(h)).toBe(0);
+    expect(calls).toEqual([]);
+    await finished;
     expect(writer.pending).toBe(0);
-    expect(calls).toEqual(['0:ok:5', '1:ok:5', '2:ok:5', '3:ok:5', '4:ok:5']);
+    expect(calls).toEqual(['0:ok', '1:ok', '2:ok', '3:ok', '4:ok']);
+    expect(await Promise.all(seen)).toEqual([5, 5, 5, 5, 5]);
     // One roll-up row for the group, holding all five requests and their units.
-    expect(
-      h.sqlite
-        .prepare('SELECT requests, units, errors FROM usage_daily WHERE operation = ?')
-        .all('steam.state'),
-    ).toEqual([{ requests: 5, units: 10, errors: 0 }]);
-    expect((h.sqlite.prepare('SELECT COUNT(*) AS n FROM request_log').get() as { n: number }).n).toBe(5);
+    expect(await stepsOfSteamState(h)).toEqual([{ requests: 5, units: 10, errors: 0 }]);
+    expect(await count(h, 'request_log')).toBe(5);
   });
 
   it('adds a later group to the same roll-up row, counting errors and billing no units for them', async () => {
     const h = await makeHarness();
-    const writer = meteringWriter(h.sqlite);
+    const writer = meteringWriter(h.store);
     writer.submit(record(h, 'a', 3), () => {});
-    writer.flush();
+    await writer.flush();
     writer.submit(record(h, 'b', 0, 422), () => {});
     writer.submit(record(h, 'c', 4), () => {});
-    writer.flush();
-    expect(
-      h.sqlite
-        .prepare('SELECT requests, units, errors FROM usage_daily WHERE operation = ?')
-        .get('steam.state'),
-    ).toEqual({ requests: 3, units: 7, errors: 1 });
+    await writer.flush();
+    expect(await stepsOfSteamState(h)).toEqual([{ requests: 3, units: 7, errors: 1 }]);
   });
 
   it('retries a failed group record by record: only the refused record gets the error', async () => {
     const h = await makeHarness();
-    // The database refuses one request id (stands in for a full disk or a constraint).
-    h.sqlite.exec(`CREATE TRIGGER refuse_one BEFORE INSERT ON usage_events WHEN NEW.request_id = 'bad'
-                   BEGIN SELECT RAISE(ABORT, 'refused for the test'); END`);
-    const writer = meteringWriter(h.sqlite);
+    await refuseRequestId(h.store, 'bad');
+    const writer = meteringWriter(h.store);
     const outcome: Record<string, string> = {};
     for (const id of ['good-1', 'bad', 'good-2']) {
       writer.submit(record(h, id, 1), (err) => {
-        outcome[id] = err === undefined ? 'committed' : (err as Error).message;
+        outcome[id] = err === undefined ? 'committed' : messageOf(err);
       });
     }
-    writer.flush();
-    expect(outcome).toEqual({ 'good-1': 'committed', bad: 'refused for the test', 'good-2': 'committed' });
-    expect(usageRows(h.sqlite).map((r) => r.request_id)).toEqual(['good-1', 'good-2']);
+    await writer.flush();
+    expect(outcome).toMatchObject({ 'good-1': 'committed', 'good-2': 'committed' });
+    expect(outcome.bad).toContain('refused for the test');
+    expect((await usageRows(h.store)).map((r) => r.request_id)).toEqual(['good-1', 'good-2']);
   });
 
   it('answers 500 without the result when its row cannot be committed, and 200 to the others', async () => {
     const h = await makeHarness();
-    h.sqlite.exec(`CREATE TRIGGER refuse_one BEFORE INSERT ON usage_events WHEN NEW.request_id = 'unbillable'
-                   BEGIN SELECT RAISE(ABORT, 'refused for the test'); END`);
+    await refuseRequestId(h.store, 'unbillable');
     const auth = `Bearer ${h.token}`;
     const send = (id: string) =>
       request(h.app)
@@ -107,11 +145,7 @@ describe('metering group commit', () => {
     expect(refused.headers['content-type']).toMatch(/^application\/problem\+json/);
     expect(refused.body).toMatchObject({ status: 500, requestId: 'unbillable' });
     expect(JSON.stringify(refused.body)).not.toContain('result-body');
-    expect(
-      usageRows(h.sqlite)
-        .map((r) => r.request_id)
-        .sort(),
-    ).toEqual(['fine-1', 'fine-2']);
+    expect((await usageRows(h.store)).map((r) => r.request_id).sort()).toEqual(['fine-1', 'fine-2']);
     // The refused request's units left the in-flight set: the account is not blocked by them.
     const usage = await request(h.app).get('/v1/usage').set('Authorization', auth);
     expect(usage.status).toBe(200);
@@ -119,28 +153,28 @@ describe('metering group commit', () => {
 
   it('keeps the month total that quotas are checked against equal to the roll-up, across commits and months', async () => {
     const h = await makeHarness();
-    const writer = meteringWriter(h.sqlite);
+    const writer = meteringWriter(h.store);
     const march = h.clock.now;
     const april = new Date('2031-04-01T00:00:05Z');
-    const agree = (at: Date) => {
-      const cached = committedUnitsThisMonth(h.sqlite, h.accountId, at);
-      expect(cached).toBe(unitsUsedThisMonth(h.sqlite, h.accountId, at));
+    const agree = async (at: Date) => {
+      const cached = await committedUnitsThisMonth(h.store, h.accountId, at);
+      expect(cached).toBe(await unitsUsedThisMonth(h.store, h.accountId, at));
       return cached;
     };
-    expect(agree(march)).toBe(0);
+    expect(await agree(march)).toBe(0);
     writer.submit(record(h, 'm1', 7), () => {});
     writer.submit(record(h, 'm2', 0, 500), () => {});
-    expect(agree(march)).toBe(0); // queued, not committed: the quota check counts it as in flight
-    writer.flush();
-    expect(agree(march)).toBe(7);
-    recordRequest(h.sqlite, record(h, 'm3', 4)); // the synchronous path keeps it too
-    expect(agree(march)).toBe(11);
+    expect(await agree(march)).toBe(0); // queued, not committed: the quota check counts it as in flight
+    await writer.flush();
+    expect(await agree(march)).toBe(7);
+    await recordRequest(h.store, record(h, 'm3', 4)); // the single-record path keeps it too
+    expect(await agree(march)).toBe(11);
     // A record of the next month does not touch March's total; April starts from the roll-up.
-    recordRequest(h.sqlite, { ...record(h, 'a1', 5), at: april });
-    expect(agree(march)).toBe(11);
-    expect(agree(april)).toBe(5);
+    await recordRequest(h.store, { ...record(h, 'a1', 5), at: april });
+    expect(await agree(march)).toBe(11);
+    expect(await agree(april)).toBe(5);
     writer.submit({ ...record(h, 'a2', 6), at: april }, () => {});
-    writer.flush();
-    expect(agree(april)).toBe(11);
+    await writer.flush();
+    expect(await agree(april)).toBe(11);
   });
 });

@@ -1,8 +1,10 @@
 // Metering, quotas, rate limits and the request log. The rate-limit headers are checked against
 // IETF draft-ietf-httpapi-ratelimit-headers-07 (RateLimit-Policy and RateLimit fields).
+import { sql } from 'drizzle-orm';
 import request from 'supertest';
 import { describe, expect, it } from 'vitest';
 import { pruneRequestLog } from '../../server/accounts/request-log.js';
+import { readInstant } from '../../server/db/store.js';
 import { makeHarness, usageRows } from './helpers.js';
 
 describe('metering', () => {
@@ -19,7 +21,7 @@ describe('metering', () => {
     await request(h.app).get('/v1/usage').set('Authorization', auth);
     expect([ok.status, bad.status, missing.status]).toEqual([200, 400, 404]);
     // The catalogue says evaporators.multiple-effect costs 5 up front; the route charged 3 more.
-    expect(usageRows(h.sqlite)).toEqual([
+    expect(await usageRows(h.store)).toEqual([
       {
         operation: 'evaporators.multiple-effect',
         status: 200,
@@ -40,9 +42,9 @@ describe('metering', () => {
     h.clock.now = new Date('2031-03-15T09:00:00Z');
     await request(h.app).post('/v1/__test/charge').set('Authorization', auth).send({});
     await request(h.app).get('/v1/nothing-here').set('Authorization', auth);
-    const daily = h.sqlite
-      .prepare('SELECT day, operation, requests, units, errors FROM usage_daily ORDER BY day, operation')
-      .all();
+    const daily = await h.store.rows(
+      sql`SELECT day, operation, requests, units, errors FROM usage_daily ORDER BY day, operation`,
+    );
     expect(daily).toEqual([
       { day: '2031-03-14', operation: 'evaporators.multiple-effect', requests: 2, units: 12, errors: 0 },
       { day: '2031-03-15', operation: 'evaporators.multiple-effect', requests: 1, units: 5, errors: 0 },
@@ -69,8 +71,8 @@ describe('metering', () => {
     await request(h.app)
       .get('/v1/usage')
       .set('Authorization', `Bearer ${h.token}`)
-      .then(() => {
-        rowsWhenResponseArrived = usageRows(h.sqlite).length;
+      .then(async () => {
+        rowsWhenResponseArrived = (await usageRows(h.store)).length;
       });
     expect(rowsWhenResponseArrived).toBe(1);
   });
@@ -89,9 +91,11 @@ describe('quota', () => {
     expect(Number(second.headers['retry-after'])).toBeGreaterThan(0);
     const third = await request(h.app).post('/v1/__test/charge?extra=0').set('Authorization', auth).send({});
     expect(third.status).toBe(429);
-    const billed = h.sqlite.prepare('SELECT SUM(units) AS u FROM usage_events').get() as { u: number };
-    expect(billed.u).toBe(10);
-    expect(usageRows(h.sqlite).map((r) => r.status)).toEqual([200, 429, 429]);
+    const [billed] = await h.store.rows<{ u: number | string }>(
+      sql`SELECT SUM(units) AS u FROM usage_events`,
+    );
+    expect(Number(billed!.u)).toBe(10);
+    expect((await usageRows(h.store)).map((r) => r.status)).toEqual([200, 429, 429]);
     // Free reads still work when the quota is spent.
     expect((await request(h.app).get('/v1/usage').set('Authorization', auth)).status).toBe(200);
   });
@@ -114,7 +118,7 @@ describe('rate limit', () => {
     expect(last!.headers['ratelimit-policy']).toBe('3;w=60');
     expect(last!.headers['ratelimit']).toMatch(/^limit=3, remaining=0, reset=\d+$/);
     expect(last!.headers['x-ratelimit-limit']).toBeUndefined(); // legacy headers off
-    expect(usageRows(h.sqlite).at(-1)).toMatchObject({ status: 429, units: 0 });
+    expect((await usageRows(h.store)).at(-1)).toMatchObject({ status: 429, units: 0 });
   });
 });
 
@@ -126,12 +130,12 @@ describe('request log', () => {
       .set('Authorization', `Bearer ${h.token}`)
       .send({ feed: { massFraction: 0.32 }, password: 'hunter2-hunter2', note: `my key is ${h.token}` });
     expect(res.status).toBe(200);
-    const row = h.sqlite.prepare('SELECT * FROM request_log').get() as Record<string, unknown>;
+    const [row] = await h.store.rows<Record<string, unknown>>(sql`SELECT * FROM request_log`);
     const stored = JSON.stringify(row);
     expect(stored).not.toContain(h.token);
     expect(stored).not.toContain('hunter2');
     expect(stored).not.toMatch(/Bearer/);
-    expect(JSON.parse(row.request_body as string)).toMatchObject({
+    expect(JSON.parse(row!.request_body as string)).toMatchObject({
       feed: { massFraction: 0.32 },
       password: '[redacted]',
     });
@@ -149,19 +153,18 @@ describe('request log', () => {
       .post('/v1/__test/charge')
       .set('Authorization', `Bearer ${off.token}`)
       .send({ a: 1 });
-    expect(off.sqlite.prepare('SELECT request_body, response_body FROM request_log').get()).toEqual({
-      request_body: null,
-      response_body: null,
-    });
+    expect(await off.store.rows(sql`SELECT request_body, response_body FROM request_log`)).toEqual([
+      { request_body: null, response_body: null },
+    ]);
     const on = await makeHarness({ retain: true, config: { logBodyLimitBytes: 100 } });
     await request(on.app)
       .post('/v1/__test/charge')
       .set('Authorization', `Bearer ${on.token}`)
       // Spaced: one unbroken run of 32+ key characters would be redacted as key-shaped.
       .send({ pad: 'y '.repeat(250) });
-    const row = on.sqlite.prepare('SELECT request_body FROM request_log').get() as { request_body: string };
-    expect(Buffer.byteLength(row.request_body)).toBeLessThan(130);
-    expect(row.request_body).toMatch(/\[truncated\]$/);
+    const [row] = await on.store.rows<{ request_body: string }>(sql`SELECT request_body FROM request_log`);
+    expect(Buffer.byteLength(row!.request_body)).toBeLessThan(130);
+    expect(row!.request_body).toMatch(/\[truncated\]$/);
   });
 
   it('prunes rows older than the retention period and keeps newer ones', async () => {
@@ -171,11 +174,11 @@ describe('request log', () => {
     await request(h.app).get('/v1/usage').set('Authorization', auth);
     h.clock.now = new Date('2031-01-25T00:00:00Z');
     await request(h.app).get('/v1/usage').set('Authorization', auth);
-    const removed = pruneRequestLog(h.sqlite, new Date('2031-02-05T00:00:00Z'), 30);
+    const removed = await pruneRequestLog(h.store, new Date('2031-02-05T00:00:00Z'), 30);
     expect(removed).toBe(1);
-    const left = h.sqlite.prepare('SELECT at FROM request_log').all() as { at: number }[];
-    expect(left.map((r) => new Date(r.at).toISOString())).toEqual(['2031-01-25T00:00:00.000Z']);
+    const left = await h.store.rows<{ at: unknown }>(sql`SELECT at FROM request_log`);
+    expect(left.map((r) => readInstant(r.at).toISOString())).toEqual(['2031-01-25T00:00:00.000Z']);
     // Usage events are billing records: pruning the log leaves them alone.
-    expect(usageRows(h.sqlite)).toHaveLength(2);
+    expect(await usageRows(h.store)).toHaveLength(2);
   });
 });

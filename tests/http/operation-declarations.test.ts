@@ -5,6 +5,7 @@
 // the declaration states.
 import fs from 'node:fs';
 import path from 'node:path';
+import { sql } from 'drizzle-orm';
 import request from 'supertest';
 import ts from 'typescript';
 import { describe, expect, it } from 'vitest';
@@ -139,9 +140,9 @@ describe('one declaration per /v1 operation', () => {
       expect(res.body.detail, decl.operation.id).toContain(`"${decl.operation.scope}"`);
       expect(res.body.detail, decl.operation.id).toContain(decl.operation.id);
     }
-    const rows = h.sqlite.prepare('SELECT operation FROM usage_events ORDER BY id').all() as {
-      operation: string;
-    }[];
+    const rows = await h.store.rows<{ operation: string }>(
+      sql`SELECT operation FROM usage_events ORDER BY id`,
+    );
     expect(rows.map((r) => r.operation)).toEqual(v1Operations.map((d) => d.operation.id));
   });
 

@@ -3,6 +3,7 @@
 // in X-Request-Id, or as a key of the other accepted format (a registered bootstrap key: any 32–256
 // characters of [A-Za-z0-9_.-], server/config.ts). Each test reads the row back from the database
 // and checks that no 8-character piece of the secret survives in any column.
+import { sql } from 'drizzle-orm';
 import request from 'supertest';
 import { describe, expect, it } from 'vitest';
 import { createKey, KEY_SHAPED_PATTERN, secretPartOf } from '../../server/accounts/keys.js';
@@ -15,9 +16,9 @@ const BOOTSTRAP_KEYS = [
   '9f86d081884c7d659a2feaa0c55ad015a3bf4f1b2b0b822cd15d6c15b0f00a08',
 ];
 
-function loggedRows(h: Harness): string {
+async function loggedRows(h: Harness): Promise<string> {
   return JSON.stringify(
-    h.sqlite.prepare('SELECT request_id, method, path, request_body, response_body FROM request_log').all(),
+    await h.store.rows(sql`SELECT request_id, method, path, request_body, response_body FROM request_log`),
   );
 }
 
@@ -27,8 +28,8 @@ function leaks(text: string, secret: string): boolean {
   return false;
 }
 
-function expectNoSecret(h: Harness, secret: string): void {
-  const rows = loggedRows(h);
+async function expectNoSecret(h: Harness, secret: string): Promise<void> {
+  const rows = await loggedRows(h);
   expect(rows).not.toBe('[]');
   expect(leaks(rows, secret)).toBe(false);
 }
@@ -46,10 +47,10 @@ describe('request log redaction of an issued key', () => {
     const res = await request(h.app).get(`/v1/liquors/${h.token}`).set('Authorization', auth);
     expect(res.status).toBe(422); // not a liquor id: too long for the id pattern
     expect(res.body.instance).toBe(`/v1/liquors/${REDACTED}`);
-    expectNoSecret(h, secret);
-    expect(h.sqlite.prepare('SELECT path FROM request_log').get()).toEqual({
-      path: `/v1/liquors/${REDACTED}`,
-    });
+    await expectNoSecret(h, secret);
+    expect(await h.store.rows(sql`SELECT path FROM request_log`)).toEqual([
+      { path: `/v1/liquors/${REDACTED}` },
+    ]);
   });
 
   it('keeps no key sent in the query string', async () => {
@@ -58,7 +59,7 @@ describe('request log redaction of an issued key', () => {
       .get(`/v1/steam/saturation?pressure=${h.token}`)
       .set('Authorization', auth);
     expect(res.status).toBe(422);
-    expectNoSecret(h, secret);
+    await expectNoSecret(h, secret);
   });
 
   it('keeps no key sent as a JSON property name', async () => {
@@ -68,7 +69,7 @@ describe('request log redaction of an issued key', () => {
       .set('Authorization', auth)
       .send({ pressure: '100 kPa', temperature: 20, [h.token]: 1 });
     expect(res.status).toBe(422);
-    expectNoSecret(h, secret);
+    await expectNoSecret(h, secret);
   });
 
   it('keeps no key sent as a JSON value', async () => {
@@ -77,7 +78,7 @@ describe('request log redaction of an issued key', () => {
       .post('/v1/steam/state')
       .set('Authorization', auth)
       .send({ pressure: h.token, temperature: 20 });
-    expectNoSecret(h, secret);
+    await expectNoSecret(h, secret);
   });
 
   it('keeps no bare secret part, as a value or as a property name', async () => {
@@ -86,7 +87,7 @@ describe('request log redaction of an issued key', () => {
       .post('/v1/steam/state')
       .set('Authorization', auth)
       .send({ pressure: `${secret} kPa`, temperature: 20, [secret]: secret });
-    expectNoSecret(h, secret);
+    await expectNoSecret(h, secret);
   });
 
   it('keeps no key sent in a CSV body', async () => {
@@ -96,7 +97,7 @@ describe('request log redaction of an issued key', () => {
       .set('Authorization', auth)
       .set('Content-Type', 'text/csv')
       .send(`pressure,temperature\n${h.token},20\n`);
-    expectNoSecret(h, secret);
+    await expectNoSecret(h, secret);
   });
 
   it('replaces an X-Request-Id that carries the key, and keeps a UUID the client chose', async () => {
@@ -107,7 +108,7 @@ describe('request log redaction of an issued key', () => {
       .set('X-Request-Id', `trace-${secret}`);
     expect(res.status).toBe(200);
     expect(leaks(res.headers['x-request-id'] as string, secret)).toBe(false);
-    expectNoSecret(h, secret);
+    await expectNoSecret(h, secret);
     const uuid = '0f8fad5b-d9cb-469f-a165-70867728950e';
     const kept = await request(h.app).get('/v1/usage').set('Authorization', auth).set('X-Request-Id', uuid);
     expect(kept.headers['x-request-id']).toBe(uuid);
@@ -138,7 +139,7 @@ describe.each(BOOTSTRAP_KEYS)('request log redaction of the bootstrap-format key
       .post('/v1/steam/state')
       .set('Authorization', auth)
       .send({ pressure: bootKey, temperature: 20, [bootKey]: 1 });
-    expectNoSecret(h, bootKey);
+    await expectNoSecret(h, bootKey);
   });
 
   it('keeps no trace of it when another key sends it in a body (known only by its shape)', async () => {
@@ -147,7 +148,7 @@ describe.each(BOOTSTRAP_KEYS)('request log redaction of the bootstrap-format key
       .post('/v1/steam/state')
       .set('Authorization', `Bearer ${h.token}`)
       .send({ pressure: `${bootKey} kPa`, temperature: 20, note: { [bootKey]: [bootKey] } });
-    expectNoSecret(h, bootKey);
+    await expectNoSecret(h, bootKey);
   });
 });
 
@@ -189,7 +190,7 @@ describe('the key-shape pattern', () => {
       .post('/v1/steam/state')
       .set('Authorization', `Bearer ${legacy}`)
       .send({ pressure: `${secretPartOf(legacy)!} kPa`, temperature: 20, [legacy]: 1 });
-    expectNoSecret(h, secretPartOf(legacy)!);
+    await expectNoSecret(h, secretPartOf(legacy)!);
   });
 
   it('logs a body it cannot serialise as a note instead of throwing', () => {

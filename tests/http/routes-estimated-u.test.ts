@@ -96,9 +96,9 @@ describe('single effect with an estimated U', () => {
   });
 
   it('meters the calculation and the estimate together', async () => {
-    const before = usageRows(h.sqlite).length;
+    const before = (await usageRows(h.store)).length;
     await request(h.app).post('/v1/evaporators/single-effect').set(auth()).send(single).expect(200);
-    expect(usageRows(h.sqlite).slice(before)).toEqual([
+    expect((await usageRows(h.store)).slice(before)).toEqual([
       expect.objectContaining({
         operation: 'evaporators.single-effect',
         units: UNITS.single + UNITS.estimate,
@@ -106,9 +106,9 @@ describe('single effect with an estimated U', () => {
     ]);
     // a plain U costs the plain price
     const plain = { ...single, body: { pressure: 31, overallHeatTransferCoefficient: 1500 } };
-    const b2 = usageRows(h.sqlite).length;
+    const b2 = (await usageRows(h.store)).length;
     await request(h.app).post('/v1/evaporators/single-effect').set(auth()).send(plain).expect(200);
-    expect(usageRows(h.sqlite).slice(b2)).toEqual([
+    expect((await usageRows(h.store)).slice(b2)).toEqual([
       expect.objectContaining({ operation: 'evaporators.single-effect', units: UNITS.single }),
     ]);
   });
@@ -128,7 +128,7 @@ describe('single effect with an estimated U', () => {
   });
 
   it('refuses a liquor without thermal conductivity, naming the estimate field, and charges nothing', async () => {
-    const before = usageRows(h.sqlite).length;
+    const before = (await usageRows(h.store)).length;
     const res = await request(h.app)
       .post('/v1/evaporators/single-effect')
       .set(auth())
@@ -144,11 +144,7 @@ describe('single effect with an estimated U', () => {
     expect(res.body.errors[0].field).toBe(
       'body.overallHeatTransferCoefficient.estimate.liquorProperties.thermalConductivity',
     );
-    expect(
-      usageRows(h.sqlite)
-        .slice(before)
-        .every((r) => r.units === 0),
-    ).toBe(true);
+    expect((await usageRows(h.store)).slice(before).every((r) => r.units === 0)).toBe(true);
   });
 
   it('refuses an invalid tube with the field and range', async () => {
@@ -247,12 +243,12 @@ describe('six-effect train with an estimated U in each effect', () => {
       ...train,
       overallHeatTransferCoefficients: [2800, 2300, { estimate: juice }, 1800, 1500, 1100],
     };
-    const before = usageRows(h.sqlite).length;
+    const before = (await usageRows(h.store)).length;
     const res = await request(h.app).post('/v1/evaporators/multiple-effect').set(auth()).send(mixed);
     expect(res.status).toBe(200);
     expect(res.body.effects[0].heatTransfer).toBeUndefined();
     expect(res.body.effects[2].heatTransfer.area).toBe('outside');
-    expect(usageRows(h.sqlite).slice(before)).toEqual([
+    expect((await usageRows(h.store)).slice(before)).toEqual([
       expect.objectContaining({
         operation: 'evaporators.multiple-effect',
         units: UNITS.train + 6 * UNITS.perEffect + UNITS.estimate,
@@ -346,7 +342,7 @@ describe('MVR with an estimated U', () => {
   };
 
   it('estimates U at the chest temperature and reports it, metered with the estimate', async () => {
-    const before = usageRows(h.sqlite).length;
+    const before = (await usageRows(h.store)).length;
     const res = await request(h.app)
       .post('/v1/evaporators/mechanical-vapor-recompression')
       .set(auth())
@@ -358,7 +354,7 @@ describe('MVR with an estimated U', () => {
     expect(ht.temperatureDifference).toBeCloseTo(5, 6);
     const alone = await standalone(ht, 'seawater', fallingFilm);
     expect(alone.overallHeatTransferCoefficient / ht.overallHeatTransferCoefficient).toBeCloseTo(1, 5);
-    expect(usageRows(h.sqlite).slice(before)[0]).toMatchObject({
+    expect((await usageRows(h.store)).slice(before)[0]).toMatchObject({
       operation: 'evaporators.mechanical-vapor-recompression',
       units: UNITS.mvr + UNITS.estimate,
     });

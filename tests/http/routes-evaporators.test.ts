@@ -73,7 +73,7 @@ describe('POST /v1/evaporators/single-effect', () => {
 
 describe('POST /v1/evaporators/multiple-effect', () => {
   it('designs a three-effect forward train with equal areas and charges 5 + 5 per effect', async () => {
-    const before = usageRows(h.sqlite).length;
+    const before = (await usageRows(h.store)).length;
     const res = await request(h.app)
       .post('/v1/evaporators/multiple-effect')
       .set(auth())
@@ -92,7 +92,7 @@ describe('POST /v1/evaporators/multiple-effect', () => {
     for (const a of areas) expect(Math.abs(a - areas[0]) / areas[0]).toBeLessThan(0.01);
     // Solute balance F·x_F = L·x_L (exact): 2·0.1/0.3 kg/s of product.
     expect(res.body.product.massFlow).toBeCloseTo((2 * 0.1) / 0.3, 6);
-    const row = usageRows(h.sqlite).slice(before).at(-1);
+    const row = (await usageRows(h.store)).slice(before).at(-1);
     // Operation catalogue (shared/operations.ts): 5 units + 5 per effect.
     expect(row?.units).toBe(20);
   });

@@ -81,16 +81,16 @@ describe('POST /v1/heat-transfer/overall-coefficient', () => {
   });
 
   it('meters a success at the catalogue cost', async () => {
-    const before = usageRows(h.sqlite).length;
+    const before = (await usageRows(h.store)).length;
     await request(h.app).post(PATH).set(auth()).send(brine).expect(200);
-    const rows = usageRows(h.sqlite).slice(before);
+    const rows = (await usageRows(h.store)).slice(before);
     expect(rows).toEqual([
       expect.objectContaining({ operation: 'heat-transfer.overall-coefficient', units: 2 }),
     ]);
   });
 
   it('refuses a liquor model without a needed property, naming it, and charges nothing', async () => {
-    const before = usageRows(h.sqlite).length;
+    const before = (await usageRows(h.store)).length;
     const res = await request(h.app)
       .post(PATH)
       .set(auth())
@@ -98,11 +98,7 @@ describe('POST /v1/heat-transfer/overall-coefficient', () => {
     expect(res.status).toBe(422);
     expect(res.body.errors[0].field).toBe('liquorProperties.thermalConductivity');
     expect(res.body.errors[0].message).toMatch(/gives no thermal conductivity/);
-    expect(
-      usageRows(h.sqlite)
-        .slice(before)
-        .every((r) => r.units === 0),
-    ).toBe(true);
+    expect((await usageRows(h.store)).slice(before).every((r) => r.units === 0)).toBe(true);
   });
 
   it('estimates a caustic falling film from the NaOH model alone, saying its conductivity is Riedel’s, extrapolated', async () => {

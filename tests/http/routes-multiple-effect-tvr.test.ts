@@ -224,6 +224,6 @@ describe('a thermocompressor case in a batch', () => {
     expect(res.body).toMatchObject({ count: 2, succeeded: 1, failed: 1 });
     expect(res.body.results[0].result.thermocompressor.entrainedFromEffect).toBe(4);
     expect(res.body.results[1].problem.errors[0].field).toBe('cases[1].thermocompressor.motivePressure');
-    expect(usageRows(hb.sqlite).map((r) => r.operation)).toEqual(['batch']);
+    expect((await usageRows(hb.store)).map((r) => r.operation)).toEqual(['batch']);
   });
 });

@@ -347,7 +347,10 @@ describe('refusals', () => {
     const res = await request(h.app).post(STUDY).set(auth()).send(body);
     expect(res.status).toBe(422);
     expect((res.body.errors as Errors).map((e) => e.field)).toContain(field);
-    expect(usageRows(h.sqlite).at(-1)).toMatchObject({ operation: 'studies.evaporator-schemes', units: 0 });
+    expect((await usageRows(h.store)).at(-1)).toMatchObject({
+      operation: 'studies.evaporator-schemes',
+      units: 0,
+    });
   });
 
   it('states both bounds of a refused price in its message and range', async () => {
@@ -393,7 +396,10 @@ describe('refusals', () => {
       .set(auth())
       .send({ ...single(1), product: { massFraction: 0.05 } });
     expect(res.body.detail).toBe(oneBad.body.detail);
-    expect(usageRows(h.sqlite).at(-3)).toMatchObject({ operation: 'studies.evaporator-schemes', units: 0 });
+    expect((await usageRows(h.store)).at(-3)).toMatchObject({
+      operation: 'studies.evaporator-schemes',
+      units: 0,
+    });
   });
 });
 
@@ -423,7 +429,7 @@ describe('metering', () => {
         makeUpSteam: duty.steam,
       });
     expect(mvrCall.status).toBe(200);
-    const rows = usageRows(m.sqlite);
+    const rows = await usageRows(m.store);
     const singles = rows.slice(1).reduce((s, r) => s + r.units, 0);
     // 1…4 effects at 5 + 5·n each = 70, and the MVR call's 5.
     expect(singles).toBe(75);
@@ -447,7 +453,7 @@ describe('metering', () => {
       .send({ ...tight, maxEffects: 5, prices });
     expect(res.status).toBe(200);
     for (let n = 1; n <= 5; n++) await request(m.app).post(SINGLE).set(auth(m.token)).send(single(n, tight));
-    const rows = usageRows(m.sqlite);
+    const rows = await usageRows(m.store);
     const singles = rows.slice(1).reduce((s, r) => s + r.units, 0);
     expect(rows.slice(1).map((r) => r.status)).toEqual([200, 200, 200, 422, 422]);
     expect(singles).toBe(10 + 15 + 20); // 1, 2 and 3 effects
@@ -461,7 +467,7 @@ describe('metering', () => {
     const res = await request(m.app).post(STUDY).set(auth(m.token)).send(study());
     expect(res.status).toBe(429);
     expect(res.body.detail).toMatch(/costs 70 units/);
-    expect(usageRows(m.sqlite).at(-1)).toMatchObject({ status: 429, units: 0 });
+    expect((await usageRows(m.store)).at(-1)).toMatchObject({ status: 429, units: 0 });
     const ok = await request(m.app)
       .post(STUDY)
       .set(auth(m.token))

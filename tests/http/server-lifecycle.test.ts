@@ -9,6 +9,7 @@ import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import Database from 'better-sqlite3';
+import { sql } from 'drizzle-orm';
 import { afterEach, describe, expect, it } from 'vitest';
 import { createAccount } from '../../server/accounts/accounts.js';
 import { createKey, revokeKey } from '../../server/accounts/keys.js';
@@ -117,7 +118,7 @@ describe('header and body timeouts', () => {
     });
     // The request log says what the client was told, and nothing is charged.
     await sleep(50);
-    expect(usageRows(h.sqlite).filter((r) => r.request_id === 'slow-body-1')).toEqual([
+    expect((await usageRows(h.store)).filter((r) => r.request_id === 'slow-body-1')).toEqual([
       { operation: 'unmatched', status: 408, units: 0, request_id: 'slow-body-1' },
     ]);
   });
@@ -302,19 +303,23 @@ describe('the key is checked again when the body is complete', () => {
       engineVersion: 'test-engine',
     });
     const other = new Database(file);
-    const status = (requestId: string) =>
-      sqlite.prepare('SELECT status, units FROM usage_events WHERE request_id = ?').get(requestId);
+    const status = async (requestId: string) =>
+      (await store.rows(sql`SELECT status, units FROM usage_events WHERE request_id = ${requestId}`))[0];
     // A key refused after its body is treated as at the door: a request-log row for the account,
     // no usage event (DEVELOPERS.md, "A refused key is logged for its account").
-    const refusal = (requestId: string) => ({
-      usageEvents: (
-        sqlite.prepare('SELECT COUNT(*) AS n FROM usage_events WHERE request_id = ?').get(requestId) as {
-          n: number;
-        }
-      ).n,
-      logged: sqlite
-        .prepare('SELECT account_id AS accountId, status FROM request_log WHERE request_id = ?')
-        .get(requestId),
+    const refusal = async (requestId: string) => ({
+      usageEvents: Number(
+        (
+          await store.rows<{ n: number | string }>(
+            sql`SELECT COUNT(*) AS n FROM usage_events WHERE request_id = ${requestId}`,
+          )
+        )[0]!.n,
+      ),
+      logged: (
+        await store.rows(
+          sql`SELECT account_id AS "accountId", status FROM request_log WHERE request_id = ${requestId}`,
+        )
+      )[0],
     });
     return {
       app,
@@ -367,7 +372,7 @@ describe('the key is checked again when the body is complete', () => {
       type: '/problems/unauthorized',
       detail: 'The API key has been revoked.',
     });
-    expect(f.refusal('revoked-mid-body')).toEqual({
+    expect(await f.refusal('revoked-mid-body')).toEqual({
       usageEvents: 0,
       logged: { accountId: f.accountId, status: 401 },
     });
@@ -386,7 +391,7 @@ describe('the key is checked again when the body is complete', () => {
     const answer = await halfThen(port, head, body, () => revokeKey(f.db, f.keyId, f.clock.now));
     expect(answer.raw).toMatch(/^HTTP\/1\.1 401 /);
     expect(answer.body).toMatchObject({ detail: 'The API key has been revoked.' });
-    expect(f.refusal('revoked-mid-upload')).toEqual({
+    expect(await f.refusal('revoked-mid-upload')).toEqual({
       usageEvents: 0,
       logged: { accountId: f.accountId, status: 401 },
     });
@@ -404,7 +409,7 @@ describe('the key is checked again when the body is complete', () => {
       f.clock.now = new Date('2031-03-14T11:00:01Z');
     });
     expect(answer.body).toMatchObject({ status: 401, detail: 'The API key has expired.' });
-    expect(f.refusal('expired-mid-body')).toEqual({
+    expect(await f.refusal('expired-mid-body')).toEqual({
       usageEvents: 0,
       logged: { accountId: f.accountId, status: 401 },
     });
@@ -418,7 +423,7 @@ describe('the key is checked again when the body is complete', () => {
       'X-Request-Id: valid-mid-body\r\nContent-Type: application/json\r\n';
     const answer = await halfThen(port, head, JSON.stringify({ note: 'z' }), () => undefined);
     expect(answer.raw).toMatch(/^HTTP\/1\.1 200 /);
-    expect(f.status('valid-mid-body')).toEqual({ status: 200, units: 5 });
+    expect(await f.status('valid-mid-body')).toEqual({ status: 200, units: 5 });
   });
 });
 

@@ -5,8 +5,8 @@
  * handler) finishes the response, the request's record (usage event, daily roll-up, request-log
  * row) goes to the app's group-commit writer (server/accounts/metering.ts), and the original
  * `res.end`, which hands the bytes to the socket, is called only once the transaction holding the
- * record has committed: on the next turn of the event loop, together with the other requests
- * finished in this one. Express's `res.send`/`res.json` write the whole body through a single
+ * record has committed, together with the other requests finished in this turn of the event loop
+ * (on SQLite in the next turn; on PostgreSQL once its COMMIT is acknowledged). Express's `res.send`/`res.json` write the whole body through a single
  * `res.end`, so for JSON responses no byte leaves before the row is committed. (A streamed
  * response would send headers with its first `res.write`; its row is still committed before the
  * final chunk.) If the client disconnects first, the request is recorded with status 499 when
@@ -17,11 +17,14 @@
  * Quota: each request's meter is kept in a per-account in-flight set until its row is written.
  * `meter.usedByOthers()` (used by `chargeUnits` when units are charged, i.e. after the body is
  * read) returns the units committed this month plus those charged by the account's other
- * in-flight requests, so concurrent requests cannot spend the same remaining units twice.
+ * in-flight requests, so concurrent requests cannot spend the same remaining units twice. The
+ * committed units come from memory (server/accounts/metering.ts), so the check stays synchronous;
+ * the middleware awaits only the month's first read on PostgreSQL.
  */
 import type { Request, RequestHandler, Response } from 'express';
 import {
-  committedUnitsThisMonth,
+  knownUnitsThisMonth,
+  loadUnitsThisMonth,
   meteringWriter,
   type MeteringWriter,
   type RequestRecord,
@@ -83,6 +86,8 @@ class MeteredRequest implements MeterState {
   quota: number;
   usedByOthersAtCharge?: number;
   private recorded = false;
+  /** PostgreSQL: the clock when the request was metered (its month total was read then). */
+  startedAt: Date | undefined;
   private readonly siblings: Set<MeteredRequest>;
   private readonly originalEnd: (...args: unknown[]) => Response;
   /** The presented key, kept only when a logged body must be redacted. */
@@ -118,7 +123,20 @@ class MeteredRequest implements MeterState {
     let pending = 0;
     for (const other of this.siblings) if (other !== this) pending += other.units;
     const { deps } = this.ctx;
-    return committedUnitsThisMonth(deps.sqlite, this.auth.accountId, deps.clock()) + pending;
+    const { store } = deps;
+    const accountId = this.auth.accountId;
+    const now = deps.clock();
+    // Known: read on SQLite now, on PostgreSQL by the middleware before the request went on. The
+    // one gap: the month turned during the request on PostgreSQL; it is then checked against the
+    // month it started in, and the new month is read for the requests after it.
+    let committed = knownUnitsThisMonth(store, accountId, now);
+    if (committed === undefined) {
+      loadUnitsThisMonth(store, accountId, now)?.catch((err: unknown) =>
+        console.error('[metering] could not read the month total:', err),
+      );
+      committed = knownUnitsThisMonth(store, accountId, this.startedAt ?? now) ?? 0;
+    }
+    return committed + pending;
   }
 
   /** Leaves the in-flight set once the record is committed (or could not be). */
@@ -259,13 +277,20 @@ function install(meter: MeteredRequest, res: Response): void {
 }
 
 export function metering(deps: AppDeps): MeteringMiddleware {
-  const ctx: MeteringContext = { deps, writer: meteringWriter(deps.sqlite), inFlight: new Map() };
+  const ctx: MeteringContext = { deps, writer: meteringWriter(deps.store), inFlight: new Map() };
   const middleware: RequestHandler = (req, res, next) => {
     const auth = res.locals.auth;
     if (!auth) throw new Error('metering must run after authentication');
     const meter = new MeteredRequest(ctx, req, res, auth);
     res.locals.meter = meter;
     install(meter, res);
+    // PostgreSQL: the month total the quota is checked against is read before the request goes on
+    // (only the account's first request of the month waits). SQLite reads it at the charge.
+    if (!deps.store.sqlite) {
+      meter.startedAt = deps.clock();
+      const loading = loadUnitsThisMonth(deps.store, auth.accountId, meter.startedAt);
+      if (loading) return loading.then(() => next());
+    }
     next();
   };
   return Object.assign(middleware, {

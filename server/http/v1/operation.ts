@@ -18,7 +18,6 @@
 import type { Request, RequestHandler, Response, Router } from 'express';
 import type { z } from 'zod';
 import type { CatalogueEntry } from '../../../shared/operations.js';
-import type { Db, Sqlite } from '../../db/client.js';
 import type { Store } from '../../db/store.js';
 import type { AppDeps } from '../../deps.js';
 import {
@@ -38,10 +37,8 @@ import { validate } from '../validate.js';
 /** What a calculation may use besides its input. */
 export interface OperationContext {
   accountId: number;
-  /** The data store (stored liquors). */
+  /** The data store (server/db/store.ts). */
   store: Store;
-  db: Db;
-  sqlite: Sqlite;
   engineVersion: string;
   clock: () => Date;
   /** The worker threads of heavy calculations (absent: everything inline). */
@@ -116,7 +113,10 @@ export interface OperationDeclaration<
    */
   load?: (parts: { params: Out<P>; query: Out<Q>; body: Out<B> }, ctx: OperationContext) => L | Promise<L>;
   loadAfterBody?: boolean;
-  /** The calculation: input in SI → the response body. */
+  /**
+   * The calculation: input in SI → the response body. A run that reads the database returns a
+   * promise (the router awaits it; such an operation is not run in a batch).
+   */
   run?: (input: OperationInput<P, Q, B, L>, ctx: OperationContext) => R | Promise<R>;
   /**
    * A heavy calculation, in three steps so that the middle one may run in a worker thread
@@ -325,8 +325,6 @@ function contextOf(res: Response, deps: AppDeps): OperationContext {
   return {
     accountId: res.locals.auth!.accountId,
     store: deps.store,
-    db: deps.db,
-    sqlite: deps.sqlite,
     engineVersion: deps.engineVersion,
     clock: deps.clock,
     ...(deps.enginePool ? { enginePool: deps.enginePool } : {}),
@@ -348,7 +346,8 @@ export function mountOperation(router: Router, decl: AnyOperation, deps: AppDeps
         }
         const prepared = await prepareOperation(op, req, contextOf(res, deps));
         let result: unknown;
-        if ('done' in prepared) result = prepared.done;
+        if ('done' in prepared)
+          result = prepared.done instanceof Promise ? await prepared.done : prepared.done;
         else if (prepared.offload && pooled(deps.enginePool)) {
           let outcome: TaskOutcome;
           try {

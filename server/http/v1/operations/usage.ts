@@ -37,5 +37,6 @@ export const usageRead = declareOperation({
   response: { description: 'Usage this month', schema: UsageResponseSchema, example: usageExample },
   send: 'json',
   // parsed through the contract so the response can never drift from the documented schema
-  run: (_input, ctx) => UsageResponseSchema.parse(monthUsage(ctx.sqlite, ctx.accountId, ctx.clock())),
+  run: async (_input, ctx) =>
+    UsageResponseSchema.parse(await monthUsage(ctx.store, ctx.accountId, ctx.clock())),
 });
