@@ -284,6 +284,91 @@ function chunks<T>(rows: readonly T[]): T[][] {
  * commit groups touching the same rows take their locks in the same order (no deadlock).
  */
 async function commitPostgres(store: Store, records: readonly RequestRecord[]): Promise<void> {
+  const charge = await store.transaction(async (tx) => {
+    const decided = await chargeWithinQuotas(tx, records);
+    await writePostgres(
+      tx,
+      records.map((r) => (decided.refused.has(r) ? { ...r, status: 429, units: 0, responseBody: null } : r)),
+    );
+    return decided;
+  });
+  // Committed: the refusals stand, and the month totals this node knows become the database's,
+  // other nodes' units included.
+  for (const [record, refusal] of charge.refused) refusals.set(record, refusal);
+  const totals = totalsFor(databaseOf(store));
+  // (Only totals already known: one not yet read is read, queued behind this commit, on first use.)
+  for (const [accountId, known] of charge.after) if (totals.has(accountId)) totals.set(accountId, known);
+}
+
+/**
+ * A record the shared database refused to charge: between the node's own check (the month total
+ * it knew, see {@link knownUnitsThisMonth}) and the commit, other nodes spent the account's quota.
+ * The record is written as a 429 with 0 units, and the client gets the quota problem instead of
+ * its result (server/http/middleware/metering.ts).
+ */
+export class QuotaSpentElsewhere extends Error {
+  constructor(
+    readonly units: number,
+    readonly remaining: number,
+    readonly quota: number,
+  ) {
+    super(`quota spent meanwhile: ${units} units asked, ${remaining} of ${quota} remain`);
+  }
+}
+
+/** The refusal of each record refused at its commit, for its callback. */
+const refusals = new WeakMap<RequestRecord, QuotaSpentElsewhere>();
+export function refusalOf(record: RequestRecord): QuotaSpentElsewhere | undefined {
+  return refusals.get(record);
+}
+
+/**
+ * Quotas across nodes (PostgreSQL). Each node checks a charge against the month total it knows,
+ * which misses what other nodes committed since it last read it, so the database decides at the
+ * commit: the accounts charged in the group are locked (`SELECT … FOR UPDATE`, in id order so two
+ * nodes cannot deadlock), their month totals read from usage_daily, which no other commit for
+ * those accounts can change until this one ends, and the records charged in order; one that no
+ * longer fits its account's quota is refused (429, 0 units). So the units committed in a month
+ * never exceed the quota, whatever the number of nodes. Returns the month totals after the group.
+ */
+async function chargeWithinQuotas(
+  tx: Store,
+  records: readonly RequestRecord[],
+): Promise<{
+  refused: Map<RequestRecord, QuotaSpentElsewhere>;
+  after: Map<number, { month: string; units: number }>;
+}> {
+  const refused = new Map<RequestRecord, QuotaSpentElsewhere>();
+  const after = new Map<number, { month: string; units: number }>();
+  const charged = records.filter((r) => !r.logOnly && r.units > 0);
+  if (charged.length === 0) return { refused, after };
+  const ids = [...new Set(charged.map((r) => r.accountId))].sort((a, b) => a - b);
+  const locked = await tx.rows<{ id: number; quota: number | string }>(
+    sql`SELECT id, monthly_unit_quota AS quota FROM accounts
+        WHERE id IN (${sql.join(ids, sql`, `)}) ORDER BY id FOR UPDATE`,
+  );
+  const quotaOf = new Map(locked.map((a) => [Number(a.id), Number(a.quota)]));
+  const used = new Map<string, number>();
+  for (const r of charged) {
+    const month = utcMonth(r.at);
+    const key = `${r.accountId}\u0000${month}`;
+    let units = used.get(key);
+    if (units === undefined) units = await unitsUsedThisMonth(tx, r.accountId, r.at);
+    const quota = quotaOf.get(r.accountId) ?? 0;
+    if (units + r.units > quota) {
+      refused.set(r, new QuotaSpentElsewhere(r.units, Math.max(0, quota - units), quota));
+    } else {
+      units += r.units;
+    }
+    used.set(key, units);
+    after.set(r.accountId, { month, units });
+  }
+  return { refused, after };
+}
+
+/** The group's rows (see {@link commitPostgres}), in the caller's transaction. */
+async function writePostgres(tx: Store, records: readonly RequestRecord[]): Promise<void> {
+  const store = tx;
   const events: (typeof store.t.usageEvents.$inferInsert)[] = [];
   const logs: (typeof store.t.requestLog.$inferInsert)[] = [];
   const daily = new Map<string, DailyRoll>();
@@ -373,7 +458,6 @@ async function commitPostgres(store: Store, records: readonly RequestRecord[]): 
         );
     }
   });
-  advanceTotals(totalsFor(databaseOf(store)), records);
 }
 
 /** Writes one record durably in its own transaction. Rejects if the database refuses. */
@@ -491,12 +575,12 @@ function postgresWriter(store: Store): MeteringWriter {
         } catch (err) {
           error = err;
         }
-        settle(done[i]!, error);
+        settle(done[i]!, error ?? refusalOf(group[i]!));
       }
       return;
     }
     // Released only now: every response of the group leaves after its COMMIT.
-    for (const cb of done) settle(cb);
+    for (let i = 0; i < group.length; i++) settle(done[i]!, refusalOf(group[i]!));
   };
 
   const run = async (): Promise<void> => {

@@ -12,6 +12,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import {
   committedUnitsThisMonth,
   meteringWriter,
+  QuotaSpentElsewhere,
   recordRequest,
   type RequestRecord,
 } from '../../server/accounts/metering.js';
@@ -467,5 +468,51 @@ describe.each(['sqlite', 'postgres'] as const)('the metering middleware on %s', 
     expect(usage.quota.used).toBe(97);
     expect(usage.totals).toEqual({ requests: 5, units: 97, errors: 2 });
     expect(await committedUnitsThisMonth(f.store, f.accountId, NOW)).toBe(97);
+  });
+});
+
+describe('two nodes on one PostgreSQL database', () => {
+  it('never commit more units than the quota: the commit refuses what another node spent meanwhile', async () => {
+    // Two nodes: two pools on the same database, each with its own writer and month totals.
+    const first = await fixture('postgres');
+    const url = server.url.replace(/\/postgres$/, `/metering_${databases}`);
+    const other = openPostgresStore(url, { max: 2 });
+    opened.push(other);
+    const second: Fixture = { ...first, store: other };
+    // Both nodes have read the month (0 of 100 units) before any of the charges below.
+    expect(await committedUnitsThisMonth(first.store, first.accountId, NOW)).toBe(0);
+    expect(await committedUnitsThisMonth(other, first.accountId, NOW)).toBe(0);
+    const outcomes = new Map<string, unknown>();
+    const submit = (f: Fixture, id: string) =>
+      new Promise<void>((resolve) =>
+        meteringWriter(f.store).submit(record(f, id, 30), (err) => {
+          outcomes.set(id, err);
+          resolve();
+        }),
+      );
+    await Promise.all([
+      submit(first, 'n1-a'),
+      submit(first, 'n1-b'),
+      submit(second, 'n2-a'),
+      submit(second, 'n2-b'),
+    ]);
+    const refused = [...outcomes].filter(([, err]) => err instanceof QuotaSpentElsewhere);
+    expect(refused).toHaveLength(1);
+    expect([...outcomes].filter(([, err]) => err === undefined)).toHaveLength(3);
+    const refusal = refused[0]![1] as QuotaSpentElsewhere;
+    expect({ units: refusal.units, remaining: refusal.remaining, quota: refusal.quota }).toEqual({
+      units: 30,
+      remaining: 10,
+      quota: 100,
+    });
+    // 90 units charged, never 120; the refused request is logged as a 429 with 0 units.
+    expect(await unitsUsedThisMonth(first.store, first.accountId, NOW)).toBe(90);
+    const [row] = await first.store.rows<{ status: number; units: number | string }>(
+      sql`SELECT status, units FROM usage_events WHERE request_id = ${refused[0]![0]}`,
+    );
+    expect({ status: Number(row!.status), units: Number(row!.units) }).toEqual({ status: 429, units: 0 });
+    // Each node now knows the database's total, the other node's units included.
+    expect(await committedUnitsThisMonth(first.store, first.accountId, NOW)).toBe(90);
+    expect(await committedUnitsThisMonth(other, first.accountId, NOW)).toBe(90);
   });
 });

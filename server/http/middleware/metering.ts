@@ -26,12 +26,13 @@ import {
   knownUnitsThisMonth,
   loadUnitsThisMonth,
   meteringWriter,
+  QuotaSpentElsewhere,
   type MeteringWriter,
   type RequestRecord,
 } from '../../accounts/metering.js';
 import crypto from 'node:crypto';
 import { carriesKey, logBody, redactText, type RedactionContext } from '../../accounts/request-log.js';
-import { thresholdsReached } from '../../accounts/usage.js';
+import { nextMonthStartUtc, thresholdsReached } from '../../accounts/usage.js';
 import type { AppDeps } from '../../deps.js';
 import { presentedToken } from './auth.js';
 import { elapsedMs } from './request-id.js';
@@ -213,6 +214,40 @@ class MeteredRequest implements MeterState {
     this.originalEnd(body);
   }
 
+  /**
+   * PostgreSQL, several nodes: other nodes spent the account's quota while this request ran, and
+   * the commit refused to charge it (server/accounts/metering.ts `chargeWithinQuotas`; the log row
+   * says 429 with 0 units). The client gets the quota problem chargeUnits would have given, not
+   * the result it was not charged for.
+   */
+  private refuseOverQuota(refusal: QuotaSpentElsewhere): void {
+    const { req, res } = this;
+    if (res.headersSent) {
+      res.destroy();
+      return;
+    }
+    const body = JSON.stringify({
+      type: '/problems/quota-exceeded',
+      title: 'Monthly quota exceeded',
+      status: 429,
+      detail:
+        `This request costs ${refusal.units} units but only ${refusal.remaining} of the monthly quota of ` +
+        `${refusal.quota} units remain (spent by this account's other requests meanwhile); no result was returned.`,
+      instance: pathOf(req.originalUrl),
+      requestId: res.locals.requestId,
+    });
+    const now = this.ctx.deps.clock();
+    res.statusCode = 429;
+    res.removeHeader('ETag');
+    res.setHeader('Content-Type', 'application/problem+json');
+    res.setHeader('Content-Length', Buffer.byteLength(body));
+    res.setHeader(
+      'Retry-After',
+      String(Math.max(1, Math.ceil((nextMonthStartUtc(now).getTime() - now.getTime()) / 1000))),
+    );
+    this.originalEnd(body);
+  }
+
   /** `res.end`: queue the record, and hand the bytes to the socket once it is committed. */
   end(args: unknown[]): void {
     if (this.recorded) {
@@ -232,6 +267,7 @@ class MeteredRequest implements MeterState {
     // The units move from "in flight" to the database when the group commits.
     this.ctx.writer.submit(record, (err) => {
       this.leave();
+      if (err instanceof QuotaSpentElsewhere) return this.refuseOverQuota(err);
       if (err !== undefined) return this.refuseUnmetered(err);
       this.noticeQuota(status);
       this.originalEnd(...args);
