@@ -7,6 +7,7 @@
  */
 import type express from 'express';
 import { forgetKnownKeys, onLocalAuthChange } from './accounts/keys.js';
+import { flushMetering } from './accounts/metering.js';
 import { scheduleQuotaCheck } from './billing/quota-notices.js';
 import { paymentsWebhookModule } from './billing/webhook.js';
 import { consoleApiModule } from './console/index.js';
@@ -50,10 +51,12 @@ export function createApp(deps: AppDeps): express.Express {
 
 /**
  * Ends what the app owns besides the database, after the HTTP drain (main.ts's shutdown, tests):
- * the calculation pool's threads (a request still waiting for the pool then fails with 500) and
- * the Redis connections of the shared state. Idempotent; the database stays the caller's to close.
+ * the metering commits still queued or in flight (PostgreSQL commits them asynchronously), the
+ * calculation pool's threads (a request still waiting for the pool then fails with 500) and the
+ * Redis connections of the shared state. Idempotent; the database stays the caller's to close.
  */
 export async function closeApp(deps: AppDeps): Promise<void> {
+  await flushMetering(deps.store);
   await deps.enginePool?.destroy();
   await deps.shared?.close();
 }

@@ -499,7 +499,33 @@ function settle(cb: CommitCallback, error?: unknown): void {
 
 /** A group-commit writer on this store (one per app): SQLite or PostgreSQL, see the module comment. */
 export function meteringWriter(store: Store): MeteringWriter {
-  return store.sqlite ? sqliteWriter(store.sqlite) : postgresWriter(store);
+  const writer = store.sqlite ? sqliteWriter(store.sqlite) : postgresWriter(store);
+  let writers = writersOf.get(store);
+  if (!writers) {
+    writers = new Set();
+    writersOf.set(store, writers);
+  }
+  writers.add(new WeakRef(writer));
+  return writer;
+}
+
+/** Every writer made on a store, so a shutdown can wait for what they still hold. */
+const writersOf = new WeakMap<Store, Set<WeakRef<MeteringWriter>>>();
+
+/**
+ * Commits what every writer on this store holds and waits for the commits in progress: a
+ * shutdown calls it after the HTTP drain and before closing the database, so the row of a request
+ * answered (or abandoned by its client) during the drain is not lost. On SQLite a commit is
+ * synchronous and this is immediate; on PostgreSQL it awaits the group in flight.
+ */
+export async function flushMetering(store: Store): Promise<void> {
+  const writers = writersOf.get(store);
+  if (!writers) return;
+  for (const ref of writers) {
+    const writer = ref.deref();
+    if (!writer) writers.delete(ref);
+    else await writer.flush();
+  }
 }
 
 function sqliteWriter(sqlite: Sqlite): MeteringWriter {
