@@ -136,7 +136,7 @@ async function main(): Promise<void> {
   // Price plans (server/billing/plans.ts): inserts the missing default tiers, never overwrites one.
   const plansAdded = ensureDefaultPlans(db);
   if (plansAdded > 0) console.log(`[start-up] ${plansAdded} default price plan(s) added`);
-  const report = await bootstrap(db, sqlite, config, clock(), version);
+  const report = await bootstrap(store, sqlite, config, clock(), version);
   if (report.seeded) console.log('[start-up] empty database: demo accounts and usage seeded');
   if (report.demoCredentials && config.nodeEnv !== 'production') {
     // Shown once, on the start that created them (they are stored only as hashes).
@@ -152,7 +152,7 @@ async function main(): Promise<void> {
   if (config.nodeEnv !== 'production' && flag('DEMO_CONSOLE_USERS', false)) {
     const demoAccount = sqlite.prepare('SELECT id FROM accounts WHERE name = ?').get(DEMO_ACCOUNT_NAME) as
       { id: number } | undefined;
-    const created = await seedDemoConsoleUsers(db, clock(), demoAccount ? [demoAccount.id] : []);
+    const created = await seedDemoConsoleUsers(store, clock(), demoAccount ? [demoAccount.id] : []);
     for (const email of created)
       console.log(`[start-up] demo console user ${email} created (DEMO_CONSOLE_USERS=1)`);
     // Shown with the users it was just given to, like the other first-start secrets.

@@ -103,7 +103,7 @@ async function finalizeOnce(deps: AppDeps, statementId: number): Promise<Finaliz
   // The month is over: its usage is final. Recompute the draft once more before freezing it.
   refreshDraft(deps.db, deps.sqlite, statementId);
   const detail = statementDetail(deps.db, statementId);
-  const account = getAccount(deps.db, before.accountId);
+  const account = await getAccount(deps.store, before.accountId);
   if (!detail || !account) throw problem('not-found', `There is no statement ${statementId}.`);
 
   const client = payments.client;

@@ -39,7 +39,7 @@ interface InvoiceLike {
 }
 
 function handler(deps: AppDeps): RequestHandler {
-  return (req, res) => {
+  return async (req, res) => {
     const payments = paymentsFor(deps);
     if (!payments.config.enabled || payments.config.webhookSecret === '') {
       throw problem('payment-provider-failed', 'No webhook secret is configured (PAYMENTS_WEBHOOK_SECRET).');
@@ -81,6 +81,7 @@ function handler(deps: AppDeps): RequestHandler {
       );
     }
     const now = deps.clock();
+    let audited: Promise<unknown> | undefined;
     const outcome = deps.db.transaction((tx): WebhookOutcome => {
       const fresh = tx
         .insert(paymentEvents)
@@ -109,7 +110,9 @@ function handler(deps: AppDeps): RequestHandler {
       const paidSeconds = invoice.status_transitions?.paid_at;
       const paidAt = typeof paidSeconds === 'number' ? new Date(paidSeconds * 1000) : now;
       tx.update(statements).set({ status: 'paid', paidAt }).where(eq(statements.id, statement.id)).run();
-      recordAudit(deps, req, res, {
+      // The audit row goes through the store: on SQLite its INSERT runs at this call, inside this
+      // transaction; the promise is awaited once the transaction is done.
+      audited = recordAudit(deps, req, res, {
         action: 'statement.paid',
         targetType: 'statement',
         targetId: statement.id,
@@ -118,6 +121,7 @@ function handler(deps: AppDeps): RequestHandler {
       });
       return { received: true, duplicate: false, effect: `statement ${statement.id} paid` };
     });
+    await audited;
     res.json(outcome);
   };
 }

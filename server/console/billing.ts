@@ -63,9 +63,9 @@ export const billingRouteModule: ConsoleRouteModule = {
         'Create or refresh the draft statements of a month for every account (finalized ones stay as they are)',
       request: { body: GenerateStatementsRequest },
       response: GenerateStatementsResponse,
-      handler: ({ deps, body, req, res }) => {
+      handler: async ({ deps, body, req, res }) => {
         const result = generateStatements(deps.db, deps.sqlite, body.month, deps.clock());
-        recordAudit(deps, req, res, {
+        await recordAudit(deps, req, res, {
           action: 'statement.generate',
           targetType: 'month',
           targetId: body.month,
@@ -107,7 +107,7 @@ export const billingRouteModule: ConsoleRouteModule = {
       response: FinalizeStatementResponse,
       handler: async ({ deps, params, req, res }) => {
         const result = await finalizeStatement(deps, params.id);
-        recordAudit(deps, req, res, {
+        await recordAudit(deps, req, res, {
           action: 'statement.finalize',
           targetType: 'statement',
           targetId: params.id,

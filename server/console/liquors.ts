@@ -265,8 +265,8 @@ export const liquorRoutes: ConsoleRouteModule = {
       summary: 'The liquor library: built-in models and the liquors stored by accounts',
       request: { query: LiquorLibraryQuerySchema },
       response: LiquorLibrarySchema,
-      handler: ({ query }) => {
-        if (query.accountId !== undefined) requireAccount(deps.db, query.accountId);
+      handler: async ({ query }) => {
+        if (query.accountId !== undefined) await requireAccount(deps.store, query.accountId);
         const items = [...builtInLiquors.values()].map((m) => libraryItem(m, 'built-in', m.id, null));
         items.push(...storedItems(deps, query.accountId));
         return { items };
@@ -280,7 +280,7 @@ export const liquorRoutes: ConsoleRouteModule = {
       summary: 'Dühring lines and enthalpy–concentration curves of a liquor, computed by the engine',
       request: { params: LiquorChartParamsSchema, query: LiquorChartQuerySchema },
       response: LiquorChartsSchema,
-      handler: ({ params, query }) => {
+      handler: async ({ params, query }) => {
         let model: LiquorModel;
         let item: ConsoleLiquor;
         const builtIn = findBuiltInLiquor(params.id);
@@ -297,7 +297,7 @@ export const liquorRoutes: ConsoleRouteModule = {
               },
             );
           }
-          const account = requireAccount(deps.db, query.accountId);
+          const account = await requireAccount(deps.store, query.accountId);
           const stored = findStoredLiquor(deps.db, account.id, params.id);
           if (!stored)
             throw problem('not-found', `Account ${account.id} has no stored liquor "${params.id}".`);
@@ -320,8 +320,8 @@ export const liquorRoutes: ConsoleRouteModule = {
       middleware: [multipartUpload],
       response: LiquorLibraryItemSchema,
       status: 201,
-      handler: ({ req, res, params }) => {
-        const account = requireAccount(deps.db, params.id);
+      handler: async ({ req, res, params }) => {
+        const account = await requireAccount(deps.store, params.id);
         const fields = validate(LiquorUploadFieldsSchema, req.body ?? {});
         if (!req.file) {
           throw problem('validation-failed', 'The upload needs a CSV file in the field "file".', {
@@ -374,7 +374,7 @@ export const liquorRoutes: ConsoleRouteModule = {
           throw inCsvTerms(err, upload);
         }
         insertStoredLiquor(deps.db, account.id, id, input.definition, deps.clock());
-        recordAudit(deps, req, res, {
+        await recordAudit(deps, req, res, {
           action: 'liquor.upload',
           targetType: 'stored-liquor',
           targetId: `${account.id}/${id}`,

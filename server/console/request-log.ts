@@ -139,7 +139,7 @@ export const requestLogRoutes: ConsoleRouteModule = {
       summary: 'One request with its redacted bodies and timings',
       request: { params: RequestLogIdParamsSchema },
       response: RequestLogDetailSchema,
-      handler: ({ params, user }) => {
+      handler: async ({ params, user }) => {
         const row = getRequestLogEntry(deps.sqlite, params.id, null);
         if (!row) throw problem('not-found', `There is no request-log entry ${params.id}.`);
         const scope = scopeOf(user);
@@ -149,7 +149,7 @@ export const requestLogRoutes: ConsoleRouteModule = {
             `Request-log entry ${params.id} belongs to an account you are not a member of.`,
           );
         }
-        const account = row.accountId === null ? undefined : getAccount(deps.db, row.accountId);
+        const account = row.accountId === null ? undefined : await getAccount(deps.store, row.accountId);
         return {
           ...item(row),
           engineVersion: row.engineVersion,

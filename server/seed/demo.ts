@@ -6,7 +6,8 @@
  * which main.ts registers on the demo account (see bootstrap.ts).
  */
 import crypto from 'node:crypto';
-import type { Db, Sqlite } from '../db/client.js';
+import type { Sqlite } from '../db/client.js';
+import type { Store } from '../db/store.js';
 import { addMember, createAccount, insertUser } from '../accounts/accounts.js';
 import { hashPassword } from '../accounts/passwords.js';
 import { createKey } from '../accounts/keys.js';
@@ -99,33 +100,33 @@ export interface DemoCredentials {
  * once, and are never shown again.
  */
 export async function seedDemo(
-  db: Db,
+  store: Store,
   sqlite: Sqlite,
   serverSecret: Buffer,
   now: Date,
   engineVersion: string,
 ): Promise<DemoCredentials> {
   const operatorPassword = crypto.randomBytes(12).toString('base64url');
-  // Hashed before the (synchronous) transaction: hashing runs in a worker thread.
+  // Hashed before the transaction (which may await only the store): hashing runs in a worker thread.
   const operatorHash = await hashPassword(operatorPassword);
   // The demo accounts and keys date from the start of last month (UTC): before their first metered
   // day (the usage below goes back six days), and early enough that last month can be billed.
   const since = new Date(Date.UTC(now.getUTCFullYear(), now.getUTCMonth() - 1, 1));
-  return sqlite.transaction(() => {
-    const operator = insertUser(db, {
+  return store.transaction(async (tx) => {
+    const operator = await insertUser(tx, {
       email: DEMO_OPERATOR_EMAIL,
       passwordHash: operatorHash,
       role: 'admin',
       now,
     });
-    const caustic = createAccount(db, {
+    const caustic = await createAccount(tx, {
       name: DEMO_ACCOUNT_NAME,
       plan: 'professional',
       monthlyUnitQuota: 50_000,
       billingEmail: 'accounts@saltmarsh-alkali.invalid',
       now: since,
     });
-    const dairy = createAccount(db, {
+    const dairy = await createAccount(tx, {
       name: SECOND_DEMO_ACCOUNT_NAME,
       plan: 'starter',
       monthlyUnitQuota: 5_000,
@@ -133,9 +134,9 @@ export async function seedDemo(
       retainRequestBodies: true,
       now: since,
     });
-    addMember(db, operator.id, caustic.id);
-    addMember(db, operator.id, dairy.id);
-    const causticCreated = createKey(db, serverSecret, {
+    await addMember(tx, operator.id, caustic.id);
+    await addMember(tx, operator.id, dairy.id);
+    const causticCreated = await createKey(tx, serverSecret, {
       accountId: caustic.id,
       name: 'Caustic evaporator studies',
       scopes: [...scopes],
@@ -143,13 +144,13 @@ export async function seedDemo(
       now: since,
     });
     const causticKey = causticCreated.key;
-    const dairyKey = createKey(db, serverSecret, {
+    const { key: dairyKey } = await createKey(tx, serverSecret, {
       accountId: dairy.id,
       name: 'Falling-film line 2',
       scopes: ['steam', 'liquors', 'evaporators', 'usage'],
       rateLimitPerMinute: 60,
       now: since,
-    }).key;
+    });
     seedUsage(
       sqlite,
       caustic.id,
@@ -182,5 +183,5 @@ export async function seedDemo(
       operatorPassword,
       apiKey: causticCreated.token,
     };
-  })();
+  });
 }

@@ -15,7 +15,7 @@ afterAll(async () => {
 
 describe('GET /console-api/accounts', () => {
   it('lists every account with this month’s units, quota share and active keys for admin and billing', async () => {
-    const { key } = createKey(h.deps.db, h.deps.config.secret, {
+    const { key } = await createKey(h.deps.store, h.deps.config.secret, {
       accountId: h.alphaId,
       name: 'k',
       scopes: ['steam'],

@@ -40,7 +40,7 @@ describe('POST /console-api/keys', () => {
       rateLimitPerMinute: 120,
     });
     expect(secret.startsWith(res.body.key.prefix)).toBe(true);
-    const auth = authenticateToken(h.deps.sqlite, h.deps.config.secret, secret, h.clock.now);
+    const auth = await authenticateToken(h.deps.store, h.deps.config.secret, secret, h.clock.now);
     expect(auth.ok).toBe(true);
     // The secret itself is not stored anywhere in the row (only its HMAC).
     const row = h.deps.db.select().from(apiKeys).where(eq(apiKeys.id, res.body.key.id)).get()!;
@@ -125,7 +125,7 @@ describe('GET /console-api/keys', () => {
 
 describe('POST /console-api/keys/:id/revoke', () => {
   it('revokes at once (the next authentication says revoked), audits and mails, and is idempotent', async () => {
-    const { key, token } = createKey(h.deps.db, h.deps.config.secret, {
+    const { key, token } = await createKey(h.deps.store, h.deps.config.secret, {
       accountId: h.alphaId,
       name: 'to revoke',
       scopes: ['steam'],
@@ -137,7 +137,7 @@ describe('POST /console-api/keys/:id/revoke', () => {
       .set('X-CSRF-Token', h.developer.csrf)
       .expect(200);
     expect(res.body.key.state).toBe('revoked');
-    expect(authenticateToken(h.deps.sqlite, h.deps.config.secret, token, h.clock.now)).toMatchObject({
+    expect(await authenticateToken(h.deps.store, h.deps.config.secret, token, h.clock.now)).toMatchObject({
       ok: false,
       reason: 'revoked',
     });
@@ -163,7 +163,7 @@ describe('POST /console-api/keys/:id/revoke', () => {
   });
 
   it('answers 403 for another account’s key and 404 for an unknown key', async () => {
-    const { key } = createKey(h.deps.db, h.deps.config.secret, {
+    const { key } = await createKey(h.deps.store, h.deps.config.secret, {
       accountId: h.betaId,
       name: 'beta',
       scopes: ['steam'],
@@ -179,7 +179,7 @@ describe('POST /console-api/keys/:id/revoke', () => {
 
 describe('POST /console-api/keys/:id/rotate', () => {
   it('issues a successor now and keeps the old key valid until the overlap ends', async () => {
-    const { key, token } = createKey(h.deps.db, h.deps.config.secret, {
+    const { key, token } = await createKey(h.deps.store, h.deps.config.secret, {
       accountId: h.alphaId,
       name: 'rotating',
       scopes: ['steam'],
@@ -198,17 +198,18 @@ describe('POST /console-api/keys/:id/rotate', () => {
       expiresAt: '2031-03-14T11:00:00.000Z',
     });
     const secret = res.body.secret as string;
-    expect(authenticateToken(h.deps.sqlite, h.deps.config.secret, secret, h.clock.now).ok).toBe(true);
+    expect((await authenticateToken(h.deps.store, h.deps.config.secret, secret, h.clock.now)).ok).toBe(true);
     expect(
-      authenticateToken(h.deps.sqlite, h.deps.config.secret, token, new Date('2031-03-14T10:59:59Z')).ok,
+      (await authenticateToken(h.deps.store, h.deps.config.secret, token, new Date('2031-03-14T10:59:59Z')))
+        .ok,
     ).toBe(true);
     expect(
-      authenticateToken(h.deps.sqlite, h.deps.config.secret, token, new Date('2031-03-14T11:00:00Z')),
+      await authenticateToken(h.deps.store, h.deps.config.secret, token, new Date('2031-03-14T11:00:00Z')),
     ).toMatchObject({ ok: false, reason: 'rotated' });
   });
 
   it('refuses to rotate a revoked key (409) and an overlap beyond 30 days (422)', async () => {
-    const { key } = createKey(h.deps.db, h.deps.config.secret, {
+    const { key } = await createKey(h.deps.store, h.deps.config.secret, {
       accountId: h.alphaId,
       name: 'r',
       scopes: ['steam'],
