@@ -1,8 +1,10 @@
 // API-key authentication: 401 variants (RFC 6750 §3: a 401 carries "WWW-Authenticate: Bearer"),
 // 403 for a missing scope (RFC 9110 §15.5.4), revocation, rotation overlap and expiry.
+import { sql } from 'drizzle-orm';
 import request from 'supertest';
 import { describe, expect, it } from 'vitest';
 import { createKey, hashKey, revokeKey, rotateKey } from '../../server/accounts/keys.js';
+import { readInstant } from '../../server/db/store.js';
 import { makeHarness, usageRows } from './helpers.js';
 
 const later = (d: Date, seconds: number) => new Date(d.getTime() + seconds * 1000);
@@ -52,12 +54,11 @@ describe('403 forbidden', () => {
 describe('key lifecycle', () => {
   it('stores only the keyed hash, never the key', async () => {
     const h = await makeHarness();
-    const row = h.sqlite.prepare('SELECT * FROM api_keys WHERE id = ?').get(h.keyId) as Record<
-      string,
-      unknown
-    >;
-    expect(Object.values(row)).not.toContain(h.token);
-    expect(row.key_hash).toBe(hashKey(h.config.secret, h.token));
+    const [row] = await h.store.rows<Record<string, unknown>>(
+      sql`SELECT * FROM api_keys WHERE id = ${h.keyId}`,
+    );
+    expect(Object.values(row!)).not.toContain(h.token);
+    expect(row!.key_hash).toBe(hashKey(h.config.secret, h.token));
     // The generated format carries ≥ 128 random bits: 32 base62 characters ≈ 190 bits (common practice).
     expect(h.token).toMatch(/^ebk1\.[A-Za-z0-9]{12}\.[A-Za-z0-9]{32}$/);
   });
@@ -128,9 +129,9 @@ describe('key lifecycle', () => {
   it('updates last_used_at when a key is used', async () => {
     const h = await makeHarness();
     await request(h.app).get('/v1/usage').set('Authorization', `Bearer ${h.token}`);
-    const row = h.sqlite.prepare('SELECT last_used_at FROM api_keys WHERE id = ?').get(h.keyId) as {
-      last_used_at: number;
-    };
-    expect(row.last_used_at).toBe(h.clock.now.getTime());
+    const [row] = await h.store.rows<{ last_used_at: unknown }>(
+      sql`SELECT last_used_at FROM api_keys WHERE id = ${h.keyId}`,
+    );
+    expect(readInstant(row!.last_used_at)).toEqual(h.clock.now);
   });
 });
