@@ -4,7 +4,6 @@ import { eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { authenticateToken, createKey } from '../../server/accounts/keys.js';
 import { scopes as serverScopes } from '../../server/accounts/operations.js';
-import { apiKeys, auditLog, capturedMail, mailLog } from '../../server/db/schema.js';
 import { KEY_SCOPES } from '../../shared/console/keys.js';
 import { makeConsoleHarness, type ConsoleHarness } from './data-harness.js';
 
@@ -43,7 +42,8 @@ describe('POST /console-api/keys', () => {
     const auth = await authenticateToken(h.deps.store, h.deps.config.secret, secret, h.clock.now);
     expect(auth.ok).toBe(true);
     // The secret itself is not stored anywhere in the row (only its HMAC).
-    const row = h.deps.db.select().from(apiKeys).where(eq(apiKeys.id, res.body.key.id)).get()!;
+    const { apiKeys } = h.deps.store.t;
+    const [row] = await h.deps.store.db.select().from(apiKeys).where(eq(apiKeys.id, res.body.key.id));
     expect(JSON.stringify(row)).not.toContain(secret.slice(-32));
     // Listing never shows it again.
     const list = await h.developer.agent.get(`/console-api/keys?accountId=${h.alphaId}`).expect(200);
@@ -56,26 +56,24 @@ describe('POST /console-api/keys', () => {
       .set('X-CSRF-Token', h.admin.csrf)
       .send(body(h.alphaId))
       .expect(201);
-    const logged = h.deps.db
-      .select()
-      .from(mailLog)
-      .all()
-      .filter((m) => m.kind === 'key-created');
+    const logged = (await h.deps.store.db.select().from(h.deps.store.t.mailLog)).filter(
+      (m) => m.kind === 'key-created',
+    );
     expect(logged.length).toBeGreaterThanOrEqual(1);
     expect(logged.at(-1)).toMatchObject({ to: 'ops@alpha.invalid', status: 'sent' });
-    const captured = h.deps.db.select().from(capturedMail).all().at(-1)!;
+    const captured = (await h.deps.store.db.select().from(h.deps.store.t.capturedMail)).at(-1)!;
     expect(captured.to).toContain('ops@alpha.invalid');
     expect(captured.raw).not.toContain((res.body.secret as string).slice(-32));
   });
 
   it('sends no mail when the account has no billing e-mail', async () => {
-    const before = h.deps.db.select().from(mailLog).all().length;
+    const before = (await h.deps.store.db.select().from(h.deps.store.t.mailLog)).length;
     await h.admin.agent
       .post('/console-api/keys')
       .set('X-CSRF-Token', h.admin.csrf)
       .send(body(h.betaId))
       .expect(201);
-    expect(h.deps.db.select().from(mailLog).all().length).toBe(before);
+    expect((await h.deps.store.db.select().from(h.deps.store.t.mailLog)).length).toBe(before);
   });
 
   it('refuses a developer for an account they are not a member of, and billing users', async () => {
@@ -131,7 +129,7 @@ describe('POST /console-api/keys/:id/revoke', () => {
       scopes: ['steam'],
       now: h.clock.now,
     });
-    const mails = h.deps.db.select().from(mailLog).all().length;
+    const mails = (await h.deps.store.db.select().from(h.deps.store.t.mailLog)).length;
     const res = await h.developer.agent
       .post(`/console-api/keys/${key.id}/revoke`)
       .set('X-CSRF-Token', h.developer.csrf)
@@ -142,24 +140,18 @@ describe('POST /console-api/keys/:id/revoke', () => {
       reason: 'revoked',
     });
     expect(
-      h.deps.db
-        .select()
-        .from(auditLog)
-        .all()
-        .filter((a) => a.action === 'key.revoke' && a.targetId === String(key.id)),
+      (await h.deps.store.db.select().from(h.deps.store.t.auditLog)).filter(
+        (a) => a.action === 'key.revoke' && a.targetId === String(key.id),
+      ),
     ).toHaveLength(1);
     expect(
-      h.deps.db
-        .select()
-        .from(mailLog)
-        .all()
-        .filter((m) => m.kind === 'key-revoked'),
+      (await h.deps.store.db.select().from(h.deps.store.t.mailLog)).filter((m) => m.kind === 'key-revoked'),
     ).toHaveLength(1);
     await h.developer.agent
       .post(`/console-api/keys/${key.id}/revoke`)
       .set('X-CSRF-Token', h.developer.csrf)
       .expect(200);
-    expect(h.deps.db.select().from(mailLog).all().length).toBe(mails + 1);
+    expect((await h.deps.store.db.select().from(h.deps.store.t.mailLog)).length).toBe(mails + 1);
   });
 
   it('answers 403 for another account’s key and 404 for an unknown key', async () => {
