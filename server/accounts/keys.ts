@@ -18,6 +18,12 @@
  *
  * Rotation creates a successor with the same account, scopes and rate limit, and shortens the
  * old key's expiry to the end of an overlap window; after it the old key gets 401 'expired'.
+ *
+ * Every function here goes through the async data store (server/db/store.ts). Authentication has
+ * two paths: on SQLite the synchronous one, {@link authenticateTokenOnSqlite}, with prepared
+ * statements and TEMP triggers (the hot path of every /v1 request; tests/bench/key-lookup.ts
+ * measures it against the other); on other stores (PostgreSQL) the portable one in
+ * {@link authenticateToken}, which checks the shared auth_revision row once per turn.
  */
 import crypto from 'node:crypto';
 import { setImmediate as nextTurn } from 'node:timers';
@@ -310,7 +316,8 @@ interface KnownKey {
 }
 
 /**
- * Found keys by key hash, per connection, trusted only while `auth_revision.revision` is the one
+ * Found keys by key hash, per SQLite connection (the portable path's memory, for PostgreSQL, is
+ * {@link PortableKnownKeys} below), trusted only while `auth_revision.revision` is the one
  * they were read under. Triggers (migration drizzle/0003_auth_revision.sql) bump that revision in
  * the same transaction as any change to a key or account that authentication reads, whoever makes
  * it. Expiry and revocation times are still compared with the request's clock on every request.
