@@ -22,8 +22,16 @@ import {
   revokeKey,
   rotateKey,
 } from '../../server/accounts/keys.js';
+import { recordAudit } from '../../server/accounts/audit.js';
+import { checkSignIn } from '../../server/accounts/credentials.js';
+import { createSession, revokeUserSessions, sessionOfAccessToken } from '../../server/accounts/sessions.js';
+import { createUserToken } from '../../server/accounts/user-tokens.js';
+import { acceptInvitation, listUsers, updateUser } from '../../server/accounts/users.js';
+import { accountView } from '../../server/console/accounts.js';
+import { listAudit } from '../../server/console/audit.js';
+import type { AppDeps } from '../../server/deps.js';
 import { openPostgresStore, type Store } from '../../server/db/store.js';
-import { ALL_SCOPES } from '../http/helpers.js';
+import { ALL_SCOPES, testConfig } from '../http/helpers.js';
 import { startPostgres, type PostgresServer } from '../support/postgres-server.js';
 
 const SECRET = Buffer.from('x'.repeat(32));
@@ -165,6 +173,102 @@ describe('key authentication on PostgreSQL (the portable path)', () => {
     expect(await authenticateToken(store, SECRET, token, new Date(NOW.getTime() + 1000))).toMatchObject({
       ok: false,
       reason: 'expired',
+    });
+  });
+});
+
+describe('console users, sessions, audit and account figures on PostgreSQL', () => {
+  /** The services read only the store, the config and the clock of their deps. */
+  const deps = () =>
+    ({ store, config: testConfig(), clock: () => NOW, engineVersion: 'test-engine' }) as unknown as AppDeps;
+
+  it('accepts an invitation in one transaction, signs the user in, and deactivation ends the session', async () => {
+    const d = deps();
+    const { account } = await accountWithKey('Invented Invitation Works');
+    const { token } = await createUserToken(d, {
+      purpose: 'invitation',
+      email: 'invited@example.invalid',
+      ttlMs: 3_600_000,
+      role: 'developer',
+      accountIds: [account.id, 999_999], // an account that does not exist is left out
+    });
+    const { user } = await acceptInvitation(d, {
+      token,
+      name: 'Invented Person',
+      password: 'a long password 1',
+    });
+    await expect(
+      acceptInvitation(d, { token, name: 'Twice', password: 'a long password 1' }),
+    ).rejects.toMatchObject({ kind: 'validation-failed' });
+    const listed = (await listUsers(d)).items.find((u) => u.id === user.id);
+    expect(listed).toMatchObject({
+      email: 'invited@example.invalid',
+      role: 'developer',
+      accountIds: [account.id],
+    });
+
+    const signIn = await checkSignIn(d, 'Invited@Example.invalid', 'a long password 1');
+    expect(signIn.ok).toBe(true);
+    const session = await createSession(d, { id: user.id, role: 'developer' }, { ip: '192.0.2.7' });
+    expect((await sessionOfAccessToken(d, session.accessJwt))?.user).toMatchObject({
+      id: user.id,
+      accountIds: [account.id],
+    });
+    const change = await updateUser(d, user.id, { active: false });
+    expect(change).toMatchObject({ deactivated: true, sessionsRevoked: 1 });
+    expect(await sessionOfAccessToken(d, session.accessJwt)).toBeUndefined();
+    expect(await revokeUserSessions(d, user.id)).toBe(0);
+  });
+
+  it('counts failed sign-ins and locks the user at the threshold', async () => {
+    const d = deps();
+    const { token } = await createUserToken(d, {
+      purpose: 'invitation',
+      email: 'locked@example.invalid',
+      ttlMs: 60_000,
+    });
+    await acceptInvitation(d, { token, name: 'Invented Locked', password: 'the right password' });
+    let last;
+    for (let i = 0; i < 5; i++) last = await checkSignIn(d, 'locked@example.invalid', 'a wrong password');
+    expect(last).toMatchObject({ ok: false, reason: 'wrong-password-locked', lockOut: { failures: 5 } });
+    expect(await checkSignIn(d, 'locked@example.invalid', 'the right password')).toMatchObject({
+      ok: false,
+      reason: 'locked',
+    });
+  });
+
+  it('pages and counts the audit log, and shows an account’s units this month and live keys', async () => {
+    const d = deps();
+    const { account } = await accountWithKey('Invented Figures Works');
+    await createKey(store, SECRET, {
+      accountId: account.id,
+      name: 'revoked',
+      scopes: ['steam'],
+      now: NOW,
+    }).then(({ key }) => revokeKey(store, key.id, NOW));
+    await store.execute(
+      sql`INSERT INTO usage_daily (account_id, day, operation, requests, units, errors)
+          VALUES (${account.id}, '2031-03-02', 'steam.state', 3, 7, 0), (${account.id}, '2031-03-14', 'steam.state', 2, 5, 0),
+                 (${account.id}, '2031-02-27', 'steam.state', 9, 90, 0)`,
+    );
+    expect(await accountView(d, account)).toMatchObject({ unitsThisMonth: 12, keyCount: 1 });
+
+    for (const n of [1, 2, 3]) {
+      await recordAudit(
+        d,
+        { ip: '192.0.2.1' },
+        { locals: {} },
+        { action: 'pg.test', targetId: n, detail: { n } },
+      );
+    }
+    const page = await listAudit(d, { action: 'pg.test' }, 1, 2);
+    expect(page.total).toBe(3);
+    expect(page.items.map((r) => r.targetId)).toEqual(['3', '2']);
+    expect(page.items[0]).toMatchObject({
+      actorEmail: '(anonymous)',
+      ip: '192.0.2.1',
+      detail: { n: 3 },
+      at: NOW,
     });
   });
 });
