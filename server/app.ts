@@ -43,8 +43,8 @@ export function createApp(deps: AppDeps): express.Express {
     deps.shared = shared;
     // Key-cache invalidation between nodes: a change made through this node's connection is
     // announced, and another node's announcement drops the keys this node remembers.
-    onLocalAuthChange(deps.sqlite, () => shared.publishAuthChange());
-    shared.onAuthChange(() => forgetKnownKeys(deps.sqlite));
+    onLocalAuthChange(deps.store, () => shared.publishAuthChange());
+    shared.onAuthChange(() => forgetKnownKeys(deps.store));
   }
   return createHttpApp(deps, appModules);
 }

@@ -27,6 +27,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import net, { type AddressInfo } from 'node:net';
+import { sql } from 'drizzle-orm';
 import { pruneRequestLog } from './accounts/request-log.js';
 import { ensureDefaultPlans } from './billing/plans.js';
 import { checkQuotaNotices } from './billing/quota-notices.js';
@@ -136,7 +137,7 @@ async function main(): Promise<void> {
   // Price plans (server/billing/plans.ts): inserts the missing default tiers, never overwrites one.
   const plansAdded = await ensureDefaultPlans(store);
   if (plansAdded > 0) console.log(`[start-up] ${plansAdded} default price plan(s) added`);
-  const report = await bootstrap(db, sqlite, config, clock(), version);
+  const report = await bootstrap(store, config, clock(), version);
   if (report.seeded) console.log('[start-up] empty database: demo accounts and usage seeded');
   if (report.demoCredentials && config.nodeEnv !== 'production') {
     // Shown once, on the start that created them (they are stored only as hashes).
@@ -150,9 +151,10 @@ async function main(): Promise<void> {
     console.log('[start-up] BOOTSTRAP_API_KEY registered on the demo account with all scopes');
   if (report.adminCreated) console.log(`[start-up] admin user ${config.bootstrapAdminEmail} created`);
   if (config.nodeEnv !== 'production' && flag('DEMO_CONSOLE_USERS', false)) {
-    const demoAccount = sqlite.prepare('SELECT id FROM accounts WHERE name = ?').get(DEMO_ACCOUNT_NAME) as
-      { id: number } | undefined;
-    const created = await seedDemoConsoleUsers(db, clock(), demoAccount ? [demoAccount.id] : []);
+    const [demoAccount] = await store.rows<{ id: number }>(
+      sql`SELECT id FROM accounts WHERE name = ${DEMO_ACCOUNT_NAME}`,
+    );
+    const created = await seedDemoConsoleUsers(store, clock(), demoAccount ? [Number(demoAccount.id)] : []);
     for (const email of created)
       console.log(`[start-up] demo console user ${email} created (DEMO_CONSOLE_USERS=1)`);
     // Shown with the users it was just given to, like the other first-start secrets.

@@ -1,9 +1,10 @@
 /**
- * Accounts, users and memberships: the service functions the console API builds on.
+ * Accounts, users and memberships: the service functions the console API builds on. Every one
+ * goes through the async data store (server/db/store.ts).
  */
 import { and, eq } from 'drizzle-orm';
-import type { Db } from '../db/client.js';
-import { accountMembers, accounts, users } from '../db/schema.js';
+import type { accounts, users } from '../db/schema.js';
+import type { Store } from '../db/store.js';
 import { hashPassword, verifyPassword } from './passwords.js';
 
 export type Account = typeof accounts.$inferSelect;
@@ -19,8 +20,9 @@ export interface CreateAccountInput {
   now: Date;
 }
 
-export function createAccount(db: Db, input: CreateAccountInput): Account {
-  return db
+export async function createAccount(store: Store, input: CreateAccountInput): Promise<Account> {
+  const { accounts } = store.t;
+  const [row] = await store.db
     .insert(accounts)
     .values({
       name: input.name,
@@ -30,26 +32,31 @@ export function createAccount(db: Db, input: CreateAccountInput): Account {
       retainRequestBodies: input.retainRequestBodies ?? false,
       createdAt: input.now,
     })
-    .returning()
-    .get();
+    .returning();
+  return row!;
 }
 
-export function getAccount(db: Db, id: number): Account | undefined {
-  return db.select().from(accounts).where(eq(accounts.id, id)).get();
+export async function getAccount(store: Store, id: number): Promise<Account | undefined> {
+  const { accounts } = store.t;
+  const [row] = await store.db.select().from(accounts).where(eq(accounts.id, id)).limit(1);
+  return row;
 }
 
-export function listAccounts(db: Db): Account[] {
-  return db.select().from(accounts).orderBy(accounts.id).all();
+export async function listAccounts(store: Store): Promise<Account[]> {
+  const { accounts } = store.t;
+  return store.db.select().from(accounts).orderBy(accounts.id);
 }
 
-export function updateAccount(
-  db: Db,
+export async function updateAccount(
+  store: Store,
   id: number,
   patch: Partial<
     Pick<Account, 'name' | 'plan' | 'monthlyUnitQuota' | 'billingEmail' | 'retainRequestBodies'>
   >,
-): Account | undefined {
-  return db.update(accounts).set(patch).where(eq(accounts.id, id)).returning().get();
+): Promise<Account | undefined> {
+  const { accounts } = store.t;
+  const [row] = await store.db.update(accounts).set(patch).where(eq(accounts.id, id)).returning();
+  return row;
 }
 
 function publicUser(row: typeof users.$inferSelect): User {
@@ -59,19 +66,20 @@ function publicUser(row: typeof users.$inferSelect): User {
 
 /** Hashes the password (off the event loop, see passwords.ts) and inserts the user. */
 export async function createUser(
-  db: Db,
+  store: Store,
   input: { email: string; password: string; role: Role; now: Date },
 ): Promise<User> {
   const passwordHash = await hashPassword(input.password);
-  return insertUser(db, { email: input.email, passwordHash, role: input.role, now: input.now });
+  return insertUser(store, { email: input.email, passwordHash, role: input.role, now: input.now });
 }
 
-/** Inserts a user with an already computed hash (synchronous, so it fits inside a transaction). */
-export function insertUser(
-  db: Db,
+/** Inserts a user with an already computed hash (awaits only the store, so it fits inside a transaction). */
+export async function insertUser(
+  store: Store,
   input: { email: string; passwordHash: string; role: Role; now: Date },
-): User {
-  const row = db
+): Promise<User> {
+  const { users } = store.t;
+  const [row] = await store.db
     .insert(users)
     .values({
       email: input.email.trim().toLowerCase(),
@@ -79,54 +87,68 @@ export function insertUser(
       role: input.role,
       createdAt: input.now,
     })
-    .returning()
-    .get();
-  return publicUser(row);
+    .returning();
+  return publicUser(row!);
 }
 
-export function findUserByEmail(db: Db, email: string): User | undefined {
-  const row = db.select().from(users).where(eq(users.email, email.trim().toLowerCase())).get();
+export async function findUserByEmail(store: Store, email: string): Promise<User | undefined> {
+  const { users } = store.t;
+  const [row] = await store.db
+    .select()
+    .from(users)
+    .where(eq(users.email, email.trim().toLowerCase()))
+    .limit(1);
   return row ? publicUser(row) : undefined;
 }
 
 /** Returns the user if the e-mail and password match an active user; undefined otherwise. */
-export async function verifyUserPassword(db: Db, email: string, password: string): Promise<User | undefined> {
-  const row = db.select().from(users).where(eq(users.email, email.trim().toLowerCase())).get();
+export async function verifyUserPassword(
+  store: Store,
+  email: string,
+  password: string,
+): Promise<User | undefined> {
+  const { users } = store.t;
+  const [row] = await store.db
+    .select()
+    .from(users)
+    .where(eq(users.email, email.trim().toLowerCase()))
+    .limit(1);
   if (!row || !row.active) return undefined;
   return (await verifyPassword(password, row.passwordHash)) ? publicUser(row) : undefined;
 }
 
-export function addMember(db: Db, userId: number, accountId: number): void {
-  db.insert(accountMembers).values({ userId, accountId }).onConflictDoNothing().run();
+export async function addMember(store: Store, userId: number, accountId: number): Promise<void> {
+  const { accountMembers } = store.t;
+  await store.db.insert(accountMembers).values({ userId, accountId }).onConflictDoNothing();
 }
 
-export function isMember(db: Db, userId: number, accountId: number): boolean {
-  return (
-    db
-      .select()
-      .from(accountMembers)
-      .where(and(eq(accountMembers.userId, userId), eq(accountMembers.accountId, accountId)))
-      .get() !== undefined
-  );
+export async function isMember(store: Store, userId: number, accountId: number): Promise<boolean> {
+  const { accountMembers } = store.t;
+  const [row] = await store.db
+    .select({ userId: accountMembers.userId })
+    .from(accountMembers)
+    .where(and(eq(accountMembers.userId, userId), eq(accountMembers.accountId, accountId)))
+    .limit(1);
+  return row !== undefined;
 }
 
-export function accountsOfUser(db: Db, userId: number): Account[] {
-  return db
+export async function accountsOfUser(store: Store, userId: number): Promise<Account[]> {
+  const { accountMembers, accounts } = store.t;
+  const rows = await store.db
     .select({ account: accounts })
     .from(accountMembers)
     .innerJoin(accounts, eq(accountMembers.accountId, accounts.id))
-    .where(eq(accountMembers.userId, userId))
-    .all()
-    .map((r) => r.account);
+    .where(eq(accountMembers.userId, userId));
+  return rows.map((r) => r.account);
 }
 
 /** The ids of the accounts a user is a member of, ascending. */
-export function accountIdsOf(db: Db, userId: number): number[] {
-  return db
+export async function accountIdsOf(store: Store, userId: number): Promise<number[]> {
+  const { accountMembers } = store.t;
+  const rows = await store.db
     .select({ id: accountMembers.accountId })
     .from(accountMembers)
     .where(eq(accountMembers.userId, userId))
-    .orderBy(accountMembers.accountId)
-    .all()
-    .map((r) => r.id);
+    .orderBy(accountMembers.accountId);
+  return rows.map((r) => r.id);
 }

@@ -3,12 +3,13 @@
  * success and failure, lock-out, refresh-token replay, payment webhooks), with who, what, when and
  * from where. The console lists it (server/console/audit.ts).
  *
- *   recordAudit(deps, req, res, { action: 'key.revoke', targetType: 'api-key', targetId: String(id) });
+ *   await recordAudit(deps, req, res, { action: 'key.revoke', targetType: 'api-key', targetId: String(id) });
  *
  * The actor is res.locals.user unless `actor` is given (e.g. a failed sign-in names the e-mail
  * that was tried). Time comes from deps.clock, the address from req.ip (honours trust proxy).
  */
-import { auditLog } from '../db/schema.js';
+import type { auditLog } from '../db/schema.js';
+import type { Store } from '../db/store.js';
 import type { AppDeps } from '../deps.js';
 
 export interface AuditInput {
@@ -33,16 +34,19 @@ export interface AuditResponse {
   locals: { user?: { id: number; email: string } | undefined };
 }
 
-export function recordAudit(
+export async function recordAudit(
   deps: AppDeps,
   req: AuditRequest,
   res: AuditResponse,
   input: AuditInput,
-): AuditRow {
+  /** The transaction to write in, when the audited change is in one (default: `deps.store`). */
+  store: Store = deps.store,
+): Promise<AuditRow> {
+  const { auditLog } = store.t;
   const user = res.locals.user;
   const actor =
     input.actor ?? (user ? { id: user.id, email: user.email } : { id: null, email: '(anonymous)' });
-  return deps.db
+  const [row] = await store.db
     .insert(auditLog)
     .values({
       at: deps.clock(),
@@ -54,6 +58,6 @@ export function recordAudit(
       detail: input.detail ?? null,
       ip: req.ip ?? null,
     })
-    .returning()
-    .get();
+    .returning();
+  return row!;
 }

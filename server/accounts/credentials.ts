@@ -8,7 +8,6 @@
  */
 import { eq } from 'drizzle-orm';
 import { consoleSettings } from '../config.js';
-import { users } from '../db/schema.js';
 import type { AppDeps } from '../deps.js';
 import { sendMail } from '../mail/send.js';
 import { HashingBusyError, hashPassword, needsRehash, verifyPassword } from './passwords.js';
@@ -46,8 +45,9 @@ export type SignInCheck =
 export async function checkSignIn(deps: AppDeps, emailInput: string, password: string): Promise<SignInCheck> {
   const settings = consoleSettings(deps.config);
   const email = normaliseEmail(emailInput);
-  const row = findUserRowByEmail(deps, email);
+  const row = await findUserRowByEmail(deps, email);
   const now = deps.clock();
+  const { users } = deps.store.t;
   const lockActive = row?.lockedUntil != null && row.lockedUntil.getTime() > now.getTime();
   const passwordOk = await verifyPassword(password, row?.passwordHash ?? TIMING_DUMMY_HASH);
   if (row && row.active && !lockActive && passwordOk) {
@@ -59,15 +59,14 @@ export async function checkSignIn(deps: AppDeps, emailInput: string, password: s
           throw err;
         })
       : undefined;
-    deps.db
+    await deps.store.db
       .update(users)
       .set({
         failedSignIns: 0,
         lockedUntil: null,
         ...(rehash ? { passwordHash: rehash } : {}),
       })
-      .where(eq(users.id, row.id))
-      .run();
+      .where(eq(users.id, row.id));
     return { ok: true, user: row };
   }
   let reason: SignInFailure = !row
@@ -82,14 +81,13 @@ export async function checkSignIn(deps: AppDeps, emailInput: string, password: s
     const lockExpired = row.lockedUntil != null;
     const failures = (lockExpired ? 0 : row.failedSignIns) + 1;
     const locks = failures >= settings.lockoutThreshold;
-    deps.db
+    await deps.store.db
       .update(users)
       .set({
         failedSignIns: failures,
         lockedUntil: locks ? new Date(now.getTime() + settings.lockoutMs) : null,
       })
-      .where(eq(users.id, row.id))
-      .run();
+      .where(eq(users.id, row.id));
     if (locks) {
       reason = 'wrong-password-locked';
       lockOut = { failures, minutes: settings.lockoutMs / 60_000 };
@@ -117,17 +115,17 @@ function resetText(link: string, expiresAt: Date): string {
  * does nothing otherwise. The mail is not awaited: the answer must not take longer for a known
  * address than for an unknown one.
  */
-export function requestPasswordReset(
+export async function requestPasswordReset(
   deps: AppDeps,
   emailInput: string,
-): { email: string; user: UserRow | undefined; mailed: boolean } {
+): Promise<{ email: string; user: UserRow | undefined; mailed: boolean }> {
   const settings = consoleSettings(deps.config);
   const email = normaliseEmail(emailInput);
-  const row = findUserRowByEmail(deps, email);
+  const row = await findUserRowByEmail(deps, email);
   const mailed = Boolean(row && row.active);
   if (row && row.active) {
-    supersedeTokens(deps, 'password-reset', email);
-    const { token, row: tokenRow } = createUserToken(deps, {
+    await supersedeTokens(deps, 'password-reset', email);
+    const { token, row: tokenRow } = await createUserToken(deps, {
       purpose: 'password-reset',
       email,
       userId: row.id,
@@ -154,27 +152,24 @@ export async function confirmPasswordReset(
 ): Promise<{ user: UserRow; sessionsRevoked: number }> {
   const refused = 'The reset link is unknown, used or expired; ask for a new one.';
   // The token is checked before the password is hashed: a bogus token costs no hashing.
-  const pending = findValidToken(deps, 'password-reset', input.token);
-  const pendingUser = pending?.userId ? findUserRow(deps, pending.userId) : undefined;
+  const pending = await findValidToken(deps, 'password-reset', input.token);
+  const pendingUser = pending?.userId ? await findUserRow(deps, pending.userId) : undefined;
   if (!pending || !pendingUser || !pendingUser.active) throw tokenRefused(refused);
   const passwordHash = await hashPassword(input.password);
   // Used only now, after hashing, so a busy answer leaves the link usable; the consuming
   // UPDATE still lets only one of two concurrent confirmations through.
-  const row = deps.db.transaction((tx) => {
-    const token = consumeToken(
-      { ...deps, db: tx as unknown as AppDeps['db'] },
-      'password-reset',
-      input.token,
-    );
+  // (The transaction below awaits only the store: the hash is computed above.)
+  const row = await deps.store.transaction(async (tx) => {
+    const token = await consumeToken({ ...deps, store: tx }, 'password-reset', input.token);
     if (!token || token.userId !== pendingUser.id) return undefined;
-    tx.update(users)
+    await tx.db
+      .update(tx.t.users)
       .set({ passwordHash, failedSignIns: 0, lockedUntil: null })
-      .where(eq(users.id, pendingUser.id))
-      .run();
+      .where(eq(tx.t.users.id, pendingUser.id));
     return pendingUser;
   });
   if (!row) throw tokenRefused(refused);
-  supersedeTokens(deps, 'password-reset', row.email);
-  const sessionsRevoked = revokeUserSessions(deps, row.id);
+  await supersedeTokens(deps, 'password-reset', row.email);
+  const sessionsRevoked = await revokeUserSessions(deps, row.id);
   return { user: row, sessionsRevoked };
 }

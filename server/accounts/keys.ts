@@ -18,13 +18,20 @@
  *
  * Rotation creates a successor with the same account, scopes and rate limit, and shortens the
  * old key's expiry to the end of an overlap window; after it the old key gets 401 'expired'.
+ *
+ * Every function here goes through the async data store (server/db/store.ts). Authentication has
+ * two paths: on SQLite the synchronous one, {@link authenticateTokenOnSqlite}, with prepared
+ * statements and TEMP triggers (the hot path of every /v1 request; tests/bench/key-lookup.ts
+ * measures it against the other); on other stores (PostgreSQL) the portable one in
+ * {@link authenticateToken}, which checks the shared auth_revision row once per turn.
  */
 import crypto from 'node:crypto';
 import { setImmediate as nextTurn } from 'node:timers';
-import { desc, eq } from 'drizzle-orm';
+import { desc, eq, sql } from 'drizzle-orm';
 import type { Statement } from 'better-sqlite3';
-import type { Db, Sqlite } from '../db/client.js';
-import { apiKeys } from '../db/schema.js';
+import type { Sqlite } from '../db/client.js';
+import type { apiKeys } from '../db/schema.js';
+import { readInstant, type Store } from '../db/store.js';
 import { isScope, type Scope } from './operations.js';
 
 /** Accepted shape of a presented bearer token (anything else is "malformed"). */
@@ -113,11 +120,12 @@ export interface CreateKeyInput {
 }
 
 /** Creates a key; the returned `token` is the only time the secret is visible. */
-export function createKey(
-  db: Db,
+export async function createKey(
+  store: Store,
   serverSecret: Buffer,
   input: CreateKeyInput,
-): { key: ApiKeyView; token: string } {
+): Promise<{ key: ApiKeyView; token: string }> {
+  const { apiKeys } = store.t;
   let token: string;
   let publicId: string;
   if (input.token !== undefined) {
@@ -132,7 +140,7 @@ export function createKey(
   const rate = input.rateLimitPerMinute ?? 60;
   if (!Number.isInteger(rate) || rate < 1 || rate > 100_000)
     throw new Error('rateLimitPerMinute must be 1–100000');
-  const row = db
+  const [row] = await store.db
     .insert(apiKeys)
     .values({
       publicId,
@@ -146,72 +154,78 @@ export function createKey(
       rotatedFromId: input.rotatedFromId ?? null,
       prefix: displayPrefix(token, publicId),
     })
-    .returning()
-    .get();
-  return { key: view(row), token };
+    .returning();
+  return { key: view(row!), token };
 }
 
-export function listKeys(db: Db, accountId: number): ApiKeyView[] {
-  return db
+export async function listKeys(store: Store, accountId: number): Promise<ApiKeyView[]> {
+  const { apiKeys } = store.t;
+  const rows = await store.db
     .select()
     .from(apiKeys)
     .where(eq(apiKeys.accountId, accountId))
-    .orderBy(desc(apiKeys.id))
-    .all()
-    .map(view);
+    .orderBy(desc(apiKeys.id));
+  return rows.map(view);
 }
 
-export function getKey(db: Db, keyId: number): ApiKeyView | undefined {
-  const row = db.select().from(apiKeys).where(eq(apiKeys.id, keyId)).get();
+export async function getKey(store: Store, keyId: number): Promise<ApiKeyView | undefined> {
+  const { apiKeys } = store.t;
+  const [row] = await store.db.select().from(apiKeys).where(eq(apiKeys.id, keyId)).limit(1);
   return row ? view(row) : undefined;
 }
 
 /** True if a key with this exact token is registered (any state). */
-export function keyExists(db: Db, serverSecret: Buffer, token: string): boolean {
-  return (
-    db
-      .select({ id: apiKeys.id })
-      .from(apiKeys)
-      .where(eq(apiKeys.keyHash, hashKey(serverSecret, token)))
-      .get() !== undefined
-  );
+export async function keyExists(store: Store, serverSecret: Buffer, token: string): Promise<boolean> {
+  const { apiKeys } = store.t;
+  const [row] = await store.db
+    .select({ id: apiKeys.id })
+    .from(apiKeys)
+    .where(eq(apiKeys.keyHash, hashKey(serverSecret, token)))
+    .limit(1);
+  return row !== undefined;
 }
 
 /** Revokes a key at once: the next request with it gets 401 'revoked'. Idempotent. */
-export function revokeKey(db: Db, keyId: number, now: Date): ApiKeyView | undefined {
-  const row = db.select().from(apiKeys).where(eq(apiKeys.id, keyId)).get();
+export async function revokeKey(store: Store, keyId: number, now: Date): Promise<ApiKeyView | undefined> {
+  const { apiKeys } = store.t;
+  const [row] = await store.db.select().from(apiKeys).where(eq(apiKeys.id, keyId)).limit(1);
   if (!row) return undefined;
   if (row.revokedAt) return view(row);
-  return view(db.update(apiKeys).set({ revokedAt: now }).where(eq(apiKeys.id, keyId)).returning().get()!);
+  const [revoked] = await store.db
+    .update(apiKeys)
+    .set({ revokedAt: now })
+    .where(eq(apiKeys.id, keyId))
+    .returning();
+  return view(revoked!);
 }
 
 /**
  * Rotates a key: a new key with the same account, scopes and rate limit; the old one keeps
  * working until `now + overlapSeconds` (or its own earlier expiry), then answers 401 'expired'.
  */
-export function rotateKey(
-  db: Db,
+export async function rotateKey(
+  store: Store,
   serverSecret: Buffer,
   keyId: number,
   opts: { now: Date; overlapSeconds: number; name?: string },
-): { key: ApiKeyView; token: string; previous: ApiKeyView } {
+): Promise<{ key: ApiKeyView; token: string; previous: ApiKeyView }> {
   if (!Number.isFinite(opts.overlapSeconds) || opts.overlapSeconds < 0 || opts.overlapSeconds > 30 * 86400) {
     throw new Error('overlapSeconds must be between 0 and 30 days');
   }
-  return db.transaction((tx) => {
-    const old = tx.select().from(apiKeys).where(eq(apiKeys.id, keyId)).get();
+  return store.transaction(async (tx) => {
+    const { apiKeys } = tx.t;
+    const [old] = await tx.db.select().from(apiKeys).where(eq(apiKeys.id, keyId)).limit(1);
     if (!old) throw new Error(`API key ${keyId} does not exist`);
     if (old.revokedAt) throw new Error('a revoked key cannot be rotated');
     if (old.expiresAt && old.expiresAt <= opts.now) throw new Error('an expired key cannot be rotated');
     const windowEnd = new Date(opts.now.getTime() + opts.overlapSeconds * 1000);
     const newExpiry = old.expiresAt && old.expiresAt < windowEnd ? old.expiresAt : windowEnd;
-    const previous = tx
+    const [previous] = await tx.db
       .update(apiKeys)
       .set({ expiresAt: newExpiry })
       .where(eq(apiKeys.id, keyId))
-      .returning()
-      .get()!;
-    const created = createKey(tx as unknown as Db, serverSecret, {
+      .returning();
+    const created = await createKey(tx, serverSecret, {
       accountId: old.accountId,
       name: opts.name ?? old.name,
       scopes: old.scopes.filter(isScope),
@@ -220,7 +234,7 @@ export function rotateKey(
       now: opts.now,
       rotatedFromId: old.id,
     });
-    return { ...created, previous: view(previous) };
+    return { ...created, previous: view(previous!) };
   });
 }
 
@@ -302,7 +316,8 @@ interface KnownKey {
 }
 
 /**
- * Found keys by key hash, per connection, trusted only while `auth_revision.revision` is the one
+ * Found keys by key hash, per SQLite connection (the portable path's memory, for PostgreSQL, is
+ * {@link PortableKnownKeys} below), trusted only while `auth_revision.revision` is the one
  * they were read under. Triggers (migration drizzle/0003_auth_revision.sql) bump that revision in
  * the same transaction as any change to a key or account that authentication reads, whoever makes
  * it. Expiry and revocation times are still compared with the request's clock on every request.
@@ -405,27 +420,36 @@ function knownKeysFor(sqlite: Sqlite): Map<string, KnownKey> {
 }
 
 /**
- * Drops every key remembered for `sqlite` (another node said authentication data changed: the
- * shared-state hook of server/app.ts). The next request looks its key up again.
+ * Drops every key remembered for this store's connection (another node said authentication data
+ * changed: the shared-state hook of server/app.ts). The next request looks its key up again.
  */
-export function forgetKnownKeys(sqlite: Sqlite): void {
-  const known = knownKeys.get(sqlite);
-  if (!known) return;
-  known.byHash.clear();
-  known.checkedThisTurn = false;
+export function forgetKnownKeys(store: Store): void {
+  if (store.sqlite) {
+    const known = knownKeys.get(store.sqlite);
+    if (!known) return;
+    known.byHash.clear();
+    known.checkedThisTurn = false;
+    return;
+  }
+  const portable = portableKnownKeys.get(portableCacheKey(store));
+  if (portable) portable.forget();
 }
 
 /**
- * Calls `listener` whenever a statement on `sqlite` changes something authentication reads (the
- * same events as the auth_revision triggers), from inside that statement: defer real work.
+ * Calls `listener` whenever a statement on this store's SQLite connection changes something
+ * authentication reads (the same events as the auth_revision triggers), from inside that
+ * statement: defer real work. On PostgreSQL it is never called: every node reads the shared
+ * auth_revision row (bumped by the triggers of drizzle-pg/0001_auth_revision.sql), so a change needs
+ * no announcement for the next request on any node to see it.
  */
-export function onLocalAuthChange(sqlite: Sqlite, listener: () => void): void {
-  knownKeysState(sqlite).onLocalChange.push(listener);
+export function onLocalAuthChange(store: Store, listener: () => void): void {
+  if (store.sqlite) knownKeysState(store.sqlite).onLocalChange.push(listener);
 }
 
-/** How many keys are remembered for `sqlite` (diagnostics and tests). */
-export function knownKeyCount(sqlite: Sqlite): number {
-  return knownKeys.get(sqlite)?.byHash.size ?? 0;
+/** How many keys are remembered for this store's connection (diagnostics and tests). */
+export function knownKeyCount(store: Store): number {
+  if (store.sqlite) return knownKeys.get(store.sqlite)?.byHash.size ?? 0;
+  return portableKnownKeys.get(portableCacheKey(store))?.byHash.size ?? 0;
 }
 
 function knownKeyOf(row: KeyLookupRow): KnownKey {
@@ -443,11 +467,159 @@ function knownKeyOf(row: KeyLookupRow): KnownKey {
   return { key: Object.freeze(key), expiresAt: row.expiresAt, revokedAt: row.revokedAt };
 }
 
+/** The lookup row as the portable query returns it on either dialect (see {@link portableLookup}). */
+interface PortableKeyLookupRow {
+  id: number | string;
+  accountId: number | string;
+  publicId: string;
+  keyHash: string;
+  /** JSON text (SQLite) or the parsed array (PostgreSQL's json column). */
+  scopes: string | string[];
+  rateLimitPerMinute: number | string;
+  expiresAt: unknown;
+  revokedAt: unknown;
+  monthlyUnitQuota: number | string;
+  retainRequestBodies: unknown;
+}
+
+function lookupRowOf(row: PortableKeyLookupRow): KeyLookupRow {
+  return {
+    id: Number(row.id),
+    accountId: Number(row.accountId),
+    publicId: row.publicId,
+    keyHash: row.keyHash,
+    scopes: typeof row.scopes === 'string' ? row.scopes : JSON.stringify(row.scopes),
+    rateLimitPerMinute: Number(row.rateLimitPerMinute),
+    expiresAt: row.expiresAt == null ? null : readInstant(row.expiresAt).getTime(),
+    revokedAt: row.revokedAt == null ? null : readInstant(row.revokedAt).getTime(),
+    monthlyUnitQuota: Number(row.monthlyUnitQuota),
+    retainRequestBodies: row.retainRequestBodies ? 1 : 0,
+  };
+}
+
+/**
+ * Found keys of a store without a SQLite connection (PostgreSQL), trusted only while the shared
+ * auth_revision row is the one they were read under. The revision is read at most once per turn of
+ * the event loop (requests of one turn share the read), so every request that starts in a later
+ * turn than a committed change, made on any node, sees it. A lookup that was under way while the
+ * cache was cleared does not store its (possibly older) row: `generation` tells.
+ */
+interface PortableKnownKeys {
+  seen: number;
+  generation: number;
+  revisionRead: Promise<void> | undefined;
+  byHash: Map<string, KnownKey>;
+  forget: () => void;
+}
+const portableKnownKeys = new WeakMap<object, PortableKnownKeys>();
+
+/** One cache per connection pool (a transaction's store shares its pool's). */
+function portableCacheKey(store: Store): object {
+  return store.pool ?? store;
+}
+
+function portableKnownKeysState(store: Store): PortableKnownKeys {
+  const cacheKey = portableCacheKey(store);
+  let known = portableKnownKeys.get(cacheKey);
+  if (!known) {
+    const fresh: PortableKnownKeys = {
+      seen: -1,
+      generation: 0,
+      revisionRead: undefined,
+      byHash: new Map(),
+      forget: () => {
+        fresh.byHash.clear();
+        fresh.generation += 1;
+        fresh.revisionRead = undefined;
+      },
+    };
+    known = fresh;
+    portableKnownKeys.set(cacheKey, known);
+  }
+  return known;
+}
+
+async function portableKnownKeysFor(store: Store): Promise<PortableKnownKeys> {
+  const known = portableKnownKeysState(store);
+  if (known.revisionRead === undefined) {
+    const read = (async () => {
+      const [row] = await store.rows<{ revision: number | string }>(
+        sql`SELECT revision FROM auth_revision WHERE id = 1`,
+      );
+      const current = row === undefined ? -1 : Number(row.revision);
+      if (current !== known.seen) {
+        known.byHash.clear();
+        known.generation += 1;
+        known.seen = current;
+      }
+    })();
+    known.revisionRead = read;
+    nextTurn(() => {
+      if (known.revisionRead === read) known.revisionRead = undefined;
+    });
+    // A failed read is not shared with the requests of later turns.
+    read.catch(() => {
+      if (known.revisionRead === read) known.revisionRead = undefined;
+    });
+  }
+  await known.revisionRead;
+  if (known.byHash.size >= KNOWN_KEY_LIMIT) {
+    known.byHash.clear();
+    known.generation += 1;
+  }
+  return known;
+}
+
 /**
  * The key a presented token belongs to, if it is valid at `now`. The returned key object is
  * shared between requests (frozen): copy what you need.
+ *
+ * On SQLite this is {@link authenticateTokenOnSqlite} (prepared statements, no await); elsewhere
+ * the same checks through the store's portable SQL, with the revision-row cache above.
  */
-export function authenticateToken(
+export async function authenticateToken(
+  store: Store,
+  serverSecret: Buffer,
+  token: string,
+  now: Date,
+): Promise<AuthResult> {
+  if (store.sqlite) return authenticateTokenOnSqlite(store.sqlite, serverSecret, token, now);
+  if (!TOKEN_PATTERN.test(token)) return { ok: false, reason: 'malformed' };
+  const computed = memoHash(serverSecret, token);
+  const known = await portableKnownKeysFor(store);
+  let found = known.byHash.get(computed);
+  if (found === undefined) {
+    const generation = known.generation;
+    const [raw] = await store.rows<PortableKeyLookupRow>(sql`
+      SELECT k.id, k.account_id AS "accountId", k.public_id AS "publicId", k.key_hash AS "keyHash", k.scopes,
+        k.rate_limit_per_minute AS "rateLimitPerMinute", k.expires_at AS "expiresAt", k.revoked_at AS "revokedAt",
+        a.monthly_unit_quota AS "monthlyUnitQuota", a.retain_request_bodies AS "retainRequestBodies"
+      FROM api_keys k JOIN accounts a ON a.id = k.account_id WHERE k.key_hash = ${computed}`);
+    if (!raw || !crypto.timingSafeEqual(Buffer.from(raw.keyHash, 'hex'), Buffer.from(computed, 'hex'))) {
+      return { ok: false, reason: 'unknown' };
+    }
+    found = knownKeyOf(lookupRowOf(raw));
+    // Cleared meanwhile (a newer revision, or another node's announcement): the row may be older.
+    if (known.generation === generation && known.byHash.size < KNOWN_KEY_LIMIT)
+      known.byHash.set(computed, found);
+  }
+  const at = now.getTime();
+  if (found.revokedAt !== null && found.revokedAt <= at)
+    return { ok: false, reason: 'revoked', key: found.key };
+  if (found.expiresAt !== null && found.expiresAt <= at) {
+    const successor = await store.rows(
+      sql`SELECT 1 AS one FROM api_keys WHERE rotated_from_id = ${found.key.id} LIMIT 1`,
+    );
+    return { ok: false, reason: successor.length > 0 ? 'rotated' : 'expired', key: found.key };
+  }
+  return { ok: true, key: found.key };
+}
+
+/**
+ * {@link authenticateToken} on a SQLite connection, synchronously: the hot path of every /v1
+ * request, so it keeps its prepared statements and answers without a turn of the event loop.
+ */
+export function authenticateTokenOnSqlite(
   sqlite: Sqlite,
   serverSecret: Buffer,
   token: string,

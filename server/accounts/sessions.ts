@@ -14,7 +14,7 @@ import crypto from 'node:crypto';
 import { and, eq, gt, isNull } from 'drizzle-orm';
 import { jwtVerify, SignJWT } from 'jose';
 import { consoleSettings } from '../config.js';
-import { consoleSessions, users } from '../db/schema.js';
+import type { consoleSessions } from '../db/schema.js';
 import type { AppDeps } from '../deps.js';
 import { accountIdsOf, type Role } from './accounts.js';
 
@@ -89,18 +89,16 @@ export async function createSession(
   const sessionId = randomToken(18);
   const refreshToken = `${sessionId}.${randomToken(32)}`;
   const sessionExpiresAt = new Date(now.getTime() + settings.sessionTtlMs);
-  deps.db
-    .insert(consoleSessions)
-    .values({
-      id: sessionId,
-      userId: user.id,
-      refreshHash: sha256Hex(refreshToken),
-      createdAt: now,
-      expiresAt: sessionExpiresAt,
-      ip: client.ip ?? null,
-      userAgent: client.userAgent?.slice(0, 300) ?? null,
-    })
-    .run();
+  const { consoleSessions } = deps.store.t;
+  await deps.store.db.insert(consoleSessions).values({
+    id: sessionId,
+    userId: user.id,
+    refreshHash: sha256Hex(refreshToken),
+    createdAt: now,
+    expiresAt: sessionExpiresAt,
+    ip: client.ip ?? null,
+    userAgent: client.userAgent?.slice(0, 300) ?? null,
+  });
   const access = await signAccess(deps, user, sessionId, now);
   return {
     sessionId,
@@ -123,27 +121,28 @@ export async function rotateSession(deps: AppDeps, presented: string | undefined
   const now = deps.clock();
   if (typeof presented !== 'string' || presented === '') return { ok: false, reason: 'missing' };
   const sid = presented.split('.')[0] ?? '';
-  const row = deps.db.select().from(consoleSessions).where(eq(consoleSessions.id, sid)).get();
+  const { consoleSessions, users } = deps.store.t;
+  const db = deps.store.db;
+  const [row] = await db.select().from(consoleSessions).where(eq(consoleSessions.id, sid)).limit(1);
   if (!row) return { ok: false, reason: 'unknown' };
   if (row.revokedAt) return { ok: false, reason: 'revoked', userId: row.userId };
   if (row.expiresAt.getTime() <= now.getTime()) return { ok: false, reason: 'expired', userId: row.userId };
   const expected = Buffer.from(row.refreshHash, 'hex');
   const actual = Buffer.from(sha256Hex(presented), 'hex');
   if (expected.length !== actual.length || !crypto.timingSafeEqual(expected, actual)) {
-    deps.db.update(consoleSessions).set({ revokedAt: now }).where(eq(consoleSessions.id, sid)).run();
+    await db.update(consoleSessions).set({ revokedAt: now }).where(eq(consoleSessions.id, sid));
     return { ok: false, reason: 'replayed', userId: row.userId };
   }
-  const user = deps.db.select().from(users).where(eq(users.id, row.userId)).get();
+  const [user] = await db.select().from(users).where(eq(users.id, row.userId)).limit(1);
   if (!user || !user.active) {
-    deps.db.update(consoleSessions).set({ revokedAt: now }).where(eq(consoleSessions.id, sid)).run();
+    await db.update(consoleSessions).set({ revokedAt: now }).where(eq(consoleSessions.id, sid));
     return { ok: false, reason: 'inactive', userId: row.userId };
   }
   const refreshToken = `${sid}.${randomToken(32)}`;
-  deps.db
+  await db
     .update(consoleSessions)
     .set({ refreshHash: sha256Hex(refreshToken), refreshedAt: now })
-    .where(eq(consoleSessions.id, sid))
-    .run();
+    .where(eq(consoleSessions.id, sid));
   const access = await signAccess(deps, user, sid, now);
   return {
     ok: true,
@@ -160,26 +159,34 @@ export async function rotateSession(deps: AppDeps, presented: string | undefined
 }
 
 /** The session row with this id, live or not. */
-export function findSession(deps: AppDeps, sessionId: string): ConsoleSession | undefined {
-  return deps.db.select().from(consoleSessions).where(eq(consoleSessions.id, sessionId)).get();
+export async function findSession(deps: AppDeps, sessionId: string): Promise<ConsoleSession | undefined> {
+  const { consoleSessions } = deps.store.t;
+  const [row] = await deps.store.db
+    .select()
+    .from(consoleSessions)
+    .where(eq(consoleSessions.id, sessionId))
+    .limit(1);
+  return row;
 }
 
 /** Revokes one session (sign-out). */
-export function revokeSession(deps: AppDeps, sessionId: string): void {
-  deps.db
+export async function revokeSession(deps: AppDeps, sessionId: string): Promise<void> {
+  const { consoleSessions } = deps.store.t;
+  await deps.store.db
     .update(consoleSessions)
     .set({ revokedAt: deps.clock() })
-    .where(and(eq(consoleSessions.id, sessionId), isNull(consoleSessions.revokedAt)))
-    .run();
+    .where(and(eq(consoleSessions.id, sessionId), isNull(consoleSessions.revokedAt)));
 }
 
 /** Revokes every live session of a user (deactivation, password reset). Returns how many. */
-export function revokeUserSessions(deps: AppDeps, userId: number): number {
-  return deps.db
+export async function revokeUserSessions(deps: AppDeps, userId: number): Promise<number> {
+  const { consoleSessions } = deps.store.t;
+  const revoked = await deps.store.db
     .update(consoleSessions)
     .set({ revokedAt: deps.clock() })
     .where(and(eq(consoleSessions.userId, userId), isNull(consoleSessions.revokedAt)))
-    .run().changes;
+    .returning({ id: consoleSessions.id });
+  return revoked.length;
 }
 
 /**
@@ -205,7 +212,8 @@ export async function sessionOfAccessToken(
   } catch {
     return undefined;
   }
-  const row = deps.db
+  const { consoleSessions, users } = deps.store.t;
+  const [row] = await deps.store.db
     .select({ user: users })
     .from(consoleSessions)
     .innerJoin(users, eq(consoleSessions.userId, users.id))
@@ -217,7 +225,7 @@ export async function sessionOfAccessToken(
         gt(consoleSessions.expiresAt, now),
       ),
     )
-    .get();
+    .limit(1);
   if (!row || !row.user.active) return undefined;
   return {
     user: {
@@ -225,7 +233,7 @@ export async function sessionOfAccessToken(
       email: row.user.email,
       name: row.user.name,
       role: row.user.role,
-      accountIds: accountIdsOf(deps.db, row.user.id),
+      accountIds: await accountIdsOf(deps.store, row.user.id),
     },
     sessionId: sid,
   };

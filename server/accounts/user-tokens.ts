@@ -4,7 +4,7 @@
  * checks it is unused and unexpired, so two concurrent uses cannot both succeed.
  */
 import { and, eq, gt, isNull } from 'drizzle-orm';
-import { userTokens } from '../db/schema.js';
+import type { userTokens } from '../db/schema.js';
 import type { AppDeps } from '../deps.js';
 import type { Role } from './accounts.js';
 import { randomToken, sha256Hex } from './sessions.js';
@@ -12,7 +12,7 @@ import { randomToken, sha256Hex } from './sessions.js';
 export type UserToken = typeof userTokens.$inferSelect;
 export type TokenPurpose = UserToken['purpose'];
 
-export function createUserToken(
+export async function createUserToken(
   deps: AppDeps,
   input: {
     purpose: TokenPurpose;
@@ -23,10 +23,11 @@ export function createUserToken(
     accountIds?: number[];
     createdByUserId?: number;
   },
-): { token: string; row: UserToken } {
+): Promise<{ token: string; row: UserToken }> {
+  const { userTokens } = deps.store.t;
   const now = deps.clock();
   const token = randomToken(32);
-  const row = deps.db
+  const [row] = await deps.store.db
     .insert(userTokens)
     .values({
       purpose: input.purpose,
@@ -39,14 +40,18 @@ export function createUserToken(
       createdAt: now,
       expiresAt: new Date(now.getTime() + input.ttlMs),
     })
-    .returning()
-    .get();
-  return { token, row };
+    .returning();
+  return { token, row: row! };
 }
 
 /** The token's row if it exists, has this purpose, is unused and unexpired. */
-export function findValidToken(deps: AppDeps, purpose: TokenPurpose, token: string): UserToken | undefined {
-  return deps.db
+export async function findValidToken(
+  deps: AppDeps,
+  purpose: TokenPurpose,
+  token: string,
+): Promise<UserToken | undefined> {
+  const { userTokens } = deps.store.t;
+  const [row] = await deps.store.db
     .select()
     .from(userTokens)
     .where(
@@ -57,13 +62,19 @@ export function findValidToken(deps: AppDeps, purpose: TokenPurpose, token: stri
         gt(userTokens.expiresAt, deps.clock()),
       ),
     )
-    .get();
+    .limit(1);
+  return row;
 }
 
 /** Marks a valid token used and returns its row; undefined if unknown, used or expired. */
-export function consumeToken(deps: AppDeps, purpose: TokenPurpose, token: string): UserToken | undefined {
+export async function consumeToken(
+  deps: AppDeps,
+  purpose: TokenPurpose,
+  token: string,
+): Promise<UserToken | undefined> {
+  const { userTokens } = deps.store.t;
   const now = deps.clock();
-  return deps.db
+  const [row] = await deps.store.db
     .update(userTokens)
     .set({ usedAt: now })
     .where(
@@ -74,15 +85,15 @@ export function consumeToken(deps: AppDeps, purpose: TokenPurpose, token: string
         gt(userTokens.expiresAt, now),
       ),
     )
-    .returning()
-    .get();
+    .returning();
+  return row;
 }
 
 /** Marks every unused token of this purpose for this e-mail used (a newer one supersedes them). */
-export function supersedeTokens(deps: AppDeps, purpose: TokenPurpose, email: string): void {
-  deps.db
+export async function supersedeTokens(deps: AppDeps, purpose: TokenPurpose, email: string): Promise<void> {
+  const { userTokens } = deps.store.t;
+  await deps.store.db
     .update(userTokens)
     .set({ usedAt: deps.clock() })
-    .where(and(eq(userTokens.purpose, purpose), eq(userTokens.email, email), isNull(userTokens.usedAt)))
-    .run();
+    .where(and(eq(userTokens.purpose, purpose), eq(userTokens.email, email), isNull(userTokens.usedAt)));
 }

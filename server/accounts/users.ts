@@ -10,7 +10,7 @@ import { and, eq, gt, inArray, isNull } from 'drizzle-orm';
 import type { UserSummary } from '../../shared/console/common.js';
 import type { InvitationSummary } from '../../shared/console/users.js';
 import { consoleSettings } from '../config.js';
-import { accountMembers, accounts, users, userTokens } from '../db/schema.js';
+import type { users } from '../db/schema.js';
 import type { AppDeps } from '../deps.js';
 import { sendMail, type MailResult } from '../mail/send.js';
 import { accountIdsOf, type Role } from './accounts.js';
@@ -45,50 +45,59 @@ export function userSummary(row: UserRow, accountIds: number[]): UserSummary {
   };
 }
 
-export function loadUserSummary(deps: AppDeps, userId: number): UserSummary | undefined {
-  const row = deps.db.select().from(users).where(eq(users.id, userId)).get();
-  return row ? userSummary(row, accountIdsOf(deps.db, row.id)) : undefined;
+export async function loadUserSummary(deps: AppDeps, userId: number): Promise<UserSummary | undefined> {
+  const row = await findUserRow(deps, userId);
+  return row ? userSummary(row, await accountIdsOf(deps.store, row.id)) : undefined;
 }
 
 /** The user row with this id (password hash included: for the services only). */
-export function findUserRow(deps: AppDeps, userId: number): UserRow | undefined {
-  return deps.db.select().from(users).where(eq(users.id, userId)).get();
+export async function findUserRow(deps: AppDeps, userId: number): Promise<UserRow | undefined> {
+  const { users } = deps.store.t;
+  const [row] = await deps.store.db.select().from(users).where(eq(users.id, userId)).limit(1);
+  return row;
 }
 
 /** The user row with this (normalised) e-mail. */
-export function findUserRowByEmail(deps: AppDeps, email: string): UserRow | undefined {
-  return deps.db.select().from(users).where(eq(users.email, email)).get();
+export async function findUserRowByEmail(deps: AppDeps, email: string): Promise<UserRow | undefined> {
+  const { users } = deps.store.t;
+  const [row] = await deps.store.db.select().from(users).where(eq(users.email, email)).limit(1);
+  return row;
 }
 
-function refuseExistingEmail(deps: AppDeps, email: string): void {
-  if (deps.db.select({ id: users.id }).from(users).where(eq(users.email, email)).get()) {
+async function refuseExistingEmail(deps: AppDeps, email: string): Promise<void> {
+  const { users } = deps.store.t;
+  const [row] = await deps.store.db
+    .select({ id: users.id })
+    .from(users)
+    .where(eq(users.email, email))
+    .limit(1);
+  if (row) {
     throw new AccountsError('conflict', `A console user with the e-mail ${email} exists already.`);
   }
 }
 
 /** Refuses (validation-failed) naming each account id that does not exist. */
-function checkAccountsExist(deps: AppDeps, ids: readonly number[], field: string): void {
+async function checkAccountsExist(deps: AppDeps, ids: readonly number[], field: string): Promise<void> {
   if (ids.length === 0) return;
-  const found = new Set(
-    deps.db
-      .select({ id: accounts.id })
-      .from(accounts)
-      .where(inArray(accounts.id, [...ids]))
-      .all()
-      .map((r) => r.id),
-  );
+  const { accounts } = deps.store.t;
+  const rows = await deps.store.db
+    .select({ id: accounts.id })
+    .from(accounts)
+    .where(inArray(accounts.id, [...ids]));
+  const found = new Set(rows.map((r) => r.id));
   const errors = ids.flatMap((id, i) =>
     found.has(id) ? [] : [{ field: `${field}[${i}]`, message: `no account with id ${id}`, value: id }],
   );
   if (errors.length > 0) throw new AccountsError('validation-failed', errors[0]!.message, errors);
 }
 
-function activeAdminCount(deps: AppDeps): number {
-  return deps.db
+async function activeAdminCount(deps: AppDeps): Promise<number> {
+  const { users } = deps.store.t;
+  const rows = await deps.store.db
     .select({ id: users.id })
     .from(users)
-    .where(and(eq(users.role, 'admin'), eq(users.active, true)))
-    .all().length;
+    .where(and(eq(users.role, 'admin'), eq(users.active, true)));
+  return rows.length;
 }
 
 function invitationSummary(row: UserToken, invitedBy: string | null): InvitationSummary {
@@ -118,9 +127,12 @@ export function invitationText(link: string, role: string, expiresAt: Date): str
 }
 
 /** Every user (with their accounts) and every pending invitation, oldest first. */
-export function listUsers(deps: AppDeps): { items: UserSummary[]; invitations: InvitationSummary[] } {
-  const rows = deps.db.select().from(users).orderBy(users.id).all();
-  const members = deps.db.select().from(accountMembers).all();
+export async function listUsers(
+  deps: AppDeps,
+): Promise<{ items: UserSummary[]; invitations: InvitationSummary[] }> {
+  const { accountMembers, users, userTokens } = deps.store.t;
+  const rows = await deps.store.db.select().from(users).orderBy(users.id);
+  const members = await deps.store.db.select().from(accountMembers);
   const items = rows.map((row) =>
     userSummary(
       row,
@@ -131,7 +143,7 @@ export function listUsers(deps: AppDeps): { items: UserSummary[]; invitations: I
     ),
   );
   const emailById = new Map(rows.map((r) => [r.id, r.email]));
-  const invitations = deps.db
+  const tokens = await deps.store.db
     .select()
     .from(userTokens)
     .where(
@@ -141,9 +153,10 @@ export function listUsers(deps: AppDeps): { items: UserSummary[]; invitations: I
         gt(userTokens.expiresAt, deps.clock()),
       ),
     )
-    .orderBy(userTokens.id)
-    .all()
-    .map((t) => invitationSummary(t, t.createdByUserId ? (emailById.get(t.createdByUserId) ?? null) : null));
+    .orderBy(userTokens.id);
+  const invitations = tokens.map((t) =>
+    invitationSummary(t, t.createdByUserId ? (emailById.get(t.createdByUserId) ?? null) : null),
+  );
   return { items, invitations };
 }
 
@@ -156,11 +169,11 @@ export async function inviteUser(
   input: { email: string; role: Role; accountIds: number[]; invitedBy: { id: number; email: string } },
 ): Promise<{ email: string; invitation: InvitationSummary; mailStatus: MailResult['status'] }> {
   const email = normaliseEmail(input.email);
-  refuseExistingEmail(deps, email);
-  checkAccountsExist(deps, input.accountIds, 'accountIds');
+  await refuseExistingEmail(deps, email);
+  await checkAccountsExist(deps, input.accountIds, 'accountIds');
   const settings = consoleSettings(deps.config);
-  supersedeTokens(deps, 'invitation', email);
-  const { token, row } = createUserToken(deps, {
+  await supersedeTokens(deps, 'invitation', email);
+  const { token, row } = await createUserToken(deps, {
     purpose: 'invitation',
     email,
     ttlMs: settings.invitationTtlMs,
@@ -179,34 +192,39 @@ export async function inviteUser(
 }
 
 /** Ends a pending invitation's link at once; not-found unless it is pending. */
-export function withdrawInvitation(
+export async function withdrawInvitation(
   deps: AppDeps,
   invitationId: number,
-): { invitation: InvitationSummary; token: UserToken } {
+): Promise<{ invitation: InvitationSummary; token: UserToken }> {
   const now = deps.clock();
-  const row = deps.db
+  const { users, userTokens } = deps.store.t;
+  const [row] = await deps.store.db
     .select()
     .from(userTokens)
     .where(and(eq(userTokens.id, invitationId), eq(userTokens.purpose, 'invitation')))
-    .get();
+    .limit(1);
   if (!row || row.usedAt !== null || row.expiresAt <= now) {
     throw new AccountsError('not-found', `No pending invitation with id ${invitationId}.`);
   }
   // A used token is what the accept step refuses, so marking it used ends the link.
-  deps.db.update(userTokens).set({ usedAt: now }).where(eq(userTokens.id, row.id)).run();
-  const invitedBy = row.createdByUserId
-    ? (deps.db.select({ email: users.email }).from(users).where(eq(users.id, row.createdByUserId)).get()
-        ?.email ?? null)
-    : null;
+  await deps.store.db.update(userTokens).set({ usedAt: now }).where(eq(userTokens.id, row.id));
+  const [creator] = row.createdByUserId
+    ? await deps.store.db
+        .select({ email: users.email })
+        .from(users)
+        .where(eq(users.id, row.createdByUserId))
+        .limit(1)
+    : [];
+  const invitedBy = creator?.email ?? null;
   return { invitation: invitationSummary(row, invitedBy), token: row };
 }
 
 /** What a pending invitation offers; not-found when the token is unknown, used or expired. */
-export function invitationOffer(
+export async function invitationOffer(
   deps: AppDeps,
   token: string,
-): { email: string; role: Role; expiresAt: Date } {
-  const row = findValidToken(deps, 'invitation', token);
+): Promise<{ email: string; role: Role; expiresAt: Date }> {
+  const row = await findValidToken(deps, 'invitation', token);
   if (!row) throw new AccountsError('not-found', 'This invitation link is unknown, used or expired.');
   return { email: row.email, role: row.role ?? 'developer', expiresAt: row.expiresAt };
 }
@@ -230,15 +248,17 @@ export async function acceptInvitation(
   input: { token: string; name: string; password: string },
 ): Promise<{ user: UserRow; invitationId: number }> {
   const refused = 'The invitation link is unknown, used or expired.';
-  const pending = findValidToken(deps, 'invitation', input.token);
+  const pending = await findValidToken(deps, 'invitation', input.token);
   if (!pending) throw tokenRefused(refused);
-  refuseExistingEmail(deps, pending.email);
+  await refuseExistingEmail(deps, pending.email);
+  // Hashed before the transaction: its body may await only the store (server/db/store.ts).
   const passwordHash = await hashPassword(input.password);
-  const created = deps.db.transaction((tx) => {
+  const created = await deps.store.transaction(async (tx) => {
+    const { accountMembers, accounts, users, userTokens } = tx.t;
     const now = deps.clock();
-    const token = consumeToken({ ...deps, db: tx as unknown as AppDeps['db'] }, 'invitation', input.token);
+    const token = await consumeToken({ ...deps, store: tx }, 'invitation', input.token);
     if (!token) return undefined;
-    const user = tx
+    const [user] = await tx.db
       .insert(users)
       .values({
         email: token.email,
@@ -247,15 +267,19 @@ export async function acceptInvitation(
         name: input.name,
         createdAt: now,
       })
-      .returning()
-      .get();
+      .returning();
     for (const accountId of new Set(token.accountIds ?? [])) {
-      if (tx.select({ id: accounts.id }).from(accounts).where(eq(accounts.id, accountId)).get()) {
-        tx.insert(accountMembers).values({ userId: user.id, accountId }).onConflictDoNothing().run();
+      const [account] = await tx.db
+        .select({ id: accounts.id })
+        .from(accounts)
+        .where(eq(accounts.id, accountId))
+        .limit(1);
+      if (account) {
+        await tx.db.insert(accountMembers).values({ userId: user!.id, accountId }).onConflictDoNothing();
       }
     }
-    tx.update(userTokens).set({ userId: user.id }).where(eq(userTokens.id, token.id)).run();
-    return { user, invitationId: token.id };
+    await tx.db.update(userTokens).set({ userId: user!.id }).where(eq(userTokens.id, token.id));
+    return { user: user!, invitationId: token.id };
   });
   if (!created) throw tokenRefused(refused);
   return created;
@@ -272,41 +296,42 @@ export interface UserPatch {
  * sessions. Refuses to leave no active admin (conflict), an unknown user (not-found) and unknown
  * account ids.
  */
-export function updateUser(
+export async function updateUser(
   deps: AppDeps,
   userId: number,
   patch: UserPatch,
-): {
+): Promise<{
   before: UserSummary;
   after: UserSummary;
   /** True when this change deactivated an active user. */
   deactivated: boolean;
   sessionsRevoked: number;
-} {
-  const row = deps.db.select().from(users).where(eq(users.id, userId)).get();
+}> {
+  const row = await findUserRow(deps, userId);
   if (!row) throw new AccountsError('not-found', `No console user with id ${userId}.`);
-  const before = userSummary(row, accountIdsOf(deps.db, row.id));
+  const before = userSummary(row, await accountIdsOf(deps.store, row.id));
   const losesAdmin =
     row.role === 'admin' &&
     row.active &&
     ((patch.role !== undefined && patch.role !== 'admin') || patch.active === false);
-  if (losesAdmin && activeAdminCount(deps) <= 1) {
+  if (losesAdmin && (await activeAdminCount(deps)) <= 1) {
     throw new AccountsError('conflict', 'This is the last active admin; make another user admin first.');
   }
-  if (patch.accountIds) checkAccountsExist(deps, patch.accountIds, 'accountIds');
-  deps.db.transaction((tx) => {
+  if (patch.accountIds) await checkAccountsExist(deps, patch.accountIds, 'accountIds');
+  await deps.store.transaction(async (tx) => {
+    const { accountMembers, users } = tx.t;
     const set: Partial<UserRow> = {};
     if (patch.role !== undefined) set.role = patch.role;
     if (patch.active !== undefined) set.active = patch.active;
-    if (Object.keys(set).length > 0) tx.update(users).set(set).where(eq(users.id, row.id)).run();
+    if (Object.keys(set).length > 0) await tx.db.update(users).set(set).where(eq(users.id, row.id));
     if (patch.accountIds) {
-      tx.delete(accountMembers).where(eq(accountMembers.userId, row.id)).run();
+      await tx.db.delete(accountMembers).where(eq(accountMembers.userId, row.id));
       for (const accountId of new Set(patch.accountIds)) {
-        tx.insert(accountMembers).values({ userId: row.id, accountId }).run();
+        await tx.db.insert(accountMembers).values({ userId: row.id, accountId });
       }
     }
   });
-  const sessionsRevoked = patch.active === false ? revokeUserSessions(deps, row.id) : 0;
-  const after = loadUserSummary(deps, row.id)!;
+  const sessionsRevoked = patch.active === false ? await revokeUserSessions(deps, row.id) : 0;
+  const after = (await loadUserSummary(deps, row.id))!;
   return { before, after, deactivated: patch.active === false && row.active, sessionsRevoked };
 }

@@ -102,7 +102,7 @@ async function finalizeOnce(deps: AppDeps, statementId: number): Promise<Finaliz
   // The month is over: its usage is final. Recompute the draft once more before freezing it.
   await refreshDraft(deps.store, statementId);
   const detail = await statementDetail(deps.store, statementId);
-  const account = getAccount(deps.db, before.accountId);
+  const account = await getAccount(deps.store, before.accountId);
   if (!detail || !account) throw problem('not-found', `There is no statement ${statementId}.`);
 
   const client = payments.client;

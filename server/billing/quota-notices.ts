@@ -59,7 +59,7 @@ function noticeText(
 export async function checkQuotaNotices(deps: AppDeps, accountId: number): Promise<QuotaCheckResult> {
   const now = deps.clock();
   const month = utcMonth(now);
-  const account = getAccount(deps.db, accountId);
+  const account = await getAccount(deps.store, accountId);
   if (!account) return { month, used: 0, quota: 0, sent: null };
   const quota = account.monthlyUnitQuota;
   const used = await unitsUsedThisMonth(deps.store, accountId, now);

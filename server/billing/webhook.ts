@@ -112,14 +112,25 @@ function handler(deps: AppDeps): RequestHandler {
       const paidSeconds = invoice.status_transitions?.paid_at;
       const paidAt = typeof paidSeconds === 'number' ? new Date(paidSeconds * 1000) : now;
       await tx.db.update(statements).set({ status: 'paid', paidAt }).where(eq(statements.id, statement.id));
-      // Synchronous on the same SQLite connection, so it joins this transaction.
-      recordAudit(deps, req, res, {
-        action: 'statement.paid',
-        targetType: 'statement',
-        targetId: statement.id,
-        detail: { eventId: event.id, invoiceId, amountMinor: statement.amountMinor, month: statement.month },
-        actor: { id: null, email: 'payment-provider (webhook)' },
-      });
+      // In the same transaction: a paid statement always has its audit row.
+      await recordAudit(
+        deps,
+        req,
+        res,
+        {
+          action: 'statement.paid',
+          targetType: 'statement',
+          targetId: statement.id,
+          detail: {
+            eventId: event.id,
+            invoiceId,
+            amountMinor: statement.amountMinor,
+            month: statement.month,
+          },
+          actor: { id: null, email: 'payment-provider (webhook)' },
+        },
+        tx,
+      );
       return { received: true, duplicate: false, effect: `statement ${statement.id} paid` };
     });
     res.json(outcome);

@@ -5,7 +5,7 @@
  * Also the scope helpers the other data routes share: a developer sees only the accounts they
  * are a member of (res.locals.user.accountIds); admins and billing users see all of them.
  */
-import { eq } from 'drizzle-orm';
+import { eq, sql } from 'drizzle-orm';
 import {
   AccountCreateSchema,
   AccountIdParamsSchema,
@@ -14,11 +14,18 @@ import {
   AccountSchema,
   type ConsoleAccount,
 } from '../../shared/console/accounts.js';
-import { createAccount, getAccount, updateAccount, type Account } from '../accounts/accounts.js';
+import {
+  createAccount,
+  getAccount,
+  listAccounts,
+  updateAccount,
+  type Account,
+} from '../accounts/accounts.js';
 import { monthStartUtc, nextMonthStartUtc, utcDay } from '../accounts/usage.js';
 import { quotaPercent } from '../accounts/usage-report.js';
-import type { Db, Sqlite } from '../db/client.js';
-import { accounts as accountsTable, plans } from '../db/schema.js';
+import type { Db } from '../db/client.js';
+import { plans } from '../db/schema.js';
+import type { Store } from '../db/store.js';
 import type { AppDeps } from '../deps.js';
 import { problem } from '../http/problem.js';
 import { recordAudit } from '../accounts/audit.js';
@@ -48,8 +55,8 @@ export function queryScope(user: ConsoleUser, accountId: number | undefined): re
 }
 
 /** 404 unless the account exists. */
-export function requireAccount(db: Db, accountId: number): Account {
-  const account = getAccount(db, accountId);
+export async function requireAccount(store: Store, accountId: number): Promise<Account> {
+  const account = await getAccount(store, accountId);
   if (!account) throw problem('not-found', `There is no account ${accountId}.`);
   return account;
 }
@@ -60,23 +67,31 @@ interface AccountStats {
   keys: number;
 }
 
-function stats(sqlite: Sqlite, now: Date, ids: readonly number[] | null): Map<number, AccountStats> {
-  const where = ids === null ? '' : `WHERE a.id IN (${ids.map(() => '?').join(',') || 'NULL'})`;
-  const rows = sqlite
-    .prepare(
-      `SELECT a.id AS id,
-         COALESCE((SELECT SUM(units) FROM usage_daily d WHERE d.account_id = a.id AND d.day >= ? AND d.day < ?), 0) AS units,
+async function stats(
+  store: Store,
+  now: Date,
+  ids: readonly number[] | null,
+): Promise<Map<number, AccountStats>> {
+  if (ids !== null && ids.length === 0) return new Map();
+  const where =
+    ids === null
+      ? sql``
+      : sql`WHERE a.id IN (${sql.join(
+          ids.map((id) => sql`${id}`),
+          sql`, `,
+        )})`;
+  // count and sum are bigint on PostgreSQL (strings through node-postgres): read with Number.
+  const rows = await store.rows<{ id: number | string; units: number | string; keys: number | string }>(
+    sql`SELECT a.id AS id,
+         COALESCE((SELECT SUM(units) FROM usage_daily d WHERE d.account_id = a.id
+            AND d.day >= ${utcDay(monthStartUtc(now))} AND d.day < ${utcDay(nextMonthStartUtc(now))}), 0) AS units,
          (SELECT COUNT(*) FROM api_keys k WHERE k.account_id = a.id AND k.revoked_at IS NULL
-            AND (k.expires_at IS NULL OR k.expires_at > ?)) AS keys
+            AND (k.expires_at IS NULL OR k.expires_at > ${store.instant(now)})) AS keys
        FROM accounts a ${where}`,
-    )
-    .all(
-      utcDay(monthStartUtc(now)),
-      utcDay(nextMonthStartUtc(now)),
-      now.getTime(),
-      ...(ids ?? []),
-    ) as AccountStats[];
-  return new Map(rows.map((r) => [r.id, r]));
+  );
+  return new Map(
+    rows.map((r) => [Number(r.id), { id: Number(r.id), units: Number(r.units), keys: Number(r.keys) }]),
+  );
 }
 
 function toView(account: Account, s: AccountStats | undefined): ConsoleAccount {
@@ -95,8 +110,8 @@ function toView(account: Account, s: AccountStats | undefined): ConsoleAccount {
   };
 }
 
-export function accountView(deps: AppDeps, account: Account): ConsoleAccount {
-  return toView(account, stats(deps.sqlite, deps.clock(), [account.id]).get(account.id));
+export async function accountView(deps: AppDeps, account: Account): Promise<ConsoleAccount> {
+  return toView(account, (await stats(deps.store, deps.clock(), [account.id])).get(account.id));
 }
 
 /** 422 unless `plan` names a row of the plans table (the billing module owns that table). */
@@ -127,9 +142,9 @@ export const accountRoutes: ConsoleRouteModule = {
       roles: ['admin', 'billing'],
       summary: 'List the customer accounts with this month’s units and active key count',
       response: AccountListSchema,
-      handler: () => {
-        const rows = deps.db.select().from(accountsTable).orderBy(accountsTable.id).all();
-        const s = stats(deps.sqlite, deps.clock(), null);
+      handler: async () => {
+        const rows = await listAccounts(deps.store);
+        const s = await stats(deps.store, deps.clock(), null);
         return { items: rows.map((a) => toView(a, s.get(a.id))) };
       },
     });
@@ -142,9 +157,9 @@ export const accountRoutes: ConsoleRouteModule = {
       request: { body: AccountCreateSchema },
       response: AccountSchema,
       status: 201,
-      handler: ({ req, res, body }) => {
+      handler: async ({ req, res, body }) => {
         assertPlanExists(deps.db, body.plan);
-        const account = createAccount(deps.db, {
+        const account = await createAccount(deps.store, {
           name: body.name,
           plan: body.plan,
           monthlyUnitQuota: body.monthlyUnitQuota,
@@ -152,14 +167,14 @@ export const accountRoutes: ConsoleRouteModule = {
           retainRequestBodies: body.retainRequestBodies ?? false,
           now: deps.clock(),
         });
-        recordAudit(deps, req, res, {
+        await recordAudit(deps, req, res, {
           action: 'account.create',
           targetType: 'account',
           targetId: account.id,
           detail: { ...body },
         });
         res.location(`/console-api/accounts/${account.id}`);
-        return accountView(deps, account);
+        return await accountView(deps, account);
       },
     });
 
@@ -170,7 +185,7 @@ export const accountRoutes: ConsoleRouteModule = {
       summary: 'One customer account',
       request: { params: AccountIdParamsSchema },
       response: AccountSchema,
-      handler: ({ params }) => accountView(deps, requireAccount(deps.db, params.id)),
+      handler: async ({ params }) => accountView(deps, await requireAccount(deps.store, params.id)),
     });
 
     consoleRoute(router, {
@@ -180,21 +195,21 @@ export const accountRoutes: ConsoleRouteModule = {
       summary: 'Change an account’s name, plan, quota, billing e-mail or body retention',
       request: { params: AccountIdParamsSchema, body: AccountPatchSchema },
       response: AccountSchema,
-      handler: ({ req, res, params, body }) => {
-        const before = requireAccount(deps.db, params.id);
+      handler: async ({ req, res, params, body }) => {
+        const before = await requireAccount(deps.store, params.id);
         if (body.plan !== undefined) assertPlanExists(deps.db, body.plan);
-        const after = updateAccount(deps.db, params.id, body)!;
+        const after = (await updateAccount(deps.store, params.id, body))!;
         const changes: Record<string, { from: unknown; to: unknown }> = {};
         for (const key of Object.keys(body) as (keyof typeof body)[]) {
           if (before[key] !== after[key]) changes[key] = { from: before[key], to: after[key] };
         }
-        recordAudit(deps, req, res, {
+        await recordAudit(deps, req, res, {
           action: 'account.update',
           targetType: 'account',
           targetId: params.id,
           detail: { changes },
         });
-        return accountView(deps, after);
+        return await accountView(deps, after);
       },
     });
   },

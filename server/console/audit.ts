@@ -5,7 +5,6 @@
 import { and, count, desc, eq, gte, lt, type SQL } from 'drizzle-orm';
 import { AuditPageSchema, AuditQuerySchema, type AuditEntry } from '../../shared/console/users.js';
 import type { AuditRow } from '../accounts/audit.js';
-import { auditLog } from '../db/schema.js';
 import type { AppDeps } from '../deps.js';
 import { consoleRoute, type ConsoleRouteModule } from './route.js';
 
@@ -17,27 +16,29 @@ export interface AuditFilter {
 }
 
 /** Newest first, paged (page is 1-based). */
-export function listAudit(
+export async function listAudit(
   deps: AppDeps,
   filter: AuditFilter,
   page: number,
   pageSize: number,
-): { items: AuditRow[]; total: number } {
+): Promise<{ items: AuditRow[]; total: number }> {
+  const { auditLog } = deps.store.t;
   const conditions: SQL[] = [];
   if (filter.action) conditions.push(eq(auditLog.action, filter.action));
   if (filter.actorUserId !== undefined) conditions.push(eq(auditLog.actorUserId, filter.actorUserId));
   if (filter.from) conditions.push(gte(auditLog.at, filter.from));
   if (filter.to) conditions.push(lt(auditLog.at, filter.to));
   const where = conditions.length > 0 ? and(...conditions) : undefined;
-  const total = deps.db.select({ n: count() }).from(auditLog).where(where).get()?.n ?? 0;
-  const items = deps.db
+  const [counted] = await deps.store.db.select({ n: count() }).from(auditLog).where(where);
+  // count() is bigint on PostgreSQL: Number() either way.
+  const total = Number(counted?.n ?? 0);
+  const items = await deps.store.db
     .select()
     .from(auditLog)
     .where(where)
     .orderBy(desc(auditLog.at), desc(auditLog.id))
     .limit(pageSize)
-    .offset((page - 1) * pageSize)
-    .all();
+    .offset((page - 1) * pageSize);
   return { items, total };
 }
 
@@ -65,8 +66,8 @@ export const auditRouteModule: ConsoleRouteModule = {
       summary: 'The audit log: admin actions and security events, newest first',
       request: { query: AuditQuerySchema },
       response: AuditPageSchema,
-      handler: ({ deps, query }) => {
-        const { items, total } = listAudit(
+      handler: async ({ deps, query }) => {
+        const { items, total } = await listAudit(
           deps,
           {
             ...(query.action ? { action: query.action } : {}),

@@ -65,7 +65,7 @@ export const billingRouteModule: ConsoleRouteModule = {
       response: GenerateStatementsResponse,
       handler: async ({ deps, body, req, res }) => {
         const result = await generateStatements(deps.store, body.month, deps.clock());
-        recordAudit(deps, req, res, {
+        await recordAudit(deps, req, res, {
           action: 'statement.generate',
           targetType: 'month',
           targetId: body.month,
@@ -107,7 +107,7 @@ export const billingRouteModule: ConsoleRouteModule = {
       response: FinalizeStatementResponse,
       handler: async ({ deps, params, req, res }) => {
         const result = await finalizeStatement(deps, params.id);
-        recordAudit(deps, req, res, {
+        await recordAudit(deps, req, res, {
           action: 'statement.finalize',
           targetType: 'statement',
           targetId: params.id,

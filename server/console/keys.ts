@@ -4,7 +4,7 @@
  * they are members of (403 otherwise); billing users may list them.
  *
  * The secret is returned once, and only after the key's row is committed (createKey and rotateKey
- * are synchronous better-sqlite3 writes), so a secret the caller sees always works. The account's
+ * resolve after their write, outside any longer transaction), so a secret the caller sees always works. The account's
  * billing e-mail, if set, is told about every new and revoked key (never the secret).
  */
 import { desc, eq, inArray } from 'drizzle-orm';
@@ -21,7 +21,6 @@ import {
 import type { Account } from '../accounts/accounts.js';
 import { createKey, getKey, revokeKey, rotateKey, type ApiKeyView } from '../accounts/keys.js';
 import { isScope } from '../accounts/operations.js';
-import { accounts, apiKeys } from '../db/schema.js';
 import type { AppDeps } from '../deps.js';
 import { problem } from '../http/problem.js';
 import { sendMail } from '../mail/send.js';
@@ -56,11 +55,15 @@ export function keyView(key: ApiKeyView, accountName: string, now: Date): Consol
 }
 
 /** The key, after checking it exists (404) and the user may manage its account (403). */
-function requireKey(deps: AppDeps, user: ConsoleUser, keyId: number): { key: ApiKeyView; account: Account } {
-  const key = getKey(deps.db, keyId);
+async function requireKey(
+  deps: AppDeps,
+  user: ConsoleUser,
+  keyId: number,
+): Promise<{ key: ApiKeyView; account: Account }> {
+  const key = await getKey(deps.store, keyId);
   if (!key) throw problem('not-found', `There is no API key ${keyId}.`);
   assertAccountInScope(user, key.accountId);
-  return { key, account: requireAccount(deps.db, key.accountId) };
+  return { key, account: await requireAccount(deps.store, key.accountId) };
 }
 
 /** Tells the account's billing contact; a mail failure is logged (mail_log) but never fails the call. */
@@ -92,16 +95,16 @@ export const keyRoutes: ConsoleRouteModule = {
       summary: 'List API keys (a developer sees only the keys of their accounts)',
       request: { query: KeyListQuerySchema },
       response: KeyListSchema,
-      handler: ({ query, user }) => {
+      handler: async ({ query, user }) => {
         const scope = queryScope(user, query.accountId);
         if (scope !== null && scope.length === 0) return { items: [] };
-        const rows = deps.db
+        const { accounts, apiKeys } = deps.store.t;
+        const rows = await deps.store.db
           .select({ key: apiKeys, accountName: accounts.name })
           .from(apiKeys)
           .innerJoin(accounts, eq(accounts.id, apiKeys.accountId))
           .where(scope === null ? undefined : inArray(apiKeys.accountId, [...scope]))
-          .orderBy(desc(apiKeys.id))
-          .all();
+          .orderBy(desc(apiKeys.id));
         const now = deps.clock();
         return {
           items: rows.map(({ key, accountName }) => {
@@ -122,7 +125,7 @@ export const keyRoutes: ConsoleRouteModule = {
       status: 201,
       handler: async ({ req, res, body, user }) => {
         assertAccountInScope(user, body.accountId);
-        const account = requireAccount(deps.db, body.accountId);
+        const account = await requireAccount(deps.store, body.accountId);
         const now = deps.clock();
         const expiresAt = body.expiresAt ? new Date(body.expiresAt) : null;
         if (expiresAt && expiresAt <= now) {
@@ -131,7 +134,7 @@ export const keyRoutes: ConsoleRouteModule = {
           });
         }
         // Committed before anything is sent: the secret shown below already works.
-        const { key, token } = createKey(deps.db, deps.config.secret, {
+        const { key, token } = await createKey(deps.store, deps.config.secret, {
           accountId: account.id,
           name: body.name,
           scopes: body.scopes,
@@ -139,7 +142,7 @@ export const keyRoutes: ConsoleRouteModule = {
           expiresAt,
           now,
         });
-        recordAudit(deps, req, res, {
+        await recordAudit(deps, req, res, {
           action: 'key.create',
           targetType: 'api-key',
           targetId: key.id,
@@ -166,11 +169,11 @@ export const keyRoutes: ConsoleRouteModule = {
       request: { params: KeyIdParamsSchema },
       response: KeyResponseSchema,
       handler: async ({ req, res, params, user }) => {
-        const { key: before, account } = requireKey(deps, user, params.id);
+        const { key: before, account } = await requireKey(deps, user, params.id);
         const now = deps.clock();
-        const key = revokeKey(deps.db, params.id, now)!;
+        const key = (await revokeKey(deps.store, params.id, now))!;
         if (!before.revokedAt) {
-          recordAudit(deps, req, res, {
+          await recordAudit(deps, req, res, {
             action: 'key.revoke',
             targetType: 'api-key',
             targetId: key.id,
@@ -198,17 +201,17 @@ export const keyRoutes: ConsoleRouteModule = {
       response: KeyWithSecretSchema,
       status: 201,
       handler: async ({ req, res, params, body, user }) => {
-        const { key: old, account } = requireKey(deps, user, params.id);
+        const { key: old, account } = await requireKey(deps, user, params.id);
         const now = deps.clock();
         const state = keyState(old, now);
         if (state === 'revoked' || state === 'expired') {
           throw problem('conflict', `API key ${old.id} is ${state}; only a valid key can be rotated.`);
         }
-        const { key, token, previous } = rotateKey(deps.db, deps.config.secret, old.id, {
+        const { key, token, previous } = await rotateKey(deps.store, deps.config.secret, old.id, {
           now,
           overlapSeconds: body.overlapSeconds,
         });
-        recordAudit(deps, req, res, {
+        await recordAudit(deps, req, res, {
           action: 'key.rotate',
           targetType: 'api-key',
           targetId: old.id,

@@ -267,7 +267,7 @@ export const liquorRoutes: ConsoleRouteModule = {
       request: { query: LiquorLibraryQuerySchema },
       response: LiquorLibrarySchema,
       handler: async ({ query }) => {
-        if (query.accountId !== undefined) requireAccount(deps.db, query.accountId);
+        if (query.accountId !== undefined) await requireAccount(deps.store, query.accountId);
         const items = [...builtInLiquors.values()].map((m) => libraryItem(m, 'built-in', m.id, null));
         items.push(...(await storedItems(deps, query.accountId)));
         return { items };
@@ -298,7 +298,7 @@ export const liquorRoutes: ConsoleRouteModule = {
               },
             );
           }
-          const account = requireAccount(deps.db, query.accountId);
+          const account = await requireAccount(deps.store, query.accountId);
           const stored = await findStoredLiquor(deps.store, account.id, params.id);
           if (!stored)
             throw problem('not-found', `Account ${account.id} has no stored liquor "${params.id}".`);
@@ -322,7 +322,7 @@ export const liquorRoutes: ConsoleRouteModule = {
       response: LiquorLibraryItemSchema,
       status: 201,
       handler: async ({ req, res, params }) => {
-        const account = requireAccount(deps.db, params.id);
+        const account = await requireAccount(deps.store, params.id);
         const fields = validate(LiquorUploadFieldsSchema, req.body ?? {});
         if (!req.file) {
           throw problem('validation-failed', 'The upload needs a CSV file in the field "file".', {
@@ -375,7 +375,7 @@ export const liquorRoutes: ConsoleRouteModule = {
           throw inCsvTerms(err, upload);
         }
         await insertStoredLiquor(deps.store, account.id, id, input.definition, deps.clock());
-        recordAudit(deps, req, res, {
+        await recordAudit(deps, req, res, {
           action: 'liquor.upload',
           targetType: 'stored-liquor',
           targetId: `${account.id}/${id}`,

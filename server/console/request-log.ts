@@ -155,7 +155,7 @@ export const requestLogRoutes: ConsoleRouteModule = {
             `Request-log entry ${params.id} belongs to an account you are not a member of.`,
           );
         }
-        const account = row.accountId === null ? undefined : getAccount(deps.db, row.accountId);
+        const account = row.accountId === null ? undefined : await getAccount(deps.store, row.accountId);
         return {
           ...item(row),
           engineVersion: row.engineVersion,

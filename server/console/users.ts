@@ -43,7 +43,7 @@ export const usersRouteModule: ConsoleRouteModule = {
           accountIds: body.accountIds,
           invitedBy: { id: user.id, email: user.email },
         });
-        recordAudit(deps, req, res, {
+        await recordAudit(deps, req, res, {
           action: 'user.invite',
           targetType: 'invitation',
           targetId: invitation.id,
@@ -60,9 +60,9 @@ export const usersRouteModule: ConsoleRouteModule = {
       summary: 'Withdraw a pending invitation: its link stops working at once',
       request: { params: IdParamsSchema },
       response: InvitationSummarySchema,
-      handler: ({ deps, req, res, params }) => {
-        const { invitation, token } = withdrawInvitation(deps, params.id);
-        recordAudit(deps, req, res, {
+      handler: async ({ deps, req, res, params }) => {
+        const { invitation, token } = await withdrawInvitation(deps, params.id);
+        await recordAudit(deps, req, res, {
           action: 'user.invitation.withdraw',
           targetType: 'invitation',
           targetId: token.id,
@@ -81,9 +81,9 @@ export const usersRouteModule: ConsoleRouteModule = {
         'Deactivating a user revokes all of their console sessions at once. At least one active admin remains.',
       request: { params: IdParamsSchema, body: UserPatchSchema },
       response: UserSummarySchema,
-      handler: ({ deps, req, res, params, body }) => {
-        const { before, after, deactivated, sessionsRevoked } = updateUser(deps, params.id, body);
-        recordAudit(deps, req, res, {
+      handler: async ({ deps, req, res, params, body }) => {
+        const { before, after, deactivated, sessionsRevoked } = await updateUser(deps, params.id, body);
+        await recordAudit(deps, req, res, {
           action: deactivated ? 'user.deactivate' : 'user.update',
           targetType: 'user',
           targetId: after.id,

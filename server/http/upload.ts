@@ -59,19 +59,24 @@ export function singleCsvUpload(options: UploadOptions = {}): (req: Request, res
     new Promise((resolve, reject) => {
       single(req, res, (err: unknown) => {
         if (err) return reject(uploadProblem(err));
+        const afterRecheck = () => {
+          // Field names are as hostile as JSON property names: the same refusals.
+          const refused = checkJsonBody(req.body);
+          if (refused) {
+            req.body = undefined;
+            return reject(refused);
+          }
+          resolve();
+        };
         // The body is complete: an API key revoked while it arrived refuses the request here.
+        let rechecked: void | Promise<void>;
         try {
-          res.locals.recheckKey?.();
+          rechecked = res.locals.recheckKey?.();
         } catch (e) {
           return reject(e as Error);
         }
-        // Field names are as hostile as JSON property names: the same refusals.
-        const refused = checkJsonBody(req.body);
-        if (refused) {
-          req.body = undefined;
-          return reject(refused);
-        }
-        resolve();
+        if (rechecked instanceof Promise) rechecked.then(afterRecheck, reject);
+        else afterRecheck();
       });
     });
 }

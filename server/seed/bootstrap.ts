@@ -7,9 +7,7 @@
  */
 import { eq } from 'drizzle-orm';
 import type { Config } from '../config.js';
-import type { Db, Sqlite } from '../db/client.js';
-import { sqliteStore } from '../db/store.js';
-import { accounts } from '../db/schema.js';
+import type { Store } from '../db/store.js';
 import { addMember, createAccount, createUser, findUserByEmail } from '../accounts/accounts.js';
 import { createKey, keyExists } from '../accounts/keys.js';
 import { scopes } from '../accounts/operations.js';
@@ -24,26 +22,39 @@ export interface BootstrapReport {
 }
 
 export async function bootstrap(
-  db: Db,
-  sqlite: Sqlite,
+  store: Store,
   config: Config,
   now: Date,
   engineVersion: string,
 ): Promise<BootstrapReport> {
   const report: BootstrapReport = { seeded: false, apiKeyRegistered: false, adminCreated: false };
-  // The demo seed goes through the store; bootstrap itself still takes the SQLite connection.
-  const store = sqliteStore(sqlite, db);
   if (await isDatabaseEmpty(store)) {
     report.demoCredentials = await seedDemo(store, config.secret, now, engineVersion);
     report.seeded = true;
   }
-  const demoAccountId = () =>
-    db.select({ id: accounts.id }).from(accounts).where(eq(accounts.name, DEMO_ACCOUNT_NAME)).get()?.id ??
-    createAccount(db, { name: DEMO_ACCOUNT_NAME, plan: 'professional', monthlyUnitQuota: 50_000, now }).id;
+  const demoAccountId = async (): Promise<number> => {
+    const { accounts } = store.t;
+    const [found] = await store.db
+      .select({ id: accounts.id })
+      .from(accounts)
+      .where(eq(accounts.name, DEMO_ACCOUNT_NAME))
+      .limit(1);
+    if (found) return found.id;
+    const created = await createAccount(store, {
+      name: DEMO_ACCOUNT_NAME,
+      plan: 'professional',
+      monthlyUnitQuota: 50_000,
+      now,
+    });
+    return created.id;
+  };
 
-  if (config.bootstrapApiKey !== undefined && !keyExists(db, config.secret, config.bootstrapApiKey)) {
-    createKey(db, config.secret, {
-      accountId: demoAccountId(),
+  if (
+    config.bootstrapApiKey !== undefined &&
+    !(await keyExists(store, config.secret, config.bootstrapApiKey))
+  ) {
+    await createKey(store, config.secret, {
+      accountId: await demoAccountId(),
       name: 'Bootstrap key (BOOTSTRAP_API_KEY)',
       scopes,
       rateLimitPerMinute: 600,
@@ -55,15 +66,15 @@ export async function bootstrap(
   if (
     config.bootstrapAdminEmail !== undefined &&
     config.bootstrapAdminPassword !== undefined &&
-    !findUserByEmail(db, config.bootstrapAdminEmail)
+    !(await findUserByEmail(store, config.bootstrapAdminEmail))
   ) {
-    const user = await createUser(db, {
+    const user = await createUser(store, {
       email: config.bootstrapAdminEmail,
       password: config.bootstrapAdminPassword,
       role: 'admin',
       now,
     });
-    addMember(db, user.id, demoAccountId());
+    await addMember(store, user.id, await demoAccountId());
     report.adminCreated = true;
   }
   return report;

@@ -113,21 +113,20 @@ export async function seedDemo(
   // day (the usage below goes back six days), and early enough that last month can be billed.
   const since = new Date(Date.UTC(now.getUTCFullYear(), now.getUTCMonth() - 1, 1));
   return store.transaction(async (tx) => {
-    const db = tx.db;
-    const operator = insertUser(db, {
+    const operator = await insertUser(tx, {
       email: DEMO_OPERATOR_EMAIL,
       passwordHash: operatorHash,
       role: 'admin',
       now,
     });
-    const caustic = createAccount(db, {
+    const caustic = await createAccount(tx, {
       name: DEMO_ACCOUNT_NAME,
       plan: 'professional',
       monthlyUnitQuota: 50_000,
       billingEmail: 'accounts@saltmarsh-alkali.invalid',
       now: since,
     });
-    const dairy = createAccount(db, {
+    const dairy = await createAccount(tx, {
       name: SECOND_DEMO_ACCOUNT_NAME,
       plan: 'starter',
       monthlyUnitQuota: 5_000,
@@ -135,9 +134,9 @@ export async function seedDemo(
       retainRequestBodies: true,
       now: since,
     });
-    addMember(db, operator.id, caustic.id);
-    addMember(db, operator.id, dairy.id);
-    const causticCreated = createKey(db, serverSecret, {
+    await addMember(tx, operator.id, caustic.id);
+    await addMember(tx, operator.id, dairy.id);
+    const causticCreated = await createKey(tx, serverSecret, {
       accountId: caustic.id,
       name: 'Caustic evaporator studies',
       scopes: [...scopes],
@@ -145,13 +144,13 @@ export async function seedDemo(
       now: since,
     });
     const causticKey = causticCreated.key;
-    const dairyKey = createKey(db, serverSecret, {
+    const { key: dairyKey } = await createKey(tx, serverSecret, {
       accountId: dairy.id,
       name: 'Falling-film line 2',
       scopes: ['steam', 'liquors', 'evaporators', 'usage'],
       rateLimitPerMinute: 60,
       now: since,
-    }).key;
+    });
     const usage = demoUsage(
       caustic.id,
       causticKey.id,

@@ -301,26 +301,27 @@ export async function runApiBench(): Promise<ApiBenchResult> {
   const secret = Buffer.from(secretText, 'utf8'); // as loadConfig reads EBULLIO_SECRET
 
   // Account and keys, written before the app starts (the app reads them from the same file).
-  const setup = openDatabase(dbFile);
-  runMigrations(setup.db);
+  const opened = openDatabase(dbFile);
+  runMigrations(opened.db);
+  const setup = { ...opened, store: sqliteStore(opened.sqlite, opened.db) };
   const now = new Date();
-  const account = createAccount(setup.db, {
+  const account = await createAccount(setup.store, {
     name: 'Bench Caustic Works (invented)',
     plan: 'professional',
     monthlyUnitQuota: 100_000_000,
     now,
   });
-  const newKey = (name: string) =>
-    createKey(setup.db, secret, {
+  const newKey = async (name: string) =>
+    await createKey(setup.store, secret, {
       accountId: account.id,
       name,
       scopes,
       rateLimitPerMinute: RATE_LIMIT_PER_MINUTE,
       now,
     });
-  const warmKey = newKey('bench warm-up');
-  const runKey = newKey('bench duration run');
-  const exactKey = newKey('bench exact metering run');
+  const warmKey = await newKey('bench warm-up');
+  const runKey = await newKey('bench duration run');
+  const exactKey = await newKey('bench exact metering run');
   setup.sqlite.close();
 
   const body = JSON.stringify(BENCH_CASE);

@@ -25,6 +25,7 @@ import autocannon from 'autocannon';
 import { createAccount } from '../../server/accounts/accounts.js';
 import { createKey } from '../../server/accounts/keys.js';
 import { scopes } from '../../server/accounts/operations.js';
+import { sqliteStore } from '../../server/db/store.js';
 import { openDatabase, runMigrations } from '../../server/db/client.js';
 import { BENCH_CASE, startChild, stopChild, type Child } from './api.js';
 
@@ -52,15 +53,16 @@ export async function runHashFloodBench(): Promise<HashFloodResult> {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'ebullio-hash-flood-'));
   const dbFile = path.join(dir, 'bench.db');
   const secretText = crypto.randomBytes(32).toString('hex');
-  const setup = openDatabase(dbFile);
-  runMigrations(setup.db);
+  const opened = openDatabase(dbFile);
+  runMigrations(opened.db);
+  const setup = { ...opened, store: sqliteStore(opened.sqlite, opened.db) };
   const now = new Date();
-  const account = createAccount(setup.db, {
+  const account = await createAccount(setup.store, {
     name: 'Bench Flood Works (invented)',
     monthlyUnitQuota: 1e8,
     now,
   });
-  const key = createKey(setup.db, Buffer.from(secretText, 'utf8'), {
+  const key = await createKey(setup.store, Buffer.from(secretText, 'utf8'), {
     accountId: account.id,
     name: 'hash-flood bench',
     scopes,

@@ -15,6 +15,7 @@ import { runBundleBench } from './bundle.js';
 import { runDrainBench } from './drain.js';
 import { runHashFloodBench } from './hash-flood.js';
 import { runPoolBench } from './pool.js';
+import { runKeyLookupBench } from './key-lookup.js';
 
 const sections: { title: string; run: () => Promise<void> }[] = [
   { title: 'IAPWS-IF97 steam properties', run: runSteamBench },
@@ -27,6 +28,12 @@ const sections: { title: string; run: () => Promise<void> }[] = [
     title: 'Metered API vs a bare Express route (autocannon, loopback)',
     run: async () => {
       await runApiBench();
+    },
+  },
+  {
+    title: 'API-key lookup: the synchronous SQLite path against the portable one',
+    run: async () => {
+      await runKeyLookupBench();
     },
   },
   {

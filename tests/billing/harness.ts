@@ -63,14 +63,14 @@ export async function makeBillingHarness(
     clock: () => clock.now,
     engineVersion: 'test-engine',
   };
-  const alpha = createAccount(db, {
+  const alpha = await createAccount(store, {
     name: 'Invented Alpha Evaporation Works',
     plan: 'professional',
     monthlyUnitQuota: 200_000,
     billingEmail: 'accounts@alpha.invalid',
     now: new Date('2031-01-01T00:00:00Z'),
   });
-  const beta = createAccount(db, {
+  const beta = await createAccount(store, {
     name: 'Invented Beta Brine Co',
     plan: 'starter',
     monthlyUnitQuota: 20_000,
@@ -94,7 +94,7 @@ export async function makeBillingHarness(
     apiBase: new URL(fake.url),
     webhookSecret: WEBHOOK_SECRET,
   });
-  const signedIn = await signInOnePerRole(db, app, {
+  const signedIn = await signInOnePerRole(store, app, {
     password: PASSWORD,
     developerAccountId: alpha.id,
     now: clock.now,

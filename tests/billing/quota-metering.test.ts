@@ -22,7 +22,7 @@ async function settle(h: Harness, kinds: number): Promise<void> {
 describe('quota e-mails from metered requests', () => {
   it('mails quota-80 when a request crosses 80 %, quota-100 at 100 %, and nothing more', async () => {
     const h = await makeHarness({ quota: 25 });
-    updateAccount(h.db, h.accountId, { billingEmail: 'plant-billing@works.invalid' });
+    await updateAccount(h.store, h.accountId, { billingEmail: 'plant-billing@works.invalid' });
     const charge = (extra: number) =>
       request(h.app)
         .post(`/v1/__test/charge?extra=${extra}`)

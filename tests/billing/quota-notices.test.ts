@@ -31,7 +31,7 @@ describe('quota thresholds', () => {
 
 describe('checkQuotaNotices', () => {
   it('mails quota-80 once, then quota-100 once, then nothing more that month', async () => {
-    const a = createAccount(h.deps.db, {
+    const a = await createAccount(h.deps.store, {
       name: 'Invented Quota Works',
       monthlyUnitQuota: 1000,
       billingEmail: 'quota@works.invalid',
@@ -71,7 +71,7 @@ describe('checkQuotaNotices', () => {
   });
 
   it('sends and records nothing for an account without a billing e-mail', async () => {
-    const b = createAccount(h.deps.db, {
+    const b = await createAccount(h.deps.store, {
       name: 'Invented Silent Mill',
       monthlyUnitQuota: 10,
       now: h.clock.now,
@@ -85,7 +85,7 @@ describe('checkQuotaNotices', () => {
   });
 
   it('runs after the current turn when scheduled, coalescing repeated calls', async () => {
-    const c = createAccount(h.deps.db, {
+    const c = await createAccount(h.deps.store, {
       name: 'Invented Deferred Co',
       monthlyUnitQuota: 100,
       billingEmail: 'later@deferred.invalid',

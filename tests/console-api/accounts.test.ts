@@ -1,7 +1,6 @@
 // Console accounts routes: admin writes, billing reads, developer refused; plan validated against
 // the plans table; every mutation audited.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { auditLog } from '../../server/db/schema.js';
 import { makeConsoleHarness, meter, type ConsoleHarness } from './data-harness.js';
 import { createKey } from '../../server/accounts/keys.js';
 
@@ -15,7 +14,7 @@ afterAll(async () => {
 
 describe('GET /console-api/accounts', () => {
   it('lists every account with this month’s units, quota share and active keys for admin and billing', async () => {
-    const { key } = createKey(h.deps.db, h.deps.config.secret, {
+    const { key } = await createKey(h.deps.store, h.deps.config.secret, {
       accountId: h.alphaId,
       name: 'k',
       scopes: ['steam'],
@@ -67,11 +66,9 @@ describe('POST /console-api/accounts', () => {
       unitsThisMonth: 0,
     });
     expect(res.headers.location).toBe(`/console-api/accounts/${res.body.id}`);
-    const audit = h.deps.db
-      .select()
-      .from(auditLog)
-      .all()
-      .filter((a) => a.action === 'account.create');
+    const audit = (await h.deps.store.db.select().from(h.deps.store.t.auditLog)).filter(
+      (a) => a.action === 'account.create',
+    );
     expect(audit).toHaveLength(1);
     expect(audit[0]).toMatchObject({
       actorEmail: 'admin@ebullio.invalid',
@@ -126,11 +123,9 @@ describe('PATCH /console-api/accounts/:id', () => {
       monthlyUnitQuota: 800,
       retainRequestBodies: true,
     });
-    const audit = h.deps.db
-      .select()
-      .from(auditLog)
-      .all()
-      .find((a) => a.action === 'account.update');
+    const audit = (await h.deps.store.db.select().from(h.deps.store.t.auditLog)).find(
+      (a) => a.action === 'account.update',
+    );
     expect(audit?.detail).toEqual({
       changes: { monthlyUnitQuota: { from: 500, to: 800 }, retainRequestBodies: { from: false, to: true } },
     });

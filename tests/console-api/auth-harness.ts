@@ -20,10 +20,11 @@ export interface ConsoleHarness extends Harness {
 
 export async function makeConsoleHarness(config: Partial<Config> = {}): Promise<ConsoleHarness> {
   const h = await makeHarness({ config: { consoleSignInLimit: 1000, ...config } });
-  const otherAccountId = createAccount(h.db, { name: 'Invented Other Works', now: h.clock.now }).id;
+  const otherAccountId = (await createAccount(h.store, { name: 'Invented Other Works', now: h.clock.now }))
+    .id;
   const users = {} as ConsoleHarness['users'];
   for (const role of ['admin', 'billing', 'developer'] as const) {
-    const u = await createUser(h.db, {
+    const u = await createUser(h.store, {
       email: `${role}@ebullio.invalid`,
       password: PASSWORD,
       role,
@@ -31,7 +32,7 @@ export async function makeConsoleHarness(config: Partial<Config> = {}): Promise<
     });
     users[role] = { id: u.id, email: u.email };
   }
-  addMember(h.db, users.developer.id, h.accountId);
+  await addMember(h.store, users.developer.id, h.accountId);
   return { ...h, users, otherAccountId };
 }
 

@@ -2,6 +2,7 @@
 // Sources named beside each check: RFC 6265 (cookies: HttpOnly, Secure, Path), RFC 6265bis draft
 // (SameSite), RFC 7519 §4.1.4 (exp), RFC 9700 §4.14.2 (refresh-token rotation, reuse revokes),
 // OWASP Session Management, Authentication and CSRF Prevention cheat sheets.
+import { sql } from 'drizzle-orm';
 import request from 'supertest';
 import { describe, expect, it } from 'vitest';
 import { decodeJwt, decodeProtectedHeader } from 'jose';
@@ -76,7 +77,9 @@ describe('console sign-in', () => {
     expect(unknown.res.body.type).toBe(wrong.res.body.type);
     expect(setCookies(wrong.res).has('ebullio_access')).toBe(false);
     // Security events are audited (brief).
-    const actions = h.sqlite.prepare("SELECT action FROM audit_log WHERE action LIKE 'auth.%'").all();
+    const actions = await h.store.rows(
+      sql`SELECT action FROM audit_log WHERE action LIKE 'auth.%' ORDER BY id`,
+    );
     expect(actions).toEqual([{ action: 'auth.sign-in-failed' }, { action: 'auth.sign-in-failed' }]);
   });
 
@@ -141,9 +144,9 @@ describe('console sign-in', () => {
     expect(legit.status).toBe(401);
     // And the access JWT of that session stops working at once (sid checked on every request).
     expect((await request(h.app).get('/console-api/auth/me').set('Cookie', jar.header())).status).toBe(401);
-    const audit = h.sqlite
-      .prepare("SELECT actor_email FROM audit_log WHERE action = 'auth.refresh-replay'")
-      .all();
+    const audit = await h.store.rows(
+      sql`SELECT actor_email FROM audit_log WHERE action = 'auth.refresh-replay'`,
+    );
     expect(audit).toEqual([{ actor_email: 'admin@ebullio.invalid' }]);
   });
 
@@ -282,14 +285,14 @@ describe('sign-in lock-out and rate limit', () => {
     h.clock.now = new Date(h.clock.now.getTime() + 61_000);
     const released = await signIn(h, 'admin@ebullio.invalid');
     expect(released.res.status).toBe(200);
-    const row = h.sqlite
-      .prepare('SELECT failed_sign_ins, locked_until FROM users WHERE id = ?')
-      .get(h.users.admin.id);
+    const [row] = await h.store.rows(
+      sql`SELECT failed_sign_ins, locked_until FROM users WHERE id = ${h.users.admin.id}`,
+    );
     expect(row).toEqual({ failed_sign_ins: 0, locked_until: null });
-    const lockouts = h.sqlite
-      .prepare("SELECT COUNT(*) AS n FROM audit_log WHERE action = 'auth.lock-out'")
-      .get();
-    expect(lockouts).toEqual({ n: 1 });
+    const [lockouts] = await h.store.rows<{ n: number | string }>(
+      sql`SELECT COUNT(*) AS n FROM audit_log WHERE action = 'auth.lock-out'`,
+    );
+    expect(Number(lockouts!.n)).toBe(1);
   });
 
   it('counts failures afresh after a lock has run out', async () => {

@@ -143,7 +143,7 @@ describe('statements', () => {
 
   it('refreshes a draft when late usage arrives, and skips an account whose plan does not exist', async () => {
     await meter(h, h.betaId, 1, '2031-03-20T00:00:00Z');
-    const ghost = createAccount(h.deps.db, {
+    const ghost = await createAccount(h.deps.store, {
       name: 'Invented Ghost Plan Ltd',
       plan: 'no-such-plan',
       now: new Date('2031-02-01T00:00:00Z'),
@@ -160,7 +160,7 @@ describe('statements', () => {
   });
 
   it('gives no draft for a month that ended before the account was created', async () => {
-    const late = createAccount(h.deps.db, {
+    const late = await createAccount(h.deps.store, {
       name: 'Invented Newcomer Evaporation',
       plan: 'starter',
       // One second after March 2031 ended (UTC).
@@ -228,7 +228,7 @@ describe('statements', () => {
     expect(lines[1]).toMatch(/,monthly-fee,.*,1,4900,4900,eur$/);
     expect(lines[2]).toMatch(/,overage,.*,12,100,1200,eur$/);
 
-    const evil = createAccount(h.deps.db, {
+    const evil = await createAccount(h.deps.store, {
       name: '=HYPERLINK("x")',
       plan: 'professional',
       // An account of March 2031 (a later one gets no March statement).
@@ -376,7 +376,7 @@ describe('finalize through the payment provider', () => {
   });
 
   it('lets an admin finalize; a statement with nothing due comes back paid from the provider', async () => {
-    const zero = createAccount(h.deps.db, {
+    const zero = await createAccount(h.deps.store, {
       name: 'Invented Quiet Works',
       plan: 'starter',
       // An account of March 2031 (a later one gets no March statement).

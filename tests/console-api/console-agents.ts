@@ -36,15 +36,15 @@ export async function signedInAgent(app: App, email: string, password: string): 
  * `developerAccountId`) and signs each in, in the order admin, billing, developer.
  */
 export async function signInOnePerRole(
-  db: AppDeps['db'],
+  store: AppDeps['store'],
   app: App,
   opts: { password: string; developerAccountId: number; now: Date },
 ): Promise<Record<Role, ConsoleAgent & { userId: number }>> {
   const signedIn = {} as Record<Role, ConsoleAgent & { userId: number }>;
   for (const role of ['admin', 'billing', 'developer'] as const) {
     const email = `${role}@ebullio.invalid`;
-    const user = await createUser(db, { email, password: opts.password, role, now: opts.now });
-    if (role === 'developer') addMember(db, user.id, opts.developerAccountId);
+    const user = await createUser(store, { email, password: opts.password, role, now: opts.now });
+    if (role === 'developer') await addMember(store, user.id, opts.developerAccountId);
     signedIn[role] = { ...(await signedInAgent(app, email, opts.password)), userId: user.id };
   }
   return signedIn;

@@ -60,15 +60,19 @@ export async function makeConsoleHarness(): Promise<ConsoleHarness> {
       { name: 'works', displayName: 'Works', includedUnits: 200_000, pricePer1000UnitsMinor: 120 },
     ])
     .run();
-  const alpha = createAccount(db, {
+  const alpha = await createAccount(store, {
     name: 'Invented Alpha Works',
     monthlyUnitQuota: 1000,
     billingEmail: 'ops@alpha.invalid',
     now: clock.now,
   });
-  const beta = createAccount(db, { name: 'Invented Beta Mills', monthlyUnitQuota: 500, now: clock.now });
+  const beta = await createAccount(store, {
+    name: 'Invented Beta Mills',
+    monthlyUnitQuota: 500,
+    now: clock.now,
+  });
   const app = createApp(deps);
-  const signedIn = await signInOnePerRole(db, app, {
+  const signedIn = await signInOnePerRole(store, app, {
     password: PASSWORD,
     developerAccountId: alpha.id,
     now: clock.now,

@@ -9,6 +9,7 @@ import { createAccount } from '../../server/accounts/accounts.js';
 import { createKey, secretPartOf } from '../../server/accounts/keys.js';
 import { bootstrap } from '../../server/seed/bootstrap.js';
 import { openDatabase, runMigrations } from '../../server/db/client.js';
+import { sqliteStore } from '../../server/db/store.js';
 import { makeConsoleHarness, type ConsoleHarness } from './data-harness.js';
 
 /** Invented keys of the bootstrap form (not real). */
@@ -35,8 +36,7 @@ function sharedRuns(shown: string, secret: string, run = 4): string[] {
 describe('key prefix shown by the console', () => {
   it('shows a registered bootstrap key by an identifier that holds no piece of the key', async () => {
     const report = await bootstrap(
-      h.deps.db,
-      h.deps.sqlite,
+      h.deps.store,
       { ...h.deps.config, bootstrapApiKey: BOOT_KEY },
       h.clock.now,
       'test-engine',
@@ -56,8 +56,8 @@ describe('key prefix shown by the console', () => {
     expect(JSON.stringify(list.body)).not.toContain(BOOT_KEY.slice(0, 8));
   });
 
-  it('shows an issued key by ebk1. and its public id, never its secret', () => {
-    const { key, token } = createKey(h.deps.db, h.deps.config.secret, {
+  it('shows an issued key by ebk1. and its public id, never its secret', async () => {
+    const { key, token } = await createKey(h.deps.store, h.deps.config.secret, {
       accountId: h.alphaId,
       name: 'issued',
       scopes: ['steam'],
@@ -68,10 +68,10 @@ describe('key prefix shown by the console', () => {
     expect(sharedRuns(key.prefix, secretPartOf(token)!)).toEqual([]);
   });
 
-  it('shows a registered key of the first issued format by ebl_<kind>_ and the start of its public id', () => {
+  it('shows a registered key of the first issued format by ebl_<kind>_ and the start of its public id', async () => {
     // Invented key of the format issued before ebk1 (not real); such keys keep working.
     const legacy = `ebl_live_LegacyPub001_${'k7'.repeat(16)}`;
-    const { key } = createKey(h.deps.db, h.deps.config.secret, {
+    const { key } = await createKey(h.deps.store, h.deps.config.secret, {
       accountId: h.alphaId,
       name: 'first format',
       scopes: ['steam'],
@@ -86,20 +86,21 @@ describe('key prefix shown by the console', () => {
 });
 
 describe('migration 0005_key_display_prefix', () => {
-  it('replaces a stored prefix made of a bootstrap key’s characters by its public id, and keeps issued ones', () => {
+  it('replaces a stored prefix made of a bootstrap key’s characters by its public id, and keeps issued ones', async () => {
     const { sqlite, db } = openDatabase(':memory:');
+    const store = sqliteStore(sqlite, db);
     runMigrations(db);
     const now = new Date('2031-03-14T10:00:00Z');
-    const accountId = createAccount(db, { name: 'Invented Works', monthlyUnitQuota: 10, now }).id;
+    const accountId = (await createAccount(store, { name: 'Invented Works', monthlyUnitQuota: 10, now })).id;
     // Keys issued when this migration landed had the first format (invented key, not real).
-    const issued = createKey(db, Buffer.from('x'.repeat(32)), {
+    const issued = await createKey(store, Buffer.from('x'.repeat(32)), {
       accountId,
       name: 'issued',
       scopes: ['steam'],
       now,
       token: `ebl_live_${'M'.repeat(12)}_${'n'.repeat(32)}`,
     });
-    const boot = createKey(db, Buffer.from('x'.repeat(32)), {
+    const boot = await createKey(store, Buffer.from('x'.repeat(32)), {
       accountId,
       name: 'boot',
       scopes: ['steam'],

@@ -4,7 +4,6 @@ import { eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { authenticateToken, createKey } from '../../server/accounts/keys.js';
 import { scopes as serverScopes } from '../../server/accounts/operations.js';
-import { apiKeys, auditLog, capturedMail, mailLog } from '../../server/db/schema.js';
 import { KEY_SCOPES } from '../../shared/console/keys.js';
 import { makeConsoleHarness, type ConsoleHarness } from './data-harness.js';
 
@@ -40,10 +39,11 @@ describe('POST /console-api/keys', () => {
       rateLimitPerMinute: 120,
     });
     expect(secret.startsWith(res.body.key.prefix)).toBe(true);
-    const auth = authenticateToken(h.deps.sqlite, h.deps.config.secret, secret, h.clock.now);
+    const auth = await authenticateToken(h.deps.store, h.deps.config.secret, secret, h.clock.now);
     expect(auth.ok).toBe(true);
     // The secret itself is not stored anywhere in the row (only its HMAC).
-    const row = h.deps.db.select().from(apiKeys).where(eq(apiKeys.id, res.body.key.id)).get()!;
+    const { apiKeys } = h.deps.store.t;
+    const [row] = await h.deps.store.db.select().from(apiKeys).where(eq(apiKeys.id, res.body.key.id));
     expect(JSON.stringify(row)).not.toContain(secret.slice(-32));
     // Listing never shows it again.
     const list = await h.developer.agent.get(`/console-api/keys?accountId=${h.alphaId}`).expect(200);
@@ -56,26 +56,24 @@ describe('POST /console-api/keys', () => {
       .set('X-CSRF-Token', h.admin.csrf)
       .send(body(h.alphaId))
       .expect(201);
-    const logged = h.deps.db
-      .select()
-      .from(mailLog)
-      .all()
-      .filter((m) => m.kind === 'key-created');
+    const logged = (await h.deps.store.db.select().from(h.deps.store.t.mailLog)).filter(
+      (m) => m.kind === 'key-created',
+    );
     expect(logged.length).toBeGreaterThanOrEqual(1);
     expect(logged.at(-1)).toMatchObject({ to: 'ops@alpha.invalid', status: 'sent' });
-    const captured = h.deps.db.select().from(capturedMail).all().at(-1)!;
+    const captured = (await h.deps.store.db.select().from(h.deps.store.t.capturedMail)).at(-1)!;
     expect(captured.to).toContain('ops@alpha.invalid');
     expect(captured.raw).not.toContain((res.body.secret as string).slice(-32));
   });
 
   it('sends no mail when the account has no billing e-mail', async () => {
-    const before = h.deps.db.select().from(mailLog).all().length;
+    const before = (await h.deps.store.db.select().from(h.deps.store.t.mailLog)).length;
     await h.admin.agent
       .post('/console-api/keys')
       .set('X-CSRF-Token', h.admin.csrf)
       .send(body(h.betaId))
       .expect(201);
-    expect(h.deps.db.select().from(mailLog).all().length).toBe(before);
+    expect((await h.deps.store.db.select().from(h.deps.store.t.mailLog)).length).toBe(before);
   });
 
   it('refuses a developer for an account they are not a member of, and billing users', async () => {
@@ -125,45 +123,39 @@ describe('GET /console-api/keys', () => {
 
 describe('POST /console-api/keys/:id/revoke', () => {
   it('revokes at once (the next authentication says revoked), audits and mails, and is idempotent', async () => {
-    const { key, token } = createKey(h.deps.db, h.deps.config.secret, {
+    const { key, token } = await createKey(h.deps.store, h.deps.config.secret, {
       accountId: h.alphaId,
       name: 'to revoke',
       scopes: ['steam'],
       now: h.clock.now,
     });
-    const mails = h.deps.db.select().from(mailLog).all().length;
+    const mails = (await h.deps.store.db.select().from(h.deps.store.t.mailLog)).length;
     const res = await h.developer.agent
       .post(`/console-api/keys/${key.id}/revoke`)
       .set('X-CSRF-Token', h.developer.csrf)
       .expect(200);
     expect(res.body.key.state).toBe('revoked');
-    expect(authenticateToken(h.deps.sqlite, h.deps.config.secret, token, h.clock.now)).toMatchObject({
+    expect(await authenticateToken(h.deps.store, h.deps.config.secret, token, h.clock.now)).toMatchObject({
       ok: false,
       reason: 'revoked',
     });
     expect(
-      h.deps.db
-        .select()
-        .from(auditLog)
-        .all()
-        .filter((a) => a.action === 'key.revoke' && a.targetId === String(key.id)),
+      (await h.deps.store.db.select().from(h.deps.store.t.auditLog)).filter(
+        (a) => a.action === 'key.revoke' && a.targetId === String(key.id),
+      ),
     ).toHaveLength(1);
     expect(
-      h.deps.db
-        .select()
-        .from(mailLog)
-        .all()
-        .filter((m) => m.kind === 'key-revoked'),
+      (await h.deps.store.db.select().from(h.deps.store.t.mailLog)).filter((m) => m.kind === 'key-revoked'),
     ).toHaveLength(1);
     await h.developer.agent
       .post(`/console-api/keys/${key.id}/revoke`)
       .set('X-CSRF-Token', h.developer.csrf)
       .expect(200);
-    expect(h.deps.db.select().from(mailLog).all().length).toBe(mails + 1);
+    expect((await h.deps.store.db.select().from(h.deps.store.t.mailLog)).length).toBe(mails + 1);
   });
 
   it('answers 403 for another account’s key and 404 for an unknown key', async () => {
-    const { key } = createKey(h.deps.db, h.deps.config.secret, {
+    const { key } = await createKey(h.deps.store, h.deps.config.secret, {
       accountId: h.betaId,
       name: 'beta',
       scopes: ['steam'],
@@ -179,7 +171,7 @@ describe('POST /console-api/keys/:id/revoke', () => {
 
 describe('POST /console-api/keys/:id/rotate', () => {
   it('issues a successor now and keeps the old key valid until the overlap ends', async () => {
-    const { key, token } = createKey(h.deps.db, h.deps.config.secret, {
+    const { key, token } = await createKey(h.deps.store, h.deps.config.secret, {
       accountId: h.alphaId,
       name: 'rotating',
       scopes: ['steam'],
@@ -198,17 +190,18 @@ describe('POST /console-api/keys/:id/rotate', () => {
       expiresAt: '2031-03-14T11:00:00.000Z',
     });
     const secret = res.body.secret as string;
-    expect(authenticateToken(h.deps.sqlite, h.deps.config.secret, secret, h.clock.now).ok).toBe(true);
+    expect((await authenticateToken(h.deps.store, h.deps.config.secret, secret, h.clock.now)).ok).toBe(true);
     expect(
-      authenticateToken(h.deps.sqlite, h.deps.config.secret, token, new Date('2031-03-14T10:59:59Z')).ok,
+      (await authenticateToken(h.deps.store, h.deps.config.secret, token, new Date('2031-03-14T10:59:59Z')))
+        .ok,
     ).toBe(true);
     expect(
-      authenticateToken(h.deps.sqlite, h.deps.config.secret, token, new Date('2031-03-14T11:00:00Z')),
+      await authenticateToken(h.deps.store, h.deps.config.secret, token, new Date('2031-03-14T11:00:00Z')),
     ).toMatchObject({ ok: false, reason: 'rotated' });
   });
 
   it('refuses to rotate a revoked key (409) and an overlap beyond 30 days (422)', async () => {
-    const { key } = createKey(h.deps.db, h.deps.config.secret, {
+    const { key } = await createKey(h.deps.store, h.deps.config.secret, {
       accountId: h.alphaId,
       name: 'r',
       scopes: ['steam'],

@@ -9,18 +9,22 @@ let h: ConsoleHarness;
 
 beforeAll(async () => {
   h = await makeConsoleHarness();
-  const a = createKey(h.deps.db, h.deps.config.secret, {
-    accountId: h.alphaId,
-    name: 'a',
-    scopes: ['steam'],
-    now: h.clock.now,
-  }).key.id;
-  const b = createKey(h.deps.db, h.deps.config.secret, {
-    accountId: h.betaId,
-    name: 'b',
-    scopes: ['steam'],
-    now: h.clock.now,
-  }).key.id;
+  const a = (
+    await createKey(h.deps.store, h.deps.config.secret, {
+      accountId: h.alphaId,
+      name: 'a',
+      scopes: ['steam'],
+      now: h.clock.now,
+    })
+  ).key.id;
+  const b = (
+    await createKey(h.deps.store, h.deps.config.secret, {
+      accountId: h.betaId,
+      name: 'b',
+      scopes: ['steam'],
+      now: h.clock.now,
+    })
+  ).key.id;
   // Alpha today: latencies 15, 20, 35, 40, 50 ms (the list of the nearest-rank example below),
   // 850 units in all (85 % of its 1000 quota), one 500.
   const alpha = [15, 20, 35, 40, 50];

@@ -29,18 +29,22 @@ const at = (minute: number) => new Date(Date.UTC(2031, 2, 14, 9, minute));
 
 beforeAll(async () => {
   h = await makeConsoleHarness();
-  alphaKey = createKey(h.deps.db, h.deps.config.secret, {
-    accountId: h.alphaId,
-    name: 'a',
-    scopes: ['steam'],
-    now: h.clock.now,
-  }).key.id;
-  betaKey = createKey(h.deps.db, h.deps.config.secret, {
-    accountId: h.betaId,
-    name: 'b',
-    scopes: ['steam'],
-    now: h.clock.now,
-  }).key.id;
+  alphaKey = (
+    await createKey(h.deps.store, h.deps.config.secret, {
+      accountId: h.alphaId,
+      name: 'a',
+      scopes: ['steam'],
+      now: h.clock.now,
+    })
+  ).key.id;
+  betaKey = (
+    await createKey(h.deps.store, h.deps.config.secret, {
+      accountId: h.betaId,
+      name: 'b',
+      scopes: ['steam'],
+      now: h.clock.now,
+    })
+  ).key.id;
   for (const [acct, minute, status, latencyMs, operation] of SEED) {
     await meter(h, {
       accountId: acct === 'alpha' ? h.alphaId : h.betaId,

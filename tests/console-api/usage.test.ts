@@ -11,18 +11,22 @@ const day = (d: number, hour = 12) => new Date(Date.UTC(2031, 2, d, hour));
 
 beforeAll(async () => {
   h = await makeConsoleHarness();
-  const a = createKey(h.deps.db, h.deps.config.secret, {
-    accountId: h.alphaId,
-    name: 'a',
-    scopes: ['steam'],
-    now: h.clock.now,
-  }).key.id;
-  const b = createKey(h.deps.db, h.deps.config.secret, {
-    accountId: h.betaId,
-    name: 'b',
-    scopes: ['steam'],
-    now: h.clock.now,
-  }).key.id;
+  const a = (
+    await createKey(h.deps.store, h.deps.config.secret, {
+      accountId: h.alphaId,
+      name: 'a',
+      scopes: ['steam'],
+      now: h.clock.now,
+    })
+  ).key.id;
+  const b = (
+    await createKey(h.deps.store, h.deps.config.secret, {
+      accountId: h.betaId,
+      name: 'b',
+      scopes: ['steam'],
+      now: h.clock.now,
+    })
+  ).key.id;
   // Alpha: 3 requests on 1 March (one error), 2 on 13 March; Beta: 4 on 13 March; one in February.
   await meter(h, { accountId: h.alphaId, keyId: a, at: day(1), units: 5 });
   await meter(h, { accountId: h.alphaId, keyId: a, at: day(1, 23), units: 5, operation: 'liquors.enthalpy' });

@@ -3,6 +3,7 @@
 // Sources: OWASP Forgot Password cheat sheet (single-use, time-limited tokens, same answer for
 // known and unknown addresses, sessions ended after a reset); OWASP Session Management cheat
 // sheet (server-side invalidation); the brief's lifetimes (invitation 72 h, reset 1 h).
+import { sql } from 'drizzle-orm';
 import request from 'supertest';
 import { describe, expect, it } from 'vitest';
 import type { ConsoleHarness } from './auth-harness.js';
@@ -10,9 +11,9 @@ import { Jar, PASSWORD, csrf, makeConsoleHarness, signIn } from './auth-harness.
 
 async function waitForMail(h: ConsoleHarness, to: string): Promise<{ id: number; text: string }> {
   for (let i = 0; i < 100; i++) {
-    const row = h.sqlite
-      .prepare('SELECT id, text_body AS text FROM captured_mail WHERE to_addresses LIKE ? ORDER BY id DESC')
-      .get(`%${to}%`) as { id: number; text: string } | undefined;
+    const [row] = await h.store.rows<{ id: number; text: string }>(
+      sql`SELECT id, text_body AS text FROM captured_mail WHERE to_addresses LIKE ${`%${to}%`} ORDER BY id DESC`,
+    );
     if (row) return row;
     await new Promise((r) => setTimeout(r, 50));
   }
@@ -54,8 +55,8 @@ describe('invitations', () => {
     const detail = await a.get(`/outbox/${outbox.body.items[0].id}`);
     const token = tokenFrom(detail.body.text, 'accept-invitation');
     // Only a hash is stored (brief: user_tokens row, hash only).
-    const stored = h.sqlite.prepare('SELECT token_hash FROM user_tokens').get() as { token_hash: string };
-    expect(stored.token_hash).not.toContain(token);
+    const [stored] = await h.store.rows<{ token_hash: string }>(sql`SELECT token_hash FROM user_tokens`);
+    expect(stored!.token_hash).not.toContain(token);
 
     const info = await request(h.app).get(`/console-api/auth/invitations/${token}`);
     expect(info.body).toMatchObject({ email: 'new.engineer@ebullio.invalid', role: 'developer' });
@@ -132,9 +133,9 @@ describe('invitations', () => {
       .send({ token, name: 'Too Late', password: 'a long new password' });
     expect(accept.status).toBe(422);
     expect((await a.get('/users')).body.invitations).toEqual([]);
-    const audit = h.sqlite
-      .prepare("SELECT target_id AS targetId FROM audit_log WHERE action = 'user.invitation.withdraw'")
-      .all() as { targetId: string }[];
+    const audit = await h.store.rows<{ targetId: string }>(
+      sql`SELECT target_id AS "targetId" FROM audit_log WHERE action = 'user.invitation.withdraw'`,
+    );
     expect(audit).toEqual([{ targetId: String(inv.body.invitation.id) }]);
     // Withdrawing twice, or something that is not a pending invitation, is a 404.
     expect((await a.send('post', `/users/invitations/${inv.body.invitation.id}/withdraw`, {})).status).toBe(
@@ -179,10 +180,10 @@ describe('password reset', () => {
     expect(known.status).toBe(202);
     expect(unknown.body).toEqual(known.body);
     await waitForMail(h, 'billing@ebullio.invalid');
-    const toUnknown = h.sqlite
-      .prepare("SELECT COUNT(*) AS n FROM captured_mail WHERE to_addresses LIKE '%nobody%'")
-      .get();
-    expect(toUnknown).toEqual({ n: 0 });
+    const [toUnknown] = await h.store.rows<{ n: number | string }>(
+      sql`SELECT COUNT(*) AS n FROM captured_mail WHERE to_addresses LIKE '%nobody%'`,
+    );
+    expect(Number(toUnknown!.n)).toBe(0);
   });
 
   it('sets the new password once, ends every session, and refuses the token a second time', async () => {

@@ -23,7 +23,7 @@ afterEach(() => {
 });
 
 /** The app on a file database, and a second connection to the same file. */
-function fileHarness(quota = 1000) {
+async function fileHarness(quota = 1000) {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'ebullio-auth-rev-'));
   dirs.push(dir);
   const file = path.join(dir, 'auth.db');
@@ -32,8 +32,12 @@ function fileHarness(quota = 1000) {
   runMigrations(db);
   const config = testConfig();
   const now = new Date('2031-03-14T10:00:00Z');
-  const account = createAccount(db, { name: 'Invented Revision Works', monthlyUnitQuota: quota, now });
-  const { key, token } = createKey(db, config.secret, {
+  const account = await createAccount(store, {
+    name: 'Invented Revision Works',
+    monthlyUnitQuota: quota,
+    now,
+  });
+  const { key, token } = await createKey(store, config.secret, {
     accountId: account.id,
     name: 'revision key',
     scopes: ALL_SCOPES,
@@ -41,7 +45,7 @@ function fileHarness(quota = 1000) {
     now,
   });
   const app = createApp({ store, db, sqlite, config, clock: () => now, engineVersion: 'test-engine' });
-  const authenticate = () => authenticateToken(sqlite, config.secret, token, now);
+  const authenticate = () => authenticateToken(store, config.secret, token, now);
   const other = new Database(file);
   const revision = () =>
     other.prepare('SELECT revision FROM auth_revision WHERE id = 1').pluck().get() as number;
@@ -64,7 +68,7 @@ function fileHarness(quota = 1000) {
 
 describe('remembered keys follow the database at once', () => {
   it('refuses a key revoked by another connection on the next request', async () => {
-    const h = fileHarness();
+    const h = await fileHarness();
     expect((await h.usage()).status).toBe(200); // now remembered
     h.other.prepare('UPDATE api_keys SET revoked_at = ? WHERE id = ?').run(h.now.getTime() - 1, h.keyId);
     const res = await h.usage();
@@ -74,7 +78,7 @@ describe('remembered keys follow the database at once', () => {
   });
 
   it('sees a scope taken away by another connection on the next request', async () => {
-    const h = fileHarness();
+    const h = await fileHarness();
     expect((await h.usage()).status).toBe(200);
     h.other.prepare(`UPDATE api_keys SET scopes = '["steam"]' WHERE id = ?`).run(h.keyId);
     const res = await h.usage();
@@ -84,7 +88,7 @@ describe('remembered keys follow the database at once', () => {
   });
 
   it('sees a lowered quota on the next request', async () => {
-    const h = fileHarness(1000);
+    const h = await fileHarness(1000);
     expect((await h.usage()).body.quota.limit).toBe(1000);
     h.other.prepare('UPDATE accounts SET monthly_unit_quota = 0 WHERE id = ?').run(h.accountId);
     expect((await h.usage()).body.quota.limit).toBe(0);
@@ -98,7 +102,7 @@ describe('remembered keys follow the database at once', () => {
   });
 
   it('forgets a deleted key', async () => {
-    const h = fileHarness();
+    const h = await fileHarness();
     expect((await h.usage()).status).toBe(200);
     h.other.pragma('foreign_keys = ON');
     h.other.prepare('DELETE FROM api_keys WHERE id = ?').run(h.keyId);
@@ -107,7 +111,7 @@ describe('remembered keys follow the database at once', () => {
   });
 
   it('does not bump the revision for metering writes (last_used_at, usage rows)', async () => {
-    const h = fileHarness();
+    const h = await fileHarness();
     const before = h.revision();
     for (let i = 0; i < 3; i++) expect((await h.usage()).status).toBe(200);
     h.other.prepare('UPDATE api_keys SET last_used_at = ? WHERE id = ?').run(h.now.getTime(), h.keyId);
@@ -115,8 +119,8 @@ describe('remembered keys follow the database at once', () => {
     h.other.close();
   });
 
-  it('bumps the revision for a new key and for a renamed plan only when authentication reads it', () => {
-    const h = fileHarness();
+  it('bumps the revision for a new key and for a renamed plan only when authentication reads it', async () => {
+    const h = await fileHarness();
     const before = h.revision();
     h.other.prepare(`UPDATE accounts SET name = 'Renamed Works' WHERE id = ?`).run(h.accountId);
     expect(h.revision()).toBe(before); // the name is not read by authentication
@@ -127,20 +131,20 @@ describe('remembered keys follow the database at once', () => {
     h.other.close();
   });
 
-  it('sees a revocation made through its own connection within the same turn of the event loop', () => {
-    const h = fileHarness();
-    expect(h.authenticate().ok).toBe(true); // remembered, revision checked for this turn
-    revokeKey(h.db, h.keyId, h.now); // the TEMP twin of the trigger clears the memory at once
-    expect(h.authenticate()).toMatchObject({ ok: false, reason: 'revoked' });
+  it('sees a revocation made through its own connection within the same turn of the event loop', async () => {
+    const h = await fileHarness();
+    expect((await h.authenticate()).ok).toBe(true); // remembered, revision checked for this turn
+    await revokeKey(h.store, h.keyId, h.now); // the TEMP twin of the trigger clears the memory at once
+    expect(await h.authenticate()).toMatchObject({ ok: false, reason: 'revoked' });
     h.other.close();
   });
 
   it('sees a revocation by another connection from the next turn of the event loop on', async () => {
-    const h = fileHarness();
-    expect(h.authenticate().ok).toBe(true);
+    const h = await fileHarness();
+    expect((await h.authenticate()).ok).toBe(true);
     h.other.prepare('UPDATE api_keys SET revoked_at = ? WHERE id = ?').run(h.now.getTime() - 1, h.keyId);
     await new Promise((resolve) => setImmediate(resolve));
-    expect(h.authenticate()).toMatchObject({ ok: false, reason: 'revoked' });
+    expect(await h.authenticate()).toMatchObject({ ok: false, reason: 'revoked' });
     h.other.close();
   });
 });

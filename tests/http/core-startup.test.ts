@@ -62,13 +62,13 @@ describe('seed and bootstrap variables', () => {
       bootstrapAdminPassword: 'correct horse battery staple',
     });
     const now = new Date('2031-03-14T10:00:00Z');
-    expect(await bootstrap(db, sqlite, config, now, 'test')).toMatchObject({
+    expect(await bootstrap(store, config, now, 'test')).toMatchObject({
       seeded: true,
       apiKeyRegistered: true,
       adminCreated: true,
       demoCredentials: { operatorEmail: 'operator@ebullio.invalid' },
     });
-    expect(await bootstrap(db, sqlite, config, now, 'test')).toEqual({
+    expect(await bootstrap(store, config, now, 'test')).toEqual({
       seeded: false,
       apiKeyRegistered: false,
       adminCreated: false,
@@ -78,9 +78,9 @@ describe('seed and bootstrap variables', () => {
     const demoUsage = sqlite.prepare('SELECT COUNT(*) AS n FROM usage_daily').get() as { n: number };
     expect(demoUsage.n).toBeGreaterThan(0);
     expect(
-      (await verifyUserPassword(db, 'admin@example.invalid', 'correct horse battery staple'))?.role,
+      (await verifyUserPassword(store, 'admin@example.invalid', 'correct horse battery staple'))?.role,
     ).toBe('admin');
-    expect(await verifyUserPassword(db, 'admin@example.invalid', 'wrong password here')).toBeUndefined();
+    expect(await verifyUserPassword(store, 'admin@example.invalid', 'wrong password here')).toBeUndefined();
 
     const app = createApp({ store, db, sqlite, config, clock: () => now, engineVersion: 'test' });
     const res = await request(app).get('/v1/usage').set('Authorization', `Bearer ${BOOT_KEY}`);
@@ -165,7 +165,8 @@ describe('first start with no bootstrap variables', () => {
 
     // The shown password was stored: it verifies against the operator's stored hash.
     const { db, sqlite } = openDatabase(dbFile);
-    expect(await verifyUserPassword(db, signIn![1]!, signIn![2]!)).toBeDefined();
+    const store = sqliteStore(sqlite, db);
+    expect(await verifyUserPassword(store, signIn![1]!, signIn![2]!)).toBeDefined();
     sqlite.close();
 
     // Nothing secret is shown again on the next start.
@@ -200,7 +201,8 @@ describe('first start with no bootstrap variables', () => {
 
     // The printed password is the one stored for both users.
     const { db, sqlite } = openDatabase(dbFile);
-    for (const email of users) expect(await verifyUserPassword(db, email, password![1]!)).toBeDefined();
+    const store = sqliteStore(sqlite, db);
+    for (const email of users) expect(await verifyUserPassword(store, email, password![1]!)).toBeDefined();
     sqlite.close();
 
     const second = startServerProcess(env);

@@ -86,13 +86,13 @@ export async function makeHarness(
     engineVersion: 'test-engine',
     ...(opts.enginePool ? { enginePool: opts.enginePool } : {}),
   };
-  const account = createAccount(db, {
+  const account = await createAccount(store, {
     name: 'Invented Test Works',
     monthlyUnitQuota: opts.quota ?? 1000,
     retainRequestBodies: opts.retain ?? false,
     now: clock.now,
   });
-  const { key, token } = createKey(db, config.secret, {
+  const { key, token } = await createKey(store, config.secret, {
     accountId: account.id,
     name: 'test key',
     scopes: opts.scopes ?? ALL_SCOPES,

@@ -506,38 +506,42 @@ beforeAll(async () => {
     apiBase: new URL('http://127.0.0.1:9'),
     webhookSecret: WEBHOOK_SECRET,
   });
-  const otherAccount = createAccount(h.db, {
+  const otherAccount = await createAccount(h.store, {
     name: 'Invented Second Works',
     monthlyUnitQuota: 1000,
     now: h.clock.now,
   });
   second = {
     accountId: otherAccount.id,
-    token: createKey(h.db, h.config.secret, {
-      accountId: otherAccount.id,
-      name: 'second key',
-      scopes: ALL_SCOPES,
-      rateLimitPerMinute: 100,
-      now: h.clock.now,
-    }).token,
+    token: (
+      await createKey(h.store, h.config.secret, {
+        accountId: otherAccount.id,
+        name: 'second key',
+        scopes: ALL_SCOPES,
+        rateLimitPerMinute: 100,
+        now: h.clock.now,
+      })
+    ).token,
   };
   // An operator-registered key (BOOTSTRAP_API_KEY format: any 32–256 characters of [A-Za-z0-9_.-]).
-  const bootAccount = createAccount(h.db, {
+  const bootAccount = await createAccount(h.store, {
     name: 'Invented Bootstrap Works',
     retainRequestBodies: true,
     now: h.clock.now,
   });
   boot = {
-    token: createKey(h.db, h.config.secret, {
-      accountId: bootAccount.id,
-      name: 'bootstrap key',
-      scopes: ALL_SCOPES,
-      rateLimitPerMinute: 100_000,
-      token: `Fuzz-bootstrap.${crypto.randomBytes(24).toString('hex')}`,
-      now: h.clock.now,
-    }).token,
+    token: (
+      await createKey(h.store, h.config.secret, {
+        accountId: bootAccount.id,
+        name: 'bootstrap key',
+        scopes: ALL_SCOPES,
+        rateLimitPerMinute: 100_000,
+        token: `Fuzz-bootstrap.${crypto.randomBytes(24).toString('hex')}`,
+        now: h.clock.now,
+      })
+    ).token,
   };
-  const adminUser = await createUser(h.db, {
+  const adminUser = await createUser(h.store, {
     email: 'hostile-admin@ebullio.invalid',
     password: 'correct horse battery staple',
     role: 'admin',

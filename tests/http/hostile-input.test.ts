@@ -13,19 +13,21 @@ import { MAX_JSON_DEPTH } from '../../server/http/middleware/body.js';
 import { ALL_SCOPES, makeHarness, type Harness } from './helpers.js';
 
 /** A second account with its own key on the same app (the same process). */
-function otherAccount(h: Harness): string {
-  const account = createAccount(h.db, {
+async function otherAccount(h: Harness): Promise<string> {
+  const account = await createAccount(h.store, {
     name: 'Invented Other Mills',
     monthlyUnitQuota: 1000,
     now: h.clock.now,
   });
-  return createKey(h.db, h.config.secret, {
-    accountId: account.id,
-    name: 'other key',
-    scopes: ALL_SCOPES,
-    rateLimitPerMinute: 1000,
-    now: h.clock.now,
-  }).token;
+  return (
+    await createKey(h.store, h.config.secret, {
+      accountId: account.id,
+      name: 'other key',
+      scopes: ALL_SCOPES,
+      rateLimitPerMinute: 1000,
+      now: h.clock.now,
+    })
+  ).token;
 }
 
 /** A valid steam-state request (IF97 region 1, compressed water) from the other account: 200. */
@@ -63,7 +65,7 @@ describe('batch CSV columns that name prototypes', () => {
     'refuses a CSV column named %s with a 422 naming the column, and another account is then served',
     async (column) => {
       const h = await makeHarness();
-      const other = otherAccount(h);
+      const other = await otherAccount(h);
       const res = await csvPost(h, `pressure,temperature,${column}\n100 kPa,20,1\n`);
       expect(res.status).toBe(422);
       expect(res.headers['content-type']).toMatch(/^application\/problem\+json/);
@@ -144,7 +146,7 @@ describe('JSON bodies with prototype-named properties', () => {
     'refuses a "__proto__"-style property (%s) with a 422 naming its path, and another account is then served',
     async (_where, body, field) => {
       const h = await makeHarness({ retain: true });
-      const other = otherAccount(h);
+      const other = await otherAccount(h);
       const path = body.includes('"cases"') ? '/v1/batch' : '/v1/steam/state';
       const res = await request(h.app)
         .post(path)

@@ -54,12 +54,11 @@ describe('403 forbidden', () => {
 describe('key lifecycle', () => {
   it('stores only the keyed hash, never the key', async () => {
     const h = await makeHarness();
-    const row = h.sqlite.prepare('SELECT * FROM api_keys WHERE id = ?').get(h.keyId) as Record<
-      string,
-      unknown
-    >;
-    expect(Object.values(row)).not.toContain(h.token);
-    expect(row.key_hash).toBe(hashKey(h.config.secret, h.token));
+    const [row] = await h.store.rows<Record<string, unknown>>(
+      sql`SELECT * FROM api_keys WHERE id = ${h.keyId}`,
+    );
+    expect(Object.values(row!)).not.toContain(h.token);
+    expect(row!.key_hash).toBe(hashKey(h.config.secret, h.token));
     // The generated format carries ≥ 128 random bits: 32 base62 characters ≈ 190 bits (common practice).
     expect(h.token).toMatch(/^ebk1\.[A-Za-z0-9]{12}\.[A-Za-z0-9]{32}$/);
   });
@@ -68,7 +67,7 @@ describe('key lifecycle', () => {
     const h = await makeHarness();
     // Invented key of the earlier format (not real): stored, as every key is, as a hash of the whole.
     const legacy = `ebl_live_FirstFormat1_${'Q'.repeat(32)}`;
-    createKey(h.db, h.config.secret, {
+    await createKey(h.store, h.config.secret, {
       accountId: h.accountId,
       name: 'first format',
       scopes: ['usage'],
@@ -83,7 +82,7 @@ describe('key lifecycle', () => {
     const h = await makeHarness();
     const auth = `Bearer ${h.token}`;
     expect((await request(h.app).get('/v1/usage').set('Authorization', auth)).status).toBe(200);
-    revokeKey(h.db, h.keyId, h.clock.now);
+    await revokeKey(h.store, h.keyId, h.clock.now);
     const res = await request(h.app).get('/v1/usage').set('Authorization', auth);
     expect(res.status).toBe(401);
     expect(res.body.detail).toMatch(/revoked/);
@@ -91,7 +90,7 @@ describe('key lifecycle', () => {
 
   it('refuses a key from its expiry time on', async () => {
     const h = await makeHarness();
-    const { token } = createKey(h.db, h.config.secret, {
+    const { token } = await createKey(h.store, h.config.secret, {
       accountId: h.accountId,
       name: 'short-lived',
       scopes: ['usage'],
@@ -109,7 +108,10 @@ describe('key lifecycle', () => {
 
   it('keeps the old key working during the rotation overlap window, then refuses it', async () => {
     const h = await makeHarness();
-    const rotated = rotateKey(h.db, h.config.secret, h.keyId, { now: h.clock.now, overlapSeconds: 600 });
+    const rotated = await rotateKey(h.store, h.config.secret, h.keyId, {
+      now: h.clock.now,
+      overlapSeconds: 600,
+    });
     expect(rotated.key.rotatedFromId).toBe(h.keyId);
     expect(rotated.key.scopes).toEqual(expect.arrayContaining(['usage', 'steam']));
     const oldAuth = `Bearer ${h.token}`;

@@ -64,8 +64,12 @@ async function twoNodes(opts: { rateLimit?: number; config?: Partial<Config>; re
   };
   const a = node();
   const b = node();
-  const account = createAccount(a.db, { name: 'Invented Shared Works', monthlyUnitQuota: 10_000, now: NOW });
-  const { key, token } = createKey(a.db, config.secret, {
+  const account = await createAccount(a.store, {
+    name: 'Invented Shared Works',
+    monthlyUnitQuota: 10_000,
+    now: NOW,
+  });
+  const { key, token } = await createKey(a.store, config.secret, {
     accountId: account.id,
     name: 'shared key',
     scopes: ALL_SCOPES,
@@ -80,7 +84,7 @@ async function twoNodes(opts: { rateLimit?: number; config?: Partial<Config>; re
   }
   const usage = (app: typeof appA, bearer = token) =>
     request(app).get('/v1/usage').set('Authorization', `Bearer ${bearer}`);
-  const authenticate = (deps: AppDeps) => authenticateToken(deps.sqlite, config.secret, token, NOW);
+  const authenticate = (deps: AppDeps) => authenticateToken(deps.store, config.secret, token, NOW);
   return { a, b, appA, appB, token, keyId: key.id, usage, authenticate };
 }
 
@@ -151,13 +155,13 @@ describe('key-cache invalidation between nodes', () => {
   it("refuses on node B a key revoked through node A, B's remembered copy dropped by the message", async () => {
     const n = await twoNodes();
     expect((await n.usage(n.appB)).status).toBe(200);
-    expect(knownKeyCount(n.b.sqlite)).toBe(1); // B remembers the key
+    expect(knownKeyCount(n.b.store)).toBe(1); // B remembers the key
     const before = n.b.shared!.invalidationsReceived;
     // A revocation written through A's own connection (as A's console would).
     n.a.sqlite.prepare('UPDATE api_keys SET revoked_at = ? WHERE id = ?').run(NOW.getTime() - 1, n.keyId);
     await until('the invalidation to reach B', () => n.b.shared!.invalidationsReceived > before);
     // Dropped by the message alone: B has served no request since the revocation.
-    expect(knownKeyCount(n.b.sqlite)).toBe(0);
+    expect(knownKeyCount(n.b.store)).toBe(0);
     const res = await n.usage(n.appB);
     expect(res.status).toBe(401);
     expect(res.body.detail).toMatch(/revoked/);
@@ -174,11 +178,11 @@ describe('key-cache invalidation between nodes', () => {
     ['a deleted key', 'DELETE FROM api_keys WHERE id = ?'],
   ])('announces %s made through node A to node B', async (_what, sql) => {
     const n = await twoNodes();
-    expect(n.authenticate(n.b).ok).toBe(true);
-    expect(knownKeyCount(n.b.sqlite)).toBe(1);
+    expect((await n.authenticate(n.b)).ok).toBe(true);
+    expect(knownKeyCount(n.b.store)).toBe(1);
     n.a.sqlite.prepare(sql).run(n.keyId);
     await until('B to hear of it', () => n.b.shared!.invalidationsReceived === 1);
-    expect(knownKeyCount(n.b.sqlite)).toBe(0);
+    expect(knownKeyCount(n.b.store)).toBe(0);
   });
 
   it('does not echo a node its own announcement', async () => {
@@ -241,13 +245,13 @@ describe('a Redis outage', () => {
 describe('the key cache while Redis is down', () => {
   it('still drops a revoked key through auth_revision, without the message', async () => {
     const n = await twoNodes();
-    expect(n.authenticate(n.b).ok).toBe(true); // B remembers the key
+    expect((await n.authenticate(n.b)).ok).toBe(true); // B remembers the key
     await redis.stop();
     try {
       n.a.sqlite.prepare('UPDATE api_keys SET revoked_at = ? WHERE id = ?').run(NOW.getTime() - 1, n.keyId);
       await new Promise((r) => setImmediate(r)); // a later turn, as the next request would be
       expect(n.b.shared!.invalidationsReceived).toBe(0);
-      expect(n.authenticate(n.b)).toMatchObject({ ok: false, reason: 'revoked' });
+      expect(await n.authenticate(n.b)).toMatchObject({ ok: false, reason: 'revoked' });
     } finally {
       await redis.start();
     }

@@ -15,8 +15,8 @@ afterAll(async () => {
   await h.close();
 });
 
-function key(accountId: number, expiresAt?: Date) {
-  return createKey(h.deps.db, h.deps.config.secret, {
+async function key(accountId: number, expiresAt?: Date) {
+  return await createKey(h.deps.store, h.deps.config.secret, {
     accountId,
     name: 'k',
     scopes: ['steam'],
@@ -36,8 +36,8 @@ const usageCount = async () =>
 
 describe('401 for a known key', () => {
   it('logs a revoked key’s 401 under its account with no usage event, and the console shows it to the account’s developer', async () => {
-    const { key: k, token } = key(h.alphaId);
-    revokeKey(h.deps.db, k.id, h.clock.now);
+    const { key: k, token } = await key(h.alphaId);
+    await revokeKey(h.deps.store, k.id, h.clock.now);
     const before = (await logRows()).length;
     const res = await request(h.app)
       .post('/v1/steam/saturation')
@@ -58,7 +58,7 @@ describe('401 for a known key', () => {
   });
 
   it('logs an expired key’s 401 too', async () => {
-    const { key: k, token } = key(h.alphaId, new Date(h.clock.now.getTime() + 1000));
+    const { key: k, token } = await key(h.alphaId, new Date(h.clock.now.getTime() + 1000));
     h.clock.now = new Date(h.clock.now.getTime() + 2000);
     const res = await request(h.app).get('/v1/usage').set('Authorization', `Bearer ${token}`);
     expect(res.status).toBe(401);
@@ -67,8 +67,8 @@ describe('401 for a known key', () => {
   });
 
   it('does not show another account’s refused key to a developer of this account', async () => {
-    const { key: k, token } = key(h.betaId);
-    revokeKey(h.deps.db, k.id, h.clock.now);
+    const { key: k, token } = await key(h.betaId);
+    await revokeKey(h.deps.store, k.id, h.clock.now);
     await request(h.app).get('/v1/usage').set('Authorization', `Bearer ${token}`).expect(401);
     expect((await logRows()).at(-1)).toMatchObject({ account_id: h.betaId, status: 401 });
     const page = await h.developer.agent.get('/console-api/request-log?status=401').expect(200);
@@ -76,8 +76,8 @@ describe('401 for a known key', () => {
   });
 
   it('keeps a key-shaped path segment out of the logged 401', async () => {
-    const { key: k, token } = key(h.alphaId);
-    revokeKey(h.deps.db, k.id, h.clock.now);
+    const { key: k, token } = await key(h.alphaId);
+    await revokeKey(h.deps.store, k.id, h.clock.now);
     await request(h.app)
       .post(`/v1/liquors/${token}/boiling-point`)
       .set('Authorization', `Bearer ${token}`)
@@ -93,7 +93,7 @@ describe('401 for a known key', () => {
 describe('401 for an unknown key', () => {
   it('logs nothing: the key names no account to show it to', async () => {
     // A well-formed token no key has: an issued token with its last character changed.
-    const { token } = key(h.alphaId);
+    const { token } = await key(h.alphaId);
     const unknown = token.slice(0, -1) + (token.endsWith('A') ? 'B' : 'A');
     const before = (await logRows()).length;
     const res = await request(h.app).get('/v1/usage').set('Authorization', `Bearer ${unknown}`);

@@ -118,7 +118,7 @@ describe('request log redaction of an issued key', () => {
 describe.each(BOOTSTRAP_KEYS)('request log redaction of the bootstrap-format key %s', (bootKey) => {
   const setup = async () => {
     const h = await makeHarness({ retain: true });
-    createKey(h.db, h.config.secret, {
+    await createKey(h.store, h.config.secret, {
       accountId: h.accountId,
       name: 'Bootstrap key (BOOTSTRAP_API_KEY)',
       scopes: ['steam', 'liquors', 'usage'],
@@ -178,7 +178,7 @@ describe('the key-shape pattern', () => {
   it('keeps no key of the first issued format that its holder sends in the path and body', async () => {
     const h = await makeHarness({ retain: true });
     const legacy = `ebl_live_FirstFormat1_${'Rq7'.repeat(10)}Zx`; // invented, not real
-    createKey(h.db, h.config.secret, {
+    await createKey(h.store, h.config.secret, {
       accountId: h.accountId,
       name: 'first format',
       scopes: ['steam', 'liquors'],

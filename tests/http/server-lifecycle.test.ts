@@ -272,7 +272,7 @@ describe('Expect: 100-continue', () => {
 
 describe('the key is checked again when the body is complete', () => {
   /** The app on a file database, so the key can be revoked from a second connection. */
-  function fileApp() {
+  async function fileApp() {
     const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'ebullio-recheck-'));
     dirs.push(dir);
     const file = path.join(dir, 'recheck.db');
@@ -281,12 +281,12 @@ describe('the key is checked again when the body is complete', () => {
     runMigrations(db);
     const config = testConfig();
     const clock = { now: new Date('2031-03-14T10:00:00Z') };
-    const account = createAccount(db, {
+    const account = await createAccount(store, {
       name: 'Invented Slow Upload Works',
       monthlyUnitQuota: 1000,
       now: clock.now,
     });
-    const { key, token } = createKey(db, config.secret, {
+    const { key, token } = await createKey(store, config.secret, {
       accountId: account.id,
       name: 'slow key',
       scopes: ALL_SCOPES,
@@ -342,14 +342,14 @@ describe('the key is checked again when the body is complete', () => {
     port: number,
     head: string,
     body: string,
-    meanwhile: () => void,
+    meanwhile: () => unknown,
   ): Promise<{ raw: string; body: Record<string, unknown> }> {
     const c = await connect(port);
     c.socket.write(
       `${head}Content-Length: ${Buffer.byteLength(body)}\r\n\r\n${body.slice(0, body.length / 2)}`,
     );
     await sleep(150); // the request is authenticated and its body half read
-    meanwhile();
+    await meanwhile();
     await sleep(50);
     c.socket.write(body.slice(body.length / 2));
     await c.waitFor(/\r\n\r\n\{.*\}$/s);
@@ -358,7 +358,7 @@ describe('the key is checked again when the body is complete', () => {
   }
 
   it('refuses with 401 a JSON body completed after its key was revoked from another database connection', async () => {
-    const f = fileApp();
+    const f = await fileApp();
     const port = await listen(f.app, f.config);
     const head =
       `POST /v1/__test/charge HTTP/1.1\r\nHost: localhost\r\nAuthorization: Bearer ${f.token}\r\n` +
@@ -379,7 +379,7 @@ describe('the key is checked again when the body is complete', () => {
   });
 
   it('refuses with 401 a multipart upload completed after its key was revoked through the console path', async () => {
-    const f = fileApp();
+    const f = await fileApp();
     const port = await listen(f.app, f.config);
     const body =
       '--b\r\nContent-Disposition: form-data; name="id"\r\n\r\ninvented-syrup\r\n' +
@@ -388,7 +388,7 @@ describe('the key is checked again when the body is complete', () => {
     const head =
       `POST /v1/stored-liquors HTTP/1.1\r\nHost: localhost\r\nAuthorization: Bearer ${f.token}\r\n` +
       'X-Request-Id: revoked-mid-upload\r\nContent-Type: multipart/form-data; boundary=b\r\n';
-    const answer = await halfThen(port, head, body, () => revokeKey(f.db, f.keyId, f.clock.now));
+    const answer = await halfThen(port, head, body, () => revokeKey(f.store, f.keyId, f.clock.now));
     expect(answer.raw).toMatch(/^HTTP\/1\.1 401 /);
     expect(answer.body).toMatchObject({ detail: 'The API key has been revoked.' });
     expect(await f.refusal('revoked-mid-upload')).toEqual({
@@ -400,7 +400,7 @@ describe('the key is checked again when the body is complete', () => {
   });
 
   it('refuses with 401 a body completed after its key expired', async () => {
-    const f = fileApp();
+    const f = await fileApp();
     const port = await listen(f.app, f.config);
     const head =
       `POST /v1/__test/charge HTTP/1.1\r\nHost: localhost\r\nAuthorization: Bearer ${f.token}\r\n` +
@@ -416,7 +416,7 @@ describe('the key is checked again when the body is complete', () => {
   });
 
   it('still answers a body completed while the key stayed valid', async () => {
-    const f = fileApp();
+    const f = await fileApp();
     const port = await listen(f.app, f.config);
     const head =
       `POST /v1/__test/charge HTTP/1.1\r\nHost: localhost\r\nAuthorization: Bearer ${f.token}\r\n` +

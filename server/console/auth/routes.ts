@@ -85,8 +85,8 @@ function signInLimiter(deps: AppDeps, name: string, what: string): RequestHandle
   return store ? failClosed(limiter) : limiter;
 }
 
-function sessionBody(deps: AppDeps, userId: number, session: IssuedSession | undefined) {
-  const user = loadUserSummary(deps, userId);
+async function sessionBody(deps: AppDeps, userId: number, session: IssuedSession | undefined) {
+  const user = await loadUserSummary(deps, userId);
   if (!user) throw problem('unauthorized', 'The user no longer exists.');
   return {
     user,
@@ -144,17 +144,17 @@ export const authRouteModule: ConsoleRouteModule = {
           const session = await issueSession(deps, req, res, row);
           // The token minted before sign-in is replaced by one bound to the new session.
           issueCsrfCookie(deps, req, res, session.sessionId);
-          recordAudit(deps, req, res, {
+          await recordAudit(deps, req, res, {
             action: 'auth.sign-in',
             targetType: 'user',
             targetId: row.id,
             actor: { id: row.id, email: row.email },
           });
-          return sessionBody(deps, row.id, session);
+          return await sessionBody(deps, row.id, session);
         }
         const { email, user: row, lockOut } = check;
         if (row && lockOut) {
-          recordAudit(deps, req, res, {
+          await recordAudit(deps, req, res, {
             action: 'auth.lock-out',
             targetType: 'user',
             targetId: row.id,
@@ -162,7 +162,7 @@ export const authRouteModule: ConsoleRouteModule = {
             detail: lockOut,
           });
         }
-        recordAudit(deps, req, res, {
+        await recordAudit(deps, req, res, {
           action: 'auth.sign-in-failed',
           targetType: row ? 'user' : undefined,
           targetId: row?.id,
@@ -186,8 +186,8 @@ export const authRouteModule: ConsoleRouteModule = {
         if (!outcome.ok) {
           clearSessionCookies(req, res);
           if (outcome.reason === 'replayed') {
-            const victim = outcome.userId ? loadUserSummary(deps, outcome.userId) : undefined;
-            recordAudit(deps, req, res, {
+            const victim = outcome.userId ? await loadUserSummary(deps, outcome.userId) : undefined;
+            await recordAudit(deps, req, res, {
               action: 'auth.refresh-replay',
               targetType: 'user',
               targetId: outcome.userId,
@@ -202,7 +202,7 @@ export const authRouteModule: ConsoleRouteModule = {
               : `No usable console session (${outcome.reason}); sign in again.`,
           );
         }
-        return sessionBody(deps, outcome.userId, outcome.session);
+        return await sessionBody(deps, outcome.userId, outcome.session);
       },
     });
 
@@ -212,14 +212,14 @@ export const authRouteModule: ConsoleRouteModule = {
       roles: 'public',
       summary: 'Sign out: revoke this session and clear its cookies',
       response: OkSchema,
-      handler: ({ deps, req, res }) => {
+      handler: async ({ deps, req, res }) => {
         const sid = presentedSessionId(req, res);
         if (sid) {
-          const row = findSession(deps, sid);
-          revokeSession(deps, sid);
+          const row = await findSession(deps, sid);
+          await revokeSession(deps, sid);
           if (row) {
-            const who = loadUserSummary(deps, row.userId);
-            recordAudit(deps, req, res, {
+            const who = await loadUserSummary(deps, row.userId);
+            await recordAudit(deps, req, res, {
               action: 'auth.sign-out',
               targetType: 'user',
               targetId: row.userId,
@@ -239,9 +239,9 @@ export const authRouteModule: ConsoleRouteModule = {
       roles: 'signed-in',
       summary: 'The signed-in user',
       response: SessionResponseSchema,
-      handler: ({ deps, res, user }) => {
-        const row = findSession(deps, res.locals.consoleSessionId ?? '');
-        const body = sessionBody(deps, user.id, undefined);
+      handler: async ({ deps, res, user }) => {
+        const row = await findSession(deps, res.locals.consoleSessionId ?? '');
+        const body = await sessionBody(deps, user.id, undefined);
         return { ...body, sessionExpiresAt: row ? row.expiresAt.toISOString() : null };
       },
     });
@@ -255,9 +255,9 @@ export const authRouteModule: ConsoleRouteModule = {
       response: AcceptedSchema,
       status: 202,
       middleware: [resetLimit],
-      handler: ({ deps, req, res, body }) => {
-        const { email, user: row, mailed } = requestPasswordReset(deps, body.email);
-        recordAudit(deps, req, res, {
+      handler: async ({ deps, req, res, body }) => {
+        const { email, user: row, mailed } = await requestPasswordReset(deps, body.email);
+        await recordAudit(deps, req, res, {
           action: 'auth.password-reset-request',
           targetType: row ? 'user' : undefined,
           targetId: row?.id,
@@ -286,7 +286,7 @@ export const authRouteModule: ConsoleRouteModule = {
           password: body.password,
         });
         clearSessionCookies(req, res);
-        recordAudit(deps, req, res, {
+        await recordAudit(deps, req, res, {
           action: 'auth.password-reset',
           targetType: 'user',
           targetId: row.id,
@@ -304,8 +304,8 @@ export const authRouteModule: ConsoleRouteModule = {
       summary: 'What an invitation link offers (404 when unknown, used or expired)',
       request: { params: InvitationTokenParamsSchema },
       response: InvitationInfoSchema,
-      handler: ({ deps, params }) => {
-        const offer = invitationOffer(deps, params.token);
+      handler: async ({ deps, params }) => {
+        const offer = await invitationOffer(deps, params.token);
         return { email: offer.email, role: offer.role, expiresAt: offer.expiresAt.toISOString() };
       },
     });
@@ -325,7 +325,7 @@ export const authRouteModule: ConsoleRouteModule = {
           name: body.name,
           password: body.password,
         });
-        recordAudit(deps, req, res, {
+        await recordAudit(deps, req, res, {
           action: 'user.invitation-accept',
           targetType: 'user',
           targetId: user.id,
@@ -334,7 +334,7 @@ export const authRouteModule: ConsoleRouteModule = {
         });
         const session = await issueSession(deps, req, res, user);
         issueCsrfCookie(deps, req, res, session.sessionId);
-        return sessionBody(deps, user.id, session);
+        return await sessionBody(deps, user.id, session);
       },
     });
   },

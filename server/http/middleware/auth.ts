@@ -15,7 +15,12 @@
  */
 import type { Request, RequestHandler, Response } from 'express';
 import { ipKeyGenerator } from 'express-rate-limit';
-import { authenticateToken, type AuthenticatedKey } from '../../accounts/keys.js';
+import {
+  authenticateToken,
+  authenticateTokenOnSqlite,
+  type AuthenticatedKey,
+  type AuthResult,
+} from '../../accounts/keys.js';
 import type { AppDeps } from '../../deps.js';
 import { SharedStateUnavailableError, type SharedRateLimitStore } from '../../integrations/shared-state.js';
 import { problem } from '../problem.js';
@@ -135,6 +140,9 @@ export function authenticate(deps: AppDeps, options: AuthenticateOptions = {}): 
   const store = deps.shared?.rateLimitStore('key-failures');
   if (store) return authenticateShared(deps, options, new SharedKeyFailureCounter(store));
   const failures = new KeyFailureCounter();
+  const sqlite = deps.store.sqlite;
+  if (!sqlite) return authenticatePortable(deps, options, failures);
+  // SQLite: the key is looked up synchronously (prepared statements), no await on the hot path.
   return (req, res, next) => {
     const header = req.get('authorization');
     if (header === undefined || header.trim() === '') throw unauthorized('missing');
@@ -144,12 +152,38 @@ export function authenticate(deps: AppDeps, options: AuthenticateOptions = {}): 
     const address = ipKeyGenerator(req.ip ?? '0.0.0.0');
     const wait = failures.blockedFor(address, now.getTime());
     if (wait > 0) throw tooManyRefusedKeys(wait);
-    const result = authenticateToken(deps.sqlite, deps.config.secret, token, now);
+    const result = authenticateTokenOnSqlite(sqlite, deps.config.secret, token, now);
     if (!result.ok) {
       failures.fail(address, now.getTime());
       // A known key's refusal is logged for its account. An unknown (or missing, malformed) key
       // names no account: there is no tenant to show the row to, and logging it anywhere would
       // let anyone fill the log with guesses, so it is not logged.
+      if ('key' in result) options.onRefusedKnownKey?.(req, res, contextOf(result.key));
+      throw unauthorized(result.reason);
+    }
+    res.locals.auth = contextOf(result.key);
+    next();
+  };
+}
+
+/** {@link authenticate} on a store without a SQLite connection: the same checks, the lookup awaited. */
+function authenticatePortable(
+  deps: AppDeps,
+  options: AuthenticateOptions,
+  failures: KeyFailureCounter,
+): RequestHandler {
+  return async (req, res, next) => {
+    const header = req.get('authorization');
+    if (header === undefined || header.trim() === '') throw unauthorized('missing');
+    const token = presentedToken(header);
+    if (token === undefined) throw unauthorized('malformed');
+    const now = deps.clock();
+    const address = ipKeyGenerator(req.ip ?? '0.0.0.0');
+    const wait = failures.blockedFor(address, now.getTime());
+    if (wait > 0) throw tooManyRefusedKeys(wait);
+    const result = await authenticateToken(deps.store, deps.config.secret, token, now);
+    if (!result.ok) {
+      failures.fail(address, now.getTime());
       if ('key' in result) options.onRefusedKnownKey?.(req, res, contextOf(result.key));
       throw unauthorized(result.reason);
     }
@@ -177,7 +211,7 @@ function authenticateShared(
       const wait = await failures.blockedFor(address);
       if (wait > 0) throw tooManyRefusedKeys(wait);
       // Read after the await: a revocation committed meanwhile is seen by this request.
-      const result = authenticateToken(deps.sqlite, deps.config.secret, token, deps.clock());
+      const result = await authenticateToken(deps.store, deps.config.secret, token, deps.clock());
       if (!result.ok) {
         await failures.fail(address);
         if ('key' in result) options.onRefusedKnownKey?.(req, res, contextOf(result.key));
@@ -202,21 +236,43 @@ function authenticateShared(
  * while the database's auth_revision is unchanged (server/accounts/keys.ts).
  */
 export function reauthenticate(deps: AppDeps): RequestHandler {
-  return (req, res, next) => {
-    const recheck = () => {
+  const sqlite = deps.store.sqlite;
+  const refuse = (result: AuthResult, res: Response) => {
+    if (!result.ok) {
+      res.locals.meter?.keyRefused();
+      throw unauthorized(result.reason);
+    }
+  };
+  if (sqlite) {
+    // SQLite: synchronous, so the check runs in the same turn as the end of the body.
+    return (req, res, next) => {
+      const recheck = () => {
+        const token = presentedToken(req.get('authorization'));
+        refuse(
+          token === undefined
+            ? ({ ok: false, reason: 'malformed' } as const)
+            : authenticateTokenOnSqlite(sqlite, deps.config.secret, token, deps.clock()),
+          res,
+        );
+      };
+      // Multipart bodies are read by the route (upload.ts), which calls this again when done.
+      res.locals.recheckKey = recheck;
+      recheck();
+      next();
+    };
+  }
+  return async (req, res, next) => {
+    const recheck = async () => {
       const token = presentedToken(req.get('authorization'));
-      const result =
+      refuse(
         token === undefined
           ? ({ ok: false, reason: 'malformed' } as const)
-          : authenticateToken(deps.sqlite, deps.config.secret, token, deps.clock());
-      if (!result.ok) {
-        res.locals.meter?.keyRefused();
-        throw unauthorized(result.reason);
-      }
+          : await authenticateToken(deps.store, deps.config.secret, token, deps.clock()),
+        res,
+      );
     };
-    // Multipart bodies are read by the route (upload.ts), which calls this again when done.
     res.locals.recheckKey = recheck;
-    recheck();
+    await recheck();
     next();
   };
 }

@@ -51,9 +51,10 @@ declare global {
       /**
        * Checks the API key again once the request body is complete; throws the 401 problem if it
        * was revoked or expired meanwhile. Set by `reauthenticate` (middleware/auth.ts), called by
-       * it after the body reader and by upload.ts after a multipart body.
+       * it after the body reader and by upload.ts after a multipart body. Synchronous on SQLite,
+       * a promise on other stores.
        */
-      recheckKey?: () => void;
+      recheckKey?: () => void | Promise<void>;
     }
   }
 }
