@@ -23,7 +23,7 @@ export function serialiseConsoleOpenApi(): string {
       EBULLIO_SECRET: 'openapi-generation-only-not-a-secret-0000',
       DB_FILE: ':memory:',
     });
-    createConsoleRouter({ store, db, sqlite, config, clock: () => new Date(0), engineVersion: 'openapi' });
+    createConsoleRouter({ store, config, clock: () => new Date(0), engineVersion: 'openapi' });
   } finally {
     sqlite.close();
   }

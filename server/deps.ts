@@ -5,7 +5,6 @@
  */
 import type express from 'express';
 import type { Config } from './config.js';
-import type { Db, Sqlite } from './db/client.js';
 import type { Store } from './db/store.js';
 import type { EnginePool } from './workers/engine-pool.js';
 import type { SharedState } from './integrations/shared-state.js';
@@ -13,8 +12,6 @@ import type { SharedState } from './integrations/shared-state.js';
 export interface AppDeps {
   /** The data store (SQLite or PostgreSQL) every repository goes through (server/db/store.ts). */
   store: Store;
-  db: Db;
-  sqlite: Sqlite;
   config: Config;
   /** Injectable clock: every time the service reasons about (expiry, quotas, logs) comes from here. */
   clock: () => Date;

@@ -32,8 +32,7 @@ import { pruneRequestLog } from './accounts/request-log.js';
 import { ensureDefaultPlans } from './billing/plans.js';
 import { checkQuotaNotices } from './billing/quota-notices.js';
 import { ConfigError, engineSettings, loadConfig, serverSettings, type Config } from './config.js';
-import { openDatabase, runMigrations } from './db/client.js';
-import { sqliteStore } from './db/store.js';
+import { openStore } from './db/store.js';
 import { closeApp, createApp } from './app.js';
 import type { AppDeps, Lifecycle } from './deps.js';
 import { createHttpServer, startDraining } from './http/server.js';
@@ -131,13 +130,27 @@ async function main(): Promise<void> {
   }
   const clock = () => new Date();
   const version = engineVersion();
-  const { sqlite, db } = openDatabase(config.dbFile);
-  const store = sqliteStore(sqlite, db);
-  runMigrations(db);
-  // Price plans (server/billing/plans.ts): inserts the missing default tiers, never overwrites one.
-  const plansAdded = await ensureDefaultPlans(store);
+  const store = openStore(config);
+  let plansAdded: number;
+  let report: Awaited<ReturnType<typeof bootstrap>>;
+  try {
+    // Several nodes may start at once on one PostgreSQL database: one at a time migrates and
+    // seeds, so an empty database is seeded once (store.exclusive; immediate on SQLite).
+    ({ plansAdded, report } = await store.exclusive(async () => {
+      await store.migrate();
+      // Price plans (server/billing/plans.ts): inserts the missing default tiers, never overwrites one.
+      const added = await ensureDefaultPlans(store);
+      return { plansAdded: added, report: await bootstrap(store, config, clock(), version) };
+    }));
+  } catch (err) {
+    console.error(`[start-up] database not ready: ${(err as Error).message}`);
+    await store.close().catch(() => undefined);
+    process.exit(1);
+  }
+  console.log(
+    `[start-up] database: ${store.dialect === 'postgres' ? 'PostgreSQL (DATABASE_URL)' : `SQLite ${config.dbFile}`}`,
+  );
   if (plansAdded > 0) console.log(`[start-up] ${plansAdded} default price plan(s) added`);
-  const report = await bootstrap(store, config, clock(), version);
   if (report.seeded) console.log('[start-up] empty database: demo accounts and usage seeded');
   if (report.demoCredentials && config.nodeEnv !== 'production') {
     // Shown once, on the start that created them (they are stored only as hashes).
@@ -195,7 +208,7 @@ async function main(): Promise<void> {
   console.log(
     `[start-up] calculation pool: ${engine.workers === 0 ? 'inline (ENGINE_WORKERS=0)' : `${engine.workers} worker thread(s)`}, ${engine.taskTimeoutMs} ms limit per task`,
   );
-  const deps: AppDeps = { store, db, sqlite, config, clock, engineVersion: version, lifecycle, enginePool };
+  const deps: AppDeps = { store, config, clock, engineVersion: version, lifecycle, enginePool };
   // Quota e-mails (80 % and 100 %, once per account and month; server/billing/quota-notices.ts):
   // a sweep over every account catches usage that no request-time check saw (seeded or imported).
   let sweeping = false;
@@ -232,8 +245,7 @@ async function main(): Promise<void> {
   const server = createHttpServer(app, config, lifecycle);
   const onListenError = (err: Error) => {
     console.error(`[start-up] cannot listen on port ${config.port}: ${err.message}`);
-    sqlite.close();
-    process.exit(1);
+    void store.close().finally(() => process.exit(1));
   };
   server.once('error', onListenError);
   server.listen(config.port, () => {
@@ -312,8 +324,9 @@ async function main(): Promise<void> {
             (e: unknown) => console.error('[shutdown] closing the pool or Redis:', e),
           ),
         )
+        .then(() => store.close())
+        .catch((e: unknown) => console.error('[shutdown] closing the database:', e))
         .then(() => {
-          sqlite.close();
           console.log('[shutdown] done');
           process.exit(0);
         });

@@ -23,8 +23,6 @@ import {
 } from '../accounts/accounts.js';
 import { monthStartUtc, nextMonthStartUtc, utcDay } from '../accounts/usage.js';
 import { quotaPercent } from '../accounts/usage-report.js';
-import type { Db } from '../db/client.js';
-import { plans } from '../db/schema.js';
 import type { Store } from '../db/store.js';
 import type { AppDeps } from '../deps.js';
 import { problem } from '../http/problem.js';
@@ -115,14 +113,17 @@ export async function accountView(deps: AppDeps, account: Account): Promise<Cons
 }
 
 /** 422 unless `plan` names a row of the plans table (the billing module owns that table). */
-function assertPlanExists(db: Db, plan: string): void {
-  if (db.select({ name: plans.name }).from(plans).where(eq(plans.name, plan)).get()) return;
-  const known = db
+async function assertPlanExists(store: Store, plan: string): Promise<void> {
+  const { plans } = store.t;
+  const [found] = await store.db
     .select({ name: plans.name })
     .from(plans)
-    .orderBy(plans.name)
-    .all()
-    .map((p) => p.name);
+    .where(eq(plans.name, plan))
+    .limit(1);
+  if (found) return;
+  const known = (await store.db.select({ name: plans.name }).from(plans).orderBy(plans.name)).map(
+    (p) => p.name,
+  );
   throw problem('validation-failed', `There is no plan "${plan}".`, {
     errors: [
       {
@@ -158,7 +159,7 @@ export const accountRoutes: ConsoleRouteModule = {
       response: AccountSchema,
       status: 201,
       handler: async ({ req, res, body }) => {
-        assertPlanExists(deps.db, body.plan);
+        await assertPlanExists(deps.store, body.plan);
         const account = await createAccount(deps.store, {
           name: body.name,
           plan: body.plan,
@@ -197,7 +198,7 @@ export const accountRoutes: ConsoleRouteModule = {
       response: AccountSchema,
       handler: async ({ req, res, params, body }) => {
         const before = await requireAccount(deps.store, params.id);
-        if (body.plan !== undefined) assertPlanExists(deps.db, body.plan);
+        if (body.plan !== undefined) await assertPlanExists(deps.store, body.plan);
         const after = (await updateAccount(deps.store, params.id, body))!;
         const changes: Record<string, { from: unknown; to: unknown }> = {};
         for (const key of Object.keys(body) as (keyof typeof body)[]) {

@@ -66,6 +66,11 @@ export interface Store {
   pendingMigrations(): Promise<number>;
   /** Applies every committed migration (idempotent; serialised between nodes on PostgreSQL). */
   migrate(): Promise<void>;
+  /**
+   * Runs `fn` while no other node runs its own `exclusive` section (a PostgreSQL advisory lock;
+   * on SQLite, one process per file, it simply runs). Start-up migrates and seeds inside it.
+   */
+  exclusive<T>(fn: () => Promise<T>): Promise<T>;
   close(): Promise<void>;
 }
 
@@ -134,6 +139,7 @@ export function sqliteStore(sqlite: Sqlite, db: Db): Store {
     async migrate() {
       runMigrations(db);
     },
+    exclusive: (fn) => fn(),
     async close() {
       if (sqlite.open) sqlite.close();
     },
@@ -149,8 +155,9 @@ export function openSqliteStore(file: string): Store {
 
 type PostgresDb = NodePgDatabase<typeof postgresSchema>;
 
-/** A lock number all Ebullio nodes take around migrations, so two starting at once do not race. */
+/** Lock numbers all Ebullio nodes take, so two starting at once do not race. */
 const MIGRATION_LOCK = 0x0eb0_1110;
+const STARTUP_LOCK = 0x0eb0_1111;
 
 function postgresStore(pool: pg.Pool, pgDb: PostgresDb, inTransaction: boolean): Store {
   const store: Store = {
@@ -196,6 +203,21 @@ function postgresStore(pool: pg.Pool, pgDb: PostgresDb, inTransaction: boolean):
           });
         } finally {
           await client.query('SELECT pg_advisory_unlock($1)', [MIGRATION_LOCK]);
+        }
+      } finally {
+        client.release();
+      }
+    },
+    async exclusive<T>(fn: () => Promise<T>): Promise<T> {
+      // A session-level lock on a connection held for the section; the section's own queries use
+      // the pool's other connections.
+      const client = await pool.connect();
+      try {
+        await client.query('SELECT pg_advisory_lock($1)', [STARTUP_LOCK]);
+        try {
+          return await fn();
+        } finally {
+          await client.query('SELECT pg_advisory_unlock($1)', [STARTUP_LOCK]);
         }
       } finally {
         client.release();

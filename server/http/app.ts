@@ -7,7 +7,6 @@
  */
 import express, { type ErrorRequestHandler, type RequestHandler } from 'express';
 import type { AppDeps, AppModule } from '../deps.js';
-import { pendingMigrationCount } from '../db/client.js';
 import { bodyErrorTranslator } from './middleware/body.js';
 import { requestId } from './middleware/request-id.js';
 import { problem, problemCatalogue, ProblemError, sendProblem, type ProblemSlug } from './problem.js';
@@ -64,7 +63,7 @@ export function createHttpApp(deps: AppDeps, modules: readonly AppModule[]): exp
   app.get('/healthz', (_req, res) => {
     res.json({ status: 'ok' });
   });
-  app.get('/readyz', (_req, res) => {
+  app.get('/readyz', async (_req, res) => {
     // A draining server still answers what reaches it, but should be sent nothing new.
     if (deps.lifecycle?.draining) {
       throw new ProblemError({
@@ -76,8 +75,8 @@ export function createHttpApp(deps: AppDeps, modules: readonly AppModule[]): exp
     }
     let pending: number;
     try {
-      deps.sqlite.prepare('SELECT 1').get();
-      pending = pendingMigrationCount(deps.sqlite);
+      await deps.store.ping();
+      pending = await deps.store.pendingMigrations();
     } catch (err) {
       throw new ProblemError({
         status: 503,

@@ -117,8 +117,6 @@ function serveApp(): void {
   const pkg = JSON.parse(fs.readFileSync(path.join(ROOT, 'package.json'), 'utf8')) as { version: string };
   const app = createApp({
     store,
-    db,
-    sqlite,
     config,
     clock: () => new Date(),
     engineVersion: `ebullio-${pkg.version}`,

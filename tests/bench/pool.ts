@@ -221,7 +221,7 @@ async function underLoad(workers: number, probe: boolean, niceIncrement?: number
   server.closeAllConnections();
   await new Promise((resolve) => server.close(resolve));
   await closeApp(h.deps);
-  h.sqlite.close();
+  await h.store.close();
   return {
     batchSeconds: ms / 1000,
     casesPerSecond: 2000 / (ms / 1000),

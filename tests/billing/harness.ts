@@ -57,8 +57,6 @@ export async function makeBillingHarness(
   const clock = { now: new Date(opts.now ?? '2031-04-03T09:00:00Z') };
   const deps: AppDeps = {
     store,
-    db,
-    sqlite,
     config: testConfig({ consoleSignInLimit: 1000 }),
     clock: () => clock.now,
     engineVersion: 'test-engine',

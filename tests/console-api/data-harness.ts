@@ -48,8 +48,6 @@ export async function makeConsoleHarness(): Promise<ConsoleHarness> {
   const clock = { now: new Date('2031-03-14T10:00:00Z') };
   const deps: AppDeps = {
     store,
-    db,
-    sqlite,
     config: testConfig({ consoleSignInLimit: 1000 }),
     clock: () => clock.now,
     engineVersion: 'test-engine',

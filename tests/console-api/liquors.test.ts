@@ -2,7 +2,6 @@
 // the engine (shape, monotonicity, no NaN, chart readings), CSV Dühring upload with line errors.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { builtInLiquors } from '../../server/engine/liquors/registry.js';
-import { auditLog } from '../../server/db/schema.js';
 import type { ConsoleLiquor, ConsoleLiquorCharts } from '../../shared/console/liquors.js';
 import naoh from '../fixtures/custom-liquor/naoh-duhring-table.json' with { type: 'json' };
 import { makeConsoleHarness, type ConsoleHarness } from './data-harness.js';
@@ -228,11 +227,9 @@ describe('POST /console-api/accounts/:id/liquors (CSV Dühring upload)', () => {
       accountName: 'Invented Alpha Works',
     });
     expect(
-      h.deps.db
-        .select()
-        .from(auditLog)
-        .all()
-        .some((a) => a.action === 'liquor.upload'),
+      (await h.deps.store.db.select().from(h.deps.store.t.auditLog)).some(
+        (a) => a.action === 'liquor.upload',
+      ),
     ).toBe(true);
 
     const list = await h.admin.agent.get(`/console-api/liquors?accountId=${h.alphaId}`).expect(200);

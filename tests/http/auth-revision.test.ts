@@ -44,7 +44,7 @@ async function fileHarness(quota = 1000) {
     rateLimitPerMinute: 1000,
     now,
   });
-  const app = createApp({ store, db, sqlite, config, clock: () => now, engineVersion: 'test-engine' });
+  const app = createApp({ store, config, clock: () => now, engineVersion: 'test-engine' });
   const authenticate = () => authenticateToken(store, config.secret, token, now);
   const other = new Database(file);
   const revision = () =>
@@ -53,8 +53,6 @@ async function fileHarness(quota = 1000) {
   return {
     app,
     store,
-    db,
-    sqlite,
     other,
     revision,
     usage,

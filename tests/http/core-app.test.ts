@@ -1,5 +1,6 @@
 // HTTP core behaviour checked against the HTTP standards it implements: RFC 9457 (problem details),
 // RFC 9110 (status codes 400/404/413/415), RFC 9562 (UUID version 4 layout).
+import { sql } from 'drizzle-orm';
 import request from 'supertest';
 import { describe, expect, it } from 'vitest';
 import { makeHarness } from './helpers.js';
@@ -136,7 +137,7 @@ describe('health', () => {
   it('reports ready on /readyz when every migration is applied, and 503 when the database is closed', async () => {
     const h = await makeHarness();
     expect((await request(h.app).get('/readyz')).status).toBe(200);
-    h.sqlite.close();
+    await h.store.close();
     const res = await request(h.app).get('/readyz');
     expect(res.status).toBe(503);
     expect(res.headers['content-type']).toMatch(/^application\/problem\+json/);
@@ -144,7 +145,12 @@ describe('health', () => {
 
   it('reports 503 on /readyz when a migration has not been applied', async () => {
     const h = await makeHarness();
-    h.sqlite.prepare('DELETE FROM __drizzle_migrations').run();
+    // Drizzle keeps its journal in __drizzle_migrations (PostgreSQL: in the drizzle schema).
+    await h.store.execute(
+      h.store.dialect === 'postgres'
+        ? sql`DELETE FROM drizzle.__drizzle_migrations`
+        : sql`DELETE FROM __drizzle_migrations`,
+    );
     const res = await request(h.app).get('/readyz');
     expect(res.status).toBe(503);
     expect(res.body.detail).toMatch(/migration/);

@@ -82,7 +82,7 @@ describe('seed and bootstrap variables', () => {
     ).toBe('admin');
     expect(await verifyUserPassword(store, 'admin@example.invalid', 'wrong password here')).toBeUndefined();
 
-    const app = createApp({ store, db, sqlite, config, clock: () => now, engineVersion: 'test' });
+    const app = createApp({ store, config, clock: () => now, engineVersion: 'test' });
     const res = await request(app).get('/v1/usage').set('Authorization', `Bearer ${BOOT_KEY}`);
     expect(res.status).toBe(200);
     const key = sqlite

@@ -6,7 +6,6 @@ import { createAccount } from '../../server/accounts/accounts.js';
 import { createKey } from '../../server/accounts/keys.js';
 import type { Scope } from '../../server/accounts/operations.js';
 import type { Config } from '../../server/config.js';
-import { type Db, type Sqlite } from '../../server/db/client.js';
 import type { Store } from '../../server/db/store.js';
 import { openTestStore } from '../support/test-store.js';
 import { createApp, type AppDeps } from '../../server/app.js';
@@ -31,8 +30,6 @@ if (!v1RouteModules.includes(testModule)) v1RouteModules.push(testModule);
 export interface Harness {
   app: express.Express;
   store: Store;
-  db: Db;
-  sqlite: Sqlite;
   config: Config;
   deps: AppDeps;
   /** Current time of the injectable clock; change `clock.now` to move time. */
@@ -71,16 +68,10 @@ export async function makeHarness(
   } = {},
 ): Promise<Harness> {
   const store = await openTestStore();
-  // The SQLite handles stay on the harness until every repository has moved onto the store; on
-  // PostgreSQL they are absent, so a test still using them fails there at once.
-  const db = store.db;
-  const sqlite = store.sqlite as Sqlite;
   const config = testConfig(opts.config);
   const clock = { now: new Date('2031-03-14T10:00:00Z') };
   const deps: AppDeps = {
     store,
-    db,
-    sqlite,
     config,
     clock: () => clock.now,
     engineVersion: 'test-engine',
@@ -102,8 +93,6 @@ export async function makeHarness(
   return {
     app: createApp(deps),
     store,
-    db,
-    sqlite,
     config,
     deps,
     clock,

@@ -11,6 +11,7 @@
 // Every class keeps going after a bad answer and lists all of them at its end, so one run shows
 // each class's whole picture. The inputs come from fast-check with one seed per run (printed, and
 // set with FUZZ_SEED=<n> to replay a run).
+import { sql } from 'drizzle-orm';
 import crypto from 'node:crypto';
 import fs from 'node:fs';
 import http from 'node:http';
@@ -1191,24 +1192,21 @@ describe(
       expect.soft(after.status, after.text.slice(0, 300)).toBe(200);
       expect.soft(JSON.parse(after.text)).toEqual(baseline.body);
       // Nothing the fuzz sent to /v1 was logged as a server error.
-      const errors = h.sqlite
-        .prepare(
-          'SELECT method, path, status, COUNT(*) AS n FROM request_log WHERE status >= 500 GROUP BY method, path, status',
-        )
-        .all();
+      const errors = await h.store.rows(
+        sql`SELECT method, path, status, COUNT(*) AS n FROM request_log WHERE status >= 500 GROUP BY method, path, status`,
+      );
       expect.soft(errors).toEqual([]);
     });
   },
 );
 
 describe('the request log after key-shaped strings', () => {
-  it('stores no key and no key secret anywhere in the request log or the audit log', () => {
+  it('stores no key and no key secret anywhere in the request log or the audit log', async () => {
     const rows = [
-      ...(h.sqlite.prepare('SELECT path, request_body, response_body FROM request_log').all() as Record<
-        string,
-        unknown
-      >[]),
-      ...(h.sqlite.prepare('SELECT * FROM audit_log').all() as Record<string, unknown>[]),
+      ...(await h.store.rows<Record<string, unknown>>(
+        sql`SELECT path, request_body, response_body FROM request_log`,
+      )),
+      ...(await h.store.rows<Record<string, unknown>>(sql`SELECT * FROM audit_log`)),
     ];
     expect(rows.length).toBeGreaterThan(300);
     const leaks: string[] = [];

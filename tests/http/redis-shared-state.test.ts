@@ -41,7 +41,7 @@ beforeEach(async () => {
 afterEach(async () => {
   for (const deps of opened.splice(0)) {
     await closeApp(deps);
-    deps.sqlite.close();
+    deps.store.sqlite!.close();
   }
   for (const dir of dirs.splice(0)) fs.rmSync(dir, { recursive: true, force: true });
 });
@@ -58,7 +58,7 @@ async function twoNodes(opts: { rateLimit?: number; config?: Partial<Config>; re
     const { sqlite, db } = openDatabase(file);
     const store = sqliteStore(sqlite, db);
     runMigrations(db);
-    const deps: AppDeps = { store, db, sqlite, config, clock: () => NOW, engineVersion: 'test-engine' };
+    const deps: AppDeps = { store, config, clock: () => NOW, engineVersion: 'test-engine' };
     opened.push(deps);
     return deps;
   };
@@ -158,7 +158,9 @@ describe('key-cache invalidation between nodes', () => {
     expect(knownKeyCount(n.b.store)).toBe(1); // B remembers the key
     const before = n.b.shared!.invalidationsReceived;
     // A revocation written through A's own connection (as A's console would).
-    n.a.sqlite.prepare('UPDATE api_keys SET revoked_at = ? WHERE id = ?').run(NOW.getTime() - 1, n.keyId);
+    n.a.store
+      .sqlite!.prepare('UPDATE api_keys SET revoked_at = ? WHERE id = ?')
+      .run(NOW.getTime() - 1, n.keyId);
     await until('the invalidation to reach B', () => n.b.shared!.invalidationsReceived > before);
     // Dropped by the message alone: B has served no request since the revocation.
     expect(knownKeyCount(n.b.store)).toBe(0);
@@ -180,14 +182,14 @@ describe('key-cache invalidation between nodes', () => {
     const n = await twoNodes();
     expect((await n.authenticate(n.b)).ok).toBe(true);
     expect(knownKeyCount(n.b.store)).toBe(1);
-    n.a.sqlite.prepare(sql).run(n.keyId);
+    n.a.store.sqlite!.prepare(sql).run(n.keyId);
     await until('B to hear of it', () => n.b.shared!.invalidationsReceived === 1);
     expect(knownKeyCount(n.b.store)).toBe(0);
   });
 
   it('does not echo a node its own announcement', async () => {
     const n = await twoNodes();
-    n.a.sqlite.prepare('UPDATE api_keys SET rate_limit_per_minute = 7 WHERE id = ?').run(n.keyId);
+    n.a.store.sqlite!.prepare('UPDATE api_keys SET rate_limit_per_minute = 7 WHERE id = ?').run(n.keyId);
     await until('B to hear of it', () => n.b.shared!.invalidationsReceived === 1);
     expect(n.a.shared!.invalidationsReceived).toBe(0);
   });
@@ -248,7 +250,9 @@ describe('the key cache while Redis is down', () => {
     expect((await n.authenticate(n.b)).ok).toBe(true); // B remembers the key
     await redis.stop();
     try {
-      n.a.sqlite.prepare('UPDATE api_keys SET revoked_at = ? WHERE id = ?').run(NOW.getTime() - 1, n.keyId);
+      n.a.store
+        .sqlite!.prepare('UPDATE api_keys SET revoked_at = ? WHERE id = ?')
+        .run(NOW.getTime() - 1, n.keyId);
       await new Promise((r) => setImmediate(r)); // a later turn, as the next request would be
       expect(n.b.shared!.invalidationsReceived).toBe(0);
       expect(await n.authenticate(n.b)).toMatchObject({ ok: false, reason: 'revoked' });

@@ -296,8 +296,6 @@ describe('the key is checked again when the body is complete', () => {
     });
     const app = createApp({
       store,
-      db,
-      sqlite,
       config,
       clock: () => clock.now,
       engineVersion: 'test-engine',
@@ -324,8 +322,6 @@ describe('the key is checked again when the body is complete', () => {
     return {
       app,
       store,
-      db,
-      sqlite,
       config,
       clock,
       token,
@@ -395,8 +391,10 @@ describe('the key is checked again when the body is complete', () => {
       usageEvents: 0,
       logged: { accountId: f.accountId, status: 401 },
     });
-    const stored = f.sqlite.prepare('SELECT COUNT(*) AS n FROM stored_liquors').get() as { n: number };
-    expect(stored.n).toBe(0);
+    const [stored] = await f.store.rows<{ n: number | string }>(
+      sql`SELECT COUNT(*) AS n FROM stored_liquors`,
+    );
+    expect(Number(stored!.n)).toBe(0);
   });
 
   it('refuses with 401 a body completed after its key expired', async () => {
