@@ -344,8 +344,9 @@ async function chargeWithinQuotas(
   if (charged.length === 0) return { refused, after };
   const ids = [...new Set(charged.map((r) => r.accountId))].sort((a, b) => a - b);
   const locked = await tx.rows<{ id: number; quota: number | string }>(
+    // (SQLite has no FOR UPDATE and needs none: its write transaction already excludes every other.)
     sql`SELECT id, monthly_unit_quota AS quota FROM accounts
-        WHERE id IN (${sql.join(ids, sql`, `)}) ORDER BY id FOR UPDATE`,
+        WHERE id IN (${sql.join(ids, sql`, `)}) ORDER BY id${tx.dialect === 'postgres' ? sql` FOR UPDATE` : sql``}`,
   );
   const quotaOf = new Map(locked.map((a) => [Number(a.id), Number(a.quota)]));
   const used = new Map<string, number>();

@@ -16,6 +16,7 @@ import { runDrainBench } from './drain.js';
 import { runHashFloodBench } from './hash-flood.js';
 import { runPoolBench } from './pool.js';
 import { runKeyLookupBench } from './key-lookup.js';
+import { runClusterBench } from './cluster.js';
 
 const sections: { title: string; run: () => Promise<void> }[] = [
   { title: 'IAPWS-IF97 steam properties', run: runSteamBench },
@@ -45,6 +46,12 @@ const sections: { title: string; run: () => Promise<void> }[] = [
   {
     title: 'Calculation pool: crossover, latency under two large batches, throughput by threads',
     run: () => runPoolBench(),
+  },
+  {
+    title: 'Three nodes behind HAProxy (PostgreSQL, Redis) against one node',
+    run: async () => {
+      await runClusterBench();
+    },
   },
   { title: 'Console initial load (gzipped JS + CSS)', run: runBundleBench },
   { title: 'SIGTERM drain under keep-alive load (real server process)', run: runDrainBench },

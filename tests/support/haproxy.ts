@@ -62,7 +62,7 @@ defaults
   timeout client 120s
   timeout server 120s
   timeout http-request 30s
-  option http-server-close
+  # Keep-alive on both sides: connections to the nodes are reused (HAProxy's safe reuse).
   retries 3
   option redispatch 1
   retry-on conn-failure
