@@ -167,6 +167,37 @@ function serial<T>(store: Store, job: () => Promise<T>): Promise<T> {
   return result;
 }
 
+interface DailyRoll {
+  accountId: number;
+  day: string;
+  operation: string;
+  requests: number;
+  units: number;
+  errors: number;
+}
+
+/** Adds a request to the daily roll-up of its (account, UTC day, operation) within one group. */
+function addToRollUp(daily: Map<string, DailyRoll>, r: RequestRecord): void {
+  const day = utcDay(r.at);
+  const rollKey = `${r.accountId}\u0000${day}\u0000${r.operation}`;
+  const isError = r.status >= 400 ? 1 : 0;
+  const roll = daily.get(rollKey);
+  if (roll) {
+    roll.requests += 1;
+    roll.units += r.units;
+    roll.errors += isError;
+  } else {
+    daily.set(rollKey, {
+      accountId: r.accountId,
+      day,
+      operation: r.operation,
+      requests: 1,
+      units: r.units,
+      errors: isError,
+    });
+  }
+}
+
 function prepareCommit(sqlite: Sqlite): CommitRecords {
   const insertEvent = sqlite.prepare(
     `INSERT INTO usage_events (at, account_id, key_id, operation, status, units, latency_ms, request_id, engine_version)
@@ -185,10 +216,7 @@ function prepareCommit(sqlite: Sqlite): CommitRecords {
     'UPDATE api_keys SET last_used_at = ? WHERE id = ? AND (last_used_at IS NULL OR last_used_at < ?)',
   );
   const write = sqlite.transaction((records: readonly RequestRecord[]) => {
-    const daily = new Map<
-      string,
-      { accountId: number; day: string; operation: string; requests: number; units: number; errors: number }
-    >();
+    const daily = new Map<string, DailyRoll>();
     const lastUse = new Map<number, number>();
     // Every record gets its request-log row; a refused key's (logOnly) gets nothing else.
     const logRow = (r: (typeof records)[number], at: number) =>
@@ -207,7 +235,6 @@ function prepareCommit(sqlite: Sqlite): CommitRecords {
       );
     for (const r of records) {
       const at = r.at.getTime();
-      const isError = r.status >= 400 ? 1 : 0;
       if (r.logOnly) {
         logRow(r, at);
         continue;
@@ -224,23 +251,7 @@ function prepareCommit(sqlite: Sqlite): CommitRecords {
         r.engineVersion,
       );
       logRow(r, at);
-      const day = utcDay(r.at);
-      const rollKey = `${r.accountId}\u0000${day}\u0000${r.operation}`;
-      const roll = daily.get(rollKey);
-      if (roll) {
-        roll.requests += 1;
-        roll.units += r.units;
-        roll.errors += isError;
-      } else {
-        daily.set(rollKey, {
-          accountId: r.accountId,
-          day,
-          operation: r.operation,
-          requests: 1,
-          units: r.units,
-          errors: isError,
-        });
-      }
+      addToRollUp(daily, r);
       lastUse.set(r.keyId, Math.max(lastUse.get(r.keyId) ?? at, at));
     }
     for (const d of daily.values())
@@ -261,15 +272,6 @@ function committerFor(sqlite: Sqlite): CommitRecords {
     committers.set(sqlite, commit);
   }
   return commit;
-}
-
-interface DailyRoll {
-  accountId: number;
-  day: string;
-  operation: string;
-  requests: number;
-  units: number;
-  errors: number;
 }
 
 function chunks<T>(rows: readonly T[]): T[][] {
@@ -401,24 +403,7 @@ async function writePostgres(tx: Store, records: readonly RequestRecord[]): Prom
       requestId: r.requestId,
       engineVersion: r.engineVersion,
     });
-    const isError = r.status >= 400 ? 1 : 0;
-    const day = utcDay(r.at);
-    const rollKey = `${r.accountId}\u0000${day}\u0000${r.operation}`;
-    const roll = daily.get(rollKey);
-    if (roll) {
-      roll.requests += 1;
-      roll.units += r.units;
-      roll.errors += isError;
-    } else {
-      daily.set(rollKey, {
-        accountId: r.accountId,
-        day,
-        operation: r.operation,
-        requests: 1,
-        units: r.units,
-        errors: isError,
-      });
-    }
+    addToRollUp(daily, r);
     const at = r.at.getTime();
     lastUse.set(r.keyId, Math.max(lastUse.get(r.keyId) ?? at, at));
   }
