@@ -201,6 +201,8 @@ export function idempotency(store: Store, clock: () => Date): RequestHandler {
       } else {
         // The stored answer, as first sent, at 0 units with the mark in the request log.
         meter.idempotentReplay = true;
+        meter.units = 0; // the guard's charge is not spent: other requests may use those units
+
         res.setHeader('Idempotent-Replayed', 'true');
         if (row.content_type) res.setHeader('Content-Type', row.content_type);
         res.status(row.status).send(Buffer.from(row.body ?? '', 'base64'));
