@@ -124,7 +124,7 @@ const idempotencyKeyHeader = z
       description:
         'Makes a retry safe (IETF httpapi Idempotency-Key draft): 1–255 printable ASCII characters, as a token or a ' +
         'quoted string (`"…"`), unique per request. The first request with a key is processed and its answer kept ' +
-        'for 24 h for the account; a retry with the same key, method, path and body gets that answer again (same ' +
+        'for 24 h for the account; a retry with the same key, method, path, Accept and body gets that answer again (same ' +
         'status and body, header `Idempotent-Replayed: true`, 0 units, marked in the request log). The same key ' +
         'with another request: 422 idempotency-key-reused; while the first is still processed: 409 ' +
         'idempotency-key-in-flight. Answers 5xx, 401, 403 and 429 are not kept (a retry runs again). Not accepted on ' +

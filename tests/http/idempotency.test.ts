@@ -123,6 +123,12 @@ describe('Idempotency-Key retries', () => {
     // Another path with the same key is another request too.
     const otherPath = await post('/v1/__test/slow', { pressure: 150, temperature: 250 }, 'reuse-1');
     expect(otherPath.status).toBe(422);
+    // And the same body asking for another representation.
+    const otherAccept = await post('/v1/steam/state', { pressure: 150, temperature: 250 }, 'reuse-1').set(
+      'Accept',
+      'text/csv',
+    );
+    expect(otherAccept.status).toBe(422);
   });
 
   it('answers 409 to a retry while the first request is still being processed, then replays its answer', async () => {

@@ -5,7 +5,7 @@
  *
  * - The key: a structured-field string (`"abc"`) or a bare token, 1–255 printable ASCII
  *   characters; anything else is a 400 naming the header.
- * - The request's fingerprint: SHA-256 over method, path (with query), media type and the body
+ * - The request's fingerprint: SHA-256 over method, path (with query), media type, Accept and the body
  *   as parsed, with object keys sorted (so `{"a":1,"b":2}` and `{ "b": 2, "a": 1 }` are the same).
  * - Per account: the first request claims the key atomically (`INSERT … ON CONFLICT DO NOTHING
  *   RETURNING`) as in flight, with a lease of {@link IDEMPOTENCY_LEASE_MS}; its answer (status,
@@ -65,10 +65,16 @@ function canonical(value: unknown): string {
   return JSON.stringify(value) ?? 'null';
 }
 
-function fingerprintOf(method: string, url: string, mediaType: string, body: unknown): string {
+function fingerprintOf(
+  method: string,
+  url: string,
+  mediaType: string,
+  accept: string,
+  body: unknown,
+): string {
   return crypto
     .createHash('sha256')
-    .update(`${method}\n${url}\n${mediaType}\n${canonical(body)}`)
+    .update(`${method}\n${url}\n${mediaType}\n${accept}\n${canonical(body)}`)
     .digest('hex');
 }
 
@@ -168,7 +174,14 @@ export function idempotency(store: Store, clock: () => Date): RequestHandler {
     }
     const auth = res.locals.auth!;
     const meter = res.locals.meter!;
-    const fingerprint = fingerprintOf(req.method, req.originalUrl, mediaType, req.body);
+    // Accept too: the same body asked for as CSV is another answer.
+    const fingerprint = fingerprintOf(
+      req.method,
+      req.originalUrl,
+      mediaType,
+      req.get('accept') ?? '',
+      req.body,
+    );
     const token = crypto.randomUUID();
     const now = clock();
     let claimed = await claim(store, auth.accountId, key, fingerprint, token, now);
