@@ -100,6 +100,25 @@ describe('Idempotency-Key retries', () => {
     expect(await logOf(againId)).toEqual({ status: 200, replay: true, units: 0 });
   });
 
+  it('replays a batch (a declared POST like any other) without charging its cases again', async () => {
+    const batch = {
+      operation: 'steam-state',
+      cases: [
+        { pressure: 200, temperature: 250 },
+        { pressure: -1, temperature: 250 },
+      ],
+    };
+    const before = await unitsOfAccount(h.accountId);
+    const first = await post('/v1/batch', batch, 'batch-1');
+    expect(first.status).toBe(200);
+    const charged = (await unitsOfAccount(h.accountId)) - before;
+    expect(charged).toBe(1); // the refused case costs nothing
+    const again = await post('/v1/batch', batch, 'batch-1');
+    expect(again.headers['idempotent-replayed']).toBe('true');
+    expect(again.text).toBe(first.text);
+    expect((await unitsOfAccount(h.accountId)) - before).toBe(charged);
+  });
+
   it('treats the same JSON written with its keys in another order as the same request', async () => {
     const first = await post('/v1/steam/state', { pressure: 200, temperature: 250 }, 'order-1');
     const again = await request(h.app)
