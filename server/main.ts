@@ -29,6 +29,7 @@ import path from 'node:path';
 import net, { type AddressInfo } from 'node:net';
 import { sql } from 'drizzle-orm';
 import { pruneRequestLog } from './accounts/request-log.js';
+import { pruneIdempotencyRecords } from './http/middleware/idempotency.js';
 import { ensureDefaultPlans } from './billing/plans.js';
 import { checkQuotaNotices } from './billing/quota-notices.js';
 import { ConfigError, engineSettings, loadConfig, serverSettings, type Config } from './config.js';
@@ -184,6 +185,8 @@ async function main(): Promise<void> {
       console.log(
         `[maintenance] pruned ${n} request-log rows older than ${config.requestLogRetentionDays} days`,
       );
+    // Idempotency records are kept 24 h; older ones are already ignored, this frees their rows.
+    await pruneIdempotencyRecords(store, clock());
   };
   await prune();
   // A later pass that fails (the database briefly unreachable) is logged; the next one retries.

@@ -62,6 +62,8 @@ export interface RequestRecord {
    * known but unusable key (revoked, expired, rotated), shown to its account, never metered.
    */
   logOnly?: boolean;
+  /** The answer was replayed from an idempotency record (0 units; marked in the request log). */
+  idempotentReplay?: boolean;
 }
 
 /** last_used_at is written at most once a minute per key, to keep the hot path cheap. */
@@ -210,7 +212,7 @@ function prepareCommit(sqlite: Sqlite): CommitRecords {
   );
   const insertLog = sqlite.prepare(
     `INSERT INTO request_log (request_id, at, account_id, key_id, method, path, status, latency_ms,
-       request_body, response_body, engine_version) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+       request_body, response_body, engine_version, idempotent_replay) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
   );
   const touchKey = sqlite.prepare(
     'UPDATE api_keys SET last_used_at = ? WHERE id = ? AND (last_used_at IS NULL OR last_used_at < ?)',
@@ -232,6 +234,7 @@ function prepareCommit(sqlite: Sqlite): CommitRecords {
         r.requestBody,
         r.responseBody,
         r.engineVersion,
+        r.idempotentReplay ? 1 : 0,
       );
     for (const r of records) {
       const at = r.at.getTime();
@@ -389,6 +392,7 @@ async function writePostgres(tx: Store, records: readonly RequestRecord[]): Prom
       requestBody: r.requestBody,
       responseBody: r.responseBody,
       engineVersion: r.engineVersion,
+      idempotentReplay: r.idempotentReplay === true,
     });
     // A refused key's (logOnly) request gets its request-log row and nothing else.
     if (r.logOnly) continue;

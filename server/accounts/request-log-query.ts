@@ -38,6 +38,8 @@ export interface RequestLogRow {
   status: number;
   latencyMs: number;
   units: number | null;
+  /** The answer was replayed from an idempotency record (Idempotency-Key retry, 0 units). */
+  idempotentReplay: boolean;
 }
 
 export interface RequestLogDetailRow extends RequestLogRow {
@@ -60,14 +62,27 @@ const FROM = sql.raw(`FROM request_log rl
 const COLUMNS = sql.raw(`rl.id AS id, rl.request_id AS "requestId", rl.at AS at, rl.account_id AS "accountId",
   rl.key_id AS "keyId", rl.method AS method, rl.path AS path, ue.operation AS operation,
   rl.status AS status, rl.latency_ms AS "latencyMs", ue.units AS units,
+  rl.idempotent_replay AS "idempotentReplay",
   (SELECT a.name FROM accounts a WHERE a.id = rl.account_id) AS "accountName",
   (SELECT k.name FROM api_keys k WHERE k.id = rl.key_id) AS "keyName"`);
 
 /** As the driver returns it: a time as epoch ms or a Date, a bigint id as a string (PostgreSQL). */
-type RawRow = Omit<RequestLogRow, 'at' | 'id'> & { at: unknown; id: number | string };
+type RawRow = Omit<RequestLogRow, 'at' | 'id' | 'idempotentReplay'> & {
+  at: unknown;
+  id: number | string;
+  idempotentReplay: unknown;
+};
 
-function toRow<T extends RawRow>(raw: T): Omit<T, 'at' | 'id'> & { at: Date; id: number } {
-  return { ...raw, id: Number(raw.id), at: readInstant(raw.at) };
+function toRow<T extends RawRow>(
+  raw: T,
+): Omit<T, 'at' | 'id' | 'idempotentReplay'> & { at: Date; id: number; idempotentReplay: boolean } {
+  // SQLite keeps the flag as 0/1, PostgreSQL as a boolean.
+  return {
+    ...raw,
+    id: Number(raw.id),
+    at: readInstant(raw.at),
+    idempotentReplay: Boolean(raw.idempotentReplay),
+  };
 }
 
 /** The conditions of a filter and scope. An empty scope matches nothing. */

@@ -168,8 +168,32 @@ export const requestLog = pgTable(
     requestBody: text('request_body'),
     responseBody: text('response_body'),
     engineVersion: text('engine_version').notNull(),
+    /** The answer was a stored one, replayed for a repeated Idempotency-Key (0 units). */
+    idempotentReplay: boolean('idempotent_replay').notNull().default(false),
   },
   (t) => [index('request_log_at_idx').on(t.at), index('request_log_account_at_idx').on(t.accountId, t.at)],
+);
+
+/** Idempotency-Key records of /v1 POSTs (see server/db/schema.ts). */
+export const idempotencyRecords = pgTable(
+  'idempotency_records',
+  {
+    accountId: integer('account_id')
+      .notNull()
+      .references(() => accounts.id, { onDelete: 'cascade' }),
+    key: text('key').notNull(),
+    fingerprint: text('fingerprint').notNull(),
+    claim: text('claim').notNull(),
+    createdAt: instant('created_at').notNull(),
+    leaseUntil: instant('lease_until').notNull(),
+    status: integer('status'),
+    contentType: text('content_type'),
+    body: text('body'),
+  },
+  (t) => [
+    primaryKey({ columns: [t.accountId, t.key] }),
+    index('idempotency_records_created_idx').on(t.createdAt),
+  ],
 );
 
 export const storedLiquors = pgTable(

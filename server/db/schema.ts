@@ -135,8 +135,38 @@ export const requestLog = sqliteTable(
     requestBody: text('request_body'),
     responseBody: text('response_body'),
     engineVersion: text('engine_version').notNull(),
+    /** The answer was a stored one, replayed for a repeated Idempotency-Key (0 units). */
+    idempotentReplay: integer('idempotent_replay', { mode: 'boolean' }).notNull().default(false),
   },
   (t) => [index('request_log_at_idx').on(t.at), index('request_log_account_at_idx').on(t.accountId, t.at)],
+);
+
+/**
+ * Idempotency-Key records of /v1 POSTs (server/http/middleware/idempotency.ts), per account and
+ * key: claimed "in flight" by the first request (`status` null, `claim` its token, held until
+ * `lease_until`), then holding the stored answer for 24 h from `created_at`.
+ */
+export const idempotencyRecords = sqliteTable(
+  'idempotency_records',
+  {
+    accountId: integer('account_id')
+      .notNull()
+      .references(() => accounts.id, { onDelete: 'cascade' }),
+    key: text('key').notNull(),
+    /** SHA-256 (hex) of method, path, content type and canonical body. */
+    fingerprint: text('fingerprint').notNull(),
+    /** The claiming request's token: only it may store its answer or give the key back. */
+    claim: text('claim').notNull(),
+    createdAt: integer('created_at', { mode: 'timestamp_ms' }).notNull(),
+    leaseUntil: integer('lease_until', { mode: 'timestamp_ms' }).notNull(),
+    status: integer('status'),
+    contentType: text('content_type'),
+    body: text('body'),
+  },
+  (t) => [
+    primaryKey({ columns: [t.accountId, t.key] }),
+    index('idempotency_records_created_idx').on(t.createdAt),
+  ],
 );
 
 export const storedLiquors = sqliteTable(

@@ -111,21 +111,67 @@ function requestOf(decl: AnyOperation) {
   };
 }
 
+/** The Idempotency-Key header every POST takes (server/http/middleware/idempotency.ts). */
+const idempotencyKeyHeader = z
+  .string()
+  .min(1)
+  .max(255)
+  .optional()
+  .openapi({
+    param: {
+      name: 'Idempotency-Key',
+      in: 'header',
+      description:
+        'Makes a retry safe (IETF httpapi Idempotency-Key draft): 1–255 printable ASCII characters, as a token or a ' +
+        'quoted string (`"…"`), unique per request. The first request with a key is processed and its answer kept ' +
+        'for 24 h for the account; a retry with the same key, method, path, Accept and body gets that answer again (same ' +
+        'status and body, header `Idempotent-Replayed: true`, 0 units, marked in the request log). The same key ' +
+        'with another request: 422 idempotency-key-reused; while the first is still processed: 409 ' +
+        'idempotency-key-in-flight. Answers 5xx, 401, 403 and 429 are not kept (a retry runs again). Not accepted on ' +
+        'multipart uploads (400).',
+    },
+    example: '"7c1c1f5e-3a0e-4c39-9f59-2f0a3e6c1d42"',
+  });
+
+const idempotencyProblems = {
+  400: problem(
+    'The Idempotency-Key header is malformed or sent with a multipart upload (type idempotency-key-invalid)',
+  ),
+  409: problem(
+    'The first request with this Idempotency-Key is still being processed (type idempotency-key-in-flight); see Retry-After',
+  ),
+};
+
+const replayedHeader = {
+  'Idempotent-Replayed': {
+    description:
+      '`true` when the answer is the stored answer of an earlier request with the same Idempotency-Key',
+    schema: { type: 'string' as const, enum: ['true'] },
+  },
+};
+
 /** Registers one declared operation: path, operationId, wording, request, answer and problems. */
 function registerOperation(
   registry: OpenAPIRegistry,
   decl: AnyOperation,
   security: { bearerAuth: never[] }[],
+  idempotencyKey: z.ZodType,
 ): void {
   const { response } = decl;
+  const post = decl.method === 'post';
   const success = response.schema
     ? ok(response.description, response.schema, response.alternatives ?? {}, response.example)
     : { description: response.description, headers: rateLimitHeaders };
-  const extra: Record<number, ReturnType<typeof problem>> = {};
+  if (post) success.headers = { ...rateLimitHeaders, ...replayedHeader };
+  const extra: Record<number, ReturnType<typeof problem>> = post ? { ...idempotencyProblems } : {};
   for (const [status, description] of Object.entries(decl.problems ?? {})) {
-    extra[Number(status)] = problem(description);
+    // An operation's own wording of a status comes first; the key's cases are added to it.
+    const own = problem(description);
+    const key = extra[Number(status)];
+    if (key) own.description = `${description}; or: ${key.description}`;
+    extra[Number(status)] = own;
   }
-  const request = requestOf(decl);
+  const request = { ...requestOf(decl), ...(post ? { headers: [idempotencyKey] } : {}) };
   registry.registerPath({
     method: decl.method,
     path: decl.path,
@@ -134,8 +180,19 @@ function registerOperation(
     summary: decl.summary,
     ...(decl.description !== undefined ? { description: decl.description } : {}),
     security,
-    ...(request ? { request } : {}),
-    responses: { [response.status ?? 200]: success, ...extra, ...commonProblems },
+    ...(Object.keys(request).length > 0 ? { request } : {}),
+    responses: {
+      [response.status ?? 200]: success,
+      ...extra,
+      ...commonProblems,
+      ...(post
+        ? {
+            422: problem(
+              `${commonProblems[422].description}; or idempotency-key-reused (this Idempotency-Key was used for a different request)`,
+            ),
+          }
+        : {}),
+    },
   });
 }
 
@@ -149,7 +206,8 @@ export function buildRegistry(): OpenAPIRegistry {
   });
   const security = [{ bearerAuth: [] }];
 
-  for (const decl of v1Operations) registerOperation(registry, decl, security);
+  const idempotencyKey = registry.registerParameter('IdempotencyKey', idempotencyKeyHeader);
+  for (const decl of v1Operations) registerOperation(registry, decl, security, idempotencyKey);
 
   return registry;
 }

@@ -90,6 +90,12 @@ export const problemCatalogue = {
     description:
       'The resource exists already (for example a stored liquor id that is taken); choose another id.',
   },
+  'idempotency-key-in-flight': {
+    status: 409,
+    title: 'Idempotency key in use',
+    description:
+      'The first request with this Idempotency-Key is still being processed. Retry after it has answered (Retry-After); the retry then gets its stored answer.',
+  },
   'csrf-failed': {
     status: 403,
     title: 'CSRF check failed',
@@ -123,6 +129,18 @@ export const problemCatalogue = {
     status: 422,
     title: 'Validation failed',
     description: 'The request is well-formed JSON but some fields are missing or invalid; see "errors".',
+  },
+  'idempotency-key-reused': {
+    status: 422,
+    title: 'Idempotency key reused',
+    description:
+      'This Idempotency-Key was used within the last 24 hours for a different request (method, path or body). Use a new key for a new request.',
+  },
+  'idempotency-key-invalid': {
+    status: 400,
+    title: 'Invalid Idempotency-Key',
+    description:
+      'The Idempotency-Key header must be 1–255 printable ASCII characters, sent as a token or a quoted string, and is not accepted on multipart uploads.',
   },
   'out-of-range': {
     status: 422,

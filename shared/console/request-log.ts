@@ -50,6 +50,10 @@ export const RequestLogItemSchema = z
     status: z.int(),
     latencyMs: z.int(),
     units: z.int().nullable(),
+    idempotentReplay: z.boolean().meta({
+      description:
+        'The answer was the stored answer of an earlier request with the same Idempotency-Key (0 units)',
+    }),
   })
   .meta({ id: 'ConsoleRequestLogItem' });
 export type RequestLogItem = z.infer<typeof RequestLogItemSchema>;
@@ -94,4 +98,5 @@ export const REQUEST_LOG_CSV_COLUMNS = [
   'status',
   'latencyMs',
   'units',
+  'idempotentReplay',
 ] as const;

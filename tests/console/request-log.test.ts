@@ -107,6 +107,7 @@ describe('request detail', () => {
     status: 200,
     latencyMs: 120,
     units: 1,
+    idempotentReplay: false,
     engineVersion: '0.1.0',
     bodiesRetained: true,
     requestBody: '{"massFraction":0.3,"note":"<img src=x onerror=alert(1)>"}',

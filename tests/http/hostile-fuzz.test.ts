@@ -788,6 +788,25 @@ const CONTENT_TYPES = [
   'application/json; boundary=--x',
   'application/octet-stream',
 ];
+/** Idempotency-Key values a client may send: malformed, over-long, quoted oddly, key-shaped. */
+const IDEMPOTENCY_KEYS = [
+  '',
+  '""',
+  '"',
+  '"a\\qb"',
+  'k'.repeat(256),
+  '"' + 'k'.repeat(256) + '"',
+  'a b',
+  'a"b',
+  '__proto__',
+  'constructor',
+  'a\tb',
+  'cl\u00e9',
+  '%00',
+  '"ok-key"',
+  'ok-key',
+  '0',
+];
 const oddRequest = fc.record({
   target: targetIndex,
   kind: fc.constantFrom(
@@ -800,8 +819,10 @@ const oddRequest = fc.record({
     'big-header',
     'many-headers',
     'over-limit',
+    'idempotency-key',
   ),
   raw: fc.constantFrom(...WEIRD_RAW),
+  idempotencyKey: fc.constantFrom(...IDEMPOTENCY_KEYS),
   contentType: fc.constantFrom(...CONTENT_TYPES),
   at: fc.nat(),
 });
@@ -1086,6 +1107,25 @@ describe(
               headers: Object.fromEntries(Array.from({ length: 90 }, (_, i) => [`X-Hostile-${i}`, `${i}`])),
             });
             break;
+          case 'idempotency-key': {
+            // On a /v1 POST: a 400 naming the header, a result, or the problem of the body; elsewhere ignored.
+            const got = await fire('odd headers and bodies', t, {
+              body: baseJson(t),
+              contentType: 'application/json',
+              headers: { 'Idempotency-Key': s.idempotencyKey },
+            });
+            if (
+              t.area === 'v1' &&
+              t.method === 'POST' &&
+              got.status === 400 &&
+              !got.text.includes('Idempotency-Key')
+            )
+              fail(
+                'odd headers and bodies',
+                `${t.template} with Idempotency-Key ${JSON.stringify(s.idempotencyKey)}: a 400 not naming the header`,
+              );
+            break;
+          }
           case 'over-limit': {
             const body = `{"pad":"${'a'.repeat(BODY_LIMIT)}"}`;
             const got = await fire('odd headers and bodies', t, { body, contentType: 'application/json' });

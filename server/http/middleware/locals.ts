@@ -37,6 +37,15 @@ export interface MeterState {
    * account like a 401 at the door, with no usage event (a refused key costs and counts nothing).
    */
   keyRefused(): void;
+  /** The answer is replayed from an idempotency record: logged with the mark, at 0 units. */
+  idempotentReplay?: boolean;
+  /**
+   * Set by the idempotency middleware for a request that claimed its key: called with the final
+   * status once the request's record has committed and before the bytes leave (499 when the
+   * client went away), to store the answer or give the key back. Its failure is logged, never
+   * the client's problem.
+   */
+  beforeSend?: (status: number) => Promise<void>;
 }
 
 declare global {

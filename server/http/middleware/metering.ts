@@ -86,6 +86,8 @@ class MeteredRequest implements MeterState {
   units = 0;
   quota: number;
   usedByOthersAtCharge?: number;
+  idempotentReplay?: boolean;
+  beforeSend?: (status: number) => Promise<void>;
   private recorded = false;
   /** PostgreSQL: the clock when the request was metered (its month total was read then). */
   startedAt: Date | undefined;
@@ -173,6 +175,7 @@ class MeteredRequest implements MeterState {
       requestBody: retain ? logBody(req.body, limit, this.redaction()) : null,
       responseBody: retain ? logBody(responseChunk, limit, this.redaction()) : null,
       ...(this.logOnly ? { logOnly: true, units: 0 } : {}),
+      ...(this.idempotentReplay ? { idempotentReplay: true, units: 0 } : {}),
     };
   }
 
@@ -211,7 +214,7 @@ class MeteredRequest implements MeterState {
     res.removeHeader('ETag');
     res.setHeader('Content-Type', 'application/problem+json');
     res.setHeader('Content-Length', Buffer.byteLength(body));
-    this.originalEnd(body);
+    this.send([body]);
   }
 
   /**
@@ -245,7 +248,27 @@ class MeteredRequest implements MeterState {
       'Retry-After',
       String(Math.max(1, Math.ceil((nextMonthStartUtc(now).getTime() - now.getTime()) / 1000))),
     );
-    this.originalEnd(body);
+    this.send([body]);
+  }
+
+  /**
+   * Hands the final answer to the socket, after the idempotency hook (if any) has stored it or
+   * given the key back, so a retry never sees an answer the client has not been sent.
+   */
+  private send(args: unknown[]): void {
+    const hook = this.beforeSend;
+    if (!hook) {
+      this.originalEnd(...args);
+      return;
+    }
+    this.beforeSend = undefined;
+    hook(this.res.statusCode).then(
+      () => this.originalEnd(...args),
+      (err: unknown) => {
+        console.error(`[idempotency] could not store the answer of ${this.res.locals.requestId}:`, err);
+        this.originalEnd(...args);
+      },
+    );
   }
 
   /** `res.end`: queue the record, and hand the bytes to the socket once it is committed. */
@@ -270,7 +293,7 @@ class MeteredRequest implements MeterState {
       if (err instanceof QuotaSpentElsewhere) return this.refuseOverQuota(err);
       if (err !== undefined) return this.refuseUnmetered(err);
       this.noticeQuota(status);
-      this.originalEnd(...args);
+      this.send(args);
     });
   }
 
@@ -278,6 +301,11 @@ class MeteredRequest implements MeterState {
   closed(): void {
     if (this.recorded || this.res.writableFinished) return;
     this.recorded = true;
+    // The client went away before an answer: the key is given back for its retry.
+    this.beforeSend?.(499).catch((err: unknown) =>
+      console.error('[idempotency] could not release a key:', err),
+    );
+    this.beforeSend = undefined;
     const requestId = this.res.locals.requestId;
     let record: RequestRecord;
     try {

@@ -28,6 +28,7 @@ import {
 } from '../../workers/engine-tasks.js';
 import { EngineCallError, type EnginePool } from '../../workers/engine-pool.js';
 import { calculate, type FieldMap } from '../engine-errors.js';
+import { idempotency } from '../middleware/idempotency.js';
 import { chargeUnits, guardOperation, releaseUnits } from '../middleware/operation.js';
 import { problem, type ProblemError } from '../problem.js';
 import { siPlan, toSI, type SI, type SiPlan } from '../quantities.js';
@@ -361,9 +362,12 @@ export function mountOperation(router: Router, decl: AnyOperation, deps: AppDeps
         else if (decl.send === 'json') res.status(status).json(result);
         else sendCalculation(res, result, status);
       };
+  // Every POST takes an Idempotency-Key (middleware/idempotency.ts), after the scope and quota
+  // guard (a refused request is not an answer to keep) and before any work.
   router[decl.method](
     routerPath(decl.path),
     guardOperation(decl.operation),
+    ...(decl.method === 'post' ? [idempotency(deps.store, deps.clock)] : []),
     ...(decl.middleware ?? []),
     handler,
   );
