@@ -11,7 +11,7 @@ import { Router } from 'express';
 import swaggerUi from 'swagger-ui-express';
 import { z } from 'zod';
 import { ProblemSchema, UNIT_GRAMMAR } from '../../shared/contracts/index.js';
-import type { AnyOperation } from './v1/operation.js';
+import { deprecationNote, type AnyOperation } from './v1/operation.js';
 import { v1Operations } from './v1/operations/index.js';
 
 extendZodWithOpenApi(z);
@@ -126,21 +126,24 @@ function registerOperation(
     extra[Number(status)] = problem(description);
   }
   const request = requestOf(decl);
+  const dep = decl.deprecation;
+  const description = [decl.description, dep ? deprecationNote(dep) : undefined].filter(Boolean).join('\n\n');
   registry.registerPath({
     method: decl.method,
     path: decl.path,
     operationId: decl.openApiName,
     tags: [decl.tag],
     summary: decl.summary,
-    ...(decl.description !== undefined ? { description: decl.description } : {}),
+    ...(description ? { description } : {}),
+    ...(dep ? { deprecated: true } : {}),
     security,
     ...(request ? { request } : {}),
     responses: { [response.status ?? 200]: success, ...extra, ...commonProblems },
   });
 }
 
-/** Builds a fresh registry holding every v1 calculation route. */
-export function buildRegistry(): OpenAPIRegistry {
+/** Builds a fresh registry holding every v1 calculation route (or the given declarations). */
+export function buildRegistry(operations: readonly AnyOperation[] = v1Operations): OpenAPIRegistry {
   const registry = new OpenAPIRegistry();
   registry.registerComponent('securitySchemes', 'bearerAuth', {
     type: 'http',
@@ -149,14 +152,16 @@ export function buildRegistry(): OpenAPIRegistry {
   });
   const security = [{ bearerAuth: [] }];
 
-  for (const decl of v1Operations) registerOperation(registry, decl, security);
+  for (const decl of operations) registerOperation(registry, decl, security);
 
   return registry;
 }
 
 /** The complete OpenAPI 3.1 document (deterministic: same code → same JSON). */
-export function buildOpenApiDocument(): ReturnType<OpenApiGeneratorV31['generateDocument']> {
-  const generator = new OpenApiGeneratorV31(buildRegistry().definitions, {
+export function buildOpenApiDocument(
+  operations: readonly AnyOperation[] = v1Operations,
+): ReturnType<OpenApiGeneratorV31['generateDocument']> {
+  const generator = new OpenApiGeneratorV31(buildRegistry(operations).definitions, {
     sortComponents: 'alphabetically',
   });
   return generator.generateDocument({
