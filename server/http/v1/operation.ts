@@ -134,6 +134,12 @@ export interface OperationDeclaration<
    * `link`; the OpenAPI document marks it `deprecated` and states the dates.
    */
   deprecation?: Deprecation;
+  /**
+   * Whether a logged call may be run again on today's engine (the console's replay,
+   * server/http/replay.ts). Default: an operation a batch may run (its catalogue entry has a
+   * `batchName`: a calculation that changes nothing stored). Replay needs the retained body; the query string is never logged.
+   */
+  replay?: boolean;
   /** How a `run` result is sent: 'calculation' (the non-finite guard) or Express's res.json. */
   send?: 'calculation' | 'json';
   /** For an operation that answers itself (content negotiation, uploads): replaces `run`. */
