@@ -110,7 +110,8 @@ function leaves(value: unknown, path = '', out: Leaves = new Map()): Leaves {
 /**
  * The fields that differ between two results: numbers with today − logged and its ratio to
  * |logged| (null when logged is 0), other values as changed, and fields on one side only as
- * added (today only) or removed (logged only). Equal results give an empty list.
+ * added (today only) or removed (logged only). Equal results give an empty list. A logged value
+ * the log redacted (text that looked like a key) is not compared.
  */
 export function differences(logged: unknown, today: unknown): ReplayDifference[] {
   const a = leaves(logged);
@@ -122,6 +123,8 @@ export function differences(logged: unknown, today: unknown): ReplayDifference[]
       continue;
     }
     const now = b.get(field);
+    // The log replaced this value (it looked like a secret): there is nothing to compare it with.
+    if (typeof was === 'string' && was.includes(REDACTED)) continue;
     if (typeof was === 'number' && typeof now === 'number') {
       if (Object.is(was, now) || was === now) continue;
       const absolute = now - was;
