@@ -32,6 +32,31 @@ const rateLimitHeaders = {
   },
 };
 
+/** The headers every answer of a deprecated operation carries (server/http/v1/operation.ts). */
+function deprecationResponseHeaders(withSunset: boolean) {
+  return {
+    Deprecation: {
+      description:
+        'When the operation was deprecated: a Structured Field Date, `@<unix seconds>` (RFC 9745 §2.1)',
+      schema: { type: 'string' as const },
+    },
+    ...(withSunset
+      ? {
+          Sunset: {
+            description: 'When the operation stops answering, as an HTTP-date (RFC 8594 §3)',
+            schema: { type: 'string' as const },
+          },
+        }
+      : {}),
+    Link: {
+      description:
+        'The page that says what replaces the operation: `rel="deprecation"` (RFC 9745 §3)' +
+        (withSunset ? ' and `rel="sunset"` (RFC 8594 §6)' : ''),
+      schema: { type: 'string' as const },
+    },
+  };
+}
+
 function problem(description: string) {
   return {
     description,
@@ -118,9 +143,15 @@ function registerOperation(
   security: { bearerAuth: never[] }[],
 ): void {
   const { response } = decl;
-  const success = response.schema
+  const plain = response.schema
     ? ok(response.description, response.schema, response.alternatives ?? {}, response.example)
     : { description: response.description, headers: rateLimitHeaders };
+  const success = decl.deprecation
+    ? {
+        ...plain,
+        headers: { ...plain.headers, ...deprecationResponseHeaders(decl.deprecation.sunset !== undefined) },
+      }
+    : plain;
   const extra: Record<number, ReturnType<typeof problem>> = {};
   for (const [status, description] of Object.entries(decl.problems ?? {})) {
     extra[Number(status)] = problem(description);

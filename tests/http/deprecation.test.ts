@@ -86,10 +86,19 @@ describe('a deprecated operation', () => {
 
   it('is marked deprecated in the OpenAPI document with its dates and link', () => {
     const doc = buildOpenApiDocument([...v1Operations, oldSaturation]) as unknown as {
-      paths: Record<string, Record<string, { deprecated?: boolean; description?: string }>>;
+      paths: Record<
+        string,
+        Record<
+          string,
+          { deprecated?: boolean; description?: string; responses: Record<string, { headers?: object }> }
+        >
+      >;
     };
     const op = doc.paths['/v1/__test/old-saturation']!.get!;
     expect(op.deprecated).toBe(true);
+    expect(Object.keys(op.responses['200']!.headers ?? {})).toEqual(
+      expect.arrayContaining(['Deprecation', 'Sunset', 'Link']),
+    );
     expect(op.description).toContain('Deprecated** since 2031-01-01');
     expect(op.description).toContain('stops answering on 2031-12-31');
     expect(op.description).toContain(link);
