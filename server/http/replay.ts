@@ -37,6 +37,20 @@ function notReplayable(entryId: number, why: string) {
   );
 }
 
+const running = new Map<number, Promise<unknown>>();
+
+/** Runs `fn` after every earlier call for the same account has settled. */
+async function oneAtATime<T>(accountId: number, fn: () => Promise<T>): Promise<T> {
+  const mine = (running.get(accountId) ?? Promise.resolve()).then(fn, fn);
+  const tail = mine.catch(() => undefined);
+  running.set(accountId, tail);
+  try {
+    return await mine;
+  } finally {
+    if (running.get(accountId) === tail) running.delete(accountId);
+  }
+}
+
 /** Whether a parsed body holds a value the log replaced (a redacted secret, a cut nesting). */
 function holdsRedaction(value: unknown): boolean {
   if (typeof value === 'string')
@@ -228,45 +242,50 @@ export async function replayEntry(
         },
       },
     );
-  const used = await committedUnitsThisMonth(deps.store, account.id, now);
-  if (used + units > quota) throw quotaProblem(Math.max(0, quota - used));
+  // One replay of an account at a time on this node: the quota check and the charge of one are
+  // not interleaved with another's (the /v1 metering keeps its own in-flight count).
+  const { today, charged, requestId } = await oneAtATime(account.id, async () => {
+    const used = await committedUnitsThisMonth(deps.store, account.id, now);
+    if (used + units > quota) throw quotaProblem(Math.max(0, quota - used));
 
-  let released = 0;
-  const started = performance.now();
-  const result = await runOperation(
-    compileOperation(decl),
-    { params, body },
-    {
+    let released = 0;
+    const started = performance.now();
+    const result = await runOperation(
+      compileOperation(decl),
+      { params, body },
+      {
+        accountId: account.id,
+        store: deps.store,
+        engineVersion: deps.engineVersion,
+        clock: deps.clock,
+        releaseUnits: (n) => (released += n),
+      },
+    );
+    // The answer as a client would have read it (dates as strings, no undefined).
+    const today = JSON.parse(JSON.stringify(result)) as unknown;
+    const charged = Math.max(0, units - released);
+    const requestId = randomUUID();
+    const limit = deps.config.logBodyLimitBytes;
+    const record: RequestRecord = {
+      at: now,
       accountId: account.id,
-      store: deps.store,
+      keyId: row.keyId,
+      operation: decl.operation.id,
+      status: 200,
+      units: charged,
+      latencyMs: Math.round(performance.now() - started),
+      requestId,
       engineVersion: deps.engineVersion,
-      clock: deps.clock,
-      releaseUnits: (n) => (released += n),
-    },
-  );
-  // The answer as a client would have read it (dates as strings, no undefined).
-  const today = JSON.parse(JSON.stringify(result)) as unknown;
-  const charged = Math.max(0, units - released);
-  const requestId = randomUUID();
-  const limit = deps.config.logBodyLimitBytes;
-  const record: RequestRecord = {
-    at: now,
-    accountId: account.id,
-    keyId: row.keyId,
-    operation: decl.operation.id,
-    status: 200,
-    units: charged,
-    latencyMs: Math.round(performance.now() - started),
-    requestId,
-    engineVersion: deps.engineVersion,
-    method: 'POST',
-    path: routePath,
-    requestBody: account.retainRequestBodies ? row.requestBody : null,
-    responseBody: account.retainRequestBodies ? logBody(today, limit) : null,
-  };
-  await recordRequest(deps.store, record);
-  const refused = refusalOf(record);
-  if (refused) throw quotaProblem(refused.remaining);
+      method: 'POST',
+      path: routePath,
+      requestBody: account.retainRequestBodies ? row.requestBody : null,
+      responseBody: account.retainRequestBodies ? logBody(today, limit) : null,
+    };
+    await recordRequest(deps.store, record);
+    const refused = refusalOf(record);
+    if (refused) throw quotaProblem(refused.remaining);
+    return { today, charged, requestId };
+  });
 
   const logged = loggedResult(row);
   const todayPart = { engineVersion: deps.engineVersion, result: today };

@@ -9,6 +9,8 @@ import { recordRequest } from '../../server/accounts/metering.js';
 import { consoleRouteModules } from '../../server/console/index.js';
 import { requestLogRoutes } from '../../server/console/request-log.js';
 import { multipleEffect } from '../../server/http/v1/operations/evaporators.js';
+import { getRequestLogEntry } from '../../server/accounts/request-log-query.js';
+import { replayEntry } from '../../server/http/replay.js';
 import type { ReplayResult } from '../../shared/console/request-log.js';
 import { makeHarness, usageRows, type Harness } from '../http/helpers.js';
 import { signInOnePerRole, type ConsoleAgent } from './console-agents.js';
@@ -263,6 +265,30 @@ describe('replay and the quota', () => {
     );
     expect(Number(res.headers['retry-after'])).toBeGreaterThan(0);
     expect(await usageRows(h.store)).toEqual(before);
+  });
+});
+
+describe('replay and the quota under concurrency', () => {
+  it('charges only one of two replays sent at once when the quota covers one', async () => {
+    await setUp({ quota: 2 });
+    const id = await logged('/v1/steam/state', STATE_BODY); // 1 of 2 units spent
+    const [a, b] = await Promise.all([replay(id), replay(id)]);
+    expect([a.status, b.status].sort()).toEqual([200, 429]);
+    // The service itself, called twice in the same turn: the two checks may not both pass.
+    const row = (await getRequestLogEntry(h.store, id, null))!;
+    const again = await Promise.allSettled([
+      replayEntry(h.deps, row, '/test'),
+      replayEntry(h.deps, row, '/test'),
+    ]);
+    expect(again.map((r) => r.status)).toEqual(['rejected', 'rejected']);
+    await h.store.execute(sql`UPDATE accounts SET monthly_unit_quota = 3 WHERE id = ${h.accountId}`);
+    const third = await Promise.allSettled([
+      replayEntry(h.deps, row, '/test'),
+      replayEntry(h.deps, row, '/test'),
+    ]);
+    expect(third.map((r) => r.status).sort()).toEqual(['fulfilled', 'rejected']);
+    const charged = (await usageRows(h.store)).reduce((sum, r) => sum + r.units, 0);
+    expect(charged).toBe(3);
   });
 });
 
