@@ -46,7 +46,8 @@ import { monthStartUtc, nextMonthStartUtc, unitsUsedThisMonth, utcDay, utcMonth 
 export interface RequestRecord {
   at: Date;
   accountId: number;
-  keyId: number;
+  /** Null for work done without a key (a replay run from the console of a deleted key's entry). */
+  keyId: number | null;
   operation: string;
   status: number;
   units: number;
@@ -255,7 +256,7 @@ function prepareCommit(sqlite: Sqlite): CommitRecords {
       );
       logRow(r, at);
       addToRollUp(daily, r);
-      lastUse.set(r.keyId, Math.max(lastUse.get(r.keyId) ?? at, at));
+      if (r.keyId !== null) lastUse.set(r.keyId, Math.max(lastUse.get(r.keyId) ?? at, at));
     }
     for (const d of daily.values())
       upsertDaily.run(d.accountId, d.day, d.operation, d.requests, d.units, d.errors);
@@ -409,7 +410,7 @@ async function writePostgres(tx: Store, records: readonly RequestRecord[]): Prom
     });
     addToRollUp(daily, r);
     const at = r.at.getTime();
-    lastUse.set(r.keyId, Math.max(lastUse.get(r.keyId) ?? at, at));
+    if (r.keyId !== null) lastUse.set(r.keyId, Math.max(lastUse.get(r.keyId) ?? at, at));
   }
   const rolls = [...daily.values()].sort(
     (a, b) =>

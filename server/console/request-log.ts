@@ -1,7 +1,9 @@
 /**
  * Console routes for the request log: GET /request-log (server-side paging, sort and filters),
  * GET /request-log/:id (redacted bodies and timings), GET /request-log/export.csv (the same
- * filters, at most CSV_ROW_CAP rows). Developers see only their accounts' rows.
+ * filters, at most CSV_ROW_CAP rows), POST /request-log/:id/replay (the logged calculation run again
+ * on today's engine, metered to the entry's account; server/http/replay.ts). Developers see only
+ * their accounts' rows.
  *
  * Also `sendCsv`, the CSV attachment response the usage export shares (the writer: ../http/csv.ts).
  */
@@ -16,6 +18,7 @@ import {
   RequestLogPageSchema,
   RequestLogQuerySchema,
   RequestLogSortSchema,
+  ReplayResultSchema,
   type RequestLogFilter,
   type RequestLogItem,
 } from '../../shared/console/request-log.js';
@@ -30,6 +33,7 @@ import {
 } from '../accounts/request-log-query.js';
 import { toCsv } from '../http/csv.js';
 import { problem } from '../http/problem.js';
+import { replayEntry } from '../http/replay.js';
 import { queryScope, scopeOf } from './accounts.js';
 import { ALL_ROLES, consoleRoute, type ConsoleRouteModule } from './route.js';
 
@@ -80,6 +84,17 @@ function checkRange(q: RequestLogFilter): void {
 
 export const requestLogRoutes: ConsoleRouteModule = {
   register(router, deps) {
+    /** The entry if the user may see it: 404 when there is none, 403 outside the user's accounts. */
+    const visibleEntry = async (id: number, user: Parameters<typeof scopeOf>[0]) => {
+      const row = await getRequestLogEntry(deps.store, id, null);
+      if (!row) throw problem('not-found', `There is no request-log entry ${id}.`);
+      const scope = scopeOf(user);
+      if (scope !== null && (row.accountId === null || !scope.includes(row.accountId))) {
+        throw problem('forbidden', `Request-log entry ${id} belongs to an account you are not a member of.`);
+      }
+      return row;
+    };
+
     consoleRoute(router, {
       method: 'get',
       path: '/request-log',
@@ -146,15 +161,7 @@ export const requestLogRoutes: ConsoleRouteModule = {
       request: { params: RequestLogIdParamsSchema },
       response: RequestLogDetailSchema,
       handler: async ({ params, user }) => {
-        const row = await getRequestLogEntry(deps.store, params.id, null);
-        if (!row) throw problem('not-found', `There is no request-log entry ${params.id}.`);
-        const scope = scopeOf(user);
-        if (scope !== null && (row.accountId === null || !scope.includes(row.accountId))) {
-          throw problem(
-            'forbidden',
-            `Request-log entry ${params.id} belongs to an account you are not a member of.`,
-          );
-        }
+        const row = await visibleEntry(params.id, user);
         const account = row.accountId === null ? undefined : await getAccount(deps.store, row.accountId);
         return {
           ...item(row),
@@ -169,6 +176,20 @@ export const requestLogRoutes: ConsoleRouteModule = {
             latencyMs: row.latencyMs,
           },
         };
+      },
+    });
+
+    consoleRoute(router, {
+      method: 'post',
+      path: '/request-log/:id/replay',
+      roles: ALL_ROLES,
+      summary:
+        'Run a logged calculation again on today’s engine: both results, the differences and the changed model sources (metered to the entry’s account)',
+      request: { params: RequestLogIdParamsSchema },
+      response: ReplayResultSchema,
+      handler: async ({ params, user }) => {
+        const row = await visibleEntry(params.id, user);
+        return replayEntry(deps, row, `/console-api/request-log/${params.id}/replay`);
       },
     });
   },

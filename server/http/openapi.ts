@@ -11,7 +11,7 @@ import { Router } from 'express';
 import swaggerUi from 'swagger-ui-express';
 import { z } from 'zod';
 import { ProblemSchema, UNIT_GRAMMAR } from '../../shared/contracts/index.js';
-import type { AnyOperation } from './v1/operation.js';
+import { deprecationNote, type AnyOperation } from './v1/operation.js';
 import { v1Operations } from './v1/operations/index.js';
 
 extendZodWithOpenApi(z);
@@ -31,6 +31,31 @@ const rateLimitHeaders = {
     schema: { type: 'string' as const },
   },
 };
+
+/** The headers every answer of a deprecated operation carries (server/http/v1/operation.ts). */
+function deprecationResponseHeaders(withSunset: boolean) {
+  return {
+    Deprecation: {
+      description:
+        'When the operation was deprecated: a Structured Field Date, `@<unix seconds>` (RFC 9745 §2.1)',
+      schema: { type: 'string' as const },
+    },
+    ...(withSunset
+      ? {
+          Sunset: {
+            description: 'When the operation stops answering, as an HTTP-date (RFC 8594 §3)',
+            schema: { type: 'string' as const },
+          },
+        }
+      : {}),
+    Link: {
+      description:
+        'The page that says what replaces the operation: `rel="deprecation"` (RFC 9745 §3)' +
+        (withSunset ? ' and `rel="sunset"` (RFC 8594 §6)' : ''),
+      schema: { type: 'string' as const },
+    },
+  };
+}
 
 function problem(description: string) {
   return {
@@ -159,10 +184,16 @@ function registerOperation(
 ): void {
   const { response } = decl;
   const post = decl.method === 'post';
-  const success = response.schema
+  const plain = response.schema
     ? ok(response.description, response.schema, response.alternatives ?? {}, response.example)
     : { description: response.description, headers: rateLimitHeaders };
-  if (post) success.headers = { ...rateLimitHeaders, ...replayedHeader };
+  if (post) plain.headers = { ...rateLimitHeaders, ...replayedHeader };
+  const success = decl.deprecation
+    ? {
+        ...plain,
+        headers: { ...plain.headers, ...deprecationResponseHeaders(decl.deprecation.sunset !== undefined) },
+      }
+    : plain;
   const extra: Record<number, ReturnType<typeof problem>> = post ? { ...idempotencyProblems } : {};
   for (const [status, description] of Object.entries(decl.problems ?? {})) {
     // An operation's own wording of a status comes first; the key's cases are added to it.
@@ -172,13 +203,16 @@ function registerOperation(
     extra[Number(status)] = own;
   }
   const request = { ...requestOf(decl), ...(post ? { headers: [idempotencyKey] } : {}) };
+  const dep = decl.deprecation;
+  const description = [decl.description, dep ? deprecationNote(dep) : undefined].filter(Boolean).join('\n\n');
   registry.registerPath({
     method: decl.method,
     path: decl.path,
     operationId: decl.openApiName,
     tags: [decl.tag],
     summary: decl.summary,
-    ...(decl.description !== undefined ? { description: decl.description } : {}),
+    ...(description ? { description } : {}),
+    ...(dep ? { deprecated: true } : {}),
     security,
     ...(Object.keys(request).length > 0 ? { request } : {}),
     responses: {
@@ -196,8 +230,8 @@ function registerOperation(
   });
 }
 
-/** Builds a fresh registry holding every v1 calculation route. */
-export function buildRegistry(): OpenAPIRegistry {
+/** Builds a fresh registry holding every v1 calculation route (or the given declarations). */
+export function buildRegistry(operations: readonly AnyOperation[] = v1Operations): OpenAPIRegistry {
   const registry = new OpenAPIRegistry();
   registry.registerComponent('securitySchemes', 'bearerAuth', {
     type: 'http',
@@ -207,14 +241,16 @@ export function buildRegistry(): OpenAPIRegistry {
   const security = [{ bearerAuth: [] }];
 
   const idempotencyKey = registry.registerParameter('IdempotencyKey', idempotencyKeyHeader);
-  for (const decl of v1Operations) registerOperation(registry, decl, security, idempotencyKey);
+  for (const decl of operations) registerOperation(registry, decl, security, idempotencyKey);
 
   return registry;
 }
 
 /** The complete OpenAPI 3.1 document (deterministic: same code → same JSON). */
-export function buildOpenApiDocument(): ReturnType<OpenApiGeneratorV31['generateDocument']> {
-  const generator = new OpenApiGeneratorV31(buildRegistry().definitions, {
+export function buildOpenApiDocument(
+  operations: readonly AnyOperation[] = v1Operations,
+): ReturnType<OpenApiGeneratorV31['generateDocument']> {
+  const generator = new OpenApiGeneratorV31(buildRegistry(operations).definitions, {
     sortComponents: 'alphabetically',
   });
   return generator.generateDocument({

@@ -177,6 +177,12 @@ export const problemCatalogue = {
     description:
       'The server is too busy to take this request now (for example, too many password checks are queued). Nothing was changed; retry after the Retry-After header.',
   },
+  'not-replayable': {
+    status: 422,
+    title: 'Not replayable',
+    description:
+      'The logged request cannot be run again: its body was not retained, was cut at the log limit or had values redacted, or the operation reads input that is not logged (a query string, an upload) or changes stored data. Nothing was run or charged.',
+  },
   'calculation-timeout': {
     status: 503,
     title: 'Calculation timed out',

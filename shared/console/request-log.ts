@@ -100,3 +100,56 @@ export const REQUEST_LOG_CSV_COLUMNS = [
   'units',
   'idempotentReplay',
 ] as const;
+
+/** One field that differs between the logged result and today's (dotted path, `[i]` for items). */
+export const ReplayDifferenceSchema = z
+  .object({
+    field: z.string().meta({ example: 'steamEconomy' }),
+    change: z.enum(['changed', 'added', 'removed']).meta({
+      description: 'added: only today’s result has the field; removed: only the logged one',
+    }),
+    logged: z.unknown().optional(),
+    today: z.unknown().optional(),
+    absolute: z.number().optional().meta({ description: 'Numbers: today − logged, in the field’s unit' }),
+    relative: z
+      .number()
+      .nullable()
+      .optional()
+      .meta({ description: 'Numbers: (today − logged) / |logged|; null when the logged value is 0' }),
+  })
+  .meta({ id: 'ConsoleReplayDifference' });
+export type ReplayDifference = z.infer<typeof ReplayDifferenceSchema>;
+
+export const ReplayModelChangeSchema = z
+  .object({
+    id: z.string(),
+    change: z.enum(['changed', 'added', 'removed']),
+    logged: z.string().optional().meta({ description: 'The source the logged result cites' }),
+    today: z.string().optional().meta({ description: 'The source today’s result cites' }),
+  })
+  .meta({ id: 'ConsoleReplayModelChange' });
+
+export const ReplayResultSchema = z
+  .object({
+    entryId: z.int(),
+    operation: z.string().meta({ description: 'The dotted operation id that was run again' }),
+    unitsCharged: z.int().min(0).meta({ description: 'Units charged to the entry’s account for the replay' }),
+    requestId: z.string().meta({ description: 'The request id of the replay in the request log' }),
+    responseStored: z
+      .boolean()
+      .meta({ description: 'False when no comparable response was logged: only today’s result is given' }),
+    note: z.string().optional().meta({ description: 'Why there is no comparison, when there is none' }),
+    logged: z.object({
+      engineVersion: z.string(),
+      result: z.unknown().meta({ description: 'The logged response body (null when not stored)' }),
+    }),
+    today: z.object({ engineVersion: z.string(), result: z.unknown() }),
+    differences: z
+      .array(ReplayDifferenceSchema)
+      .meta({ description: 'Fields that differ (provenance excluded); empty when the results agree' }),
+    modelSources: z
+      .array(ReplayModelChangeSchema)
+      .meta({ description: 'Models of provenance whose cited source differs, or that one side only uses' }),
+  })
+  .meta({ id: 'ConsoleReplayResult' });
+export type ReplayResult = z.infer<typeof ReplayResultSchema>;

@@ -1,7 +1,9 @@
 /**
  * The request log (Pinia setup store): one server-side page of GET /console-api/request-log,
  * the filters that produced it, and the detail shown in the drawer (GET /request-log/:id).
- * Paging, sorting and filtering happen on the server; this store only builds the query.
+ * Paging, sorting and filtering happen on the server; this store only builds the query. "Run
+ * again" (POST /request-log/:id/replay) runs the shown entry on today's engine; its answer is
+ * kept with the detail it belongs to.
  */
 import { defineStore } from 'pinia';
 import { computed, ref } from 'vue';
@@ -9,6 +11,7 @@ import type {
   RequestLogDetail,
   RequestLogItem,
   RequestLogPage,
+  ReplayResult,
 } from '../../../shared/console/request-log.js';
 import { api as defaultApi, ApiProblem, asProblem, type ApiClient } from '../api/client.js';
 import {
@@ -39,6 +42,10 @@ export const useRequestLogStore = defineStore('requestLog', () => {
   const detail = ref<RequestLogDetail | null>(null);
   const detailLoading = ref(false);
   const detailError = ref<ApiProblem | null>(null);
+
+  const replay = ref<ReplayResult | null>(null);
+  const replayLoading = ref(false);
+  const replayError = ref<ApiProblem | null>(null);
 
   /** Only the last request's answer is kept (a slow old page must not overwrite a new one). */
   let generation = 0;
@@ -93,6 +100,7 @@ export const useRequestLogStore = defineStore('requestLog', () => {
     detailLoading.value = true;
     detailError.value = null;
     detail.value = null;
+    clearReplay();
     try {
       detail.value = await client.get<RequestLogDetail>(`/request-log/${encodeURIComponent(String(id))}`);
     } catch (err) {
@@ -105,6 +113,31 @@ export const useRequestLogStore = defineStore('requestLog', () => {
   function closeDetail(): void {
     detail.value = null;
     detailError.value = null;
+    clearReplay();
+  }
+
+  function clearReplay(): void {
+    replay.value = null;
+    replayError.value = null;
+  }
+
+  /** Runs the shown entry again on today's engine (charged to its account like the original). */
+  async function runAgain(): Promise<void> {
+    const shown = detail.value;
+    if (!shown) return;
+    replayLoading.value = true;
+    clearReplay();
+    try {
+      const answer = await client.post<ReplayResult>(
+        `/request-log/${encodeURIComponent(String(shown.id))}/replay`,
+      );
+      // The drawer may show another entry by now.
+      if (detail.value?.id === shown.id) replay.value = answer;
+    } catch (err) {
+      if (detail.value?.id === shown.id) replayError.value = asProblem(err);
+    } finally {
+      replayLoading.value = false;
+    }
   }
 
   return {
@@ -127,5 +160,9 @@ export const useRequestLogStore = defineStore('requestLog', () => {
     resetFilters,
     openDetail,
     closeDetail,
+    replay,
+    replayLoading,
+    replayError,
+    runAgain,
   };
 });

@@ -129,6 +129,18 @@ export interface OperationDeclaration<
    * inline, which is faster for light calls.
    */
   engine?: EnginePart<OperationInput<P, Q, B, L>, R>;
+  /**
+   * The operation is deprecated (DEVELOPERS.md "How /v1 evolves"): every answer carries the
+   * `Deprecation` (RFC 9745) and, with `sunset`, `Sunset` (RFC 8594) headers and a `Link` to
+   * `link`; the OpenAPI document marks it `deprecated` and states the dates.
+   */
+  deprecation?: Deprecation;
+  /**
+   * Whether a logged call may be run again on today's engine (the console's replay,
+   * server/http/replay.ts). Default: an operation a batch may run (its catalogue entry has a
+   * `batchName`: a calculation that changes nothing stored). Replay needs the retained body; the query string is never logged.
+   */
+  replay?: boolean;
   /** How a `run` result is sent: 'calculation' (the non-finite guard) or Express's res.json. */
   send?: 'calculation' | 'json';
   /** For an operation that answers itself (content negotiation, uploads): replaces `run`. */
@@ -149,6 +161,44 @@ export interface OperationDeclaration<
     /** Units of one case (default: the catalogue's base units). */
     units?: (c: Record<string, unknown>) => number;
   };
+}
+
+/** When an operation was deprecated, when it goes away, and the page that says what replaces it. */
+export interface Deprecation {
+  since: Date;
+  sunset?: Date;
+  /** An absolute URL of the documentation page (what replaces the operation, how to move). */
+  link: string;
+}
+
+/**
+ * The response headers of a deprecated operation:
+ * - `Deprecation: @<unix seconds>`: RFC 9745 §2.1, a Structured Field Date (RFC 9651 §3.3.7);
+ * - `Sunset: <IMF-fixdate>`: RFC 8594 §3, an HTTP-date (RFC 9110 §5.6.7);
+ * - `Link: <url>; rel="deprecation"; type="text/html"` (RFC 9745 §3) and, with a sunset,
+ *   `<url>; rel="sunset"; type="text/html"` (RFC 8594 §6).
+ *
+ * E.g. a deprecation since 2032-01-01T00:00:00Z is sent as `Deprecation: @1956528000`.
+ */
+export function deprecationHeaders(d: Deprecation): Record<string, string> {
+  const links = [`<${d.link}>; rel="deprecation"; type="text/html"`];
+  const headers: Record<string, string> = { Deprecation: `@${Math.floor(d.since.getTime() / 1000)}` };
+  if (d.sunset) {
+    headers.Sunset = d.sunset.toUTCString();
+    links.push(`<${d.link}>; rel="sunset"; type="text/html"`);
+  }
+  headers.Link = links.join(', ');
+  return headers;
+}
+
+/** The sentence the OpenAPI description of a deprecated operation ends with. */
+export function deprecationNote(d: Deprecation): string {
+  const day = (date: Date) => date.toISOString().slice(0, 10);
+  return (
+    `**Deprecated** since ${day(d.since)}` +
+    (d.sunset ? `; it stops answering on ${day(d.sunset)} (the \`Sunset\` header)` : '') +
+    `. Every answer carries the \`Deprecation\` header and a \`Link\` to ${d.link}, which says what replaces it.`
+  );
 }
 
 export interface EnginePart<I, R> {
@@ -362,10 +412,21 @@ export function mountOperation(router: Router, decl: AnyOperation, deps: AppDeps
         else if (decl.send === 'json') res.status(status).json(result);
         else sendCalculation(res, result, status);
       };
+  const deprecation = decl.deprecation ? deprecationHeaders(decl.deprecation) : undefined;
+  // Set first, so every answer of the operation carries them (problems included).
+  const announce: RequestHandler[] = deprecation
+    ? [
+        (_req, res, next) => {
+          for (const [name, value] of Object.entries(deprecation)) res.append(name, value);
+          next();
+        },
+      ]
+    : [];
   // Every POST takes an Idempotency-Key (middleware/idempotency.ts), after the scope and quota
   // guard (a refused request is not an answer to keep) and before any work.
   router[decl.method](
     routerPath(decl.path),
+    ...announce,
     guardOperation(decl.operation),
     ...(decl.method === 'post' ? [idempotency(deps.store, deps.clock)] : []),
     ...(decl.middleware ?? []),
