@@ -1,0 +1,409 @@
+/**
+ * A sweep: one request of a calculation operation repeated while one or two of its body's fields
+ * run through lists or ranges. The operations a sweep can run are the declarations with a catalogue
+ * `batchName` (as for a batch), so a new calculation is sweepable without code here.
+ *
+ * Each point is the base body with the varied values put in at their dotted paths, then parsed by
+ * the operation's own contract and run by the batch's machinery (./batch.ts `runCases`: parsing a
+ * slice per turn of the event loop, the engine tasks in the worker pool), so a point's result and
+ * problem are exactly those of the single call (field paths relative to the operation's body).
+ *
+ * Metering, as the batch: the sweep is metered as `sweeps.run` under the `batch` scope, and each
+ * point costs what its single call costs. The points' costs are reserved in order before any runs,
+ * as far as the quota reaches: the points beyond are refused with the quota problem (a sweep of
+ * which not even the first point fits is refused with 429). The points that fail are given back,
+ * so units charged = the sum of the succeeding points' costs.
+ *
+ * Cautions and provenance, the same for every point, are lifted out of the rows and given once.
+ * `Accept: text/csv` gives a flat table: the varied fields, `status`, the result columns (`columns=`
+ * or every scalar of the result) and `error`.
+ */
+import {
+  MAX_SWEEP_POINTS,
+  SweepCsvQuerySchema,
+  SweepListFieldSchema,
+  SweepRangeFieldSchema,
+  SweepRequestSchema,
+  SweepResponseSchema,
+  type SweepField,
+  type SweepResponse,
+} from '../../../../shared/contracts/index.js';
+import { operationCatalogue } from '../../../../shared/operations.js';
+import { z } from 'zod';
+import { toCsv } from '../../csv.js';
+import { chargeUnits, releaseUnits } from '../../middleware/operation.js';
+import { problem, ProblemError } from '../../problem.js';
+import { findNonFinite } from '../../send.js';
+import { validate } from '../../validate.js';
+import {
+  compileOperation,
+  declareOperation,
+  poolProblem,
+  type AnyOperation,
+  type CompiledOperation,
+} from '../operation.js';
+import { caseProblem, CASES_PER_TURN, errorCell, flatten, nextTurn, problemBody, runCases } from './batch.js';
+
+type Value = number | string | boolean;
+type Row = SweepResponse['rows'][number];
+
+/** Most columns a CSV answer may name. */
+const MAX_COLUMNS = 200;
+
+/** `a.b[2].c` → ['a', 'b', 2, 'c']. */
+function segments(path: string): (string | number)[] {
+  return path
+    .split(/\.|\[(\d+)\]/)
+    .filter((k) => k !== undefined && k !== '')
+    .map((k) => (/^\d+$/.test(k) ? Number(k) : k));
+}
+
+interface ZodDef {
+  type: string;
+  innerType?: object;
+  in?: object;
+  shape?: Record<string, object>;
+  element?: object;
+  options?: readonly object[];
+}
+const defOf = (schema: object) => (schema as { _zod: { def: ZodDef } })._zod.def;
+
+/**
+ * Whether `path` names a value of the schema: each key a field of an object (own, declared), each
+ * index an entry of an array, ending on something that is not only an object (a quantity, a
+ * number, a string, a choice). Unions are searched in every branch.
+ */
+function schemaHasPath(schema: object, path: readonly (string | number)[]): boolean {
+  const def = defOf(schema);
+  switch (def.type) {
+    case 'optional':
+    case 'nullable':
+    case 'default':
+    case 'readonly':
+    case 'prefault':
+      return def.innerType ? schemaHasPath(def.innerType, path) : false;
+    case 'pipe':
+      return def.in ? schemaHasPath(def.in, path) : false;
+    case 'union':
+      return (def.options ?? []).some((o) => schemaHasPath(o, path));
+    case 'object': {
+      if (path.length === 0) return false;
+      const [key, ...rest] = path;
+      if (typeof key !== 'string' || !Object.hasOwn(def.shape ?? {}, key)) return false;
+      return schemaHasPath(def.shape![key]!, rest);
+    }
+    case 'array': {
+      if (path.length === 0) return false;
+      const [key, ...rest] = path;
+      return typeof key === 'number' && def.element ? schemaHasPath(def.element, rest) : false;
+    }
+    default:
+      return path.length === 0;
+  }
+}
+
+/** The base with `value` at `path`: a copy along the path only (the base itself is not changed). */
+function withValue(node: unknown, path: readonly (string | number)[], value: unknown): unknown {
+  if (path.length === 0) return value;
+  const key = path[0]!;
+  const rest = path.slice(1);
+  if (typeof key === 'number') {
+    const arr = Array.isArray(node) ? [...(node as unknown[])] : [];
+    arr[key] = withValue(arr[key], rest, value);
+    // An index past the end leaves holes: JSON would send null there, so does the copy.
+    for (let i = 0; i < arr.length; i++) if (!(i in arr)) arr[i] = null;
+    return arr;
+  }
+  const obj =
+    node !== null && typeof node === 'object' && !Array.isArray(node)
+      ? { ...(node as Record<string, unknown>) }
+      : {};
+  const child = Object.hasOwn(obj, key) ? obj[key] : undefined;
+  // Defined as an own data property, so no key can reach a prototype.
+  Object.defineProperty(obj, key, {
+    value: withValue(child, rest, value),
+    enumerable: true,
+    writable: true,
+    configurable: true,
+  });
+  return obj;
+}
+
+/** The values of a varied field, in order: the list, or the range's points with both ends exact. */
+export function sweepValues(f: SweepField): Value[] {
+  if ('values' in f) return f.values;
+  const n = f.steps;
+  return Array.from({ length: n }, (_, i) => {
+    if (i === 0) return f.from;
+    if (i === n - 1) return f.to;
+    const t = i / (n - 1);
+    return f.spacing === 'log'
+      ? Math.exp(Math.log(f.from) + t * (Math.log(f.to) - Math.log(f.from)))
+      : // Weighted, not from + t·(to − from): the difference of two huge bounds would overflow.
+        f.from * (1 - t) + f.to * t;
+  });
+}
+
+/** Field errors of the varied fields that the operation's body does not have. */
+function checkFields(op: CompiledOperation, vary: readonly SweepField[], operation: string): void {
+  const schema = op.body?.schema;
+  const errors = vary.flatMap((f, i) =>
+    schema && schemaHasPath(schema, segments(f.field))
+      ? []
+      : [
+          {
+            field: `vary[${i}].field`,
+            message: `"${f.field}" is not a value field of the ${operation} request body`,
+          },
+        ],
+  );
+  if (errors.length > 0)
+    throw problem('validation-failed', `${errors[0]!.field}: ${errors[0]!.message}.`, { errors });
+}
+
+/** Two cautions/provenance values are the same (plain JSON data). */
+const same = (a: unknown, b: unknown) => JSON.stringify(a) === JSON.stringify(b);
+
+/** The sweep operation over the declarations that name a batch name. */
+export function sweepOperation(operations: readonly AnyOperation[]) {
+  const byName = new Map<string, CompiledOperation>();
+  for (const decl of operations) {
+    const name = (decl.operation as { batchName?: string }).batchName;
+    if (name !== undefined) byName.set(name, compileOperation(decl));
+  }
+  return declareOperation({
+    operation: operationCatalogue.sweep,
+    method: 'post',
+    path: '/v1/sweeps',
+    openApiName: 'postSweep',
+    tag: 'Batch',
+    summary: `One calculation over lists or ranges of one or two of its fields (at most ${MAX_SWEEP_POINTS} points)`,
+    description:
+      "Each point is `base` with the varied fields' values put in at their dotted paths, checked and run exactly as the single call " +
+      '(its result and problem are the single call’s; field paths are those of the operation’s body). Rows come in order, the first field varying slowest. ' +
+      'Each point costs what its single call costs; a refused point costs nothing. The quota is reserved point by point before any runs: when it runs out, ' +
+      'the remaining points are refused with the quota problem (429 if not even the first point fits). Cautions and provenance, the same for every point, are given once. ' +
+      'Send `Accept: text/csv` for a flat table (the varied fields, `status`, the result columns named by `columns=`, `error`).',
+    request: {
+      query: SweepCsvQuerySchema,
+      body: SweepRequestSchema,
+      example: {
+        name: 'pressure-and-feed',
+        summary: 'An invented caustic evaporator over body pressure and feed temperature',
+      },
+    },
+    response: {
+      description: 'One row per point',
+      schema: SweepResponseSchema,
+      alternatives: { 'text/csv': { schema: z.string().meta({ description: 'One line per point' }) } },
+    },
+    handle: async (req, res, ctx) => {
+      const raw = req.body as { vary?: unknown } | undefined;
+      // Each varied field is checked by its own shape first, so a refusal names its key
+      // (`vary[0].steps`) rather than "matches neither a list nor a range".
+      if (raw && typeof raw === 'object' && Array.isArray(raw.vary)) {
+        raw.vary.forEach((f: unknown, i) => {
+          if (f !== null && typeof f === 'object' && !Array.isArray(f))
+            validate('values' in f ? SweepListFieldSchema : SweepRangeFieldSchema, f, `vary[${i}]`);
+        });
+      }
+      const sweep = validate(SweepRequestSchema, req.body);
+      const query = validate(SweepCsvQuerySchema, req.query);
+      const total = sweep.vary.reduce((n, f) => n * ('values' in f ? f.values.length : f.steps), 1);
+      if (total > MAX_SWEEP_POINTS) {
+        throw problem(
+          'validation-failed',
+          `vary: the fields make ${total} points; at most ${MAX_SWEEP_POINTS} are accepted per sweep.`,
+          {
+            errors: [
+              { field: 'vary', message: `makes ${total} points; at most ${MAX_SWEEP_POINTS} are accepted` },
+            ],
+          },
+        );
+      }
+      const columns = query.columns
+        ?.split(',')
+        .map((c) => c.trim())
+        .filter((c) => c !== '');
+      if (columns && columns.length > MAX_COLUMNS) {
+        throw problem('validation-failed', `columns: at most ${MAX_COLUMNS} columns may be named.`, {
+          errors: [{ field: 'columns', message: `names ${columns.length} columns; at most ${MAX_COLUMNS}` }],
+        });
+      }
+      const op = byName.get(sweep.operation)!;
+      checkFields(op, sweep.vary, sweep.operation);
+
+      // The points, the first field varying slowest.
+      const lists = sweep.vary.map(sweepValues);
+      lists.forEach((list, i) => {
+        if (list.some((v) => typeof v === 'number' && !Number.isFinite(v))) {
+          throw problem('validation-failed', `vary[${i}]: the range's points are not finite numbers.`, {
+            errors: [
+              { field: `vary[${i}]`, message: 'gives points beyond the finite numbers; narrow from and to' },
+            ],
+          });
+        }
+      });
+      const paths = sweep.vary.map((f) => segments(f.field));
+      const points: { values: Record<string, Value>; body: Record<string, unknown> }[] = [];
+      const [outer, inner] = [lists[0]!, lists[1] ?? [undefined]];
+      for (const a of outer) {
+        for (const b of inner) {
+          let body = withValue(sweep.base, paths[0]!, a) as Record<string, unknown>;
+          const values: Record<string, Value> = { [sweep.vary[0]!.field]: a };
+          if (b !== undefined) {
+            body = withValue(body, paths[1]!, b) as Record<string, unknown>;
+            values[sweep.vary[1]!.field] = b;
+          }
+          points.push({ values, body });
+        }
+      }
+
+      // Reserve the points' costs in order, as far as the quota reaches.
+      const caseUnits = op.decl.batch?.units;
+      const costs = points.map((p) => (caseUnits ? caseUnits(p.body) : op.decl.operation.units));
+      let covered = points.length;
+      let quotaRefusal: ProblemError | undefined;
+      const reserved0 = costs.reduce((s, u) => s + u, 0);
+      try {
+        chargeUnits(res, reserved0);
+      } catch (err) {
+        if (!(err instanceof ProblemError) || err.type !== 'quota-exceeded') throw err;
+        quotaRefusal = err;
+        covered = 0;
+        for (const cost of costs) {
+          try {
+            chargeUnits(res, cost);
+          } catch {
+            break;
+          }
+          covered += 1;
+        }
+        // Not even the first point fits: the sweep is refused as a single call would be.
+        if (covered === 0) throw err;
+      }
+      const reserved = costs.slice(0, covered).reduce((s, u) => s + u, 0);
+
+      let settle: (index: number) => unknown;
+      try {
+        settle = await runCases(
+          op,
+          points.slice(0, covered).map((p) => p.body),
+          {},
+          ctx,
+        );
+      } catch (err) {
+        // Hung or crashed: no point is answered, so none is charged.
+        releaseUnits(res, reserved);
+        throw poolProblem(err, res.locals.requestId);
+      }
+
+      const quotaProblem = quotaRefusal
+        ? problemBody(
+            problem(
+              'quota-exceeded',
+              `The monthly quota ran out before this point: the sweep's first ${covered} points used what remained. ${quotaRefusal.detail ?? ''}`.trim(),
+            ),
+          )
+        : undefined;
+      const rows: Row[] = [];
+      let refunded = 0;
+      for (const [index, point] of points.entries()) {
+        if (index > 0 && index % CASES_PER_TURN === 0) await nextTurn();
+        if (index >= covered) {
+          rows.push({ values: point.values, status: 'error', problem: quotaProblem! });
+          continue;
+        }
+        try {
+          const result = settle(index);
+          const bad = findNonFinite(result);
+          if (bad) throw problem('no-solution', `The calculation produced a non-finite number (${bad}).`);
+          rows.push({ values: point.values, status: 'ok', result: result as Record<string, unknown> });
+        } catch (err) {
+          refunded += costs[index]!;
+          rows.push({ values: point.values, status: 'error', problem: caseProblem(err, '') });
+        }
+      }
+      // A refused point costs nothing: give back what the failed points reserved.
+      releaseUnits(res, refunded);
+
+      // Cautions and provenance: once at the top when every succeeding point has the same.
+      const ok = rows.filter((r) => r.status === 'ok').map((r) => r.result!);
+      const lifted: Pick<SweepResponse, 'cautions' | 'provenance'> = {};
+      for (const key of ['cautions', 'provenance'] as const) {
+        if (ok.length > 0 && key in ok[0]! && ok.every((r) => key in r && same(r[key], ok[0]![key]))) {
+          (lifted as Record<string, unknown>)[key] = ok[0]![key];
+          for (const r of ok) delete r[key];
+        }
+      }
+      const failed = rows.length - ok.length;
+      const response: SweepResponse = {
+        operation: sweep.operation,
+        count: rows.length,
+        succeeded: ok.length,
+        failed,
+        unitsCharged: reserved - refunded,
+        ...lifted,
+        rows,
+      };
+
+      if (req.accepts(['application/json', 'text/csv']) === 'text/csv') {
+        const fields = sweep.vary.map((f) => f.field);
+        const flat = rows.map((r) => {
+          const line: Record<string, unknown> = { ...r.values, status: r.status };
+          if (r.result) {
+            const out: Record<string, unknown> = {};
+            flatten(r.result, '', out);
+            for (const [k, v] of Object.entries(out)) {
+              // Warnings are text per row: joined into one column rather than one per entry.
+              if (!k.startsWith('warnings[')) line[`result:${k}`] = v;
+            }
+            const warnings = (r.result.warnings as { message?: string }[] | undefined) ?? [];
+            if (warnings.length > 0) line.warnings = warnings.map((w) => w.message ?? '').join('; ');
+          }
+          if (r.problem) line.error = errorCell(r.problem);
+          return line;
+        });
+        const available = [
+          ...new Set(flat.flatMap((l) => Object.keys(l).filter((k) => k.startsWith('result:')))),
+        ].map((k) => k.slice('result:'.length));
+        if (columns && ok.length > 0) {
+          const unknown = columns.filter((c) => !available.includes(c));
+          if (unknown.length > 0) {
+            releaseUnits(res, reserved - refunded);
+            throw problem('validation-failed', `columns: "${unknown[0]}" is not a column of the result.`, {
+              errors: [
+                {
+                  field: 'columns',
+                  message: `names ${unknown.map((c) => `"${c}"`).join(', ')}, not columns of the result (e.g. ${available.slice(0, 8).join(', ')})`,
+                },
+              ],
+            });
+          }
+        }
+        const chosen = columns ?? available;
+        const table = flat.map((l) => {
+          const out: Record<string, unknown> = {};
+          for (const f of fields) out[f] = l[f];
+          out.status = l.status;
+          for (const c of chosen) out[c] = l[`result:${c}`];
+          out.warnings = l.warnings;
+          out.error = l.error;
+          return out;
+        });
+        res.type('text/csv').send(toCsv([...fields, 'status', ...chosen, 'warnings', 'error'], table));
+        return;
+      }
+      // Written a slice per turn, as the batch does, so no single pause of the event loop is long.
+      const head = JSON.stringify({ ...response, rows: [] });
+      const pieces: Buffer[] = [Buffer.from(`${head.slice(0, -'[]}'.length)}[`)];
+      for (let i = 0; i < rows.length; i += CASES_PER_TURN) {
+        if (i > 0) await nextTurn();
+        const slice = JSON.stringify(rows.slice(i, i + CASES_PER_TURN)).slice(1, -1);
+        pieces.push(Buffer.from(i > 0 ? `,${slice}` : slice));
+      }
+      pieces.push(Buffer.from(']}'));
+      res.type('application/json').send(Buffer.concat(pieces));
+    },
+  });
+}
