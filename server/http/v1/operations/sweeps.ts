@@ -161,8 +161,21 @@ function checkFields(op: CompiledOperation, vary: readonly SweepField[], operati
     throw problem('validation-failed', `${errors[0]!.field}: ${errors[0]!.message}.`, { errors });
 }
 
-/** Two cautions/provenance values are the same (plain JSON data). */
-const same = (a: unknown, b: unknown) => JSON.stringify(a) === JSON.stringify(b);
+/** Two plain JSON values are equal (early exit; cheaper than comparing their JSON texts). */
+function same(a: unknown, b: unknown): boolean {
+  if (a === b) return true;
+  if (a === null || b === null || typeof a !== 'object' || typeof b !== 'object') return false;
+  if (Array.isArray(a) !== Array.isArray(b)) return false;
+  const ka = Object.keys(a);
+  const kb = Object.keys(b);
+  if (ka.length !== kb.length) return false;
+  for (let i = 0; i < ka.length; i++) {
+    const k = ka[i]!;
+    if (k !== kb[i] || !same((a as Record<string, unknown>)[k], (b as Record<string, unknown>)[k]))
+      return false;
+  }
+  return true;
+}
 
 /** The sweep operation over the declarations that name a batch name. */
 export function sweepOperation(operations: readonly AnyOperation[]) {
@@ -327,13 +340,27 @@ export function sweepOperation(operations: readonly AnyOperation[]) {
       // A refused point costs nothing: give back what the failed points reserved.
       releaseUnits(res, refunded);
 
-      // Cautions and provenance: once at the top when every succeeding point has the same.
+      // Cautions and provenance: once at the top when every succeeding point has the same. The
+      // rows get copies without them (rest spread rather than `delete`, which would leave slow
+      // dictionary objects for the JSON writer).
       const ok = rows.filter((r) => r.status === 'ok').map((r) => r.result!);
+      const first = ok[0];
       const lifted: Pick<SweepResponse, 'cautions' | 'provenance'> = {};
-      for (const key of ['cautions', 'provenance'] as const) {
-        if (ok.length > 0 && key in ok[0]! && ok.every((r) => key in r && same(r[key], ok[0]![key]))) {
-          (lifted as Record<string, unknown>)[key] = ok[0]![key];
-          for (const r of ok) delete r[key];
+      const liftable = (key: 'cautions' | 'provenance') =>
+        first !== undefined && key in first && ok.every((r) => key in r && same(r[key], first[key]));
+      const liftCautions = liftable('cautions');
+      const liftProvenance = liftable('provenance');
+      if (liftCautions) lifted.cautions = first!.cautions as unknown[];
+      if (liftProvenance) lifted.provenance = first!.provenance as Record<string, unknown>;
+      if (liftCautions || liftProvenance) {
+        for (const row of rows) {
+          if (!row.result) continue;
+          const { cautions, provenance, ...rest } = row.result;
+          row.result = {
+            ...rest,
+            ...(liftCautions ? {} : { cautions }),
+            ...(liftProvenance ? {} : { provenance }),
+          };
         }
       }
       const failed = rows.length - ok.length;
