@@ -1,7 +1,8 @@
 // Sweeps: one calculation over lists or ranges of one or two of its fields. Each point must be the
 // single call exactly and cost what the single call costs; a refused point costs nothing.
 import request from 'supertest';
-import { describe, expect, it } from 'vitest';
+import { afterAll, describe, expect, it } from 'vitest';
+import { createEnginePool } from '../../server/workers/engine-pool.js';
 import { makeHarness, usageRows, type Harness } from './helpers.js';
 
 const auth = (token: string) => ({ Authorization: `Bearer ${token}` });
@@ -33,6 +34,11 @@ type Row = {
   result?: Record<string, unknown>;
   problem?: Record<string, unknown>;
 };
+
+const pools: ReturnType<typeof createEnginePool>[] = [];
+afterAll(async () => {
+  await Promise.all(pools.map((p) => p.destroy()));
+});
 
 describe('POST /v1/sweeps', () => {
   it('answers the points in order, the first field varying slowest, with unit-typed values kept as sent', async () => {
@@ -215,6 +221,44 @@ describe('POST /v1/sweeps', () => {
     });
     expect(res.status).toBe(200);
     expect(res.body).toMatchObject({ count: 4, succeeded: 4, unitsCharged: 4 });
+  });
+
+  it('sends heavy points (six-effect trains) to the calculation threads and still equals the single calls', async () => {
+    const pool = createEnginePool({ workers: 2, taskTimeoutMs: 30_000 });
+    pools.push(pool);
+    const h = await makeHarness({ quota: 10_000, enginePool: pool });
+    // An invented six-effect caustic train, backward feed (6 ≥ the pooled crossover of 5 effects).
+    const train = {
+      liquor: 'sodium-hydroxide',
+      effects: 6,
+      feedArrangement: 'backward',
+      feed: { massFlow: 10, massFraction: 0.1, temperature: 60 },
+      product: { massFraction: 0.3 },
+      steam: { pressure: 1000 },
+      lastEffectPressure: 15,
+      overallHeatTransferCoefficients: [2800, 2500, 2200, 1900, 1600, 1300],
+    };
+    const res = await sweep(h, {
+      operation: 'multiple-effect',
+      base: train,
+      vary: [{ field: 'lastEffectPressure', values: [12, '20 kPa'] }],
+    });
+    expect(res.status).toBe(200);
+    expect(res.body).toMatchObject({ count: 2, succeeded: 2 });
+    const rows = res.body.rows as Row[];
+    for (const [i, p] of [12, '20 kPa'].entries()) {
+      const one = await request(h.app)
+        .post('/v1/evaporators/multiple-effect')
+        .set(auth(h.token))
+        .send({ ...train, lastEffectPressure: p });
+      expect(one.status).toBe(200);
+      const { cautions, provenance, ...rest } = one.body as Record<string, unknown>;
+      expect(JSON.stringify(rows[i]!.result)).toBe(JSON.stringify(rest));
+      expect(res.body.cautions).toEqual(cautions);
+      expect(res.body.provenance).toEqual(provenance);
+    }
+    // Each point costs what its single call costs (5 + 5 per effect).
+    expect(res.body.unitsCharged).toBe(2 * (5 + 5 * 6));
   });
 
   it('accepts 10 000 points and refuses more, naming vary and the limit', async () => {

@@ -246,6 +246,12 @@ export async function runCases(
   cases: readonly Record<string, unknown>[],
   shared: { liquor?: unknown },
   ctx: OperationContext,
+  /**
+   * 'always' (the batch): every engine task goes to the pool. 'declared' (the sweep): only the
+   * tasks whose single call would go there (the declaration's `engine.offload`, the crossover of
+   * tests/bench/pool.ts); lighter ones run inline as each case is settled, a slice per turn.
+   */
+  offload: 'always' | 'declared' = 'always',
 ): Promise<(index: number) => unknown> {
   // 1. Parse every case here (validation, liquor, SI), a slice per turn of the event loop;
   // 2. and hand each slice's engine tasks to the pool's threads at once, so they calculate
@@ -281,7 +287,7 @@ export async function runCases(
     try {
       const value = await prepareCase(op, c, shared, ctx);
       prepared.push({ ok: true, value });
-      if (!('done' in value)) waiting.push({ index, task: value });
+      if (!('done' in value) && (offload === 'always' || value.offload)) waiting.push({ index, task: value });
     } catch (error) {
       prepared.push({ ok: false, error });
     }
