@@ -167,6 +167,28 @@ describe('POST /v1/sweeps', () => {
     expect(none.status).toBe(429);
   });
 
+  it('uses the units a refused point gave back for the next points before refusing the rest for quota', async () => {
+    // 12 units: 10 and −5 are reserved first; −5 is refused and gives its 5 back, so 15 runs too;
+    // then 2 units remain and 20 is refused for quota.
+    const h = await makeHarness({ quota: 12 });
+    const res = await sweep(h, {
+      operation: 'single-effect',
+      base,
+      vary: [{ field: 'body.pressure', values: [10, -5, 15, 20] }],
+    });
+    expect(res.status).toBe(200);
+    expect(res.body).toMatchObject({ count: 4, succeeded: 2, failed: 2, unitsCharged: 10 });
+    const rows = res.body.rows as Row[];
+    expect(rows.map((r) => [r.status, r.problem?.status])).toEqual([
+      ['ok', undefined],
+      ['error', 422],
+      ['ok', undefined],
+      ['error', 429],
+    ]);
+    expect(rows[3]!.problem!.detail).toMatch(/quota of 12 units ran out/);
+    expect((await usageRows(h.store)).map((r) => [r.operation, r.units])).toEqual([['sweeps.run', 10]]);
+  });
+
   it('answers CSV with the varied fields, status and the columns chosen by columns=', async () => {
     const h = await makeHarness();
     const res = await sweep(

@@ -9,10 +9,11 @@
  * problem are exactly those of the single call (field paths relative to the operation's body).
  *
  * Metering, as the batch: the sweep is metered as `sweeps.run` under the `batch` scope, and each
- * point costs what its single call costs. The points' costs are reserved in order before any runs,
- * as far as the quota reaches: the points beyond are refused with the quota problem (a sweep of
- * which not even the first point fits is refused with 429). The points that fail are given back,
- * so units charged = the sum of the succeeding points' costs.
+ * point costs what its single call costs. The points' costs are reserved in order before they run,
+ * as far as the quota reaches, and the costs of the points that fail are given back (and may pay
+ * for the next points); the points the quota cannot cover are refused with the quota problem (a
+ * sweep of which not even the first point fits is refused with 429). So units charged = the sum
+ * of the succeeding points' costs, and a sweep never overshoots the quota.
  *
  * Cautions and provenance, the same for every point, are lifted out of the rows and given once.
  * `Accept: text/csv` gives a flat table: the varied fields, `status`, the result columns (`columns=`
@@ -194,8 +195,8 @@ export function sweepOperation(operations: readonly AnyOperation[]) {
     description:
       "Each point is `base` with the varied fields' values put in at their dotted paths, checked and run exactly as the single call " +
       '(its result and problem are the single call’s; field paths are those of the operation’s body). Rows come in order, the first field varying slowest. ' +
-      'Each point costs what its single call costs; a refused point costs nothing. The quota is reserved point by point before any runs: when it runs out, ' +
-      'the remaining points are refused with the quota problem (429 if not even the first point fits). Cautions and provenance, the same for every point, are given once. ' +
+      'Each point costs what its single call costs; a refused point costs nothing. Points are reserved in order as far as the quota reaches, the costs of refused points given back for the next: ' +
+      'the points the quota cannot cover are refused with the quota problem (429 if not even the first point fits). Cautions and provenance, the same for every point, are given once. ' +
       'Send `Accept: text/csv` for a flat table (the varied fields, `status`, the result columns named by `columns=`, `error`).',
     request: {
       query: SweepCsvQuerySchema,
@@ -272,77 +273,90 @@ export function sweepOperation(operations: readonly AnyOperation[]) {
         }
       }
 
-      // Reserve the points' costs in order, as far as the quota reaches.
+      // Run the points in rounds: reserve, in order, as many points' costs as the quota covers
+      // (all of them unless it runs short), run them, give back the costs of those that failed;
+      // while points remain and the units given back cover the next, go on. The points no
+      // round could reserve are refused with the quota problem.
       const caseUnits = op.decl.batch?.units;
       const costs = points.map((p) => (caseUnits ? caseUnits(p.body) : op.decl.operation.units));
-      let covered = points.length;
-      let quotaRefusal: ProblemError | undefined;
-      const reserved0 = costs.reduce((s, u) => s + u, 0);
-      try {
-        chargeUnits(res, reserved0);
-      } catch (err) {
-        if (!(err instanceof ProblemError) || err.type !== 'quota-exceeded') throw err;
-        quotaRefusal = err;
-        covered = 0;
-        for (const cost of costs) {
-          try {
-            chargeUnits(res, cost);
-          } catch {
-            break;
-          }
-          covered += 1;
-        }
-        // Not even the first point fits: the sweep is refused as a single call would be.
-        if (covered === 0) throw err;
-      }
-      const reserved = costs.slice(0, covered).reduce((s, u) => s + u, 0);
-
-      let settle: (index: number) => unknown;
-      try {
-        settle = await runCases(
-          op,
-          points.slice(0, covered).map((p) => p.body),
-          {},
-          ctx,
-          // Light points (a single effect, ≈ 0.02 ms) run inline, a slice per turn, as their
-          // single calls do: the pool's round trip would cost more than it frees; heavy points
-          // (long trains) go to the pool.
-          'declared',
-        );
-      } catch (err) {
-        // Hung or crashed: no point is answered, so none is charged.
-        releaseUnits(res, reserved);
-        throw poolProblem(err, res.locals.requestId);
-      }
-
-      const quotaProblem = quotaRefusal
-        ? problemBody(
-            problem(
-              'quota-exceeded',
-              `The monthly quota ran out before this point: the sweep's first ${covered} points used what remained. ${quotaRefusal.detail ?? ''}`.trim(),
-            ),
-          )
-        : undefined;
       const rows: Row[] = [];
+      let reserved = 0;
       let refunded = 0;
-      for (const [index, point] of points.entries()) {
-        if (index > 0 && index % CASES_PER_TURN === 0) await nextTurn();
-        if (index >= covered) {
-          rows.push({ values: point.values, status: 'error', problem: quotaProblem! });
-          continue;
-        }
+      let quotaRefusal: ProblemError | undefined;
+      while (rows.length < points.length) {
+        const start = rows.length;
+        let end = points.length;
         try {
-          const result = settle(index);
-          const bad = findNonFinite(result);
-          if (bad) throw problem('no-solution', `The calculation produced a non-finite number (${bad}).`);
-          rows.push({ values: point.values, status: 'ok', result: result as Record<string, unknown> });
+          chargeUnits(
+            res,
+            costs.slice(start).reduce((s, u) => s + u, 0),
+          );
         } catch (err) {
-          refunded += costs[index]!;
-          rows.push({ values: point.values, status: 'error', problem: caseProblem(err, '') });
+          if (!(err instanceof ProblemError) || err.type !== 'quota-exceeded') throw err;
+          quotaRefusal = err;
+          end = start;
+          while (end < points.length) {
+            try {
+              chargeUnits(res, costs[end]!);
+            } catch {
+              break;
+            }
+            end += 1;
+          }
+        }
+        if (end === start) break;
+        const round = costs.slice(start, end).reduce((s, u) => s + u, 0);
+        reserved += round;
+        let settle: (index: number) => unknown;
+        try {
+          settle = await runCases(
+            op,
+            points.slice(start, end).map((p) => p.body),
+            {},
+            ctx,
+            // Light points (a single effect, ≈ 0.02 ms) run inline, a slice per turn, as their
+            // single calls do: the pool's round trip would cost more than it frees; heavy points
+            // (long trains) go to the pool.
+            'declared',
+          );
+        } catch (err) {
+          // Hung or crashed: this round's points are not answered, so none of the sweep is charged.
+          releaseUnits(res, reserved - refunded);
+          throw poolProblem(err, res.locals.requestId);
+        }
+        let given = 0;
+        for (let index = start; index < end; index++) {
+          if (index > start && (index - start) % CASES_PER_TURN === 0) await nextTurn();
+          const point = points[index]!;
+          try {
+            const result = settle(index - start);
+            const bad = findNonFinite(result);
+            if (bad) throw problem('no-solution', `The calculation produced a non-finite number (${bad}).`);
+            rows.push({ values: point.values, status: 'ok', result: result as Record<string, unknown> });
+          } catch (err) {
+            given += costs[index]!;
+            rows.push({ values: point.values, status: 'error', problem: caseProblem(err, '') });
+          }
+        }
+        // A refused point costs nothing: give back what this round's failed points reserved.
+        releaseUnits(res, given);
+        refunded += given;
+      }
+      // Not even the first point fits: the sweep is refused as a single call would be.
+      if (rows.length === 0 && quotaRefusal) throw quotaRefusal;
+      if (rows.length < points.length) {
+        const quota = res.locals.meter?.quota;
+        const quotaProblem = problemBody(
+          problem(
+            'quota-exceeded',
+            `The monthly quota${quota !== undefined ? ` of ${quota} units` : ''} ran out before this point: the points before it used what remained.`,
+            { headers: quotaRefusal?.headers },
+          ),
+        );
+        for (let index = rows.length; index < points.length; index++) {
+          rows.push({ values: points[index]!.values, status: 'error', problem: quotaProblem });
         }
       }
-      // A refused point costs nothing: give back what the failed points reserved.
-      releaseUnits(res, refunded);
 
       // Cautions and provenance: once at the top when every succeeding point has the same. The
       // rows get copies without them (rest spread rather than `delete`, which would leave slow
