@@ -153,6 +153,13 @@ export const operationCatalogue = {
     scope: 'batch',
     units: 0,
   },
+  sweep: {
+    id: 'sweeps.run',
+    title: 'Sweep',
+    label: 'Run one calculation over a list or range of one or two fields (cost: the sum of the points)',
+    scope: 'batch',
+    units: 0,
+  },
   usageRead: {
     id: 'usage.read',
     title: 'Usage report',

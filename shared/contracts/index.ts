@@ -5,6 +5,7 @@ export * from './liquors.js';
 export * from './evaporators.js';
 export * from './heat-transfer.js';
 export * from './batch.js';
+export * from './sweeps.js';
 export * from './usage.js';
 export * from './recompression.js';
 export * from './studies.js';

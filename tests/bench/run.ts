@@ -15,6 +15,7 @@ import { runBundleBench } from './bundle.js';
 import { runDrainBench } from './drain.js';
 import { runHashFloodBench } from './hash-flood.js';
 import { runPoolBench } from './pool.js';
+import { runSweepBench } from './sweep.js';
 import { runKeyLookupBench } from './key-lookup.js';
 import { runClusterBench } from './cluster.js';
 
@@ -46,6 +47,10 @@ const sections: { title: string; run: () => Promise<void> }[] = [
   {
     title: 'Calculation pool: crossover, latency under two large batches, throughput by threads',
     run: () => runPoolBench(),
+  },
+  {
+    title: 'A 10 000-point single-effect sweep through the metered route, /healthz meanwhile',
+    run: () => runSweepBench(),
   },
   {
     title: 'Three nodes behind HAProxy (PostgreSQL, Redis) against one node',

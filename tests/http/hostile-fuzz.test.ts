@@ -925,6 +925,44 @@ describe(
       expectClean('deep nesting');
     });
 
+    it('answers sweeps whose varied paths reach for prototypes, whose ranges overflow and whose columns are hostile', async () => {
+      const sweep = targets.find((t) => t.template === '/v1/sweeps')!;
+      const base = (JSON.parse(baseJson(sweep)) as { base: unknown }).base;
+      const paths = [
+        '__proto__.polluted',
+        'body.__proto__',
+        'constructor.prototype.polluted',
+        'feed[999].temperature',
+        'body.pressure.toString',
+        'hasOwnProperty',
+        `${'a.'.repeat(99)}b`,
+        'body.pressure',
+      ];
+      const ranges = [
+        { from: -1.7e308, to: 1.7e308, steps: 3 },
+        { from: 5e-324, to: 1.7e308, steps: 10, spacing: 'log' },
+        { from: 0, to: 1, steps: 2, spacing: 'log' },
+        { values: ['1e999 kPa', 'NaN kPa', '-0 kPa', '１５ kPa'] },
+      ];
+      for (const field of paths) {
+        for (const range of ranges) {
+          for (const query of [
+            '',
+            '?columns=__proto__,constructor.prototype',
+            `?columns=${'a,'.repeat(300)}`,
+          ]) {
+            await fire('prototype keys in JSON', sweep, {
+              path: `/v1/sweeps${query}`,
+              body: JSON.stringify({ operation: 'single-effect', base, vary: [{ field, ...range }] }),
+              contentType: 'application/json',
+              headers: { Accept: query ? 'text/csv' : 'application/json' },
+            });
+          }
+        }
+      }
+      expectClean('prototype keys in JSON');
+    });
+
     it('answers key-shaped strings in paths, queries, JSON names and values, CSV cells and form fields', async () => {
       const keys = keyShapedStrings();
       for (const s of sample(keyShaped, 5, 300)) {

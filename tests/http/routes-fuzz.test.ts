@@ -625,6 +625,43 @@ describe('fuzzed requests never give a 5xx or a non-finite number', { timeout: 6
     );
   });
 
+  it('POST /v1/sweeps', async () => {
+    // Varied fields real and hostile, lists and ranges (small, so each run stays quick).
+    const field = fc.constantFrom(
+      'body.pressure',
+      'feed.temperature',
+      'pressure',
+      'massFraction',
+      '__proto__.x',
+      'constructor',
+      'body.nope',
+      'body[0]',
+      '',
+    );
+    const vary = fc.oneof(
+      fc.record({ field, values: fc.array(quantity, { maxLength: 3 }) }),
+      fc.record({
+        field,
+        from: fc.double({ noNaN: true }),
+        to: fc.double({ noNaN: true }),
+        steps: fc.integer({ min: -2, max: 4 }),
+        spacing: fc.constantFrom('linear', 'log', 'cubic'),
+      }),
+    );
+    await fc.assert(
+      fc.asyncProperty(
+        fc.constantFrom('steam-saturation', 'liquor-boiling-point', 'single-effect', 'bogus'),
+        fc.dictionary(
+          fc.constantFrom('pressure', 'temperature', 'massFraction', 'liquor', 'feed', 'body'),
+          quantity,
+        ),
+        fc.array(vary, { maxLength: 3 }),
+        (operation, base, v) => check('post', '/v1/sweeps', { operation, base, vary: v }),
+      ),
+      { numRuns: RUNS },
+    );
+  });
+
   it.each([
     '/v1/steam/state',
     '/v1/liquors/sucrose/boiling-point',
@@ -635,6 +672,7 @@ describe('fuzzed requests never give a 5xx or a non-finite number', { timeout: 6
     '/v1/studies/evaporator-schemes',
     '/v1/heat-transfer/overall-coefficient',
     '/v1/batch',
+    '/v1/sweeps',
     '/v1/stored-liquors',
   ])('adversarial shapes on POST %s', async (path) => {
     await fc.assert(

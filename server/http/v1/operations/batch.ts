@@ -121,7 +121,7 @@ export function casesFromCsv(text: string): { cases: Record<string, unknown>[]; 
  * The problem of a case as one message for the CSV `error` column: each field once with its
  * message (the detail only when no field is named), never the title, detail and fields together.
  */
-function errorCell(p: {
+export function errorCell(p: {
   title: string;
   detail?: string;
   errors?: { field: string; message: string }[];
@@ -134,7 +134,7 @@ function errorCell(p: {
 }
 
 /** Flattens a result into dotted columns for CSV output. */
-function flatten(value: unknown, prefix: string, out: Record<string, unknown>): void {
+export function flatten(value: unknown, prefix: string, out: Record<string, unknown>): void {
   if (Array.isArray(value)) value.forEach((v, i) => flatten(v, `${prefix}[${i}]`, out));
   else if (value !== null && typeof value === 'object') {
     for (const [k, v] of Object.entries(value)) flatten(v, prefix ? `${prefix}.${k}` : k, out);
@@ -157,6 +157,34 @@ function wholeRowPaths(p: ProblemError, line: number): ProblemError {
     headers: p.headers,
   });
 }
+
+/**
+ * A case's error as the problem of its row: its field paths re-based onto `base` (a CSV case's
+ * whole-row problem named by its line); anything unexpected becomes a plain "no solution".
+ */
+export function caseProblem(err: unknown, base: string, line?: number): BatchProblem {
+  let p: ProblemError;
+  try {
+    p = rebaseProblem(toProblem(err), base);
+    if (line !== undefined) p = wholeRowPaths(p, line);
+  } catch {
+    p = problem('no-solution', 'This case could not be calculated.');
+  }
+  return problemBody(p);
+}
+
+/** A problem as the JSON body of a row. */
+export function problemBody(p: ProblemError): BatchProblem {
+  return {
+    type: problemTypeUri(p.type),
+    title: p.title,
+    status: p.status,
+    ...(p.detail !== undefined ? { detail: p.detail } : {}),
+    ...(p.errors ? { errors: p.errors } : {}),
+  };
+}
+
+type BatchProblem = NonNullable<BatchResponse['results'][number]['problem']>;
 
 /**
  * The batch request of CSV cases: a refusal of a case's shape names the case's line rather than
@@ -202,8 +230,81 @@ async function prepareCase(
 }
 
 /** Cases parsed (or formatted) between two turns of the event loop, so /healthz and light calls are answered in between. */
-const CASES_PER_TURN = 64;
-const nextTurn = () => new Promise<void>((resolve) => setImmediate(resolve));
+export const CASES_PER_TURN = 64;
+export const nextTurn = () => new Promise<void>((resolve) => setImmediate(resolve));
+
+/**
+ * Parses and runs many cases of one operation (the batch's and the sweep's engine): every case is
+ * parsed here (validation, liquor, SI), a slice per turn of the event loop, and each slice's
+ * engine tasks go to the pool's threads at once, so they calculate while the rest is parsed
+ * (inline without a pool: the tasks run as each case is settled). Returns `settle(i)`, which gives
+ * case i's result or throws its problem. Throws the pool's failure (hung or crashed) once every
+ * slice has settled, so a failed run leaves no task behind.
+ */
+export async function runCases(
+  op: CompiledOperation,
+  cases: readonly Record<string, unknown>[],
+  shared: { liquor?: unknown },
+  ctx: OperationContext,
+  /**
+   * 'always' (the batch): every engine task goes to the pool. 'declared' (the sweep): only the
+   * tasks whose single call would go there (the declaration's `engine.offload`, the crossover of
+   * tests/bench/pool.ts); lighter ones run inline as each case is settled, a slice per turn.
+   */
+  offload: 'always' | 'declared' = 'always',
+): Promise<(index: number) => unknown> {
+  // 1. Parse every case here (validation, liquor, SI), a slice per turn of the event loop;
+  // 2. and hand each slice's engine tasks to the pool's threads at once, so they calculate
+  //    while the rest is parsed (inline without a pool: the tasks run as each case is formatted).
+  const pool = ctx.enginePool;
+  const prepared: ({ ok: true; value: Prepared } | { ok: false; error: unknown })[] = [];
+  const outcomes = new Map<number, TaskOutcome>();
+  const inFlight: Promise<void>[] = [];
+  const failures: unknown[] = [];
+  let waiting: { index: number; task: Exclude<Prepared, { done: unknown }> }[] = [];
+  const dispatch = () => {
+    if (waiting.length === 0 || !pooled(pool)) return;
+    const sent = waiting;
+    waiting = [];
+    inFlight.push(
+      pool
+        .runMany(
+          sent[0]!.task.task,
+          sent.map((t) => t.task.taskInput),
+        )
+        .then(
+          (answers) => sent.forEach((t, i) => outcomes.set(t.index, answers[i]!)),
+          // Caught at once: a slice may fail while later ones are still being parsed.
+          (err: unknown) => void failures.push(err),
+        ),
+    );
+  };
+  for (const [index, c] of cases.entries()) {
+    if (index > 0 && index % CASES_PER_TURN === 0) {
+      dispatch();
+      await nextTurn();
+    }
+    try {
+      const value = await prepareCase(op, c, shared, ctx);
+      prepared.push({ ok: true, value });
+      if (!('done' in value) && (offload === 'always' || value.offload)) waiting.push({ index, task: value });
+    } catch (error) {
+      prepared.push({ ok: false, error });
+    }
+  }
+  dispatch();
+  // Every slice settles before the answer, so a failed batch leaves no task running for it.
+  await Promise.all(inFlight);
+  if (failures.length > 0) throw failures[0];
+  return (index: number): unknown => {
+    const p = prepared[index]!;
+    if (!p.ok) throw p.error;
+    const v = p.value;
+    if ('done' in v) return v.done;
+    const outcome = outcomes.get(index);
+    return v.finish(outcome ? () => outcomeValue(outcome) : () => runTaskInline(v.task, v.taskInput));
+  };
+}
 
 // Text fields can hold an inline liquor definition, so they keep multer's 1 MB default.
 const readUpload = singleCsvUpload();
@@ -293,61 +394,14 @@ export function batchOperation(operations: readonly AnyOperation[]) {
       chargeUnits(res, reserved);
       const shared = { liquor: batch.liquor };
 
-      // 1. Parse every case here (validation, liquor, SI), a slice per turn of the event loop;
-      // 2. and hand each slice's engine tasks to the pool's threads at once, so they calculate
-      //    while the rest is parsed (inline without a pool: the tasks run as each case is formatted).
-      const pool = ctx.enginePool;
-      const prepared: ({ ok: true; value: Prepared } | { ok: false; error: unknown })[] = [];
-      const outcomes = new Map<number, TaskOutcome>();
-      const inFlight: Promise<void>[] = [];
-      const failures: unknown[] = [];
-      let waiting: { index: number; task: Exclude<Prepared, { done: unknown }> }[] = [];
-      const dispatch = () => {
-        if (waiting.length === 0 || !pooled(pool)) return;
-        const sent = waiting;
-        waiting = [];
-        inFlight.push(
-          pool
-            .runMany(
-              sent[0]!.task.task,
-              sent.map((t) => t.task.taskInput),
-            )
-            .then(
-              (answers) => sent.forEach((t, i) => outcomes.set(t.index, answers[i]!)),
-              // Caught at once: a slice may fail while later ones are still being parsed.
-              (err: unknown) => void failures.push(err),
-            ),
-        );
-      };
-      for (const [index, c] of batch.cases.entries()) {
-        if (index > 0 && index % CASES_PER_TURN === 0) {
-          dispatch();
-          await nextTurn();
-        }
-        try {
-          const value = await prepareCase(op, c, shared, ctx);
-          prepared.push({ ok: true, value });
-          if (!('done' in value)) waiting.push({ index, task: value });
-        } catch (error) {
-          prepared.push({ ok: false, error });
-        }
-      }
-      dispatch();
-      // Every slice settles before the answer, so a failed batch leaves no task running for it.
-      await Promise.all(inFlight);
-      if (failures.length > 0) {
+      let settle: (index: number) => unknown;
+      try {
+        settle = await runCases(op, batch.cases, shared, ctx);
+      } catch (err) {
         // Hung or crashed: no case is answered, so none is charged.
         releaseUnits(res, reserved);
-        throw poolProblem(failures[0], res.locals.requestId);
+        throw poolProblem(err, res.locals.requestId);
       }
-      const settle = (index: number): unknown => {
-        const p = prepared[index]!;
-        if (!p.ok) throw p.error;
-        const v = p.value;
-        if ('done' in v) return v.done;
-        const outcome = outcomes.get(index);
-        return v.finish(outcome ? () => outcomeValue(outcome) : () => runTaskInline(v.task, v.taskInput));
-      };
 
       // 3. Format each case here, a slice per turn.
       const formatCase = (index: number): BatchResponse['results'][number] => {
@@ -366,24 +420,11 @@ export function batchOperation(operations: readonly AnyOperation[]) {
             result: result as Record<string, unknown>,
           };
         } catch (err) {
-          let p: ProblemError;
-          try {
-            p = rebaseProblem(toProblem(err), base);
-            if (line !== undefined) p = wholeRowPaths(p, line);
-          } catch {
-            p = problem('no-solution', 'This case could not be calculated.');
-          }
           return {
             index,
             ...(line !== undefined ? { line } : {}),
             status: 'error',
-            problem: {
-              type: problemTypeUri(p.type),
-              title: p.title,
-              status: p.status,
-              ...(p.detail !== undefined ? { detail: p.detail } : {}),
-              ...(p.errors ? { errors: p.errors } : {}),
-            },
+            problem: caseProblem(err, base, line),
           };
         }
       };

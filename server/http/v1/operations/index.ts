@@ -5,6 +5,7 @@
  */
 import type { AnyOperation } from '../operation.js';
 import { batchOperation } from './batch.js';
+import { sweepOperation } from './sweeps.js';
 import { multipleEffect, singleEffect } from './evaporators.js';
 import { mechanicalVaporRecompressionOperation } from './recompression.js';
 import { overallCoefficient } from './heat-transfer.js';
@@ -39,6 +40,7 @@ const calculations: AnyOperation[] = [
 export const v1Operations: readonly AnyOperation[] = [
   ...calculations,
   batchOperation(calculations),
+  sweepOperation(calculations),
   evaporatorSchemeStudy,
   usageRead,
 ];
