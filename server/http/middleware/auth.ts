@@ -136,59 +136,58 @@ export interface AuthenticateOptions {
   onRefusedKnownKey?: (req: Request, res: Response, auth: AuthContext) => void;
 }
 
-export function authenticate(deps: AppDeps, options: AuthenticateOptions = {}): RequestHandler {
-  const store = deps.shared?.rateLimitStore('key-failures');
-  if (store) return authenticateShared(deps, options, new SharedKeyFailureCounter(store));
-  const failures = new KeyFailureCounter();
-  const sqlite = deps.store.sqlite;
-  if (!sqlite) return authenticatePortable(deps, options, failures);
-  // SQLite: the key is looked up synchronously (prepared statements), no await on the hot path.
-  return (req, res, next) => {
-    const header = req.get('authorization');
-    if (header === undefined || header.trim() === '') throw unauthorized('missing');
-    const token = presentedToken(header);
-    if (token === undefined) throw unauthorized('malformed');
-    const now = deps.clock();
-    const address = ipKeyGenerator(req.ip ?? '0.0.0.0');
-    const wait = failures.blockedFor(address, now.getTime());
-    if (wait > 0) throw tooManyRefusedKeys(wait);
-    const result = authenticateTokenOnSqlite(sqlite, deps.config.secret, token, now);
-    if (!result.ok) {
-      failures.fail(address, now.getTime());
-      // A known key's refusal is logged for its account. An unknown (or missing, malformed) key
-      // names no account: there is no tenant to show the row to, and logging it anywhere would
-      // let anyone fill the log with guesses, so it is not logged.
-      if ('key' in result) options.onRefusedKnownKey?.(req, res, contextOf(result.key));
-      throw unauthorized(result.reason);
-    }
-    res.locals.auth = contextOf(result.key);
-    next();
-  };
+/** The token the Authorization header presents, or the 401 for a missing or malformed one. */
+function presentedOrRefused(req: Request): string {
+  const header = req.get('authorization');
+  if (header === undefined || header.trim() === '') throw unauthorized('missing');
+  const token = presentedToken(header);
+  if (token === undefined) throw unauthorized('malformed');
+  return token;
 }
 
-/** {@link authenticate} on a store without a SQLite connection: the same checks, the lookup awaited. */
-function authenticatePortable(
-  deps: AppDeps,
+/**
+ * The 401 for a refused key. A known key's refusal is logged for its account first. An unknown
+ * (or missing, malformed) key names no account: there is no tenant to show the row to, and
+ * logging it anywhere would let anyone fill the log with guesses, so it is not logged.
+ */
+function refusal(
+  result: Extract<AuthResult, { ok: false }>,
+  req: Request,
+  res: Response,
   options: AuthenticateOptions,
-  failures: KeyFailureCounter,
-): RequestHandler {
-  return async (req, res, next) => {
-    const header = req.get('authorization');
-    if (header === undefined || header.trim() === '') throw unauthorized('missing');
-    const token = presentedToken(header);
-    if (token === undefined) throw unauthorized('malformed');
+) {
+  if ('key' in result) options.onRefusedKnownKey?.(req, res, contextOf(result.key));
+  return unauthorized(result.reason);
+}
+
+export function authenticate(deps: AppDeps, options: AuthenticateOptions = {}): RequestHandler {
+  const shared = deps.shared?.rateLimitStore('key-failures');
+  if (shared) return authenticateShared(deps, options, new SharedKeyFailureCounter(shared));
+  const failures = new KeyFailureCounter();
+  const sqlite = deps.store.sqlite;
+  // SQLite: the key is looked up synchronously (prepared statements), no await on the hot path;
+  // other stores await the lookup. The checks around it are the same.
+  const lookup = (token: string, now: Date): AuthResult | Promise<AuthResult> =>
+    sqlite
+      ? authenticateTokenOnSqlite(sqlite, deps.config.secret, token, now)
+      : authenticateToken(deps.store, deps.config.secret, token, now);
+  return (req, res, next) => {
+    const token = presentedOrRefused(req);
     const now = deps.clock();
     const address = ipKeyGenerator(req.ip ?? '0.0.0.0');
     const wait = failures.blockedFor(address, now.getTime());
     if (wait > 0) throw tooManyRefusedKeys(wait);
-    const result = await authenticateToken(deps.store, deps.config.secret, token, now);
-    if (!result.ok) {
-      failures.fail(address, now.getTime());
-      if ('key' in result) options.onRefusedKnownKey?.(req, res, contextOf(result.key));
-      throw unauthorized(result.reason);
-    }
-    res.locals.auth = contextOf(result.key);
-    next();
+    const admit = (result: AuthResult): void => {
+      if (!result.ok) {
+        failures.fail(address, now.getTime());
+        throw refusal(result, req, res, options);
+      }
+      res.locals.auth = contextOf(result.key);
+      next();
+    };
+    const result = lookup(token, now);
+    if (result instanceof Promise) return result.then(admit);
+    admit(result);
   };
 }
 
@@ -202,10 +201,7 @@ function authenticateShared(
   failures: SharedKeyFailureCounter,
 ): RequestHandler {
   return async (req, res, next) => {
-    const header = req.get('authorization');
-    if (header === undefined || header.trim() === '') throw unauthorized('missing');
-    const token = presentedToken(header);
-    if (token === undefined) throw unauthorized('malformed');
+    const token = presentedOrRefused(req);
     const address = ipKeyGenerator(req.ip ?? '0.0.0.0');
     try {
       const wait = await failures.blockedFor(address);
@@ -214,8 +210,7 @@ function authenticateShared(
       const result = await authenticateToken(deps.store, deps.config.secret, token, deps.clock());
       if (!result.ok) {
         await failures.fail(address);
-        if ('key' in result) options.onRefusedKnownKey?.(req, res, contextOf(result.key));
-        throw unauthorized(result.reason);
+        throw refusal(result, req, res, options);
       }
       res.locals.auth = contextOf(result.key);
     } catch (err) {
