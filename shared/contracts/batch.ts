@@ -61,12 +61,17 @@ export const BatchResultRowSchema = z
   })
   .meta({ id: 'BatchResultRow' });
 
+/** What a batch and a sweep both answer about their run: which operation, how many cases, how they ended. */
+export const runTally = {
+  operation: z.enum(batchOperations),
+  count: z.int(),
+  succeeded: z.int(),
+  failed: z.int(),
+};
+
 export const BatchResponseSchema = z
   .object({
-    operation: z.enum(batchOperations),
-    count: z.int(),
-    succeeded: z.int(),
-    failed: z.int(),
+    ...runTally,
     unitsCharged: z.int().meta({
       description:
         'Sum of the costs of the cases that succeeded; a refused case (status error) costs nothing. The quota must cover every case before the batch runs',

@@ -5,7 +5,7 @@
  * soon as it is batchable.
  */
 import { z } from 'zod';
-import { batchOperations } from './batch.js';
+import { batchOperations, runTally } from './batch.js';
 import { ProblemSchema } from './common.js';
 
 /** Most points in one sweep (the product of the fields' counts); more is refused with 422. */
@@ -139,17 +139,15 @@ export const SweepRowSchema = z
         "The operation's response at this point (warnings included; the cautions and provenance given once at the top)",
     }),
     problem: ProblemSchema.optional().meta({
-      description: 'Why this point failed (the other points are unaffected); paths name `base.…`',
+      description:
+        "Why this point failed (the other points are unaffected): the single call's problem, its paths naming the operation's body fields",
     }),
   })
   .meta({ id: 'SweepRow' });
 
 export const SweepResponseSchema = z
   .object({
-    operation: z.enum(batchOperations),
-    count: z.int(),
-    succeeded: z.int(),
-    failed: z.int(),
+    ...runTally,
     unitsCharged: z.int().meta({
       description:
         'Sum of the costs of the points that succeeded (each costs what its single call costs); refused points cost nothing',
