@@ -6,11 +6,12 @@
  *
  * Refusals are {@link AccountsError}s; a full password-hashing queue is HashingBusyError.
  */
-import { and, eq, gt, inArray, isNull } from 'drizzle-orm';
+import { and, eq, gt, inArray, isNull, sql } from 'drizzle-orm';
 import type { UserSummary } from '../../shared/console/common.js';
 import type { InvitationSummary } from '../../shared/console/users.js';
 import { consoleSettings } from '../config.js';
 import type { users } from '../db/schema.js';
+import type { Store } from '../db/store.js';
 import type { AppDeps } from '../deps.js';
 import { sendMail, type MailResult } from '../mail/send.js';
 import { accountIdsOf, type Role } from './accounts.js';
@@ -91,12 +92,15 @@ async function checkAccountsExist(deps: AppDeps, ids: readonly number[], field: 
   if (errors.length > 0) throw new AccountsError('validation-failed', errors[0]!.message, errors);
 }
 
-async function activeAdminCount(deps: AppDeps): Promise<number> {
-  const { users } = deps.store.t;
-  const rows = await deps.store.db
-    .select({ id: users.id })
-    .from(users)
-    .where(and(eq(users.role, 'admin'), eq(users.active, true)));
+/**
+ * Active admins, counted inside the transaction that may remove one: on PostgreSQL their rows are
+ * locked (FOR UPDATE), so two admins demoting each other at once are decided one after the other
+ * and the second sees the first's change; SQLite's write transaction excludes every other anyway.
+ */
+async function activeAdminCount(tx: Store): Promise<number> {
+  const rows = await tx.rows<{ id: number }>(
+    sql`SELECT id FROM users WHERE role = 'admin' AND active = ${tx.flag(true)}${tx.dialect === 'postgres' ? sql` FOR UPDATE` : sql``}`,
+  );
   return rows.length;
 }
 
@@ -314,11 +318,11 @@ export async function updateUser(
     row.role === 'admin' &&
     row.active &&
     ((patch.role !== undefined && patch.role !== 'admin') || patch.active === false);
-  if (losesAdmin && (await activeAdminCount(deps)) <= 1) {
-    throw new AccountsError('conflict', 'This is the last active admin; make another user admin first.');
-  }
   if (patch.accountIds) await checkAccountsExist(deps, patch.accountIds, 'accountIds');
   await deps.store.transaction(async (tx) => {
+    if (losesAdmin && (await activeAdminCount(tx)) <= 1) {
+      throw new AccountsError('conflict', 'This is the last active admin; make another user admin first.');
+    }
     const { accountMembers, users } = tx.t;
     const set: Partial<UserRow> = {};
     if (patch.role !== undefined) set.role = patch.role;
