@@ -23,6 +23,7 @@ import { logBody, REDACTED } from '../accounts/request-log.js';
 import type { RequestLogDetailRow } from '../accounts/request-log-query.js';
 import { nextMonthStartUtc } from '../accounts/usage.js';
 import type { AppDeps } from '../deps.js';
+import { checkJsonBody } from './middleware/body.js';
 import { problem } from './problem.js';
 import { compileOperation, runOperation, type AnyOperation } from './v1/operation.js';
 import { operationDeclaration } from './v1/operations/index.js';
@@ -223,6 +224,14 @@ export async function replayEntry(
       throw notReplayable(id, 'its request body as logged is not JSON.');
     }
     if (holdsRedaction(body)) throw notReplayable(id, 'values of its request body were redacted in the log.');
+    // Checked as any request body is at the door (prototype keys, nesting depth): what the log holds
+    // is read back from the database, not trusted for having been checked once.
+    const unsafe = checkJsonBody(body);
+    if (unsafe)
+      throw notReplayable(
+        id,
+        `its request body as logged is refused as a body: ${unsafe.detail ?? unsafe.title}`,
+      );
   }
 
   const account = await getAccount(deps.store, row.accountId);

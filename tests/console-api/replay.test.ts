@@ -212,6 +212,22 @@ describe('replay refusals', () => {
     await expectRefused(await replay(id), 422, 'not-replayable', /redacted/);
   });
 
+  it('refuses a logged body holding a prototype key or nested beyond the body limit, charging nothing', async () => {
+    const id = await logged('/v1/steam/state', STATE_BODY);
+    const before = await usageRows(h.store);
+    await setStored(
+      id,
+      'request_body',
+      '{"pressure":"10 bar","temperature":250,"__proto__":{"polluted":true}}',
+    );
+    await expectRefused(await replay(id), 422, 'not-replayable', /refused as a body/);
+    const deep = `{"pressure":"10 bar","temperature":250,"note":${'['.repeat(80)}1${']'.repeat(80)}}`;
+    await setStored(id, 'request_body', deep);
+    await expectRefused(await replay(id), 422, 'not-replayable', /refused as a body/);
+    expect(({} as Record<string, unknown>).polluted).toBeUndefined();
+    expect(await usageRows(h.store)).toEqual(before);
+  });
+
   it('refuses an operation that changes stored data', async () => {
     const id = await logged('/v1/steam/state', STATE_BODY);
     await h.store.execute(sql`UPDATE usage_events SET operation = 'liquors.stored.create' WHERE request_id =
