@@ -5,7 +5,7 @@ import { sql } from 'drizzle-orm';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { operationInfo } from '../../shared/operations.js';
-import { createAccount } from '../../server/accounts/accounts.js';
+import { createAccount, updateAccount } from '../../server/accounts/accounts.js';
 import { createKey } from '../../server/accounts/keys.js';
 import { pruneIdempotencyRecords } from '../../server/http/middleware/idempotency.js';
 import { v1RouteModules } from '../../server/http/v1/index.js';
@@ -344,5 +344,34 @@ describe('Idempotency-Key retries', () => {
     } finally {
       await poor.store.close();
     }
+  });
+
+  it('does not keep a sweep cut short by the quota: a retry after the quota is raised runs every point', async () => {
+    // 12 units: two single-effect points of 5 fit, the other two are refused for quota.
+    const h = await makeHarness({ quota: 12 });
+    const body = {
+      operation: 'single-effect',
+      base: {
+        liquor: 'sodium-hydroxide',
+        feed: { massFlow: 2, massFraction: 0.1, temperature: 60 },
+        product: { massFraction: 0.3 },
+        steam: { pressure: '3 barg' },
+        body: { pressure: 15, overallHeatTransferCoefficient: 2000 },
+      },
+      vary: [{ field: 'body.pressure', values: [10, 15, 20, 25] }],
+    };
+    const send = () =>
+      request(h.app)
+        .post('/v1/sweeps')
+        .set('Authorization', `Bearer ${h.token}`)
+        .set('Idempotency-Key', 'sweep-cut-1')
+        .send(body);
+    const cut = await send();
+    expect(cut.status).toBe(200);
+    expect(cut.body).toMatchObject({ succeeded: 2, failed: 2 });
+    await updateAccount(h.store, h.accountId, { monthlyUnitQuota: 1000 });
+    const retry = await send();
+    expect(retry.headers['idempotent-replayed']).toBeUndefined();
+    expect(retry.body).toMatchObject({ succeeded: 4, failed: 0 });
   });
 });

@@ -224,7 +224,7 @@ export function idempotency(store: Store, clock: () => Date): RequestHandler {
     }
     const body = captureBody(res);
     meter.beforeSend = async (status) => {
-      if (keepsAnswer(status)) {
+      if (keepsAnswer(status) && !meter.cutByQuota) {
         const contentType = res.getHeader('content-type');
         await store.execute(sql`
           UPDATE idempotency_records SET status = ${status},

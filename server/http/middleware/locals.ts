@@ -46,6 +46,12 @@ export interface MeterState {
    * the client's problem.
    */
   beforeSend?: (status: number) => Promise<void>;
+  /**
+   * Part of the answer was refused for want of quota (a sweep's last points): a 200 that is not
+   * the answer to keep for the request's retries, since a retry after the quota is raised should
+   * run those points.
+   */
+  cutByQuota?: boolean;
 }
 
 declare global {

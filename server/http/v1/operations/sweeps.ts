@@ -345,6 +345,7 @@ export function sweepOperation(operations: readonly AnyOperation[]) {
       // Not even the first point fits: the sweep is refused as a single call would be.
       if (rows.length === 0 && quotaRefusal) throw quotaRefusal;
       if (rows.length < points.length) {
+        if (res.locals.meter) res.locals.meter.cutByQuota = true;
         const quota = res.locals.meter?.quota;
         const quotaProblem = problemBody(
           problem(
