@@ -219,6 +219,22 @@ describe('POST /v1/sweeps', () => {
     expect(bad.body.errors[0].field).toBe('columns');
   });
 
+  it('refuses, before running a point and charging anything, a column the table always has', async () => {
+    const h = await makeHarness();
+    // Every point fails here (negative pressures), so no result could reveal the clash later.
+    for (const column of ['status', 'error', 'warnings', 'body.pressure']) {
+      const res = await sweep(
+        h,
+        { operation: 'single-effect', base, vary: [{ field: 'body.pressure', values: [-1, -2] }] },
+        `?columns=area,${column}`,
+      ).set('Accept', 'text/csv');
+      expect(res.status, column).toBe(422);
+      expect(res.body.errors[0]).toMatchObject({ field: 'columns' });
+      expect(res.body.errors[0].message).toContain(`"${column}"`);
+    }
+    expect((await usageRows(h.store)).every((r) => r.units === 0)).toBe(true);
+  });
+
   it('gives CSV every scalar of the result when no columns are named', async () => {
     const h = await makeHarness();
     const res = await sweep(h, {

@@ -9,6 +9,7 @@
  * cases that fail is released afterwards, so units charged = the sum of the succeeding cases' costs.
  * `Accept: text/csv` returns one line per case with dotted column names.
  */
+import type { Response } from 'express';
 import {
   BatchRequestSchema,
   BatchResponseSchema,
@@ -231,6 +232,29 @@ async function prepareCase(
 
 /** Cases parsed (or formatted) between two turns of the event loop, so /healthz and light calls are answered in between. */
 export const CASES_PER_TURN = 64;
+
+/**
+ * Sends `body` as JSON with its array `key` last, written a slice of CASES_PER_TURN items per turn
+ * of the event loop: a thousand train results make megabytes of JSON, and no single pause of the
+ * loop should be long. Encoded to bytes slice by slice too, so sending is one copy; the bytes
+ * equal those of res.json for the same object with `key` last.
+ */
+export async function sendJsonInSlices<K extends string>(
+  res: Response,
+  body: { [P in K]: readonly unknown[] } & Record<string, unknown>,
+  key: K,
+): Promise<void> {
+  const { [key]: items, ...rest } = body;
+  const head = JSON.stringify({ ...rest, [key]: [] });
+  const pieces: Buffer[] = [Buffer.from(`${head.slice(0, -'[]}'.length)}[`)];
+  for (let i = 0; i < items.length; i += CASES_PER_TURN) {
+    if (i > 0) await nextTurn();
+    const slice = JSON.stringify(items.slice(i, i + CASES_PER_TURN)).slice(1, -1);
+    pieces.push(Buffer.from(i > 0 ? `,${slice}` : slice));
+  }
+  pieces.push(Buffer.from(']}'));
+  res.type('application/json').send(Buffer.concat(pieces));
+}
 export const nextTurn = () => new Promise<void>((resolve) => setImmediate(resolve));
 
 /**
@@ -459,18 +483,7 @@ export function batchOperation(operations: readonly AnyOperation[]) {
         res.type('text/csv').send(toCsv(columns, rows));
         return;
       }
-      // A thousand train results make megabytes of JSON: written a slice per turn, so no single
-      // pause of the event loop is long (the bytes equal those of res.json).
-      // Encoded to bytes slice by slice too, so that sending is one copy.
-      const head = JSON.stringify({ ...response, results: [] });
-      const pieces: Buffer[] = [Buffer.from(`${head.slice(0, -'[]}'.length)}[`)];
-      for (let i = 0; i < results.length; i += CASES_PER_TURN) {
-        if (i > 0) await nextTurn();
-        const slice = JSON.stringify(results.slice(i, i + CASES_PER_TURN)).slice(1, -1);
-        pieces.push(Buffer.from(i > 0 ? `,${slice}` : slice));
-      }
-      pieces.push(Buffer.from(']}'));
-      res.type('application/json').send(Buffer.concat(pieces));
+      await sendJsonInSlices(res, response, 'results');
     },
   });
 }

@@ -43,7 +43,16 @@ import {
   type AnyOperation,
   type CompiledOperation,
 } from '../operation.js';
-import { caseProblem, CASES_PER_TURN, errorCell, flatten, nextTurn, problemBody, runCases } from './batch.js';
+import {
+  caseProblem,
+  CASES_PER_TURN,
+  errorCell,
+  flatten,
+  nextTurn,
+  problemBody,
+  runCases,
+  sendJsonInSlices,
+} from './batch.js';
 
 type Value = number | string | boolean;
 type Row = SweepResponse['rows'][number];
@@ -246,6 +255,20 @@ export function sweepOperation(operations: readonly AnyOperation[]) {
       }
       const op = byName.get(sweep.operation)!;
       checkFields(op, sweep.vary, sweep.operation);
+      // The CSV's own columns and the varied fields head their columns already: a result column of
+      // the same name would write two columns under one header.
+      const taken = new Set(['status', 'warnings', 'error', ...sweep.vary.map((v) => v.field)]);
+      const clash = columns?.find((c) => taken.has(c));
+      if (clash !== undefined) {
+        throw problem('validation-failed', `columns: "${clash}" is a column of every sweep table already.`, {
+          errors: [
+            {
+              field: 'columns',
+              message: `names "${clash}", which the table always has; name result columns only`,
+            },
+          ],
+        });
+      }
 
       // The points, the first field varying slowest.
       const lists = sweep.vary.map(sweepValues);
@@ -440,16 +463,7 @@ export function sweepOperation(operations: readonly AnyOperation[]) {
         res.type('text/csv').send(toCsv([...fields, 'status', ...chosen, 'warnings', 'error'], table));
         return;
       }
-      // Written a slice per turn, as the batch does, so no single pause of the event loop is long.
-      const head = JSON.stringify({ ...response, rows: [] });
-      const pieces: Buffer[] = [Buffer.from(`${head.slice(0, -'[]}'.length)}[`)];
-      for (let i = 0; i < rows.length; i += CASES_PER_TURN) {
-        if (i > 0) await nextTurn();
-        const slice = JSON.stringify(rows.slice(i, i + CASES_PER_TURN)).slice(1, -1);
-        pieces.push(Buffer.from(i > 0 ? `,${slice}` : slice));
-      }
-      pieces.push(Buffer.from(']}'));
-      res.type('application/json').send(Buffer.concat(pieces));
+      await sendJsonInSlices(res, response, 'rows');
     },
   });
 }
