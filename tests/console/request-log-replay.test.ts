@@ -105,7 +105,7 @@ describe('run again', () => {
     // Markup in a value stays text.
     expect(wrapper.find('[data-test="replay-differences"] b').exists()).toBe(false);
     expect(wrapper.get('[data-test="replay-summary"]').text()).toContain('Engine 0.1.0 → 0.2.0');
-    expect(wrapper.get('[data-test="replay-summary"]').text()).toContain('1 units charged');
+    expect(wrapper.get('[data-test="replay-summary"]').text()).toContain('1 unit charged');
     expect(wrapper.get('[data-test="replay-models"]').text()).toContain(
       'iapws-if97 (changed): Old citation → New citation',
     );
