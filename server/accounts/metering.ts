@@ -31,10 +31,12 @@
  * read from usage_daily on first use in a month, then advanced by each commit. On SQLite the
  * first read is synchronous, so the quota check never waits; on PostgreSQL it is queued behind the
  * group being committed (so it neither misses nor double-counts that group), and the metering
- * middleware awaits it before the request goes on. (A second process writing usage_daily — a
- * second server on the same SQLite file or PostgreSQL database — is not seen by these totals;
- * one server process per database is the supported layout for quotas, see
- * middleware/rate-limit.ts.)
+ * middleware awaits it before the request goes on. These totals miss what other nodes commit, so
+ * on PostgreSQL (several nodes) they are only each node's first check: the commit decides
+ * ({@link chargeWithinQuotas}: the charged accounts locked, their month read, a record that no
+ * longer fits written as a 429 with 0 units), and the totals known are refreshed from the database
+ * at each commit. On SQLite one process serves the file and its totals are exact, so a charge is
+ * never refused at the commit there.
  */
 import { setImmediate as nextTurn } from 'node:timers';
 import { and, eq, isNull, lt, or, sql } from 'drizzle-orm';

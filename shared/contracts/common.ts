@@ -382,3 +382,9 @@ export const IdSchema = z
   .regex(/^[a-z0-9]+(?:-[a-z0-9]+)*$/, {
     error: 'must be kebab-case: lower-case letters, digits and single hyphens',
   });
+
+/**
+ * Property names that would reach an object's prototype: refused as a request body's keys
+ * (server/http/middleware/body.ts) and as segments of a field path (sweeps).
+ */
+export const PROTOTYPE_KEYS: readonly string[] = ['__proto__', 'constructor', 'prototype'];

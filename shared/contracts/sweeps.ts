@@ -6,7 +6,7 @@
  */
 import { z } from 'zod';
 import { batchOperations, runTally } from './batch.js';
-import { ProblemSchema } from './common.js';
+import { ProblemSchema, PROTOTYPE_KEYS } from './common.js';
 
 /** Most points in one sweep (the product of the fields' counts); more is refused with 422. */
 export const MAX_SWEEP_POINTS = 10_000;
@@ -14,7 +14,7 @@ export const MAX_SWEEP_POINTS = 10_000;
 export const MAX_SWEEP_FIELDS = 2;
 
 /** Path segments that never name a field (they would reach an object's prototype). */
-export const FORBIDDEN_SEGMENTS: readonly string[] = ['__proto__', 'constructor', 'prototype'];
+export const FORBIDDEN_SEGMENTS = PROTOTYPE_KEYS;
 
 /** `body.pressure`, `feed.temperature`, `effects[1].area`: object keys and array indices. */
 const FIELD_PATH = /^[A-Za-z_$][\w$]*(?:\.[A-Za-z_$][\w$]*|\[\d{1,3}\])*$/;

@@ -7,6 +7,7 @@
  * Accepted media types for POST/PUT/PATCH bodies: application/json (and +json), text/csv (parsed
  * to a string in req.body), multipart/form-data (left unparsed for a route's own multer).
  */
+import { PROTOTYPE_KEYS } from '../../../shared/contracts/common.js';
 import type http from 'node:http';
 import express, { type ErrorRequestHandler, type RequestHandler } from 'express';
 import { problem, ProblemError } from '../problem.js';
@@ -29,7 +30,7 @@ export const MAX_JSON_DEPTH = 64;
  * harmless by itself, but code that copies such a body by assignment would set a prototype
  * instead of a property; no field of the API has these names.
  */
-export const FORBIDDEN_KEYS: ReadonlySet<string> = new Set(['__proto__', 'constructor', 'prototype']);
+export const FORBIDDEN_KEYS: ReadonlySet<string> = new Set(PROTOTYPE_KEYS);
 
 /** The dotted path (`cases[2].feed.__proto__`) of the first forbidden property name; slow path. */
 function forbiddenKeyPath(root: unknown): string {
