@@ -8,6 +8,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startCluster, type Cluster } from '../support/cluster.js';
 import { ensureConsoleBuilt } from '../support/console-build.js';
 import { ConsoleSession } from '../support/console-session.js';
+import { testPool } from '../support/postgres-server.js';
 
 const ADMIN_EMAIL = 'cluster-admin@ebullio.invalid';
 const ADMIN_PASSWORD = 'invented-cluster-password-2026';
@@ -54,7 +55,7 @@ beforeAll(async () => {
     nodes: 3,
     env: { BOOTSTRAP_ADMIN_EMAIL: ADMIN_EMAIL, BOOTSTRAP_ADMIN_PASSWORD: ADMIN_PASSWORD },
   });
-  db = new pg.Pool({ connectionString: cluster.databaseUrl, max: 2 });
+  db = testPool(cluster.databaseUrl, 2);
   admin = new ConsoleSession(cluster.url);
   await admin.signIn(ADMIN_EMAIL, ADMIN_PASSWORD);
 }, 180_000);

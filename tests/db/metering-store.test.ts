@@ -37,7 +37,7 @@ import { metering } from '../../server/http/middleware/metering.js';
 import { chargeUnits, requireOperation } from '../../server/http/middleware/operation.js';
 import { requestId } from '../../server/http/middleware/request-id.js';
 import { ProblemError } from '../../server/http/problem.js';
-import { startPostgres, type PostgresServer } from '../support/postgres-server.js';
+import { startPostgres, testPool, type PostgresServer } from '../support/postgres-server.js';
 import { testConfig } from '../http/helpers.js';
 
 let server: PostgresServer;
@@ -47,7 +47,7 @@ let databases = 0;
 
 beforeAll(async () => {
   server = await startPostgres();
-  admin = new pg.Pool({ connectionString: server.url, max: 1 });
+  admin = testPool(server.url, 1);
 }, 120_000);
 
 afterAll(async () => {

@@ -12,6 +12,7 @@ import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import { promisify } from 'node:util';
+import pg from 'pg';
 
 const run = promisify(execFile);
 const PG_ROOT = '/usr/lib/postgresql';
@@ -137,4 +138,16 @@ export async function startPostgres(): Promise<PostgresServer> {
     stopNow();
     throw tail ? new Error(`${(err as Error).message}\nserver log:\n${tail}`) : err;
   }
+}
+
+/**
+ * A pool for a test's own queries on the throw-away server. pg-pool's `end()` resolves as soon as
+ * its connections are told to close, not once they have; when the server is stopped right after,
+ * its "terminating connection" notice reaches a closing connection and, without a listener, is an
+ * uncaught 'error' event that fails the whole run. The notice is expected then, so it is ignored.
+ */
+export function testPool(url: string, max: number): pg.Pool {
+  const pool = new pg.Pool({ connectionString: url, max });
+  pool.on('error', () => {});
+  return pool;
 }
