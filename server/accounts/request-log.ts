@@ -26,9 +26,19 @@ export interface RedactionContext {
   requestId?: string | undefined;
 }
 
+/**
+ * Long runs that are words, not keys: the API's own message codes and field names
+ * (`caustic-stress-corrosion-cracking`, `condensateFilmReynoldsNumberAtBottom`). A random secret of
+ * 32 characters takes either shape with a chance of about 10⁻⁶ (letters only, no two capitals
+ * together, no digit), and the key a request presents is removed by value whatever its shape.
+ */
+const WORDS_NOT_KEY = /^(?:[a-z]+(?:-[a-z]+)+|[a-z]+(?:[A-Z][a-z]+)+)$/;
+
 /** Replaces every key-shaped token ({@link KEY_SHAPED_PATTERN}) and the presented key in text. */
 export function redactText(text: string, ctx: RedactionContext = {}): string {
-  let s = text.replace(KEY_SHAPED_PATTERN, (m) => (m === ctx.requestId ? m : REDACTED));
+  let s = text.replace(KEY_SHAPED_PATTERN, (m) =>
+    m === ctx.requestId || WORDS_NOT_KEY.test(m) ? m : REDACTED,
+  );
   const token = ctx.presentedToken;
   if (token) {
     for (const secret of [token, secretPartOf(token)]) {

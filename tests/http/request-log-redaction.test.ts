@@ -193,6 +193,20 @@ describe('the key-shape pattern', () => {
     await expectNoSecret(h, secretPartOf(legacy)!);
   });
 
+  it('keeps long message codes and field names, and still removes a key-length run of mixed characters', () => {
+    const body = {
+      warnings: [{ code: 'caustic-stress-corrosion-cracking' }],
+      condensateFilmReynoldsNumberAtBottom: 1800,
+      // Invented bootstrap-form secret (not real): digits and capitals, 36 characters.
+      note: 'kQ7rT2xW9pL4mZ8vB3nH6jF1dS5gA0cE-yUu',
+    };
+    expect(JSON.parse(logBody(body, 8192)!)).toEqual({
+      warnings: [{ code: 'caustic-stress-corrosion-cracking' }],
+      condensateFilmReynoldsNumberAtBottom: 1800,
+      note: REDACTED,
+    });
+  });
+
   it('logs a body it cannot serialise as a note instead of throwing', () => {
     const cyclic: Record<string, unknown> = { pressure: '1 bar' };
     cyclic.self = { again: cyclic };
