@@ -230,10 +230,10 @@ export interface ProblemBody {
   errors?: ProblemFieldError[];
 }
 
-/** Writes a problem-details response (status, headers, `application/problem+json` body). */
-export function sendProblem(res: Response, p: ProblemError): void {
+/** The problem-details body of a problem answered to this response's request. */
+export function problemBody(res: Response, p: ProblemError): ProblemBody {
   const req: Request = res.req;
-  const body: ProblemBody = {
+  return {
     type: problemTypeUri(p.type),
     title: p.title,
     status: p.status,
@@ -243,6 +243,13 @@ export function sendProblem(res: Response, p: ProblemError): void {
     ...(typeof res.locals.requestId === 'string' ? { requestId: res.locals.requestId } : {}),
     ...(p.errors && p.errors.length > 0 ? { errors: p.errors } : {}),
   };
+}
+
+/** Writes a problem-details response (status, headers, `application/problem+json` body). */
+export function sendProblem(res: Response, p: ProblemError): void {
   for (const [name, value] of Object.entries(p.headers)) res.setHeader(name, value);
-  res.status(p.status).type('application/problem+json').send(JSON.stringify(body));
+  res
+    .status(p.status)
+    .type('application/problem+json')
+    .send(JSON.stringify(problemBody(res, p)));
 }

@@ -35,6 +35,7 @@ import { carriesKey, logBody, redactText, type RedactionContext } from '../../ac
 import { nextMonthStartUtc, thresholdsReached } from '../../accounts/usage.js';
 import type { AppDeps } from '../../deps.js';
 import { presentedToken } from './auth.js';
+import { problem, problemBody, type ProblemError } from '../problem.js';
 import { elapsedMs } from './request-id.js';
 import type { AuthContext, MeterState } from './locals.js';
 
@@ -195,23 +196,24 @@ class MeteredRequest implements MeterState {
 
   /** The database refused the record: a 500 problem instead of an unbilled result. */
   private refuseUnmetered(err: unknown): void {
-    const { req, res } = this;
-    console.error(`[metering] could not record request ${res.locals.requestId}:`, err);
+    console.error(`[metering] could not record request ${this.res.locals.requestId}:`, err);
+    this.answerInstead(problem('internal', 'The request could not be metered; no result was returned.'));
+  }
+
+  /**
+   * Answers a problem in place of the response the handler wrote, which was held until metering
+   * committed; if its headers (and maybe part of a streamed body) have left, cuts it short.
+   */
+  private answerInstead(p: ProblemError): void {
+    const { res } = this;
     if (res.headersSent) {
-      // Headers (and maybe a part of a streamed body) have left: cut the response short.
       res.destroy();
       return;
     }
-    const body = JSON.stringify({
-      type: '/problems/internal',
-      title: 'Internal error',
-      status: 500,
-      detail: 'The request could not be metered; no result was returned.',
-      instance: pathOf(req.originalUrl),
-      requestId: res.locals.requestId,
-    });
-    res.statusCode = 500;
+    const body = JSON.stringify(problemBody(res, p));
+    res.statusCode = p.status;
     res.removeHeader('ETag');
+    for (const [name, value] of Object.entries(p.headers)) res.setHeader(name, value);
     res.setHeader('Content-Type', 'application/problem+json');
     res.setHeader('Content-Length', Buffer.byteLength(body));
     this.send([body]);
@@ -224,31 +226,16 @@ class MeteredRequest implements MeterState {
    * the result it was not charged for.
    */
   private refuseOverQuota(refusal: QuotaSpentElsewhere): void {
-    const { req, res } = this;
-    if (res.headersSent) {
-      res.destroy();
-      return;
-    }
-    const body = JSON.stringify({
-      type: '/problems/quota-exceeded',
-      title: 'Monthly quota exceeded',
-      status: 429,
-      detail:
-        `This request costs ${refusal.units} units but only ${refusal.remaining} of the monthly quota of ` +
-        `${refusal.quota} units remain (spent by this account's other requests meanwhile); no result was returned.`,
-      instance: pathOf(req.originalUrl),
-      requestId: res.locals.requestId,
-    });
     const now = this.ctx.deps.clock();
-    res.statusCode = 429;
-    res.removeHeader('ETag');
-    res.setHeader('Content-Type', 'application/problem+json');
-    res.setHeader('Content-Length', Buffer.byteLength(body));
-    res.setHeader(
-      'Retry-After',
-      String(Math.max(1, Math.ceil((nextMonthStartUtc(now).getTime() - now.getTime()) / 1000))),
+    const untilNextMonth = (nextMonthStartUtc(now).getTime() - now.getTime()) / 1000;
+    this.answerInstead(
+      problem(
+        'quota-exceeded',
+        `This request costs ${refusal.units} units but only ${refusal.remaining} of the monthly quota of ` +
+          `${refusal.quota} units remain (spent by this account's other requests meanwhile); no result was returned.`,
+        { headers: { 'Retry-After': String(Math.max(1, Math.ceil(untilNextMonth))) } },
+      ),
     );
-    this.send([body]);
   }
 
   /**
