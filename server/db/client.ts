@@ -54,16 +54,30 @@ export function runMigrations(db: Db): void {
 }
 
 /** Number of migrations in drizzle/meta/_journal.json that the database has not applied. */
+const committedCounts = new Map<string, number>();
+
+/**
+ * How many migrations a folder's drizzle-kit journal lists. Read once per folder: the files ship
+ * with the build, and /readyz asks on every probe.
+ */
+export function committedMigrationCount(folder: string): number {
+  let count = committedCounts.get(folder);
+  if (count === undefined) {
+    const journal = JSON.parse(fs.readFileSync(path.join(folder, 'meta', '_journal.json'), 'utf8')) as {
+      entries: unknown[];
+    };
+    count = journal.entries.length;
+    committedCounts.set(folder, count);
+  }
+  return count;
+}
+
 export function pendingMigrationCount(sqlite: Sqlite): number {
-  const journal = JSON.parse(
-    fs.readFileSync(path.join(migrationsFolder, 'meta', '_journal.json'), 'utf8'),
-  ) as {
-    entries: unknown[];
-  };
+  const committed = committedMigrationCount(migrationsFolder);
   const table = sqlite
     .prepare("SELECT name FROM sqlite_master WHERE type = 'table' AND name = '__drizzle_migrations'")
     .get();
-  if (!table) return journal.entries.length;
+  if (!table) return committed;
   const row = sqlite.prepare('SELECT COUNT(*) AS n FROM __drizzle_migrations').get() as { n: number };
-  return Math.max(0, journal.entries.length - row.n);
+  return Math.max(0, committed - row.n);
 }

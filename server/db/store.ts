@@ -27,13 +27,19 @@
  * failed as a programming error rather than left open for other requests' statements.
  */
 import { AsyncLocalStorage } from 'node:async_hooks';
-import fs from 'node:fs';
 import path from 'node:path';
 import type { SQL } from 'drizzle-orm';
 import { drizzle as drizzlePostgres, type NodePgDatabase } from 'drizzle-orm/node-postgres';
 import { migrate as migratePostgres } from 'drizzle-orm/node-postgres/migrator';
 import pg from 'pg';
-import { openDatabase, pendingMigrationCount, runMigrations, type Db, type Sqlite } from './client.js';
+import {
+  committedMigrationCount,
+  openDatabase,
+  pendingMigrationCount,
+  runMigrations,
+  type Db,
+  type Sqlite,
+} from './client.js';
 import * as sqliteSchema from './schema.js';
 import * as postgresSchema from './schema-pg.js';
 
@@ -200,13 +206,11 @@ function postgresStore(pool: pg.Pool, pgDb: PostgresDb, inTransaction: boolean):
       await pool.query('SELECT 1');
     },
     async pendingMigrations() {
-      const journal = JSON.parse(
-        fs.readFileSync(path.join(postgresMigrationsFolder, 'meta', '_journal.json'), 'utf8'),
-      ) as { entries: unknown[] };
+      const committed = committedMigrationCount(postgresMigrationsFolder);
       const { rows } = await pool.query<{ n: string }>(
         "SELECT CASE WHEN to_regclass('drizzle.__drizzle_migrations') IS NULL THEN 0 ELSE (SELECT count(*) FROM drizzle.__drizzle_migrations) END AS n",
       );
-      return Math.max(0, journal.entries.length - Number(rows[0]?.n ?? 0));
+      return Math.max(0, committed - Number(rows[0]?.n ?? 0));
     },
     async migrate() {
       const client = await pool.connect();
