@@ -160,17 +160,23 @@ function refusal(
   return unauthorized(result.reason);
 }
 
+/**
+ * The store's key lookup. SQLite: synchronous (prepared statements), so the hot path has no
+ * await; other stores answer a promise. The checks around it are the same.
+ */
+function keyLookup(deps: AppDeps): (token: string, now: Date) => AuthResult | Promise<AuthResult> {
+  const sqlite = deps.store.sqlite;
+  return (token, now) =>
+    sqlite
+      ? authenticateTokenOnSqlite(sqlite, deps.config.secret, token, now)
+      : authenticateToken(deps.store, deps.config.secret, token, now);
+}
+
 export function authenticate(deps: AppDeps, options: AuthenticateOptions = {}): RequestHandler {
   const shared = deps.shared?.rateLimitStore('key-failures');
   if (shared) return authenticateShared(deps, options, new SharedKeyFailureCounter(shared));
   const failures = new KeyFailureCounter();
-  const sqlite = deps.store.sqlite;
-  // SQLite: the key is looked up synchronously (prepared statements), no await on the hot path;
-  // other stores await the lookup. The checks around it are the same.
-  const lookup = (token: string, now: Date): AuthResult | Promise<AuthResult> =>
-    sqlite
-      ? authenticateTokenOnSqlite(sqlite, deps.config.secret, token, now)
-      : authenticateToken(deps.store, deps.config.secret, token, now);
+  const lookup = keyLookup(deps);
   return (req, res, next) => {
     const token = presentedOrRefused(req);
     const now = deps.clock();
@@ -231,43 +237,25 @@ function authenticateShared(
  * while the database's auth_revision is unchanged (server/accounts/keys.ts).
  */
 export function reauthenticate(deps: AppDeps): RequestHandler {
-  const sqlite = deps.store.sqlite;
-  const refuse = (result: AuthResult, res: Response) => {
+  const lookup = keyLookup(deps);
+  const admitted = (result: AuthResult, res: Response): void => {
     if (!result.ok) {
       res.locals.meter?.keyRefused();
       throw unauthorized(result.reason);
     }
   };
-  if (sqlite) {
-    // SQLite: synchronous, so the check runs in the same turn as the end of the body.
-    return (req, res, next) => {
-      const recheck = () => {
-        const token = presentedToken(req.get('authorization'));
-        refuse(
-          token === undefined
-            ? ({ ok: false, reason: 'malformed' } as const)
-            : authenticateTokenOnSqlite(sqlite, deps.config.secret, token, deps.clock()),
-          res,
-        );
-      };
-      // Multipart bodies are read by the route (upload.ts), which calls this again when done.
-      res.locals.recheckKey = recheck;
-      recheck();
-      next();
-    };
-  }
-  return async (req, res, next) => {
-    const recheck = async () => {
+  return (req, res, next) => {
+    // On SQLite the check runs in the same turn as the end of the body.
+    const recheck = (): void | Promise<void> => {
       const token = presentedToken(req.get('authorization'));
-      refuse(
-        token === undefined
-          ? ({ ok: false, reason: 'malformed' } as const)
-          : await authenticateToken(deps.store, deps.config.secret, token, deps.clock()),
-        res,
-      );
+      if (token === undefined) return admitted({ ok: false, reason: 'malformed' }, res);
+      const result = lookup(token, deps.clock());
+      return result instanceof Promise ? result.then((r) => admitted(r, res)) : admitted(result, res);
     };
+    // Multipart bodies are read by the route (upload.ts), which calls this again when done.
     res.locals.recheckKey = recheck;
-    await recheck();
+    const pending = recheck();
+    if (pending) return pending.then(() => next());
     next();
   };
 }
