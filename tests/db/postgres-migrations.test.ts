@@ -13,7 +13,12 @@ import { getTableConfig, PgTable } from 'drizzle-orm/pg-core';
 import pg from 'pg';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import * as schema from '../../server/db/schema-pg.js';
-import { findPostgresBinDir, startPostgres, testPool, type PostgresServer } from '../support/postgres-server.js';
+import {
+  findPostgresBinDir,
+  startPostgres,
+  testPool,
+  type PostgresServer,
+} from '../support/postgres-server.js';
 
 const migrationsFolder = path.resolve(import.meta.dirname, '../../drizzle-pg');
 const journal = JSON.parse(fs.readFileSync(path.join(migrationsFolder, 'meta', '_journal.json'), 'utf8')) as {
