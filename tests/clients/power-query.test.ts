@@ -3,6 +3,7 @@
 // from the script's text and sent to a listening server, which must answer every case.
 import { readFileSync } from 'node:fs';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { createKey } from '../../server/accounts/keys.js';
 import { createEbullioClient, type Schema } from '../../openapi/client/index.js';
 import { usageRows } from '../http/helpers.js';
 import { startLiveServer, type LiveServer } from './live-server.js';
@@ -72,8 +73,17 @@ describe('the Power Query recipe', () => {
     expect(SCRIPT).not.toMatch(/ebk1\./);
   });
 
-  it('sends the sample table as one batch that the server answers case by case, each equal to its single call', async () => {
-    const request = scriptRequest(live.baseUrl, live.apiKey);
+  it('sends the sample table with a batch-only key as one batch, answered case by case as the single calls', async () => {
+    // The recipe advises a key with only the batch scope in the workbook: it is enough.
+    const h = live.harness;
+    const { token: batchOnly } = await createKey(h.store, h.config.secret, {
+      accountId: h.accountId,
+      name: 'workbook key',
+      scopes: ['batch'],
+      rateLimitPerMinute: 60,
+      now: h.clock.now,
+    });
+    const request = scriptRequest(live.baseUrl, batchOnly);
     expect(request.cases[1]).toEqual({
       liquor: 'sucrose',
       steam: { pressure: '1 barg' },
