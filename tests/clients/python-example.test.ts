@@ -147,6 +147,21 @@ describe('the Python worked example', () => {
     expect(problem.detail).toMatch(/between 0 and 1/);
   });
 
+  it('says which server it cannot reach and exits 1, without a traceback', async () => {
+    // Port 1 on loopback: nothing listens there, so the connection is refused at once.
+    const failed = await run(
+      PYTHON,
+      ['worked_example.py', '--base-url', 'http://127.0.0.1:1', '--api-key', live.apiKey, '--skip-job'],
+      { cwd: EXAMPLE_DIR, env: pythonEnv, timeout: 30_000 },
+    ).then(
+      () => undefined,
+      (e: { code: number; stderr: string }) => e,
+    );
+    expect(failed?.code).toBe(1);
+    expect(failed?.stderr).toMatch(/cannot reach http:\/\/127\.0\.0\.1:1/);
+    expect(failed?.stderr).not.toMatch(/Traceback/);
+  });
+
   it('refuses to start without a key and says how to give one', async () => {
     const failed = await run(PYTHON, ['worked_example.py', '--base-url', live.baseUrl, '--skip-job'], {
       cwd: EXAMPLE_DIR,

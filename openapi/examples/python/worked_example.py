@@ -28,6 +28,7 @@ import argparse
 import json
 import os
 import sys
+import urllib.error
 from typing import Any
 
 from ebullio_client import EbullioClient, EbullioProblem
@@ -148,6 +149,9 @@ def main(argv: list[str] | None = None) -> int:
         print(f"refused: {problem}", file=sys.stderr)
         for error in problem.errors:
             print(f"  {error.get('field')}: {error.get('message')}", file=sys.stderr)
+        return 1
+    except (urllib.error.URLError, TimeoutError, ConnectionError) as err:
+        print(f"cannot reach {args.base_url}: {getattr(err, 'reason', err)}", file=sys.stderr)
         return 1
     json.dump(summary, sys.stdout, indent=2)
     sys.stdout.write("\n")
