@@ -61,10 +61,10 @@ function offered(decl: AnyOperation): decl is AnyOperation & { operation: { batc
 
 type JsonSchema = Record<string, unknown>;
 
-function jsonSchemaOf(schema: z.ZodType): JsonSchema {
-  // The input side: what a client sends (quantities as number or string with a unit).
+/** A part's JSON Schema: the input side for requests (quantities as number or text with a unit). */
+function jsonSchemaOf(schema: z.ZodType, io: 'input' | 'output' = 'input'): JsonSchema {
   return z.toJSONSchema(schema, {
-    io: 'input',
+    io,
     unrepresentable: 'any',
     target: 'draft-2020-12',
   }) as JsonSchema;
@@ -111,6 +111,7 @@ export function workbenchOperations(): WorkbenchOperation[] {
       sweepable: params === null,
       params,
       body,
+      response: decl.response.schema ? jsonSchemaOf(decl.response.schema, 'output') : null,
       example: {
         params: paramsExample(params),
         body: decl.request?.example?.value ?? schemaExample(body) ?? {},

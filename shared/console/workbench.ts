@@ -24,6 +24,9 @@ export const WorkbenchOperationSchema = z
     sweepable: z.boolean().meta({ description: 'Whether the workbench can sweep it (no path parameters)' }),
     params: JsonSchemaSchema.nullable().meta({ description: 'The path parameters (null: none)' }),
     body: JsonSchemaSchema,
+    response: JsonSchemaSchema.nullable().meta({
+      description: 'The answer’s JSON Schema (each number’s unit in `x-unit`), null when not documented',
+    }),
     example: z.object({
       params: z.record(z.string(), z.string()).nullable(),
       body: z.unknown(),
