@@ -10,6 +10,7 @@ import path from 'node:path';
 import { describe, expect, it } from 'vitest';
 import {
   axisValue,
+  changingLeaves,
   formFields,
   getAt,
   leafFields,
@@ -182,6 +183,15 @@ describe('sweeps', () => {
     expect(axisValue('warm')).toBeNull();
     expect(typedUnit('20 kPa')).toBe('kPa');
     expect(typedUnit(20)).toBeUndefined();
+  });
+
+  it('puts first the results that change along the sweep', () => {
+    const rows = [
+      { values: { p: 15 }, status: 'ok' as const, result: { feed: { massFlow: 1.25 }, area: 40, duty: 9 } },
+      { values: { p: 20 }, status: 'ok' as const, result: { feed: { massFlow: 1.25 }, area: 50, duty: 9 } },
+      { values: { p: 25 }, status: 'error' as const },
+    ];
+    expect(changingLeaves(rows)).toEqual(['area']);
   });
 
   it('charts every number of a result but its provenance, warnings and cautions', () => {

@@ -289,7 +289,7 @@ export function entryText(value: unknown): string {
 
 /** The hint under a quantity field: its default unit and range, and that units may be typed. */
 export function quantityHint(f: QuantityField): string {
-  const unit = f.unit === '1' ? 'a fraction 0–1' : f.unit;
+  const unit = f.unit === '1' ? 'a fraction 0–1' : unitLabel(f.unit);
   const range =
     f.min !== undefined && f.max !== undefined
       ? `, ${f.min} to ${f.max}`
@@ -390,6 +390,20 @@ export function numericLeaves(result: unknown, prefix = '', out: string[] = []):
   return out;
 }
 
+/**
+ * The numbers worth plotting first: those that change from one succeeding row to the next (an
+ * input echoed unchanged in every row draws a flat line), in result order.
+ */
+export function changingLeaves(rows: readonly SweepRow[]): string[] {
+  const ok = rows.filter((r) => r.status === 'ok' && r.result);
+  const first = ok[0]?.result;
+  if (!first) return [];
+  return numericLeaves(first).filter((path) => {
+    const seen = new Set(ok.map((r) => getAt(r.result, path)));
+    return seen.size > 1;
+  });
+}
+
 /** The leading number of a swept value (`"20 kPa"` → 20), for the chart's axis. */
 export function axisValue(v: unknown): number | null {
   if (typeof v === 'number') return Number.isFinite(v) ? v : null;
@@ -459,7 +473,8 @@ export function unitLabel(symbol: string | undefined): string {
     .replace(/degC/g, '°C')
     .replace(/degF/g, '°F')
     .replace(/([a-zA-Z])2\b/g, '$1²')
-    .replace(/([a-zA-Z])3\b/g, '$1³');
+    .replace(/([a-zA-Z])3\b/g, '$1³')
+    .replace(/\*/g, '·');
 }
 
 /** A result number for a table: at most 6 significant digits, no trailing noise. */
