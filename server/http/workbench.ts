@@ -195,7 +195,7 @@ export async function runOnKey(deps: AppDeps, key: ApiKeyView, run: WorkbenchRun
   const now = deps.clock();
   const catalogueEntry = sweep ? operationCatalogue.sweep : decl.operation;
   const params = run.params ?? {};
-  const path = sweep ? '/v1/sweeps' : pathOf(decl, params);
+  const path = pathOf(sweep ? operationDeclaration(operationCatalogue.sweep.id)! : decl, params);
   const publicBody = sweep
     ? { operation: decl.operation.batchName, base: run.body, vary: run.vary }
     : run.body;

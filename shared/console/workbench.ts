@@ -13,13 +13,15 @@ const JsonSchemaSchema = z
 
 export const WorkbenchOperationSchema = z
   .object({
-    id: z.string().meta({ description: 'Dotted operation id', example: 'evaporators.single-effect' }),
+    id: z.string().meta({ description: 'Dotted operation id (as in usage and the request log)' }),
     title: z.string(),
     label: z.string(),
     scope: z.enum(KEY_SCOPES).meta({ description: 'The API-key scope the operation needs' }),
     units: z.int().meta({ description: 'Base cost in units' }),
     method: z.enum(['get', 'post', 'put', 'delete']),
-    path: z.string().meta({ description: 'The public path, e.g. /v1/evaporators/single-effect' }),
+    path: z
+      .string()
+      .meta({ description: 'The public path of the operation, with `{name}` for path parameters' }),
     batchName: z.string().meta({ description: 'The name a batch or sweep gives in `operation`' }),
     sweepable: z.boolean().meta({ description: 'Whether the workbench can sweep it (no path parameters)' }),
     params: JsonSchemaSchema.nullable().meta({ description: 'The path parameters (null: none)' }),
@@ -40,7 +42,7 @@ export const WorkbenchOperationListSchema = z
   .meta({ id: 'WorkbenchOperationList' });
 export type WorkbenchOperationList = z.infer<typeof WorkbenchOperationListSchema>;
 
-/** At most two varied fields, each a list or a range, as in `POST /v1/sweeps`. */
+/** At most two varied fields, each a list or a range, as in a /v1 sweep. */
 export const MAX_WORKBENCH_VARY = 2;
 
 export const WorkbenchRunSchema = z
@@ -60,7 +62,7 @@ export const WorkbenchRunSchema = z
       .min(1)
       .max(MAX_WORKBENCH_VARY)
       .optional()
-      .meta({ description: 'Run a sweep: the `vary` of POST /v1/sweeps, with `body` as its `base`' }),
+      .meta({ description: 'Run a sweep: the `vary` of a /v1 sweep request, with `body` as its `base`' }),
   })
   .strict()
   .meta({ id: 'WorkbenchRun' });
