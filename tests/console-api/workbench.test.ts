@@ -169,6 +169,24 @@ describe('workbench runs', () => {
     expect(Number(row!.status)).toBe(403);
   });
 
+  it('holds a run to the key’s own per-minute limit', async () => {
+    const { key } = await createKey(h.store, h.config.secret, {
+      accountId: h.accountId,
+      name: 'two a minute',
+      scopes: ['steam'],
+      rateLimitPerMinute: 2,
+      now: h.clock.now,
+    });
+    const call = () =>
+      run({ keyId: key.id, operation: 'steam.state', body: { pressure: '10 bar', temperature: 250 } });
+    expect((await call()).status).toBe(200);
+    expect((await call()).status).toBe(200);
+    const third = await call();
+    expect(third.status).toBe(429);
+    expect((third.body as { type: string; detail: string }).type).toMatch(/rate-limited/);
+    expect((third.body as { detail: string }).detail).toMatch(/2 requests per minute/);
+  });
+
   it('refuses a key without the operation’s scope', async () => {
     const { key } = await createKey(h.store, h.config.secret, {
       accountId: h.accountId,
