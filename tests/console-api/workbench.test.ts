@@ -1,6 +1,9 @@
 // The console's workbench: GET /console-api/workbench/operations and POST /console-api/workbench/run
 // (a /v1 calculation, or a sweep of it, run with a chosen API key as that key's own call).
 // Runs on SQLite and PostgreSQL (the store of tests/http/helpers.ts).
+import { execFile } from 'node:child_process';
+import type { AddressInfo } from 'node:net';
+import { promisify } from 'node:util';
 import { sql } from 'drizzle-orm';
 import request from 'supertest';
 import { beforeEach, describe, expect, it } from 'vitest';
@@ -9,6 +12,7 @@ import { createKey, revokeKey } from '../../server/accounts/keys.js';
 import { consoleRouteModules } from '../../server/console/index.js';
 import { workbenchRoutes } from '../../server/console/workbench.js';
 import type { WorkbenchOperationList, WorkbenchResult } from '../../shared/console/workbench.js';
+import { curlSnippet, pythonSnippet } from '../../console/src/composables/request-snippets.js';
 import { makeHarness, usageRows, type Harness } from '../http/helpers.js';
 import { signInOnePerRole, type ConsoleAgent } from './console-agents.js';
 
@@ -286,5 +290,34 @@ describe('workbench runs', () => {
     });
     expect(res.status).toBe(422);
     expect((res.body as { errors: { field: string }[] }).errors[0]!.field).toBe('vary[0].field');
+  });
+});
+
+describe('copy as', () => {
+  beforeEach(async () => {
+    await setUp();
+  });
+
+  it('gives curl and Python requests that the public API answers as the workbench did', async () => {
+    const res = await run({ keyId: h.keyId, operation: 'evaporators.single-effect', body: SINGLE_EFFECT });
+    expect(res.status).toBe(200);
+    const out = res.body as WorkbenchResult;
+    const server = h.app.listen(0, '127.0.0.1');
+    await new Promise((resolve) => server.once('listening', resolve));
+    try {
+      const origin = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
+      // The key comes from the environment, as the snippets say; the snippets themselves hold none.
+      const env = { ...process.env, EBULLIO_API_KEY: h.token };
+      const curl = curlSnippet(origin, out.request);
+      expect(curl).not.toContain(h.token);
+      const viaCurl = await promisify(execFile)('/usr/bin/bash', ['-c', curl], { env });
+      expect(JSON.parse(viaCurl.stdout)).toEqual(out.result);
+      // Debian's Python 3, standard library only.
+      const python = pythonSnippet(origin, out.request);
+      const viaPython = await promisify(execFile)('/usr/bin/python3', ['-c', python], { env });
+      expect(JSON.parse(viaPython.stdout)).toEqual(out.result);
+    } finally {
+      await new Promise((resolve) => server.close(resolve));
+    }
   });
 });

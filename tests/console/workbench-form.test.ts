@@ -242,7 +242,8 @@ describe('copy as', () => {
   it('writes TypeScript with the generated client and the path parameters apart', () => {
     const text = typescriptSnippet(origin, request, template);
     expect(text).toContain("import { createEbullioClient } from './openapi/client/index.js';");
-    expect(text).toContain('apiKey: process.env.EBULLIO_API_KEY');
+    expect(text).toContain('const apiKey = process.env.EBULLIO_API_KEY;');
+    expect(text).toContain("createEbullioClient({ baseUrl: 'https://ebullio.example', apiKey });");
     expect(text).toContain("await ebullio.POST('/v1/liquors/{liquorId}/boiling-point', {");
     expect(text).toContain("params: { path: {\n    liquorId: 'sodium-hydroxide',");
     expect(text).toContain("pressure: '150 mbar it\\'s',");
