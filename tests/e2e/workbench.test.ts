@@ -25,6 +25,13 @@ async function choose(select: string, option: RegExp): Promise<void> {
 }
 
 /** Clicks Run and returns the console API's answer (status and body). */
+/** Scrolls to the top before a full-page screenshot, so the fixed app bar is drawn where it belongs. */
+async function shoot(name: string): Promise<void> {
+  const { page } = flow.browser;
+  await page.evaluate(() => window.scrollTo(0, 0));
+  await screenshot(page, name);
+}
+
 async function run(): Promise<{ status: number; body: Record<string, unknown> }> {
   const { page } = flow.browser;
   const answered = page.waitForResponse(
@@ -63,7 +70,7 @@ describe('workbench: a calculation from the console with a key of one’s accoun
     await answer.locator('[data-test="answer-cautions"]').waitFor({ state: 'visible' });
     expect(await answer.locator('[data-test="answer-provenance"]').innerText()).toMatch(/iapws-if97/);
     await flow.browser.settle(300, 3000);
-    await screenshot(page, 'workbench-result');
+    await shoot('workbench-result');
   }, 60_000);
 
   it('shows the API’s message beside the field a bad value was typed in', async () => {
@@ -78,7 +85,7 @@ describe('workbench: a calculation from the console with a key of one’s accoun
     const message = field('body.pressure').locator('.v-messages__message', { hasText: errors[0]!.message });
     await message.waitFor({ state: 'visible' });
     expect(await page.locator('[data-test="answer"]').count()).toBe(0);
-    await screenshot(page, 'workbench-field-problem');
+    await shoot('workbench-field-problem');
   }, 60_000);
 
   it('sweeps the body pressure over a range and plots the chosen results', async () => {
@@ -103,12 +110,13 @@ describe('workbench: a calculation from the console with a key of one’s accoun
     expect(await charts.count()).toBeGreaterThanOrEqual(1);
     expect(await page.locator('[data-test="sweep-rows"] tbody tr').count()).toBe(6);
     await flow.browser.settle(300, 3000);
-    await screenshot(page, 'workbench-sweep');
+    await shoot('workbench-sweep');
   }, 60_000);
 
   it('copies the request as curl, with the key as a placeholder and never a secret', async () => {
     const { page } = flow.browser;
     await page.locator('[data-test="mode-single"]').click();
+    await page.evaluate(() => window.scrollTo(0, 0));
     await page.locator('[data-test="copy-as-open"]').click();
     const snippet = page.locator('[data-test="snippet"]');
     await snippet.waitFor({ state: 'visible' });
