@@ -29,6 +29,7 @@ import {
 import { logBody } from '../accounts/request-log.js';
 import { nextMonthStartUtc } from '../accounts/usage.js';
 import type { AppDeps } from '../deps.js';
+import { toProblem } from './engine-errors.js';
 import { checkJsonBody } from './middleware/body.js';
 import { problem, ProblemError } from './problem.js';
 import { findNonFinite } from './send.js';
@@ -290,7 +291,14 @@ export async function runOnKey(deps: AppDeps, key: ApiKeyView, run: WorkbenchRun
           );
         }
       }
-    } catch (err) {
+    } catch (thrown) {
+      // An engine error that escaped its field map is the problem the app would answer with.
+      let err = thrown;
+      try {
+        err = toProblem(thrown);
+      } catch {
+        // unknown: a 500 from the app
+      }
       // A refusal is logged under the key with 0 units, as the public call's would be.
       const status = problemStatus(err);
       await recordRequest(
