@@ -133,6 +133,23 @@ describe('workbench runs', () => {
     });
   });
 
+  it('logs the call so that the request log can run it again', async () => {
+    const res = await run({ keyId: h.keyId, operation: 'evaporators.single-effect', body: SINGLE_EFFECT });
+    const out = res.body as WorkbenchResult;
+    const [row] = await h.store.rows<{ id: number }>(
+      sql`SELECT id FROM request_log WHERE request_id = ${out.requestId}`,
+    );
+    const again = await agents.developer.agent
+      .post(`/console-api/request-log/${Number(row!.id)}/replay`)
+      .set('X-CSRF-Token', agents.developer.csrf);
+    expect(again.status).toBe(200);
+    expect(again.body).toMatchObject({
+      operation: 'evaporators.single-effect',
+      responseStored: true,
+      differences: [],
+    });
+  });
+
   it('admin may use any account’s key', async () => {
     const res = await run(
       { keyId: h.keyId, operation: 'steam.state', body: { pressure: '10 bar', temperature: 250 } },
