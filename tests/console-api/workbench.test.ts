@@ -150,6 +150,45 @@ describe('workbench runs', () => {
     });
   });
 
+  it('runs an operation that names its liquor in the path, and logs the public path', async () => {
+    // 30 % caustic at 150 mbar: the worked example of the boiling-point operation.
+    const res = await run({
+      keyId: h.keyId,
+      operation: 'liquors.boiling-point',
+      params: { liquorId: 'sodium-hydroxide' },
+      body: { massFraction: 0.3, pressure: '150 mbar' },
+    });
+    expect(res.status).toBe(200);
+    const out = res.body as WorkbenchResult;
+    expect(out.request.path).toBe('/v1/liquors/sodium-hydroxide/boiling-point');
+    const direct = await request(h.app)
+      .post('/v1/liquors/sodium-hydroxide/boiling-point')
+      .set('Authorization', `Bearer ${h.token}`)
+      .send({ massFraction: 0.3, pressure: '150 mbar' });
+    expect(out.result).toEqual(direct.body);
+    expect((await logRow(out.requestId))!.path).toBe('/v1/liquors/sodium-hydroxide/boiling-point');
+    // A liquor the service does not know is the API's 404.
+    const unknown = await run({
+      keyId: h.keyId,
+      operation: 'liquors.boiling-point',
+      params: { liquorId: 'no-such-liquor' },
+      body: { massFraction: 0.3, pressure: '150 mbar' },
+    });
+    expect(unknown.status).toBe(404);
+  });
+
+  it('does not sweep an operation that takes path parameters', async () => {
+    const res = await run({
+      keyId: h.keyId,
+      operation: 'liquors.boiling-point',
+      params: { liquorId: 'sodium-hydroxide' },
+      body: { massFraction: 0.3, pressure: '150 mbar' },
+      vary: [{ field: 'pressure', values: [10, 20] }],
+    });
+    expect(res.status).toBe(422);
+    expect((res.body as { errors: { field: string }[] }).errors[0]!.field).toBe('vary');
+  });
+
   it('admin may use any account’s key', async () => {
     const res = await run(
       { keyId: h.keyId, operation: 'steam.state', body: { pressure: '10 bar', temperature: 250 } },
