@@ -93,16 +93,24 @@ describe('workbench: a calculation from the console with a key of one’s accoun
     await field('body.pressure').locator('input').fill('20 kPa');
     await page.locator('[data-test="mode-sweep"]').click();
     await page.locator('[data-test="sweep-settings"]').waitFor({ state: 'visible' });
-    await page.getByRole('combobox', { name: 'Varied field' }).fill('body.pressure');
+    const varied = page.getByRole('combobox', { name: 'Varied field' });
+    await varied.fill('body.pressure');
     await page
       .getByRole('option', { name: /^body\.pressure/ })
       .first()
       .click();
-    await page.locator('.v-overlay--active .v-list').first().waitFor({ state: 'hidden' });
+    // The list may stay open while the field keeps focus: close it before typing the range.
+    const list = page.locator('.v-overlay--active .v-list').first();
+    if (await list.isVisible()) await varied.press('Escape');
+    await list.waitFor({ state: 'hidden' });
     await page.locator('[data-test="sweep-from"] input').fill('15');
     await page.locator('[data-test="sweep-to"] input').fill('40');
     await page.locator('[data-test="sweep-steps"] input').fill('6');
-    await run();
+    const answer = await run();
+    expect(answer.status).toBe(200);
+    expect((answer.body.request as { body: { vary: unknown[] } }).body.vary).toEqual([
+      { field: 'body.pressure', from: 15, to: 40, steps: 6 },
+    ]);
     const summary = page.locator('[data-test="answer-summary"]');
     await expect.poll(() => summary.innerText()).toMatch(/6 points, 6 answered, 0 refused/);
     const charts = page.locator('[data-chart] canvas');
