@@ -28,6 +28,7 @@ import { keyRoutes } from './keys.js';
 import { requestLogRoutes } from './request-log.js';
 import { usageRoutes } from './usage.js';
 import { liquorRoutes } from './liquors.js';
+import { workbenchRoutes } from './workbench.js';
 
 /** Console route modules, registered in this order. Append yours, one line. */
 export const consoleRouteModules: ConsoleRouteModule[] = [
@@ -42,6 +43,7 @@ export const consoleRouteModules: ConsoleRouteModule[] = [
   requestLogRoutes,
   usageRoutes,
   liquorRoutes,
+  workbenchRoutes,
 ];
 
 /** Builds the console router (without mounting it). */

@@ -76,6 +76,12 @@ export const consoleRoutes: ConsoleRoute[] = [
     component: () => import('../views/LiquorLibraryView.vue'),
     meta: { title: 'Liquor library', icon: 'mdi-flask-round-bottom-outline', roles: ['admin', 'billing'] },
   },
+  {
+    path: 'workbench',
+    name: 'workbench',
+    component: () => import('../views/WorkbenchView.vue'),
+    meta: { title: 'Workbench', icon: 'mdi-calculator-variant-outline', roles: ['admin', 'developer'] },
+  },
   // ---- (end of the appended pages) ----
   {
     path: 'users',

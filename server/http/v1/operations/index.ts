@@ -5,7 +5,7 @@
  */
 import type { AnyOperation } from '../operation.js';
 import { batchOperation } from './batch.js';
-import { sweepOperation } from './sweeps.js';
+import { sweepOperation, sweepRunner } from './sweeps.js';
 import { multipleEffect, singleEffect } from './evaporators.js';
 import { mechanicalVaporRecompressionOperation } from './recompression.js';
 import { overallCoefficient } from './heat-transfer.js';
@@ -44,6 +44,12 @@ export const v1Operations: readonly AnyOperation[] = [
   evaporatorSchemeStudy,
   usageRead,
 ];
+
+/** The calculations a batch, a sweep or the console's workbench may run. */
+export const calculationOperations: readonly AnyOperation[] = calculations;
+
+/** Sweeps over the calculations, for callers outside the /v1 router (the console's workbench). */
+export const calculationSweeps = sweepRunner(calculations);
 
 const byId = new Map<string, AnyOperation>(v1Operations.map((d) => [d.operation.id, d]));
 

@@ -27,6 +27,7 @@ import {
   SweepRequestSchema,
   SweepResponseSchema,
   type SweepField,
+  type SweepRequest,
   type SweepResponse,
 } from '../../../../shared/contracts/index.js';
 import { operationCatalogue } from '../../../../shared/operations.js';
@@ -42,6 +43,7 @@ import {
   poolProblem,
   type AnyOperation,
   type CompiledOperation,
+  type OperationContext,
 } from '../operation.js';
 import {
   caseProblem,
@@ -187,13 +189,219 @@ function same(a: unknown, b: unknown): boolean {
   return true;
 }
 
-/** The sweep operation over the declarations that name a batch name. */
-export function sweepOperation(operations: readonly AnyOperation[]) {
+/**
+ * What a sweep's points are charged against: the /v1 request's meter (`chargeUnits`), or the
+ * console workbench's own count for a key. `charge` throws the quota problem when the units do
+ * not fit; `release` gives back units charged before.
+ */
+export interface SweepMeter {
+  charge(units: number): void;
+  release(units: number): void;
+  /** The account's monthly quota, for the message of the points refused for quota. */
+  quota?: number;
+  /** Some points were refused for want of quota. */
+  cutByQuota?(): void;
+}
+
+/** A sweep request checked and laid out in points, ready to run. */
+export interface ParsedSweep {
+  sweep: SweepRequest;
+  op: CompiledOperation;
+  points: { values: Record<string, Value>; body: Record<string, unknown> }[];
+}
+
+/** Checks and runs sweeps over the declarations that name a batch name. */
+export function sweepRunner(operations: readonly AnyOperation[]) {
   const byName = new Map<string, CompiledOperation>();
   for (const decl of operations) {
     const name = (decl.operation as { batchName?: string }).batchName;
     if (name !== undefined) byName.set(name, compileOperation(decl));
   }
+
+  /** The request checked (each refusal naming its field) and its points, the first field slowest. */
+  function parse(raw: unknown): ParsedSweep {
+    // Each varied field is checked by its own shape first, so a refusal names its key
+    // (`vary[0].steps`) rather than "matches neither a list nor a range".
+    const rawVary = (raw as { vary?: unknown } | null | undefined)?.vary;
+    if (raw && typeof raw === 'object' && Array.isArray(rawVary)) {
+      rawVary.forEach((f: unknown, i) => {
+        if (f !== null && typeof f === 'object' && !Array.isArray(f))
+          validate('values' in f ? SweepListFieldSchema : SweepRangeFieldSchema, f, `vary[${i}]`);
+      });
+    }
+    const sweep = validate(SweepRequestSchema, raw);
+    const total = sweep.vary.reduce((n, f) => n * ('values' in f ? f.values.length : f.steps), 1);
+    if (total > MAX_SWEEP_POINTS) {
+      throw problem(
+        'validation-failed',
+        `vary: the fields make ${total} points; at most ${MAX_SWEEP_POINTS} are accepted per sweep.`,
+        {
+          errors: [
+            { field: 'vary', message: `makes ${total} points; at most ${MAX_SWEEP_POINTS} are accepted` },
+          ],
+        },
+      );
+    }
+    const op = byName.get(sweep.operation)!;
+    checkFields(op, sweep.vary, sweep.operation);
+    const lists = sweep.vary.map(sweepValues);
+    lists.forEach((list, i) => {
+      if (list.some((v) => typeof v === 'number' && !Number.isFinite(v))) {
+        throw problem('validation-failed', `vary[${i}]: the range's points are not finite numbers.`, {
+          errors: [
+            { field: `vary[${i}]`, message: 'gives points beyond the finite numbers; narrow from and to' },
+          ],
+        });
+      }
+    });
+    const paths = sweep.vary.map((f) => segments(f.field));
+    const points: ParsedSweep['points'] = [];
+    const [outer, inner] = [lists[0]!, lists[1] ?? [undefined]];
+    for (const a of outer) {
+      for (const b of inner) {
+        let body = withValue(sweep.base, paths[0]!, a) as Record<string, unknown>;
+        const values: Record<string, Value> = { [sweep.vary[0]!.field]: a };
+        if (b !== undefined) {
+          body = withValue(body, paths[1]!, b) as Record<string, unknown>;
+          values[sweep.vary[1]!.field] = b;
+        }
+        points.push({ values, body });
+      }
+    }
+    return { sweep, op, points };
+  }
+
+  /**
+   * Runs the points in rounds: reserve, in order, as many points' costs as the quota covers (all
+   * of them unless it runs short), run them, give back the costs of those that failed; while
+   * points remain and the units given back cover the next, go on. The points no round could
+   * reserve are refused with the quota problem.
+   */
+  async function run(
+    { sweep, op, points }: ParsedSweep,
+    ctx: OperationContext,
+    meter: SweepMeter,
+    requestId: unknown,
+  ): Promise<SweepResponse> {
+    const caseUnits = op.decl.batch?.units;
+    const costs = points.map((p) => (caseUnits ? caseUnits(p.body) : op.decl.operation.units));
+    const rows: Row[] = [];
+    let reserved = 0;
+    let refunded = 0;
+    let quotaRefusal: ProblemError | undefined;
+    while (rows.length < points.length) {
+      const start = rows.length;
+      let end = points.length;
+      try {
+        meter.charge(costs.slice(start).reduce((s, u) => s + u, 0));
+      } catch (err) {
+        if (!(err instanceof ProblemError) || err.type !== 'quota-exceeded') throw err;
+        quotaRefusal = err;
+        end = start;
+        while (end < points.length) {
+          try {
+            meter.charge(costs[end]!);
+          } catch {
+            break;
+          }
+          end += 1;
+        }
+      }
+      if (end === start) break;
+      const round = costs.slice(start, end).reduce((s, u) => s + u, 0);
+      reserved += round;
+      let settle: (index: number) => unknown;
+      try {
+        settle = await runCases(
+          op,
+          points.slice(start, end).map((p) => p.body),
+          {},
+          ctx,
+          // Light points (a single effect, ≈ 0.02 ms) run inline, a slice per turn, as their
+          // single calls do: the pool's round trip would cost more than it frees; heavy points
+          // (long trains) go to the pool.
+          'declared',
+        );
+      } catch (err) {
+        // Hung or crashed: this round's points are not answered, so none of the sweep is charged.
+        meter.release(reserved - refunded);
+        throw poolProblem(err, requestId);
+      }
+      let given = 0;
+      for (let index = start; index < end; index++) {
+        if (index > start && (index - start) % CASES_PER_TURN === 0) await nextTurn();
+        const point = points[index]!;
+        try {
+          const result = settle(index - start);
+          const bad = findNonFinite(result);
+          if (bad) throw problem('no-solution', `The calculation produced a non-finite number (${bad}).`);
+          rows.push({ values: point.values, status: 'ok', result: result as Record<string, unknown> });
+        } catch (err) {
+          given += costs[index]!;
+          rows.push({ values: point.values, status: 'error', problem: caseProblem(err, '') });
+        }
+      }
+      // A refused point costs nothing: give back what this round's failed points reserved.
+      meter.release(given);
+      refunded += given;
+    }
+    // Not even the first point fits: the sweep is refused as a single call would be.
+    if (rows.length === 0 && quotaRefusal) throw quotaRefusal;
+    if (rows.length < points.length) {
+      meter.cutByQuota?.();
+      const quota = meter.quota;
+      const quotaProblem = problemBody(
+        problem(
+          'quota-exceeded',
+          `The monthly quota${quota !== undefined ? ` of ${quota} units` : ''} ran out before this point: the points before it used what remained.`,
+          { headers: quotaRefusal?.headers },
+        ),
+      );
+      for (let index = rows.length; index < points.length; index++) {
+        rows.push({ values: points[index]!.values, status: 'error', problem: quotaProblem });
+      }
+    }
+
+    // Cautions and provenance: once at the top when every succeeding point has the same. The
+    // rows get copies without them (rest spread rather than `delete`, which would leave slow
+    // dictionary objects for the JSON writer).
+    const ok = rows.filter((r) => r.status === 'ok').map((r) => r.result!);
+    const first = ok[0];
+    const lifted: Pick<SweepResponse, 'cautions' | 'provenance'> = {};
+    const liftable = (key: 'cautions' | 'provenance') =>
+      first !== undefined && key in first && ok.every((r) => key in r && same(r[key], first[key]));
+    const liftCautions = liftable('cautions');
+    const liftProvenance = liftable('provenance');
+    if (liftCautions) lifted.cautions = first!.cautions as unknown[];
+    if (liftProvenance) lifted.provenance = first!.provenance as Record<string, unknown>;
+    if (liftCautions || liftProvenance) {
+      for (const row of rows) {
+        if (!row.result) continue;
+        const { cautions, provenance, ...rest } = row.result;
+        row.result = {
+          ...rest,
+          ...(liftCautions ? {} : { cautions }),
+          ...(liftProvenance ? {} : { provenance }),
+        };
+      }
+    }
+    return {
+      operation: sweep.operation,
+      count: rows.length,
+      succeeded: ok.length,
+      failed: rows.length - ok.length,
+      unitsCharged: reserved - refunded,
+      ...lifted,
+      rows,
+    };
+  }
+
+  return { parse, run };
+}
+
+/** The sweep operation over the declarations that name a batch name. */
+export function sweepOperation(operations: readonly AnyOperation[]) {
+  const sweeps = sweepRunner(operations);
   return declareOperation({
     operation: operationCatalogue.sweep,
     method: 'post',
@@ -221,29 +429,9 @@ export function sweepOperation(operations: readonly AnyOperation[]) {
       alternatives: { 'text/csv': { schema: z.string().meta({ description: 'One line per point' }) } },
     },
     handle: async (req, res, ctx) => {
-      const raw = req.body as { vary?: unknown } | undefined;
-      // Each varied field is checked by its own shape first, so a refusal names its key
-      // (`vary[0].steps`) rather than "matches neither a list nor a range".
-      if (raw && typeof raw === 'object' && Array.isArray(raw.vary)) {
-        raw.vary.forEach((f: unknown, i) => {
-          if (f !== null && typeof f === 'object' && !Array.isArray(f))
-            validate('values' in f ? SweepListFieldSchema : SweepRangeFieldSchema, f, `vary[${i}]`);
-        });
-      }
-      const sweep = validate(SweepRequestSchema, req.body);
+      const parsed = sweeps.parse(req.body);
+      const { sweep } = parsed;
       const query = validate(SweepCsvQuerySchema, req.query);
-      const total = sweep.vary.reduce((n, f) => n * ('values' in f ? f.values.length : f.steps), 1);
-      if (total > MAX_SWEEP_POINTS) {
-        throw problem(
-          'validation-failed',
-          `vary: the fields make ${total} points; at most ${MAX_SWEEP_POINTS} are accepted per sweep.`,
-          {
-            errors: [
-              { field: 'vary', message: `makes ${total} points; at most ${MAX_SWEEP_POINTS} are accepted` },
-            ],
-          },
-        );
-      }
       const columns = query.columns
         ?.split(',')
         .map((c) => c.trim())
@@ -253,8 +441,6 @@ export function sweepOperation(operations: readonly AnyOperation[]) {
           errors: [{ field: 'columns', message: `names ${columns.length} columns; at most ${MAX_COLUMNS}` }],
         });
       }
-      const op = byName.get(sweep.operation)!;
-      checkFields(op, sweep.vary, sweep.operation);
       // The CSV's own columns and the varied fields head their columns already: a result column of
       // the same name would write two columns under one header.
       const taken = new Set(['status', 'warnings', 'error', ...sweep.vary.map((v) => v.field)]);
@@ -270,151 +456,20 @@ export function sweepOperation(operations: readonly AnyOperation[]) {
         });
       }
 
-      // The points, the first field varying slowest.
-      const lists = sweep.vary.map(sweepValues);
-      lists.forEach((list, i) => {
-        if (list.some((v) => typeof v === 'number' && !Number.isFinite(v))) {
-          throw problem('validation-failed', `vary[${i}]: the range's points are not finite numbers.`, {
-            errors: [
-              { field: `vary[${i}]`, message: 'gives points beyond the finite numbers; narrow from and to' },
-            ],
-          });
-        }
-      });
-      const paths = sweep.vary.map((f) => segments(f.field));
-      const points: { values: Record<string, Value>; body: Record<string, unknown> }[] = [];
-      const [outer, inner] = [lists[0]!, lists[1] ?? [undefined]];
-      for (const a of outer) {
-        for (const b of inner) {
-          let body = withValue(sweep.base, paths[0]!, a) as Record<string, unknown>;
-          const values: Record<string, Value> = { [sweep.vary[0]!.field]: a };
-          if (b !== undefined) {
-            body = withValue(body, paths[1]!, b) as Record<string, unknown>;
-            values[sweep.vary[1]!.field] = b;
-          }
-          points.push({ values, body });
-        }
-      }
-
-      // Run the points in rounds: reserve, in order, as many points' costs as the quota covers
-      // (all of them unless it runs short), run them, give back the costs of those that failed;
-      // while points remain and the units given back cover the next, go on. The points no
-      // round could reserve are refused with the quota problem.
-      const caseUnits = op.decl.batch?.units;
-      const costs = points.map((p) => (caseUnits ? caseUnits(p.body) : op.decl.operation.units));
-      const rows: Row[] = [];
-      let reserved = 0;
-      let refunded = 0;
-      let quotaRefusal: ProblemError | undefined;
-      while (rows.length < points.length) {
-        const start = rows.length;
-        let end = points.length;
-        try {
-          chargeUnits(
-            res,
-            costs.slice(start).reduce((s, u) => s + u, 0),
-          );
-        } catch (err) {
-          if (!(err instanceof ProblemError) || err.type !== 'quota-exceeded') throw err;
-          quotaRefusal = err;
-          end = start;
-          while (end < points.length) {
-            try {
-              chargeUnits(res, costs[end]!);
-            } catch {
-              break;
-            }
-            end += 1;
-          }
-        }
-        if (end === start) break;
-        const round = costs.slice(start, end).reduce((s, u) => s + u, 0);
-        reserved += round;
-        let settle: (index: number) => unknown;
-        try {
-          settle = await runCases(
-            op,
-            points.slice(start, end).map((p) => p.body),
-            {},
-            ctx,
-            // Light points (a single effect, ≈ 0.02 ms) run inline, a slice per turn, as their
-            // single calls do: the pool's round trip would cost more than it frees; heavy points
-            // (long trains) go to the pool.
-            'declared',
-          );
-        } catch (err) {
-          // Hung or crashed: this round's points are not answered, so none of the sweep is charged.
-          releaseUnits(res, reserved - refunded);
-          throw poolProblem(err, res.locals.requestId);
-        }
-        let given = 0;
-        for (let index = start; index < end; index++) {
-          if (index > start && (index - start) % CASES_PER_TURN === 0) await nextTurn();
-          const point = points[index]!;
-          try {
-            const result = settle(index - start);
-            const bad = findNonFinite(result);
-            if (bad) throw problem('no-solution', `The calculation produced a non-finite number (${bad}).`);
-            rows.push({ values: point.values, status: 'ok', result: result as Record<string, unknown> });
-          } catch (err) {
-            given += costs[index]!;
-            rows.push({ values: point.values, status: 'error', problem: caseProblem(err, '') });
-          }
-        }
-        // A refused point costs nothing: give back what this round's failed points reserved.
-        releaseUnits(res, given);
-        refunded += given;
-      }
-      // Not even the first point fits: the sweep is refused as a single call would be.
-      if (rows.length === 0 && quotaRefusal) throw quotaRefusal;
-      if (rows.length < points.length) {
-        if (res.locals.meter) res.locals.meter.cutByQuota = true;
-        const quota = res.locals.meter?.quota;
-        const quotaProblem = problemBody(
-          problem(
-            'quota-exceeded',
-            `The monthly quota${quota !== undefined ? ` of ${quota} units` : ''} ran out before this point: the points before it used what remained.`,
-            { headers: quotaRefusal?.headers },
-          ),
-        );
-        for (let index = rows.length; index < points.length; index++) {
-          rows.push({ values: points[index]!.values, status: 'error', problem: quotaProblem });
-        }
-      }
-
-      // Cautions and provenance: once at the top when every succeeding point has the same. The
-      // rows get copies without them (rest spread rather than `delete`, which would leave slow
-      // dictionary objects for the JSON writer).
-      const ok = rows.filter((r) => r.status === 'ok').map((r) => r.result!);
-      const first = ok[0];
-      const lifted: Pick<SweepResponse, 'cautions' | 'provenance'> = {};
-      const liftable = (key: 'cautions' | 'provenance') =>
-        first !== undefined && key in first && ok.every((r) => key in r && same(r[key], first[key]));
-      const liftCautions = liftable('cautions');
-      const liftProvenance = liftable('provenance');
-      if (liftCautions) lifted.cautions = first!.cautions as unknown[];
-      if (liftProvenance) lifted.provenance = first!.provenance as Record<string, unknown>;
-      if (liftCautions || liftProvenance) {
-        for (const row of rows) {
-          if (!row.result) continue;
-          const { cautions, provenance, ...rest } = row.result;
-          row.result = {
-            ...rest,
-            ...(liftCautions ? {} : { cautions }),
-            ...(liftProvenance ? {} : { provenance }),
-          };
-        }
-      }
-      const failed = rows.length - ok.length;
-      const response: SweepResponse = {
-        operation: sweep.operation,
-        count: rows.length,
-        succeeded: ok.length,
-        failed,
-        unitsCharged: reserved - refunded,
-        ...lifted,
-        rows,
-      };
+      const response = await sweeps.run(
+        parsed,
+        ctx,
+        {
+          charge: (units) => chargeUnits(res, units),
+          release: (units) => releaseUnits(res, units),
+          ...(res.locals.meter ? { quota: res.locals.meter.quota } : {}),
+          cutByQuota: () => {
+            if (res.locals.meter) res.locals.meter.cutByQuota = true;
+          },
+        },
+        res.locals.requestId,
+      );
+      const rows = response.rows;
 
       if (req.accepts(['application/json', 'text/csv']) === 'text/csv') {
         const fields = sweep.vary.map((f) => f.field);
@@ -436,10 +491,10 @@ export function sweepOperation(operations: readonly AnyOperation[]) {
         const available = [
           ...new Set(flat.flatMap((l) => Object.keys(l).filter((k) => k.startsWith('result:')))),
         ].map((k) => k.slice('result:'.length));
-        if (columns && ok.length > 0) {
+        if (columns && response.succeeded > 0) {
           const unknown = columns.filter((c) => !available.includes(c));
           if (unknown.length > 0) {
-            releaseUnits(res, reserved - refunded);
+            releaseUnits(res, response.unitsCharged);
             throw problem('validation-failed', `columns: "${unknown[0]}" is not a column of the result.`, {
               errors: [
                 {
