@@ -2,6 +2,9 @@
 // (a /v1 calculation, or a sweep of it, run with a chosen API key as that key's own call).
 // Runs on SQLite and PostgreSQL (the store of tests/http/helpers.ts).
 import { execFile } from 'node:child_process';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
 import type { AddressInfo } from 'node:net';
 import { promisify } from 'node:util';
 import { sql } from 'drizzle-orm';
@@ -12,7 +15,11 @@ import { createKey, revokeKey } from '../../server/accounts/keys.js';
 import { consoleRouteModules } from '../../server/console/index.js';
 import { workbenchRoutes } from '../../server/console/workbench.js';
 import type { WorkbenchOperationList, WorkbenchResult } from '../../shared/console/workbench.js';
-import { curlSnippet, pythonSnippet } from '../../console/src/composables/request-snippets.js';
+import {
+  curlSnippet,
+  pythonSnippet,
+  typescriptSnippet,
+} from '../../console/src/composables/request-snippets.js';
 import { makeHarness, usageRows, type Harness } from '../http/helpers.js';
 import { signInOnePerRole, type ConsoleAgent } from './console-agents.js';
 
@@ -354,7 +361,7 @@ describe('copy as', () => {
     await setUp();
   });
 
-  it('gives curl and Python requests that the public API answers as the workbench did', async () => {
+  it('gives curl, TypeScript and Python requests that the public API answers as the workbench did', async () => {
     const res = await run({ keyId: h.keyId, operation: 'evaporators.single-effect', body: SINGLE_EFFECT });
     expect(res.status).toBe(200);
     const out = res.body as WorkbenchResult;
@@ -372,6 +379,32 @@ describe('copy as', () => {
       const python = pythonSnippet(origin, out.request);
       const viaPython = await promisify(execFile)('/usr/bin/python3', ['-c', python], { env });
       expect(JSON.parse(viaPython.stdout)).toEqual(out.result);
+      // The generated client (openapi/client): the snippet type-checks against it and runs.
+      const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'ebullio-snippet-'));
+      try {
+        const file = path.join(dir, 'snippet.mts');
+        const client = path.resolve(import.meta.dirname, '../../openapi/client/index.js');
+        const snippet = typescriptSnippet(origin, out.request, {
+          template: '/v1/evaporators/single-effect',
+          params: {},
+        });
+        fs.writeFileSync(file, snippet.replace("'./openapi/client/index.js'", JSON.stringify(client)));
+        const root = path.resolve(import.meta.dirname, '../..');
+        const bin = path.join(root, 'node_modules/.bin');
+        // From the checkout, where tsc finds Node's types.
+        await promisify(execFile)(
+          path.join(bin, 'tsc'),
+          [
+            ...['--noEmit', '--strict', '--skipLibCheck', '--types', 'node'],
+            ...['--module', 'nodenext', '--target', 'es2022', file],
+          ],
+          { cwd: root },
+        );
+        const viaTypeScript = await promisify(execFile)(path.join(bin, 'tsx'), [file], { env });
+        expect(JSON.parse(viaTypeScript.stdout)).toEqual(out.result);
+      } finally {
+        fs.rmSync(dir, { recursive: true, force: true });
+      }
     } finally {
       await new Promise((resolve) => server.close(resolve));
     }

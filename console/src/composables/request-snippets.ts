@@ -81,7 +81,7 @@ export function typescriptSnippet(origin: string, req: PublicRequest, path: Path
     ...options,
     `});`,
     `if (error) throw new Error(\`\${error.title}: \${error.detail ?? ''}\`);`,
-    `console.log(data);`,
+    `console.log(JSON.stringify(data, null, 2));`,
   ].join('\n');
 }
 
