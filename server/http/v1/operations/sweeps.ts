@@ -27,6 +27,7 @@ import {
   SweepRequestSchema,
   SweepResponseSchema,
   type SweepField,
+  type SweepRequest,
   type SweepResponse,
 } from '../../../../shared/contracts/index.js';
 import { operationCatalogue } from '../../../../shared/operations.js';
@@ -42,6 +43,8 @@ import {
   poolProblem,
   type AnyOperation,
   type CompiledOperation,
+  type OperationContext,
+  type ProblemBody,
 } from '../operation.js';
 import {
   caseProblem,
@@ -187,6 +190,213 @@ function same(a: unknown, b: unknown): boolean {
   return true;
 }
 
+/** What a sweep job stores: the checked request (without its callback) and the CSV columns asked for. */
+interface SweepInput {
+  sweep: Omit<SweepRequest, 'callbackUrl'>;
+  columns?: string[];
+}
+
+type Point = { values: Record<string, Value>; body: Record<string, unknown> };
+
+/** The points of a sweep, the first field varying slowest (422 naming the range whose points are not finite). */
+function sweepPoints(sweep: SweepInput['sweep']): Point[] {
+  const lists = sweep.vary.map(sweepValues);
+  lists.forEach((list, i) => {
+    if (list.some((v) => typeof v === 'number' && !Number.isFinite(v))) {
+      throw problem('validation-failed', `vary[${i}]: the range's points are not finite numbers.`, {
+        errors: [
+          { field: `vary[${i}]`, message: 'gives points beyond the finite numbers; narrow from and to' },
+        ],
+      });
+    }
+  });
+  const paths = sweep.vary.map((f) => segments(f.field));
+  const points: Point[] = [];
+  const [outer, inner] = [lists[0]!, lists[1] ?? [undefined]];
+  for (const a of outer) {
+    for (const b of inner) {
+      let body = withValue(sweep.base, paths[0]!, a) as Record<string, unknown>;
+      const values: Record<string, Value> = { [sweep.vary[0]!.field]: a };
+      if (b !== undefined) {
+        body = withValue(body, paths[1]!, b) as Record<string, unknown>;
+        values[sweep.vary[1]!.field] = b;
+      }
+      points.push({ values, body });
+    }
+  }
+  return points;
+}
+
+/**
+ * Refuses result columns the table always has: the CSV's own columns and the varied fields head
+ * their columns already, and a result column of the same name would write two under one header.
+ */
+function checkColumns(columns: readonly string[] | undefined, vary: readonly SweepField[]): void {
+  if (columns && columns.length > MAX_COLUMNS) {
+    throw problem('validation-failed', `columns: at most ${MAX_COLUMNS} columns may be named.`, {
+      errors: [{ field: 'columns', message: `names ${columns.length} columns; at most ${MAX_COLUMNS}` }],
+    });
+  }
+  const taken = new Set(['status', 'warnings', 'error', ...vary.map((v) => v.field)]);
+  const clash = columns?.find((c) => taken.has(c));
+  if (clash !== undefined) {
+    throw problem('validation-failed', `columns: "${clash}" is a column of every sweep table already.`, {
+      errors: [
+        {
+          field: 'columns',
+          message: `names "${clash}", which the table always has; name result columns only`,
+        },
+      ],
+    });
+  }
+}
+
+/** `columns=` as a list (undefined when not given). */
+function columnList(text: unknown): string[] | undefined {
+  if (typeof text !== 'string') return undefined;
+  return text
+    .split(',')
+    .map((c) => c.trim())
+    .filter((c) => c !== '');
+}
+
+/** A sweep's points as work: run a range of points, answer with all rows (synchronously or as a job). */
+function sweepWork(byName: ReadonlyMap<string, CompiledOperation>, { sweep, columns }: SweepInput) {
+  const op = byName.get(sweep.operation)!;
+  const points = sweepPoints(sweep);
+  const caseUnits = op.decl.batch?.units;
+  const costs = points.map((p) => (caseUnits ? caseUnits(p.body) : op.decl.operation.units));
+  /** The answer: cautions and provenance lifted to the top when every succeeding point has the same. */
+  const answer = (all: unknown[], unitsCharged: number): SweepResponse => {
+    const rows = (all as Row[]).map((r) => ({ ...r }));
+    // The rows get copies without them (rest spread rather than `delete`, which would leave slow
+    // dictionary objects for the JSON writer).
+    const ok = rows.filter((r) => r.status === 'ok').map((r) => r.result!);
+    const first = ok[0];
+    const lifted: Pick<SweepResponse, 'cautions' | 'provenance'> = {};
+    const liftable = (key: 'cautions' | 'provenance') =>
+      first !== undefined && key in first && ok.every((r) => key in r && same(r[key], first[key]));
+    const liftCautions = liftable('cautions');
+    const liftProvenance = liftable('provenance');
+    if (liftCautions) lifted.cautions = first!.cautions as unknown[];
+    if (liftProvenance) lifted.provenance = first!.provenance as Record<string, unknown>;
+    if (liftCautions || liftProvenance) {
+      for (const row of rows) {
+        if (!row.result) continue;
+        const { cautions, provenance, ...rest } = row.result;
+        row.result = {
+          ...rest,
+          ...(liftCautions ? {} : { cautions }),
+          ...(liftProvenance ? {} : { provenance }),
+        };
+      }
+    }
+    return {
+      operation: sweep.operation,
+      count: rows.length,
+      succeeded: ok.length,
+      failed: rows.length - ok.length,
+      unitsCharged,
+      ...lifted,
+      rows,
+    };
+  };
+  const csvOf = (rows: unknown[], chosenColumns: string[] | undefined): string => {
+    // The rows as the JSON answer has them (cautions and provenance lifted out).
+    const all = answer(rows, 0).rows;
+    const fields = sweep.vary.map((f) => f.field);
+    const flat = all.map((r) => {
+      const line: Record<string, unknown> = { ...r.values, status: r.status };
+      if (r.result) {
+        const out: Record<string, unknown> = {};
+        flatten(r.result, '', out);
+        for (const [k, v] of Object.entries(out)) {
+          // Warnings are text per row: joined into one column rather than one per entry.
+          if (!k.startsWith('warnings[')) line[`result:${k}`] = v;
+        }
+        const warnings = (r.result.warnings as { message?: string }[] | undefined) ?? [];
+        if (warnings.length > 0) line.warnings = warnings.map((w) => w.message ?? '').join('; ');
+      }
+      if (r.problem) line.error = errorCell(r.problem);
+      return line;
+    });
+    const available = [
+      ...new Set(flat.flatMap((l) => Object.keys(l).filter((k) => k.startsWith('result:')))),
+    ].map((k) => k.slice('result:'.length));
+    if (chosenColumns && all.some((r) => r.status === 'ok')) {
+      const unknown = chosenColumns.filter((c) => !available.includes(c));
+      if (unknown.length > 0) {
+        throw problem('validation-failed', `columns: "${unknown[0]}" is not a column of the result.`, {
+          errors: [
+            {
+              field: 'columns',
+              message: `names ${unknown.map((c) => `"${c}"`).join(', ')}, not columns of the result (e.g. ${available.slice(0, 8).join(', ')})`,
+            },
+          ],
+        });
+      }
+    }
+    const chosen = chosenColumns ?? available;
+    const table = flat.map((l) => {
+      const out: Record<string, unknown> = {};
+      for (const f of fields) out[f] = l[f];
+      out.status = l.status;
+      for (const c of chosen) out[c] = l[`result:${c}`];
+      out.warnings = l.warnings;
+      out.error = l.error;
+      return out;
+    });
+    return toCsv([...fields, 'status', ...chosen, 'warnings', 'error'], table);
+  };
+  return {
+    total: points.length,
+    points,
+    costs,
+    columns,
+    rowsKey: 'rows',
+    cost: (index: number) => costs[index]!,
+    /** Points [start, end), run by the batch's machinery, a slice per turn. */
+    async run(start: number, end: number, ctx: OperationContext): Promise<{ rows: Row[]; ok: boolean[] }> {
+      const settle = await runCases(
+        op,
+        points.slice(start, end).map((p) => p.body),
+        {},
+        ctx,
+        // Light points (a single effect, ≈ 0.02 ms) run inline, a slice per turn, as their
+        // single calls do: the pool's round trip would cost more than it frees; heavy points
+        // (long trains) go to the pool.
+        'declared',
+      );
+      const rows: Row[] = [];
+      for (let index = start; index < end; index++) {
+        if (index > start && (index - start) % CASES_PER_TURN === 0) await nextTurn();
+        const point = points[index]!;
+        try {
+          const result = settle(index - start);
+          const bad = findNonFinite(result);
+          if (bad) throw problem('no-solution', `The calculation produced a non-finite number (${bad}).`);
+          rows.push({ values: point.values, status: 'ok', result: result as Record<string, unknown> });
+        } catch (err) {
+          rows.push({ values: point.values, status: 'error', problem: caseProblem(err, '') });
+        }
+      }
+      return { rows, ok: rows.map((r) => r.status === 'ok') };
+    },
+    refused: (index: number, p: ProblemBody): Row => ({
+      values: points[index]!.values,
+      status: 'error',
+      problem: p as Row['problem'] & object,
+    }),
+    answer,
+    csvOf,
+    csv: (rows: unknown[], query: Record<string, unknown>) => {
+      const asked = columnList(query.columns);
+      checkColumns(asked, sweep.vary);
+      return csvOf(rows, asked ?? columns);
+    },
+  };
+}
+
 /** The sweep operation over the declarations that name a batch name. */
 export function sweepOperation(operations: readonly AnyOperation[]) {
   const byName = new Map<string, CompiledOperation>();
@@ -194,6 +404,7 @@ export function sweepOperation(operations: readonly AnyOperation[]) {
     const name = (decl.operation as { batchName?: string }).batchName;
     if (name !== undefined) byName.set(name, compileOperation(decl));
   }
+  const openSweep = (input: SweepInput) => sweepWork(byName, input);
   return declareOperation({
     operation: operationCatalogue.sweep,
     method: 'post',
@@ -220,250 +431,134 @@ export function sweepOperation(operations: readonly AnyOperation[]) {
       schema: SweepResponseSchema,
       alternatives: { 'text/csv': { schema: z.string().meta({ description: 'One line per point' }) } },
     },
-    handle: async (req, res, ctx) => {
-      const raw = req.body as { vary?: unknown } | undefined;
-      // Each varied field is checked by its own shape first, so a refusal names its key
-      // (`vary[0].steps`) rather than "matches neither a list nor a range".
-      if (raw && typeof raw === 'object' && Array.isArray(raw.vary)) {
-        raw.vary.forEach((f: unknown, i) => {
-          if (f !== null && typeof f === 'object' && !Array.isArray(f))
-            validate('values' in f ? SweepListFieldSchema : SweepRangeFieldSchema, f, `vary[${i}]`);
-        });
-      }
-      const sweep = validate(SweepRequestSchema, req.body);
-      const query = validate(SweepCsvQuerySchema, req.query);
-      const total = sweep.vary.reduce((n, f) => n * ('values' in f ? f.values.length : f.steps), 1);
-      if (total > MAX_SWEEP_POINTS) {
-        throw problem(
-          'validation-failed',
-          `vary: the fields make ${total} points; at most ${MAX_SWEEP_POINTS} are accepted per sweep.`,
-          {
-            errors: [
-              { field: 'vary', message: `makes ${total} points; at most ${MAX_SWEEP_POINTS} are accepted` },
-            ],
-          },
-        );
-      }
-      const columns = query.columns
-        ?.split(',')
-        .map((c) => c.trim())
-        .filter((c) => c !== '');
-      if (columns && columns.length > MAX_COLUMNS) {
-        throw problem('validation-failed', `columns: at most ${MAX_COLUMNS} columns may be named.`, {
-          errors: [{ field: 'columns', message: `names ${columns.length} columns; at most ${MAX_COLUMNS}` }],
-        });
-      }
-      const op = byName.get(sweep.operation)!;
-      checkFields(op, sweep.vary, sweep.operation);
-      // The CSV's own columns and the varied fields head their columns already: a result column of
-      // the same name would write two columns under one header.
-      const taken = new Set(['status', 'warnings', 'error', ...sweep.vary.map((v) => v.field)]);
-      const clash = columns?.find((c) => taken.has(c));
-      if (clash !== undefined) {
-        throw problem('validation-failed', `columns: "${clash}" is a column of every sweep table already.`, {
-          errors: [
-            {
-              field: 'columns',
-              message: `names "${clash}", which the table always has; name result columns only`,
-            },
-          ],
-        });
-      }
-
-      // The points, the first field varying slowest.
-      const lists = sweep.vary.map(sweepValues);
-      lists.forEach((list, i) => {
-        if (list.some((v) => typeof v === 'number' && !Number.isFinite(v))) {
-          throw problem('validation-failed', `vary[${i}]: the range's points are not finite numbers.`, {
-            errors: [
-              { field: `vary[${i}]`, message: 'gives points beyond the finite numbers; narrow from and to' },
-            ],
+    jobs: {
+      kind: 'sweep',
+      accept: async (req) => {
+        const raw = req.body as { vary?: unknown } | undefined;
+        // Each varied field is checked by its own shape first, so a refusal names its key
+        // (`vary[0].steps`) rather than "matches neither a list nor a range".
+        if (raw && typeof raw === 'object' && Array.isArray(raw.vary)) {
+          raw.vary.forEach((f: unknown, i) => {
+            if (f !== null && typeof f === 'object' && !Array.isArray(f))
+              validate('values' in f ? SweepListFieldSchema : SweepRangeFieldSchema, f, `vary[${i}]`);
           });
         }
-      });
-      const paths = sweep.vary.map((f) => segments(f.field));
-      const points: { values: Record<string, Value>; body: Record<string, unknown> }[] = [];
-      const [outer, inner] = [lists[0]!, lists[1] ?? [undefined]];
-      for (const a of outer) {
-        for (const b of inner) {
-          let body = withValue(sweep.base, paths[0]!, a) as Record<string, unknown>;
-          const values: Record<string, Value> = { [sweep.vary[0]!.field]: a };
-          if (b !== undefined) {
-            body = withValue(body, paths[1]!, b) as Record<string, unknown>;
-            values[sweep.vary[1]!.field] = b;
-          }
-          points.push({ values, body });
-        }
-      }
-
-      // Run the points in rounds: reserve, in order, as many points' costs as the quota covers
-      // (all of them unless it runs short), run them, give back the costs of those that failed;
-      // while points remain and the units given back cover the next, go on. The points no
-      // round could reserve are refused with the quota problem.
-      const caseUnits = op.decl.batch?.units;
-      const costs = points.map((p) => (caseUnits ? caseUnits(p.body) : op.decl.operation.units));
-      const rows: Row[] = [];
-      let reserved = 0;
-      let refunded = 0;
-      let quotaRefusal: ProblemError | undefined;
-      while (rows.length < points.length) {
-        const start = rows.length;
-        let end = points.length;
-        try {
-          chargeUnits(
-            res,
-            costs.slice(start).reduce((s, u) => s + u, 0),
-          );
-        } catch (err) {
-          if (!(err instanceof ProblemError) || err.type !== 'quota-exceeded') throw err;
-          quotaRefusal = err;
-          end = start;
-          while (end < points.length) {
-            try {
-              chargeUnits(res, costs[end]!);
-            } catch {
-              break;
-            }
-            end += 1;
-          }
-        }
-        if (end === start) break;
-        const round = costs.slice(start, end).reduce((s, u) => s + u, 0);
-        reserved += round;
-        let settle: (index: number) => unknown;
-        try {
-          settle = await runCases(
-            op,
-            points.slice(start, end).map((p) => p.body),
-            {},
-            ctx,
-            // Light points (a single effect, ≈ 0.02 ms) run inline, a slice per turn, as their
-            // single calls do: the pool's round trip would cost more than it frees; heavy points
-            // (long trains) go to the pool.
-            'declared',
-          );
-        } catch (err) {
-          // Hung or crashed: this round's points are not answered, so none of the sweep is charged.
-          releaseUnits(res, reserved - refunded);
-          throw poolProblem(err, res.locals.requestId);
-        }
-        let given = 0;
-        for (let index = start; index < end; index++) {
-          if (index > start && (index - start) % CASES_PER_TURN === 0) await nextTurn();
-          const point = points[index]!;
-          try {
-            const result = settle(index - start);
-            const bad = findNonFinite(result);
-            if (bad) throw problem('no-solution', `The calculation produced a non-finite number (${bad}).`);
-            rows.push({ values: point.values, status: 'ok', result: result as Record<string, unknown> });
-          } catch (err) {
-            given += costs[index]!;
-            rows.push({ values: point.values, status: 'error', problem: caseProblem(err, '') });
-          }
-        }
-        // A refused point costs nothing: give back what this round's failed points reserved.
-        releaseUnits(res, given);
-        refunded += given;
-      }
-      // Not even the first point fits: the sweep is refused as a single call would be.
-      if (rows.length === 0 && quotaRefusal) throw quotaRefusal;
-      if (rows.length < points.length) {
-        if (res.locals.meter) res.locals.meter.cutByQuota = true;
-        const quota = res.locals.meter?.quota;
-        const quotaProblem = problemBody(
-          problem(
-            'quota-exceeded',
-            `The monthly quota${quota !== undefined ? ` of ${quota} units` : ''} ran out before this point: the points before it used what remained.`,
-            { headers: quotaRefusal?.headers },
-          ),
-        );
-        for (let index = rows.length; index < points.length; index++) {
-          rows.push({ values: points[index]!.values, status: 'error', problem: quotaProblem });
-        }
-      }
-
-      // Cautions and provenance: once at the top when every succeeding point has the same. The
-      // rows get copies without them (rest spread rather than `delete`, which would leave slow
-      // dictionary objects for the JSON writer).
-      const ok = rows.filter((r) => r.status === 'ok').map((r) => r.result!);
-      const first = ok[0];
-      const lifted: Pick<SweepResponse, 'cautions' | 'provenance'> = {};
-      const liftable = (key: 'cautions' | 'provenance') =>
-        first !== undefined && key in first && ok.every((r) => key in r && same(r[key], first[key]));
-      const liftCautions = liftable('cautions');
-      const liftProvenance = liftable('provenance');
-      if (liftCautions) lifted.cautions = first!.cautions as unknown[];
-      if (liftProvenance) lifted.provenance = first!.provenance as Record<string, unknown>;
-      if (liftCautions || liftProvenance) {
-        for (const row of rows) {
-          if (!row.result) continue;
-          const { cautions, provenance, ...rest } = row.result;
-          row.result = {
-            ...rest,
-            ...(liftCautions ? {} : { cautions }),
-            ...(liftProvenance ? {} : { provenance }),
-          };
-        }
-      }
-      const failed = rows.length - ok.length;
-      const response: SweepResponse = {
-        operation: sweep.operation,
-        count: rows.length,
-        succeeded: ok.length,
-        failed,
-        unitsCharged: reserved - refunded,
-        ...lifted,
-        rows,
-      };
-
-      if (req.accepts(['application/json', 'text/csv']) === 'text/csv') {
-        const fields = sweep.vary.map((f) => f.field);
-        const flat = rows.map((r) => {
-          const line: Record<string, unknown> = { ...r.values, status: r.status };
-          if (r.result) {
-            const out: Record<string, unknown> = {};
-            flatten(r.result, '', out);
-            for (const [k, v] of Object.entries(out)) {
-              // Warnings are text per row: joined into one column rather than one per entry.
-              if (!k.startsWith('warnings[')) line[`result:${k}`] = v;
-            }
-            const warnings = (r.result.warnings as { message?: string }[] | undefined) ?? [];
-            if (warnings.length > 0) line.warnings = warnings.map((w) => w.message ?? '').join('; ');
-          }
-          if (r.problem) line.error = errorCell(r.problem);
-          return line;
-        });
-        const available = [
-          ...new Set(flat.flatMap((l) => Object.keys(l).filter((k) => k.startsWith('result:')))),
-        ].map((k) => k.slice('result:'.length));
-        if (columns && ok.length > 0) {
-          const unknown = columns.filter((c) => !available.includes(c));
-          if (unknown.length > 0) {
-            releaseUnits(res, reserved - refunded);
-            throw problem('validation-failed', `columns: "${unknown[0]}" is not a column of the result.`, {
+        const sweep = validate(SweepRequestSchema, req.body);
+        const query = validate(SweepCsvQuerySchema, req.query);
+        const total = sweep.vary.reduce((n, f) => n * ('values' in f ? f.values.length : f.steps), 1);
+        if (total > MAX_SWEEP_POINTS) {
+          throw problem(
+            'validation-failed',
+            `vary: the fields make ${total} points; at most ${MAX_SWEEP_POINTS} are accepted per sweep.`,
+            {
               errors: [
-                {
-                  field: 'columns',
-                  message: `names ${unknown.map((c) => `"${c}"`).join(', ')}, not columns of the result (e.g. ${available.slice(0, 8).join(', ')})`,
-                },
+                { field: 'vary', message: `makes ${total} points; at most ${MAX_SWEEP_POINTS} are accepted` },
               ],
-            });
-          }
+            },
+          );
         }
-        const chosen = columns ?? available;
-        const table = flat.map((l) => {
-          const out: Record<string, unknown> = {};
-          for (const f of fields) out[f] = l[f];
-          out.status = l.status;
-          for (const c of chosen) out[c] = l[`result:${c}`];
-          out.warnings = l.warnings;
-          out.error = l.error;
-          return out;
-        });
-        res.type('text/csv').send(toCsv([...fields, 'status', ...chosen, 'warnings', 'error'], table));
-        return;
-      }
-      await sendJsonInSlices(res, response, 'rows');
+        const columns = query.columns
+          ?.split(',')
+          .map((c) => c.trim())
+          .filter((c) => c !== '');
+        const op = byName.get(sweep.operation)!;
+        checkFields(op, sweep.vary, sweep.operation);
+        checkColumns(columns, sweep.vary);
+
+        const { callbackUrl, ...request } = sweep;
+        // The points are made here once, so a range beyond the finite numbers is refused before any run.
+        sweepPoints(request);
+        const input: SweepInput = { sweep: request, ...(columns ? { columns } : {}) };
+        return {
+          input,
+          total,
+          ...(callbackUrl !== undefined ? { callbackUrl, callbackField: 'callbackUrl' } : {}),
+        };
+      },
+      respond: async (accepted, req, res, ctx) => {
+        const work = openSweep(accepted.input as SweepInput);
+        const { points, costs } = work;
+        // Run the points in rounds: reserve, in order, as many points' costs as the quota covers
+        // (all of them unless it runs short), run them, give back the costs of those that failed;
+        // while points remain and the units given back cover the next, go on. The points no
+        // round could reserve are refused with the quota problem.
+        const rows: Row[] = [];
+        let reserved = 0;
+        let refunded = 0;
+        let quotaRefusal: ProblemError | undefined;
+        while (rows.length < points.length) {
+          const start = rows.length;
+          let end = points.length;
+          try {
+            chargeUnits(
+              res,
+              costs.slice(start).reduce((s, u) => s + u, 0),
+            );
+          } catch (err) {
+            if (!(err instanceof ProblemError) || err.type !== 'quota-exceeded') throw err;
+            quotaRefusal = err;
+            end = start;
+            while (end < points.length) {
+              try {
+                chargeUnits(res, costs[end]!);
+              } catch {
+                break;
+              }
+              end += 1;
+            }
+          }
+          if (end === start) break;
+          const round = costs.slice(start, end).reduce((s, u) => s + u, 0);
+          reserved += round;
+          let ran: { rows: Row[]; ok: boolean[] };
+          try {
+            ran = await work.run(start, end, ctx);
+          } catch (err) {
+            // Hung or crashed: this round's points are not answered, so none of the sweep is charged.
+            releaseUnits(res, reserved - refunded);
+            throw poolProblem(err, res.locals.requestId);
+          }
+          let given = 0;
+          ran.rows.forEach((row, i) => {
+            if (!ran.ok[i]) given += costs[start + i]!;
+            rows.push(row);
+          });
+          // A refused point costs nothing: give back what this round's failed points reserved.
+          releaseUnits(res, given);
+          refunded += given;
+        }
+        // Not even the first point fits: the sweep is refused as a single call would be.
+        if (rows.length === 0 && quotaRefusal) throw quotaRefusal;
+        if (rows.length < points.length) {
+          if (res.locals.meter) res.locals.meter.cutByQuota = true;
+          const quota = res.locals.meter?.quota;
+          const quotaProblem = problemBody(
+            problem(
+              'quota-exceeded',
+              `The monthly quota${quota !== undefined ? ` of ${quota} units` : ''} ran out before this point: the points before it used what remained.`,
+              { headers: quotaRefusal?.headers },
+            ),
+          );
+          for (let index = rows.length; index < points.length; index++)
+            rows.push(work.refused(index, quotaProblem));
+        }
+
+        const response = work.answer(rows, reserved - refunded);
+        if (req.accepts(['application/json', 'text/csv']) === 'text/csv') {
+          let table: string;
+          try {
+            table = work.csvOf(rows, work.columns);
+          } catch (err) {
+            // A column no row has: refused, so nothing is charged.
+            releaseUnits(res, reserved - refunded);
+            throw err;
+          }
+          res.type('text/csv').send(table);
+          return;
+        }
+        await sendJsonInSlices(res, response, 'rows');
+      },
+      open: (input) => openSweep(input as SweepInput),
     },
   });
 }
