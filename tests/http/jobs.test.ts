@@ -12,7 +12,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { createAccount } from '../../server/accounts/accounts.js';
 import { createKey } from '../../server/accounts/keys.js';
 import { rotateSigningSecret } from '../../server/accounts/signing-secrets.js';
-import { closeApp } from '../../server/app.js';
+import { closeApp, createApp } from '../../server/app.js';
 import type { Config } from '../../server/config.js';
 import { ALL_SCOPES, makeHarness, type Harness } from './helpers.js';
 
@@ -392,6 +392,26 @@ describe('jobs for batches and sweeps', () => {
       callbackUrl: 'http://10.0.0.1/x',
     });
     expect(privateAddress.status).toBe(422);
+  });
+
+  it('stops the runner after its current chunk on shutdown, leaving the job queued to resume', async () => {
+    const h = await harness({ config: { jobChunkPoints: 2, jobChunkPauseMs: 30 } });
+    const accepted = await submit(h, '/v1/sweeps', sweepOf(60));
+    const id = (accepted.body as Job).id;
+    await waitFor(h, id, (j) => j.progress.done >= 4);
+    await closeApp(h.deps);
+    const stopped = await readJob(h, id);
+    expect(stopped.state).toBe('queued');
+    expect(stopped.progress.done).toBeGreaterThanOrEqual(4);
+    expect(stopped.progress.done).toBeLessThan(60);
+    expect(stopped.unitsCharged).toBe(stopped.progress.done * 5);
+    // A new app on the same database resumes it from there.
+    h.deps.jobRunner = undefined;
+    h.deps.enginePool = undefined;
+    h.app = createApp(h.deps);
+    const job = await waitFor(h, id, ended);
+    expect(job).toMatchObject({ state: 'succeeded', progress: { done: 60, total: 60 }, unitsCharged: 300 });
+    expect((await unitsBy(h))['sweeps.run']!.units).toBe(300);
   });
 
   it('expires a finished job after the retention time and prunes it with its rows', async () => {
