@@ -340,6 +340,43 @@ describe('jobs for batches and sweeps', () => {
     }
   });
 
+  it('sends on the next start a callback its process left pending', async () => {
+    const h = await harness({ config: { allowLoopbackCallbacks: true } });
+    await rotateSigningSecret(h.store, h.config.secret, h.accountId, h.clock.now);
+    const received: string[] = [];
+    const receiver = http.createServer((req, res) => {
+      received.push(String(req.headers['ebullio-job-id']));
+      res.writeHead(200).end();
+    });
+    // A port with nothing listening yet: the first attempt is refused.
+    await new Promise<void>((r) => receiver.listen(0, '127.0.0.1', r));
+    const port = (receiver.address() as AddressInfo).port;
+    await new Promise((r) => receiver.close(r));
+    try {
+      const accepted = await submit(h, '/v1/sweeps', {
+        ...sweepOf(2),
+        callbackUrl: `http://127.0.0.1:${port}/hook`,
+      });
+      const id = (accepted.body as Job).id;
+      const pending = await waitFor(h, id, (j) => (j.callback?.attempts ?? 0) >= 1);
+      expect(pending.callback).toMatchObject({ state: 'pending', attempts: 1 });
+      expect(pending.callback?.outcome).toMatch(/^failed/);
+      // The process stops before its next attempt; the next one sends it at start.
+      await closeApp(h.deps);
+      await new Promise<void>((r) => receiver.listen(port, '127.0.0.1', r));
+      // Later than any live node would still be trying it (several nodes: two minutes).
+      h.clock.now = new Date(h.clock.now.getTime() + 3 * 60_000);
+      h.deps.jobRunner = undefined;
+      h.deps.enginePool = undefined;
+      h.app = createApp(h.deps);
+      const sent = await waitFor(h, id, (j) => j.callback?.state === 'delivered');
+      expect(sent.callback).toMatchObject({ state: 'delivered', attempts: 2, outcome: 'answered 200' });
+      expect(received).toEqual([id]);
+    } finally {
+      if (receiver.listening) await new Promise((r) => receiver.close(r));
+    }
+  });
+
   it('refuses a callback URL that is not https or reaches loopback, private or link-local addresses, naming callbackUrl', async () => {
     const h = await harness();
     await rotateSigningSecret(h.store, h.config.secret, h.accountId, h.clock.now);

@@ -23,11 +23,13 @@
  * PostgreSQL the commit decides again across nodes and a chunk it refuses ends the job the same way.
  *
  * Shutdown (`stop`): after the current chunk the job is queued again, to be resumed here or on
- * another node. Callbacks are sent after a job ends, retried with backoff, never awaited by the run.
+ * another node. Callbacks are sent after a job ends, retried with backoff, never awaited by the run;
+ * one left pending by a process that stopped is sent by the next start (at least once: a receiver
+ * tells repeats apart by the job id).
  */
 import { randomUUID } from 'node:crypto';
 import { setTimeout as sleep } from 'node:timers/promises';
-import { and, eq, inArray, lt, or, sql } from 'drizzle-orm';
+import { and, eq, inArray, lt, lte, or, sql } from 'drizzle-orm';
 import { getAccount } from '../../accounts/accounts.js';
 import {
   commitWithRecords,
@@ -51,6 +53,8 @@ import { jobResource, type JobRow } from './repo.js';
 /** Waits before the callback's attempts (the first at once): four attempts in about half a minute. */
 const CALLBACK_DELAYS_MS = [0, 1_000, 5_000, 25_000];
 const CALLBACK_TIMEOUT_MS = 10_000;
+/** A pending callback of a job ended this long ago is no longer being tried by any live node. */
+const CALLBACK_ORPHANED_AFTER_MS = 120_000;
 /** Pruning runs at most this often. */
 const PRUNE_EVERY_MS = 60_000;
 
@@ -411,6 +415,21 @@ export function createJobRunner(
             .set({ state: 'queued', claim: null, leaseUntil: null })
             .where(eq(jobs.state, 'running'));
         }
+        // Callbacks an earlier process left pending: on SQLite every one (that process is gone);
+        // on PostgreSQL those of jobs ended long enough ago that no live node is still trying them.
+        const settled = new Date(deps.clock().getTime() - (store.sqlite ? 0 : CALLBACK_ORPHANED_AFTER_MS));
+        const orphans = await store.db
+          .select({ id: jobs.id })
+          .from(jobs)
+          .where(
+            and(
+              eq(jobs.callbackState, 'pending'),
+              inArray(jobs.state, ['succeeded', 'failed', 'cancelled']),
+              lte(jobs.finishedAt, settled),
+            ),
+          )
+          .limit(1000);
+        for (const { id } of orphans) notify(id);
       };
       busy = begin()
         .catch((err: unknown) => console.error('[jobs] could not requeue interrupted jobs:', err))

@@ -436,6 +436,20 @@ function liquorOf(loaded: unknown, body: unknown): string | undefined {
   return ref !== null && typeof ref === 'object' ? 'custom' : undefined;
 }
 
+/** The jobs' part of a context, made once per app (contexts are made per request). */
+const jobsContexts = new WeakMap<AppDeps, NonNullable<OperationContext['jobs']>>();
+function jobsContextOf(deps: AppDeps): NonNullable<OperationContext['jobs']> {
+  let jobs = jobsContexts.get(deps);
+  if (!jobs) {
+    jobs = {
+      retentionMs: jobSettings(deps.config).retentionMs,
+      ended: (jobId) => deps.jobRunner?.ended(jobId),
+    };
+    jobsContexts.set(deps, jobs);
+  }
+  return jobs;
+}
+
 function contextOf(res: Response, deps: AppDeps): OperationContext {
   return {
     accountId: res.locals.auth!.accountId,
@@ -444,10 +458,7 @@ function contextOf(res: Response, deps: AppDeps): OperationContext {
     clock: deps.clock,
     ...(deps.enginePool ? { enginePool: deps.enginePool } : {}),
     releaseUnits: (units) => releaseUnits(res, units),
-    jobs: {
-      retentionMs: jobSettings(deps.config).retentionMs,
-      ended: (jobId) => deps.jobRunner?.ended(jobId),
-    },
+    jobs: jobsContextOf(deps),
   };
 }
 
