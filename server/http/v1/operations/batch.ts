@@ -427,7 +427,16 @@ export function batchOperation(operations: readonly AnyOperation[]) {
     const part = (op.body ?? op.query)?.schema as { shape?: Record<string, unknown> } | undefined;
     byName.set(name, { op, requestKeys: new Set(Object.keys(part?.shape ?? {})) });
   }
-  const openBatch = (input: BatchInput) => batchWork(byName, input);
+  // One work per input object: a request's 202 check and synchronous answer share it.
+  const opened = new WeakMap<BatchInput, ReturnType<typeof batchWork>>();
+  const openBatch = (input: BatchInput) => {
+    let work = opened.get(input);
+    if (!work) {
+      work = batchWork(byName, input);
+      opened.set(input, work);
+    }
+    return work;
+  };
   return declareOperation({
     operation: operationCatalogue.batch,
     method: 'post',

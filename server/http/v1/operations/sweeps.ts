@@ -404,7 +404,16 @@ export function sweepOperation(operations: readonly AnyOperation[]) {
     const name = (decl.operation as { batchName?: string }).batchName;
     if (name !== undefined) byName.set(name, compileOperation(decl));
   }
-  const openSweep = (input: SweepInput) => sweepWork(byName, input);
+  // One work per input object: a request's accept, 202 check and synchronous answer share it.
+  const opened = new WeakMap<SweepInput, ReturnType<typeof sweepWork>>();
+  const openSweep = (input: SweepInput) => {
+    let work = opened.get(input);
+    if (!work) {
+      work = sweepWork(byName, input);
+      opened.set(input, work);
+    }
+    return work;
+  };
   return declareOperation({
     operation: operationCatalogue.sweep,
     method: 'post',
@@ -466,9 +475,9 @@ export function sweepOperation(operations: readonly AnyOperation[]) {
         checkColumns(columns, sweep.vary);
 
         const { callbackUrl, ...request } = sweep;
-        // The points are made here once, so a range beyond the finite numbers is refused before any run.
-        sweepPoints(request);
         const input: SweepInput = { sweep: request, ...(columns ? { columns } : {}) };
+        // The points are made now, so a range beyond the finite numbers is refused before any run.
+        openSweep(input);
         return {
           input,
           total,
