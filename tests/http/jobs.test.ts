@@ -12,7 +12,8 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { createAccount } from '../../server/accounts/accounts.js';
 import { createKey } from '../../server/accounts/keys.js';
 import { rotateSigningSecret } from '../../server/accounts/signing-secrets.js';
-import { closeApp, createApp } from '../../server/app.js';
+import { closeApp, createApp, type AppDeps } from '../../server/app.js';
+import { openPostgresStore } from '../../server/db/store.js';
 import type { Config } from '../../server/config.js';
 import { ALL_SCOPES, makeHarness, type Harness } from './helpers.js';
 
@@ -449,6 +450,38 @@ describe('jobs for batches and sweeps', () => {
     const job = await waitFor(h, id, ended);
     expect(job).toMatchObject({ state: 'succeeded', progress: { done: 60, total: 60 }, unitsCharged: 300 });
     expect((await unitsBy(h))['sweeps.run']!.units).toBe(300);
+  });
+
+  it('runs each job on one node only when two nodes share the database, charging every point once', async () => {
+    const h = await harness({ config: { jobChunkPoints: 3, jobChunkPauseMs: 10, jobPollMs: 50 } });
+    // A second node: its own app and runner (on PostgreSQL its own connection pool) on the same database.
+    const url = (h.store.pool as unknown as { options?: { connectionString?: string } } | undefined)?.options
+      ?.connectionString;
+    const store = url ? openPostgresStore(url, { max: 2 }) : h.store;
+    const other: AppDeps = { ...h.deps, store, jobRunner: undefined, enginePool: undefined };
+    createApp(other);
+    try {
+      const ids: string[] = [];
+      for (let i = 0; i < 6; i++) ids.push(((await submit(h, '/v1/sweeps', sweepOf(12))).body as Job).id);
+      for (const id of ids) {
+        const job = await waitFor(h, id, ended);
+        expect(job).toMatchObject({
+          state: 'succeeded',
+          progress: { done: 12, total: 12 },
+          unitsCharged: 60,
+        });
+        const chunks = await h.store.rows<{ request_id: string; units: unknown }>(
+          sql`SELECT request_id, units FROM usage_events WHERE request_id LIKE ${`${id}:%`} ORDER BY request_id`,
+        );
+        expect(chunks.map((c) => [c.request_id, Number(c.units)])).toEqual(
+          [0, 3, 6, 9].map((start) => [`${id}:${start}`, 15]),
+        );
+      }
+      expect((await unitsBy(h))['sweeps.run']!.units).toBe(6 * 60);
+    } finally {
+      await closeApp(other);
+      if (store !== h.store) await store.close();
+    }
   });
 
   it('expires a finished job after the retention time and prunes it with its rows', async () => {
