@@ -10,7 +10,9 @@
  *   (server/http/quantities.ts), then `run`, then the answer (through the non-finite guard);
  * - the OpenAPI document (server/http/openapi.ts), with the operationId `openApiName`;
  * - the batch dispatcher (./batch.ts): a batch's `operation` names a declaration by its
- *   catalogue `batchName`, and each case runs as that operation's own request.
+ *   catalogue `batchName`, and each case runs as that operation's own request;
+ * - jobs: a declaration with a `jobs` part answers 202 and runs in the background when asked or
+ *   large (`jobHandler` below, server/http/jobs/), and gets the /v1/jobs routes (./operations/jobs.ts).
  *
  * Field paths in problems are relative to the request part (`feed.massFlow`); a batch re-bases
  * them onto its case.

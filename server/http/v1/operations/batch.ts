@@ -8,6 +8,11 @@
  * if the quota cannot cover them all, so a batch never overshoots the quota), and the cost of the
  * cases that fail is released afterwards, so units charged = the sum of the succeeding cases' costs.
  * `Accept: text/csv` returns one line per case with dotted column names.
+ *
+ * A batch may run as a job (`Prefer: respond-async`; its declaration's `jobs` part, with the job's
+ * `callbackUrl` in the query string since the body may be CSV): `batchWork` runs a range of cases
+ * and answers over all rows, for the synchronous answer and the job alike. As a job the cases are
+ * charged chunk by chunk as far as the quota reaches, rather than all reserved up front.
  */
 import type { Response } from 'express';
 import {

@@ -18,6 +18,10 @@
  * Cautions and provenance, the same for every point, are lifted out of the rows and given once.
  * `Accept: text/csv` gives a flat table: the varied fields, `status`, the result columns (`columns=`
  * or every scalar of the result) and `error`.
+ *
+ * A sweep may run as a job (its declaration's `jobs` part; server/http/jobs/): `sweepWork` is the
+ * points, their costs, running a range of them and the answer over all rows, for the synchronous
+ * answer and the job's chunks and result alike, so a job's result is the synchronous answer.
  */
 import {
   MAX_SWEEP_POINTS,
