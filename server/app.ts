@@ -14,6 +14,8 @@ import { consoleApiModule } from './console/index.js';
 import { consoleStaticModule } from './console/static.js';
 import type { AppDeps, AppModule } from './deps.js';
 import { createHttpApp } from './http/app.js';
+import { createJobRunner } from './http/jobs/runner.js';
+import { v1Operations } from './http/v1/operations/index.js';
 import { openApiModule } from './http/openapi.js';
 import { engineSettings } from './config.js';
 import { createEnginePool } from './workers/engine-pool.js';
@@ -46,16 +48,25 @@ export function createApp(deps: AppDeps): express.Express {
     onLocalAuthChange(deps.store, () => shared.publishAuthChange());
     shared.onAuthChange(() => forgetKnownKeys(deps.store));
   }
-  return createHttpApp(deps, appModules);
+  const app = createHttpApp(deps, appModules);
+  // Jobs: this node runs queued batches and sweeps (and resumes interrupted ones) in the background.
+  if (!deps.jobRunner) {
+    const runner = createJobRunner(deps, v1Operations);
+    deps.jobRunner = runner;
+    runner.start();
+  }
+  return app;
 }
 
 /**
  * Ends what the app owns besides the database, after the HTTP drain (main.ts's shutdown, tests):
- * the metering commits still queued or in flight (PostgreSQL commits them asynchronously), the
+ * the job runner (after its current chunk), the metering commits still queued or in flight (PostgreSQL commits them asynchronously), the
  * calculation pool's threads (a request still waiting for the pool then fails with 500) and the
  * Redis connections of the shared state. Idempotent; the database stays the caller's to close.
  */
 export async function closeApp(deps: AppDeps): Promise<void> {
+  // The job runner first: it stops after its current chunk (committed, metered) and queues the job again.
+  await deps.jobRunner?.stop();
   await flushMetering(deps.store);
   await deps.enginePool?.destroy();
   await deps.shared?.close();

@@ -28,6 +28,13 @@
  * | ENGINE_WORKERS | available parallelism | worker threads of the calculation pool (server/workers/engine-pool.ts); 0 runs every calculation on the main thread |
  * | ENGINE_WORKER_NICE | 10 | the pool's threads run this much lower in scheduling priority than the main thread (Linux; 0 = the same), so HTTP is served first |
  * | ENGINE_TASK_TIMEOUT_MS | 30000 | a pooled calculation unanswered this long after a thread took it is hung: its thread is replaced and the request gets 503 calculation-timeout |
+ * | ASYNC_JOB_THRESHOLD | 2000 | a batch or sweep with more points than this runs as a job (202 Accepted); `Prefer: respond-async` asks for a job at any size |
+ * | JOB_CHUNK_POINTS | 500 | points a job runs and commits at a time (its rows, progress and metering in one transaction) |
+ * | JOB_LEASE_MS | 30000 | a node's claim on a running job lasts this long unless renewed (heartbeat, each chunk); a dead node's job is taken over after it |
+ * | JOB_RETENTION_HOURS | 24 | a finished job and its results are kept this long, then pruned |
+ * | JOB_POLL_MS | 1000 | how often a node looks for queued jobs (a job submitted to the node starts at once) |
+ * | JOB_CHUNK_PAUSE_MS | 0 | pause between a job's chunks (leaves the node's time to requests; tests catch a job mid-run with it) |
+ * | ALLOW_LOOPBACK_CALLBACKS | 0 | "1": a job's callbackUrl may be http:// on a loopback address (tests only; never in production) |
  * | REDIS_URL | — | redis://[user:password@]host[:port][/db] or rediss://…: rate limits and key-cache invalidation shared between nodes (server/integrations/shared-state.ts); unset → in memory, one node |
  */
 import crypto from 'node:crypto';
@@ -82,6 +89,37 @@ export interface Config {
   redisUrl?: string;
   /** PostgreSQL (`postgres://…`) shared by several nodes; undefined: the SQLite file `dbFile`. */
   databaseUrl?: string;
+  // Jobs: optional so hand-built configs (tests) keep working; read them through jobSettings(config).
+  asyncJobThreshold?: number;
+  jobChunkPoints?: number;
+  jobLeaseMs?: number;
+  jobRetentionHours?: number;
+  jobPollMs?: number;
+  jobChunkPauseMs?: number;
+  allowLoopbackCallbacks?: boolean;
+}
+
+/** The jobs' settings with the defaults filled in (see the table above). */
+export interface JobSettings {
+  threshold: number;
+  chunkPoints: number;
+  leaseMs: number;
+  retentionMs: number;
+  pollMs: number;
+  chunkPauseMs: number;
+  allowLoopbackCallbacks: boolean;
+}
+
+export function jobSettings(config: Config): JobSettings {
+  return {
+    threshold: config.asyncJobThreshold ?? 2000,
+    chunkPoints: config.jobChunkPoints ?? 500,
+    leaseMs: config.jobLeaseMs ?? 30_000,
+    retentionMs: (config.jobRetentionHours ?? 24) * 3_600_000,
+    pollMs: config.jobPollMs ?? 1000,
+    chunkPauseMs: config.jobChunkPauseMs ?? 0,
+    allowLoopbackCallbacks: config.allowLoopbackCallbacks ?? false,
+  };
 }
 
 /** The calculation pool's settings with the defaults filled in. */
@@ -400,5 +438,12 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
       100,
       3_600_000,
     ),
+    asyncJobThreshold: parseIntVar(env, 'ASYNC_JOB_THRESHOLD', 2000, 1, 1_000_000),
+    jobChunkPoints: parseIntVar(env, 'JOB_CHUNK_POINTS', 500, 1, 10_000),
+    jobLeaseMs: parseIntVar(env, 'JOB_LEASE_MS', 30_000, 500, 3_600_000),
+    jobRetentionHours: parseIntVar(env, 'JOB_RETENTION_HOURS', 24, 1, 24 * 365),
+    jobPollMs: parseIntVar(env, 'JOB_POLL_MS', 1000, 50, 600_000),
+    jobChunkPauseMs: parseIntVar(env, 'JOB_CHUNK_PAUSE_MS', 0, 0, 60_000),
+    allowLoopbackCallbacks: parseFlag(env, 'ALLOW_LOOPBACK_CALLBACKS') ?? false,
   };
 }

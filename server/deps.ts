@@ -23,6 +23,11 @@ export interface AppDeps {
    * needs no import of billing.
    */
   onQuotaThresholdCrossed?: (accountId: number) => void;
+  /**
+   * The node's job runner (server/http/jobs/runner.ts), made and started by `createApp`, stopped
+   * by `closeApp` after its current chunk.
+   */
+  jobRunner?: JobRunnerHandle;
   /** Set to draining on SIGTERM (main.ts): /readyz then answers 503. Absent in most tests. */
   lifecycle?: Lifecycle;
   /**
@@ -36,6 +41,18 @@ export interface AppDeps {
    * it when `config.redisUrl` is set and closeApp closes it; absent: everything stays in memory.
    */
   shared?: SharedState;
+}
+
+/** What the rest of the app asks of the job runner. */
+export interface JobRunnerHandle {
+  /** A job was stored on this node: look for work now rather than at the next poll. */
+  wake(): void;
+  /** A job ended outside the runner (cancelled): send its callback. */
+  ended(jobId: string): void;
+  /** Deletes the jobs whose results have expired; resolves with how many. */
+  prune(): Promise<number>;
+  /** Stops after the current chunk, leaving the job resumable (queued again). */
+  stop(): Promise<void>;
 }
 
 /**

@@ -311,6 +311,64 @@ export interface paths {
         patch?: never;
         trace?: never;
     };
+    "/v1/jobs/{jobId}": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        /** A job: state, progress, units charged and, once done, links to its result (costs 0 units) */
+        get: operations["getJob"];
+        put?: never;
+        post?: never;
+        /**
+         * Cancels a queued or running job (the points already committed stay charged; costs 0 units)
+         * @description A running job stops at once: the chunk it is running is discarded and not charged. The answer is the job, cancelled.
+         */
+        delete: operations["cancelJob"];
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
+    "/v1/jobs/{jobId}/result": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        /**
+         * A finished job's result: the JSON the synchronous request would have answered (costs 0 units)
+         * @description The batch or sweep answer over every point, in order. A job the quota stopped (state failed, problem quota-exceeded) has a result too: its remaining points are refused with the quota problem, as a sweep refuses them.
+         */
+        get: operations["getJobResult"];
+        put?: never;
+        post?: never;
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
+    "/v1/jobs/{jobId}/result.csv": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        /** A finished job's result as CSV, as the synchronous request answers with `Accept: text/csv` (costs 0 units) */
+        get: operations["getJobResultCsv"];
+        put?: never;
+        post?: never;
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
 }
 export type webhooks = Record<string, never>;
 export interface components {
@@ -958,6 +1016,93 @@ export interface components {
         };
         /** @example "7c1c1f5e-3a0e-4c39-9f59-2f0a3e6c1d42" */
         IdempotencyKey: string;
+        /**
+         * @example {
+         *       "id": "job_4kQnW2xY7pLm0aBcDeFgHiJk",
+         *       "operation": "sweep",
+         *       "state": "running",
+         *       "progress": {
+         *         "done": 500,
+         *         "total": 3000
+         *       },
+         *       "unitsCharged": 2500,
+         *       "createdAt": "2031-03-14T10:00:00.000Z",
+         *       "startedAt": "2031-03-14T10:00:00.120Z",
+         *       "finishedAt": null,
+         *       "expiresAt": null,
+         *       "links": {
+         *         "self": "/v1/jobs/job_4kQnW2xY7pLm0aBcDeFgHiJk"
+         *       }
+         *     }
+         */
+        Job: {
+            id: string;
+            /**
+             * @description What the job runs
+             * @enum {string}
+             */
+            operation: "batch" | "sweep";
+            /** @enum {string} */
+            state: "queued" | "running" | "succeeded" | "failed" | "cancelled";
+            /** @description Points (or cases) committed so far, of all */
+            progress: {
+                done: number;
+                total: number;
+            };
+            /** @description Units the committed points charged (each what its single call costs; refused points nothing) */
+            unitsCharged: number;
+            /**
+             * @description ISO 8601 instant (UTC)
+             * @example 2031-03-14T10:00:00.000Z
+             */
+            createdAt: string;
+            /**
+             * @description ISO 8601 instant (UTC)
+             * @example 2031-03-14T10:00:00.000Z
+             */
+            startedAt: string | null;
+            /**
+             * @description ISO 8601 instant (UTC)
+             * @example 2031-03-14T10:00:00.000Z
+             */
+            finishedAt: string | null;
+            /**
+             * @description When the job and its results are deleted (set once it ends)
+             * @example 2031-03-14T10:00:00.000Z
+             */
+            expiresAt: string | null;
+            /** @description Why the job failed (quota-exceeded: the quota ran out; its result then refuses the remaining points) */
+            problem?: {
+                /**
+                 * @description URI identifying the problem type
+                 * @example https://ebullio.example/problems/validation-failed
+                 */
+                type: string;
+                /** @example The request is not valid */
+                title: string;
+                /** @example 422 */
+                status: number;
+                detail?: string;
+                instance?: string;
+                errors?: components["schemas"]["ProblemFieldError"][];
+            };
+            /** @description The callback and its delivery, when the request gave a callbackUrl */
+            callback?: {
+                url: string;
+                /** @enum {string|null} */
+                state: "pending" | "delivered" | "failed" | null;
+                attempts: number;
+                /** @description The last attempt: the status answered, or the error */
+                outcome?: string;
+            };
+            links: {
+                self: string;
+                /** @description The JSON answer, once the job succeeded (or the quota stopped it) */
+                result?: string;
+                /** @description The CSV answer, as `Accept: text/csv` gives it */
+                resultCsv?: string;
+            };
+        };
         Liquor: {
             /** @example sodium-hydroxide */
             id: string;
@@ -1992,6 +2137,11 @@ export interface components {
             };
             /** @description One or two fields (the first varies slowest); at most 10000 points in all */
             vary: components["schemas"]["SweepField"][];
+            /**
+             * @description Used when the request runs as a job: an https URL that receives the job resource (POST, JSON) when the job ends, signed with the account's signing secret (headers `Ebullio-Job-Id`, `Ebullio-Timestamp` in Unix seconds and `Ebullio-Signature`: hex HMAC-SHA256 of `<id>.<timestamp>.<body>`). It must not resolve to a loopback, link-local or private address.
+             * @example https://hooks.example.com/ebullio/jobs
+             */
+            callbackUrl?: string;
         };
         SweepResponse: {
             /** @enum {string} */
@@ -3907,10 +4057,15 @@ export interface operations {
     };
     postBatch: {
         parameters: {
-            query?: never;
+            query?: {
+                /** @description Used when the request runs as a job: an https URL that receives the job resource (POST, JSON) when the job ends, signed with the account's signing secret (headers `Ebullio-Job-Id`, `Ebullio-Timestamp` in Unix seconds and `Ebullio-Signature`: hex HMAC-SHA256 of `<id>.<timestamp>.<body>`). It must not resolve to a loopback, link-local or private address. */
+                callbackUrl?: string;
+            };
             header?: {
                 /** @description Makes a retry safe (IETF httpapi Idempotency-Key draft): 1–255 printable ASCII characters, as a token or a quoted string (`"…"`), unique per request. The first request with a key is processed and its answer kept for 24 h for the account; a retry with the same key, method, path, Accept and body gets that answer again (same status and body, header `Idempotent-Replayed: true`, 0 units, marked in the request log). The same key with another request: 422 idempotency-key-reused; while the first is still processed: 409 idempotency-key-in-flight. Answers 5xx, 401, 403 and 429 are not kept (a retry runs again). Not accepted on multipart uploads (400). */
                 "Idempotency-Key"?: components["parameters"]["IdempotencyKey"];
+                /** @description `respond-async` (RFC 7240 §4.1) runs the request as a job whatever its size: the answer is `202 Accepted` with `Preference-Applied: respond-async`, `Location: /v1/jobs/{id}` and the job. Without it a request of more points than the server's threshold (2000 by default) runs as a job too. */
+                Prefer?: string;
             };
             path?: never;
             cookie?: never;
@@ -3936,6 +4091,25 @@ export interface operations {
                 content: {
                     "application/json": components["schemas"]["BatchResponse"];
                     "text/csv": string;
+                };
+            };
+            /** @description Accepted as a job (asked with `Prefer: respond-async`, or larger than the threshold): follow `Location`; the result, once the job has succeeded, is exactly the answer this request would have had (JSON at `links.result`, CSV at `links.resultCsv`). The 202 costs nothing; each point charges what its single call costs as the job commits it. */
+            202: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    /** @description `true` when the answer is the stored answer of an earlier request with the same Idempotency-Key */
+                    "Idempotent-Replayed"?: "true";
+                    /** @description The job: `/v1/jobs/{id}` */
+                    Location?: string;
+                    /** @description `respond-async` when the request asked for it */
+                    "Preference-Applied"?: "respond-async";
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["Job"];
                 };
             };
             /** @description The Idempotency-Key header is malformed or sent with a multipart upload (type idempotency-key-invalid) */
@@ -4053,6 +4227,8 @@ export interface operations {
             header?: {
                 /** @description Makes a retry safe (IETF httpapi Idempotency-Key draft): 1–255 printable ASCII characters, as a token or a quoted string (`"…"`), unique per request. The first request with a key is processed and its answer kept for 24 h for the account; a retry with the same key, method, path, Accept and body gets that answer again (same status and body, header `Idempotent-Replayed: true`, 0 units, marked in the request log). The same key with another request: 422 idempotency-key-reused; while the first is still processed: 409 idempotency-key-in-flight. Answers 5xx, 401, 403 and 429 are not kept (a retry runs again). Not accepted on multipart uploads (400). */
                 "Idempotency-Key"?: components["parameters"]["IdempotencyKey"];
+                /** @description `respond-async` (RFC 7240 §4.1) runs the request as a job whatever its size: the answer is `202 Accepted` with `Preference-Applied: respond-async`, `Location: /v1/jobs/{id}` and the job. Without it a request of more points than the server's threshold (2000 by default) runs as a job too. */
+                Prefer?: string;
             };
             path?: never;
             cookie?: never;
@@ -4077,6 +4253,25 @@ export interface operations {
                 content: {
                     "application/json": components["schemas"]["SweepResponse"];
                     "text/csv": string;
+                };
+            };
+            /** @description Accepted as a job (asked with `Prefer: respond-async`, or larger than the threshold): follow `Location`; the result, once the job has succeeded, is exactly the answer this request would have had (JSON at `links.result`, CSV at `links.resultCsv`). The 202 costs nothing; each point charges what its single call costs as the job commits it. */
+            202: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    /** @description `true` when the answer is the stored answer of an earlier request with the same Idempotency-Key */
+                    "Idempotent-Replayed"?: "true";
+                    /** @description The job: `/v1/jobs/{id}` */
+                    Location?: string;
+                    /** @description `respond-async` when the request asked for it */
+                    "Preference-Applied"?: "respond-async";
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["Job"];
                 };
             };
             /** @description The Idempotency-Key header is malformed or sent with a multipart upload (type idempotency-key-invalid) */
@@ -4389,6 +4584,508 @@ export interface operations {
             };
             /** @description The key lacks the scope of this operation (type forbidden) */
             403: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description validation-failed (a field is missing or malformed), unit-not-recognised, out-of-range (value outside a model; the field, value and valid range in display units are in `errors`), no-solution, or inconsistent-input */
+            422: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Rate limit or monthly quota exceeded (type rate-limited or quota-exceeded); see Retry-After */
+            429: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description busy: the request limits cannot be checked (a service sharing its limits between nodes cannot reach its limit store); nothing was done, retry after Retry-After */
+            503: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    getJob: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                /** @description The job id from the `Location` header of the 202 answer */
+                jobId: string;
+            };
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description The job */
+            200: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    /**
+                     * @example {
+                     *       "id": "job_4kQnW2xY7pLm0aBcDeFgHiJk",
+                     *       "operation": "sweep",
+                     *       "state": "running",
+                     *       "progress": {
+                     *         "done": 500,
+                     *         "total": 3000
+                     *       },
+                     *       "unitsCharged": 2500,
+                     *       "createdAt": "2031-03-14T10:00:00.000Z",
+                     *       "startedAt": "2031-03-14T10:00:00.120Z",
+                     *       "finishedAt": null,
+                     *       "expiresAt": null,
+                     *       "links": {
+                     *         "self": "/v1/jobs/job_4kQnW2xY7pLm0aBcDeFgHiJk"
+                     *       }
+                     *     }
+                     */
+                    "application/json": components["schemas"]["Job"];
+                };
+            };
+            /** @description Missing or invalid API key (type unauthorized) */
+            401: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description The key lacks the scope of this operation (type forbidden) */
+            403: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description No such job on this account, or its results expired (type not-found) */
+            404: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description validation-failed (a field is missing or malformed), unit-not-recognised, out-of-range (value outside a model; the field, value and valid range in display units are in `errors`), no-solution, or inconsistent-input */
+            422: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Rate limit or monthly quota exceeded (type rate-limited or quota-exceeded); see Retry-After */
+            429: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description busy: the request limits cannot be checked (a service sharing its limits between nodes cannot reach its limit store); nothing was done, retry after Retry-After */
+            503: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    cancelJob: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                /** @description The job id from the `Location` header of the 202 answer */
+                jobId: string;
+            };
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description The job, cancelled */
+            200: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    /**
+                     * @example {
+                     *       "id": "job_4kQnW2xY7pLm0aBcDeFgHiJk",
+                     *       "operation": "sweep",
+                     *       "state": "cancelled",
+                     *       "progress": {
+                     *         "done": 500,
+                     *         "total": 3000
+                     *       },
+                     *       "unitsCharged": 2500,
+                     *       "createdAt": "2031-03-14T10:00:00.000Z",
+                     *       "startedAt": "2031-03-14T10:00:00.120Z",
+                     *       "finishedAt": "2031-03-14T10:00:04.000Z",
+                     *       "expiresAt": "2031-03-15T10:00:04.000Z",
+                     *       "links": {
+                     *         "self": "/v1/jobs/job_4kQnW2xY7pLm0aBcDeFgHiJk"
+                     *       }
+                     *     }
+                     */
+                    "application/json": components["schemas"]["Job"];
+                };
+            };
+            /** @description Missing or invalid API key (type unauthorized) */
+            401: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description The key lacks the scope of this operation (type forbidden) */
+            403: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description No such job on this account, or its results expired (type not-found) */
+            404: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description The job has already ended (type conflict) */
+            409: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description validation-failed (a field is missing or malformed), unit-not-recognised, out-of-range (value outside a model; the field, value and valid range in display units are in `errors`), no-solution, or inconsistent-input */
+            422: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Rate limit or monthly quota exceeded (type rate-limited or quota-exceeded); see Retry-After */
+            429: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description busy: the request limits cannot be checked (a service sharing its limits between nodes cannot reach its limit store); nothing was done, retry after Retry-After */
+            503: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    getJobResult: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                /** @description The job id from the `Location` header of the 202 answer */
+                jobId: string;
+            };
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description The batch (BatchResponse) or sweep (SweepResponse) answer */
+            200: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": {
+                        [key: string]: unknown;
+                    };
+                };
+            };
+            /** @description Missing or invalid API key (type unauthorized) */
+            401: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description The key lacks the scope of this operation (type forbidden) */
+            403: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description No such job on this account, or its results expired (type not-found) */
+            404: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description The job has not ended yet, or it was cancelled or failed without a result (type conflict) */
+            409: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description validation-failed (a field is missing or malformed), unit-not-recognised, out-of-range (value outside a model; the field, value and valid range in display units are in `errors`), no-solution, or inconsistent-input */
+            422: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Rate limit or monthly quota exceeded (type rate-limited or quota-exceeded); see Retry-After */
+            429: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description busy: the request limits cannot be checked (a service sharing its limits between nodes cannot reach its limit store); nothing was done, retry after Retry-After */
+            503: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    getJobResultCsv: {
+        parameters: {
+            query?: {
+                /** @description For a sweep: comma-separated dotted result columns, as for the synchronous sweep with `Accept: text/csv` */
+                columns?: string;
+            };
+            header?: never;
+            path: {
+                /** @description The job id from the `Location` header of the 202 answer */
+                jobId: string;
+            };
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description One line per point or case */
+            200: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "text/csv": string;
+                };
+            };
+            /** @description Missing or invalid API key (type unauthorized) */
+            401: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description The key lacks the scope of this operation (type forbidden) */
+            403: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description No such job on this account, or its results expired (type not-found) */
+            404: {
+                headers: {
+                    /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
+                    RateLimit?: string;
+                    /** @description The key’s rate-limit policy (draft-07): requests per window and the window in seconds, e.g. `60;w=60` */
+                    "RateLimit-Policy"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description The job has not ended yet, or it was cancelled or failed without a result (type conflict) */
+            409: {
                 headers: {
                     /** @description The key’s limit, requests left in the current window and seconds until it resets (IETF draft-ietf-httpapi-ratelimit-headers-07), e.g. `limit=60, remaining=58, reset=42` */
                     RateLimit?: string;

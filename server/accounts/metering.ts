@@ -77,7 +77,13 @@ const ROWS_PER_INSERT = 1000;
 
 type CommitRecords = (records: readonly RequestRecord[]) => void;
 
-const committers = new WeakMap<Sqlite, CommitRecords>();
+/** A SQLite connection's commit (write, then advance the month totals) and its bare write. */
+interface Committer {
+  commit: CommitRecords;
+  /** The rows alone, in the transaction open on the connection (a savepoint inside it). */
+  write: CommitRecords;
+}
+const committers = new WeakMap<Sqlite, Committer>();
 
 /** Units committed per account in one calendar month (UTC), per database. */
 type MonthTotals = Map<number, { month: string; units: number }>;
@@ -203,7 +209,7 @@ function addToRollUp(daily: Map<string, DailyRoll>, r: RequestRecord): void {
   }
 }
 
-function prepareCommit(sqlite: Sqlite): CommitRecords {
+function prepareCommit(sqlite: Sqlite): Committer {
   const insertEvent = sqlite.prepare(
     `INSERT INTO usage_events (at, account_id, key_id, operation, status, units, latency_ms, request_id, engine_version)
      VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)`,
@@ -265,19 +271,26 @@ function prepareCommit(sqlite: Sqlite): CommitRecords {
     for (const [keyId, at] of lastUse) touchKey.run(at, keyId, at - LAST_USED_GRANULARITY_MS);
   });
   const totals = totalsFor(sqlite);
-  return (records) => {
-    write(records);
-    advanceTotals(totals, records);
+  return {
+    commit: (records) => {
+      write(records);
+      advanceTotals(totals, records);
+    },
+    write: (records) => void write(records),
   };
 }
 
-function committerFor(sqlite: Sqlite): CommitRecords {
-  let commit = committers.get(sqlite);
-  if (!commit) {
-    commit = prepareCommit(sqlite);
-    committers.set(sqlite, commit);
+function committerOf(sqlite: Sqlite): Committer {
+  let committer = committers.get(sqlite);
+  if (!committer) {
+    committer = prepareCommit(sqlite);
+    committers.set(sqlite, committer);
   }
-  return commit;
+  return committer;
+}
+
+function committerFor(sqlite: Sqlite): CommitRecords {
+  return committerOf(sqlite).commit;
 }
 
 function chunks<T>(rows: readonly T[]): T[][] {
@@ -464,6 +477,72 @@ export async function recordRequests(store: Store, records: readonly RequestReco
   if (records.length === 0) return;
   if (store.sqlite) committerFor(store.sqlite)(records);
   else await serial(store, () => commitPostgres(store, records));
+}
+
+/**
+ * Writes `records` and runs `body` in ONE transaction: a job's chunk commits its rows, its
+ * progress and its metering together, so a crash loses the whole chunk or nothing, and a chunk is
+ * never charged twice. On PostgreSQL the quota is decided at the commit as for a group
+ * ({@link chargeWithinQuotas}); a record it would refuse rolls the whole transaction back and
+ * rejects with {@link QuotaSpentElsewhere}. `body` awaits only the store (see store.ts).
+ */
+export async function commitWithRecords<T>(
+  store: Store,
+  records: readonly RequestRecord[],
+  body: (tx: Store) => Promise<T>,
+): Promise<T> {
+  if (store.sqlite) {
+    const sqlite = store.sqlite;
+    const result = await store.transaction(async (tx) => {
+      const value = await body(tx);
+      committerOf(sqlite).write(records);
+      return value;
+    });
+    advanceTotals(totalsFor(sqlite), records);
+    return result;
+  }
+  return serial(store, async () => {
+    const { value, after } = await store.transaction(async (tx) => {
+      const decided = await chargeWithinQuotas(tx, records);
+      const refused = decided.refused.values().next();
+      if (!refused.done) throw refused.value;
+      await writePostgres(tx, records);
+      return { value: await body(tx), after: decided.after };
+    });
+    const totals = totalsFor(databaseOf(store));
+    for (const [accountId, known] of after) if (totals.has(accountId)) totals.set(accountId, known);
+    return value;
+  });
+}
+
+/**
+ * Units this node has set aside for work it is running outside a request (a job's chunk), per
+ * account and database: the quota check of a request counts them, as a job's check counts the
+ * requests in flight, so neither can spend what the other is about to.
+ */
+const reservations = new WeakMap<object, Map<number, number>>();
+
+export function reservedUnits(store: Store, accountId: number): number {
+  return reservations.get(databaseOf(store))?.get(accountId) ?? 0;
+}
+
+/** Sets `units` aside for the account until {@link releaseReserved}. */
+export function reserveUnits(store: Store, accountId: number, units: number): void {
+  const db = databaseOf(store);
+  let map = reservations.get(db);
+  if (!map) {
+    map = new Map();
+    reservations.set(db, map);
+  }
+  map.set(accountId, (map.get(accountId) ?? 0) + units);
+}
+
+export function releaseReserved(store: Store, accountId: number, units: number): void {
+  const map = reservations.get(databaseOf(store));
+  if (!map) return;
+  const left = (map.get(accountId) ?? 0) - units;
+  if (left > 0) map.set(accountId, left);
+  else map.delete(accountId);
 }
 
 /** Called once the record is committed (`error` undefined) or could not be written. */

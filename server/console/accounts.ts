@@ -12,6 +12,7 @@ import {
   AccountListSchema,
   AccountPatchSchema,
   AccountSchema,
+  SigningSecretSchema,
   type ConsoleAccount,
 } from '../../shared/console/accounts.js';
 import {
@@ -27,6 +28,7 @@ import type { Store } from '../db/store.js';
 import type { AppDeps } from '../deps.js';
 import { problem } from '../http/problem.js';
 import { recordAudit } from '../accounts/audit.js';
+import { rotateSigningSecret } from '../accounts/signing-secrets.js';
 import { consoleRoute, type ConsoleRouteModule, type ConsoleUser } from './route.js';
 
 /** The accounts a user may see: null = all (admin, billing), else the memberships (developer). */
@@ -211,6 +213,28 @@ export const accountRoutes: ConsoleRouteModule = {
           detail: { changes },
         });
         return await accountView(deps, after);
+      },
+    });
+
+    consoleRoute(router, {
+      method: 'post',
+      path: '/accounts/:id/signing-secret',
+      roles: ['admin', 'developer'],
+      summary:
+        'Create or rotate the account’s job-callback signing secret (shown once; the previous one stops signing)',
+      request: { params: AccountIdParamsSchema },
+      response: SigningSecretSchema,
+      status: 201,
+      handler: async ({ req, res, params, user }) => {
+        assertAccountInScope(user, params.id);
+        await requireAccount(deps.store, params.id);
+        const made = await rotateSigningSecret(deps.store, deps.config.secret, params.id, deps.clock());
+        await recordAudit(deps, req, res, {
+          action: 'account.signing-secret.rotate',
+          targetType: 'account',
+          targetId: params.id,
+        });
+        return { accountId: params.id, secret: made.secret, createdAt: made.createdAt.toISOString() };
       },
     });
   },

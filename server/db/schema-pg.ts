@@ -366,3 +366,59 @@ export const paymentEvents = pgTable('payment_events', {
   type: text('type').notNull(),
   receivedAt: instant('received_at').notNull(),
 });
+
+/** Long batches and sweeps run as jobs (see server/db/schema.ts). */
+export const jobs = pgTable(
+  'jobs',
+  {
+    id: text('id').primaryKey(),
+    accountId: integer('account_id')
+      .notNull()
+      .references(() => accounts.id, { onDelete: 'cascade' }),
+    keyId: integer('key_id').references(() => apiKeys.id, { onDelete: 'set null' }),
+    operation: text('operation').notNull(),
+    state: text('state').notNull(),
+    input: text('input').notNull(),
+    total: integer('total').notNull(),
+    done: integer('done').notNull().default(0),
+    units: integer('units').notNull().default(0),
+    claim: text('claim'),
+    leaseUntil: instant('lease_until'),
+    problem: text('problem'),
+    callbackUrl: text('callback_url'),
+    callbackState: text('callback_state'),
+    callbackAttempts: integer('callback_attempts').notNull().default(0),
+    callbackOutcome: text('callback_outcome'),
+    createdAt: instant('created_at').notNull(),
+    startedAt: instant('started_at'),
+    finishedAt: instant('finished_at'),
+    expiresAt: instant('expires_at'),
+  },
+  (t) => [
+    index('jobs_state_idx').on(t.state, t.createdAt),
+    index('jobs_account_idx').on(t.accountId),
+    index('jobs_expires_idx').on(t.expiresAt),
+  ],
+);
+
+/** A job's committed chunks (see server/db/schema.ts). */
+export const jobChunks = pgTable(
+  'job_chunks',
+  {
+    jobId: text('job_id')
+      .notNull()
+      .references(() => jobs.id, { onDelete: 'cascade' }),
+    start: integer('start').notNull(),
+    rows: text('rows').notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.jobId, t.start] })],
+);
+
+/** The key an account's job callbacks are signed with (see server/db/schema.ts). */
+export const accountSigningSecrets = pgTable('account_signing_secrets', {
+  accountId: integer('account_id')
+    .primaryKey()
+    .references(() => accounts.id, { onDelete: 'cascade' }),
+  secret: text('secret').notNull(),
+  createdAt: instant('created_at').notNull(),
+});

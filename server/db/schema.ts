@@ -345,3 +345,73 @@ export const paymentEvents = sqliteTable('payment_events', {
   type: text('type').notNull(),
   receivedAt: integer('received_at', { mode: 'timestamp_ms' }).notNull(),
 });
+
+/**
+ * Long batches and sweeps run as jobs (server/http/jobs/): the validated request (`input`, JSON
+ * text), its state, progress (`done` of `total` points, committed chunk by chunk), the units its
+ * committed points charged, the claim of the node running it (`claim`, held until `lease_until`,
+ * renewed by its heartbeat and by each chunk's commit), the problem of a failed job, the callback
+ * and its delivery, and when its results expire (they are pruned then).
+ */
+export const jobs = sqliteTable(
+  'jobs',
+  {
+    id: text('id').primaryKey(),
+    accountId: integer('account_id')
+      .notNull()
+      .references(() => accounts.id, { onDelete: 'cascade' }),
+    keyId: integer('key_id').references(() => apiKeys.id, { onDelete: 'set null' }),
+    /** 'batch' or 'sweep'. */
+    operation: text('operation').notNull(),
+    /** queued, running, succeeded, failed, cancelled. */
+    state: text('state').notNull(),
+    input: text('input').notNull(),
+    total: integer('total').notNull(),
+    done: integer('done').notNull().default(0),
+    units: integer('units').notNull().default(0),
+    claim: text('claim'),
+    leaseUntil: integer('lease_until', { mode: 'timestamp_ms' }),
+    problem: text('problem'),
+    callbackUrl: text('callback_url'),
+    /** pending, delivered or failed; null without a callback. */
+    callbackState: text('callback_state'),
+    callbackAttempts: integer('callback_attempts').notNull().default(0),
+    /** The last attempt's outcome in words (status or error). */
+    callbackOutcome: text('callback_outcome'),
+    createdAt: integer('created_at', { mode: 'timestamp_ms' }).notNull(),
+    startedAt: integer('started_at', { mode: 'timestamp_ms' }),
+    finishedAt: integer('finished_at', { mode: 'timestamp_ms' }),
+    expiresAt: integer('expires_at', { mode: 'timestamp_ms' }),
+  },
+  (t) => [
+    index('jobs_state_idx').on(t.state, t.createdAt),
+    index('jobs_account_idx').on(t.accountId),
+    index('jobs_expires_idx').on(t.expiresAt),
+  ],
+);
+
+/** A job's committed chunks: the rows of points `start`… in the answer's own row format (JSON text). */
+export const jobChunks = sqliteTable(
+  'job_chunks',
+  {
+    jobId: text('job_id')
+      .notNull()
+      .references(() => jobs.id, { onDelete: 'cascade' }),
+    start: integer('start').notNull(),
+    rows: text('rows').notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.jobId, t.start] })],
+);
+
+/**
+ * The key an account's job callbacks are signed with (HMAC-SHA256), created or rotated in the
+ * console and shown once. Kept encrypted (AES-256-GCM under a key derived from the server secret),
+ * since it must be read back to sign.
+ */
+export const accountSigningSecrets = sqliteTable('account_signing_secrets', {
+  accountId: integer('account_id')
+    .primaryKey()
+    .references(() => accounts.id, { onDelete: 'cascade' }),
+  secret: text('secret').notNull(),
+  createdAt: integer('created_at', { mode: 'timestamp_ms' }).notNull(),
+});

@@ -10,7 +10,7 @@ import { OpenAPIRegistry, OpenApiGeneratorV31, extendZodWithOpenApi } from '@ast
 import { Router } from 'express';
 import swaggerUi from 'swagger-ui-express';
 import { z } from 'zod';
-import { ProblemSchema, UNIT_GRAMMAR } from '../../shared/contracts/index.js';
+import { JobSchema, ProblemSchema, UNIT_GRAMMAR } from '../../shared/contracts/index.js';
 import { deprecationNote, type AnyOperation } from './v1/operation.js';
 import { v1Operations } from './v1/operations/index.js';
 
@@ -158,6 +158,60 @@ const idempotencyKeyHeader = z
     example: '"7c1c1f5e-3a0e-4c39-9f59-2f0a3e6c1d42"',
   });
 
+/** The Prefer header of an operation that may run as a job (RFC 7240). */
+const preferHeader = z
+  .string()
+  .max(1000)
+  .optional()
+  .openapi({
+    param: {
+      name: 'Prefer',
+      in: 'header',
+      description:
+        '`respond-async` (RFC 7240 §4.1) runs the request as a job whatever its size: the answer is `202 Accepted` with ' +
+        '`Preference-Applied: respond-async`, `Location: /v1/jobs/{id}` and the job. Without it a request of more points than ' +
+        "the server's threshold (2000 by default) runs as a job too.",
+    },
+    example: 'respond-async',
+  });
+
+/** The 202 answer of an operation that ran as a job. */
+function acceptedAnswer() {
+  return {
+    description:
+      'Accepted as a job (asked with `Prefer: respond-async`, or larger than the threshold): follow `Location`; the result, ' +
+      'once the job has succeeded, is exactly the answer this request would have had (JSON at `links.result`, CSV at `links.resultCsv`). ' +
+      'The 202 costs nothing; each point charges what its single call costs as the job commits it.',
+    headers: {
+      ...rateLimitHeaders,
+      ...replayedHeader,
+      Location: { description: 'The job: `/v1/jobs/{id}`', schema: { type: 'string' as const } },
+      'Preference-Applied': {
+        description: '`respond-async` when the request asked for it',
+        schema: { type: 'string' as const, enum: ['respond-async'] },
+      },
+    },
+    content: {
+      'application/json': {
+        schema: JobSchema,
+        examples: {
+          queued: {
+            summary: 'A sweep accepted as a job',
+            value: {
+              ...jobExample,
+              state: 'queued',
+              progress: { done: 0, total: 3000 },
+              unitsCharged: 0,
+              startedAt: null,
+            },
+          },
+        },
+      },
+    },
+  };
+}
+const jobExample = JobSchema.meta()?.example as Record<string, unknown>;
+
 const idempotencyProblems = {
   400: problem(
     'The Idempotency-Key header is malformed or sent with a multipart upload (type idempotency-key-invalid)',
@@ -186,7 +240,9 @@ function registerOperation(
   const post = decl.method === 'post';
   const plain = response.schema
     ? ok(response.description, response.schema, response.alternatives ?? {}, response.example)
-    : { description: response.description, headers: rateLimitHeaders };
+    : response.alternatives
+      ? { description: response.description, headers: rateLimitHeaders, content: response.alternatives }
+      : { description: response.description, headers: rateLimitHeaders };
   if (post) plain.headers = { ...rateLimitHeaders, ...replayedHeader };
   const success = decl.deprecation
     ? {
@@ -202,7 +258,8 @@ function registerOperation(
     if (key) own.description = `${description}; or: ${key.description}`;
     extra[Number(status)] = own;
   }
-  const request = { ...requestOf(decl), ...(post ? { headers: [idempotencyKey] } : {}) };
+  const headers = [...(post ? [idempotencyKey] : []), ...(decl.jobs ? [preferHeader] : [])];
+  const request = { ...requestOf(decl), ...(headers.length > 0 ? { headers } : {}) };
   const dep = decl.deprecation;
   const description = [decl.description, dep ? deprecationNote(dep) : undefined].filter(Boolean).join('\n\n');
   registry.registerPath({
@@ -217,6 +274,7 @@ function registerOperation(
     ...(Object.keys(request).length > 0 ? { request } : {}),
     responses: {
       [response.status ?? 200]: success,
+      ...(decl.jobs ? { 202: acceptedAnswer() } : {}),
       ...extra,
       ...commonProblems,
       ...(post
@@ -280,6 +338,10 @@ export function buildOpenApiDocument(
       { name: 'Evaporators', description: 'Evaporator design and rating' },
       { name: 'Studies', description: 'Comparisons of schemes for one duty, costed' },
       { name: 'Batch', description: 'Many cases in one request' },
+      {
+        name: 'Jobs',
+        description: 'Long batches and sweeps run in the background: state, progress, results, cancel',
+      },
     ],
   });
 }

@@ -64,3 +64,16 @@ export const AccountPatchSchema = z
   .refine((p) => Object.keys(p).length > 0, { error: 'give at least one field to change' })
   .meta({ id: 'ConsoleAccountPatch' });
 export type ConsoleAccountPatch = z.infer<typeof AccountPatchSchema>;
+
+/** An account's callback signing secret, shown once when it is made (POST /accounts/:id/signing-secret). */
+export const SigningSecretSchema = z
+  .object({
+    accountId: z.int(),
+    secret: z.string().meta({
+      description:
+        'The key of the HMAC-SHA256 signatures of job callbacks; shown only now (a new one replaces it and the old one stops signing)',
+    }),
+    createdAt: InstantSchema,
+  })
+  .meta({ id: 'SigningSecret' });
+export type SigningSecret = z.infer<typeof SigningSecretSchema>;

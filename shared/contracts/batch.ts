@@ -2,6 +2,7 @@
 import { z } from 'zod';
 import { batchOperationNames, type BatchOperationName } from '../operations.js';
 import { ProblemSchema } from './common.js';
+import { CallbackUrlSchema } from './jobs.js';
 import { LiquorRefSchema } from './liquors.js';
 
 /**
@@ -13,6 +14,13 @@ export type BatchOperation = BatchOperationName;
 
 /** Most cases in one batch request; more is refused with 413. */
 export const MAX_BATCH_ROWS = 1000;
+
+/** The batch's query string (besides a CSV body's `operation` and `liquor`): the job's callback. */
+export const BatchQuerySchema = z
+  .object({
+    callbackUrl: CallbackUrlSchema.optional(),
+  })
+  .meta({ id: 'BatchQuery' });
 
 export const BatchRequestSchema = z
   .object({

@@ -9,3 +9,4 @@ export * from './sweeps.js';
 export * from './usage.js';
 export * from './recompression.js';
 export * from './studies.js';
+export * from './jobs.js';

@@ -7,6 +7,7 @@
 import { z } from 'zod';
 import { batchOperations, runTally } from './batch.js';
 import { ProblemSchema, PROTOTYPE_KEYS } from './common.js';
+import { CallbackUrlSchema } from './jobs.js';
 
 /** Most points in one sweep (the product of the fields' counts); more is refused with 422. */
 export const MAX_SWEEP_POINTS = 10_000;
@@ -107,6 +108,7 @@ export const SweepRequestSchema = z
       .meta({
         description: `One or two fields (the first varies slowest); at most ${MAX_SWEEP_POINTS} points in all`,
       }),
+    callbackUrl: CallbackUrlSchema.optional(),
   })
   .strict()
   .meta({

@@ -3,7 +3,8 @@
  * pressures × 100 feed temperatures), target ≤ 1.5 s; and, while it runs, the p95 latency of
  * `GET /healthz` probed one after another (the sweep parses a slice of points per turn of the
  * event loop and calculates in the pool, so other requests must not stall; target ≤ 100 ms, the
- * pool bench's). Run alone: `npx tsx tests/bench/sweep.ts`.
+ * pool bench's). The same sweep as a job too (`Prefer: respond-async`, to its result). Run alone:
+ * `npx tsx tests/bench/sweep.ts`.
  */
 import http from 'node:http';
 import type { AddressInfo } from 'node:net';
@@ -47,7 +48,13 @@ interface SweepResult {
 
 async function measure(workers: number, runs: number): Promise<SweepResult> {
   const pool = createEnginePool({ workers, taskTimeoutMs: 120_000, eager: true });
-  const h = await makeHarness({ quota: 100_000_000, rateLimit: 100_000, enginePool: pool });
+  // Answered at once: above the jobs' threshold (2000 points by default) it would be a job.
+  const h = await makeHarness({
+    quota: 100_000_000,
+    rateLimit: 100_000,
+    enginePool: pool,
+    config: { asyncJobThreshold: 1_000_000 },
+  });
   const server = http.createServer({ keepAlive: true }, h.app).listen(0, '127.0.0.1');
   await new Promise((resolve) => server.once('listening', resolve));
   const origin = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
@@ -97,6 +104,65 @@ async function measure(workers: number, runs: number): Promise<SweepResult> {
   return { seconds, healthzP95: quantile(healthz, 0.95), probes: healthz.length, bytes };
 }
 
+/**
+ * The same sweep as a job (`Prefer: respond-async`): from the POST to the job's success (polled),
+ * then its result fetched; /healthz probed meanwhile. Chunks of the default 500 points, each
+ * committed with its rows and usage.
+ */
+async function measureJob(runs: number): Promise<SweepResult> {
+  const h = await makeHarness({ quota: 100_000_000, rateLimit: 100_000, config: { engineWorkers: 0 } });
+  const server = http.createServer({ keepAlive: true }, h.app).listen(0, '127.0.0.1');
+  await new Promise((resolve) => server.once('listening', resolve));
+  const origin = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
+  const headers = { authorization: `Bearer ${h.token}`, 'content-type': 'application/json' };
+  const once = async () => {
+    const t = performance.now();
+    const accepted = await fetch(`${origin}/v1/sweeps`, {
+      method: 'POST',
+      headers: { ...headers, prefer: 'respond-async' },
+      body: sweepBody,
+    });
+    const { id } = (await accepted.json()) as { id: string };
+    for (;;) {
+      const job = (await (await fetch(`${origin}/v1/jobs/${id}`, { headers })).json()) as { state: string };
+      if (job.state === 'succeeded') break;
+      if (job.state !== 'queued' && job.state !== 'running') throw new Error(`job ${id}: ${job.state}`);
+      await new Promise((resolve) => setTimeout(resolve, 10));
+    }
+    const bytes = Buffer.from(
+      await (await fetch(`${origin}/v1/jobs/${id}/result`, { headers })).arrayBuffer(),
+    );
+    if (!bytes.subarray(0, 200).includes('"succeeded":10000,'))
+      throw new Error(`job result: ${bytes.subarray(0, 300)}`);
+    return { ms: performance.now() - t, bytes: bytes.length };
+  };
+  await once();
+  const seconds: number[] = [];
+  let bytes = 0;
+  for (let i = 0; i < runs; i++) {
+    const r = await once();
+    seconds.push(r.ms / 1000);
+    bytes = r.bytes;
+  }
+  let running = true;
+  const job = once().then(() => {
+    running = false;
+  });
+  const healthz: number[] = [];
+  while (running) {
+    const t = performance.now();
+    await (await fetch(`${origin}/healthz`)).text();
+    healthz.push(performance.now() - t);
+    await new Promise((resolve) => setTimeout(resolve, 5));
+  }
+  await job;
+  server.closeAllConnections();
+  await new Promise((resolve) => server.close(resolve));
+  await closeApp(h.deps);
+  await h.store.close();
+  return { seconds, healthzP95: quantile(healthz, 0.95), probes: healthz.length, bytes };
+}
+
 export async function runSweepBench(): Promise<void> {
   const cores = os.availableParallelism();
   console.log(
@@ -112,6 +178,12 @@ export async function runSweepBench(): Promise<void> {
         `${(r.bytes / 1e6).toFixed(1)} MB; GET /healthz p95 ${r.healthzP95.toFixed(1)} ms (${r.probes} probes)`,
     );
   }
+  const job = await measureJob(3);
+  const best = Math.min(...job.seconds);
+  console.log(
+    `  ${'as a job, inline, to result'.padEnd(28)} best ${best.toFixed(2)} s, median ${quantile(job.seconds, 0.5).toFixed(2)} s ` +
+      `(${(best / 1.5).toFixed(2)}× target), ${(job.bytes / 1e6).toFixed(1)} MB; GET /healthz p95 ${job.healthzP95.toFixed(1)} ms (${job.probes} probes)`,
+  );
 }
 
 if (import.meta.url === pathToFileURL(process.argv[1] ?? '').href) {

@@ -3,6 +3,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeConsoleHarness, meter, type ConsoleHarness } from './data-harness.js';
 import { createKey } from '../../server/accounts/keys.js';
+import { signingSecretOf } from '../../server/accounts/signing-secrets.js';
 
 let h: ConsoleHarness;
 beforeAll(async () => {
@@ -143,5 +144,37 @@ describe('PATCH /console-api/accounts/:id', () => {
       .send({ name: 'Y' })
       .expect(404);
     await h.billing.agent.get(`/console-api/accounts/${h.alphaId}`).expect(200);
+  });
+});
+
+describe('POST /console-api/accounts/{id}/signing-secret', () => {
+  it('makes a signing secret shown once, stored encrypted and readable to sign, for an admin or a member developer', async () => {
+    const first = await h.admin.agent
+      .post(`/console-api/accounts/${h.alphaId}/signing-secret`)
+      .set('X-CSRF-Token', h.admin.csrf)
+      .expect(201);
+    expect(first.body).toMatchObject({ accountId: h.alphaId });
+    expect(first.body.secret).toMatch(/^ebs1_[A-Za-z0-9_-]{43}$/);
+    // Stored sealed, never as the secret itself; read back in clear to sign.
+    const [row] = await h.deps.store.db.select().from(h.deps.store.t.accountSigningSecrets);
+    expect(row!.secret).not.toContain(first.body.secret);
+    expect(await signingSecretOf(h.deps.store, h.deps.config.secret, h.alphaId)).toBe(first.body.secret);
+    // A member developer rotates it: the old one stops signing.
+    const second = await h.developer.agent
+      .post(`/console-api/accounts/${h.alphaId}/signing-secret`)
+      .set('X-CSRF-Token', h.developer.csrf)
+      .expect(201);
+    expect(second.body.secret).not.toBe(first.body.secret);
+    expect(await signingSecretOf(h.deps.store, h.deps.config.secret, h.alphaId)).toBe(second.body.secret);
+    const audit = (await h.deps.store.db.select().from(h.deps.store.t.auditLog)).filter(
+      (a) => a.action === 'account.signing-secret.rotate',
+    );
+    expect(audit).toHaveLength(2);
+    // Not a member: refused, nothing made.
+    await h.developer.agent
+      .post(`/console-api/accounts/${h.betaId}/signing-secret`)
+      .set('X-CSRF-Token', h.developer.csrf)
+      .expect(403);
+    expect(await signingSecretOf(h.deps.store, h.deps.config.secret, h.betaId)).toBeUndefined();
   });
 });

@@ -169,6 +169,23 @@ describe('accounts store', () => {
     expect(store.formError?.fieldMessage('monthlyUnitQuota')).toBe('must be between 0 and 1000000000');
   });
 
+  it('makes a signing secret with POST /accounts/:id/signing-secret and hands it back once, or keeps the problem', async () => {
+    const made = { accountId: 9, secret: `ebs1_${'a'.repeat(43)}`, createdAt: '2031-03-14T10:00:00.000Z' };
+    const { f, store } = accountsWith({
+      'POST /console-api/accounts/9/signing-secret': () => json(201, made),
+      'POST /console-api/accounts/8/signing-secret': () => json(403, forbidden),
+    });
+    expect(await store.rotateSigningSecret(9)).toEqual(made);
+    expect(f.calls.map((c) => `${c.method} ${c.path}`)).toEqual([
+      'POST /console-api/accounts/9/signing-secret',
+    ]);
+    // The store keeps no copy of the secret: the page shows it once and forgets it.
+    expect(JSON.stringify(store.$state)).not.toContain(made.secret);
+    expect(await store.rotateSigningSecret(8)).toBeNull();
+    expect(store.formError?.status).toBe(403);
+    expect(store.saving).toBe(false);
+  });
+
   it('holds the list’s problem for the page, and no plans when GET /plans fails', async () => {
     const { store } = accountsWith({
       'GET /console-api/accounts': () => json(403, forbidden),

@@ -129,7 +129,7 @@ describe('PostgreSQL migrations', () => {
       actual.get(row.table_name)!.set(row.column_name, row);
     }
     const tables = pgTables();
-    expect(tables.length).toBe(18);
+    expect(tables.length).toBe(21);
     for (const table of tables) {
       const config = getTableConfig(table);
       const columns = actual.get(config.name);

@@ -8,7 +8,11 @@ import { operationInfo } from '../../server/accounts/operations.js';
 import { buildOpenApiDocument } from '../../server/http/openapi.js';
 import { usageExample } from '../../server/http/v1/operations/usage.js';
 import { v1Operations } from '../../server/http/v1/operations/index.js';
-import { StoredLiquorListSchema, UsageResponseSchema } from '../../shared/contracts/index.js';
+import {
+  StoredLiquorListSchema,
+  SweepRequestSchema,
+  UsageResponseSchema,
+} from '../../shared/contracts/index.js';
 import { makeHarness } from './helpers.js';
 
 interface Parameter {
@@ -53,13 +57,33 @@ describe('the worked examples of the OpenAPI document', () => {
   });
 
   it('answers each documented request with a 2xx', async () => {
-    const h = await makeHarness({ quota: 1_000_000, rateLimit: 100_000 });
+    // A pause between chunks keeps the long job running while its cancel example is sent.
+    const h = await makeHarness({ quota: 1_000_000, rateLimit: 100_000, config: { jobChunkPauseMs: 200 } });
+    // The job routes' examples need jobs of this account: a finished one, and one still running to cancel.
+    const submit = async (steps: number) => {
+      const example = (SweepRequestSchema.meta()?.example ?? {}) as Record<string, unknown>;
+      const res = await request(h.app)
+        .post('/v1/sweeps')
+        .set('Authorization', `Bearer ${h.token}`)
+        .set('Prefer', 'respond-async')
+        .send({ ...example, vary: [{ field: 'feed.temperature', from: 30, to: 80, steps }] });
+      expect(res.status, JSON.stringify(res.body)).toBe(202);
+      return (res.body as { id: string }).id;
+    };
+    const finished = await submit(6);
+    for (let i = 0; i < 200; i++) {
+      const res = await request(h.app).get(`/v1/jobs/${finished}`).set('Authorization', `Bearer ${h.token}`);
+      if ((res.body as { state: string }).state === 'succeeded') break;
+      await new Promise((r) => setTimeout(r, 50));
+    }
+    const running = await submit(10_000);
+    const jobIdOf = (operationId: string) => (operationId === 'cancelJob' ? running : finished);
     const sorted = [...documented].sort((a, b) => order(a.op.operationId) - order(b.op.operationId));
     for (const { method, path, op } of sorted) {
       let url = path;
       const query: Record<string, string> = {};
       for (const p of op.parameters ?? []) {
-        const value = exampleOf(p);
+        const value = p.name === 'jobId' ? jobIdOf(op.operationId) : exampleOf(p);
         if (value === undefined) continue;
         if (p.in === 'path') url = url.replace(`{${p.name}}`, encodeURIComponent(String(value)));
         else query[p.name] = String(value);

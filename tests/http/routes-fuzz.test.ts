@@ -662,6 +662,53 @@ describe('fuzzed requests never give a 5xx or a non-finite number', { timeout: 6
     );
   });
 
+  it('GET and DELETE /v1/jobs/{jobId}, its result and its CSV with hostile ids and columns', async () => {
+    // A real finished job of the account, so its CSV's `columns=` is read rather than 404.
+    const accepted = await request(origin)
+      .post('/v1/sweeps')
+      .set('Authorization', `Bearer ${h.token}`)
+      .set('Prefer', 'respond-async')
+      .send({
+        operation: 'single-effect',
+        base: {
+          liquor: 'sodium-hydroxide',
+          feed: { massFlow: 2, massFraction: 0.1, temperature: 60 },
+          product: { massFraction: 0.3 },
+          steam: { pressure: '3 barg' },
+          body: { pressure: 15, overallHeatTransferCoefficient: 2000 },
+        },
+        vary: [{ field: 'body.pressure', values: [10, 15, 20] }],
+      });
+    expect(accepted.status).toBe(202);
+    const id = (accepted.body as { id: string }).id;
+    for (let i = 0; i < 400; i++) {
+      const job = await request(origin).get(`/v1/jobs/${id}`).set('Authorization', `Bearer ${h.token}`);
+      if ((job.body as { state: string }).state === 'succeeded') break;
+      await new Promise((r) => setTimeout(r, 25));
+    }
+    await fc.assert(
+      fc.asyncProperty(
+        fc.string({ maxLength: 80 }),
+        fc.string({ maxLength: 300 }),
+        async (jobId, columns) => {
+          const path = `/v1/jobs/${encodeURIComponent(jobId)}`;
+          for (const url of [path, `${path}/result`, `${path}/result.csv`]) {
+            const res = await request(origin).get(url).set('Authorization', `Bearer ${h.token}`);
+            expect(res.status, url).toBeLessThan(500);
+          }
+          const del = await request(origin).delete(path).set('Authorization', `Bearer ${h.token}`);
+          expect(del.status, path).toBeLessThan(500);
+          const csv = await request(origin)
+            .get(`/v1/jobs/${id}/result.csv`)
+            .query({ columns })
+            .set('Authorization', `Bearer ${h.token}`);
+          expect(csv.status, columns).toBeLessThan(500);
+        },
+      ),
+      { numRuns: RUNS / 10 },
+    );
+  });
+
   it.each([
     '/v1/steam/state',
     '/v1/liquors/sucrose/boiling-point',

@@ -1,6 +1,6 @@
 /**
  * Customer accounts (Pinia setup store): the list (GET /console-api/accounts), the price plans
- * an administrator picks from, and create / edit.
+ * an administrator picks from, create / edit, and the job-callback signing secret (made and shown once).
  */
 import { defineStore } from 'pinia';
 import { ref } from 'vue';
@@ -9,6 +9,7 @@ import type {
   ConsoleAccountCreate,
   ConsoleAccountList,
   ConsoleAccountPatch,
+  SigningSecret,
 } from '../../../shared/console/accounts.js';
 import type { Plan, PlansResponse } from '../../../shared/console/billing.js';
 import { api as defaultApi, type ApiClient, type ApiProblem, asProblemTitledByError } from '../api/client.js';
@@ -67,6 +68,23 @@ export const useAccountsStore = defineStore('accounts', () => {
     }
   }
 
+  /**
+   * Makes a new callback signing secret for the account (the old one stops signing) and returns it:
+   * the only time it is shown. Null on failure (see formError).
+   */
+  async function rotateSigningSecret(id: number): Promise<SigningSecret | null> {
+    saving.value = true;
+    formError.value = null;
+    try {
+      return await client.post<SigningSecret>(`/accounts/${id}/signing-secret`, {});
+    } catch (err) {
+      formError.value = asProblemTitledByError(err);
+      return null;
+    } finally {
+      saving.value = false;
+    }
+  }
+
   /** Forget everything (a page opens empty, so one user's accounts never show for the next). */
   function reset(): void {
     accounts.value = [];
@@ -77,5 +95,17 @@ export const useAccountsStore = defineStore('accounts', () => {
     formError.value = null;
   }
 
-  return { accounts, plans, loading, error, saving, formError, load, loadPlans, save, reset };
+  return {
+    accounts,
+    plans,
+    loading,
+    error,
+    saving,
+    formError,
+    load,
+    loadPlans,
+    save,
+    rotateSigningSecret,
+    reset,
+  };
 });

@@ -27,6 +27,7 @@ import {
   loadUnitsThisMonth,
   meteringWriter,
   QuotaSpentElsewhere,
+  reservedUnits,
   type MeteringWriter,
   type RequestRecord,
 } from '../../accounts/metering.js';
@@ -140,7 +141,8 @@ class MeteredRequest implements MeterState {
       );
       committed = knownUnitsThisMonth(store, accountId, this.startedAt ?? now) ?? 0;
     }
-    return committed + pending;
+    // Units a job running on this node has set aside for its chunk count as spent too.
+    return committed + pending + reservedUnits(store, accountId);
   }
 
   /** Leaves the in-flight set once the record is committed (or could not be). */
@@ -327,8 +329,26 @@ function install(meter: MeteredRequest, res: Response): void {
   res.on('close', () => meter.closed());
 }
 
+/** The requests in flight of each store's apps (one map per store), for {@link unitsInFlight}. */
+const inFlightByStore = new WeakMap<object, Map<number, Set<MeteredRequest>>>();
+
+/**
+ * Units charged by the account's requests in flight on this node (not yet committed): a job's
+ * quota check counts them, so a chunk cannot spend what a request is about to.
+ */
+export function unitsInFlight(store: object, accountId: number): number {
+  let units = 0;
+  for (const meter of inFlightByStore.get(store)?.get(accountId) ?? []) units += meter.units;
+  return units;
+}
+
 export function metering(deps: AppDeps): MeteringMiddleware {
-  const ctx: MeteringContext = { deps, writer: meteringWriter(deps.store), inFlight: new Map() };
+  let inFlight = inFlightByStore.get(deps.store);
+  if (!inFlight) {
+    inFlight = new Map();
+    inFlightByStore.set(deps.store, inFlight);
+  }
+  const ctx: MeteringContext = { deps, writer: meteringWriter(deps.store), inFlight };
   const middleware: RequestHandler = (req, res, next) => {
     const auth = res.locals.auth;
     if (!auth) throw new Error('metering must run after authentication');

@@ -10,7 +10,9 @@
  *   (server/http/quantities.ts), then `run`, then the answer (through the non-finite guard);
  * - the OpenAPI document (server/http/openapi.ts), with the operationId `openApiName`;
  * - the batch dispatcher (./batch.ts): a batch's `operation` names a declaration by its
- *   catalogue `batchName`, and each case runs as that operation's own request.
+ *   catalogue `batchName`, and each case runs as that operation's own request;
+ * - jobs: a declaration with a `jobs` part answers 202 and runs in the background when asked or
+ *   large (`jobHandler` below, server/http/jobs/), and gets the /v1/jobs routes (./operations/jobs.ts).
  *
  * Field paths in problems are relative to the request part (`feed.massFlow`); a batch re-bases
  * them onto its case.
@@ -27,7 +29,11 @@ import {
   type TaskOutcome,
 } from '../../workers/engine-tasks.js';
 import { EngineCallError, type EnginePool } from '../../workers/engine-pool.js';
+import { signingSecretCreatedAt } from '../../accounts/signing-secrets.js';
+import { jobSettings } from '../../config.js';
 import { calculate, type FieldMap } from '../engine-errors.js';
+import { checkCallbackUrl } from '../jobs/callback.js';
+import { createJob, jobResource, newJobId } from '../jobs/repo.js';
 import { idempotency } from '../middleware/idempotency.js';
 import { chargeUnits, guardOperation, releaseUnits } from '../middleware/operation.js';
 import { problem, type ProblemError } from '../problem.js';
@@ -49,6 +55,8 @@ export interface OperationContext {
    * infeasible candidates, as a batch's failed cases). Absent where nothing can be given back.
    */
   releaseUnits?: (units: number) => void;
+  /** Jobs: how long an ended job is kept, and the runner's hook for a job ended by a request. */
+  jobs?: { retentionMs: number; ended: (jobId: string) => void };
 }
 
 type Out<S> = S extends z.ZodType ? z.output<S> : undefined;
@@ -62,7 +70,7 @@ export interface OperationInput<P, Q, B, L> {
   loaded: L;
 }
 
-export type OpenApiTag = 'Steam' | 'Liquors' | 'Evaporators' | 'Studies' | 'Batch' | 'Usage';
+export type OpenApiTag = 'Steam' | 'Liquors' | 'Evaporators' | 'Studies' | 'Batch' | 'Jobs' | 'Usage';
 
 export interface OperationDeclaration<
   P extends z.ZodType | undefined = z.ZodType | undefined,
@@ -150,6 +158,14 @@ export interface OperationDeclaration<
    * (or query) of its own request. Here it may say how: `load` finds what the path would name
    * from the case (and the batch's shared fields), and `units` prices a case.
    */
+  /**
+   * The operation may run as a job (server/http/jobs/): a long run of points answered `202
+   * Accepted` with `Location: /v1/jobs/{id}` when the request says `Prefer: respond-async` or has
+   * more points than the `asyncJobThreshold` setting. Replaces `handle`: the router reads the
+   * request with `accept`, then either answers at once with `respond` or stores the accepted input
+   * as a job, which the runner rebuilds with `open` and runs a chunk of points at a time.
+   */
+  jobs?: JobPart;
   batch?: {
     load?: (
       c: Record<string, unknown>,
@@ -161,6 +177,56 @@ export interface OperationDeclaration<
     /** Units of one case (default: the catalogue's base units). */
     units?: (c: Record<string, unknown>) => number;
   };
+}
+
+/** What an operation that may run as a job accepted: its input (plain JSON) and its size. */
+export interface Accepted {
+  /** The checked request as plain JSON: stored with the job, handed back to `respond` and `open`. */
+  input: unknown;
+  /** Points (or cases) the request runs. */
+  total: number;
+  /** The job's `callbackUrl`, if the request gave one (checked by the router). */
+  callbackUrl?: string;
+  /** The field the callback URL came in, for a refusal (`callbackUrl` or `query.callbackUrl`). */
+  callbackField?: string;
+}
+
+/** See {@link OperationDeclaration.jobs}. */
+export interface JobPart {
+  /** The job resource's `operation` ('batch', 'sweep'). */
+  kind: string;
+  /** Reads and checks the request, refusing as the synchronous call would; charges nothing. */
+  accept: (req: Request, res: Response, ctx: OperationContext) => Promise<Accepted>;
+  /** The synchronous answer (charging, running and sending as the operation always did). */
+  respond: (accepted: Accepted, req: Request, res: Response, ctx: OperationContext) => Promise<void>;
+  /** The work of a stored input, a chunk of points at a time. */
+  open: (input: unknown) => JobWork;
+}
+
+/** A job's points, run a chunk at a time; rows are in the synchronous answer's own format. */
+export interface JobWork {
+  total: number;
+  /** Units point `index` costs when it succeeds (its single call's price). */
+  cost: (index: number) => number;
+  /** Runs points [start, end): their rows, and whether each succeeded. Throws a pool failure. */
+  run: (start: number, end: number, ctx: OperationContext) => Promise<{ rows: unknown[]; ok: boolean[] }>;
+  /** The row of a point refused for want of quota. */
+  refused: (index: number, problem: ProblemBody) => unknown;
+  /** The JSON answer the synchronous call gives for these rows. */
+  answer: (rows: unknown[], unitsCharged: number) => Record<string, unknown>;
+  /** The key of the rows in the answer (written a slice at a time). */
+  rowsKey: string;
+  /** The CSV answer (`Accept: text/csv`); the query is the result request's (e.g. `columns`). */
+  csv: (rows: unknown[], query: Record<string, unknown>) => string;
+}
+
+/** A problem as plain JSON (a row's). */
+export interface ProblemBody {
+  type: string;
+  title: string;
+  status: number;
+  detail?: string;
+  errors?: { field: string; message: string }[];
 }
 
 /** When an operation was deprecated, when it goes away, and the page that says what replaces it. */
@@ -372,6 +438,20 @@ function liquorOf(loaded: unknown, body: unknown): string | undefined {
   return ref !== null && typeof ref === 'object' ? 'custom' : undefined;
 }
 
+/** The jobs' part of a context, made once per app (contexts are made per request). */
+const jobsContexts = new WeakMap<AppDeps, NonNullable<OperationContext['jobs']>>();
+function jobsContextOf(deps: AppDeps): NonNullable<OperationContext['jobs']> {
+  let jobs = jobsContexts.get(deps);
+  if (!jobs) {
+    jobs = {
+      retentionMs: jobSettings(deps.config).retentionMs,
+      ended: (jobId) => deps.jobRunner?.ended(jobId),
+    };
+    jobsContexts.set(deps, jobs);
+  }
+  return jobs;
+}
+
 function contextOf(res: Response, deps: AppDeps): OperationContext {
   return {
     accountId: res.locals.auth!.accountId,
@@ -380,6 +460,77 @@ function contextOf(res: Response, deps: AppDeps): OperationContext {
     clock: deps.clock,
     ...(deps.enginePool ? { enginePool: deps.enginePool } : {}),
     releaseUnits: (units) => releaseUnits(res, units),
+    jobs: jobsContextOf(deps),
+  };
+}
+
+/** Whether a `Prefer` header (RFC 7240 §2) asks for `respond-async`. */
+export function prefersAsync(header: string | undefined): boolean {
+  if (!header) return false;
+  return header
+    .split(',')
+    .some((preference) => preference.split(';')[0]!.split('=')[0]!.trim().toLowerCase() === 'respond-async');
+}
+
+/**
+ * The handler of an operation that may run as a job: the request is read and checked by `accept`
+ * (refusals as the synchronous call's), then answered at once by `respond`, or, asked with
+ * `Prefer: respond-async` or larger than the threshold, stored as a job and answered `202
+ * Accepted` with `Location: /v1/jobs/{id}` and the job resource. The 202 charges nothing (it is
+ * metered as a 2xx of 0 units); the points charge as the runner commits them. A callback URL is
+ * checked here (422 naming the field), and needs the account's signing secret.
+ */
+function jobHandler(part: JobPart, deps: AppDeps): RequestHandler {
+  return async (req, res) => {
+    const ctx = contextOf(res, deps);
+    const accepted = await part.accept(req, res, ctx);
+    const settings = jobSettings(deps.config);
+    const preferred = prefersAsync(req.get('prefer'));
+    if (!preferred && accepted.total <= settings.threshold) {
+      await part.respond(accepted, req, res, ctx);
+      return;
+    }
+    const field = accepted.callbackField ?? 'callbackUrl';
+    let callbackUrl: string | undefined;
+    if (accepted.callbackUrl !== undefined) {
+      callbackUrl = (await checkCallbackUrl(accepted.callbackUrl, field, settings.allowLoopbackCallbacks))
+        .href;
+      if ((await signingSecretCreatedAt(deps.store, ctx.accountId)) === undefined) {
+        throw problem(
+          'validation-failed',
+          `${field}: the account has no signing secret to sign the callback with.`,
+          {
+            errors: [
+              {
+                field,
+                message:
+                  'needs the account’s signing secret; create one in the console (account → signing secret)',
+              },
+            ],
+          },
+        );
+      }
+    }
+    // Not even the first point fits the quota: refused now, as the synchronous call would be.
+    const work = part.open(accepted.input);
+    if (work.total > 0) {
+      chargeUnits(res, work.cost(0));
+      releaseUnits(res, work.cost(0));
+    }
+    const job = await createJob(deps.store, {
+      id: newJobId(),
+      accountId: ctx.accountId,
+      keyId: res.locals.auth?.keyId ?? null,
+      operation: part.kind,
+      input: accepted.input,
+      total: accepted.total,
+      callbackUrl,
+      now: deps.clock(),
+    });
+    deps.jobRunner?.wake();
+    res.status(202).location(`/v1/jobs/${job.id}`);
+    if (preferred) res.setHeader('Preference-Applied', 'respond-async');
+    res.json(jobResource(job));
   };
 }
 
@@ -388,30 +539,32 @@ export function mountOperation(router: Router, decl: AnyOperation, deps: AppDeps
   const op = compileOperation(decl);
   const status = decl.response.status ?? 200;
   const extraUnits = decl.extraUnits;
-  const handler: RequestHandler = decl.handle
-    ? (req, res) => decl.handle!(req, res, contextOf(res, deps))
-    : async (req, res) => {
-        if (extraUnits) {
-          const extra = extraUnits(req.body);
-          if (extra) chargeUnits(res, extra);
-        }
-        const prepared = await prepareOperation(op, req, contextOf(res, deps));
-        let result: unknown;
-        if ('done' in prepared)
-          result = prepared.done instanceof Promise ? await prepared.done : prepared.done;
-        else if (prepared.offload && pooled(deps.enginePool)) {
-          let outcome: TaskOutcome;
-          try {
-            outcome = await deps.enginePool.run(prepared.task, prepared.taskInput);
-          } catch (err) {
-            throw poolProblem(err, res.locals.requestId);
+  const handler: RequestHandler = decl.jobs
+    ? jobHandler(decl.jobs, deps)
+    : decl.handle
+      ? (req, res) => decl.handle!(req, res, contextOf(res, deps))
+      : async (req, res) => {
+          if (extraUnits) {
+            const extra = extraUnits(req.body);
+            if (extra) chargeUnits(res, extra);
           }
-          result = prepared.finish(() => outcomeValue(outcome));
-        } else result = prepared.finish(() => runTaskInline(prepared.task, prepared.taskInput));
-        if (status === 204) res.status(204).end();
-        else if (decl.send === 'json') res.status(status).json(result);
-        else sendCalculation(res, result, status);
-      };
+          const prepared = await prepareOperation(op, req, contextOf(res, deps));
+          let result: unknown;
+          if ('done' in prepared)
+            result = prepared.done instanceof Promise ? await prepared.done : prepared.done;
+          else if (prepared.offload && pooled(deps.enginePool)) {
+            let outcome: TaskOutcome;
+            try {
+              outcome = await deps.enginePool.run(prepared.task, prepared.taskInput);
+            } catch (err) {
+              throw poolProblem(err, res.locals.requestId);
+            }
+            result = prepared.finish(() => outcomeValue(outcome));
+          } else result = prepared.finish(() => runTaskInline(prepared.task, prepared.taskInput));
+          if (status === 204) res.status(204).end();
+          else if (decl.send === 'json') res.status(status).json(result);
+          else sendCalculation(res, result, status);
+        };
   const deprecation = decl.deprecation ? deprecationHeaders(decl.deprecation) : undefined;
   // Set first, so every answer of the operation carries them (problems included).
   const announce: RequestHandler[] = deprecation

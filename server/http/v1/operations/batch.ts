@@ -8,11 +8,18 @@
  * if the quota cannot cover them all, so a batch never overshoots the quota), and the cost of the
  * cases that fail is released afterwards, so units charged = the sum of the succeeding cases' costs.
  * `Accept: text/csv` returns one line per case with dotted column names.
+ *
+ * A batch may run as a job (`Prefer: respond-async`; its declaration's `jobs` part, with the job's
+ * `callbackUrl` in the query string since the body may be CSV): `batchWork` runs a range of cases
+ * and answers over all rows, for the synchronous answer and the job alike. As a job the cases are
+ * charged chunk by chunk as far as the quota reaches, rather than all reserved up front.
  */
 import type { Response } from 'express';
 import {
+  BatchQuerySchema,
   BatchRequestSchema,
   BatchResponseSchema,
+  type BatchRequest,
   BatchUploadSchema,
   MAX_BATCH_ROWS,
   type BatchResponse,
@@ -330,6 +337,88 @@ export async function runCases(
   };
 }
 
+/** What a batch job stores: the checked request, and the CSV line of each case if it came as CSV. */
+interface BatchInput {
+  batch: BatchRequest;
+  lines?: number[];
+}
+type BatchRow = BatchResponse['results'][number];
+
+/** The batch's cases as work: run a range of cases, answer with all rows (synchronously or as a job). */
+function batchWork(
+  byName: ReadonlyMap<string, { op: CompiledOperation; requestKeys: ReadonlySet<string> }>,
+  { batch, lines }: BatchInput,
+) {
+  const { op, requestKeys } = byName.get(batch.operation)!;
+  const caseUnits = op.decl.batch?.units;
+  const costs = batch.cases.map((c) => (caseUnits ? caseUnits(c) : op.decl.operation.units));
+  const shared = { liquor: batch.liquor };
+  const place = (index: number) => {
+    const line = lines?.[index];
+    // A CSV case's fields are named by line and column, as the user sees them in the file.
+    const base = line === undefined ? `cases[${index}].` : `${csvPlace(line, '')}, column `;
+    return { line, base, head: { index, ...(line !== undefined ? { line } : {}) } };
+  };
+  return {
+    total: batch.cases.length,
+    costs,
+    rowsKey: 'results',
+    cost: (index: number) => costs[index]!,
+    /** Cases [start, end): parsed, run (in the pool) and formatted a slice per turn. */
+    async run(
+      start: number,
+      end: number,
+      ctx: OperationContext,
+    ): Promise<{ rows: BatchRow[]; ok: boolean[] }> {
+      const settle = await runCases(op, batch.cases.slice(start, end), shared, ctx);
+      const rows: BatchRow[] = [];
+      for (let index = start; index < end; index++) {
+        if (index > start && (index - start) % CASES_PER_TURN === 0) await nextTurn();
+        const { line, base, head } = place(index);
+        try {
+          const result = settle(index - start);
+          rebaseWarnings(result, base, requestKeys);
+          const bad = findNonFinite(result);
+          if (bad) throw problem('no-solution', `The calculation produced a non-finite number (${bad}).`);
+          rows.push({ ...head, status: 'ok', result: result as Record<string, unknown> });
+        } catch (err) {
+          rows.push({ ...head, status: 'error', problem: caseProblem(err, base, line) });
+        }
+      }
+      return { rows, ok: rows.map((r) => r.status === 'ok') };
+    },
+    refused: (index: number, p: BatchProblem): BatchRow => ({
+      ...place(index).head,
+      status: 'error',
+      problem: p,
+    }),
+    answer(rows: unknown[], unitsCharged: number): BatchResponse {
+      const results = rows as BatchRow[];
+      const failed = results.filter((r) => r.status === 'error').length;
+      return {
+        operation: batch.operation,
+        count: results.length,
+        succeeded: results.length - failed,
+        failed,
+        unitsCharged,
+        results,
+      };
+    },
+    csv(rows: unknown[]): string {
+      const flatRows = (rows as BatchRow[]).map((r) => {
+        // CSV cases are numbered by their input line (header = line 1), JSON cases by index.
+        const flat: Record<string, unknown> =
+          r.line !== undefined ? { line: r.line, status: r.status } : { index: r.index, status: r.status };
+        if (r.result) flatten(r.result, '', flat);
+        if (r.problem) flat.error = errorCell(r.problem);
+        return flat;
+      });
+      const columns = [...new Set(flatRows.flatMap((r) => Object.keys(r)))];
+      return toCsv(columns, flatRows);
+    },
+  };
+}
+
 // Text fields can hold an inline liquor definition, so they keep multer's 1 MB default.
 const readUpload = singleCsvUpload();
 
@@ -343,6 +432,16 @@ export function batchOperation(operations: readonly AnyOperation[]) {
     const part = (op.body ?? op.query)?.schema as { shape?: Record<string, unknown> } | undefined;
     byName.set(name, { op, requestKeys: new Set(Object.keys(part?.shape ?? {})) });
   }
+  // One work per input object: a request's 202 check and synchronous answer share it.
+  const opened = new WeakMap<BatchInput, ReturnType<typeof batchWork>>();
+  const openBatch = (input: BatchInput) => {
+    let work = opened.get(input);
+    if (!work) {
+      work = batchWork(byName, input);
+      opened.set(input, work);
+    }
+    return work;
+  };
   return declareOperation({
     operation: operationCatalogue.batch,
     method: 'post',
@@ -356,6 +455,7 @@ export function batchOperation(operations: readonly AnyOperation[]) {
       'so a batch never overshoots the quota; the units of the cases that fail are then given back. ' +
       'Send `Accept: text/csv` to receive the results as CSV (one line per case, dotted column names, `status` and `error` columns).',
     request: {
+      query: BatchQuerySchema,
       body: BatchRequestSchema,
       upload: BatchUploadSchema,
       example: {
@@ -371,119 +471,82 @@ export function batchOperation(operations: readonly AnyOperation[]) {
     problems: {
       413: `More than ${MAX_BATCH_ROWS} cases, or the upload is too large (type payload-too-large)`,
     },
-    handle: async (req, res, ctx) => {
-      let raw: unknown;
-      // The CSV line of each case when the cases came as CSV: problems and output name it.
-      let lines: number[] | undefined;
-      if (req.is('multipart/form-data')) {
-        await readUpload(req, res);
-        const body = (req.body ?? {}) as Record<string, unknown>;
-        if (!req.file) {
-          throw problem('validation-failed', 'The upload needs a CSV file in the field "file".', {
-            errors: [{ field: 'file', message: 'is required' }],
-          });
+    jobs: {
+      // A batch's job is named as the batch operation.
+      kind: operationCatalogue.batch.id,
+      accept: async (req, res) => {
+        let raw: unknown;
+        // The CSV line of each case when the cases came as CSV: problems and output name it.
+        let lines: number[] | undefined;
+        if (req.is('multipart/form-data')) {
+          await readUpload(req, res);
+          const body = (req.body ?? {}) as Record<string, unknown>;
+          if (!req.file) {
+            throw problem('validation-failed', 'The upload needs a CSV file in the field "file".', {
+              errors: [{ field: 'file', message: 'is required' }],
+            });
+          }
+          const read = casesFromCsv(req.file.buffer.toString('utf8'));
+          lines = read.lines;
+          raw = {
+            operation: body.operation,
+            ...(body.liquor ? { liquor: body.liquor } : {}),
+            cases: read.cases,
+          };
+        } else if (typeof req.body === 'string') {
+          const q = req.query as Record<string, unknown>;
+          const read = casesFromCsv(req.body);
+          lines = read.lines;
+          raw = {
+            operation: q.operation,
+            ...(q.liquor ? { liquor: q.liquor } : {}),
+            cases: read.cases,
+          };
+        } else {
+          raw = req.body;
         }
-        const read = casesFromCsv(req.file.buffer.toString('utf8'));
-        lines = read.lines;
-        raw = {
-          operation: body.operation,
-          ...(body.liquor ? { liquor: body.liquor } : {}),
-          cases: read.cases,
+        const cases = (raw as { cases?: unknown } | undefined)?.cases;
+        if (Array.isArray(cases) && cases.length > MAX_BATCH_ROWS) {
+          throw problem(
+            'payload-too-large',
+            `The batch has ${cases.length} cases; at most ${MAX_BATCH_ROWS} are accepted per request.`,
+          );
+        }
+        const batch = lines ? validateCsvBatch(raw, lines) : validate(BatchRequestSchema, raw);
+        const query = validate(BatchQuerySchema, req.query);
+        const input: BatchInput = { batch, ...(lines ? { lines } : {}) };
+        return {
+          input,
+          total: batch.cases.length,
+          ...(query.callbackUrl !== undefined
+            ? { callbackUrl: query.callbackUrl, callbackField: 'callbackUrl' }
+            : {}),
         };
-      } else if (typeof req.body === 'string') {
-        const q = req.query as Record<string, unknown>;
-        const read = casesFromCsv(req.body);
-        lines = read.lines;
-        raw = {
-          operation: q.operation,
-          ...(q.liquor ? { liquor: q.liquor } : {}),
-          cases: read.cases,
-        };
-      } else {
-        raw = req.body;
-      }
-      const cases = (raw as { cases?: unknown } | undefined)?.cases;
-      if (Array.isArray(cases) && cases.length > MAX_BATCH_ROWS) {
-        throw problem(
-          'payload-too-large',
-          `The batch has ${cases.length} cases; at most ${MAX_BATCH_ROWS} are accepted per request.`,
-        );
-      }
-      const batch = lines ? validateCsvBatch(raw, lines) : validate(BatchRequestSchema, raw);
-      const { op, requestKeys } = byName.get(batch.operation)!;
-      const caseUnits = op.decl.batch?.units;
-      const costs = batch.cases.map((c) => (caseUnits ? caseUnits(c) : op.decl.operation.units));
-      const reserved = costs.reduce((sum, u) => sum + u, 0);
-      // Reserve every case's cost first: the quota check must cover the whole batch.
-      chargeUnits(res, reserved);
-      const shared = { liquor: batch.liquor };
-
-      let settle: (index: number) => unknown;
-      try {
-        settle = await runCases(op, batch.cases, shared, ctx);
-      } catch (err) {
-        // Hung or crashed: no case is answered, so none is charged.
-        releaseUnits(res, reserved);
-        throw poolProblem(err, res.locals.requestId);
-      }
-
-      // 3. Format each case here, a slice per turn.
-      const formatCase = (index: number): BatchResponse['results'][number] => {
-        const line = lines?.[index];
-        // A CSV case's fields are named by line and column, as the user sees them in the file.
-        const base = line === undefined ? `cases[${index}].` : `${csvPlace(line, '')}, column `;
+      },
+      respond: async (accepted, req, res, ctx) => {
+        const work = openBatch(accepted.input as BatchInput);
+        const reserved = work.costs.reduce((sum, u) => sum + u, 0);
+        // Reserve every case's cost first: the quota check must cover the whole batch.
+        chargeUnits(res, reserved);
+        let ran: { rows: BatchRow[]; ok: boolean[] };
         try {
-          const result = settle(index);
-          rebaseWarnings(result, base, requestKeys);
-          const bad = findNonFinite(result);
-          if (bad) throw problem('no-solution', `The calculation produced a non-finite number (${bad}).`);
-          return {
-            index,
-            ...(line !== undefined ? { line } : {}),
-            status: 'ok',
-            result: result as Record<string, unknown>,
-          };
+          ran = await work.run(0, work.total, ctx);
         } catch (err) {
-          return {
-            index,
-            ...(line !== undefined ? { line } : {}),
-            status: 'error',
-            problem: caseProblem(err, base, line),
-          };
+          // Hung or crashed: no case is answered, so none is charged.
+          releaseUnits(res, reserved);
+          throw poolProblem(err, res.locals.requestId);
         }
-      };
-      const results: BatchResponse['results'] = [];
-      for (const [index] of batch.cases.entries()) {
-        if (index > 0 && index % CASES_PER_TURN === 0) await nextTurn();
-        results.push(formatCase(index));
-      }
-      const failed = results.filter((r) => r.status === 'error').length;
-      // A refused case costs nothing: give back what the failed cases reserved.
-      const refunded = results.reduce((sum, r, i) => sum + (r.status === 'error' ? costs[i]! : 0), 0);
-      releaseUnits(res, refunded);
-      const units = reserved - refunded;
-      const response: BatchResponse = {
-        operation: batch.operation,
-        count: results.length,
-        succeeded: results.length - failed,
-        failed,
-        unitsCharged: units,
-        results,
-      };
-      if (req.accepts(['application/json', 'text/csv']) === 'text/csv') {
-        const rows = results.map((r) => {
-          // CSV cases are numbered by their input line (header = line 1), JSON cases by index.
-          const flat: Record<string, unknown> =
-            r.line !== undefined ? { line: r.line, status: r.status } : { index: r.index, status: r.status };
-          if (r.result) flatten(r.result, '', flat);
-          if (r.problem) flat.error = errorCell(r.problem);
-          return flat;
-        });
-        const columns = [...new Set(rows.flatMap((r) => Object.keys(r)))];
-        res.type('text/csv').send(toCsv(columns, rows));
-        return;
-      }
-      await sendJsonInSlices(res, response, 'results');
+        // A refused case costs nothing: give back what the failed cases reserved.
+        const refunded = ran.ok.reduce((sum, ok, i) => sum + (ok ? 0 : work.costs[i]!), 0);
+        releaseUnits(res, refunded);
+        const response = work.answer(ran.rows, reserved - refunded);
+        if (req.accepts(['application/json', 'text/csv']) === 'text/csv') {
+          res.type('text/csv').send(work.csv(ran.rows));
+          return;
+        }
+        await sendJsonInSlices(res, response, 'results');
+      },
+      open: (input) => openBatch(input as BatchInput),
     },
   });
 }

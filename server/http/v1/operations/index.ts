@@ -6,6 +6,7 @@
 import type { AnyOperation } from '../operation.js';
 import { batchOperation } from './batch.js';
 import { sweepOperation, sweepRunner } from './sweeps.js';
+import { jobOperations } from './jobs.js';
 import { multipleEffect, singleEffect } from './evaporators.js';
 import { mechanicalVaporRecompressionOperation } from './recompression.js';
 import { overallCoefficient } from './heat-transfer.js';
@@ -37,13 +38,16 @@ const calculations: AnyOperation[] = [
   overallCoefficient,
 ];
 
-export const v1Operations: readonly AnyOperation[] = [
+const operations: AnyOperation[] = [
   ...calculations,
   batchOperation(calculations),
   sweepOperation(calculations),
   evaporatorSchemeStudy,
   usageRead,
 ];
+
+/** Every operation, and the routes of jobs for those that may run as jobs (their `jobs` part). */
+export const v1Operations: readonly AnyOperation[] = [...operations, ...jobOperations(operations)];
 
 /** The calculations a batch, a sweep or the console's workbench may run. */
 export const calculationOperations: readonly AnyOperation[] = calculations;

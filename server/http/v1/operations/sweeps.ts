@@ -18,6 +18,10 @@
  * Cautions and provenance, the same for every point, are lifted out of the rows and given once.
  * `Accept: text/csv` gives a flat table: the varied fields, `status`, the result columns (`columns=`
  * or every scalar of the result) and `error`.
+ *
+ * A sweep may run as a job (its declaration's `jobs` part; server/http/jobs/): `sweepWork` is the
+ * points, their costs, running a range of them and the answer over all rows, for the synchronous
+ * answer and the job's chunks and result alike, so a job's result is the synchronous answer.
  */
 import {
   MAX_SWEEP_POINTS,
@@ -44,6 +48,7 @@ import {
   type AnyOperation,
   type CompiledOperation,
   type OperationContext,
+  type ProblemBody,
 } from '../operation.js';
 import {
   caseProblem,
@@ -189,181 +194,86 @@ function same(a: unknown, b: unknown): boolean {
   return true;
 }
 
-/**
- * What a sweep's points are charged against: the /v1 request's meter (`chargeUnits`), or the
- * console workbench's own count for a key. `charge` throws the quota problem when the units do
- * not fit; `release` gives back units charged before.
- */
-export interface SweepMeter {
-  charge(units: number): void;
-  release(units: number): void;
-  /** The account's monthly quota, for the message of the points refused for quota. */
-  quota?: number;
-  /** Some points were refused for want of quota. */
-  cutByQuota?(): void;
+/** What a sweep job stores: the checked request (without its callback) and the CSV columns asked for. */
+interface SweepInput {
+  sweep: Omit<SweepRequest, 'callbackUrl'>;
+  columns?: string[];
 }
 
-/** A sweep request checked and laid out in points, ready to run. */
-export interface ParsedSweep {
-  sweep: SweepRequest;
-  op: CompiledOperation;
-  points: { values: Record<string, Value>; body: Record<string, unknown> }[];
-}
+type Point = { values: Record<string, Value>; body: Record<string, unknown> };
 
-/** Checks and runs sweeps over the declarations that name a batch name. */
-export function sweepRunner(operations: readonly AnyOperation[]) {
-  const byName = new Map<string, CompiledOperation>();
-  for (const decl of operations) {
-    const name = (decl.operation as { batchName?: string }).batchName;
-    if (name !== undefined) byName.set(name, compileOperation(decl));
-  }
-
-  /** The request checked (each refusal naming its field) and its points, the first field slowest. */
-  function parse(raw: unknown): ParsedSweep {
-    // Each varied field is checked by its own shape first, so a refusal names its key
-    // (`vary[0].steps`) rather than "matches neither a list nor a range".
-    const rawVary = (raw as { vary?: unknown } | null | undefined)?.vary;
-    if (raw && typeof raw === 'object' && Array.isArray(rawVary)) {
-      rawVary.forEach((f: unknown, i) => {
-        if (f !== null && typeof f === 'object' && !Array.isArray(f))
-          validate('values' in f ? SweepListFieldSchema : SweepRangeFieldSchema, f, `vary[${i}]`);
+/** The points of a sweep, the first field varying slowest (422 naming the range whose points are not finite). */
+function sweepPoints(sweep: SweepInput['sweep']): Point[] {
+  const lists = sweep.vary.map(sweepValues);
+  lists.forEach((list, i) => {
+    if (list.some((v) => typeof v === 'number' && !Number.isFinite(v))) {
+      throw problem('validation-failed', `vary[${i}]: the range's points are not finite numbers.`, {
+        errors: [
+          { field: `vary[${i}]`, message: 'gives points beyond the finite numbers; narrow from and to' },
+        ],
       });
     }
-    const sweep = validate(SweepRequestSchema, raw);
-    const total = sweep.vary.reduce((n, f) => n * ('values' in f ? f.values.length : f.steps), 1);
-    if (total > MAX_SWEEP_POINTS) {
-      throw problem(
-        'validation-failed',
-        `vary: the fields make ${total} points; at most ${MAX_SWEEP_POINTS} are accepted per sweep.`,
-        {
-          errors: [
-            { field: 'vary', message: `makes ${total} points; at most ${MAX_SWEEP_POINTS} are accepted` },
-          ],
-        },
-      );
-    }
-    const op = byName.get(sweep.operation)!;
-    checkFields(op, sweep.vary, sweep.operation);
-    const lists = sweep.vary.map(sweepValues);
-    lists.forEach((list, i) => {
-      if (list.some((v) => typeof v === 'number' && !Number.isFinite(v))) {
-        throw problem('validation-failed', `vary[${i}]: the range's points are not finite numbers.`, {
-          errors: [
-            { field: `vary[${i}]`, message: 'gives points beyond the finite numbers; narrow from and to' },
-          ],
-        });
+  });
+  const paths = sweep.vary.map((f) => segments(f.field));
+  const points: Point[] = [];
+  const [outer, inner] = [lists[0]!, lists[1] ?? [undefined]];
+  for (const a of outer) {
+    for (const b of inner) {
+      let body = withValue(sweep.base, paths[0]!, a) as Record<string, unknown>;
+      const values: Record<string, Value> = { [sweep.vary[0]!.field]: a };
+      if (b !== undefined) {
+        body = withValue(body, paths[1]!, b) as Record<string, unknown>;
+        values[sweep.vary[1]!.field] = b;
       }
-    });
-    const paths = sweep.vary.map((f) => segments(f.field));
-    const points: ParsedSweep['points'] = [];
-    const [outer, inner] = [lists[0]!, lists[1] ?? [undefined]];
-    for (const a of outer) {
-      for (const b of inner) {
-        let body = withValue(sweep.base, paths[0]!, a) as Record<string, unknown>;
-        const values: Record<string, Value> = { [sweep.vary[0]!.field]: a };
-        if (b !== undefined) {
-          body = withValue(body, paths[1]!, b) as Record<string, unknown>;
-          values[sweep.vary[1]!.field] = b;
-        }
-        points.push({ values, body });
-      }
+      points.push({ values, body });
     }
-    return { sweep, op, points };
   }
+  return points;
+}
 
-  /**
-   * Runs the points in rounds: reserve, in order, as many points' costs as the quota covers (all
-   * of them unless it runs short), run them, give back the costs of those that failed; while
-   * points remain and the units given back cover the next, go on. The points no round could
-   * reserve are refused with the quota problem.
-   */
-  async function run(
-    { sweep, op, points }: ParsedSweep,
-    ctx: OperationContext,
-    meter: SweepMeter,
-    requestId: unknown,
-  ): Promise<SweepResponse> {
-    const caseUnits = op.decl.batch?.units;
-    const costs = points.map((p) => (caseUnits ? caseUnits(p.body) : op.decl.operation.units));
-    const rows: Row[] = [];
-    let reserved = 0;
-    let refunded = 0;
-    let quotaRefusal: ProblemError | undefined;
-    while (rows.length < points.length) {
-      const start = rows.length;
-      let end = points.length;
-      try {
-        meter.charge(costs.slice(start).reduce((s, u) => s + u, 0));
-      } catch (err) {
-        if (!(err instanceof ProblemError) || err.type !== 'quota-exceeded') throw err;
-        quotaRefusal = err;
-        end = start;
-        while (end < points.length) {
-          try {
-            meter.charge(costs[end]!);
-          } catch {
-            break;
-          }
-          end += 1;
-        }
-      }
-      if (end === start) break;
-      const round = costs.slice(start, end).reduce((s, u) => s + u, 0);
-      reserved += round;
-      let settle: (index: number) => unknown;
-      try {
-        settle = await runCases(
-          op,
-          points.slice(start, end).map((p) => p.body),
-          {},
-          ctx,
-          // Light points (a single effect, ≈ 0.02 ms) run inline, a slice per turn, as their
-          // single calls do: the pool's round trip would cost more than it frees; heavy points
-          // (long trains) go to the pool.
-          'declared',
-        );
-      } catch (err) {
-        // Hung or crashed: this round's points are not answered, so none of the sweep is charged.
-        meter.release(reserved - refunded);
-        throw poolProblem(err, requestId);
-      }
-      let given = 0;
-      for (let index = start; index < end; index++) {
-        if (index > start && (index - start) % CASES_PER_TURN === 0) await nextTurn();
-        const point = points[index]!;
-        try {
-          const result = settle(index - start);
-          const bad = findNonFinite(result);
-          if (bad) throw problem('no-solution', `The calculation produced a non-finite number (${bad}).`);
-          rows.push({ values: point.values, status: 'ok', result: result as Record<string, unknown> });
-        } catch (err) {
-          given += costs[index]!;
-          rows.push({ values: point.values, status: 'error', problem: caseProblem(err, '') });
-        }
-      }
-      // A refused point costs nothing: give back what this round's failed points reserved.
-      meter.release(given);
-      refunded += given;
-    }
-    // Not even the first point fits: the sweep is refused as a single call would be.
-    if (rows.length === 0 && quotaRefusal) throw quotaRefusal;
-    if (rows.length < points.length) {
-      meter.cutByQuota?.();
-      const quota = meter.quota;
-      const quotaProblem = problemBody(
-        problem(
-          'quota-exceeded',
-          `The monthly quota${quota !== undefined ? ` of ${quota} units` : ''} ran out before this point: the points before it used what remained.`,
-          { headers: quotaRefusal?.headers },
-        ),
-      );
-      for (let index = rows.length; index < points.length; index++) {
-        rows.push({ values: points[index]!.values, status: 'error', problem: quotaProblem });
-      }
-    }
+/**
+ * Refuses result columns the table always has: the CSV's own columns and the varied fields head
+ * their columns already, and a result column of the same name would write two under one header.
+ */
+function checkColumns(columns: readonly string[] | undefined, vary: readonly SweepField[]): void {
+  if (columns && columns.length > MAX_COLUMNS) {
+    throw problem('validation-failed', `columns: at most ${MAX_COLUMNS} columns may be named.`, {
+      errors: [{ field: 'columns', message: `names ${columns.length} columns; at most ${MAX_COLUMNS}` }],
+    });
+  }
+  const taken = new Set(['status', 'warnings', 'error', ...vary.map((v) => v.field)]);
+  const clash = columns?.find((c) => taken.has(c));
+  if (clash !== undefined) {
+    throw problem('validation-failed', `columns: "${clash}" is a column of every sweep table already.`, {
+      errors: [
+        {
+          field: 'columns',
+          message: `names "${clash}", which the table always has; name result columns only`,
+        },
+      ],
+    });
+  }
+}
 
-    // Cautions and provenance: once at the top when every succeeding point has the same. The
-    // rows get copies without them (rest spread rather than `delete`, which would leave slow
+/** `columns=` as a list (undefined when not given). */
+function columnList(text: unknown): string[] | undefined {
+  if (typeof text !== 'string') return undefined;
+  return text
+    .split(',')
+    .map((c) => c.trim())
+    .filter((c) => c !== '');
+}
+
+/** A sweep's points as work: run a range of points, answer with all rows (synchronously or as a job). */
+function sweepWork(byName: ReadonlyMap<string, CompiledOperation>, { sweep, columns }: SweepInput) {
+  const op = byName.get(sweep.operation)!;
+  const points = sweepPoints(sweep);
+  const caseUnits = op.decl.batch?.units;
+  const costs = points.map((p) => (caseUnits ? caseUnits(p.body) : op.decl.operation.units));
+  /** The answer: cautions and provenance lifted to the top when every succeeding point has the same. */
+  const answer = (all: unknown[], unitsCharged: number): SweepResponse => {
+    const rows = (all as Row[]).map((r) => ({ ...r }));
+    // The rows get copies without them (rest spread rather than `delete`, which would leave slow
     // dictionary objects for the JSON writer).
     const ok = rows.filter((r) => r.status === 'ok').map((r) => r.result!);
     const first = ok[0];
@@ -390,13 +300,261 @@ export function sweepRunner(operations: readonly AnyOperation[]) {
       count: rows.length,
       succeeded: ok.length,
       failed: rows.length - ok.length,
-      unitsCharged: reserved - refunded,
+      unitsCharged,
       ...lifted,
       rows,
     };
+  };
+  const csvOf = (rows: unknown[], chosenColumns: string[] | undefined): string => {
+    // The rows as the JSON answer has them (cautions and provenance lifted out).
+    const all = answer(rows, 0).rows;
+    const fields = sweep.vary.map((f) => f.field);
+    const flat = all.map((r) => {
+      const line: Record<string, unknown> = { ...r.values, status: r.status };
+      if (r.result) {
+        const out: Record<string, unknown> = {};
+        flatten(r.result, '', out);
+        for (const [k, v] of Object.entries(out)) {
+          // Warnings are text per row: joined into one column rather than one per entry.
+          if (!k.startsWith('warnings[')) line[`result:${k}`] = v;
+        }
+        const warnings = (r.result.warnings as { message?: string }[] | undefined) ?? [];
+        if (warnings.length > 0) line.warnings = warnings.map((w) => w.message ?? '').join('; ');
+      }
+      if (r.problem) line.error = errorCell(r.problem);
+      return line;
+    });
+    const available = [
+      ...new Set(flat.flatMap((l) => Object.keys(l).filter((k) => k.startsWith('result:')))),
+    ].map((k) => k.slice('result:'.length));
+    if (chosenColumns && all.some((r) => r.status === 'ok')) {
+      const unknown = chosenColumns.filter((c) => !available.includes(c));
+      if (unknown.length > 0) {
+        throw problem('validation-failed', `columns: "${unknown[0]}" is not a column of the result.`, {
+          errors: [
+            {
+              field: 'columns',
+              message: `names ${unknown.map((c) => `"${c}"`).join(', ')}, not columns of the result (e.g. ${available.slice(0, 8).join(', ')})`,
+            },
+          ],
+        });
+      }
+    }
+    const chosen = chosenColumns ?? available;
+    const table = flat.map((l) => {
+      const out: Record<string, unknown> = {};
+      for (const f of fields) out[f] = l[f];
+      out.status = l.status;
+      for (const c of chosen) out[c] = l[`result:${c}`];
+      out.warnings = l.warnings;
+      out.error = l.error;
+      return out;
+    });
+    return toCsv([...fields, 'status', ...chosen, 'warnings', 'error'], table);
+  };
+  return {
+    total: points.length,
+    points,
+    costs,
+    columns,
+    rowsKey: 'rows',
+    cost: (index: number) => costs[index]!,
+    /** Points [start, end), run by the batch's machinery, a slice per turn. */
+    async run(start: number, end: number, ctx: OperationContext): Promise<{ rows: Row[]; ok: boolean[] }> {
+      const settle = await runCases(
+        op,
+        points.slice(start, end).map((p) => p.body),
+        {},
+        ctx,
+        // Light points (a single effect, ≈ 0.02 ms) run inline, a slice per turn, as their
+        // single calls do: the pool's round trip would cost more than it frees; heavy points
+        // (long trains) go to the pool.
+        'declared',
+      );
+      const rows: Row[] = [];
+      for (let index = start; index < end; index++) {
+        if (index > start && (index - start) % CASES_PER_TURN === 0) await nextTurn();
+        const point = points[index]!;
+        try {
+          const result = settle(index - start);
+          const bad = findNonFinite(result);
+          if (bad) throw problem('no-solution', `The calculation produced a non-finite number (${bad}).`);
+          rows.push({ values: point.values, status: 'ok', result: result as Record<string, unknown> });
+        } catch (err) {
+          rows.push({ values: point.values, status: 'error', problem: caseProblem(err, '') });
+        }
+      }
+      return { rows, ok: rows.map((r) => r.status === 'ok') };
+    },
+    refused: (index: number, p: ProblemBody): Row => ({
+      values: points[index]!.values,
+      status: 'error',
+      problem: p as Row['problem'] & object,
+    }),
+    answer,
+    csvOf,
+    csv: (rows: unknown[], query: Record<string, unknown>) => {
+      const asked = columnList(query.columns);
+      checkColumns(asked, sweep.vary);
+      return csvOf(rows, asked ?? columns);
+    },
+  };
+}
+
+/**
+ * What a sweep's points are charged against: the /v1 request's meter (`chargeUnits`), or the
+ * console workbench's own count for a key. `charge` throws the quota problem when the units do
+ * not fit; `release` gives back units charged before.
+ */
+export interface SweepMeter {
+  charge(units: number): void;
+  release(units: number): void;
+  /** The account's monthly quota, for the message of the points refused for quota. */
+  quota?: number;
+  /** Some points were refused for want of quota. */
+  cutByQuota?(): void;
+}
+
+type SweepWork = ReturnType<typeof sweepWork>;
+
+/** A sweep request checked and laid out in points, ready to run. */
+export interface ParsedSweep {
+  sweep: SweepRequest;
+  work: SweepWork;
+}
+
+/**
+ * Runs a sweep's points in rounds: reserve, in order, as many points' costs as the quota covers
+ * (all of them unless it runs short), run them, give back the costs of those that failed; while
+ * points remain and the units given back cover the next, go on. The points no round could reserve
+ * are refused with the quota problem.
+ */
+async function runSweep(
+  work: SweepWork,
+  ctx: OperationContext,
+  meter: SweepMeter,
+  requestId: unknown,
+): Promise<SweepResponse> {
+  const { points, costs } = work;
+  const rows: Row[] = [];
+  let reserved = 0;
+  let refunded = 0;
+  let quotaRefusal: ProblemError | undefined;
+  while (rows.length < points.length) {
+    const start = rows.length;
+    let end = points.length;
+    try {
+      meter.charge(costs.slice(start).reduce((s, u) => s + u, 0));
+    } catch (err) {
+      if (!(err instanceof ProblemError) || err.type !== 'quota-exceeded') throw err;
+      quotaRefusal = err;
+      end = start;
+      while (end < points.length) {
+        try {
+          meter.charge(costs[end]!);
+        } catch {
+          break;
+        }
+        end += 1;
+      }
+    }
+    if (end === start) break;
+    reserved += costs.slice(start, end).reduce((s, u) => s + u, 0);
+    let ran: { rows: Row[]; ok: boolean[] };
+    try {
+      ran = await work.run(start, end, ctx);
+    } catch (err) {
+      // Hung or crashed: this round's points are not answered, so none of the sweep is charged.
+      meter.release(reserved - refunded);
+      throw poolProblem(err, requestId);
+    }
+    let given = 0;
+    ran.rows.forEach((row, i) => {
+      if (!ran.ok[i]) given += costs[start + i]!;
+      rows.push(row);
+    });
+    // A refused point costs nothing: give back what this round's failed points reserved.
+    meter.release(given);
+    refunded += given;
+  }
+  // Not even the first point fits: the sweep is refused as a single call would be.
+  if (rows.length === 0 && quotaRefusal) throw quotaRefusal;
+  if (rows.length < points.length) {
+    meter.cutByQuota?.();
+    const quota = meter.quota;
+    const quotaProblem = problemBody(
+      problem(
+        'quota-exceeded',
+        `The monthly quota${quota !== undefined ? ` of ${quota} units` : ''} ran out before this point: the points before it used what remained.`,
+        { headers: quotaRefusal?.headers },
+      ),
+    );
+    for (let index = rows.length; index < points.length; index++)
+      rows.push(work.refused(index, quotaProblem));
+  }
+  return work.answer(rows, reserved - refunded);
+}
+
+/**
+ * Checks and runs sweeps over the declarations that name a batch name: for the /v1 operation
+ * (synchronously or as a job) and for callers outside the router (the console's workbench).
+ */
+export function sweepRunner(operations: readonly AnyOperation[]) {
+  const byName = new Map<string, CompiledOperation>();
+  for (const decl of operations) {
+    const name = (decl.operation as { batchName?: string }).batchName;
+    if (name !== undefined) byName.set(name, compileOperation(decl));
+  }
+  // One work per input object: a request's accept, 202 check and synchronous answer share it.
+  const opened = new WeakMap<SweepInput, SweepWork>();
+  const open = (input: SweepInput): SweepWork => {
+    let work = opened.get(input);
+    if (!work) {
+      work = sweepWork(byName, input);
+      opened.set(input, work);
+    }
+    return work;
+  };
+
+  /** The request checked, each refusal naming its field (the points are not made yet). */
+  function check(raw: unknown): { sweep: SweepRequest; total: number } {
+    // Each varied field is checked by its own shape first, so a refusal names its key
+    // (`vary[0].steps`) rather than "matches neither a list nor a range".
+    const rawVary = (raw as { vary?: unknown } | null | undefined)?.vary;
+    if (raw && typeof raw === 'object' && Array.isArray(rawVary)) {
+      rawVary.forEach((f: unknown, i) => {
+        if (f !== null && typeof f === 'object' && !Array.isArray(f))
+          validate('values' in f ? SweepListFieldSchema : SweepRangeFieldSchema, f, `vary[${i}]`);
+      });
+    }
+    const sweep = validate(SweepRequestSchema, raw);
+    const total = sweep.vary.reduce((n, f) => n * ('values' in f ? f.values.length : f.steps), 1);
+    if (total > MAX_SWEEP_POINTS) {
+      throw problem(
+        'validation-failed',
+        `vary: the fields make ${total} points; at most ${MAX_SWEEP_POINTS} are accepted per sweep.`,
+        {
+          errors: [
+            { field: 'vary', message: `makes ${total} points; at most ${MAX_SWEEP_POINTS} are accepted` },
+          ],
+        },
+      );
+    }
+    checkFields(byName.get(sweep.operation)!, sweep.vary, sweep.operation);
+    return { sweep, total };
   }
 
-  return { parse, run };
+  /** Checked and laid out in points (a range beyond the finite numbers is refused here). */
+  function parse(raw: unknown): ParsedSweep {
+    const { sweep } = check(raw);
+    const { callbackUrl: _callback, ...request } = sweep;
+    return { sweep, work: open({ sweep: request }) };
+  }
+
+  const run = (parsed: ParsedSweep, ctx: OperationContext, meter: SweepMeter, requestId: unknown) =>
+    runSweep(parsed.work, ctx, meter, requestId);
+
+  return { check, open, parse, run };
 }
 
 /** The sweep operation over the declarations that name a batch name. */
@@ -428,97 +586,53 @@ export function sweepOperation(operations: readonly AnyOperation[]) {
       schema: SweepResponseSchema,
       alternatives: { 'text/csv': { schema: z.string().meta({ description: 'One line per point' }) } },
     },
-    handle: async (req, res, ctx) => {
-      const parsed = sweeps.parse(req.body);
-      const { sweep } = parsed;
-      const query = validate(SweepCsvQuerySchema, req.query);
-      const columns = query.columns
-        ?.split(',')
-        .map((c) => c.trim())
-        .filter((c) => c !== '');
-      if (columns && columns.length > MAX_COLUMNS) {
-        throw problem('validation-failed', `columns: at most ${MAX_COLUMNS} columns may be named.`, {
-          errors: [{ field: 'columns', message: `names ${columns.length} columns; at most ${MAX_COLUMNS}` }],
-        });
-      }
-      // The CSV's own columns and the varied fields head their columns already: a result column of
-      // the same name would write two columns under one header.
-      const taken = new Set(['status', 'warnings', 'error', ...sweep.vary.map((v) => v.field)]);
-      const clash = columns?.find((c) => taken.has(c));
-      if (clash !== undefined) {
-        throw problem('validation-failed', `columns: "${clash}" is a column of every sweep table already.`, {
-          errors: [
-            {
-              field: 'columns',
-              message: `names "${clash}", which the table always has; name result columns only`,
+    jobs: {
+      kind: 'sweep',
+      accept: async (req) => {
+        const { sweep, total } = sweeps.check(req.body);
+        const query = validate(SweepCsvQuerySchema, req.query);
+        const columns = columnList(query.columns);
+        checkColumns(columns, sweep.vary);
+        const { callbackUrl, ...request } = sweep;
+        const input: SweepInput = { sweep: request, ...(columns ? { columns } : {}) };
+        // The points are made now, so a range beyond the finite numbers is refused before any run.
+        sweeps.open(input);
+        return {
+          input,
+          total,
+          ...(callbackUrl !== undefined ? { callbackUrl, callbackField: 'callbackUrl' } : {}),
+        };
+      },
+      respond: async (accepted, req, res, ctx) => {
+        const work = sweeps.open(accepted.input as SweepInput);
+        const response = await runSweep(
+          work,
+          ctx,
+          {
+            charge: (units) => chargeUnits(res, units),
+            release: (units) => releaseUnits(res, units),
+            ...(res.locals.meter ? { quota: res.locals.meter.quota } : {}),
+            cutByQuota: () => {
+              if (res.locals.meter) res.locals.meter.cutByQuota = true;
             },
-          ],
-        });
-      }
-
-      const response = await sweeps.run(
-        parsed,
-        ctx,
-        {
-          charge: (units) => chargeUnits(res, units),
-          release: (units) => releaseUnits(res, units),
-          ...(res.locals.meter ? { quota: res.locals.meter.quota } : {}),
-          cutByQuota: () => {
-            if (res.locals.meter) res.locals.meter.cutByQuota = true;
           },
-        },
-        res.locals.requestId,
-      );
-      const rows = response.rows;
-
-      if (req.accepts(['application/json', 'text/csv']) === 'text/csv') {
-        const fields = sweep.vary.map((f) => f.field);
-        const flat = rows.map((r) => {
-          const line: Record<string, unknown> = { ...r.values, status: r.status };
-          if (r.result) {
-            const out: Record<string, unknown> = {};
-            flatten(r.result, '', out);
-            for (const [k, v] of Object.entries(out)) {
-              // Warnings are text per row: joined into one column rather than one per entry.
-              if (!k.startsWith('warnings[')) line[`result:${k}`] = v;
-            }
-            const warnings = (r.result.warnings as { message?: string }[] | undefined) ?? [];
-            if (warnings.length > 0) line.warnings = warnings.map((w) => w.message ?? '').join('; ');
-          }
-          if (r.problem) line.error = errorCell(r.problem);
-          return line;
-        });
-        const available = [
-          ...new Set(flat.flatMap((l) => Object.keys(l).filter((k) => k.startsWith('result:')))),
-        ].map((k) => k.slice('result:'.length));
-        if (columns && response.succeeded > 0) {
-          const unknown = columns.filter((c) => !available.includes(c));
-          if (unknown.length > 0) {
+          res.locals.requestId,
+        );
+        if (req.accepts(['application/json', 'text/csv']) === 'text/csv') {
+          let table: string;
+          try {
+            table = work.csvOf(response.rows, work.columns);
+          } catch (err) {
+            // A column no row has: refused, so nothing is charged.
             releaseUnits(res, response.unitsCharged);
-            throw problem('validation-failed', `columns: "${unknown[0]}" is not a column of the result.`, {
-              errors: [
-                {
-                  field: 'columns',
-                  message: `names ${unknown.map((c) => `"${c}"`).join(', ')}, not columns of the result (e.g. ${available.slice(0, 8).join(', ')})`,
-                },
-              ],
-            });
+            throw err;
           }
+          res.type('text/csv').send(table);
+          return;
         }
-        const chosen = columns ?? available;
-        const table = flat.map((l) => {
-          const out: Record<string, unknown> = {};
-          for (const f of fields) out[f] = l[f];
-          out.status = l.status;
-          for (const c of chosen) out[c] = l[`result:${c}`];
-          out.warnings = l.warnings;
-          out.error = l.error;
-          return out;
-        });
-        res.type('text/csv').send(toCsv([...fields, 'status', ...chosen, 'warnings', 'error'], table));
-        return;
-      }
-      await sendJsonInSlices(res, response, 'rows');
+        await sendJsonInSlices(res, response, 'rows');
+      },
+      open: (input) => sweeps.open(input as SweepInput),
     },
   });
 }
