@@ -17,7 +17,12 @@ export async function generateClientSchema(
   documentText = readFileSync(documentPath, 'utf8'),
 ): Promise<string> {
   // Parsed here rather than read by path, so the output does not depend on where the file lies.
-  const ast = await openapiTS(JSON.parse(documentText) as Parameters<typeof openapiTS>[0], { silent: true });
+  const ast = await openapiTS(JSON.parse(documentText) as Parameters<typeof openapiTS>[0], {
+    silent: true,
+    // A field with a default may be left out of a request (the server fills it in): optional in
+    // the types, as the document's `required` lists say, rather than required for its default.
+    defaultNonNullable: false,
+  });
   return COMMENT_HEADER + astToString(ast);
 }
 

@@ -840,7 +840,7 @@ export interface components {
              * @default forward
              * @enum {string}
              */
-            feedArrangement: "forward" | "backward" | "parallel";
+            feedArrangement?: "forward" | "backward" | "parallel";
             /**
              * @description Trains of 1…maxEffects effects are studied (1 to 10)
              * @example 5
@@ -1358,7 +1358,7 @@ export interface components {
                  * @description "external" (another heat source; its duty is reported) or vapour bled from an effect (added to that effect's bleed)
                  * @default external
                  */
-                source: "external" | {
+                source?: "external" | {
                     vaporFromEffect: number;
                 };
             };
@@ -2084,7 +2084,7 @@ export interface components {
              * @default linear
              * @enum {string}
              */
-            spacing: "linear" | "log";
+            spacing?: "linear" | "log";
         };
         /**
          * @example {

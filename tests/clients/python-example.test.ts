@@ -40,7 +40,15 @@ interface Summary {
     };
   };
   cautions: string[];
-  job?: unknown;
+  job: {
+    request: Schema<'SweepRequest'>;
+    async: boolean;
+    id: string;
+    state: string;
+    progress: { done: number; total: number };
+    unitsCharged: number;
+    result: { count: number; unitsCharged: number; rows: PointSummary[] };
+  };
 }
 
 let live: LiveServer;
@@ -62,14 +70,12 @@ async function single(body: Schema<'SingleEffectRequest'>): Promise<Schema<'Sing
 
 describe('the Python worked example', () => {
   it('prints a design and a pressure sweep whose numbers equal the server’s single calls', async () => {
-    // The jobs API is not on this server yet: the example leaves its job step out.
     const { stdout } = await run(
       PYTHON,
-      ['worked_example.py', '--base-url', live.baseUrl, '--api-key', live.apiKey, '--skip-job'],
+      ['worked_example.py', '--base-url', live.baseUrl, '--api-key', live.apiKey],
       { cwd: EXAMPLE_DIR, env: pythonEnv, timeout: 60_000 },
     );
     const summary = JSON.parse(stdout) as Summary;
-    expect(summary.job).toBeUndefined();
 
     const design = await single(summary.design.request);
     expect(summary.design.result).toEqual({
@@ -102,12 +108,41 @@ describe('the Python worked example', () => {
     }
     expect(sweep.smallestArea.area).toBe(Math.min(...sweep.rows.map((r) => r.area!)));
 
-    // Its calls were metered to the invented account: one design (5 units), one sweep of 5 points.
+    // Its calls were metered to the invented account: one design (5 units), one sweep of 5 points,
+    // then the job: its 202 at 0 units and its points as they completed (20 points of 5 units).
     const usage = await usageRows(live.harness.store);
-    expect(usage.slice(0, 2)).toMatchObject([
+    expect(usage.slice(0, 3)).toMatchObject([
       { operation: 'evaporators.single-effect', status: 200, units: 5 },
       { operation: 'sweeps.run', status: 200, units: 25 },
+      { operation: 'sweeps.run', status: 202, units: 0 },
     ]);
+    const chunks = usage.filter((row) => row.request_id.startsWith(`${summary.job.id}:`));
+    expect(chunks.reduce((sum, row) => sum + row.units, 0)).toBe(100);
+
+    // The job: asked with Prefer: respond-async, polled to its end, its result the sweep's own.
+    const job = summary.job;
+    expect(job).toMatchObject({
+      async: true,
+      state: 'succeeded',
+      progress: { done: 20, total: 20 },
+      unitsCharged: 100,
+    });
+    const { data: direct } = await ebullio.POST('/v1/sweeps', { body: job.request });
+    // 200 with the rows (a sweep above the job threshold would answer 202 with a job instead).
+    if (!direct || typeof direct === 'string' || !('rows' in direct)) throw new Error('no rows answered');
+    expect(job.result.count).toBe(20);
+    expect(job.result.rows).toEqual(
+      direct.rows.map((row) => {
+        const result = row.result as Schema<'SingleEffectResponse'>;
+        return {
+          values: row.values,
+          status: row.status,
+          area: result.area,
+          steamEconomy: result.steamEconomy,
+          steamMassFlow: result.steam.massFlow,
+        };
+      }),
+    );
   });
 
   it('raises a refused request as a problem that names the field, and exits 1 with it', async () => {
@@ -151,7 +186,7 @@ describe('the Python worked example', () => {
     // Port 1 on loopback: nothing listens there, so the connection is refused at once.
     const failed = await run(
       PYTHON,
-      ['worked_example.py', '--base-url', 'http://127.0.0.1:1', '--api-key', live.apiKey, '--skip-job'],
+      ['worked_example.py', '--base-url', 'http://127.0.0.1:1', '--api-key', live.apiKey],
       { cwd: EXAMPLE_DIR, env: pythonEnv, timeout: 30_000 },
     ).then(
       () => undefined,
@@ -163,7 +198,7 @@ describe('the Python worked example', () => {
   });
 
   it('refuses to start without a key and says how to give one', async () => {
-    const failed = await run(PYTHON, ['worked_example.py', '--base-url', live.baseUrl, '--skip-job'], {
+    const failed = await run(PYTHON, ['worked_example.py', '--base-url', live.baseUrl], {
       cwd: EXAMPLE_DIR,
       env: pythonEnv,
       timeout: 30_000,

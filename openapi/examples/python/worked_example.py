@@ -15,8 +15,7 @@ and prints a JSON summary on stdout (progress goes to stderr).
 
     python3 worked_example.py --base-url http://localhost:8080 --api-key "$EBULLIO_API_KEY"
 
-The base URL and key may also come from EBULLIO_BASE_URL and EBULLIO_API_KEY. ``--skip-job``
-leaves out step 3 (for a server without the jobs API).
+The base URL and key may also come from EBULLIO_BASE_URL and EBULLIO_API_KEY.
 
 Results are preliminary engineering estimates: evaporators are pressure and vacuum equipment whose
 design falls under local codes and must be checked by a licensed engineer; hot syrup burns.
@@ -123,7 +122,6 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--base-url", default=os.environ.get("EBULLIO_BASE_URL", "http://localhost:8080"),
                         help="where the API answers, without /v1 (env EBULLIO_BASE_URL)")
     parser.add_argument("--api-key", default=os.environ.get("EBULLIO_API_KEY"), help="an API key (env EBULLIO_API_KEY)")
-    parser.add_argument("--skip-job", action="store_true", help="leave out the sweep run as a job")
     parser.add_argument("--job-timeout", type=float, default=300.0, help="seconds to wait for the job")
     parser.add_argument("--poll-interval", type=float, default=0.5, help="seconds between polls unless the server says Retry-After")
     args = parser.parse_args(argv)
@@ -142,9 +140,8 @@ def main(argv: list[str] | None = None) -> int:
             "pressureSweep": {"request": PRESSURE_SWEEP, "result": sweep_summary(sweep)},
             "cautions": [c["code"] for c in design.get("cautions", [])],
         }
-        if not args.skip_job:
-            print("3. running a larger sweep as a job", file=sys.stderr)
-            summary["job"] = {"request": JOB_SWEEP, **run_job(ebullio, args.job_timeout, args.poll_interval)}
+        print("3. running a larger sweep as a job", file=sys.stderr)
+        summary["job"] = {"request": JOB_SWEEP, **run_job(ebullio, args.job_timeout, args.poll_interval)}
     except EbullioProblem as problem:
         print(f"refused: {problem}", file=sys.stderr)
         for error in problem.errors:
