@@ -6,7 +6,12 @@
  * `scripts/generate-openapi.ts` writes the same document to openapi/openapi.json; a test fails
  * when the committed file drifts from the code.
  */
-import { OpenAPIRegistry, OpenApiGeneratorV31, extendZodWithOpenApi } from '@asteasolutions/zod-to-openapi';
+import {
+  OpenAPIRegistry,
+  OpenApiGeneratorV31,
+  extendZodWithOpenApi,
+  type ResponseConfig,
+} from '@asteasolutions/zod-to-openapi';
 import { Router } from 'express';
 import swaggerUi from 'swagger-ui-express';
 import { z } from 'zod';
@@ -244,12 +249,6 @@ function registerOperation(
       ? { description: response.description, headers: rateLimitHeaders, content: response.alternatives }
       : { description: response.description, headers: rateLimitHeaders };
   if (post) plain.headers = { ...rateLimitHeaders, ...replayedHeader };
-  const success = decl.deprecation
-    ? {
-        ...plain,
-        headers: { ...plain.headers, ...deprecationResponseHeaders(decl.deprecation.sunset !== undefined) },
-      }
-    : plain;
   const extra: Record<number, ReturnType<typeof problem>> = post ? { ...idempotencyProblems } : {};
   for (const [status, description] of Object.entries(decl.problems ?? {})) {
     // An operation's own wording of a status comes first; the key's cases are added to it.
@@ -262,6 +261,26 @@ function registerOperation(
   const request = { ...requestOf(decl), ...(headers.length > 0 ? { headers } : {}) };
   const dep = decl.deprecation;
   const description = [decl.description, dep ? deprecationNote(dep) : undefined].filter(Boolean).join('\n\n');
+  const responses: Record<string, ResponseConfig> = {
+    [response.status ?? 200]: plain,
+    ...(decl.jobs ? { 202: acceptedAnswer() } : {}),
+    ...extra,
+    ...commonProblems,
+    ...(post
+      ? {
+          422: problem(
+            `${commonProblems[422].description}; or idempotency-key-reused (this Idempotency-Key was used for a different request)`,
+          ),
+        }
+      : {}),
+  };
+  if (dep) {
+    // Every answer of a deprecated operation carries the headers, refusals included.
+    const deprecationHeaders = deprecationResponseHeaders(dep.sunset !== undefined);
+    for (const [status, answer] of Object.entries(responses)) {
+      responses[status] = { ...answer, headers: { ...answer.headers, ...deprecationHeaders } };
+    }
+  }
   registry.registerPath({
     method: decl.method,
     path: decl.path,
@@ -272,19 +291,7 @@ function registerOperation(
     ...(dep ? { deprecated: true } : {}),
     security,
     ...(Object.keys(request).length > 0 ? { request } : {}),
-    responses: {
-      [response.status ?? 200]: success,
-      ...(decl.jobs ? { 202: acceptedAnswer() } : {}),
-      ...extra,
-      ...commonProblems,
-      ...(post
-        ? {
-            422: problem(
-              `${commonProblems[422].description}; or idempotency-key-reused (this Idempotency-Key was used for a different request)`,
-            ),
-          }
-        : {}),
-    },
+    responses,
   });
 }
 
