@@ -27,6 +27,7 @@ import { checkJsonBody } from './middleware/body.js';
 import { problem } from './problem.js';
 import { compileOperation, runOperation, type AnyOperation } from './v1/operation.js';
 import { operationDeclaration } from './v1/operations/index.js';
+import { oneConsoleCallAtATime } from './console-calls.js';
 
 /** Marks the request log writes into a body it could not keep whole (request-log.ts). */
 const NOT_WHOLE = ['…[truncated]', '[nested too deep]', '[body not logged'];
@@ -36,20 +37,6 @@ function notReplayable(entryId: number, why: string) {
     'not-replayable',
     `Request-log entry ${entryId} cannot be replayed: ${why} Nothing was run or charged.`,
   );
-}
-
-const running = new Map<number, Promise<unknown>>();
-
-/** Runs `fn` after every earlier call for the same account has settled. */
-async function oneAtATime<T>(accountId: number, fn: () => Promise<T>): Promise<T> {
-  const mine = (running.get(accountId) ?? Promise.resolve()).then(fn, fn);
-  const tail = mine.catch(() => undefined);
-  running.set(accountId, tail);
-  try {
-    return await mine;
-  } finally {
-    if (running.get(accountId) === tail) running.delete(accountId);
-  }
 }
 
 /** Whether a parsed body holds a value the log replaced (a redacted secret, a cut nesting). */
@@ -253,7 +240,7 @@ export async function replayEntry(
     );
   // One replay of an account at a time on this node: the quota check and the charge of one are
   // not interleaved with another's (the /v1 metering keeps its own in-flight count).
-  const { today, charged, requestId } = await oneAtATime(account.id, async () => {
+  const { today, charged, requestId } = await oneConsoleCallAtATime(account.id, async () => {
     const used = await committedUnitsThisMonth(deps.store, account.id, now);
     if (used + units > quota) throw quotaProblem(Math.max(0, quota - used));
 

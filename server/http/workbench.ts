@@ -47,6 +47,7 @@ import {
 } from './v1/operation.js';
 import { calculationOperations, calculationSweeps, operationDeclaration } from './v1/operations/index.js';
 import { operationCatalogue } from '../../shared/operations.js';
+import { oneConsoleCallAtATime } from './console-calls.js';
 
 /** A declaration the workbench offers: a batch-runnable calculation taking a JSON body. */
 function offered(decl: AnyOperation): decl is AnyOperation & { operation: { batchName: string } } {
@@ -134,20 +135,6 @@ function keyRefusal(key: ApiKeyView, now: Date, scope: string): ProblemError | u
     return problem('forbidden', `API key ${key.prefix} lacks the scope "${scope}" this operation needs.`);
   }
   return undefined;
-}
-
-const running = new Map<number, Promise<unknown>>();
-
-/** Runs `fn` after every earlier workbench call of the same account has settled. */
-async function oneAtATime<T>(accountId: number, fn: () => Promise<T>): Promise<T> {
-  const mine = (running.get(accountId) ?? Promise.resolve()).then(fn, fn);
-  const tail = mine.catch(() => undefined);
-  running.set(accountId, tail);
-  try {
-    return await mine;
-  } finally {
-    if (running.get(accountId) === tail) running.delete(accountId);
-  }
 }
 
 /** What the log keeps of a refusal: the problem as the client reads it. */
@@ -241,7 +228,7 @@ export async function runOnKey(deps: AppDeps, key: ApiKeyView, run: WorkbenchRun
 
   // One workbench call of an account at a time on this node: the quota check and the charge of
   // one are not interleaved with another's.
-  return oneAtATime(account.id, async () => {
+  return oneConsoleCallAtATime(account.id, async () => {
     const used = await committedUnitsThisMonth(deps.store, account.id, now);
     let charged = 0;
     const charge = (units: number) => {
