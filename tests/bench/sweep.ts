@@ -46,6 +46,55 @@ interface SweepResult {
   bytes: number;
 }
 
+/**
+ * Times `runs` runs of `once` after one warm-up, then probes `/healthz` one request after another
+ * while one more runs; closes the server and the app.
+ */
+async function timeRuns(
+  once: () => Promise<{ ms: number; bytes: number }>,
+  runs: number,
+  origin: string,
+  close: () => Promise<void>,
+): Promise<SweepResult> {
+  await once(); // warm the threads and the route
+  const seconds: number[] = [];
+  let bytes = 0;
+  for (let i = 0; i < runs; i++) {
+    const r = await once();
+    seconds.push(r.ms / 1000);
+    bytes = r.bytes;
+  }
+  let running = true;
+  const last = once().then(() => {
+    running = false;
+  });
+  const healthz: number[] = [];
+  await new Promise((resolve) => setTimeout(resolve, 20));
+  while (running) {
+    const t = performance.now();
+    await (await fetch(`${origin}/healthz`)).text();
+    healthz.push(performance.now() - t);
+    await new Promise((resolve) => setTimeout(resolve, 5));
+  }
+  await last;
+  await close();
+  return { seconds, healthzP95: quantile(healthz, 0.95), probes: healthz.length, bytes };
+}
+
+/** Serves a harness's app on a loopback port; `close` stops the server, the app and its store. */
+async function serve(h: Awaited<ReturnType<typeof makeHarness>>) {
+  const server = http.createServer({ keepAlive: true }, h.app).listen(0, '127.0.0.1');
+  await new Promise((resolve) => server.once('listening', resolve));
+  const origin = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
+  const close = async () => {
+    server.closeAllConnections();
+    await new Promise((resolve) => server.close(resolve));
+    await closeApp(h.deps);
+    await h.store.close();
+  };
+  return { origin, close };
+}
+
 async function measure(workers: number, runs: number): Promise<SweepResult> {
   const pool = createEnginePool({ workers, taskTimeoutMs: 120_000, eager: true });
   // Answered at once: above the jobs' threshold (2000 points by default) it would be a job.
@@ -55,9 +104,7 @@ async function measure(workers: number, runs: number): Promise<SweepResult> {
     enginePool: pool,
     config: { asyncJobThreshold: 1_000_000 },
   });
-  const server = http.createServer({ keepAlive: true }, h.app).listen(0, '127.0.0.1');
-  await new Promise((resolve) => server.once('listening', resolve));
-  const origin = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
+  const { origin, close } = await serve(h);
   const post = () =>
     fetch(`${origin}/v1/sweeps`, {
       method: 'POST',
@@ -75,33 +122,7 @@ async function measure(workers: number, runs: number): Promise<SweepResult> {
     }
     return { ms, bytes: bytes.length };
   };
-  await once(); // warm the threads and the route
-  const seconds: number[] = [];
-  let bytes = 0;
-  for (let i = 0; i < runs; i++) {
-    const r = await once();
-    seconds.push(r.ms / 1000);
-    bytes = r.bytes;
-  }
-  // Probes while one more sweep runs.
-  let running = true;
-  const sweep = once().then(() => {
-    running = false;
-  });
-  const healthz: number[] = [];
-  await new Promise((resolve) => setTimeout(resolve, 20));
-  while (running) {
-    const t = performance.now();
-    await (await fetch(`${origin}/healthz`)).text();
-    healthz.push(performance.now() - t);
-    await new Promise((resolve) => setTimeout(resolve, 5));
-  }
-  await sweep;
-  server.closeAllConnections();
-  await new Promise((resolve) => server.close(resolve));
-  await closeApp(h.deps);
-  await h.store.close();
-  return { seconds, healthzP95: quantile(healthz, 0.95), probes: healthz.length, bytes };
+  return timeRuns(once, runs, origin, close);
 }
 
 /**
@@ -111,9 +132,7 @@ async function measure(workers: number, runs: number): Promise<SweepResult> {
  */
 async function measureJob(runs: number): Promise<SweepResult> {
   const h = await makeHarness({ quota: 100_000_000, rateLimit: 100_000, config: { engineWorkers: 0 } });
-  const server = http.createServer({ keepAlive: true }, h.app).listen(0, '127.0.0.1');
-  await new Promise((resolve) => server.once('listening', resolve));
-  const origin = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
+  const { origin, close } = await serve(h);
   const headers = { authorization: `Bearer ${h.token}`, 'content-type': 'application/json' };
   const once = async () => {
     const t = performance.now();
@@ -136,31 +155,7 @@ async function measureJob(runs: number): Promise<SweepResult> {
       throw new Error(`job result: ${bytes.subarray(0, 300)}`);
     return { ms: performance.now() - t, bytes: bytes.length };
   };
-  await once();
-  const seconds: number[] = [];
-  let bytes = 0;
-  for (let i = 0; i < runs; i++) {
-    const r = await once();
-    seconds.push(r.ms / 1000);
-    bytes = r.bytes;
-  }
-  let running = true;
-  const job = once().then(() => {
-    running = false;
-  });
-  const healthz: number[] = [];
-  while (running) {
-    const t = performance.now();
-    await (await fetch(`${origin}/healthz`)).text();
-    healthz.push(performance.now() - t);
-    await new Promise((resolve) => setTimeout(resolve, 5));
-  }
-  await job;
-  server.closeAllConnections();
-  await new Promise((resolve) => server.close(resolve));
-  await closeApp(h.deps);
-  await h.store.close();
-  return { seconds, healthzP95: quantile(healthz, 0.95), probes: healthz.length, bytes };
+  return timeRuns(once, runs, origin, close);
 }
 
 export async function runSweepBench(): Promise<void> {
