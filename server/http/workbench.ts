@@ -35,12 +35,8 @@ import { problem, ProblemError } from './problem.js';
 import { findNonFinite } from './send.js';
 import {
   compileOperation,
-  outcomeValue,
   pathOf,
-  poolProblem,
-  pooled,
-  prepareOperation,
-  runTaskInline,
+  runCall,
   type AnyOperation,
   type CompiledOperation,
   type OperationContext,
@@ -259,17 +255,7 @@ export async function runOnKey(deps: AppDeps, key: ApiKeyView, run: WorkbenchRun
       } else {
         const op: CompiledOperation = compileOperation(decl);
         charge(decl.operation.units + (decl.extraUnits?.(run.body) ?? 0));
-        const prepared = await prepareOperation(op, { params, body: run.body }, ctx);
-        if ('done' in prepared) result = prepared.done;
-        else if (prepared.offload && pooled(deps.enginePool)) {
-          let outcome;
-          try {
-            outcome = await deps.enginePool.run(prepared.task, prepared.taskInput);
-          } catch (err) {
-            throw poolProblem(err, requestId);
-          }
-          result = prepared.finish(() => outcomeValue(outcome));
-        } else result = prepared.finish(() => runTaskInline(prepared.task, prepared.taskInput));
+        result = await runCall(op, { params, body: run.body }, ctx, deps.enginePool, requestId);
         const bad = findNonFinite(result);
         if (bad !== undefined) {
           throw problem(

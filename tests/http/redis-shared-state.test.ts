@@ -299,8 +299,9 @@ describe('lifecycle', () => {
       const named = async () => (await c.clientList()).filter((x) => x.name.startsWith('ebullio')).length;
       expect(await named()).toBe(2);
       proc.child.kill('SIGTERM');
-      expect((await proc.exited).code).toBe(0);
+      const exit = await proc.exited;
       const out = proc.output();
+      expect({ ...exit, out }).toMatchObject({ code: 0 });
       // Closed by the app, after the HTTP drain, before the database.
       expect(out.indexOf('[shutdown] Redis connections closed')).toBeGreaterThan(
         out.indexOf('[shutdown] SIGTERM'),

@@ -414,6 +414,32 @@ export function pooled(pool: EnginePool | undefined): pool is EnginePool {
   return pool !== undefined && pool.workers > 0 && !pool.destroyed;
 }
 
+/**
+ * Parses and runs one call of `op`: its engine task in the worker pool when the task asks to be
+ * offloaded and a pool is there, else on this thread. A pool that fails answers the 5xx problem
+ * naming the request (poolProblem).
+ */
+export async function runCall(
+  op: CompiledOperation,
+  raw: { params?: unknown; query?: unknown; body?: unknown },
+  ctx: OperationContext,
+  pool: EnginePool | undefined,
+  requestId: unknown,
+): Promise<unknown> {
+  const prepared = await prepareOperation(op, raw, ctx);
+  if ('done' in prepared) return prepared.done instanceof Promise ? await prepared.done : prepared.done;
+  if (prepared.offload && pooled(pool)) {
+    let outcome: TaskOutcome;
+    try {
+      outcome = await pool.run(prepared.task, prepared.taskInput);
+    } catch (err) {
+      throw poolProblem(err, requestId);
+    }
+    return prepared.finish(() => outcomeValue(outcome));
+  }
+  return prepared.finish(() => runTaskInline(prepared.task, prepared.taskInput));
+}
+
 /** Parses and runs a request for `op` on this thread (the engine inline). */
 export async function runOperation(
   op: CompiledOperation,
@@ -548,19 +574,7 @@ export function mountOperation(router: Router, decl: AnyOperation, deps: AppDeps
             const extra = extraUnits(req.body);
             if (extra) chargeUnits(res, extra);
           }
-          const prepared = await prepareOperation(op, req, contextOf(res, deps));
-          let result: unknown;
-          if ('done' in prepared)
-            result = prepared.done instanceof Promise ? await prepared.done : prepared.done;
-          else if (prepared.offload && pooled(deps.enginePool)) {
-            let outcome: TaskOutcome;
-            try {
-              outcome = await deps.enginePool.run(prepared.task, prepared.taskInput);
-            } catch (err) {
-              throw poolProblem(err, res.locals.requestId);
-            }
-            result = prepared.finish(() => outcomeValue(outcome));
-          } else result = prepared.finish(() => runTaskInline(prepared.task, prepared.taskInput));
+          const result = await runCall(op, req, contextOf(res, deps), deps.enginePool, res.locals.requestId);
           if (status === 204) res.status(204).end();
           else if (decl.send === 'json') res.status(status).json(result);
           else sendCalculation(res, result, status);
