@@ -17,8 +17,9 @@
  *   for the main thread.
  * - `destroy()` ends the threads (after the HTTP drain, server/app.ts `closeApp`).
  */
+import { setTimeout as sleep } from 'node:timers/promises';
 import { Piscina } from 'piscina';
-import { runEngineTasks, type EngineWorkerTask, type TaskOutcome } from './engine-tasks.js';
+import { runEngineTasks, SINGLE_EFFECT, type EngineWorkerTask, type TaskOutcome } from './engine-tasks.js';
 
 export interface EnginePoolOptions {
   /** Worker threads; 0: inline on the calling thread. */
@@ -69,6 +70,9 @@ const MAX_CHUNK = 32;
 /** Idle threads beyond `minThreads` end after this, ms. */
 const IDLE_TIMEOUT_MS = 60_000;
 
+/** How long `destroy` waits for eager threads still booting, ms. */
+const BOOT_WAIT_MS = 10_000;
+
 /** ENGINE_WORKER_NICE's default: see engine-worker.ts. */
 export const DEFAULT_NICE_INCREMENT = 10;
 
@@ -95,6 +99,16 @@ export function createEnginePool(options: EnginePoolOptions): EnginePool {
           execArgv: [],
         })
       : undefined;
+
+  // Eager threads boot now (each registers tsx and loads the engine). One empty call per thread
+  // settles once every thread has booted: `destroy` waits for it, because ending a thread while it
+  // is still loading its modules through the loader hooks can abort the whole process (Node 20).
+  const booted: Promise<unknown> =
+    piscina && options.eager
+      ? Promise.allSettled(
+          Array.from({ length: workers }, () => piscina.run({ name: SINGLE_EFFECT, inputs: [] })),
+        )
+      : Promise.resolve();
 
   // One task per thread is handed to Piscina at a time; the rest wait here, in order. So the time
   // limit starts when a thread takes the task, not while it queues behind other batches.
@@ -167,6 +181,7 @@ export function createEnginePool(options: EnginePoolOptions): EnginePool {
       destroyed = true;
       // Calls still waiting for a thread wake, find the pool shut and fail.
       for (const wake of waiting.splice(0)) wake();
+      await Promise.race([booted, sleep(BOOT_WAIT_MS, undefined, { ref: false })]);
       await piscina?.destroy();
     },
   };

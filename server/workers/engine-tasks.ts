@@ -88,7 +88,7 @@ export interface MultipleEffectTask {
 }
 
 // Tasks are keyed by the catalogue's operation ids (shared/operations.ts spells them).
-const SINGLE_EFFECT = operationCatalogue.singleEffect.id;
+export const SINGLE_EFFECT = operationCatalogue.singleEffect.id;
 const MULTIPLE_EFFECT = operationCatalogue.multipleEffect.id;
 
 /** Operation id → its input and result types. */
