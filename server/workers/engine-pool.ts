@@ -17,7 +17,6 @@
  *   for the main thread.
  * - `destroy()` ends the threads (after the HTTP drain, server/app.ts `closeApp`).
  */
-import { setTimeout as sleep } from 'node:timers/promises';
 import { Piscina } from 'piscina';
 import { runEngineTasks, SINGLE_EFFECT, type EngineWorkerTask, type TaskOutcome } from './engine-tasks.js';
 
@@ -181,7 +180,7 @@ export function createEnginePool(options: EnginePoolOptions): EnginePool {
       destroyed = true;
       // Calls still waiting for a thread wake, find the pool shut and fail.
       for (const wake of waiting.splice(0)) wake();
-      await Promise.race([booted, sleep(BOOT_WAIT_MS, undefined, { ref: false })]);
+      await Promise.race([booted, new Promise((resolve) => setTimeout(resolve, BOOT_WAIT_MS).unref())]);
       await piscina?.destroy();
     },
   };
