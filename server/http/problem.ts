@@ -230,18 +230,30 @@ export interface ProblemBody {
   errors?: ProblemFieldError[];
 }
 
-/** The problem-details body of a problem answered to this response's request. */
-export function problemBody(res: Response, p: ProblemError): ProblemBody {
-  const req: Request = res.req;
+/**
+ * A problem's own fields as JSON (type URI, title, status, detail, errors), without the request's
+ * `instance` and id: a batch or sweep row's problem, a job's, a logged refusal's.
+ */
+export function problemFields(p: ProblemError): Omit<ProblemBody, 'instance' | 'requestId'> {
   return {
     type: problemTypeUri(p.type),
     title: p.title,
     status: p.status,
     ...(p.detail !== undefined ? { detail: p.detail } : {}),
+    ...(p.errors && p.errors.length > 0 ? { errors: p.errors } : {}),
+  };
+}
+
+/** The problem-details body of a problem answered to this response's request. */
+export function problemBody(res: Response, p: ProblemError): ProblemBody {
+  const req: Request = res.req;
+  const { errors, ...fields } = problemFields(p);
+  return {
+    ...fields,
     // The path only, with key-shaped segments redacted (the body is logged and may be shown).
     instance: redactText(req.originalUrl.split('?')[0] ?? req.originalUrl),
     ...(typeof res.locals.requestId === 'string' ? { requestId: res.locals.requestId } : {}),
-    ...(p.errors && p.errors.length > 0 ? { errors: p.errors } : {}),
+    ...(errors ? { errors } : {}),
   };
 }
 

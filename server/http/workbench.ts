@@ -31,7 +31,7 @@ import { nextMonthStartUtc } from '../accounts/usage.js';
 import type { AppDeps } from '../deps.js';
 import { toProblem } from './engine-errors.js';
 import { checkJsonBody } from './middleware/body.js';
-import { problem, ProblemError } from './problem.js';
+import { problem, problemFields, ProblemError } from './problem.js';
 import { findNonFinite } from './send.js';
 import {
   compileOperation,
@@ -131,17 +131,6 @@ function keyRefusal(key: ApiKeyView, now: Date, scope: string): ProblemError | u
     return problem('forbidden', `API key ${key.prefix} lacks the scope "${scope}" this operation needs.`);
   }
   return undefined;
-}
-
-/** What the log keeps of a refusal: the problem as the client reads it. */
-function problemLog(err: ProblemError): Record<string, unknown> {
-  return {
-    type: err.type,
-    title: err.title,
-    status: err.status,
-    ...(err.detail === undefined ? {} : { detail: err.detail }),
-    ...(err.errors === undefined ? {} : { errors: err.errors }),
-  };
 }
 
 function problemStatus(err: unknown): number {
@@ -276,7 +265,7 @@ export async function runOnKey(deps: AppDeps, key: ApiKeyView, run: WorkbenchRun
       const status = problemStatus(err);
       await recordRequest(
         deps.store,
-        record(status, 0, err instanceof ProblemError ? problemLog(err) : null),
+        record(status, 0, err instanceof ProblemError ? problemFields(err) : null),
       );
       throw err;
     }

@@ -44,7 +44,7 @@ import { signingSecretOf } from '../../accounts/signing-secrets.js';
 import { jobSettings } from '../../config.js';
 import type { AppDeps, JobRunnerHandle } from '../../deps.js';
 import { unitsInFlight } from '../middleware/metering.js';
-import { problem, ProblemError } from '../problem.js';
+import { problem, problemFields } from '../problem.js';
 import type { AnyOperation, JobPart, JobWork, OperationContext, ProblemBody } from '../v1/operation.js';
 import { EngineCallError } from '../../workers/engine-pool.js';
 import { sendCallback } from './callback.js';
@@ -60,16 +60,6 @@ const PRUNE_EVERY_MS = 60_000;
 
 /** The chunk found the job no longer its own (cancelled, or taken over): rolled back. */
 class LostClaim extends Error {}
-
-function bodyOf(p: ProblemError): ProblemBody {
-  return {
-    type: `/problems/${p.type}`,
-    title: p.title,
-    status: p.status,
-    ...(p.detail !== undefined ? { detail: p.detail } : {}),
-    ...(p.errors ? { errors: p.errors } : {}),
-  };
-}
 
 export function createJobRunner(
   deps: AppDeps,
@@ -113,7 +103,7 @@ export function createJobRunner(
     await fail(
       row,
       claim,
-      bodyOf(
+      problemFields(
         problem(
           'quota-exceeded',
           `The monthly quota of ${quota} units ran out after ${done} of ${row.total} points: the rest were not run. ` +
@@ -134,7 +124,7 @@ export function createJobRunner(
       await fail(
         row,
         claim,
-        bodyOf(
+        problemFields(
           problem(
             'internal',
             `The job's stored request could not be read again (${(err as Error).message}).`,
@@ -211,7 +201,7 @@ export function createJobRunner(
                   )
                 : problem('internal', `The job stopped at point ${done}: ${(err as Error).message}`);
             console.error(`[jobs] job ${row.id} failed at point ${done}:`, err);
-            await fail(row, claim, bodyOf(p));
+            await fail(row, claim, problemFields(p));
             return;
           }
           ran.ok.forEach((ok, i) => {

@@ -31,7 +31,7 @@ import { csvPlace, readCsv } from '../../csv-input.js';
 import { rebaseProblem, rebaseWarnings, toProblem } from '../../engine-errors.js';
 import { FORBIDDEN_KEYS } from '../../middleware/body.js';
 import { chargeUnits, releaseUnits } from '../../middleware/operation.js';
-import { problem, problemTypeUri, ProblemError } from '../../problem.js';
+import { problem, problemFields, ProblemError } from '../../problem.js';
 import { findNonFinite } from '../../send.js';
 import { singleCsvUpload } from '../../upload.js';
 import { validate } from '../../validate.js';
@@ -183,13 +183,7 @@ export function caseProblem(err: unknown, base: string, line?: number): BatchPro
 
 /** A problem as the JSON body of a row. */
 export function problemBody(p: ProblemError): BatchProblem {
-  return {
-    type: problemTypeUri(p.type),
-    title: p.title,
-    status: p.status,
-    ...(p.detail !== undefined ? { detail: p.detail } : {}),
-    ...(p.errors ? { errors: p.errors } : {}),
-  };
+  return problemFields(p);
 }
 
 type BatchProblem = NonNullable<BatchResponse['results'][number]['problem']>;
