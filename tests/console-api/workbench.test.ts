@@ -298,6 +298,47 @@ describe('workbench runs', () => {
     expect(JSON.stringify(res.body)).toMatch(/__proto__/);
   });
 
+  it('refuses a body nested beyond the limit, an odd operation name or key id, charging nothing', async () => {
+    let deep: unknown = 1;
+    for (let i = 0; i < 200; i++) deep = [deep];
+    const nested = await run({
+      keyId: h.keyId,
+      operation: 'evaporators.single-effect',
+      body: { ...SINGLE_EFFECT, note: deep },
+    });
+    expect(nested.status).toBeGreaterThanOrEqual(400);
+    expect(nested.status).toBeLessThan(500);
+    for (const operation of ['__proto__', 'constructor', 'toString', 'x'.repeat(5000)]) {
+      const res = await run({ keyId: h.keyId, operation, body: SINGLE_EFFECT });
+      expect(res.status, operation.slice(0, 20)).toBe(422);
+      expect(JSON.stringify(res.body)).toContain('operation');
+    }
+    for (const keyId of ['1; DROP TABLE api_keys', -1, 1.5, 1e300, null, { valueOf: 1 }]) {
+      const res = await run({ keyId, operation: 'evaporators.single-effect', body: SINGLE_EFFECT });
+      expect(res.status, JSON.stringify(keyId)).toBeGreaterThanOrEqual(400);
+      expect(res.status, JSON.stringify(keyId)).toBeLessThan(500);
+    }
+    const [charged] = await h.store.rows<{ units: number | string | null }>(
+      sql`SELECT SUM(units) AS units FROM usage_events`,
+    );
+    expect(Number(charged?.units ?? 0)).toBe(0);
+  });
+
+  it('keeps no key sent in the body out of the request log of the run', async () => {
+    // The account keeps bodies (retain: true): the run's body is logged, the key in it redacted.
+    const res = await run({
+      keyId: h.keyId,
+      operation: 'evaporators.single-effect',
+      body: { ...SINGLE_EFFECT, note: h.token, [h.token]: 1 },
+    });
+    expect(res.status).toBeLessThan(500);
+    const rows = await h.store.rows<{ request_body: string | null; response_body: string | null }>(
+      sql`SELECT request_body, response_body FROM request_log`,
+    );
+    expect(rows.length).toBeGreaterThan(0);
+    expect(JSON.stringify(rows)).not.toContain(h.token);
+  });
+
   it('refuses when the month’s quota cannot cover the call', async () => {
     await setUp({ quota: 3 });
     const res = await run({ keyId: h.keyId, operation: 'evaporators.single-effect', body: SINGLE_EFFECT });
