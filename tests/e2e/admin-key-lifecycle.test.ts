@@ -61,7 +61,23 @@ describe('admin: account, key, API call, request log, revocation', () => {
     await dialog.getByLabel('Billing e-mail (optional)').fill('plant-accounts@kestrel-valley.invalid');
     await dialog.getByRole('button', { name: 'Create' }).click();
     await page.locator('.v-data-table tbody tr', { hasText: ACCOUNT }).waitFor();
+    // The page as the admin sees it once the dialog has closed, not during its fade.
+    await dialog.waitFor({ state: 'detached' });
     await screenshot(page, 'accounts');
+  }, 60_000);
+
+  it('makes the account’s callback signing secret and shows it once', async () => {
+    const { page } = flow.browser;
+    const row = page.locator('.v-data-table tbody tr', { hasText: ACCOUNT });
+    await row.locator('[data-test="signing-secret"]').click();
+    const dialog = page.locator('.v-dialog .v-card', { hasText: 'Callback signing secret' });
+    await dialog.getByRole('button', { name: 'Make secret' }).click();
+    const field = dialog.getByLabel('Signing secret');
+    await field.waitFor();
+    expect((await field.inputValue()).length).toBeGreaterThanOrEqual(32);
+    await screenshot(page, 'accounts-signing-secret');
+    await dialog.getByRole('button', { name: 'Done' }).click();
+    await dialog.waitFor({ state: 'detached' });
   }, 60_000);
 
   it('creates a key for that account and shows its secret once', async () => {
