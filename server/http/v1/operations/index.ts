@@ -38,10 +38,13 @@ const calculations: AnyOperation[] = [
   overallCoefficient,
 ];
 
+/** Sweeps over the calculations: the /v1 operation's and the console workbench's (compiled once). */
+export const calculationSweeps = sweepRunner(calculations);
+
 const operations: AnyOperation[] = [
   ...calculations,
   batchOperation(calculations),
-  sweepOperation(calculations),
+  sweepOperation(calculationSweeps),
   evaporatorSchemeStudy,
   usageRead,
 ];
@@ -51,9 +54,6 @@ export const v1Operations: readonly AnyOperation[] = [...operations, ...jobOpera
 
 /** The calculations a batch, a sweep or the console's workbench may run. */
 export const calculationOperations: readonly AnyOperation[] = calculations;
-
-/** Sweeps over the calculations, for callers outside the /v1 router (the console's workbench). */
-export const calculationSweeps = sweepRunner(calculations);
 
 const byId = new Map<string, AnyOperation>(v1Operations.map((d) => [d.operation.id, d]));
 

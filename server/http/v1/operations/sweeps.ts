@@ -557,9 +557,10 @@ export function sweepRunner(operations: readonly AnyOperation[]) {
   return { check, open, parse, run };
 }
 
-/** The sweep operation over the declarations that name a batch name. */
-export function sweepOperation(operations: readonly AnyOperation[]) {
-  const sweeps = sweepRunner(operations);
+export type SweepRunner = ReturnType<typeof sweepRunner>;
+
+/** The sweep operation, over the declarations its runner was made for. */
+export function sweepOperation(sweeps: SweepRunner) {
   return declareOperation({
     operation: operationCatalogue.sweep,
     method: 'post',
